@@ -1,0 +1,23 @@
+/**
+ * The in-memory shape every reader produces and the analysis core consumes. Samples are in microvolts, one
+ * Float32Array per channel, all at one sample rate. Events carry onset and duration in seconds from the first
+ * sample, and a label (EDF+ annotation text or the BIDS `trial_type`).
+ */
+export interface RecordingEvent {
+  onsetSeconds: number;
+  durationSeconds: number;
+  label: string;
+}
+
+export interface Recording {
+  sampleRateHz: number;
+  channelNames: string[];
+  /** data[c][s] in µV; every channel has the same length. */
+  data: Float32Array[];
+  events: RecordingEvent[];
+  /**
+   * Discontinuities (EDF+D): [startSeconds, endSeconds) spans of recording time that hold no samples, expressed
+   * on the sample axis as the sample index where a new continuous block begins. Epochs spanning one are dropped.
+   */
+  gapSampleIndices?: number[];
+}
