@@ -1,0 +1,64 @@
+// `npm test`: the same bootstrap as `npm start`, on a private test cluster with a fresh database, then Vitest (unit
+// and integration, against real PostgreSQL and the built app) and the browser tests (playwright-core driving
+// Debian's Chromium). Extra arguments are passed to Vitest as file filters: `npm test -- permissions`.
+import { spawnSync } from 'node:child_process';
+import fs from 'node:fs';
+import path from 'node:path';
+import {
+  assertPortFree, buildIfStale, ensureNodeModules, log, migrate, onSignals, requireChromium, root, runMain, seed,
+  startChild, startCluster, stopAll,
+} from './lib/bootstrap.mjs';
+
+const APP_PORT = Number(process.env.TIDEMARK_TEST_PORT ?? 4331);
+const PG_PORT = Number(process.env.TIDEMARK_TEST_PG_PORT ?? 54339);
+const SMTP_PORT = Number(process.env.TIDEMARK_TEST_SMTP_PORT ?? 2535);
+const filters = process.argv.slice(2);
+
+await runMain(async () => {
+  onSignals(async () => {
+    await stopAll();
+    process.exit(130);
+  });
+  ensureNodeModules();
+  const chromium = requireChromium();
+  await assertPortFree(APP_PORT, 'the test app');
+  await assertPortFree(SMTP_PORT, 'the test mail fake');
+  const cluster = await startCluster({ name: 'pg-test', port: PG_PORT, fastAndLoose: true });
+  cluster.ensureDatabase('tidemark_test', { fresh: true });
+  const databaseUrl = cluster.url('tidemark_test');
+  migrate(databaseUrl);
+  seed(databaseUrl);
+  if (fs.existsSync(path.join(root, 'scripts', 'demo-data.ts'))) {
+    const { generateDemoData } = await import('./lib/demo-data.mjs');
+    generateDemoData();
+  }
+  buildIfStale();
+  const appUrl = `http://127.0.0.1:${APP_PORT}`;
+  const env = {
+    DATABASE_URL: databaseUrl,
+    SMTP_HOST: '127.0.0.1',
+    SMTP_PORT: String(SMTP_PORT),
+    TIDEMARK_MAIL_FAKE: '1',
+    HOST: '127.0.0.1',
+    PORT: String(APP_PORT),
+    TIDEMARK_ORIGIN: appUrl,
+  };
+  await startChild('mail fake', process.execPath, [path.join(root, 'scripts', 'mail-fake.mjs')], { env, readyLine: 'mail fake listening' });
+  await startChild('app', process.execPath, [path.join(root, 'dist', 'server', 'entry.mjs')], { env, readyLine: 'Server listening' });
+  log(`test app on ${appUrl}`);
+
+  const testEnv = { ...process.env, ...env, TIDEMARK_APP_URL: appUrl, TIDEMARK_CHROMIUM: chromium };
+  const vitest = path.join(root, 'node_modules', 'vitest', 'vitest.mjs');
+  const runVitest = (config, label) => {
+    log(`running ${label}…`);
+    const result = spawnSync(process.execPath, [vitest, 'run', '--config', config, ...(filters.length ? ['--passWithNoTests', ...filters] : [])], { cwd: root, env: testEnv, stdio: 'inherit' });
+    return result.status ?? 1;
+  };
+  const pick = (dir) => filters.length === 0 || filters.some((f) => f.includes(dir) || !f.includes('/'));
+  let failed = 0;
+  if (pick('tests/unit') || pick('tests/integration')) failed += runVitest('tests/vitest.config.ts', 'unit and integration tests') === 0 ? 0 : 1;
+  if (pick('tests/browser')) failed += runVitest('tests/vitest.browser.config.ts', 'browser tests') === 0 ? 0 : 1;
+  await stopAll();
+  log(failed === 0 ? 'all test suites passed' : `${failed} test suite(s) failed`);
+  process.exit(failed === 0 ? 0 : 1);
+});

@@ -1,0 +1,4 @@
+export * from './auth';
+export * from './teams';
+export * from './analysis';
+export * from './system';

@@ -1,0 +1,63 @@
+// The demo: an invented lab, the Saltmarsh Rhythms Lab, studying how people anticipate a harbour-bell cue. People,
+// addresses and passwords are invented for the demo (".example" addresses are reserved by RFC 2606).
+import { and, eq, sql } from 'drizzle-orm';
+import type { Db } from './client';
+import { memberships, studies, teams, users } from './schema';
+import type { Role } from '../lib/permissions';
+import { hashPassword } from '../lib/server/password';
+import { newUserId } from '../lib/server/auth';
+
+export const DEMO_TEAM = { name: 'Saltmarsh Rhythms Lab', slug: 'saltmarsh' };
+
+export const DEMO_PEOPLE: { email: string; displayName: string; role: Role; password: string }[] = [
+  { email: 'admin@saltmarsh.example', displayName: 'Rowan Quay', role: 'admin', password: 'demo-admin-pass' },
+  { email: 'lead@saltmarsh.example', displayName: 'Maren Holt', role: 'lead', password: 'demo-lead-pass' },
+  { email: 'analyst1@saltmarsh.example', displayName: 'Idris Fenn', role: 'analyst', password: 'demo-analyst-pass' },
+  { email: 'analyst2@saltmarsh.example', displayName: 'Sol Varga', role: 'analyst', password: 'demo-analyst-pass' },
+  { email: 'reviewer@saltmarsh.example', displayName: 'Tove Lind', role: 'reviewer', password: 'demo-reviewer-pass' },
+];
+
+export const DEMO_STUDIES = [
+  {
+    name: 'Harbour-bell anticipation',
+    description: 'Scalp EEG while people wait for a bell that tells them which hand to use; the two cue conditions are compared.',
+  },
+  {
+    name: 'Ebb and flow rest blocks',
+    description: 'Eyes-open and eyes-closed rest blocks, used to check aperiodic slope estimates across caps.',
+  },
+];
+
+/** Creates the demo team, people and studies when missing; never changes what already exists. */
+export async function seedDemo(db: Db): Promise<{ created: number }> {
+  let created = 0;
+  return db.transaction(async (tx) => {
+    let [team] = await tx.select().from(teams).where(eq(teams.slug, DEMO_TEAM.slug)).limit(1);
+    if (!team) {
+      [team] = await tx.insert(teams).values(DEMO_TEAM).returning();
+      created++;
+    }
+    let leadId: string | null = null;
+    for (const person of DEMO_PEOPLE) {
+      let [user] = await tx.select().from(users).where(sql`lower(${users.email}) = ${person.email}`).limit(1);
+      if (!user) {
+        [user] = await tx
+          .insert(users)
+          .values({ id: newUserId(), email: person.email, displayName: person.displayName, passwordHash: await hashPassword(person.password) })
+          .returning();
+        created++;
+      }
+      if (person.role === 'lead') leadId = user.id;
+      const inserted = await tx.insert(memberships).values({ userId: user.id, teamId: team.id, role: person.role }).onConflictDoNothing().returning();
+      created += inserted.length;
+    }
+    for (const study of DEMO_STUDIES) {
+      const [existing] = await tx.select().from(studies).where(and(eq(studies.teamId, team.id), eq(studies.name, study.name))).limit(1);
+      if (!existing) {
+        await tx.insert(studies).values({ ...study, teamId: team.id, createdBy: leadId });
+        created++;
+      }
+    }
+    return { created };
+  });
+}

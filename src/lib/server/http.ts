@@ -1,0 +1,99 @@
+import type { APIContext } from 'astro';
+import type { z } from 'zod';
+import { can, type Action, type Role } from '../permissions';
+
+export interface ErrorBody {
+  error: { code: string; message: string; issues?: { path: string; message: string }[] };
+}
+
+export class HttpError extends Error {
+  constructor(
+    readonly status: number,
+    readonly code: string,
+    message: string,
+    readonly issues?: { path: string; message: string }[],
+  ) {
+    super(message);
+  }
+}
+
+export function json(body: unknown, status = 200): Response {
+  return new Response(JSON.stringify(body), { status, headers: { 'content-type': 'application/json; charset=utf-8', 'cache-control': 'no-store' } });
+}
+
+/** Runs an API handler, mapping HttpError to `{ error: { code, message, issues? } }`; other errors to a bare 500. */
+export async function route(ctx: APIContext, handler: (ctx: APIContext) => Promise<Response>): Promise<Response> {
+  try {
+    return await handler(ctx);
+  } catch (error) {
+    if (error instanceof HttpError) {
+      const body: ErrorBody = { error: { code: error.code, message: error.message, ...(error.issues ? { issues: error.issues } : {}) } };
+      return json(body, error.status);
+    }
+    console.error(`[tidemark] ${ctx.request.method} ${ctx.url.pathname}:`, error);
+    return json({ error: { code: 'internal', message: 'Something went wrong on the server; nothing was changed.' } }, 500);
+  }
+}
+
+export function requireUser(locals: App.Locals): NonNullable<App.Locals['user']> {
+  if (!locals.user) throw new HttpError(401, 'unauthenticated', 'Sign in first.');
+  return locals.user;
+}
+
+export function notFound(what = 'That'): never {
+  throw new HttpError(404, 'not_found', `${what} was not found.`);
+}
+
+export function requirePermission(role: Role | null | undefined, action: Action): void {
+  if (!can(role, action)) throw new HttpError(403, 'forbidden', `Your role${role ? ` (${role})` : ''} may not do this (${action}).`);
+}
+
+export function issuesOf(error: z.ZodError): { path: string; message: string }[] {
+  return error.issues.map((i) => ({ path: i.path.join('.') || '(body)', message: i.message }));
+}
+
+/** Parses a JSON body against a zod schema; 413 when too large, 400 with every issue's path when invalid. */
+export async function parseJson<T extends z.ZodType>(request: Request, schema: T, { maxBytes = 65_536 } = {}): Promise<z.infer<T>> {
+  const type = request.headers.get('content-type') ?? '';
+  if (!type.includes('application/json')) throw new HttpError(415, 'unsupported_media_type', 'Send the body as application/json.');
+  const text = await request.text();
+  if (Buffer.byteLength(text) > maxBytes) throw new HttpError(413, 'too_large', `The body is larger than ${maxBytes} bytes.`);
+  let data: unknown;
+  try {
+    data = JSON.parse(text);
+  } catch {
+    throw new HttpError(400, 'bad_json', 'The body is not valid JSON.');
+  }
+  const parsed = schema.safeParse(data);
+  if (!parsed.success) {
+    const issues = issuesOf(parsed.error);
+    throw new HttpError(400, 'invalid', issues.map((i) => `${i.path}: ${i.message}`).join('; '), issues);
+  }
+  return parsed.data;
+}
+
+export type FormResult<T> = { ok: true; data: T } | { ok: false; message: string; fields: Record<string, string> };
+
+/** Reads a form post and validates it; a malformed post (wrong content type, unreadable) is reported, not thrown. */
+export async function readForm<T extends z.ZodType>(request: Request, schema: T): Promise<FormResult<z.infer<T>>> {
+  const type = request.headers.get('content-type') ?? '';
+  if (!type.includes('application/x-www-form-urlencoded') && !type.includes('multipart/form-data')) {
+    return { ok: false, message: 'The form could not be read (unexpected content type). Nothing was changed.', fields: {} };
+  }
+  let form: FormData;
+  try {
+    form = await request.formData();
+  } catch {
+    return { ok: false, message: 'The form could not be read. Nothing was changed.', fields: {} };
+  }
+  const raw: Record<string, string> = {};
+  for (const [k, v] of form.entries()) if (typeof v === 'string') raw[k] = v;
+  const parsed = schema.safeParse(raw);
+  if (parsed.success) return { ok: true, data: parsed.data };
+  const fields: Record<string, string> = {};
+  for (const issue of parsed.error.issues) {
+    const key = String(issue.path[0] ?? 'form');
+    fields[key] ??= issue.message;
+  }
+  return { ok: false, message: 'Please correct the marked fields. Nothing was changed.', fields };
+}

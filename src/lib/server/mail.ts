@@ -1,0 +1,22 @@
+import nodemailer from 'nodemailer';
+
+const host = process.env.SMTP_HOST ?? '127.0.0.1';
+const port = Number(process.env.SMTP_PORT ?? 2525);
+const from = process.env.MAIL_FROM ?? 'Tidemark <no-reply@tidemark.invalid>';
+
+const transport = nodemailer.createTransport({ host, port, secure: false, ignoreTLS: true });
+
+/** true when mail goes to the local fake (the dev mailbox page is shown only then). */
+export function mailFakeActive(): boolean {
+  return process.env.TIDEMARK_MAIL_FAKE === '1';
+}
+
+export async function sendMail(to: string, subject: string, text: string): Promise<void> {
+  // base64 keeps long links intact for anyone reading the raw message.
+  await transport.sendMail({ from, to, subject, text, textEncoding: 'base64' });
+}
+
+/** The public origin used in mailed links: TIDEMARK_ORIGIN when set, else the origin of the request. */
+export function publicOrigin(url: URL): string {
+  return process.env.TIDEMARK_ORIGIN ?? url.origin;
+}

@@ -1,0 +1,24 @@
+import type { APIRoute } from 'astro';
+import { json, notFound, parseJson, requirePermission, requireUser, route } from '../../../../lib/server/http';
+import { getStudyForMember } from '../../../../db/queries/teams';
+import { createAnalysisSession, listAnalysisSessions } from '../../../../db/queries/analysis-sessions';
+import { AnalysisSessionInput } from '../../../../lib/schemas/studies';
+
+export const GET: APIRoute = (ctx) =>
+  route(ctx, async ({ locals, params }) => {
+    const user = requireUser(locals);
+    const found = (await getStudyForMember(params.studyId!, user.id)) ?? notFound('The study');
+    requirePermission(found.role, 'study:view');
+    const rows = await listAnalysisSessions(found.study.id);
+    return json({ analysisSessions: rows.map((r) => ({ ...r.session, ownerName: r.ownerName })) });
+  });
+
+export const POST: APIRoute = (ctx) =>
+  route(ctx, async ({ locals, params, request }) => {
+    const user = requireUser(locals);
+    const found = (await getStudyForMember(params.studyId!, user.id)) ?? notFound('The study');
+    requirePermission(found.role, 'analysisSession:create');
+    const input = await parseJson(request, AnalysisSessionInput, { maxBytes: 4096 });
+    const row = await createAnalysisSession(found.study.id, found.team.id, user.id, input);
+    return json({ analysisSession: row }, 201);
+  });
