@@ -87,6 +87,8 @@ export async function readForm<T extends z.ZodType>(request: Request, schema: T)
     return { ok: false, message: 'The form could not be read. Nothing was changed.', fields: {} };
   }
   const raw: Record<string, string> = {};
+  // An absent field reads as empty, so it earns the field's own message ("Enter your password.").
+  if ('shape' in schema && schema.shape && typeof schema.shape === 'object') for (const k of Object.keys(schema.shape)) raw[k] = '';
   for (const [k, v] of form.entries()) if (typeof v === 'string') raw[k] = v;
   const parsed = schema.safeParse(raw);
   if (parsed.success) return { ok: true, data: parsed.data };

@@ -1,0 +1,96 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser } from 'playwright-core';
+import { appUrl, artifactsDir, launchBrowser } from '../helpers/browser';
+import { DEMO_PEOPLE } from '../../src/db/seed';
+
+let browser: Browser;
+let close: () => Promise<void>;
+
+beforeAll(async () => {
+  ({ browser, close } = await launchBrowser());
+  fs.mkdirSync(artifactsDir, { recursive: true });
+});
+afterAll(() => close());
+
+// What each role must (and must not) see once signed in.
+const expectations = {
+  admin: { administration: true, newStudy: true },
+  lead: { administration: false, newStudy: true },
+  analyst: { administration: false, newStudy: false },
+  reviewer: { administration: false, newStudy: false },
+} as const;
+
+describe('each demo role signs in, sees its navigation and signs out', () => {
+  for (const person of DEMO_PEOPLE.filter((p, i, all) => all.findIndex((q) => q.role === p.role) === i)) {
+    it(`${person.role} (${person.email})`, async () => {
+      const context = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+      const page = await context.newPage();
+      await page.goto(`${appUrl}/`);
+      expect(new URL(page.url()).pathname).toBe('/sign-in');
+      // Keyboard only: the form is reachable and submits with Enter.
+      await page.getByLabel('E-mail').focus();
+      await page.keyboard.type(person.email);
+      await page.keyboard.press('Tab');
+      await page.keyboard.type(person.password);
+      await page.keyboard.press('Enter');
+      await page.waitForURL(/\/teams\/[0-9a-f-]+$/);
+
+      const nav = page.getByRole('navigation', { name: 'Main' });
+      await expect(nav.getByRole('link', { name: 'Studies' }).isVisible()).resolves.toBe(true);
+      await expect(nav.getByRole('link', { name: 'Members' }).isVisible()).resolves.toBe(true);
+      expect(await nav.getByRole('link', { name: 'Administration' }).count()).toBe(expectations[person.role].administration ? 1 : 0);
+      expect(await page.getByRole('heading', { name: 'New study' }).count()).toBe(expectations[person.role].newStudy ? 1 : 0);
+      expect(await page.getByTestId('role').textContent()).toBe(person.role);
+      expect(await page.getByTestId('whoami').textContent()).toContain(person.displayName);
+      expect(await page.getByTestId('study-list').textContent()).toContain('Harbour-bell anticipation');
+      expect(await page.getByTestId('caution').textContent()).toContain('not a medical device');
+
+      if (person.role === 'lead') {
+        await page.screenshot({ path: path.join(artifactsDir, 'team-home.png'), fullPage: true });
+        expect(fs.statSync(path.join(artifactsDir, 'team-home.png')).size).toBeGreaterThan(10_000);
+      }
+      if (person.role === 'admin') {
+        await nav.getByRole('link', { name: 'Administration' }).click();
+        await page.waitForURL(/\/admin$/);
+        expect(await page.getByTestId('admin-users').textContent()).toContain('reviewer@saltmarsh.example');
+      }
+
+      await page.getByRole('button', { name: 'Sign out' }).click();
+      await page.waitForURL(/\/sign-in\?notice=signed-out$/);
+      expect(await page.getByRole('status').textContent()).toContain('You are signed out.');
+      await page.goto(`${appUrl}/admin`);
+      expect(new URL(page.url()).pathname).toBe('/sign-in');
+      await context.close();
+    });
+  }
+
+  it('stays readable at 200 % zoom: no sideways scrolling on the team home', async () => {
+    // 200 % zoom of a 1280 px window leaves a 640 CSS px layout viewport.
+    const context = await browser.newContext({ viewport: { width: 640, height: 800 }, deviceScaleFactor: 2 });
+    const page = await context.newPage();
+    await page.goto(`${appUrl}/sign-in`);
+    const lead = DEMO_PEOPLE.find((p) => p.role === 'lead')!;
+    await page.getByLabel('E-mail').fill(lead.email);
+    await page.getByLabel('Password').fill(lead.password);
+    await page.getByRole('button', { name: 'Sign in' }).click();
+    await page.waitForURL(/\/teams\//);
+    const overflow = await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
+    expect(overflow).toBeLessThanOrEqual(0);
+    await page.screenshot({ path: path.join(artifactsDir, 'team-home-200-percent.png'), fullPage: true });
+    await context.close();
+  });
+
+  it('shows a wrong password as a message in the page', async () => {
+    const context = await browser.newContext();
+    const page = await context.newPage();
+    await page.goto(`${appUrl}/sign-in`);
+    await page.getByLabel('E-mail').fill('lead@saltmarsh.example');
+    await page.getByLabel('Password').fill('wrong-password');
+    await page.getByRole('button', { name: 'Sign in' }).click();
+    await page.waitForLoadState();
+    expect(await page.getByTestId('form-error').textContent()).toContain('do not match an account');
+    await context.close();
+  });
+});
