@@ -106,7 +106,7 @@ function encodeTal(onsetSeconds: number, durationSeconds: number | null | undefi
  * `dig = round((x − physMin)·(digMax − digMin)/(physMax − physMin) + digMin)`, clamped to [digMin, digMax], the
  * inverse of the EDF scaling (Kemp et al., 1992), using the physical limits exactly as written to the header.
  */
-export function writeEdf(input: EdfWriteInput): Uint8Array {
+export function writeEdf(input: EdfWriteInput): Uint8Array<ArrayBuffer> {
   const variant = input.variant ?? 'EDF+C';
   const plus = variant !== 'EDF';
   const duration = input.recordDurationSeconds;
