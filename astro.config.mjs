@@ -6,6 +6,7 @@ import tailwindcss from '@tailwindcss/vite';
 
 export default defineConfig({
   output: 'server',
+  outDir: process.env.TIDEMARK_OUT_DIR ?? './dist',
   adapter: node({ mode: 'standalone' }),
   integrations: [react()],
   server: { host: '127.0.0.1', port: 4321 },

@@ -3,7 +3,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import {
-  assertPortFree, buildIfStale, ensureNodeModules, log, migrate, onSignals, root, runMain, seed, startChild,
+  assertPortFree, buildIfStale, ensureNodeModules, log, migrate, outDir, onSignals, root, runMain, seed, startChild,
   startCluster, stopAll,
 } from './lib/bootstrap.mjs';
 
@@ -41,7 +41,7 @@ await runMain(async () => {
     TIDEMARK_ORIGIN: `http://127.0.0.1:${APP_PORT}`,
   };
   await startChild('mail fake', process.execPath, [path.join(root, 'scripts', 'mail-fake.mjs')], { env, readyLine: 'mail fake listening' });
-  await startChild('app', process.execPath, [path.join(root, 'dist', 'server', 'entry.mjs')], { env, readyLine: 'Server listening' });
+  await startChild('app', process.execPath, [path.join(root, outDir(), 'server', 'entry.mjs')], { env, readyLine: 'Server listening' });
   process.stdout.write(`
   Tidemark is running: http://127.0.0.1:${APP_PORT}
   PostgreSQL 127.0.0.1:${PG_PORT} · mail fake 127.0.0.1:${SMTP_PORT} (read it at http://127.0.0.1:${APP_PORT}/dev/mailbox)

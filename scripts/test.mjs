@@ -5,13 +5,17 @@ import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
 import {
-  assertPortFree, buildIfStale, ensureNodeModules, log, migrate, onSignals, requireChromium, root, runMain, seed,
+  assertPortFree, buildIfStale, ensureNodeModules, log, migrate, outDir, onSignals, requireChromium, root, runMain, seed,
   startChild, startCluster, stopAll,
 } from './lib/bootstrap.mjs';
 
-const APP_PORT = Number(process.env.TIDEMARK_TEST_PORT ?? 4331);
-const PG_PORT = Number(process.env.TIDEMARK_TEST_PG_PORT ?? 54339);
-const SMTP_PORT = Number(process.env.TIDEMARK_TEST_SMTP_PORT ?? 2535);
+// TIDEMARK_TEST_SLOT=N (1-9) lets several checkouts' or engineers' runs share a machine: own ports, database and build.
+const SLOT = Number(process.env.TIDEMARK_TEST_SLOT ?? 0);
+const APP_PORT = 4331 + SLOT;
+const PG_PORT = 54339 + SLOT;
+const SMTP_PORT = 2535 + SLOT;
+const DB_NAME = SLOT ? `tidemark_test_${SLOT}` : 'tidemark_test';
+if (SLOT) process.env.TIDEMARK_OUT_DIR = `dist-${SLOT}`;
 const filters = process.argv.slice(2);
 
 await runMain(async () => {
@@ -23,9 +27,9 @@ await runMain(async () => {
   const chromium = requireChromium();
   await assertPortFree(APP_PORT, 'the test app');
   await assertPortFree(SMTP_PORT, 'the test mail fake');
-  const cluster = await startCluster({ name: 'pg-test', port: PG_PORT, fastAndLoose: true });
-  cluster.ensureDatabase('tidemark_test', { fresh: true });
-  const databaseUrl = cluster.url('tidemark_test');
+  const cluster = await startCluster({ name: SLOT ? `pg-test-${SLOT}` : 'pg-test', port: PG_PORT, fastAndLoose: true });
+  cluster.ensureDatabase(DB_NAME, { fresh: true });
+  const databaseUrl = cluster.url(DB_NAME);
   migrate(databaseUrl);
   seed(databaseUrl);
   if (fs.existsSync(path.join(root, 'scripts', 'demo-data.ts'))) {
@@ -44,7 +48,7 @@ await runMain(async () => {
     TIDEMARK_ORIGIN: appUrl,
   };
   await startChild('mail fake', process.execPath, [path.join(root, 'scripts', 'mail-fake.mjs')], { env, readyLine: 'mail fake listening' });
-  await startChild('app', process.execPath, [path.join(root, 'dist', 'server', 'entry.mjs')], { env, readyLine: 'Server listening' });
+  await startChild('app', process.execPath, [path.join(root, outDir(), 'server', 'entry.mjs')], { env, readyLine: 'Server listening' });
   log(`test app on ${appUrl}`);
 
   const testEnv = { ...process.env, ...env, TIDEMARK_APP_URL: appUrl, TIDEMARK_CHROMIUM: chromium };

@@ -263,6 +263,11 @@ function listFiles(dir, out = []) {
   return out;
 }
 
+/** The build folder: dist/, or TIDEMARK_OUT_DIR (used by parallel test slots). */
+export function outDir() {
+  return process.env.TIDEMARK_OUT_DIR ?? 'dist';
+}
+
 /** Builds with `astro build` when dist/ is missing or older than the sources it comes from. */
 export function buildIfStale() {
   const inputs = [
@@ -270,8 +275,8 @@ export function buildIfStale() {
     ...['astro.config.mjs', 'package-lock.json', 'tsconfig.json'].map((f) => path.join(root, f)),
   ].sort();
   const want = hashFiles(inputs);
-  const stamp = path.join(root, 'dist', '.tidemark-build-hash');
-  if (fs.existsSync(stamp) && fs.readFileSync(stamp, 'utf8') === want && fs.existsSync(path.join(root, 'dist', 'server', 'entry.mjs'))) {
+  const stamp = path.join(root, outDir(), '.tidemark-build-hash');
+  if (fs.existsSync(stamp) && fs.readFileSync(stamp, 'utf8') === want && fs.existsSync(path.join(root, outDir(), 'server', 'entry.mjs'))) {
     log('build is up to date');
     return;
   }
