@@ -1,0 +1,51 @@
+import { useState, type ComponentType } from 'react';
+import { screens, type ScreenName, type WorkspaceProps } from './types';
+import SourceScreen from './SourceScreen';
+import RecipeScreen from './RecipeScreen';
+import MapsScreen from './MapsScreen';
+import SpectrumScreen from './SpectrumScreen';
+import BandsScreen from './BandsScreen';
+import OutboundScreen from './OutboundScreen';
+
+const components: Record<ScreenName, ComponentType<WorkspaceProps>> = {
+  Source: SourceScreen,
+  Recipe: RecipeScreen,
+  Maps: MapsScreen,
+  Spectrum: SpectrumScreen,
+  Bands: BandsScreen,
+  Outbound: OutboundScreen,
+};
+
+/** The analysis workspace: one island, one tab per screen. Screens share state through the zustand stores. */
+export default function Workspace(props: WorkspaceProps) {
+  const [active, setActive] = useState<ScreenName>('Source');
+  return (
+    <div className="mt-4">
+      <div role="tablist" aria-label="Workspace screens" className="flex flex-wrap gap-1 border-b border-shell">
+        {screens.map((name) => (
+          <button
+            key={name}
+            type="button"
+            role="tab"
+            id={`tab-${name}`}
+            aria-selected={active === name}
+            aria-controls={`panel-${name}`}
+            className={`px-4 py-2 text-sm font-semibold ${active === name ? 'border-b-2 border-kelp text-ink' : 'text-ink-soft hover:text-ink'}`}
+            onClick={() => setActive(name)}
+          >
+            {name}
+          </button>
+        ))}
+      </div>
+      {screens.map((name) => {
+        const Screen = components[name];
+        // Screens stay mounted so switching tabs keeps their state and any running work.
+        return (
+          <section key={name} role="tabpanel" id={`panel-${name}`} aria-labelledby={`tab-${name}`} hidden={active !== name} className="py-6">
+            <Screen {...props} />
+          </section>
+        );
+      })}
+    </div>
+  );
+}
