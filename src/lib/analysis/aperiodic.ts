@@ -1,0 +1,216 @@
+import { levenbergMarquardt } from 'ml-levenberg-marquardt';
+import { AnalysisInputError } from './errors';
+
+export type AperiodicMode = 'fixed' | 'knee';
+
+export interface AperiodicFit {
+  /** log10 power at 1 Hz for `fixed`; the additive constant b for `knee` (log10 µV²/Hz). */
+  offset: number;
+  exponent: number;
+  /** Knee constant k (Hz^exponent) for `knee`, null for `fixed`. */
+  knee: number | null;
+  /** Coefficient of determination over the points the final fit used (log10 units). */
+  r2: number;
+  /** Root-mean-square residual over the points the final fit used (log10 units). */
+  rmse: number;
+  /** Spectrum bins inside the range. */
+  points: number;
+  /** Bins left out as lying well above the aperiodic line. */
+  excluded: number;
+}
+
+export interface AperiodicOptions {
+  /** Exclude peaks above the line (default true); false gives the naive single fit, for comparison. */
+  robust?: boolean;
+}
+
+// A point is a peak point when its residual exceeds the median residual by more than EXCLUDE_SCALES robust
+// standard deviations (1.4826 × median absolute deviation, the normal-consistent MAD).
+const EXCLUDE_SCALES = 2.5;
+const MAX_ROUNDS = 20;
+const LN10 = Math.LN10;
+
+/**
+ * Aperiodic (1/f) fit of a power spectrum over `range` Hz, in log10 power against frequency:
+ * `fixed` `log10 P = offset − exponent·log10 f` by ordinary least squares; `knee`
+ * `log10 P = offset − log10(knee + f^exponent)` by Levenberg–Marquardt (ml-levenberg-marquardt).
+ *
+ * Robust to narrow oscillatory peaks after the spectral parameterization approach of Donoghue et al. (2020,
+ * Nature Neuroscience 23:1655–1665), whose aperiodic estimate is made on points not raised by peaks. Here:
+ * fit all points, then repeatedly refit on the points whose residual is not more than 2.5 robust SDs above the
+ * median residual (re-admitting points that fall back under the line), until the kept set stops changing.
+ * Only points above the line are excluded, and at least half the points (and 3) are always kept.
+ */
+export function fitAperiodic(
+  frequencies: ArrayLike<number>,
+  psd: ArrayLike<number>,
+  range: readonly [number, number],
+  mode: AperiodicMode,
+  options: AperiodicOptions = {},
+): AperiodicFit {
+  const [lo, hi] = range;
+  const fs: number[] = [];
+  const ys: number[] = [];
+  for (let i = 0; i < frequencies.length; i++) {
+    const f = frequencies[i];
+    const p = psd[i];
+    if (f > 0 && f >= lo - 1e-9 && f <= hi + 1e-9 && p > 0 && Number.isFinite(p)) {
+      fs.push(f);
+      ys.push(Math.log10(p));
+    }
+  }
+  const minPoints = mode === 'fixed' ? 3 : 4;
+  if (fs.length < minPoints) {
+    throw new AnalysisInputError('aperiodic.range', `holds ${fs.length} usable spectrum bins between ${lo} and ${hi} Hz; the ${mode} fit needs at least ${minPoints}`);
+  }
+  const f = Float64Array.from(fs);
+  const y = Float64Array.from(ys);
+  const n = f.length;
+  const keep = new Uint8Array(n).fill(1);
+  let params = fitModel(mode, f, y, keep, null);
+  if (options.robust !== false) {
+    const residuals = new Float64Array(n);
+    const minKeep = Math.max(minPoints, Math.ceil(n / 2));
+    for (let round = 0; round < MAX_ROUNDS; round++) {
+      for (let i = 0; i < n; i++) residuals[i] = y[i] - predict(mode, params, f[i]);
+      const next = peakFreeSet(residuals, keep, minKeep);
+      let changed = false;
+      for (let i = 0; i < n; i++) if (next[i] !== keep[i]) changed = true;
+      if (!changed) break;
+      keep.set(next);
+      params = fitModel(mode, f, y, keep, params);
+    }
+  }
+  let used = 0;
+  let mean = 0;
+  for (let i = 0; i < n; i++) {
+    if (keep[i]) {
+      used++;
+      mean += y[i];
+    }
+  }
+  mean /= used;
+  let ssRes = 0;
+  let ssTot = 0;
+  for (let i = 0; i < n; i++) {
+    if (!keep[i]) continue;
+    const r = y[i] - predict(mode, params, f[i]);
+    ssRes += r * r;
+    ssTot += (y[i] - mean) * (y[i] - mean);
+  }
+  return {
+    offset: params[0],
+    exponent: params[1],
+    knee: mode === 'knee' ? params[2] : null,
+    r2: ssTot > 0 ? 1 - ssRes / ssTot : 1,
+    rmse: Math.sqrt(ssRes / used),
+    points: n,
+    excluded: n - used,
+  };
+}
+
+/** params = [offset, exponent, knee?] */
+function predict(mode: AperiodicMode, params: readonly number[], f: number): number {
+  return mode === 'fixed' ? params[0] - params[1] * Math.log10(f) : params[0] - Math.log10(params[2] + Math.pow(f, params[1]));
+}
+
+// Points kept for the next round: residual − median ≤ 2.5 robust SDs, computed over the points kept now; if that
+// would keep fewer than minKeep, the minKeep lowest residuals.
+function peakFreeSet(residuals: Float64Array, keep: Uint8Array, minKeep: number): Uint8Array {
+  const kept: number[] = [];
+  for (let i = 0; i < residuals.length; i++) if (keep[i]) kept.push(residuals[i]);
+  const med = median(kept);
+  const deviations = kept.map((r) => Math.abs(r - med));
+  const scale = 1.4826 * median(deviations);
+  const next = new Uint8Array(residuals.length);
+  let count = 0;
+  for (let i = 0; i < residuals.length; i++) {
+    if (residuals[i] - med <= EXCLUDE_SCALES * scale) {
+      next[i] = 1;
+      count++;
+    }
+  }
+  if (count >= minKeep) return next;
+  const order = Array.from(residuals.keys()).sort((a, b) => residuals[a] - residuals[b]);
+  next.fill(0);
+  for (let i = 0; i < minKeep; i++) next[order[i]] = 1;
+  return next;
+}
+
+function median(values: number[]): number {
+  const s = values.slice().sort((a, b) => a - b);
+  const mid = s.length >> 1;
+  return s.length % 2 === 1 ? s[mid] : 0.5 * (s[mid - 1] + s[mid]);
+}
+
+function fitModel(mode: AperiodicMode, f: Float64Array, y: Float64Array, keep: Uint8Array, start: number[] | null): number[] {
+  const line = fitLine(f, y, keep);
+  if (mode === 'fixed') return line;
+  const xs: number[] = [];
+  const ys: number[] = [];
+  for (let i = 0; i < f.length; i++) {
+    if (keep[i]) {
+      xs.push(f[i]);
+      ys.push(y[i]);
+    }
+  }
+  // Several starting knees (none, at the lowest and at the middle frequency), best residual wins: the knee
+  // model's error surface has a long flat valley in k when the knee lies below the range.
+  const starts: number[][] = start !== null ? [start] : [];
+  const fLo = xs[0];
+  const fMid = xs[xs.length >> 1];
+  for (const k of [0, Math.pow(fLo, line[1]), Math.pow(fMid, line[1])]) {
+    starts.push([line[0] + Math.log10(k + Math.pow(fMid, line[1])) - line[1] * Math.log10(fMid), line[1], k]);
+  }
+  let best: number[] = starts[0];
+  let bestError = Infinity;
+  for (const initial of starts) {
+    const result = levenbergMarquardt(
+      { x: xs, y: ys },
+      ([b, chi, k]) => (x: number) => b - Math.log10(k + Math.pow(x, chi)),
+      {
+        initialValues: [initial[0], initial[1], Math.max(0, initial[2])],
+        minValues: [-Infinity, 0, 0],
+        maxValues: [Infinity, 10, Infinity],
+        damping: 1e-2,
+        maxIterations: 300,
+        errorTolerance: 1e-12,
+        jacobianFunction: ([, chi, k]) => (x: number) => {
+          const fx = Math.pow(x, chi);
+          const d = (k + fx) * LN10;
+          return [1, (-fx * Math.log(x)) / d, -1 / d];
+        },
+      },
+    );
+    if (result.parameterError < bestError) {
+      bestError = result.parameterError;
+      best = result.parameterValues;
+    }
+  }
+  return [best[0], best[1], best[2]];
+}
+
+// Ordinary least squares of y on log10 f over the kept points: returns [offset, exponent] of y = offset − exponent·log10 f.
+function fitLine(f: Float64Array, y: Float64Array, keep: Uint8Array): number[] {
+  let n = 0;
+  let sx = 0;
+  let sy = 0;
+  for (let i = 0; i < f.length; i++) {
+    if (!keep[i]) continue;
+    n++;
+    sx += Math.log10(f[i]);
+    sy += y[i];
+  }
+  const mx = sx / n;
+  const my = sy / n;
+  let sxx = 0;
+  let sxy = 0;
+  for (let i = 0; i < f.length; i++) {
+    if (!keep[i]) continue;
+    const dx = Math.log10(f[i]) - mx;
+    sxx += dx * dx;
+    sxy += dx * (y[i] - my);
+  }
+  const slope = sxx > 0 ? sxy / sxx : 0;
+  return [my - slope * mx, -slope];
+}

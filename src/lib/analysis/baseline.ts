@@ -1,0 +1,102 @@
+import { roundHalfUp } from './rounding';
+
+export type BaselineMethod = 'db' | 'percent' | 'zscore' | 'ratio';
+export type BaselineScope = 'average' | 'trial';
+
+export interface BaselineIndices {
+  first: number;
+  last: number;
+}
+
+/**
+ * Epoch grid indices of the baseline, `round((start − tmin)·fs)` to `round((end − tmin)·fs)` inclusive, halves up
+ * (analysis contract, "Baseline normalization"). Times in seconds, rate in Hz.
+ */
+export function baselineIndices(startSeconds: number, endSeconds: number, tminSeconds: number, sampleRateHz: number): BaselineIndices {
+  return {
+    first: roundHalfUp((startSeconds - tminSeconds) * sampleRateHz),
+    last: roundHalfUp((endSeconds - tminSeconds) * sampleRateHz),
+  };
+}
+
+export interface BaselineStats {
+  /** B, mean power over the baseline points (µV²). */
+  mean: number;
+  /** S, sample standard deviation (n − 1) over the baseline points; NaN for a single point. */
+  sd: number;
+}
+
+/** B = Σp/n and S = √(Σ(p − B)²/(n − 1)) over `row[offset+first … offset+last]`, summed in Float64. */
+export function baselineStats(row: ArrayLike<number>, offset: number, first: number, last: number): BaselineStats {
+  const n = last - first + 1;
+  let sum = 0;
+  for (let j = first; j <= last; j++) sum += row[offset + j];
+  const mean = sum / n;
+  let ss = 0;
+  for (let j = first; j <= last; j++) {
+    const d = row[offset + j] - mean;
+    ss += d * d;
+  }
+  return { mean, sd: n > 1 ? Math.sqrt(ss / (n - 1)) : NaN };
+}
+
+/**
+ * One normalized value: db `10·log10(P/B)` (decibel, IEC 60027-3), percent `100·(P − B)/B`, zscore `(P − B)/S`,
+ * ratio `P/B` (analysis contract table). Undefined cases (B = 0, S = 0) give ±Infinity or NaN, never a number.
+ */
+export function normalizeValue(method: BaselineMethod, p: number, mean: number, sd: number): number {
+  switch (method) {
+    case 'db':
+      return 10 * Math.log10(p / mean);
+    case 'percent':
+      return (100 * (p - mean)) / mean;
+    case 'zscore':
+      return (p - mean) / sd;
+    case 'ratio':
+      return p / mean;
+  }
+}
+
+/** Writes `normalizeValue(method, row[rowOffset+j], B, S)` into `out[outOffset+j]` for j < length. */
+export function normalizeRow(
+  out: Float64Array,
+  outOffset: number,
+  row: ArrayLike<number>,
+  rowOffset: number,
+  length: number,
+  method: BaselineMethod,
+  stats: BaselineStats,
+): void {
+  const { mean, sd } = stats;
+  for (let j = 0; j < length; j++) out[outOffset + j] = normalizeValue(method, row[rowOffset + j], mean, sd);
+}
+
+/**
+ * Scope `average`: each frequency row of trial-averaged power (`power[f·nTimes + t]`, µV²) normalized by the B
+ * and S of its own baseline points.
+ */
+export function normalizeAverage(power: Float64Array, nTimes: number, baseline: BaselineIndices, method: BaselineMethod): Float64Array {
+  const out = new Float64Array(power.length);
+  for (let off = 0; off < power.length; off += nTimes) {
+    normalizeRow(out, off, power, off, nTimes, method, baselineStats(power, off, baseline.first, baseline.last));
+  }
+  return out;
+}
+
+/**
+ * Scope `trial`: each trial's rows normalized by that trial's own B and S, then averaged over trials. Reference
+ * form over stored trials; `decomposeChannel` computes the same sums as trials are produced.
+ */
+export function normalizeTrials(trials: ArrayLike<number>[], nTimes: number, baseline: BaselineIndices, method: BaselineMethod): Float64Array {
+  const size = trials[0].length;
+  const sum = new Float64Array(size);
+  const row = new Float64Array(nTimes);
+  for (const trial of trials) {
+    for (let off = 0; off < size; off += nTimes) {
+      normalizeRow(row, 0, trial, off, nTimes, method, baselineStats(trial, off, baseline.first, baseline.last));
+      for (let j = 0; j < nTimes; j++) sum[off + j] += row[j];
+    }
+  }
+  for (let i = 0; i < size; i++) sum[i] /= trials.length;
+  return sum;
+}

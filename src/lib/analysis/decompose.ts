@@ -1,0 +1,195 @@
+import { baselineStats, normalizeAverage, type BaselineMethod, type BaselineScope } from './baseline';
+import { AnalysisCancelledError } from './errors';
+import { getFft } from './fft';
+import { getWaveletBank } from './wavelet';
+
+/** Everything one channel's time-frequency decomposition needs; plain data, so it can cross to a worker. */
+// Epochs are transformed in blocks and then swept frequency by frequency, so one frequency's weights stay in
+// cache across the block; the per-(frequency, time) sums still run in epoch order.
+const EPOCH_BLOCK = 16;
+
+export interface DecomposeJob {
+  /** One channel's whole recording, µV. */
+  samples: Float32Array;
+  /** Per condition, the first sample of each kept epoch. */
+  epochStarts: Int32Array[];
+  /** L, samples per epoch (the contract's time grid length). */
+  epochSamples: number;
+  sampleRateHz: number;
+  frequencies: Float64Array;
+  /** Gaussian σ per frequency, seconds (see `gaussianSigmas`). */
+  sigmas: Float64Array;
+  baseline: { first: number; last: number; method: BaselineMethod; scope: BaselineScope };
+  /** Keep every trial's power (only for the one channel the explorer shows trial by trial). */
+  singleTrials?: boolean;
+}
+
+export interface DecomposeOutput {
+  /** Per condition, trial-averaged power `[f·L + t]`, µV². */
+  power: Float64Array[];
+  /** Per condition, baseline-normalized power `[f·L + t]` in the recipe's method and scope. */
+  normalized: Float64Array[];
+  /** Per condition, `[(trial·F + f)·L + t]` power, µV², when the job asked for it. */
+  singleTrials: Float32Array[] | null;
+}
+
+export interface DecomposeOptions {
+  onProgress?: (fraction: number) => void;
+  shouldCancel?: () => boolean;
+}
+
+/**
+ * Morlet wavelet power `|x ∗ w_f|²` (µV²) of every epoch of one channel, accumulated into trial averages and,
+ * for scope `trial`, into averages of per-trial normalized power as each trial is produced (analysis contract,
+ * "Complex Morlet wavelet power" and "Baseline normalization"). Per epoch: one real forward FFT; per frequency:
+ * one complex transform of `conj(X)·conj(W_f)/N_f` (see `WaveletBank`). Memory is bounded by frequencies ×
+ * times per condition; sums run in Float64 in epoch order, so a channel gives the same bits wherever it runs.
+ */
+export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = {}): DecomposeOutput {
+  const { samples, epochStarts, epochSamples: L, sampleRateHz, frequencies, sigmas, baseline } = job;
+  const { onProgress, shouldCancel } = options;
+  const nf = frequencies.length;
+  const bank = getWaveletBank(frequencies, sigmas, sampleRateHz, L);
+  const fftSize = bank.fftSize;
+  const forward = getFft(fftSize);
+  const epoch = new Float64Array(fftSize);
+  const spectra: Float64Array[] = [];
+  for (let b = 0; b < EPOCH_BLOCK; b++) spectra.push(new Float64Array(2 * fftSize));
+  let maxBand = 2;
+  for (let f = 0; f < nf; f++) if (bank.bandSizes[f] > maxBand) maxBand = bank.bandSizes[f];
+  const band = new Float64Array(2 * maxBand);
+  const work = new Float64Array(2 * maxBand);
+  const out = new Float64Array(2 * maxBand);
+  const row = new Float64Array(L);
+  const trialScope = baseline.scope === 'trial';
+  const { first, last, method } = baseline;
+
+  let totalEpochs = 0;
+  for (const starts of epochStarts) totalEpochs += starts.length;
+  let doneEpochs = 0;
+  let reported = 0;
+
+  const power: Float64Array[] = [];
+  const normalized: Float64Array[] = [];
+  const singleTrials: Float32Array[] | null = job.singleTrials ? [] : null;
+
+  for (let c = 0; c < epochStarts.length; c++) {
+    const starts = epochStarts[c];
+    const trials = starts.length;
+    const sum = new Float64Array(nf * L);
+    const normSum = trialScope ? new Float64Array(nf * L) : null;
+    const single = singleTrials !== null ? new Float32Array(trials * nf * L) : null;
+    for (let e0 = 0; e0 < trials; e0 += EPOCH_BLOCK) {
+      if (shouldCancel !== undefined && shouldCancel()) throw new AnalysisCancelledError();
+      const nb = Math.min(EPOCH_BLOCK, trials - e0);
+      for (let b = 0; b < nb; b++) {
+        const s0 = starts[e0 + b];
+        for (let j = 0; j < L; j++) epoch[j] = samples[s0 + j];
+        forward.realTransform(spectra[b], epoch);
+        forward.completeSpectrum(spectra[b]);
+      }
+      for (let f = 0; f < nf; f++) {
+        const off = f * L;
+        const bins = bank.bins[f];
+        const weights = bank.weights[f];
+        const residues = bank.sizes[f] / bank.bandSizes[f];
+        for (let b = 0; b < nb; b++) {
+          bandPower(sum, off, row, L, spectra[b], bins, weights, residues, band, work, out);
+          if (normSum !== null) accumulateNormalized(normSum, off, row, L, method, first, last);
+          if (single !== null) single.set(row, ((e0 + b) * nf + f) * L);
+        }
+      }
+      doneEpochs += nb;
+      if (onProgress !== undefined && (doneEpochs === totalEpochs || doneEpochs / totalEpochs - reported >= 0.05)) {
+        reported = doneEpochs / totalEpochs;
+        onProgress(reported);
+      }
+    }
+    for (let i = 0; i < sum.length; i++) sum[i] /= trials;
+    power.push(sum);
+    if (normSum !== null) {
+      for (let i = 0; i < normSum.length; i++) normSum[i] /= trials;
+      normalized.push(normSum);
+    } else {
+      normalized.push(normalizeAverage(sum, L, baseline, method));
+    }
+    if (singleTrials !== null && single !== null) singleTrials.push(single);
+  }
+  if (onProgress !== undefined && totalEpochs === 0) onProgress(1);
+  return { power, normalized, singleTrials };
+}
+
+// Power of one epoch at one frequency (see WaveletBank): gather conj(X) over the band, then for each output
+// residue r one size-M transform of conj(X)·V_r gives |y[q·R + r]|·… at every q; add p into sum and keep the row.
+function bandPower(
+  sum: Float64Array,
+  off: number,
+  row: Float64Array,
+  length: number,
+  spectrum: Float64Array,
+  bins: Int32Array,
+  weights: Float64Array,
+  residues: number,
+  band: Float64Array,
+  work: Float64Array,
+  out: Float64Array,
+): void {
+  const m = bins.length;
+  const fft = getFft(m);
+  for (let q = 0; q < m; q++) {
+    const idx = bins[q];
+    band[2 * q] = spectrum[idx];
+    band[2 * q + 1] = -spectrum[idx + 1];
+  }
+  for (let r = 0; r < residues; r++) {
+    const base = 2 * r * m;
+    for (let q = 0; q < m; q++) {
+      const xr = band[2 * q];
+      const xi = band[2 * q + 1];
+      const vr = weights[base + 2 * q];
+      const vi = weights[base + 2 * q + 1];
+      work[2 * q] = xr * vr - xi * vi;
+      work[2 * q + 1] = xr * vi + xi * vr;
+    }
+    fft.transform(out, work);
+    for (let q = 0, j = r; q < m && j < length; q++, j += residues) {
+      const re = out[2 * q];
+      const im = out[2 * q + 1];
+      const p = re * re + im * im;
+      row[j] = p;
+      sum[off + j] += p;
+    }
+  }
+}
+
+// One trial's row, normalized by its own baseline and added into the running sum; the method switch sits outside
+// the loop so the loop body stays monomorphic.
+function accumulateNormalized(
+  sum: Float64Array,
+  off: number,
+  row: Float64Array,
+  length: number,
+  method: BaselineMethod,
+  first: number,
+  last: number,
+): void {
+  const { mean, sd } = baselineStats(row, 0, first, last);
+  switch (method) {
+    case 'db': {
+      for (let j = 0; j < length; j++) sum[off + j] += 10 * Math.log10(row[j] / mean);
+      break;
+    }
+    case 'percent': {
+      for (let j = 0; j < length; j++) sum[off + j] += (100 * (row[j] - mean)) / mean;
+      break;
+    }
+    case 'zscore': {
+      for (let j = 0; j < length; j++) sum[off + j] += (row[j] - mean) / sd;
+      break;
+    }
+    case 'ratio': {
+      for (let j = 0; j < length; j++) sum[off + j] += row[j] / mean;
+      break;
+    }
+  }
+}

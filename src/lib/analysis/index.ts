@@ -1,0 +1,13 @@
+export * from './aperiodic';
+export * from './baseline';
+export * from './decompose';
+export * from './epochs';
+export * from './errors';
+export * from './fft';
+export * from './frequency-grid';
+export * from './recipe';
+export type * from './recording';
+export * from './rounding';
+export * from './run-recipe';
+export * from './wavelet';
+export * from './welch';

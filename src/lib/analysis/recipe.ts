@@ -1,0 +1,79 @@
+import { z } from 'zod';
+import { AnalysisInputError } from './errors';
+
+const finite = z.number().refine(Number.isFinite, 'must be a finite number');
+const positive = z.number().positive('must be greater than 0').refine(Number.isFinite, 'must be a finite number');
+const range = z.tuple([finite, finite], { error: 'must be a pair [low, high] of numbers in Hz' });
+
+const cycles = z.union(
+  [
+    z.object({ fixed: positive }).strict(),
+    z.object({ min: positive, max: positive }).strict(),
+    z.object({ fwhm: positive }).strict(),
+  ],
+  { error: 'must be { "fixed": n }, { "min": n, "max": n } or { "fwhm": seconds }' },
+);
+
+/** The recipe JSON of the analysis contract ("Recipe (input)"); `spacing` defaults to log, `scope` to average. */
+export const RecipeSchema = z
+  .object({
+    epochs: z
+      .object({
+        events: z.array(z.string().min(1, 'must not be empty')).min(1, 'must name at least one event label'),
+        tmin: finite,
+        tmax: finite,
+      })
+      .strict(),
+    channels: z.array(z.string().min(1, 'must not be empty')).min(1, 'must name at least one channel (or be left out for all)').optional(),
+    frequencies: z
+      .object({
+        min: positive,
+        max: positive,
+        count: z.number().int('must be a whole number').min(1, 'must be at least 1').max(1000, 'must be at most 1000'),
+        spacing: z.enum(['log', 'linear']).default('log'),
+      })
+      .strict(),
+    cycles,
+    baseline: z
+      .object({
+        start: finite,
+        end: finite,
+        method: z.enum(['db', 'percent', 'zscore', 'ratio']),
+        scope: z.enum(['average', 'trial']).default('average'),
+      })
+      .strict(),
+    spectrum: z
+      .object({
+        segment: positive,
+        overlap: z.number().min(0, 'must be at least 0').lt(1, 'must be less than 1'),
+        range,
+        source: z.enum(['recording', 'epochs']).default('recording'),
+      })
+      .strict(),
+    aperiodic: z.object({ range, mode: z.enum(['fixed', 'knee']) }).strict(),
+  })
+  .strict();
+
+export type Recipe = z.output<typeof RecipeSchema>;
+export type RecipeInput = z.input<typeof RecipeSchema>;
+
+/** Dotted field path of a zod issue: `["channels", 2]` → `channels[2]`. */
+export function fieldPath(path: readonly PropertyKey[]): string {
+  let out = '';
+  for (const key of path) out += typeof key === 'number' ? `[${key}]` : out === '' ? String(key) : `.${String(key)}`;
+  return out === '' ? 'recipe' : out;
+}
+
+/**
+ * Checks a parsed JSON value against the recipe schema. Throws AnalysisInputError naming the first bad field;
+ * its problem lists the others too.
+ */
+export function parseRecipe(input: unknown): Recipe {
+  const parsed = RecipeSchema.safeParse(input);
+  if (parsed.success) return parsed.data;
+  const issues = parsed.error.issues;
+  const first = issues[0];
+  const others = issues.slice(1).map((i) => `${fieldPath(i.path)} ${i.message}`);
+  const problem = first.message + (others.length > 0 ? `; also ${others.join('; ')}` : '');
+  throw new AnalysisInputError(fieldPath(first.path), problem);
+}

@@ -1,0 +1,330 @@
+import { fitAperiodic, type AperiodicFit, type AperiodicMode } from './aperiodic';
+import { baselineIndices, type BaselineMethod, type BaselineScope } from './baseline';
+import { decomposeChannel, type DecomposeOptions } from './decompose';
+import { epochLength, epochTimes, selectEpochs } from './epochs';
+import { AnalysisCancelledError, AnalysisInputError } from './errors';
+import { frequencyGrid } from './frequency-grid';
+import { parseRecipe, type Recipe } from './recipe';
+import type { Recording } from './recording';
+import { roundHalfUp } from './rounding';
+import { cyclesOf, edgeSecondsOf, gaussianSigmas } from './wavelet';
+import { welchPsd } from './welch';
+
+/** Everything a channel needs besides its samples; plain data and typed arrays, so it crosses to workers as is. */
+export interface RecipePlan {
+  sampleRateHz: number;
+  channels: string[];
+  /** Index into `recording.data` of each planned channel. */
+  channelIndices: number[];
+  labels: string[];
+  epochStarts: Int32Array[];
+  /** Per condition, epochs dropped (outside the recording or across a gap). */
+  dropped: number[];
+  epochSamples: number;
+  tminSeconds: number;
+  times: Float64Array;
+  frequencies: Float64Array;
+  sigmas: Float64Array;
+  edgeSeconds: Float64Array;
+  baseline: { first: number; last: number; method: BaselineMethod; scope: BaselineScope };
+  spectrum: { segmentSamples: number; overlapSamples: number; range: [number, number]; spans: Int32Array };
+  aperiodic: { range: [number, number]; mode: AperiodicMode };
+  warnings: string[];
+}
+
+/** One channel's share of the result, in typed arrays (see `assembleResult`). */
+export interface ChannelAnalysis {
+  power: Float64Array[];
+  normalized: Float64Array[];
+  singleTrials: Float32Array[] | null;
+  /** Welch density over the bins inside `spectrum.range`, µV²/Hz. */
+  psd: Float64Array;
+  spectrumFrequencies: Float64Array;
+  aperiodic: AperiodicFit;
+}
+
+export interface ResultCondition {
+  trials: number;
+  /** Epochs of this label dropped (outside the recording or across a gap). */
+  dropped: number;
+  /** [channel][frequency][time], µV² */
+  power: number[][][];
+  /** [channel][frequency][time] in the baseline method's unit; undefined values are null in JSON. */
+  normalized: number[][][];
+}
+
+export interface ResultAperiodic extends AperiodicFit {
+  channel: string;
+}
+
+/** The Result JSON of the analysis contract ("Result (output)"), plus `cycles`, `dropped`, `points`, `excluded`. */
+export interface AnalysisResult {
+  frequencies: number[];
+  cycles: number[];
+  edgeSeconds: number[];
+  times: number[];
+  channels: string[];
+  conditions: Record<string, ResultCondition>;
+  spectrum: { frequencies: number[]; psd: number[][] };
+  aperiodic: ResultAperiodic[];
+  warnings: string[];
+}
+
+const EPS = 1e-9;
+
+function fmt(x: number): string {
+  return Number(x.toFixed(4)).toString();
+}
+
+/**
+ * Validates a recipe against a recording and works out everything that does not depend on a channel's samples:
+ * grids, wavelet widths, epoch starts, baseline indices, Welch spans. Throws AnalysisInputError naming the field.
+ */
+export function planRecipe(recording: Recording, recipeInput: unknown): RecipePlan {
+  const recipe: Recipe = parseRecipe(recipeInput);
+  const fs = recording.sampleRateHz;
+  if (!(fs > 0) || !Number.isFinite(fs)) throw new AnalysisInputError('recording.sampleRateHz', `must be a positive number of Hz (got ${fs})`);
+  const total = recording.data.length > 0 ? recording.data[0].length : 0;
+  recording.data.forEach((d, i) => {
+    if (d.length !== total) throw new AnalysisInputError(`recording.data[${i}]`, `has ${d.length} samples where channel 0 has ${total}`);
+  });
+  const nyquist = fs / 2;
+  const warnings: string[] = [];
+
+  const { tmin, tmax } = recipe.epochs;
+  if (!(tmin < tmax)) throw new AnalysisInputError('epochs.tmin', `must be less than epochs.tmax (${tmin} s ≥ ${tmax} s)`);
+  const L = epochLength(tmin, tmax, fs);
+  if (L < 2) throw new AnalysisInputError('epochs.tmax', `leaves fewer than 2 samples per epoch at ${fs} Hz`);
+
+  const { start, end, method, scope } = recipe.baseline;
+  if (start > end) throw new AnalysisInputError('baseline.start', `must not be after baseline.end (${start} s > ${end} s)`);
+  if (start < tmin - EPS) throw new AnalysisInputError('baseline.start', `is before the epoch start (${start} s < epochs.tmin ${tmin} s)`);
+  if (end > tmax + EPS) throw new AnalysisInputError('baseline.end', `is after the epoch end (${end} s > epochs.tmax ${tmax} s)`);
+  const b = baselineIndices(start, end, tmin, fs);
+  b.first = Math.max(0, b.first);
+  b.last = Math.min(L - 1, b.last);
+  if (method === 'zscore' && b.last - b.first < 1) {
+    throw new AnalysisInputError('baseline.end', `gives a single baseline point at ${fs} Hz; zscore needs at least 2 for a standard deviation`);
+  }
+
+  const fr = recipe.frequencies;
+  if (fr.max >= nyquist) throw new AnalysisInputError('frequencies.max', `must be below the Nyquist frequency (${fmt(nyquist)} Hz at ${fs} Hz sampling; got ${fr.max} Hz)`);
+  if (fr.min > fr.max) throw new AnalysisInputError('frequencies.min', `must not exceed frequencies.max (${fr.min} Hz > ${fr.max} Hz)`);
+  if (fr.count > 1 && fr.min === fr.max) throw new AnalysisInputError('frequencies.count', `must be 1 when frequencies.min equals frequencies.max`);
+  const frequencies = frequencyGrid(fr);
+  const sigmas = gaussianSigmas(frequencies, recipe.cycles);
+  const edgeSeconds = edgeSecondsOf(sigmas);
+  const cycles = cyclesOf(frequencies, sigmas);
+  const epochSeconds = (L - 1) / fs;
+  for (let i = 0; i < frequencies.length; i++) {
+    if (2 * edgeSeconds[i] >= epochSeconds) {
+      throw new AnalysisInputError(
+        'cycles',
+        `is too many for the epoch length: at ${fmt(frequencies[i])} Hz the ${fmt(cycles[i])}-cycle wavelet's edge zones (3σ = ${fmt(edgeSeconds[i])} s at each end) cover the whole ${fmt(epochSeconds)} s epoch, i.e. the epoch holds too few cycles of ${fmt(frequencies[i])} Hz; lengthen the epoch, raise frequencies.min or use fewer cycles`,
+      );
+    }
+  }
+  const edgeHit: number[] = [];
+  for (let i = 0; i < frequencies.length; i++) {
+    const edgePoints = edgeSeconds[i] * fs;
+    if (b.first < edgePoints - EPS || L - 1 - b.last < edgePoints - EPS) edgeHit.push(i);
+  }
+  if (edgeHit.length > 0) {
+    const lo = edgeHit[0];
+    const hi = edgeHit[edgeHit.length - 1];
+    warnings.push(
+      `baseline: ${start} to ${end} s lies in the edge zone at ${edgeHit.length} of ${frequencies.length} frequencies (${fmt(frequencies[lo])}–${fmt(frequencies[hi])} Hz, edge ${fmt(edgeSeconds[lo])}–${fmt(edgeSeconds[hi])} s); those baselines include edge-affected power`,
+    );
+  }
+
+  let channels: string[];
+  let channelIndices: number[];
+  if (recipe.channels === undefined) {
+    channels = recording.channelNames.slice();
+    channelIndices = channels.map((_, i) => i);
+  } else {
+    channels = recipe.channels;
+    channelIndices = recipe.channels.map((name, i) => {
+      const idx = recording.channelNames.indexOf(name);
+      if (idx < 0) {
+        const known = recording.channelNames.slice(0, 12).join(', ') + (recording.channelNames.length > 12 ? ', …' : '');
+        throw new AnalysisInputError(`channels[${i}]`, `names no signal in the recording ("${name}"; signals: ${known})`);
+      }
+      if (recipe.channels!.indexOf(name) !== i) throw new AnalysisInputError(`channels[${i}]`, `repeats "${name}"`);
+      return idx;
+    });
+  }
+  if (channels.length === 0) throw new AnalysisInputError('recording', 'has no data signals');
+
+  const labels = recipe.epochs.events;
+  const epochStarts: Int32Array[] = [];
+  const droppedCounts: number[] = [];
+  labels.forEach((label, i) => {
+    if (labels.indexOf(label) !== i) throw new AnalysisInputError(`epochs.events[${i}]`, `repeats "${label}"`);
+    const sel = selectEpochs(recording.events, label, tmin, L, fs, total, recording.gapSampleIndices ?? []);
+    if (sel.matched === 0) {
+      const present = [...new Set(recording.events.map((e) => e.label))];
+      const shown = present.slice(0, 12).map((l) => `"${l}"`).join(', ') + (present.length > 12 ? ', …' : '');
+      throw new AnalysisInputError(`epochs.events[${i}]`, `: no events labelled "${label}" in the recording (labels present: ${shown || 'none'})`);
+    }
+    const dropped = sel.droppedOutside + sel.droppedGap;
+    if (sel.starts.length === 0) {
+      throw new AnalysisInputError(`epochs.events[${i}]`, `: all ${sel.matched} epochs of "${label}" were dropped (${sel.droppedOutside} run past the recording's start or end, ${sel.droppedGap} span a gap)`);
+    }
+    if (dropped > 0) {
+      warnings.push(`epochs.events[${i}] "${label}": ${dropped} of ${sel.matched} epochs dropped (${sel.droppedOutside} run past the recording's start or end, ${sel.droppedGap} span a gap)`);
+    }
+    epochStarts.push(sel.starts);
+    droppedCounts.push(dropped);
+  });
+
+  const sp = recipe.spectrum;
+  const segmentSamples = roundHalfUp(sp.segment * fs);
+  const overlapSamples = roundHalfUp(sp.overlap * segmentSamples);
+  if (segmentSamples < 2) throw new AnalysisInputError('spectrum.segment', `spans fewer than 2 samples at ${fs} Hz`);
+  if (overlapSamples >= segmentSamples) throw new AnalysisInputError('spectrum.overlap', `leaves no step between segments of ${segmentSamples} samples`);
+  const [rLo, rHi] = sp.range;
+  if (!(rLo >= 0 && rLo <= rHi && rHi <= nyquist)) throw new AnalysisInputError('spectrum.range', `must satisfy 0 ≤ low ≤ high ≤ Nyquist (${fmt(nyquist)} Hz); got [${rLo}, ${rHi}]`);
+  const spanList: number[] = [];
+  if (sp.source === 'recording') {
+    const gaps = (recording.gapSampleIndices ?? []).filter((g) => g > 0 && g < total).sort((x, y) => x - y);
+    let s0 = 0;
+    for (const g of gaps) {
+      spanList.push(s0, g);
+      s0 = g;
+    }
+    spanList.push(s0, total);
+    let longest = 0;
+    for (let i = 0; i < spanList.length; i += 2) longest = Math.max(longest, spanList[i + 1] - spanList[i]);
+    if (segmentSamples > longest) throw new AnalysisInputError('spectrum.segment', `(${sp.segment} s) is longer than the longest continuous stretch of the recording (${fmt(longest / fs)} s)`);
+  } else {
+    if (segmentSamples > L) throw new AnalysisInputError('spectrum.segment', `(${sp.segment} s) is longer than an epoch (${fmt(epochSeconds)} s) with spectrum.source "epochs"`);
+    for (const starts of epochStarts) for (const s of starts) spanList.push(s, s + L);
+  }
+
+  const ap = recipe.aperiodic;
+  const [aLo, aHi] = ap.range;
+  if (!(aLo > 0 && aLo < aHi && aHi <= nyquist)) throw new AnalysisInputError('aperiodic.range', `must satisfy 0 < low < high ≤ Nyquist (${fmt(nyquist)} Hz); got [${aLo}, ${aHi}]`);
+  const binHz = fs / segmentSamples;
+  const bins = Math.floor(aHi / binHz + EPS) - Math.ceil(aLo / binHz - EPS) + 1;
+  const needed = ap.mode === 'fixed' ? 3 : 4;
+  if (bins < needed) throw new AnalysisInputError('aperiodic.range', `holds ${bins} spectrum bins of ${fmt(binHz)} Hz; the ${ap.mode} fit needs at least ${needed} (widen the range or lengthen spectrum.segment)`);
+
+  return {
+    sampleRateHz: fs,
+    channels,
+    channelIndices,
+    labels,
+    epochStarts,
+    dropped: droppedCounts,
+    epochSamples: L,
+    tminSeconds: tmin,
+    times: epochTimes(tmin, tmax, fs),
+    frequencies,
+    sigmas,
+    edgeSeconds,
+    baseline: { first: b.first, last: b.last, method, scope },
+    spectrum: { segmentSamples, overlapSamples, range: [rLo, rHi], spans: Int32Array.from(spanList) },
+    aperiodic: { range: [aLo, aHi], mode: ap.mode },
+    warnings,
+  };
+}
+
+export interface ChannelOptions extends DecomposeOptions {
+  singleTrials?: boolean;
+}
+
+/**
+ * One channel's whole analysis: wavelet power per condition (`decomposeChannel`), the Welch spectrum and the
+ * aperiodic fit. Pure in (plan, samples): a channel gives the same bits in the main thread, a worker or the CLI.
+ */
+export function analyzeChannel(plan: RecipePlan, samples: Float32Array, options: ChannelOptions = {}): ChannelAnalysis {
+  const tf = decomposeChannel(
+    {
+      samples,
+      epochStarts: plan.epochStarts,
+      epochSamples: plan.epochSamples,
+      sampleRateHz: plan.sampleRateHz,
+      frequencies: plan.frequencies,
+      sigmas: plan.sigmas,
+      baseline: plan.baseline,
+      singleTrials: options.singleTrials === true,
+    },
+    options,
+  );
+  const sp = plan.spectrum;
+  const welch = welchPsd(samples, plan.sampleRateHz, sp.segmentSamples, sp.overlapSamples, sp.spans);
+  const aperiodic = fitAperiodic(welch.frequencies, welch.psd, plan.aperiodic.range, plan.aperiodic.mode);
+  let k0 = 0;
+  while (k0 < welch.frequencies.length && welch.frequencies[k0] < sp.range[0] - EPS) k0++;
+  let k1 = k0;
+  while (k1 < welch.frequencies.length && welch.frequencies[k1] <= sp.range[1] + EPS) k1++;
+  return {
+    power: tf.power,
+    normalized: tf.normalized,
+    singleTrials: tf.singleTrials,
+    psd: welch.psd.slice(k0, k1),
+    spectrumFrequencies: welch.frequencies.slice(k0, k1),
+    aperiodic,
+  };
+}
+
+function rows(flat: Float64Array, nf: number, nt: number): number[][] {
+  const out: number[][] = new Array(nf);
+  for (let f = 0; f < nf; f++) out[f] = Array.from(flat.subarray(f * nt, (f + 1) * nt));
+  return out;
+}
+
+/** Builds the contract's Result JSON from the plan and every channel's analysis, in plan channel order. */
+export function assembleResult(plan: RecipePlan, channels: ChannelAnalysis[]): AnalysisResult {
+  const nf = plan.frequencies.length;
+  const nt = plan.times.length;
+  const conditions: Record<string, ResultCondition> = {};
+  plan.labels.forEach((label, c) => {
+    conditions[label] = {
+      trials: plan.epochStarts[c].length,
+      dropped: plan.dropped[c],
+      power: channels.map((ch) => rows(ch.power[c], nf, nt)),
+      normalized: channels.map((ch) => rows(ch.normalized[c], nf, nt)),
+    };
+  });
+  return {
+    frequencies: Array.from(plan.frequencies),
+    cycles: Array.from(cyclesOf(plan.frequencies, plan.sigmas)),
+    edgeSeconds: Array.from(plan.edgeSeconds),
+    times: Array.from(plan.times),
+    channels: plan.channels.slice(),
+    conditions,
+    spectrum: {
+      frequencies: channels.length > 0 ? Array.from(channels[0].spectrumFrequencies) : [],
+      psd: channels.map((ch) => Array.from(ch.psd)),
+    },
+    aperiodic: channels.map((ch, i) => ({ channel: plan.channels[i], ...ch.aperiodic })),
+    warnings: plan.warnings.slice(),
+  };
+}
+
+export interface RunOptions {
+  /** Fraction of the whole run done, 0 … 1. */
+  onProgress?: (fraction: number) => void;
+  /** Checked between epoch blocks and channels; true stops the run with AnalysisCancelledError. */
+  shouldCancel?: () => boolean;
+}
+
+/** Runs a recipe on a recording in this thread and returns the contract's Result. */
+export function runRecipe(recording: Recording, recipe: unknown, options: RunOptions = {}): AnalysisResult {
+  const plan = planRecipe(recording, recipe);
+  const { onProgress, shouldCancel } = options;
+  const n = plan.channels.length;
+  const out: ChannelAnalysis[] = [];
+  for (let i = 0; i < n; i++) {
+    if (shouldCancel !== undefined && shouldCancel()) throw new AnalysisCancelledError();
+    out.push(
+      analyzeChannel(plan, recording.data[plan.channelIndices[i]], {
+        shouldCancel,
+        onProgress: onProgress === undefined ? undefined : (f) => onProgress((i + f) / n),
+      }),
+    );
+  }
+  return assembleResult(plan, out);
+}
