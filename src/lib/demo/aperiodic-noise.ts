@@ -1,7 +1,7 @@
 /**
  * Aperiodic ("1/f") background for the demo: white Gaussian noise whose spectrum is shaped in the frequency
  * domain so that power falls as f^(−χ) (amplitude × f^(−χ/2)), the standard spectral-shaping way to make
- * power-law noise (e.g. Timmer & König, 1995, Astron Astrophys 300:707–710). Below `floorHz` the amplitude is
+ * power-law noise (e.g. Timmer & König, 1995, Astron Astrophys 300:707–710; citation from memory). Below `floorHz` the amplitude is
  * held flat so that the record is not dominated by a random walk, as a recording amplifier's high-pass would.
  */
 import FFT from 'fft.js';

@@ -117,10 +117,10 @@ function describeSubject(seed: number, index: number, seconds: number): SubjectP
   const theta = {
     label: 'lamp-watch' as const,
     frequencyHz: round(random.uniform(5.5, 6.5), 2),
-    amplitudeUv: round(random.uniform(4, 6), 2),
+    amplitudeUv: round(random.uniform(8, 11), 2),
     centre: 'Fz',
-    latencySeconds: 0.15,
-    durationSeconds: 0.5,
+    latencySeconds: 0.1,
+    durationSeconds: 0.6,
     gains: topographyGains('Fz', 0.35).map((g) => round(g, 3)),
   };
   const beta = {

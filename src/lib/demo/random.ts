@@ -1,7 +1,7 @@
 /**
  * Seeded randomness for the demo cohort, so every run writes the same files. sfc32 ("small fast counter",
  * C. Doty-Humphrey, PractRand, public domain) seeded through splitmix32; normals by the Box–Muller transform
- * (Box & Muller, 1958, Ann Math Stat 29:610–611).
+ * (Box & Muller, 1958, Ann Math Stat 29:610–611; citations from memory).
  */
 export interface Random {
   /** Uniform in [0, 1). */

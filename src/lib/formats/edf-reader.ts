@@ -20,6 +20,9 @@ import { Sha256 } from './fingerprint';
 import { FormatError } from './format-error';
 import { microvoltFactor } from './units';
 
+/** 2^30 samples (4 GiB of Float32) per channel: beyond that a typed array cannot be relied on in every browser. */
+const MAX_SAMPLES_PER_CHANNEL = 2 ** 30;
+
 export interface OpenEdfOptions {
   /** Extra physical dimension → µV factors, consulted before the built-in ones (e.g. `{ "": 1 }`). */
   unitFactors?: Readonly<Record<string, number>>;
@@ -176,6 +179,14 @@ export async function openEdf(source: ByteSource, options: OpenEdfOptions = {}):
   const exclude = new Set(options.exclude ?? []);
   const sampleRateHz = chooseRate(header.signals, exclude);
 
+  for (const s of header.signals) {
+    if (!s.isAnnotation && recordCount * s.samplesPerRecord > MAX_SAMPLES_PER_CHANNEL) {
+      throw new FormatError('samples per data record', `${recordCount} records × ${s.samplesPerRecord} samples exceed the ${MAX_SAMPLES_PER_CHANNEL} samples one channel may hold in memory`, {
+        signal: s.label,
+        byteOffset: EDF_FIXED_FIELDS[7].offset,
+      });
+    }
+  }
   const channels: EdfChannel[] = [];
   const ignored: EdfIgnoredSignal[] = [];
   const gains: number[] = [];
