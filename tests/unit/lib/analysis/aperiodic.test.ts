@@ -1,0 +1,75 @@
+import { describe, expect, it } from 'vitest';
+import { fitAperiodic } from '../../../../src/lib/analysis/aperiodic';
+import { welchPsd } from '../../../../src/lib/analysis/welch';
+import { assertClose } from '../../../helpers/assert-close';
+import { coloredNoise, seededNormal } from '../../../helpers/seeded-random';
+
+const fs = 256;
+const length = 1 << 16; // 256 s
+const segment = 512; // 2 s, 0.5 Hz bins
+
+function spectrumOf(x: Float64Array) {
+  return welchPsd(x, fs, segment, segment / 2);
+}
+
+// Adds a·sin(2π·10·t), with a set so the peak bin stands `gain` times above the aperiodic density at 10 Hz:
+// a Hann-windowed sinusoid puts (a²/2)/(1.5·Δf) into its bin (ENBW 1.5 bins, Harris, 1978, Proc. IEEE 66:51–83).
+function withPeak(x: Float64Array, gain: number): Float64Array {
+  const base = spectrumOf(x);
+  const p10 = base.psd[20];
+  const a = Math.sqrt(2 * 1.5 * (fs / segment) * gain * p10);
+  return x.map((v, i) => v + a * Math.sin(2 * Math.PI * 10 * (i / fs)));
+}
+
+describe('aperiodic fit', () => {
+  it('recovers the exponent of colored noise, 1.0 to 2.5, within ±0.1', () => {
+    // Synthesized with PSD ∝ f^(−χ); in log-log that is a line of slope −χ (definition of the fixed model).
+    for (const chi of [1.0, 1.5, 2.0, 2.5]) {
+      const { frequencies, psd } = spectrumOf(coloredNoise(length, fs, chi, 100 + chi * 10));
+      const fit = fitAperiodic(frequencies, psd, [2, 40], 'fixed');
+      assertClose(fit.exponent, chi, 0.1, `χ=${chi}`);
+      expect(fit.knee).toBeNull();
+      expect(fit.r2).toBeGreaterThan(0.95);
+      expect(fit.rmse).toBeLessThan(0.1);
+    }
+  });
+
+  it('stays within ±0.15 with a strong narrow 10 Hz peak while a naive fit is biased', () => {
+    // The robust fit follows Donoghue et al., 2020, Nature Neuroscience 23:1655–1665: the aperiodic line is fitted
+    // to points not raised by oscillatory peaks. The naive single least-squares fit must show the peak's pull.
+    for (const chi of [1.0, 1.5, 2.0, 2.5]) {
+      const x = withPeak(coloredNoise(length, fs, chi, 200 + chi * 10), 100); // 20 dB above the aperiodic line
+      const { frequencies, psd } = spectrumOf(x);
+      const robust = fitAperiodic(frequencies, psd, [2, 40], 'fixed');
+      const naive = fitAperiodic(frequencies, psd, [2, 40], 'fixed', { robust: false });
+      assertClose(robust.exponent, chi, 0.15, `robust χ=${chi}`);
+      expect(robust.excluded).toBeGreaterThan(0);
+      expect(Math.abs(naive.exponent - chi), `naive χ=${chi} gave ${naive.exponent}, robust ${robust.exponent}`).toBeGreaterThan(0.1);
+      expect(Math.abs(naive.exponent - chi)).toBeGreaterThan(3 * Math.abs(robust.exponent - chi));
+    }
+  });
+
+  it('recovers offset, knee and exponent of the knee model by Levenberg–Marquardt', () => {
+    // log10 P = b − log10(k + f^χ) evaluated exactly (the contract's knee model), then with multiplicative noise.
+    const b = 3;
+    const k = 40;
+    const chi = 2;
+    const f = Float64Array.from({ length: 119 }, (_, i) => 1 + i * 0.5);
+    const exact = f.map((v) => Math.pow(10, b) / (k + Math.pow(v, chi)));
+    const fit = fitAperiodic(f, exact, [1, 60], 'knee');
+    assertClose(fit.exponent, chi, 1e-3, 'exponent');
+    assertClose(fit.knee!, k, 0.1, 'knee');
+    assertClose(fit.offset, b, 1e-3, 'offset');
+    assertClose(fit.r2, 1, 1e-6);
+    const normal = seededNormal(77);
+    const noisy = exact.map((v) => v * Math.pow(10, 0.03 * normal()));
+    const nfit = fitAperiodic(f, noisy, [1, 60], 'knee');
+    assertClose(nfit.exponent, chi, 0.1, 'noisy exponent');
+    // a fixed fit of the same knee spectrum is flatter than χ: the knee model is doing real work
+    expect(fitAperiodic(f, exact, [1, 60], 'fixed').exponent).toBeLessThan(chi - 0.2);
+  });
+
+  it('names the range when it holds too few bins', () => {
+    expect(() => fitAperiodic([0, 1, 2, 3], [1, 1, 1, 1], [2.5, 2.9], 'fixed')).toThrow(/aperiodic\.range/);
+  });
+});

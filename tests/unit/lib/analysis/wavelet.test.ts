@@ -1,0 +1,175 @@
+import { describe, expect, it } from 'vitest';
+import { decomposeChannel } from '../../../../src/lib/analysis/decompose';
+import { getRealDft } from '../../../../src/lib/analysis/fft';
+import { gaussianSigmas, getWaveletBank, morletWavelet } from '../../../../src/lib/analysis/wavelet';
+import { assertClose } from '../../../helpers/assert-close';
+import { seededNormal } from '../../../helpers/seeded-random';
+
+const baseline = { first: 0, last: 1, method: 'db' as const, scope: 'average' as const };
+
+function powerOf(samples: Float32Array, fs: number, freqs: number[], sigmas: Float64Array, starts: number[], L: number) {
+  return decomposeChannel({
+    samples,
+    epochStarts: [Int32Array.from(starts)],
+    epochSamples: L,
+    sampleRateHz: fs,
+    frequencies: Float64Array.from(freqs),
+    sigmas,
+    baseline,
+    singleTrials: true,
+  });
+}
+
+describe('Morlet wavelet', () => {
+  it('gives a steady sinusoid of amplitude A power A² in the interior (within 1 %)', () => {
+    // Scale rule of the analysis contract: amplitude A µV at the centre frequency → A² µV².
+    const fs = 256;
+    const L = 8 * fs + 1;
+    const A = 3;
+    for (const [f, cycles] of [[4, 3], [10, 7], [40, 10], [90, 5]]) {
+      const x = new Float32Array(L);
+      for (let i = 0; i < L; i++) x[i] = A * Math.cos(2 * Math.PI * f * (i / fs) + 0.3);
+      const sigmas = gaussianSigmas(Float64Array.of(f), { fixed: cycles });
+      const p = powerOf(x, fs, [f], sigmas, [0], L).power[0];
+      const edge = Math.ceil(5 * sigmas[0] * fs);
+      for (let j = edge; j < L - edge; j++) assertClose(p[j], A * A, 0.01 * A * A, `f=${f} j=${j}`);
+    }
+  });
+
+  it('has spectral standard deviation f/n', () => {
+    // Cohen, 2019, NeuroImage 199:81–86: a Morlet wavelet of n cycles at f Hz has spectral SD f/n.
+    const fs = 1000;
+    for (const [f, n] of [[6, 4], [10, 7], [30, 12]]) {
+      const sigma = gaussianSigmas(Float64Array.of(f), { fixed: n })[0];
+      const w = morletWavelet(f, sigma, fs);
+      const size = 1 << 16;
+      const re = new Float64Array(size);
+      const im = new Float64Array(size);
+      re.set(w.re);
+      im.set(w.im);
+      const R = new Float64Array(2 * size);
+      const I = new Float64Array(2 * size);
+      getRealDft(size).forward(R, re);
+      getRealDft(size).forward(I, im);
+      // |W(ν)| = peak·exp(−(ν−f)²/(2·SD²)), so |W| falls to peak·e^(−1/2) at ν = f ± SD (above f, interpolated).
+      const mag = (k: number) => Math.hypot(R[2 * k] - I[2 * k + 1], R[2 * k + 1] + I[2 * k]);
+      let kp = 0;
+      for (let k = 1; k < size / 2; k++) if (mag(k) > mag(kp)) kp = k;
+      const level = mag(kp) * Math.exp(-0.5);
+      let k = kp;
+      while (mag(k + 1) > level) k++;
+      const cross = k + (mag(k) - level) / (mag(k) - mag(k + 1));
+      const sd = ((cross - kp) * fs) / size;
+      assertClose(sd, f / n, 0.01 * (f / n), `f=${f} n=${n}`);
+    }
+  });
+
+  it('has time-domain FWHM n·√(8 ln 2)/(2πf), and a fwhm recipe gives that width', () => {
+    // Cohen, 2019, NeuroImage 199:81–86, eq. for the full width at half maximum of the Gaussian.
+    const fs = 20000;
+    const measure = (f: number, sigma: number) => {
+      const w = morletWavelet(f, sigma, fs);
+      const env = (j: number) => Math.hypot(w.re[j], w.im[j]);
+      const peak = env(w.halfWidth);
+      let j = w.halfWidth;
+      while (env(j + 1) > peak / 2) j++;
+      const a = env(j);
+      const b = env(j + 1);
+      const cross = j + (a - peak / 2) / (a - b);
+      return (2 * (cross - w.halfWidth)) / fs;
+    };
+    for (const [f, n] of [[5, 3], [10, 7], [40, 10]]) {
+      const expected = (n * Math.sqrt(8 * Math.LN2)) / (2 * Math.PI * f);
+      const sigma = gaussianSigmas(Float64Array.of(f), { fixed: n })[0];
+      assertClose(measure(f, sigma), expected, 1e-3 * expected, `f=${f} n=${n}`);
+    }
+    const sigma = gaussianSigmas(Float64Array.of(12), { fwhm: 0.3 })[0];
+    assertClose(measure(12, sigma), 0.3, 1e-4, 'fwhm 0.3 s');
+  });
+
+  it('spreads cycles geometrically from min to max over the frequency index', () => {
+    // contract: n_i = min·(max/min)^(i/(count−1)); σ = n/(2πf)
+    const freqs = Float64Array.of(2, 4, 8);
+    const s = gaussianSigmas(freqs, { min: 3, max: 12 });
+    assertClose(s, [3 / (2 * Math.PI * 2), 6 / (2 * Math.PI * 4), 12 / (2 * Math.PI * 8)], 1e-12);
+  });
+});
+
+describe('decomposeChannel', () => {
+  // Independent reference: the linear convolution y[j] = Σ_k x[j−k]·w[k] written out in the time domain, with the
+  // epoch zero outside its own samples.
+  function directPower(x: Float32Array, start: number, L: number, f: number, sigma: number, fs: number, support: number) {
+    const w = morletWavelet(f, sigma, fs, support);
+    const h = w.halfWidth;
+    const out = new Float64Array(L);
+    for (let j = 0; j < L; j++) {
+      let re = 0;
+      let im = 0;
+      for (let k = -h; k <= h; k++) {
+        const i = j - k;
+        if (i < 0 || i >= L) continue;
+        re += x[start + i] * w.re[k + h];
+        im += x[start + i] * w.im[k + h];
+      }
+      out[j] = re * re + im * im;
+    }
+    return out;
+  }
+
+  it('equals direct time-domain convolution, each epoch on its own', () => {
+    const fs = 128;
+    const L = 300;
+    const normal = seededNormal(3);
+    const x = new Float32Array(1000);
+    for (let i = 0; i < x.length; i++) x[i] = 10 * normal();
+    const freqs = [3, 7.5, 20, 50];
+    const sigmas = gaussianSigmas(Float64Array.from(freqs), { min: 3, max: 8 });
+    const starts = [10, 400, 650];
+    const out = powerOf(x, fs, freqs, sigmas, starts, L);
+    const single = out.singleTrials![0];
+    for (let e = 0; e < starts.length; e++) {
+      for (let fi = 0; fi < freqs.length; fi++) {
+        const got = single.subarray((e * freqs.length + fi) * L, (e * freqs.length + fi + 1) * L);
+        // the bank's wavelets run to 8σ (the contract asks for at least 5σ), so that is the exact reference …
+        const exact = directPower(x, starts[e], L, freqs[fi], sigmas[fi], fs, 8);
+        let max = 0;
+        for (const v of exact) max = Math.max(max, v);
+        assertClose(got, exact, 1e-6 * max, `epoch ${e} f=${freqs[fi]} vs 8σ`);
+        // … and a 5σ wavelet differs from it only by its truncated tails (exp(−12.5) ≈ 4e-6 of the peak).
+        assertClose(got, directPower(x, starts[e], L, freqs[fi], sigmas[fi], fs, 5), 1e-3 * max, `epoch ${e} f=${freqs[fi]} vs 5σ`);
+      }
+    }
+    // trial average is the mean of the single trials
+    for (let j = 0; j < freqs.length * L; j++) {
+      const mean = (single[j] + single[freqs.length * L + j] + single[2 * freqs.length * L + j]) / 3;
+      assertClose(out.power[0][j], mean, 1e-6 * Math.max(1, mean));
+    }
+  });
+
+  it('uses transforms no longer than needed and one shared forward size', () => {
+    const freqs = Float64Array.of(2, 10, 60);
+    const bank = getWaveletBank(freqs, gaussianSigmas(freqs, { min: 3, max: 10 }), 512, 1537);
+    expect(Array.from(bank.sizes)).toEqual([4096, 2048, 2048]);
+    expect(bank.fftSize).toBe(4096);
+    for (let i = 0; i < 3; i++) expect(bank.bandSizes[i]).toBeLessThan(bank.sizes[i]);
+  });
+
+  it('reports progress up to 1 and stops when asked to cancel', () => {
+    const fs = 64;
+    const x = new Float32Array(2000);
+    const sigmas = gaussianSigmas(Float64Array.of(8), { fixed: 5 });
+    const seen: number[] = [];
+    const job = {
+      samples: x,
+      epochStarts: [Int32Array.from({ length: 40 }, (_, i) => i * 40)],
+      epochSamples: 100,
+      sampleRateHz: fs,
+      frequencies: Float64Array.of(8),
+      sigmas,
+      baseline,
+    };
+    decomposeChannel(job, { onProgress: (f) => seen.push(f) });
+    expect(seen[seen.length - 1]).toBe(1);
+    expect(() => decomposeChannel(job, { shouldCancel: () => true })).toThrow(/cancelled/);
+  });
+});
