@@ -18,7 +18,6 @@ export default defineConfig({
     allowedDomains: ['127.0.0.1', 'localhost', ...(process.env.TIDEMARK_HOSTS ?? '').split(',').filter(Boolean)].map((hostname) => ({ hostname })),
   },
   image: { service: { entrypoint: 'astro/assets/services/noop' } },
-  telemetry: false,
   vite: {
     plugins: [tailwindcss()],
     worker: { format: 'es' },
