@@ -200,7 +200,8 @@ export function parseEdfFixedHeader(bytes: Uint8Array, fileSize: number): EdfFix
   const startTime = field(4);
   const recordingIdentification = field(2).trimEnd();
   const start = parseStart(startDate, startTime, recordingIdentification);
-  if (start === null) warnings.push(`start date/time ${JSON.stringify(startDate + ' ' + startTime)} is malformed; kept as text`);
+  // The warning leaves the text out: dates are identifying and warnings may be shown or logged anywhere.
+  if (start === null) warnings.push('start date/time fields are malformed; the raw text is kept with the identifying fields');
   const patientIdentification = field(1).trimEnd();
 
   return {

@@ -155,3 +155,25 @@ describe('huge declared sizes', () => {
     expect(source.largestRead).toBeLessThanOrEqual(256);
   });
 });
+
+describe('targeted edits', () => {
+  it('a data signal relabelled "EDF Annotations" is parsed as TALs or refused, never crashes', async () => {
+    const relabelled = edit(valid, 256, 16, 'EDF Annotations');
+    expect(['parsed', 'refused']).toContain(await parseOrFormatError(relabelled));
+  });
+
+  it('EDF+D without a timekeeping TAL in a record names the record', async () => {
+    const bytes = edit(valid, 192, 44, 'EDF+D');
+    // Blank the first record's annotation bytes: the record then has no timekeeping annotation.
+    const annotationAt = 256 * (NS + 1) + 2 * (8 + 8 + 2);
+    const annotationBytes = (valid.length - 256 * (NS + 1)) / 3 - 2 * 18;
+    bytes.fill(0, annotationAt, annotationAt + annotationBytes);
+    await expect(openEdf(bytesSource(bytes))).rejects.toThrow(/data record 1 has no timekeeping annotation/);
+  });
+
+  it('stops between chunks when aborted', async () => {
+    const controller = new AbortController();
+    controller.abort(new Error('user closed the file'));
+    await expect(openEdf(bytesSource(valid), { abortSignal: controller.signal })).rejects.toThrow('user closed the file');
+  });
+});

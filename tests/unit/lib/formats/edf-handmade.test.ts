@@ -1,3 +1,4 @@
+import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { bytesSource, FormatError, openEdf, readEdfHeader, toRecording } from '../../../../src/lib/formats';
 import { assertClose } from '../../../helpers/assert-close';
@@ -216,5 +217,74 @@ describe('openEdf on hand-assembled EDF+ bytes', () => {
     const header = handHeader({ reserved: '', records: '3', duration: '1', signals: [fz] });
     const bytes = assemble(header, [[[0, 0, 0, 0]], [[0, 0, 0, 0]]], [0]);
     await expect(openEdf(bytesSource(bytes))).rejects.toThrow(/data record count at byte 236: declares 3 records of 8 bytes/);
+  });
+});
+
+describe('EDF scaling on random hand-made headers', () => {
+  it('equals the specification formula for any digital range, physical range and sample', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.integer({ min: -32768, max: 32766 }),
+        fc.integer({ min: 1, max: 65535 }),
+        fc.integer({ min: -99999, max: 99999 }),
+        fc.integer({ min: -99999, max: 99999 }).filter((x) => x !== 0),
+        fc.array(fc.double({ min: 0, max: 1, noNaN: true }), { minLength: 4, maxLength: 4 }),
+        async (dmin, span, pminTenths, rangeTenths, where) => {
+          const dmax = Math.min(32767, dmin + span);
+          const pmin = pminTenths / 10;
+          const pmax = Number(((pminTenths + rangeTenths) / 10).toFixed(1));
+          const sig: HandSignal = { label: 'EEG T7', dim: 'uV', pmin: String(pmin), pmax: String(pmax), dmin: String(dmin), dmax: String(dmax), spr: 4 };
+          const digits = where.map((u) => Math.round(dmin + u * (dmax - dmin)));
+          const bytes = assemble(handHeader({ reserved: '', records: '1', duration: '1', signals: [sig] }), [[digits]], [0]);
+          const edf = await openEdf(bytesSource(bytes));
+          const expected = digits.map((d) => specScale(d, sig));
+          // Float32 output: relative error ≤ 2^-24 of the largest magnitude involved.
+          const tol = Math.max(Math.abs(pmin), Math.abs(pmax)) * 1.2e-7 + 1e-9;
+          assertClose(edf.channels[0].samples, expected, tol);
+        },
+      ),
+      { numRuns: 200 },
+    );
+  });
+
+  it('converts µV written as Latin-1 0xB5 or UTF-8, nV and V', async () => {
+    const micro: HandSignal = { ...fz, label: 'EEG O1', dim: '\u00b5V' }; // one byte 0xB5 in the header
+    const microUtf8: HandSignal = { ...fz, label: 'EEG O2', dim: '\u00c2\u00b5V' }; // bytes C2 B5 'V'
+    const nano: HandSignal = { ...fz, label: 'EEG Oz', dim: 'nV' };
+    const volt: HandSignal = { ...fz, label: 'EEG Pz', dim: 'V', pmin: '-0.0001', pmax: '0.0001' };
+    const bytes = assemble(handHeader({ reserved: '', records: '1', duration: '1', signals: [micro, microUtf8, nano, volt] }), [[[2047, 0, 0, 0], [2047, 0, 0, 0], [2047, 0, 0, 0], [2047, 0, 0, 0]]], [0, 0, 0, 0]);
+    const edf = await openEdf(bytesSource(bytes));
+    expect(edf.channels.map((c) => c.microvoltFactor)).toEqual([1, 1, 1e-3, 1e6]);
+    assertClose(edf.channels[0].samples[0], 100, 1e-4);
+    assertClose(edf.channels[2].samples[0], 0.1, 1e-6); // 100 nV
+    assertClose(edf.channels[3].samples[0], 100, 1e-3); // 1e-4 V = 100 µV
+  });
+
+  it('reports annotations before the first record and after the last one', async () => {
+    const a: HandSignal = { ...ann, spr: 20 };
+    const sig: HandSignal = { ...fz, spr: 2 };
+    const bytes = assemble(
+      handHeader({ reserved: 'EDF+C', records: '2', duration: '1', signals: [sig, a] }),
+      [
+        [[0, 0], '+0.5\x14\x14\0+0.25\x14early\x14\0'],
+        [[0, 0], '+1.5\x14\x14\0+2.5\x14late\x14\0+1.75\x14kept\x14\0'],
+      ],
+      [0, 40],
+    );
+    const edf = await openEdf(bytesSource(bytes));
+    // First record starts 0.5 s after the header time, so "kept" at 1.75 s lies 1.25 s from the first sample.
+    expect(edf.events).toEqual([{ onsetSeconds: 1.25, durationSeconds: 0, label: 'kept' }]);
+    expect(edf.eventsOutside.map((e) => [e.annotation.label, e.reason])).toEqual([['early', 'before-start'], ['late', 'after-end']]);
+  });
+
+  it('refuses malformed TALs with the byte offset of the bad part', async () => {
+    const a: HandSignal = { ...ann, spr: 8 };
+    const sig: HandSignal = { ...fz, spr: 1 };
+    const header = handHeader({ reserved: 'EDF+C', records: '1', duration: '1', signals: [sig, a] });
+    const dataStart = 256 * 3 + 2; // header, then one 2-byte sample of EEG Fz
+    const noTerminator = assemble(header, [[[0], '+0\x14\x14\0+1x\x14a\x14\0']], [0, 16]);
+    await expect(openEdf(bytesSource(noTerminator))).rejects.toMatchObject({ field: 'annotation onset', byteOffset: dataStart + 5 });
+    const noZero = assemble(header, [[[0], '+0\x14\x14\0+0.1\x14abcdef']], [0, 16]);
+    await expect(openEdf(bytesSource(noZero))).rejects.toMatchObject({ field: 'annotation', byteOffset: dataStart + 5 });
   });
 });
