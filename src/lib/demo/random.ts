@@ -22,6 +22,7 @@ export function mix32(x: number): number {
   return (x ^ (x >>> 16)) >>> 0;
 }
 
+/** A deterministic generator: the same 32-bit seed always gives the same sequence (sfc32 state from splitmix32). */
 export function createRandom(seed: number): Random {
   let a = mix32(seed);
   let b = mix32(a);

@@ -59,10 +59,10 @@ export function parseBidsEvents(text: string, options: BidsEventsOptions = {}): 
   const end = options.recordingSeconds;
   for (let i = 1; i < lines.length; i++) {
     const row = i + 1;
-    if (lines[i].trim() === '') throw new FormatError('row', 'is empty, but event rows follow it', { row });
+    if (lines[i].trim() === '') throw new FormatError('blank row', 'event rows follow it; remove it or the rows after it', { row });
     const cells = lines[i].split('\t');
     if (cells.length !== header.length) {
-      throw new FormatError('row', `has ${cells.length} cells, the header has ${header.length} columns`, { row });
+      throw new FormatError('row length', `${cells.length} cells, but the header names ${header.length} columns`, { row });
     }
     const onsetText = cells[onsetAt].trim();
     if (!NUMBER.test(onsetText)) {

@@ -43,7 +43,7 @@ export function parseCsvSamples(text: string, options: CsvSamplesOptions): Recor
       row++;
       const cells = results.data;
       if (results.errors.length > 0) {
-        failure = new FormatError('row', results.errors[0].message, { row });
+        failure = new FormatError('quoting', results.errors[0].message, { row });
         parser.abort();
         return;
       }
@@ -53,7 +53,7 @@ export function parseCsvSamples(text: string, options: CsvSamplesOptions): Recor
         return;
       }
       if (blankRow !== 0) {
-        failure = new FormatError('row', 'is empty, but data rows follow it', { row: blankRow });
+        failure = new FormatError('blank row', 'data rows follow it; remove it or the rows after it', { row: blankRow });
         parser.abort();
         return;
       }
@@ -74,7 +74,7 @@ export function parseCsvSamples(text: string, options: CsvSamplesOptions): Recor
         return;
       }
       if (cells.length !== names.length) {
-        failure = new FormatError('row', `has ${cells.length} cells, the header has ${names.length} channels`, {
+        failure = new FormatError('row length', `${cells.length} cells, but the header names ${names.length} channels`, {
           row,
           column: cells.length > names.length ? String(names.length + 1) : names[cells.length],
         });

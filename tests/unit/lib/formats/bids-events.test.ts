@@ -39,7 +39,7 @@ describe('parseBidsEvents', () => {
   it('requires tabs and the required columns, and names ragged rows', () => {
     expect(() => parseBidsEvents('onset,duration\n1,0\n')).toThrow(/not tab-separated/);
     expect(() => parseBidsEvents('duration\ttrial_type\n1\ta\n')).toThrow(/no "onset" column/);
-    expect(() => parseBidsEvents('onset\tduration\n1\n')).toThrow(/row at row 2: has 1 cells/);
+    expect(() => parseBidsEvents('onset\tduration\n1\n')).toThrow(/row length at row 2: 1 cells, but the header names 2 columns/);
   });
 
   it('labels every event n/a, with a warning, when trial_type is absent', () => {

@@ -39,7 +39,7 @@ describe('parseCsvSamples', () => {
     expect(error).toBeInstanceOf(FormatError);
     expect(error!.row).toBe(3);
     expect(error!.column).toBe('Cz');
-    expect(error!.message).toBe('row at row 3 column "Cz": has 1 cells, the header has 2 channels');
+    expect(error!.message).toBe('row length at row 3 column "Cz": 1 cells, but the header names 2 channels');
   });
 
   it('names the row and column of a non-numeric cell', () => {
@@ -49,7 +49,7 @@ describe('parseCsvSamples', () => {
 
   it('refuses duplicate channel names, a blank line inside the data and a missing rate', () => {
     expect(() => parseCsvSamples('Fz,Fz\n1,2\n', { sampleRateHz: 1 })).toThrow(/names channel "Fz" twice/);
-    expect(() => parseCsvSamples('Fz\n1\n\n2\n', { sampleRateHz: 1 })).toThrow(/row at row 3: is empty/);
+    expect(() => parseCsvSamples('Fz\n1\n\n2\n', { sampleRateHz: 1 })).toThrow(/blank row at row 3: data rows follow it/);
     expect(() => parseCsvSamples('Fz\n1\n', { sampleRateHz: 0 })).toThrow(/sample rate/);
     expect(() => parseCsvSamples('', { sampleRateHz: 1 })).toThrow(/header/);
     expect(() => parseCsvSamples('Fz\n', { sampleRateHz: 1 })).toThrow(/no samples/);
