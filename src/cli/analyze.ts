@@ -1,0 +1,110 @@
+/**
+ * `npm run --silent analyze -- <recording> --recipe <recipe.json> [--events <events.tsv>] [--rate <Hz>]
+ * [--out <result.json>]`, the analysis contract's command line: exit 0 with the Result JSON, exit 2 with one line
+ * on stderr for bad input (never a stack trace), exit 1 for anything unexpected.
+ */
+import { readFile, writeFile } from 'node:fs/promises';
+import { pathToFileURL } from 'node:url';
+import { AnalysisInputError } from '../lib/analysis/errors';
+import { runRecipe } from '../lib/analysis/run-recipe';
+import { FormatError } from '../lib/formats';
+import { CliInputError, loadRecording } from './load-recording';
+
+const USAGE = 'usage: analyze <recording.edf|.csv|.tsv> --recipe <recipe.json> [--events <events.tsv>] [--rate <Hz>] [--out <result.json>]';
+
+interface Args {
+  recording: string;
+  recipe: string;
+  events?: string;
+  rate?: number;
+  out?: string;
+}
+
+function parseArgs(argv: string[]): Args {
+  const positional: string[] = [];
+  const named: Record<string, string> = {};
+  for (let i = 0; i < argv.length; i++) {
+    const a = argv[i];
+    if (a.startsWith('--')) {
+      const [key, inline] = a.slice(2).split('=', 2);
+      if (!['recipe', 'events', 'rate', 'out'].includes(key)) throw new CliInputError(`--${key}`, `is not an option (${USAGE})`);
+      const value = inline ?? argv[++i];
+      if (value === undefined || value.startsWith('--')) throw new CliInputError(`--${key}`, 'needs a value');
+      if (key in named) throw new CliInputError(`--${key}`, 'is given twice');
+      named[key] = value;
+    } else {
+      positional.push(a);
+    }
+  }
+  if (positional.length !== 1) throw new CliInputError('arguments', `expected one recording file, got ${positional.length} (${USAGE})`);
+  if (named.recipe === undefined) throw new CliInputError('--recipe', `is required (${USAGE})`);
+  let rate: number | undefined;
+  if (named.rate !== undefined) {
+    rate = Number(named.rate);
+    if (!(rate > 0) || !Number.isFinite(rate)) throw new CliInputError('--rate', `must be a positive number of Hz (got "${named.rate}")`);
+  }
+  return { recording: positional[0], recipe: named.recipe, events: named.events, rate, out: named.out };
+}
+
+async function readRecipe(path: string): Promise<unknown> {
+  let text: string;
+  try {
+    text = await readFile(path, 'utf8');
+  } catch (e) {
+    throw new CliInputError(path, `cannot be read (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
+  }
+  try {
+    return JSON.parse(text);
+  } catch (e) {
+    throw new CliInputError(path, `is not valid JSON (${(e as Error).message})`);
+  }
+}
+
+function oneLine(s: string): string {
+  return s.replace(/\s*\n\s*/g, ' ');
+}
+
+/** Runs the command; resolves with the exit code. */
+export async function main(argv: string[]): Promise<number> {
+  let recipePath = 'recipe';
+  try {
+    const args = parseArgs(argv);
+    recipePath = args.recipe;
+    const recipe = await readRecipe(args.recipe);
+    const { recording, warnings } = await loadRecording(args.recording, { eventsPath: args.events, rateHz: args.rate });
+    const result = runRecipe(recording, recipe);
+    result.warnings.unshift(...warnings);
+    const json = JSON.stringify(result);
+    if (args.out !== undefined) {
+      try {
+        await writeFile(args.out, json + '\n');
+      } catch (e) {
+        throw new CliInputError(args.out, `cannot be written (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
+      }
+    } else {
+      await new Promise<void>((resolve, reject) => process.stdout.write(json + '\n', (err) => (err ? reject(err) : resolve())));
+    }
+    return 0;
+  } catch (e) {
+    if (e instanceof CliInputError) {
+      process.stderr.write(`analyze: ${oneLine(`${e.where}: ${e.message}`)}\n`);
+      return 2;
+    }
+    if (e instanceof AnalysisInputError) {
+      process.stderr.write(`analyze: ${oneLine(`${recipePath}: ${e.message}`)}\n`);
+      return 2;
+    }
+    if (e instanceof FormatError) {
+      process.stderr.write(`analyze: ${oneLine(`${argv.find((a) => !a.startsWith('--')) ?? 'input'}: ${e.message}`)}\n`);
+      return 2;
+    }
+    process.stderr.write(`analyze: internal error: ${oneLine(e instanceof Error ? e.message : String(e))}\n`);
+    return 1;
+  }
+}
+
+if (import.meta.url === pathToFileURL(process.argv[1] ?? '').href) {
+  main(process.argv.slice(2)).then((code) => {
+    process.exitCode = code;
+  });
+}

@@ -1,0 +1,107 @@
+import { open, readFile } from 'node:fs/promises';
+import { extname } from 'node:path';
+import type { Recording } from '../lib/analysis/recording';
+import { FormatError, openEdf, parseBidsEvents, parseCsvSamples, toRecording, type ByteSource } from '../lib/formats';
+
+/** A command-line input problem: `where` is the file or option, printed before the message. */
+export class CliInputError extends Error {
+  constructor(readonly where: string, message: string) {
+    super(message);
+    this.name = 'CliInputError';
+  }
+}
+
+export interface LoadOptions {
+  eventsPath?: string;
+  rateHz?: number;
+}
+
+export interface LoadedRecording {
+  recording: Recording;
+  warnings: string[];
+}
+
+const EDF_EXTENSIONS = new Set(['.edf']);
+const TABLE_EXTENSIONS = new Set(['.csv', '.tsv', '.txt']);
+
+/** A ByteSource over an open file, so an EDF is read record by record rather than held twice. */
+async function fileSource(path: string): Promise<{ source: ByteSource; close: () => Promise<void> }> {
+  const handle = await open(path, 'r');
+  const { size } = await handle.stat();
+  return {
+    source: {
+      size,
+      async read(offset, length) {
+        const buffer = new Uint8Array(Math.max(0, Math.min(length, size - offset)));
+        let done = 0;
+        while (done < buffer.length) {
+          const { bytesRead } = await handle.read(buffer, done, buffer.length - done, offset + done);
+          if (bytesRead === 0) break;
+          done += bytesRead;
+        }
+        return done === buffer.length ? buffer : buffer.subarray(0, done);
+      },
+    },
+    close: () => handle.close(),
+  };
+}
+
+async function readText(path: string): Promise<string> {
+  try {
+    return await readFile(path, 'utf8');
+  } catch (e) {
+    throw new CliInputError(path, `cannot be read (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
+  }
+}
+
+/**
+ * Reads an EDF/EDF+ (annotations become events) or a CSV/TSV sample table (needs the rate) and, when given,
+ * a BIDS events TSV whose events are added to the recording's own.
+ */
+export async function loadRecording(path: string, options: LoadOptions): Promise<LoadedRecording> {
+  const ext = extname(path).toLowerCase();
+  const warnings: string[] = [];
+  let recording: Recording;
+  if (EDF_EXTENSIONS.has(ext)) {
+    if (options.rateHz !== undefined) throw new CliInputError('--rate', 'applies only to CSV/TSV recordings; an EDF states its own rates');
+    let file;
+    try {
+      file = await fileSource(path);
+    } catch (e) {
+      throw new CliInputError(path, `cannot be read (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
+    }
+    try {
+      const edf = await openEdf(file.source);
+      warnings.push(...edf.warnings);
+      recording = toRecording(edf);
+    } catch (e) {
+      throw e instanceof FormatError ? new CliInputError(path, e.message) : e;
+    } finally {
+      await file.close();
+    }
+  } else if (TABLE_EXTENSIONS.has(ext)) {
+    if (options.rateHz === undefined) throw new CliInputError('--rate', `is required for a CSV/TSV recording (samples per second of ${path})`);
+    const text = await readText(path);
+    try {
+      recording = parseCsvSamples(text, { sampleRateHz: options.rateHz });
+    } catch (e) {
+      throw e instanceof FormatError ? new CliInputError(path, e.message) : e;
+    }
+  } else {
+    throw new CliInputError(path, `has an unknown extension "${ext}" (expected .edf, .csv, .tsv or .txt)`);
+  }
+  if (options.eventsPath !== undefined) {
+    const total = recording.data.length > 0 ? recording.data[0].length : 0;
+    const text = await readText(options.eventsPath);
+    let parsed;
+    try {
+      parsed = parseBidsEvents(text, { recordingSeconds: total / recording.sampleRateHz });
+    } catch (e) {
+      throw e instanceof FormatError ? new CliInputError(options.eventsPath, e.message) : e;
+    }
+    warnings.push(...parsed.warnings.map((w) => `${options.eventsPath}: ${w}`));
+    if (parsed.outside.length > 0) warnings.push(`${options.eventsPath}: ${parsed.outside.length} events lie outside the recording and were ignored`);
+    recording.events = [...recording.events, ...parsed.events.map((e) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, label: e.label }))];
+  }
+  return { recording, warnings };
+}

@@ -1,0 +1,141 @@
+import { execFile } from 'node:child_process';
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { promisify } from 'node:util';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { runRecipe } from '../../../src/lib/analysis/run-recipe';
+import { parseBidsEvents, parseCsvSamples, writeEdf } from '../../../src/lib/formats';
+import { seededNormal } from '../../helpers/seeded-random';
+
+const run = promisify(execFile);
+const root = fileURLToPath(new URL('../../..', import.meta.url));
+
+interface Outcome {
+  code: number;
+  stdout: string;
+  stderr: string;
+}
+
+async function analyze(args: string[]): Promise<Outcome> {
+  try {
+    const { stdout, stderr } = await run(process.execPath, ['--import', 'tsx', 'src/cli/analyze.ts', ...args], {
+      cwd: root,
+      maxBuffer: 256 * 1024 * 1024,
+    });
+    return { code: 0, stdout, stderr };
+  } catch (e) {
+    const err = e as { code: number; stdout: string; stderr: string };
+    return { code: err.code, stdout: err.stdout, stderr: err.stderr };
+  }
+}
+
+// Scenario of our own: a two-channel 100 Hz "reach task" with go/stop cues every 2.5 s.
+const fs = 100;
+const seconds = 40;
+const dir = mkdtempSync(join(tmpdir(), 'tidemark-cli-'));
+const file = (name: string) => join(dir, name);
+const recipe = {
+  epochs: { events: ['go', 'stop'], tmin: -0.5, tmax: 1.0 },
+  channels: ['C3', 'C4'],
+  frequencies: { min: 4, max: 30, count: 5, spacing: 'log' },
+  cycles: { min: 3, max: 6 },
+  baseline: { start: -0.4, end: -0.1, method: 'db', scope: 'average' },
+  spectrum: { segment: 2, overlap: 0.5, range: [1, 40], source: 'recording' },
+  aperiodic: { range: [2, 40], mode: 'fixed' },
+};
+
+beforeAll(() => {
+  const normal = seededNormal(8);
+  const c3 = new Float64Array(fs * seconds);
+  const c4 = new Float64Array(fs * seconds);
+  let csv = 'C3,C4\n';
+  for (let i = 0; i < c3.length; i++) {
+    c3[i] = Math.round(4 * normal() * 1000) / 1000;
+    c4[i] = Math.round((4 * normal() + 6 * Math.sin((2 * Math.PI * 12 * i) / fs)) * 1000) / 1000;
+    csv += `${c3[i]},${c4[i]}\n`;
+  }
+  writeFileSync(file('rec.csv'), csv);
+  let events = 'onset\tduration\ttrial_type\n';
+  for (let k = 0; k < 14; k++) events += `${2 + 2.5 * k}\tn/a\t${k % 2 === 0 ? 'go' : 'stop'}\n`;
+  writeFileSync(file('events.tsv'), events);
+  writeFileSync(file('recipe.json'), JSON.stringify(recipe));
+  const put = (name: string, change: object) => writeFileSync(file(name), JSON.stringify({ ...recipe, ...change }));
+  put('tmin.json', { epochs: { ...recipe.epochs, tmin: 1.0 } });
+  put('baseline.json', { baseline: { ...recipe.baseline, start: -0.9 } });
+  put('nyquist.json', { frequencies: { ...recipe.frequencies, max: 50 } });
+  put('cycles.json', { cycles: { fixed: 9 } });
+  put('channel.json', { channels: ['C3', 'Cz'] });
+  put('label.json', { epochs: { ...recipe.epochs, events: ['go', 'wait'] } });
+  writeFileSync(file('broken.json'), '{"epochs": ');
+  writeFileSync(file('ragged.csv'), 'C3,C4\n1,2\n3\n');
+  // the same samples as EDF+ with the cues as annotations
+  writeFileSync(
+    file('rec.edf'),
+    writeEdf({
+      start: { year: 2024, month: 3, day: 1, hour: 9, minute: 0, second: 0 },
+      recordDurationSeconds: 1,
+      signals: [
+        { label: 'EEG C3', physicalDimension: 'uV', physicalMin: -100, physicalMax: 100, samplesPerRecord: fs, samples: c3 },
+        { label: 'EEG C4', physicalDimension: 'uV', physicalMin: -100, physicalMax: 100, samplesPerRecord: fs, samples: c4 },
+      ],
+      annotations: Array.from({ length: 14 }, (_, k) => ({ onsetSeconds: 2 + 2.5 * k, texts: [k % 2 === 0 ? 'go' : 'stop'] })),
+    }),
+  );
+});
+
+describe('analyze command line', () => {
+  it('writes the Result JSON for a CSV recording with BIDS events, identical to the core run in process', async () => {
+    const out = await analyze([file('rec.csv'), '--recipe', file('recipe.json'), '--events', file('events.tsv'), '--rate', '100', '--out', file('out.json')]);
+    expect(out.stderr).toBe('');
+    expect(out.code).toBe(0);
+    const result = JSON.parse(readFileSync(file('out.json'), 'utf8'));
+    expect(result.channels).toEqual(['C3', 'C4']);
+    expect(result.conditions.go.trials).toBe(7);
+    expect(result.conditions.go.power[1].length).toBe(5);
+    expect(result.times.length).toBe(151);
+    // the same core on the same input in this process gives the same numbers (JSON round trip is exact)
+    const recording = parseCsvSamples(readFileSync(file('rec.csv'), 'utf8'), { sampleRateHz: fs });
+    recording.events = parseBidsEvents(readFileSync(file('events.tsv'), 'utf8')).events.map((e) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, label: e.label }));
+    const local = JSON.parse(JSON.stringify(runRecipe(recording, recipe)));
+    expect(result.conditions).toEqual(local.conditions);
+    expect(result.aperiodic).toEqual(local.aperiodic);
+  });
+
+  it('reads EDF+ with annotations as events and prints to standard output', async () => {
+    const out = await analyze([file('rec.edf'), '--recipe', file('recipe.json')]);
+    expect(out.stderr).toBe('');
+    expect(out.code).toBe(0);
+    const result = JSON.parse(out.stdout);
+    expect(result.channels).toEqual(['C3', 'C4']);
+    expect(result.conditions.stop.trials).toBe(7);
+    // 12 Hz rhythm on C4 only: its spectrum peaks there
+    const k = result.spectrum.frequencies.indexOf(12);
+    expect(result.spectrum.psd[1][k]).toBeGreaterThan(10 * result.spectrum.psd[0][k]);
+  });
+
+  const bad: [string, string[], RegExp][] = [
+    ['an unreadable recording', ['missing.csv', '--recipe', 'recipe.json', '--rate', '100'], /missing\.csv: cannot be read \(ENOENT\)/],
+    ['a recipe that is not JSON', ['rec.csv', '--recipe', 'broken.json', '--rate', '100'], /broken\.json: is not valid JSON/],
+    ['a CSV without --rate', ['rec.csv', '--recipe', 'recipe.json'], /--rate: is required/],
+    ['a ragged CSV row', ['ragged.csv', '--recipe', 'recipe.json', '--rate', '100'], /ragged\.csv: .*\brow 3\b/],
+    ['an unknown channel', ['rec.csv', '--recipe', 'channel.json', '--events', 'events.tsv', '--rate', '100'], /channel\.json: channels\[1\] names no signal in the recording \("Cz"/],
+    ['no events of a label', ['rec.csv', '--recipe', 'label.json', '--events', 'events.tsv', '--rate', '100'], /label\.json: epochs\.events\[1\] : no events labelled "wait"/],
+    ['tmin ≥ tmax', ['rec.csv', '--recipe', 'tmin.json', '--events', 'events.tsv', '--rate', '100'], /tmin\.json: epochs\.tmin must be less than epochs\.tmax/],
+    ['a baseline outside the epoch', ['rec.csv', '--recipe', 'baseline.json', '--events', 'events.tsv', '--rate', '100'], /baseline\.json: baseline\.start is before the epoch start/],
+    ['a max frequency at Nyquist', ['rec.csv', '--recipe', 'nyquist.json', '--events', 'events.tsv', '--rate', '100'], /nyquist\.json: frequencies\.max must be below the Nyquist frequency \(50 Hz/],
+    ['too few cycles for the epoch length', ['rec.csv', '--recipe', 'cycles.json', '--events', 'events.tsv', '--rate', '100'], /cycles\.json: cycles is too many for the epoch length/],
+    ['an unknown option', ['rec.csv', '--recipe', 'recipe.json', '--colour', 'red'], /--colour: is not an option/],
+  ];
+  it.each(bad)('exits 2 with one line on stderr for %s', async (_what, args, message) => {
+    const withPaths = args.map((a) => (/\.(csv|json|tsv|edf)$/.test(a) ? file(a) : a));
+    const out = await analyze(withPaths);
+    expect(out.code).toBe(2);
+    expect(out.stdout).toBe('');
+    const lines = out.stderr.split('\n').filter((l) => l !== '');
+    expect(lines.length, out.stderr).toBe(1);
+    expect(lines[0]).toMatch(message);
+    expect(lines[0]).not.toMatch(/\bat .*:\d+:\d+/); // no stack frames
+  });
+});
