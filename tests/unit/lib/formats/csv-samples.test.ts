@@ -2,6 +2,9 @@ import { describe, expect, it } from 'vitest';
 import { FormatError, parseCsvSamples } from '../../../../src/lib/formats';
 import { assertClose } from '../../../helpers/assert-close';
 
+// CSV per RFC 4180 (a header row, comma-separated fields, CRLF or LF line ends) and TSV with tabs, common practice;
+// the expected values below are the cells themselves, read by hand.
+
 describe('parseCsvSamples', () => {
   it('reads a CSV matrix with a header row of channel names', () => {
     const rec = parseCsvSamples('Fz,Cz,Pz\n1,2,3\n-4.5,5e1,.25\n', { sampleRateHz: 250 });
