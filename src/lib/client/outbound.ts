@@ -1,0 +1,109 @@
+/**
+ * Every request the workspace makes goes through `send`, which records what left this tab: method, path, time,
+ * and the exact JSON text of the body. The Outbound screen lists the log so a person can check that nothing from
+ * the recording was sent.
+ *
+ * Caution: `guardAgainst` registers strings that must never leave the device (a recording's file name and header
+ * identification); a request whose path or body contains one is refused before it is sent.
+ */
+export interface OutboundEntry {
+  id: number;
+  method: string;
+  path: string;
+  /** ISO time the request was sent. */
+  sentAt: string;
+  /** The exact body text sent, or null for none. */
+  body: string | null;
+  status: number | null;
+  /** Set when the request failed to reach the server or was refused on this device. */
+  failure: string | null;
+}
+
+export class OutboundRefusedError extends Error {
+  constructor(readonly path: string) {
+    super(`Refused to send ${path}: the request would carry something that stays on this device.`);
+    this.name = 'OutboundRefusedError';
+  }
+}
+
+let nextId = 1;
+let entries: readonly OutboundEntry[] = [];
+const listeners = new Set<() => void>();
+const guarded = new Map<string, Set<string>>();
+
+function publish(next: readonly OutboundEntry[]) {
+  entries = next;
+  for (const l of listeners) l();
+}
+
+/** For useSyncExternalStore. */
+export function subscribeOutbound(listener: () => void): () => void {
+  listeners.add(listener);
+  return () => listeners.delete(listener);
+}
+
+export function outboundLog(): readonly OutboundEntry[] {
+  return entries;
+}
+
+/** Strings (at least 4 characters, trimmed) that no request may carry, grouped under `owner` so they can be replaced. */
+export function guardAgainst(owner: string, values: readonly string[]): void {
+  guarded.set(owner, new Set(values.map((v) => v.trim()).filter((v) => v.length >= 4)));
+}
+
+function carriesGuarded(text: string): boolean {
+  for (const set of guarded.values()) for (const v of set) if (text.includes(v)) return true;
+  return false;
+}
+
+export interface SendOptions {
+  method?: 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
+  /** Serialised with JSON.stringify; exactly that text is sent and logged. */
+  json?: unknown;
+  signal?: AbortSignal;
+}
+
+/** fetch() for same-origin paths, logged. Rejects with OutboundRefusedError before sending a guarded string. */
+export async function send(path: string, options: SendOptions = {}): Promise<Response> {
+  if (!path.startsWith('/')) throw new Error(`send() takes a same-origin path, not ${path}`);
+  const method = options.method ?? (options.json === undefined ? 'GET' : 'POST');
+  const body = options.json === undefined ? null : JSON.stringify(options.json);
+  const entry: OutboundEntry = { id: nextId++, method, path, sentAt: new Date().toISOString(), body, status: null, failure: null };
+  let decodedPath = path;
+  try {
+    decodedPath = decodeURIComponent(path);
+  } catch {
+    // A malformed escape: check the raw text only.
+  }
+  if (carriesGuarded(path) || carriesGuarded(decodedPath) || (body !== null && carriesGuarded(body))) {
+    publish([...entries, { ...entry, body: null, failure: 'refused on this device: it carried a local-only string (not sent)' }]);
+    throw new OutboundRefusedError(path);
+  }
+  publish([...entries, entry]);
+  const update = (patch: Partial<OutboundEntry>) => publish(entries.map((e) => (e.id === entry.id ? { ...e, ...patch } : e)));
+  try {
+    const response = await fetch(path, {
+      method,
+      body,
+      headers: body === null ? { accept: 'application/json' } : { 'content-type': 'application/json', accept: 'application/json' },
+      credentials: 'same-origin',
+      signal: options.signal,
+    });
+    update({ status: response.status });
+    return response;
+  } catch (error) {
+    update({ failure: error instanceof Error ? error.message : String(error) });
+    throw error;
+  }
+}
+
+/** Reads an API error body `{ error: { message } }`, falling back to the status line. */
+export async function errorMessageOf(response: Response): Promise<string> {
+  try {
+    const body = (await response.json()) as { error?: { message?: string } };
+    if (body.error?.message) return body.error.message;
+  } catch {
+    // Not JSON.
+  }
+  return `The server answered ${response.status} ${response.statusText}.`;
+}
