@@ -1,0 +1,113 @@
+// Live re-normalization for the explorer: the same definitions as baseline.ts (analysis contract, "Baseline
+// normalization"), arranged so a moved baseline costs F×T work (average scope) or one weighted pass over the
+// stored trials (trial scope), with caller-owned output buffers.
+import { baselineStats, type BaselineMethod } from './baseline';
+
+/**
+ * Scope `average` into `out[f·nTimes + t]`: each row of trial-averaged power P (µV²) against its own baseline
+ * mean B and sample SD S over grid points first … last: db 10·log10(P/B), percent 100·(P − B)/B, zscore (P − B)/S,
+ * ratio P/B. Same values as `normalizeAverage`, without allocating.
+ */
+export function renormalizeAverage(
+  out: Float64Array,
+  power: ArrayLike<number>,
+  nTimes: number,
+  first: number,
+  last: number,
+  method: BaselineMethod,
+): void {
+  const n = out.length;
+  for (let off = 0; off < n; off += nTimes) {
+    const { mean, sd } = baselineStats(power, off, first, last);
+    switch (method) {
+      case 'db': {
+        const c = 10 * Math.log10(mean);
+        for (let j = 0; j < nTimes; j++) out[off + j] = 10 * Math.log10(power[off + j]) - c;
+        break;
+      }
+      case 'percent': {
+        const k = 100 / mean;
+        for (let j = 0; j < nTimes; j++) out[off + j] = k * (power[off + j] - mean);
+        break;
+      }
+      case 'zscore': {
+        for (let j = 0; j < nTimes; j++) out[off + j] = (power[off + j] - mean) / sd;
+        break;
+      }
+      case 'ratio': {
+        for (let j = 0; j < nTimes; j++) out[off + j] = power[off + j] / mean;
+        break;
+      }
+    }
+  }
+}
+
+/** Stored single-trial power of one channel and condition, `trials[(k·nFreqs + f)·nTimes + t]` µV². */
+export interface TrialPower {
+  trials: Float32Array;
+  count: number;
+  nFreqs: number;
+  nTimes: number;
+  /** mean over k of log10 P_k(f, t): does not depend on the baseline, so it is computed once (`prepareTrialPower`). */
+  meanLog10: Float64Array;
+}
+
+/** Wraps stored trial power and precomputes `meanLog10`. */
+export function prepareTrialPower(trials: Float32Array, count: number, nFreqs: number, nTimes: number): TrialPower {
+  const size = nFreqs * nTimes;
+  const meanLog10 = new Float64Array(size);
+  for (let k = 0; k < count; k++) {
+    const base = k * size;
+    for (let i = 0; i < size; i++) meanLog10[i] += Math.log10(trials[base + i]);
+  }
+  for (let i = 0; i < size; i++) meanLog10[i] /= count;
+  return { trials, count, nFreqs, nTimes, meanLog10 };
+}
+
+/**
+ * Scope `trial` into `out[f·nTimes + t]`: the mean over K trials of each trial normalized by its own B_k(f) and
+ * S_k(f). Rearranged so the time loop is one multiply-add per trial:
+ * db (1/K)·Σ 10·log10(P_k/B_k) = 10·mean log10 P − (10/K)·Σ log10 B_k;
+ * ratio (1/K)·Σ P_k/B_k; percent 100·((1/K)·Σ P_k/B_k − 1); zscore (1/K)·Σ P_k/S_k − (1/K)·Σ B_k/S_k.
+ * Equal to `normalizeTrials` up to rounding.
+ */
+export function renormalizeTrials(out: Float64Array, tp: TrialPower, first: number, last: number, method: BaselineMethod): void {
+  const { trials, count: K, nFreqs: nf, nTimes: nt, meanLog10 } = tp;
+  const size = nf * nt;
+  if (method === 'db') {
+    for (let f = 0; f < nf; f++) {
+      let logB = 0;
+      for (let k = 0; k < K; k++) logB += Math.log10(baselineStats(trials, (k * nf + f) * nt, first, last).mean);
+      const c = (10 * logB) / K;
+      const off = f * nt;
+      for (let j = 0; j < nt; j++) out[off + j] = 10 * meanLog10[off + j] - c;
+    }
+    return;
+  }
+  out.fill(0, 0, size);
+  const constant = new Float64Array(nf);
+  for (let k = 0; k < K; k++) {
+    for (let f = 0; f < nf; f++) {
+      const off = (k * nf + f) * nt;
+      const { mean, sd } = baselineStats(trials, off, first, last);
+      let w: number;
+      if (method === 'zscore') {
+        w = 1 / (K * sd);
+        constant[f] -= mean / (K * sd);
+      } else {
+        w = 1 / (K * mean);
+      }
+      const o = f * nt;
+      for (let j = 0; j < nt; j++) out[o + j] += w * trials[off + j];
+    }
+  }
+  for (let f = 0; f < nf; f++) {
+    const o = f * nt;
+    if (method === 'percent') {
+      for (let j = 0; j < nt; j++) out[o + j] = 100 * (out[o + j] - 1);
+    } else if (method === 'zscore') {
+      const c = constant[f];
+      for (let j = 0; j < nt; j++) out[o + j] += c;
+    }
+  }
+}
