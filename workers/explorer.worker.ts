@@ -1,0 +1,43 @@
+// The explorer's worker: holds one channel's single-trial power for live trial-scope re-normalization, and
+// computes per-epoch spectra. Wiring only; the maths is in src/lib/analysis (renormalize.ts, epoch-spectra.ts).
+import * as Comlink from 'comlink';
+import type { BaselineMethod } from '../src/lib/analysis/baseline';
+import { epochSpectra, type EpochSpectra } from '../src/lib/analysis/epoch-spectra';
+import { prepareTrialPower, renormalizeTrials, type TrialPower } from '../src/lib/analysis/renormalize';
+
+let held: { key: string; conditions: TrialPower[] } | null = null;
+
+const api = {
+  /** Keeps `trials[c]` (per condition, `[(k·F + f)·T + t]` µV²) under `key`, replacing what was held. */
+  holdTrials(key: string, trials: Float32Array[], counts: number[], nFreqs: number, nTimes: number): void {
+    held = { key, conditions: trials.map((t, c) => prepareTrialPower(t, counts[c], nFreqs, nTimes)) };
+  },
+  heldKey(): string | null {
+    return held === null ? null : held.key;
+  },
+  /** Trial-scope normalized maps, one per condition, for baseline points first … last. */
+  renormalize(key: string, first: number, last: number, method: BaselineMethod): Float64Array[] | null {
+    if (held === null || held.key !== key) return null;
+    const out = held.conditions.map((tp) => {
+      const o = new Float64Array(tp.nFreqs * tp.nTimes);
+      renormalizeTrials(o, tp, first, last, method);
+      return o;
+    });
+    return Comlink.transfer(out, out.map((o) => o.buffer));
+  },
+  spectra(
+    channels: Float32Array[],
+    sampleRateHz: number,
+    epochStarts: Int32Array,
+    epochSamples: number,
+    segmentSamples: number,
+    overlapSamples: number,
+    rangeHz: [number, number],
+  ): EpochSpectra[] {
+    const out = channels.map((x) => epochSpectra(x, sampleRateHz, epochStarts, epochSamples, segmentSamples, overlapSamples, rangeHz));
+    return Comlink.transfer(out, out.flatMap((s) => [s.frequencies.buffer, s.perTrial.buffer, s.mean.buffer]) as ArrayBuffer[]);
+  },
+};
+
+export type ExplorerWorkerApi = typeof api;
+Comlink.expose(api);
