@@ -1,5 +1,259 @@
+import { useCallback, useRef, useState } from 'react';
 import type { WorkspaceProps } from './types';
+import { useSourceStore } from '../../stores/source';
+import { openRecordingFile, type IntakePhase, type IntakeProblem, type RecordingKind } from '../../lib/client/intake';
+import { getLibraryFile, keepInLibrary, LibraryFullError, type LibraryEntry } from '../../lib/client/library';
+import { errorMessageOf, guardAgainst, send } from '../../lib/client/outbound';
+import OpenPanel, { type CsvChoice } from '../source/OpenPanel';
+import DemoPicker, { type DemoSubject } from '../source/DemoPicker';
+import LibraryPanel from '../source/LibraryPanel';
+import LocalDetails from '../source/LocalDetails';
+import ConditionsPanel from '../source/ConditionsPanel';
+import OverviewTrace from '../source/OverviewTrace';
+import RejectionPanel from '../source/RejectionPanel';
+import SessionPanel from '../source/SessionPanel';
+import { formatBytes } from '../source/format';
 
-export default function SourceScreen(_props: WorkspaceProps) {
-  return <p className="text-ink-soft">The Source screen is not built yet.</p>;
+type Origin = 'your file' | 'demo cohort' | 'this browser’s library';
+
+interface Busy {
+  fileName: string;
+  phase: IntakePhase | 'download';
+  fraction: number;
+}
+
+const PHASES: Record<Busy['phase'], string> = {
+  download: 'Fetching the demo file from the app',
+  fingerprint: 'Computing the SHA-256 fingerprint',
+  reading: 'Reading the samples',
+  events: 'Reading the events',
+};
+
+function Problem({ fileName, error, onDismiss }: { fileName: string; error: IntakeProblem; onDismiss: () => void }) {
+  const where: [string, string][] = [];
+  if (error.field) where.push(['Field', error.field]);
+  if (error.signal) where.push(['Signal', error.signal]);
+  if (error.byteOffset !== null) where.push(['Byte offset', String(error.byteOffset)]);
+  if (error.row !== null) where.push(['Row', String(error.row)]);
+  if (error.column) where.push(['Column', error.column]);
+  return (
+    <div className="notice notice-warn grid gap-2" role="alert" data-testid="intake-problem">
+      <p className="font-semibold">
+        {fileName}
+        {error.file === 'events' ? ' (events file)' : ''} could not be opened: {error.problem ?? error.message}
+      </p>
+      {where.length > 0 && (
+        <dl className="grid grid-cols-[max-content_1fr] gap-x-3 text-sm">
+          {where.map(([k, v]) => (
+            <div key={k} className="contents">
+              <dt>{k}</dt>
+              <dd className="font-mono break-all">{v}</dd>
+            </div>
+          ))}
+        </dl>
+      )}
+      <p className="text-sm">Nothing else changed: the recording you had open and the library are as they were.</p>
+      <button type="button" className="btn btn-quiet justify-self-start" onClick={onDismiss}>
+        Dismiss
+      </button>
+    </div>
+  );
+}
+
+export default function SourceScreen(props: WorkspaceProps) {
+  const recording = useSourceStore((s) => s.recording);
+  const local = useSourceStore((s) => s.local);
+  const fingerprint = useSourceStore((s) => s.fingerprint);
+  const conditions = useSourceStore((s) => s.conditions);
+  const epochWindow = useSourceStore((s) => s.epochWindow);
+  const rejection = useSourceStore((s) => s.rejection);
+  const decisions = useSourceStore((s) => s.decisions);
+  const settingsError = useSourceStore((s) => s.settingsError);
+  const subjectCode = useSourceStore((s) => s.subjectCode);
+  const store = useSourceStore.getState;
+
+  const [busy, setBusy] = useState<Busy | null>(null);
+  const [problem, setProblem] = useState<{ fileName: string; error: IntakeProblem } | null>(null);
+  const [libraryNotice, setLibraryNotice] = useState<string | null>(null);
+  const [libraryVersion, setLibraryVersion] = useState(0);
+  const [origin, setOrigin] = useState<Origin>('your file');
+  const [overviewChannel, setOverviewChannel] = useState('');
+  const [selectedEvent, setSelectedEvent] = useState<number | null>(null);
+  const demoNames = useRef(new Set<string>());
+
+  const refuse = (fileName: string, message: string) =>
+    setProblem({ fileName, error: { file: 'recording', message, problem: message, field: null, byteOffset: null, signal: null, row: null, column: null } });
+
+  const open = useCallback(
+    async (blob: Blob, fileName: string, kind: RecordingKind, from: Origin, events: { blob: Blob; name: string } | null = null, demoCode?: string) => {
+      setBusy({ fileName, phase: 'fingerprint', fraction: 0 });
+      setLibraryNotice(null);
+      try {
+        const result = await openRecordingFile(blob, kind.kind === 'csv' ? { ...kind, events: events?.blob ?? null } : kind, (phase, fraction) =>
+          setBusy({ fileName, phase, fraction }),
+        );
+        if (!result.ok) {
+          setProblem({ fileName: result.error.file === 'events' && events ? events.name : fileName, error: result.error });
+          return;
+        }
+        setProblem(null);
+        const isDemo = from === 'demo cohort' || demoNames.current.has(fileName);
+        // The file name and header identification must never leave the device; the outbound wrapper refuses them.
+        guardAgainst('source-recording', [
+          ...(isDemo ? [] : [fileName]),
+          ...(events && !isDemo ? [events.name] : []),
+          ...(result.local.identifying ? [result.local.identifying.patient, result.local.identifying.recording] : []),
+        ]);
+        store().load({ recording: result.recording, local: { ...result.local, fileName }, fingerprint: result.fingerprint });
+        if (demoCode && store().subjectCode.trim() === '') store().set({ subjectCode: demoCode });
+        setOrigin(from);
+        setOverviewChannel(result.recording.channelNames[0] ?? '');
+        setSelectedEvent(null);
+        const entry: LibraryEntry = {
+          fingerprint: result.fingerprint,
+          fileName,
+          sizeBytes: blob.size,
+          openedAt: new Date().toISOString(),
+          kind: kind.kind,
+          csv: kind.kind === 'csv' ? { sampleRateHz: kind.sampleRateHz, delimiter: kind.delimiter, eventsFileName: events?.name ?? null } : null,
+        };
+        try {
+          await keepInLibrary(entry, blob, events?.blob ?? null);
+        } catch (error) {
+          setLibraryNotice(error instanceof LibraryFullError ? error.message : `The recording is open but could not be kept in the library: ${String(error)}`);
+        }
+        setLibraryVersion((v) => v + 1);
+      } catch (error) {
+        refuse(fileName, `reading stopped unexpectedly: ${error instanceof Error ? error.message : String(error)}`);
+      } finally {
+        setBusy(null);
+      }
+    },
+    [],
+  );
+
+  const openEdf = (file: File) => void open(file, file.name, { kind: 'edf' }, 'your file');
+  const openCsv = (file: File, c: CsvChoice) =>
+    void open(file, file.name, { kind: 'csv', sampleRateHz: c.sampleRateHz, delimiter: c.delimiter, events: null }, 'your file', c.events ? { blob: c.events, name: c.events.name } : null);
+
+  const openDemo = async (subject: DemoSubject) => {
+    setBusy({ fileName: subject.fileName, phase: 'download', fraction: 0 });
+    try {
+      const response = await send(`/demo/${encodeURIComponent(subject.fileName)}`);
+      if (!response.ok) throw new Error(await errorMessageOf(response));
+      const blob = await response.blob();
+      await open(blob, subject.fileName, { kind: 'edf' }, 'demo cohort', null, subject.code);
+    } catch (error) {
+      setBusy(null);
+      refuse(subject.fileName, `the demo file could not be fetched: ${error instanceof Error ? error.message : String(error)}`);
+    }
+  };
+
+  const reopen = async (entry: LibraryEntry) => {
+    const found = await getLibraryFile(entry.fingerprint);
+    if (!found) return refuse(entry.fileName, 'it is no longer in this browser’s library.');
+    const kind: RecordingKind =
+      entry.kind === 'csv' && entry.csv ? { kind: 'csv', sampleRateHz: entry.csv.sampleRateHz, delimiter: entry.csv.delimiter, events: null } : { kind: 'edf' };
+    const events = found.events && entry.csv?.eventsFileName ? { blob: found.events, name: entry.csv.eventsFileName } : null;
+    await open(found.blob, entry.fileName, kind, 'this browser’s library', events);
+  };
+
+  return (
+    <div className="grid gap-6">
+      <div className="grid gap-6 lg:grid-cols-[3fr_2fr]">
+        <section className="card grid content-start gap-4" aria-labelledby="source-open">
+          <h2 id="source-open" className="text-lg font-semibold">
+            Open a recording
+          </h2>
+          <OpenPanel busy={busy !== null} onOpenEdf={openEdf} onOpenCsv={openCsv} onRefuse={(m) => refuse('That file', m)} />
+          <hr className="tide-rule" />
+          <DemoPicker busy={busy !== null} onPick={(s) => void openDemo(s)} onList={(names) => (demoNames.current = new Set(names))} />
+          {busy && (
+            <div className="grid gap-1" role="status" data-testid="intake-progress">
+              <label htmlFor="intake-progress-bar" className="text-sm">
+                {PHASES[busy.phase]} of {busy.fileName}… {busy.phase === 'download' ? '' : `${Math.round(busy.fraction * 100)} %`}
+              </label>
+              <progress id="intake-progress-bar" max={1} value={busy.phase === 'download' ? undefined : busy.fraction} className="h-2 w-full" />
+            </div>
+          )}
+          {problem && <Problem fileName={problem.fileName} error={problem.error} onDismiss={() => setProblem(null)} />}
+        </section>
+        <section className="card grid content-start gap-3" aria-labelledby="source-library">
+          <h2 id="source-library" className="text-lg font-semibold">
+            Library on this device
+          </h2>
+          <LibraryPanel version={libraryVersion} busy={busy !== null} currentFingerprint={fingerprint} onReopen={(e) => void reopen(e)} notice={libraryNotice} />
+        </section>
+      </div>
+
+      {recording && local && fingerprint ? (
+        <>
+          <section className="card grid gap-3" aria-labelledby="source-details" data-testid="recording-details">
+            <h2 id="source-details" className="text-lg font-semibold">
+              The recording <span className="text-sm font-normal text-ink-soft">({formatBytes(local.sizeBytes)})</span>
+            </h2>
+            <LocalDetails recording={recording} local={local} fingerprint={fingerprint} origin={origin} />
+          </section>
+          <section className="card grid gap-3" aria-labelledby="source-conditions">
+            <h2 id="source-conditions" className="text-lg font-semibold">
+              Events to conditions
+            </h2>
+            <ConditionsPanel
+              key={fingerprint}
+              recording={recording}
+              conditions={conditions}
+              epochWindow={epochWindow}
+              settingsError={settingsError}
+              onConditions={(c) => store().setConditions(c)}
+              onWindow={(w) => store().setEpochWindow(w)}
+            />
+          </section>
+          <section className="card grid gap-3" aria-labelledby="source-overview">
+            <h2 id="source-overview" className="text-lg font-semibold">
+              Epochs over the recording
+            </h2>
+            <OverviewTrace
+              recording={recording}
+              decisions={decisions}
+              epochWindow={epochWindow}
+              channel={overviewChannel}
+              onChannel={setOverviewChannel}
+              selectedEvent={selectedEvent}
+            />
+          </section>
+          {decisions.length > 0 && (
+            <section className="card grid gap-3" aria-labelledby="source-rejection">
+              <h2 id="source-rejection" className="text-lg font-semibold">
+                Epoch rejection
+              </h2>
+              <RejectionPanel
+                recording={recording}
+                rejection={rejection}
+                decisions={decisions}
+                overviewChannel={overviewChannel || recording.channelNames[0]}
+                onRejection={(p) => store().setRejection(p)}
+                onOverride={(i, d) => store().setOverride(i, d)}
+                onSelect={setSelectedEvent}
+              />
+            </section>
+          )}
+          <section className="card grid gap-3" aria-labelledby="source-session">
+            <h2 id="source-session" className="text-lg font-semibold">
+              Analysis session
+            </h2>
+            <SessionPanel
+              studyId={props.study.id}
+              fingerprint={fingerprint}
+              subjectCode={subjectCode}
+              mayCreateSessions={props.mayCreateSessions}
+              role={props.role}
+              onSubjectCode={(code) => store().set({ subjectCode: code })}
+            />
+          </section>
+        </>
+      ) : (
+        <p className="text-ink-soft">No recording is open yet. Whatever you open stays on this device.</p>
+      )}
+    </div>
+  );
 }

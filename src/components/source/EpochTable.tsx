@@ -1,0 +1,166 @@
+import { useMemo, useState } from 'react';
+import {
+  createColumnHelper,
+  flexRender,
+  getCoreRowModel,
+  getFilteredRowModel,
+  getSortedRowModel,
+  useReactTable,
+  type SortingState,
+} from '@tanstack/react-table';
+import type { EpochDecision } from '../../stores/source';
+
+interface Props {
+  decisions: EpochDecision[];
+  onOverride: (eventIndex: number, decision: 'keep' | 'reject' | null) => void;
+  onSelect: (eventIndex: number) => void;
+}
+
+const column = createColumnHelper<EpochDecision>();
+const uv = (v: number | null | undefined) => (v === null || v === undefined ? '—' : v.toFixed(v >= 100 ? 0 : 1));
+
+/** Every epoch of every condition, with the rules' measures, the verdict and a manual decision. */
+export default function EpochTable({ decisions, onOverride, onSelect }: Props) {
+  const [sorting, setSorting] = useState<SortingState>([]);
+  const [condition, setCondition] = useState('');
+  const [only, setOnly] = useState<'all' | 'rejected' | 'kept'>('all');
+  const conditions = useMemo(() => [...new Set(decisions.map((d) => d.condition))], [decisions]);
+  const rows = useMemo(
+    () => decisions.filter((d) => (condition === '' || d.condition === condition) && (only === 'all' || (only === 'rejected') === d.rejected)),
+    [decisions, condition, only],
+  );
+
+  const columns = useMemo(
+    () => [
+      column.accessor((d) => d.eventIndex + 1, { id: 'event', header: 'Event' }),
+      column.accessor('condition', { header: 'Condition' }),
+      column.accessor('onsetSeconds', { header: 'Onset (s)', cell: (c) => c.getValue().toFixed(3) }),
+      column.accessor((d) => d.peakToPeakMicrovolts ?? -1, {
+        id: 'p2p',
+        header: 'Peak-to-peak (µV)',
+        cell: (c) => `${uv(c.row.original.peakToPeakMicrovolts)}${c.row.original.peakToPeakChannel ? ` ${c.row.original.peakToPeakChannel}` : ''}`,
+      }),
+      column.accessor((d) => d.minStdMicrovolts ?? -1, {
+        id: 'sd',
+        header: 'Lowest SD (µV)',
+        cell: (c) => `${c.row.original.minStdMicrovolts === null || c.row.original.minStdMicrovolts === undefined ? '—' : c.row.original.minStdMicrovolts.toFixed(2)}${c.row.original.minStdChannel ? ` ${c.row.original.minStdChannel}` : ''}`,
+      }),
+      column.accessor((d) => (d.rejected ? 1 : 0), {
+        id: 'verdict',
+        header: 'Verdict',
+        cell: (c) =>
+          c.row.original.rejected ? (
+            <span className="font-semibold text-coral-deep">✕ Rejected</span>
+          ) : (
+            <span className="font-semibold text-kelp-deep">✓ Kept</span>
+          ),
+      }),
+      column.accessor((d) => d.reasons.join('; '), { id: 'reasons', header: 'Why', enableSorting: false }),
+      column.display({
+        id: 'decision',
+        header: 'Decision',
+        cell: (c) => {
+          const d = c.row.original;
+          const fits = d.fit === undefined || d.fit === 'fits';
+          return (
+            <select
+              aria-label={`Decision for event ${d.eventIndex + 1}`}
+              value={d.manual ?? 'rules'}
+              disabled={!fits}
+              title={fits ? undefined : 'An epoch that does not fit the recording cannot be kept'}
+              onChange={(e) => onOverride(d.eventIndex, e.target.value === 'rules' ? null : (e.target.value as 'keep' | 'reject'))}
+              className="rounded border border-shell bg-foam px-1 py-0.5"
+            >
+              <option value="rules">by the rules</option>
+              <option value="keep">keep</option>
+              <option value="reject">reject</option>
+            </select>
+          );
+        },
+      }),
+    ],
+    [onOverride],
+  );
+
+  const table = useReactTable({
+    data: rows,
+    columns,
+    state: { sorting },
+    onSortingChange: setSorting,
+    getCoreRowModel: getCoreRowModel(),
+    getSortedRowModel: getSortedRowModel(),
+    getFilteredRowModel: getFilteredRowModel(),
+    getRowId: (d) => String(d.eventIndex),
+  });
+
+  return (
+    <div className="grid gap-2">
+      <div className="flex flex-wrap items-end gap-3">
+        <div className="field">
+          <label htmlFor="epoch-filter-condition">Show condition</label>
+          <select id="epoch-filter-condition" value={condition} onChange={(e) => setCondition(e.target.value)}>
+            <option value="">all conditions</option>
+            {conditions.map((c) => (
+              <option key={c}>{c}</option>
+            ))}
+          </select>
+        </div>
+        <div className="field">
+          <label htmlFor="epoch-filter-verdict">Show epochs</label>
+          <select id="epoch-filter-verdict" value={only} onChange={(e) => setOnly(e.target.value as typeof only)}>
+            <option value="all">all</option>
+            <option value="rejected">rejected only</option>
+            <option value="kept">kept only</option>
+          </select>
+        </div>
+        <p className="text-sm text-ink-soft" aria-live="polite">
+          {rows.length} of {decisions.length} epochs shown
+        </p>
+      </div>
+      <div className="max-h-[32rem] overflow-auto rounded border border-sand-deep">
+        <table className="data-table" data-testid="epoch-table">
+          <thead className="sticky top-0 bg-foam">
+            {table.getHeaderGroups().map((g) => (
+              <tr key={g.id}>
+                {g.headers.map((h) => {
+                  const sorted = h.column.getIsSorted();
+                  return (
+                    <th key={h.id} scope="col" aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : undefined}>
+                      {h.column.getCanSort() ? (
+                        <button type="button" className="font-semibold" onClick={h.column.getToggleSortingHandler()}>
+                          {flexRender(h.column.columnDef.header, h.getContext())}
+                          {sorted === 'asc' ? ' ▲' : sorted === 'desc' ? ' ▼' : ''}
+                        </button>
+                      ) : (
+                        flexRender(h.column.columnDef.header, h.getContext())
+                      )}
+                    </th>
+                  );
+                })}
+              </tr>
+            ))}
+          </thead>
+          <tbody>
+            {table.getRowModel().rows.map((r) => (
+              <tr
+                key={r.id}
+                data-testid="epoch-row"
+                data-event-index={r.original.eventIndex}
+                data-verdict={r.original.rejected ? 'rejected' : 'kept'}
+                className={r.original.rejected ? 'bg-coral-pale/40' : undefined}
+                onFocus={() => onSelect(r.original.eventIndex)}
+                onMouseEnter={() => onSelect(r.original.eventIndex)}
+              >
+                {r.getVisibleCells().map((c) => (
+                  <td key={c.id} className={c.column.id === 'reasons' ? 'text-xs' : 'font-mono text-xs whitespace-nowrap'}>
+                    {flexRender(c.column.columnDef.cell, c.getContext())}
+                  </td>
+                ))}
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </div>
+    </div>
+  );
+}

@@ -1,0 +1,123 @@
+import { useEffect, useState } from 'react';
+import { clearLibrary, listLibrary, removeFromLibrary, storageEstimate, type LibraryEntry } from '../../lib/client/library';
+import { formatBytes, shortFingerprint } from './format';
+
+interface Props {
+  /** Bumped by the screen whenever it adds to the library. */
+  version: number;
+  busy: boolean;
+  currentFingerprint: string | null;
+  onReopen: (entry: LibraryEntry) => void;
+  notice: string | null;
+}
+
+/** Recordings kept in this browser (IndexedDB), with the storage quota; nothing of it leaves the device. */
+export default function LibraryPanel({ version, busy, currentFingerprint, onReopen, notice }: Props) {
+  const [entries, setEntries] = useState<LibraryEntry[] | null>(null);
+  const [estimate, setEstimate] = useState<{ usage: number; quota: number } | null>(null);
+  const [problem, setProblem] = useState<string | null>(null);
+  const [confirmAll, setConfirmAll] = useState(false);
+  const [own, setOwn] = useState(0);
+
+  useEffect(() => {
+    let live = true;
+    Promise.all([listLibrary(), storageEstimate()])
+      .then(([list, est]) => {
+        if (!live) return;
+        setEntries(list);
+        setEstimate(est);
+        setProblem(null);
+      })
+      .catch((error: unknown) => live && setProblem(`The library could not be read: ${error instanceof Error ? error.message : String(error)}`));
+    return () => {
+      live = false;
+    };
+  }, [version, own]);
+
+  const refresh = () => setOwn((n) => n + 1);
+
+  return (
+    <div className="grid gap-3" data-testid="library">
+      <p className="text-sm text-ink-soft">
+        Recordings you opened are kept in this browser only (IndexedDB), to reopen later. Nothing here is synchronised.
+      </p>
+      {estimate && (
+        <div className="grid gap-1 text-sm">
+          <label htmlFor="library-usage">
+            Storage used: <span className="font-mono">{formatBytes(estimate.usage)}</span> of{' '}
+            <span className="font-mono">{formatBytes(estimate.quota)}</span> this browser allows
+          </label>
+          <progress id="library-usage" max={estimate.quota} value={estimate.usage} className="h-2 w-full" />
+        </div>
+      )}
+      {notice && (
+        <p className="notice notice-warn" role="alert" data-testid="library-notice">
+          {notice}
+        </p>
+      )}
+      {problem && <p className="notice notice-warn">{problem}</p>}
+      {entries && entries.length === 0 && <p className="text-sm">The library is empty.</p>}
+      {entries && entries.length > 0 && (
+        <>
+          <ul className="grid gap-2" aria-label="Recordings in this browser">
+            {entries.map((e) => (
+              <li key={e.fingerprint} className="rounded border border-sand-deep bg-foam p-3 text-sm" data-testid="library-entry">
+                <div className="flex flex-wrap items-baseline justify-between gap-2">
+                  <span className="font-semibold break-all">{e.fileName}</span>
+                  <span className="font-mono text-xs">{formatBytes(e.sizeBytes)}</span>
+                </div>
+                <div className="font-mono text-xs text-ink-soft break-all" title={e.fingerprint}>
+                  SHA-256 {shortFingerprint(e.fingerprint)}
+                </div>
+                <div className="text-xs text-ink-soft">
+                  opened {new Date(e.openedAt).toLocaleString()} · {e.kind === 'csv' ? `sample matrix, ${e.csv?.sampleRateHz} Hz` : 'EDF'}
+                  {e.fingerprint === currentFingerprint && ' · open now'}
+                </div>
+                <div className="mt-2 flex flex-wrap gap-2">
+                  <button type="button" className="btn btn-quiet" disabled={busy} onClick={() => onReopen(e)} aria-label={`Reopen ${e.fileName}`}>
+                    Reopen
+                  </button>
+                  <button
+                    type="button"
+                    className="btn btn-quiet"
+                    aria-label={`Remove ${e.fileName} from this browser`}
+                    onClick={() => removeFromLibrary(e.fingerprint).then(refresh, (err: unknown) => setProblem(String(err)))}
+                  >
+                    Remove
+                  </button>
+                </div>
+              </li>
+            ))}
+          </ul>
+          {!confirmAll ? (
+            <button type="button" className="btn btn-quiet justify-self-start" onClick={() => setConfirmAll(true)}>
+              Remove all…
+            </button>
+          ) : (
+            <div className="notice notice-warn flex flex-wrap items-center gap-2" role="group" aria-label="Confirm removing all">
+              <span>Remove all {entries.length} recordings from this browser? The files on your disk are not touched.</span>
+              <button
+                type="button"
+                className="btn btn-primary"
+                onClick={() =>
+                  clearLibrary().then(
+                    () => {
+                      setConfirmAll(false);
+                      refresh();
+                    },
+                    (err: unknown) => setProblem(String(err)),
+                  )
+                }
+              >
+                Remove all
+              </button>
+              <button type="button" className="btn btn-quiet" onClick={() => setConfirmAll(false)}>
+                Keep them
+              </button>
+            </div>
+          )}
+        </>
+      )}
+    </div>
+  );
+}

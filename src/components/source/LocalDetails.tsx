@@ -1,0 +1,66 @@
+import type { Recording } from '../../lib/analysis/recording';
+import type { LocalRecordingInfo } from '../../stores/source';
+import { formatBytes, formatSeconds } from './format';
+
+/** The marker on everything that identifies a recording: it is shown here and never sent. */
+export function StaysLocal() {
+  return (
+    <span className="role-badge whitespace-nowrap border-kelp text-kelp-deep" title="Shown on this device only; never put into any request">
+      ⌂ stays on this device
+    </span>
+  );
+}
+
+interface Props {
+  recording: Recording;
+  local: LocalRecordingInfo;
+  fingerprint: string;
+  origin: string;
+}
+
+export default function LocalDetails({ recording, local, fingerprint, origin }: Props) {
+  const samples = recording.data[0]?.length ?? 0;
+  const rows: [string, React.ReactNode, boolean][] = [
+    ['File name', <span className="break-all">{local.fileName}</span>, true],
+  ];
+  if (local.identifying) {
+    rows.push(['Patient field', <span className="font-mono break-all" data-testid="patient-field">{local.identifying.patient || '(empty)'}</span>, true]);
+    rows.push(['Recording field', <span className="font-mono break-all">{local.identifying.recording || '(empty)'}</span>, true]);
+  }
+  if (local.startDateTime) rows.push(['Start', <span className="font-mono">{local.startDateTime}</span>, true]);
+  rows.push(['Format', `${local.format.toUpperCase()} · ${formatBytes(local.sizeBytes)} · ${origin}`, false]);
+  rows.push([
+    'Signals',
+    `${recording.channelNames.length} channels at ${recording.sampleRateHz} Hz · ${formatSeconds(samples / recording.sampleRateHz)} · ${recording.events.length} events`,
+    false,
+  ]);
+  if (recording.gapSampleIndices?.length) rows.push(['Gaps', `${recording.gapSampleIndices.length} (discontinuous recording)`, false]);
+  rows.push(['Fingerprint (SHA-256)', <span className="font-mono text-xs break-all" data-testid="fingerprint">{fingerprint}</span>, false]);
+  return (
+    <div className="grid gap-3">
+      <dl className="grid gap-x-4 gap-y-2 text-sm sm:grid-cols-[max-content_1fr]">
+        {rows.map(([term, value, local]) => (
+          <div key={term} className="contents">
+            <dt className="font-semibold">{term}</dt>
+            <dd className="flex flex-wrap items-baseline gap-2">
+              {value}
+              {local && <StaysLocal />}
+            </dd>
+          </div>
+        ))}
+      </dl>
+      <p className="text-xs text-ink-soft">
+        The server learns only the fingerprint and the subject code you type, when you create an analysis session. Channels:{' '}
+        <span className="font-mono">{recording.channelNames.join(', ')}</span>
+      </p>
+      {local.ignoredSignals.length > 0 && (
+        <p className="notice text-sm">Listed but not analysed (another sample rate): {local.ignoredSignals.join(', ')}</p>
+      )}
+      {local.warnings.map((w) => (
+        <p key={w} className="notice notice-warn text-sm" data-testid="intake-warning">
+          {w}
+        </p>
+      ))}
+    </div>
+  );
+}

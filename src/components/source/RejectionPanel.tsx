@@ -1,0 +1,148 @@
+import { useId, useState } from 'react';
+import { tallyByCondition } from '../../lib/analysis/rejection';
+import type { Recording } from '../../lib/analysis/recording';
+import type { EpochDecision, RejectionSettings } from '../../stores/source';
+import EpochTable from './EpochTable';
+
+interface Props {
+  recording: Recording;
+  rejection: RejectionSettings;
+  decisions: EpochDecision[];
+  overviewChannel: string;
+  onRejection: (patch: Partial<Omit<RejectionSettings, 'overrides'>>) => void;
+  onOverride: (eventIndex: number, decision: 'keep' | 'reject' | null) => void;
+  onSelect: (eventIndex: number) => void;
+}
+
+function NumberSetting(props: { id: string; label: string; value: number | null; fallback: number; onChange: (v: number | null) => void; hint: string }) {
+  const [text, setText] = useState(props.value === null ? String(props.fallback) : String(props.value));
+  const [error, setError] = useState<string | null>(null);
+  const on = props.value !== null;
+  const commit = (t: string) => {
+    const v = Number(t);
+    if (t.trim() === '' || !Number.isFinite(v) || v < 0) return setError('Enter a number of µV, zero or more.');
+    setError(null);
+    props.onChange(v);
+  };
+  return (
+    <div className="grid gap-1">
+      <div className="flex items-center gap-2 text-sm">
+        <input
+          type="checkbox"
+          id={`${props.id}-on`}
+          checked={on}
+          onChange={(e) => (e.target.checked ? commit(text) : props.onChange(null))}
+        />
+        <label htmlFor={`${props.id}-on`} className="font-semibold">
+          {props.label}
+        </label>
+      </div>
+      <div className="field">
+        <label htmlFor={props.id} className="text-xs text-ink-soft">
+          {props.hint}
+        </label>
+        <input
+          id={props.id}
+          inputMode="decimal"
+          className="w-32"
+          value={text}
+          disabled={!on}
+          aria-invalid={error !== null}
+          onChange={(e) => setText(e.target.value)}
+          onBlur={(e) => on && commit(e.target.value)}
+          onKeyDown={(e) => e.key === 'Enter' && on && commit((e.target as HTMLInputElement).value)}
+        />
+        {error && <p className="field-error">{error}</p>}
+      </div>
+    </div>
+  );
+}
+
+/** The rules (peak-to-peak, flat signal; all channels or chosen ones), the tally per condition and the table. */
+export default function RejectionPanel({ recording, rejection, decisions, overviewChannel, onRejection, onOverride, onSelect }: Props) {
+  const id = useId();
+  const tally = tallyByCondition(decisions.map((d) => ({ condition: d.condition, rejected: d.rejected, fit: d.fit ?? 'fits' })));
+  const chosen = rejection.channels ?? [];
+  return (
+    <div className="grid gap-4">
+      <div className="grid gap-4 sm:grid-cols-2">
+        <NumberSetting
+          id={`${id}-p2p`}
+          label="Peak-to-peak rule"
+          hint="Reject above (µV); 150 µV is a common rule of thumb"
+          value={rejection.peakToPeakMicrovolts}
+          fallback={150}
+          onChange={(v) => onRejection({ peakToPeakMicrovolts: v === 0 ? null : v })}
+        />
+        <NumberSetting
+          id={`${id}-flat`}
+          label="Flat-signal rule"
+          hint="Reject when the SD is below (µV)"
+          value={rejection.flatMicrovolts}
+          fallback={0.5}
+          onChange={(v) => onRejection({ flatMicrovolts: v })}
+        />
+      </div>
+      <fieldset className="grid gap-2 text-sm">
+        <legend className="font-semibold">Channels the rules check</legend>
+        <label className="flex items-center gap-2">
+          <input type="radio" name={`${id}-scope`} checked={rejection.scope === 'any'} onChange={() => onRejection({ scope: 'any' })} />
+          Across channels: any channel breaking a rule rejects the epoch
+        </label>
+        <label className="flex items-center gap-2">
+          <input
+            type="radio"
+            name={`${id}-scope`}
+            checked={rejection.scope === 'channel'}
+            onChange={() => onRejection({ scope: 'channel', channels: chosen.length > 0 ? chosen : [overviewChannel] })}
+          />
+          Per channel: only the channels picked here
+        </label>
+        {rejection.scope === 'channel' && (
+          <div className="field">
+            <label htmlFor={`${id}-channels`}>Checked channels (Ctrl/⌘ or Shift to pick several)</label>
+            <select
+              id={`${id}-channels`}
+              multiple
+              size={Math.min(8, recording.channelNames.length)}
+              value={chosen}
+              onChange={(e) => onRejection({ channels: [...e.target.selectedOptions].map((o) => o.value) })}
+            >
+              {recording.channelNames.map((n) => (
+                <option key={n}>{n}</option>
+              ))}
+            </select>
+          </div>
+        )}
+      </fieldset>
+
+      <div className="overflow-x-auto">
+        <table className="data-table" data-testid="condition-tally" aria-label="Epochs per condition">
+          <thead>
+            <tr>
+              <th scope="col">Condition</th>
+              <th scope="col">Epochs</th>
+              <th scope="col">Kept</th>
+              <th scope="col">Rejected</th>
+              <th scope="col">of which outside the recording</th>
+              <th scope="col">of which across a gap</th>
+            </tr>
+          </thead>
+          <tbody>
+            {tally.map((t) => (
+              <tr key={t.condition}>
+                <td className="font-semibold">{t.condition}</td>
+                <td className="font-mono">{t.total}</td>
+                <td className="font-mono">{t.kept}</td>
+                <td className="font-mono">{t.rejected}</td>
+                <td className="font-mono">{t.outside}</td>
+                <td className="font-mono">{t.gap}</td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </div>
+      <EpochTable decisions={decisions} onOverride={onOverride} onSelect={onSelect} />
+    </div>
+  );
+}
