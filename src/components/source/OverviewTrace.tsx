@@ -78,7 +78,7 @@ export default function OverviewTrace({ recording, decisions, epochWindow, chann
 
   const kept = decisions.filter((d) => !d.rejected).length;
   return (
-    <div className="grid gap-2">
+    <div className="grid min-w-0 gap-2">
       <div className="flex flex-wrap items-end gap-3">
         <div className="field">
           <label htmlFor={`${id}-channel`}>Channel shown</label>
@@ -102,12 +102,12 @@ export default function OverviewTrace({ recording, decisions, epochWindow, chann
           </li>
         </ul>
       </div>
-      <div ref={box} className="w-full">
+      <div ref={box} className="w-full min-w-0">
         <canvas
           ref={canvas}
           width={width}
           height={height}
-          style={{ width: `${widthCss}px`, height: `${HEIGHT_CSS}px` }}
+          style={{ width: '100%', height: `${HEIGHT_CSS}px` }}
           role="img"
           aria-label={`Overview of ${recording.channelNames[index]} over the whole recording: ${decisions.length} epochs, ${kept} kept, ${decisions.length - kept} rejected`}
           className="block rounded border border-sand-deep"

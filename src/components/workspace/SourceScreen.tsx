@@ -161,7 +161,7 @@ export default function SourceScreen(props: WorkspaceProps) {
   return (
     <div className="grid gap-6">
       <div className="grid gap-6 lg:grid-cols-[3fr_2fr]">
-        <section className="card grid content-start gap-4" aria-labelledby="source-open">
+        <section className="card grid min-w-0 content-start gap-4" aria-labelledby="source-open">
           <h2 id="source-open" className="text-lg font-semibold">
             Open a recording
           </h2>
@@ -178,7 +178,7 @@ export default function SourceScreen(props: WorkspaceProps) {
           )}
           {problem && <Problem fileName={problem.fileName} error={problem.error} onDismiss={() => setProblem(null)} />}
         </section>
-        <section className="card grid content-start gap-3" aria-labelledby="source-library">
+        <section className="card grid min-w-0 content-start gap-3" aria-labelledby="source-library">
           <h2 id="source-library" className="text-lg font-semibold">
             Library on this device
           </h2>
@@ -188,13 +188,13 @@ export default function SourceScreen(props: WorkspaceProps) {
 
       {recording && local && fingerprint ? (
         <>
-          <section className="card grid gap-3" aria-labelledby="source-details" data-testid="recording-details">
+          <section className="card grid min-w-0 gap-3" aria-labelledby="source-details" data-testid="recording-details">
             <h2 id="source-details" className="text-lg font-semibold">
               The recording <span className="text-sm font-normal text-ink-soft">({formatBytes(local.sizeBytes)})</span>
             </h2>
             <LocalDetails recording={recording} local={local} fingerprint={fingerprint} origin={origin} />
           </section>
-          <section className="card grid gap-3" aria-labelledby="source-conditions">
+          <section className="card grid min-w-0 gap-3" aria-labelledby="source-conditions">
             <h2 id="source-conditions" className="text-lg font-semibold">
               Events to conditions
             </h2>
@@ -208,7 +208,7 @@ export default function SourceScreen(props: WorkspaceProps) {
               onWindow={(w) => store().setEpochWindow(w)}
             />
           </section>
-          <section className="card grid gap-3" aria-labelledby="source-overview">
+          <section className="card grid min-w-0 gap-3" aria-labelledby="source-overview">
             <h2 id="source-overview" className="text-lg font-semibold">
               Epochs over the recording
             </h2>
@@ -222,7 +222,7 @@ export default function SourceScreen(props: WorkspaceProps) {
             />
           </section>
           {decisions.length > 0 && (
-            <section className="card grid gap-3" aria-labelledby="source-rejection">
+            <section className="card grid min-w-0 gap-3" aria-labelledby="source-rejection">
               <h2 id="source-rejection" className="text-lg font-semibold">
                 Epoch rejection
               </h2>
@@ -237,7 +237,7 @@ export default function SourceScreen(props: WorkspaceProps) {
               />
             </section>
           )}
-          <section className="card grid gap-3" aria-labelledby="source-session">
+          <section className="card grid min-w-0 gap-3" aria-labelledby="source-session">
             <h2 id="source-session" className="text-lg font-semibold">
               Analysis session
             </h2>

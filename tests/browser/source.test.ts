@@ -1,0 +1,238 @@
+import { createHash } from 'node:crypto';
+import fs from 'node:fs';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser, BrowserContext, Page, Request } from 'playwright-core';
+import { appUrl, artifactsDir, launchBrowser } from '../helpers/browser';
+import { DEMO_PEOPLE } from '../../src/db/seed';
+import { DEMO_PATIENT_FIELD, describeCohort, writeSubjectEdf, type SubjectParameters } from '../../src/lib/demo/cohort';
+import { bytesSource, openEdf } from '../../src/lib/formats';
+
+// A small recording from the demo generator (invented "Harbour Lights" scenario): 1 subject, 60 s, 32 channels.
+// The file name is our own, so we can prove it never reaches the server.
+const FILE_NAME = 'tm-privacy-check-61.edf';
+const BROKEN_NAME = 'tm-broken-header-62.edf';
+
+let browser: Browser;
+let close: () => Promise<void>;
+let subject: SubjectParameters;
+let bytes: Uint8Array;
+let recordingField: string;
+let sampleTexts: string[];
+
+beforeAll(async () => {
+  ({ browser, close } = await launchBrowser());
+  fs.mkdirSync(artifactsDir, { recursive: true });
+  subject = describeCohort({ subjects: 1, seconds: 60 }).subjects[0];
+  bytes = writeSubjectEdf(subject);
+  const edf = await openEdf(bytesSource(bytes));
+  recordingField = edf.identifying.recordingIdentification;
+  // Sample values as a page would print them (µV, one decimal: the file's digital step is 0.1 µV).
+  sampleTexts = [...edf.channels[0].samples.subarray(1000, 1010)].map((v) => v.toFixed(1)).filter((t) => t.replace('-', '').length >= 3);
+});
+afterAll(() => close());
+
+async function signIn(context: BrowserContext, role: 'analyst' | 'reviewer'): Promise<Page> {
+  const person = DEMO_PEOPLE.find((p) => p.role === role)!;
+  const page = await context.newPage();
+  await page.goto(`${appUrl}/sign-in`);
+  await page.getByLabel('E-mail').fill(person.email);
+  await page.getByLabel('Password').fill(person.password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL(/\/teams\/[0-9a-f-]+$/);
+  await page.getByTestId('study-list').getByRole('link', { name: 'Harbour-bell anticipation' }).click();
+  await page.getByRole('link', { name: 'Open the workspace' }).click();
+  await page.waitForURL(/\/workspace$/);
+  await page.getByTestId('drop-zone').waitFor();
+  return page;
+}
+
+/** A person dragging a file from their desktop: dragenter, dragover, drop with a DataTransfer holding a File. */
+async function dropFile(page: Page, name: string, data: Uint8Array) {
+  await page.evaluate(
+    ({ name, b64 }) => {
+      const binary = atob(b64);
+      const buf = new Uint8Array(binary.length);
+      for (let i = 0; i < binary.length; i++) buf[i] = binary.charCodeAt(i);
+      const transfer = new DataTransfer();
+      transfer.items.add(new File([buf], name, { type: 'application/octet-stream' }));
+      const zone = document.querySelector('[data-testid="drop-zone"]')!;
+      for (const type of ['dragenter', 'dragover', 'drop']) {
+        zone.dispatchEvent(new DragEvent(type, { bubbles: true, cancelable: true, dataTransfer: transfer }));
+      }
+    },
+    { name, b64: Buffer.from(data).toString('base64') },
+  );
+}
+
+interface Seen {
+  url: string;
+  headers: Record<string, string>;
+  body: Buffer | null;
+  method: string;
+}
+
+function recordRequests(context: BrowserContext): { seen: Seen[]; settle: () => Promise<void> } {
+  const seen: Seen[] = [];
+  const pending: Promise<void>[] = [];
+  const take = (r: Request) => {
+    pending.push(
+      r.allHeaders().then(
+        (headers) => void seen.push({ url: r.url(), headers, body: r.postDataBuffer(), method: r.method() }),
+        () => void seen.push({ url: r.url(), headers: r.headers(), body: r.postDataBuffer(), method: r.method() }),
+      ),
+    );
+  };
+  context.on('request', take);
+  return { seen, settle: async () => void (await Promise.all(pending)) };
+}
+
+describe('Source screen: a recording opened on this device', () => {
+  it('opens a dropped EDF+ file, maps labels to conditions, rejects the artifact epochs, creates the analysis session, and sends nothing identifying', async () => {
+    const context = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+    const { seen, settle } = recordRequests(context);
+    const page = await signIn(context, 'analyst');
+
+    await dropFile(page, FILE_NAME, bytes);
+    const details = page.getByTestId('recording-details');
+    await details.waitFor({ timeout: 30_000 });
+    // The header's patient field and the file name are shown here, marked as staying on the device.
+    expect(await page.getByTestId('patient-field').textContent()).toBe(DEMO_PATIENT_FIELD);
+    expect(await details.textContent()).toContain(FILE_NAME);
+    expect(await details.getByText('stays on this device').count()).toBeGreaterThanOrEqual(2);
+    expect(await details.textContent()).toContain('32 channels at 500 Hz');
+    // Fingerprint: SHA-256 of the bytes, checked against Node's own implementation (node:crypto).
+    expect(await page.getByTestId('fingerprint').textContent()).toBe(createHash('sha256').update(bytes).digest('hex'));
+
+    // Labels with counts: the generator puts 12 cues of each condition in 60 s (cohort.ts: ~60 per 5 minutes).
+    const labelsTable = page.getByRole('table', { name: 'Event labels' });
+    expect(await labelsTable.textContent()).toContain('lamp-watch');
+    await page.getByLabel('Pick label lamp-watch').check();
+    await page.getByLabel('Condition name').fill('lamp');
+    await page.getByRole('button', { name: 'Make condition from picked labels' }).click();
+    await page.getByLabel('Pick label oar-pull').check();
+    await page.getByLabel('Condition name').fill('oar');
+    await page.getByRole('button', { name: 'Make condition from picked labels' }).click();
+    expect(await page.getByTestId('condition').count()).toBe(2);
+
+    // The generator documents which epochs carry artifacts (cohort.json / SubjectParameters.artifacts): each
+    // is a step or spike of ≥ 250 µV or a flat stretch inside the default −0.5…1.5 s window, so each is rejected.
+    const rows = page.getByTestId('epoch-row');
+    await rows.first().waitFor();
+    expect(await rows.count()).toBe(subject.events.length);
+    expect(subject.artifacts.length).toBeGreaterThan(0);
+    for (const artifact of subject.artifacts) {
+      const row = page.locator(`[data-testid="epoch-row"][data-event-index="${artifact.eventIndex}"]`);
+      expect(await row.getAttribute('data-verdict'), `${artifact.kind} artifact on event ${artifact.eventIndex}`).toBe('rejected');
+      expect(await row.textContent()).toMatch(artifact.kind === 'flat' ? /flat on/ : /peak-to-peak \d+ µV/);
+    }
+    // The clean background (RMS 8–12 µV) stays well under 150 µV, so most epochs are kept.
+    const kept = await page.locator('[data-testid="epoch-row"][data-verdict="kept"]').count();
+    expect(kept).toBeGreaterThanOrEqual(subject.events.length - 2 * subject.artifacts.length - 2);
+    expect(await page.getByRole('img', { name: /Overview of Fp1 .* rejected/ }).count()).toBe(1);
+
+    // A manual decision overrides the rules, and can be returned to them.
+    const first = subject.artifacts[0].eventIndex;
+    await page.getByLabel(`Decision for event ${first + 1}`).selectOption('keep');
+    expect(await page.locator(`[data-testid="epoch-row"][data-event-index="${first}"]`).getAttribute('data-verdict')).toBe('kept');
+    await page.getByLabel(`Decision for event ${first + 1}`).selectOption('rules');
+    expect(await page.locator(`[data-testid="epoch-row"][data-event-index="${first}"]`).getAttribute('data-verdict')).toBe('rejected');
+
+    // A name is refused on this device before anything is sent; a code goes through.
+    const postsBefore = seen.filter((s) => s.method === 'POST').length;
+    await page.getByLabel('Subject code').fill('Harriet');
+    await page.getByRole('button', { name: 'Create analysis session' }).click();
+    expect(await page.getByTestId('session-problem').textContent()).toContain('never a name');
+    await settle();
+    expect(seen.filter((s) => s.method === 'POST').length).toBe(postsBefore);
+    await page.getByLabel('Subject code').fill('TM-S61');
+    await page.getByRole('button', { name: 'Create analysis session' }).click();
+    expect(await page.getByTestId('session-created').textContent()).toContain('TM-S61');
+
+    // The Outbound screen shows the exact body this tab sent.
+    await page.getByRole('tab', { name: 'Outbound' }).click();
+    const log = await page.getByTestId('outbound-log').textContent();
+    expect(log).toContain(`{"subjectCode":"TM-S61","fingerprint":"${createHash('sha256').update(bytes).digest('hex')}"}`);
+    await page.getByRole('tab', { name: 'Source' }).click();
+
+    // 200 % zoom (a 640 CSS px viewport): the screen reflows without sideways scrolling.
+    await page.setViewportSize({ width: 640, height: 800 });
+    await page.waitForTimeout(200);
+    const overflow = await page.evaluate(() => {
+      const over = [...document.querySelectorAll('body *')]
+        .filter((el) => el.getBoundingClientRect().right > window.innerWidth + 1)
+        .slice(0, 5)
+        .map((el) => `${el.tagName.toLowerCase()}.${el.className}`);
+      return { by: document.documentElement.scrollWidth - window.innerWidth, over };
+    });
+    expect(overflow.by, `wider than the window: ${overflow.over.join(' | ')}`).toBeLessThanOrEqual(0);
+    await page.screenshot({ path: path.join(artifactsDir, 'source-screen-narrow.png'), fullPage: true });
+    await page.setViewportSize({ width: 1280, height: 900 });
+    await page.screenshot({ path: path.join(artifactsDir, 'source-screen.png'), fullPage: true });
+
+    // A damaged file: truncated by 1000 bytes. The message names the field and byte offset (the data record
+    // count sits at byte 236 of the fixed header, Kemp et al., 1992, Table 1), and nothing else changes.
+    expect(await page.getByTestId('library-entry').count()).toBe(1);
+    await dropFile(page, BROKEN_NAME, bytes.slice(0, bytes.length - 1000));
+    const problem = page.getByTestId('intake-problem');
+    await problem.waitFor();
+    const text = (await problem.textContent()) ?? '';
+    expect(text).toContain(BROKEN_NAME);
+    expect(text).toContain('data record count');
+    expect(text).toMatch(/Byte offset\s*236/);
+    expect(await page.getByTestId('library-entry').count()).toBe(1);
+    expect(await page.getByTestId('patient-field').textContent()).toBe(DEMO_PATIENT_FIELD);
+    expect(await page.getByTestId('epoch-row').count()).toBe(subject.events.length);
+
+    // Every request of the whole visit: none carries the patient field, the recording field, the file names or
+    // sample data (URLs, headers and bodies; bodies are small JSON with only the two allowed keys).
+    await settle();
+    expect(seen.length).toBeGreaterThan(5);
+    const forbidden = [DEMO_PATIENT_FIELD, recordingField.trim(), FILE_NAME, BROKEN_NAME, 'DEMO-ONLY-NOT-A-PERSON'];
+    for (const r of seen) {
+      const where = `${r.method} ${r.url}`;
+      const headerText = Object.entries(r.headers).map(([k, v]) => `${k}: ${v}`).join('\n');
+      for (const s of forbidden) {
+        expect(decodeURIComponent(r.url).includes(s), `${where} URL carries "${s}"`).toBe(false);
+        expect(headerText.includes(s), `${where} headers carry "${s}"`).toBe(false);
+        expect(r.body?.toString('latin1').includes(s) ?? false, `${where} body carries "${s}"`).toBe(false);
+      }
+      if (r.body !== null && r.body.length > 0) {
+        expect(r.body.length, `${where} body size`).toBeLessThan(1024);
+        if (new URL(r.url).pathname === '/sign-in') continue; // the sign-in form, before the workspace opened
+        const json = JSON.parse(r.body.toString('utf8')) as Record<string, unknown>;
+        for (const key of Object.keys(json)) expect(['subjectCode', 'fingerprint'], `${where} body key`).toContain(key);
+        for (const t of sampleTexts) expect(r.body.toString('utf8').includes(t), `${where} body carries sample ${t}`).toBe(false);
+      }
+    }
+    expect(seen.filter((s) => s.method === 'POST').map((s) => new URL(s.url).pathname).filter((p) => p !== '/sign-in')).toEqual([expect.stringMatching(/^\/api\/studies\/[0-9a-f-]+\/analysis-sessions$/)]);
+    await context.close();
+  });
+
+  it('shows the server’s 403 clearly when a reviewer tries to create an analysis session', async () => {
+    const context = await browser.newContext();
+    const page = await signIn(context, 'reviewer');
+    await dropFile(page, FILE_NAME, bytes);
+    await page.getByTestId('recording-details').waitFor({ timeout: 30_000 });
+    await page.getByLabel('Subject code').fill('TM-S61');
+    await page.getByRole('button', { name: 'Create analysis session' }).click();
+    const problem = await page.getByTestId('session-problem').textContent();
+    expect(problem).toContain('Not allowed');
+    expect(problem).toContain('reviewer');
+    await context.close();
+  });
+
+  it('lists the generated demo cohort and serves only its own files', async () => {
+    const context = await browser.newContext();
+    const page = await signIn(context, 'analyst');
+    const picker = page.getByLabel(/Demo cohort/);
+    await picker.waitFor();
+    expect(await picker.locator('option').count()).toBeGreaterThan(0);
+    for (const probe of ['..%2Fpackage.json', '%2E%2E%2F.env', '.gitignore', 'cohort.json%00.edf']) {
+      const response = await page.request.get(`${appUrl}/demo/${probe}`);
+      expect(response.status(), probe).toBe(404);
+    }
+    expect((await page.request.get(`${appUrl}/demo/cohort.json`)).status()).toBe(200);
+    await context.close();
+  });
+});
