@@ -62,6 +62,7 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
   const out = new Float64Array(2 * maxBand);
   const row = new Float64Array(L);
   const trialScope = baseline.scope === 'trial';
+  const keepRow = trialScope || job.singleTrials === true;
   const { first, last, method } = baseline;
 
   let totalEpochs = 0;
@@ -94,7 +95,7 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
         const weights = bank.weights[f];
         const residues = bank.sizes[f] / bank.bandSizes[f];
         for (let b = 0; b < nb; b++) {
-          bandPower(sum, off, row, L, spectra[b], bins, weights, residues, band, work, out);
+          bandPower(sum, off, keepRow ? row : null, L, spectra[b], bins, weights, residues, band, work, out);
           if (normSum !== null) accumulateNormalized(normSum, off, row, L, method, first, last);
           if (single !== null) single.set(row, ((e0 + b) * nf + f) * L);
         }
@@ -124,7 +125,7 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
 function bandPower(
   sum: Float64Array,
   off: number,
-  row: Float64Array,
+  row: Float64Array | null,
   length: number,
   spectrum: Float64Array,
   bins: Int32Array,
@@ -152,12 +153,21 @@ function bandPower(
       work[2 * q + 1] = xr * vi + xi * vr;
     }
     fft.transform(out, work);
-    for (let q = 0, j = r; q < m && j < length; q++, j += residues) {
-      const re = out[2 * q];
-      const im = out[2 * q + 1];
-      const p = re * re + im * im;
-      row[j] = p;
-      sum[off + j] += p;
+    const count = Math.min(m, Math.ceil((length - r) / residues));
+    if (row === null) {
+      for (let q = 0, j = off + r; q < count; q++, j += residues) {
+        const re = out[2 * q];
+        const im = out[2 * q + 1];
+        sum[j] += re * re + im * im;
+      }
+    } else {
+      for (let q = 0, j = r; q < count; q++, j += residues) {
+        const re = out[2 * q];
+        const im = out[2 * q + 1];
+        const p = re * re + im * im;
+        row[j] = p;
+        sum[off + j] += p;
+      }
     }
   }
 }

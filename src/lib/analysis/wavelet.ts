@@ -49,7 +49,8 @@ export interface MorletWavelet {
 }
 
 /**
- * Complex Morlet wavelet `w(t) = c·exp(2πi f t)·exp(−t²/(2σ²))` sampled at `t = k/fs`, `|k| ≤ ⌈5σ·fs⌉`.
+ * Complex Morlet wavelet `w(t) = c·exp(2πi f t)·exp(−t²/(2σ²))` sampled at `t = k/fs`, `|k| ≤ halfWidth`
+ * (default ⌈5σ·fs⌉, the contract's minimum support).
  * `c = 2/Σ_k exp(−t_k²/(2σ²))`: convolving `A·cos(2πft)` gives `|y| = (A/2)·c·Σ g = A`, so a steady sinusoid of
  * amplitude A µV yields power A² µV² (analysis contract, "Complex Morlet wavelet power"); the negative-frequency
  * half contributes `exp(−2n²)` relative, under 2e-8 for n ≥ 3 cycles.
@@ -58,9 +59,8 @@ export function morletWavelet(
   frequencyHz: number,
   sigmaSeconds: number,
   sampleRateHz: number,
-  supportSigmas = 5,
+  halfWidth = Math.ceil(5 * sigmaSeconds * sampleRateHz),
 ): MorletWavelet {
-  const halfWidth = Math.ceil(supportSigmas * sigmaSeconds * sampleRateHz);
   const length = 2 * halfWidth + 1;
   const re = new Float64Array(length);
   const im = new Float64Array(length);
@@ -89,8 +89,11 @@ export function morletWavelet(
  * taken every `fftSize/N_i` bins, so one forward FFT per epoch serves all frequencies.
  *
  * The inverse exploits the wavelet's narrow band. Only the `M_i` bins `k0 … k0+M_i−1` around the centre frequency
- * where |W| ≥ 1e-13·max|W| are kept (the Gaussian spectrum falls below that 7.7 spectral SDs out; the time-domain
- * cut at 5σ the contract asks for already changes power by ~1e-6, far more). Writing output j = q·R + r with
+ * that hold every bin with |W| ≥ 1e-13·max|W| are kept. The FFT size is set by the contract's minimum support of
+ * 5σ; within it the wavelet extends toward 8σ, where the Gaussian is exp(−32) ≈ 1e-14, so its spectrum (Gaussian
+ * of SD f/n, convolved with the truncation's sidelobes) is band-limited to that floor; a wavelet that cannot reach
+ * far enough keeps sidelobes above the floor and simply keeps its whole spectrum (M = N). Dropped bins change power
+ * by at most ~1e-13 relative, far below the ~1e-6 the contract's own 5σ cut allows. Writing output j = q·R + r with
  * R = N/M, `|y[j]| = |Σ_m conj(X[k0+m])·V_r[m]·exp(−2πi q m/M)|` with `V_r[m] = conj(W[k0+m])·exp(−2πi r m/N)/N`,
  * i.e. R forward transforms of size M replace one inverse of size N (|IFFT(Z)| = |FFT(conj Z)|/N drops the
  * phase). `weights` holds V as `[r][m]` interleaved complex; `bins` the interleaved index of bin k0+m in the
@@ -138,10 +141,14 @@ function buildWaveletBank(frequencies: Float64Array, sigmas: Float64Array, sampl
   const wavelets: MorletWavelet[] = [];
   let fftSize = 2;
   for (let i = 0; i < count; i++) {
-    const w = morletWavelet(frequencies[i], sigmas[i], sampleRateHz, BANK_SUPPORT_SIGMAS);
+    // The FFT size comes from the contract's 5σ support; the wavelet then runs as far toward 8σ as that size
+    // allows without wrap, which makes the spectrum band-limited to 1e-13 whenever 8σ fits.
+    const h5 = Math.ceil(5 * sigmas[i] * sampleRateHz);
+    sizes[i] = nextPowerOfTwo(epochSamples + h5);
+    const h = Math.max(h5, Math.min(Math.ceil(BANK_SUPPORT_SIGMAS * sigmas[i] * sampleRateHz), sizes[i] - epochSamples));
+    const w = morletWavelet(frequencies[i], sigmas[i], sampleRateHz, h);
     wavelets.push(w);
-    halfWidths[i] = w.halfWidth;
-    sizes[i] = nextPowerOfTwo(epochSamples + w.halfWidth);
+    halfWidths[i] = h;
     if (sizes[i] > fftSize) fftSize = sizes[i];
   }
   const bandSizes = new Int32Array(count);
@@ -170,11 +177,19 @@ function buildWaveletBank(frequencies: Float64Array, sigmas: Float64Array, sampl
         peakBin = k;
       }
     }
+    // the band reaches the farthest bin at or above the floor on either side (sidelobes included, not just the
+    // first dip below it)
     const floor = BAND_FLOOR * peak;
     let below = 0;
-    while (below < n / 2 && magnitudeAt(spectrum, n, peakBin - below - 1) >= floor) below++;
     let above = 0;
-    while (above < n / 2 && magnitudeAt(spectrum, n, peakBin + above + 1) >= floor) above++;
+    for (let k = 0; k < n; k++) {
+      let d = k - peakBin;
+      if (d > n / 2) d -= n;
+      if (d <= -n / 2) d += n;
+      if (Math.hypot(spectrum[2 * k], spectrum[2 * k + 1]) < floor) continue;
+      if (d < 0 && -d > below) below = -d;
+      if (d > 0 && d > above) above = d;
+    }
     const m = Math.min(n, nextPowerOfFour(below + above + 1));
     const k0 = m === n ? 0 : peakBin - Math.floor(m / 2);
     const r = n / m;
@@ -208,7 +223,3 @@ function nextPowerOfFour(n: number): number {
   return p;
 }
 
-function magnitudeAt(spectrum: Float64Array, n: number, k: number): number {
-  const idx = ((k % n) + n) % n;
-  return Math.hypot(spectrum[2 * idx], spectrum[2 * idx + 1]);
-}
