@@ -1,5 +1,283 @@
+import { useEffect, useLayoutEffect, useMemo, useRef, useState } from 'react';
 import type { WorkspaceProps } from './types';
+import type { BaselineMethod } from '../../lib/analysis/baseline';
+import { divergingColormap, sequentialColormap } from '../../lib/plot/colormap';
+import { extentLimits, methodUnit, neutralValue, symmetricLimits, type ColourScale } from '../../lib/plot/colour-scale';
+import type { PanelSpec } from '../../lib/plot/panel';
+import { explorerWorker } from '../../lib/client/explorer-worker';
+import { useResultsStore, selectActive, ensureTrials } from '../../stores/results';
+import { useViewStore } from '../../stores/view';
+import { useSourceStore } from '../../stores/source';
+import MapPanel, { type Cell } from '../explorer/MapPanel';
+import NumberField from '../explorer/NumberField';
+import Choice from '../explorer/Choice';
+import { averageNormalized, baselinePoints, baselineWarnings, difference, snapToGrid } from '../explorer/map-model';
+import { renderMapsPng } from '../explorer/export-maps';
+import { downloadBlob, fileSafe } from '../explorer/download';
+import { installTestHooks } from '../explorer/test-hooks';
 
+installTestHooks();
+
+const METHODS: { value: BaselineMethod; label: string }[] = [
+  { value: 'db', label: 'dB' },
+  { value: 'percent', label: 'percent' },
+  { value: 'zscore', label: 'z-score' },
+  { value: 'ratio', label: 'ratio' },
+];
+
+interface TrialMaps {
+  key: string;
+  first: number;
+  last: number;
+  method: BaselineMethod;
+  maps: Float64Array[];
+}
+
+function fmtValue(v: number): string {
+  if (!Number.isFinite(v)) return String(v);
+  const a = Math.abs(v);
+  return a !== 0 && (a >= 1e5 || a < 1e-3) ? v.toExponential(3) : Number(v.toPrecision(4)).toString();
+}
+
+/** Raw and normalized time-frequency maps side by side, with the live baseline window. */
 export default function MapsScreen(_props: WorkspaceProps) {
-  return <p className="text-ink-soft">The Maps screen is not built yet.</p>;
+  const d = useResultsStore(selectActive);
+  const trialHold = useResultsStore((s) => s.trialHold);
+  const channel = useViewStore((s) => s.channel);
+  const condition = useViewStore((s) => s.condition);
+  const compareTo = useViewStore((s) => s.compareTo);
+  const baseline = useViewStore((s) => s.baseline);
+  const method = useViewStore((s) => s.method);
+  const scope = useViewStore((s) => s.scope);
+  const rawScale = useViewStore((s) => s.rawScale);
+  const setView = useViewStore((s) => s.set);
+  const setBaseline = useViewStore((s) => s.setBaseline);
+  const [cursor, setCursor] = useState<Cell | null>(null);
+  const [trialMaps, setTrialMaps] = useState<TrialMaps | null>(null);
+  const buffers = useRef<{ a: Float64Array; b: Float64Array; diff: Float64Array; rawDiff: Float64Array } | null>(null);
+
+  const ci = d === null ? -1 : Math.max(0, channel === null ? 0 : d.channels.indexOf(channel));
+  const ch = d === null ? null : d.channels[ci];
+  const a = d === null ? -1 : Math.max(0, condition === null ? 0 : d.labels.indexOf(condition));
+  const bRaw = d === null || compareTo === null ? -1 : d.labels.indexOf(compareTo);
+  const b = bRaw === a ? -1 : bRaw;
+  const points = d === null ? { first: 0, last: 0 } : baselinePoints(d, baseline);
+  const holdKey = d === null || ch === null ? null : `${d.key}|${ch}`;
+
+  // Keep the view's selection valid for the shown decomposition.
+  useEffect(() => {
+    if (d === null) return;
+    const patch: Parameters<typeof setView>[0] = {};
+    if (channel === null || !d.channels.includes(channel)) patch.channel = d.channels[0];
+    if (condition === null || !d.labels.includes(condition)) patch.condition = d.labels[0];
+    if (compareTo !== null && !d.labels.includes(compareTo)) patch.compareTo = null;
+    if (Object.keys(patch).length > 0) setView(patch);
+  }, [d, channel, condition, compareTo, setView]);
+
+  // Single-trial scope: the worker holds this channel's trials; ask it for the maps whenever the baseline moves.
+  useEffect(() => {
+    if (d === null || ch === null || scope !== 'trial') return;
+    const recording = useSourceStore.getState().analysisRecording();
+    if (recording !== null) void ensureTrials(d, ch, recording);
+  }, [d, ch, scope]);
+  const pending = useRef<{ busy: boolean; next: { key: string; first: number; last: number; method: BaselineMethod } | null }>({ busy: false, next: null });
+  useEffect(() => {
+    if (scope !== 'trial' || holdKey === null || trialHold?.key !== holdKey || trialHold.status !== 'ready') return;
+    pending.current.next = { key: holdKey, first: points.first, last: points.last, method };
+    if (pending.current.busy) return;
+    const pump = async () => {
+      pending.current.busy = true;
+      while (pending.current.next !== null) {
+        const job = pending.current.next;
+        pending.current.next = null;
+        const maps = await explorerWorker().renormalize(job.key, job.first, job.last, job.method);
+        if (maps !== null) setTrialMaps({ ...job, maps });
+      }
+      pending.current.busy = false;
+    };
+    void pump();
+  }, [scope, holdKey, trialHold, points.first, points.last, method]);
+
+  const nf = d === null ? 0 : d.frequencies.length;
+  const nt = d === null ? 0 : d.times.length;
+  if (d !== null && (buffers.current === null || buffers.current.a.length !== nf * nt)) {
+    const n = nf * nt;
+    buffers.current = { a: new Float64Array(n), b: new Float64Array(n), diff: new Float64Array(n), rawDiff: new Float64Array(n) };
+  }
+
+  const rawSpec = useMemo((): PanelSpec | null => {
+    if (d === null || buffers.current === null) return null;
+    const pa = d.power[ci][a];
+    const values = b >= 0 ? difference(new Float64Array(nf * nt), pa, d.power[ci][b]) : pa;
+    const scale: ColourScale = b >= 0 ? { domain: symmetricLimits(values, 0, d.mask), kind: 'linear' } : { domain: extentLimits(values, rawScale, d.mask), kind: rawScale };
+    return {
+      title: b >= 0 ? `Raw power ${d.labels[a]} − ${d.labels[b]} · ${ch}` : `Raw power · ${d.labels[a]} · ${ch}`,
+      unit: 'µV²',
+      values,
+      times: d.times,
+      frequencies: d.frequencies,
+      spacing: d.spacing,
+      edges: d.edges,
+      colormap: b >= 0 ? divergingColormap() : sequentialColormap(),
+      scale,
+    };
+  }, [d, ci, a, b, rawScale, ch, nf, nt]);
+
+  let normValues: Float64Array | null = null;
+  let normFresh = true;
+  if (d !== null && buffers.current !== null) {
+    const buf = buffers.current;
+    if (scope === 'average') {
+      const na = averageNormalized(buf.a, d.power[ci][a], nt, points, method);
+      normValues = b >= 0 ? difference(buf.diff, na, averageNormalized(buf.b, d.power[ci][b], nt, points, method)) : na;
+    } else if (trialMaps !== null && trialMaps.key === holdKey) {
+      normFresh = trialMaps.first === points.first && trialMaps.last === points.last && trialMaps.method === method;
+      const na = trialMaps.maps[a];
+      normValues = b >= 0 ? difference(buf.diff, na, trialMaps.maps[b]) : na;
+    }
+  }
+  const neutral = b >= 0 ? 0 : neutralValue(method);
+  const normSpec: PanelSpec | null =
+    d === null || normValues === null
+      ? null
+      : {
+          title: `${b >= 0 ? `${d.labels[a]} − ${d.labels[b]}` : d.labels[a]} · ${METHODS.find((m) => m.value === method)!.label} · ${scope === 'trial' ? 'single-trial' : 'trial-average'} · ${ch}`,
+          unit: methodUnit(method),
+          values: normValues,
+          times: d.times,
+          frequencies: d.frequencies,
+          spacing: d.spacing,
+          edges: d.edges,
+          colormap: divergingColormap(),
+          scale: { domain: symmetricLimits(normValues, neutral, d.mask), kind: 'linear' },
+        };
+
+  // Both panels have painted (children's layout effects run first): close the User Timing measure.
+  useLayoutEffect(() => {
+    if (normSpec === null || !normFresh) return;
+    if (performance.getEntriesByName('tidemark:baseline-input', 'mark').length === 0) return;
+    performance.measure('tidemark:renormalize', 'tidemark:baseline-input');
+    performance.clearMarks('tidemark:baseline-input');
+  });
+
+  if (d === null) {
+    return (
+      <div className="card p-4" data-testid="maps-empty">
+        <p>No decomposition yet. Open a recording on the Source screen, then run a recipe on the Recipe screen.</p>
+      </div>
+    );
+  }
+  const warnings = baselineWarnings(d, points, baseline.end, method);
+  const dt = 1 / d.sampleRateHz;
+  const snap = (s: number) => snapToGrid(d, s);
+  const cell = cursor;
+  const readout =
+    cell === null || rawSpec === null
+      ? null
+      : { t: d.times[cell.t], f: d.frequencies[cell.f], raw: rawSpec.values[cell.f * nt + cell.t], norm: normValues === null ? NaN : normValues[cell.f * nt + cell.t] };
+
+  const exportPng = async () => {
+    if (rawSpec === null || normSpec === null) return;
+    const caption = `${ch} · baseline ${baseline.start} to ${baseline.end} s · ${method} · ${scope} scope · Tidemark`;
+    const blob = await renderMapsPng({ ...rawSpec, baseline }, { ...normSpec, baseline }, caption);
+    downloadBlob(blob, `maps-${fileSafe(ch ?? 'channel')}-${fileSafe(d.labels[a])}${b >= 0 ? `-minus-${fileSafe(d.labels[b])}` : ''}-${method}.png`);
+  };
+  const exportRecipe = () => {
+    const recipe = { ...d.recipe, baseline: { start: baseline.start, end: baseline.end, method, scope } };
+    downloadBlob(new Blob([JSON.stringify(recipe, null, 2) + '\n'], { type: 'application/json' }), 'recipe.json');
+  };
+
+  return (
+    <div className="flex flex-col gap-4" data-testid="maps-screen">
+      <div className="card flex flex-wrap items-end gap-4 p-3">
+        <label className="flex flex-col gap-0.5 text-xs text-ink-soft">
+          Channel
+          <select className="rounded-sm border border-shell bg-foam px-2 py-1 text-sm text-ink" value={ch ?? ''} onChange={(e) => setView({ channel: e.target.value })} data-testid="maps-channel">
+            {d.channels.map((c) => (
+              <option key={c}>{c}</option>
+            ))}
+          </select>
+        </label>
+        <label className="flex flex-col gap-0.5 text-xs text-ink-soft">
+          Condition (A)
+          <select className="rounded-sm border border-shell bg-foam px-2 py-1 text-sm text-ink" value={d.labels[a]} onChange={(e) => setView({ condition: e.target.value })} data-testid="maps-condition">
+            {d.labels.map((l, i) => (
+              <option key={l} value={l}>
+                {l} ({d.trials[i]} trials)
+              </option>
+            ))}
+          </select>
+        </label>
+        <label className="flex flex-col gap-0.5 text-xs text-ink-soft">
+          Difference (A − B)
+          <select className="rounded-sm border border-shell bg-foam px-2 py-1 text-sm text-ink" value={b >= 0 ? d.labels[b] : ''} onChange={(e) => setView({ compareTo: e.target.value === '' ? null : e.target.value })} data-testid="maps-compare">
+            <option value="">none: A alone</option>
+            {d.labels.map((l, i) =>
+              i === a ? null : (
+                <option key={l} value={l}>
+                  minus {l}
+                </option>
+              ),
+            )}
+          </select>
+        </label>
+        <Choice legend="Method" value={method} options={METHODS} onChange={(m) => setView({ method: m })} />
+        <Choice legend="Scope" value={scope} options={[{ value: 'average', label: 'trial average' }, { value: 'trial', label: 'single trial' }]} onChange={(s) => setView({ scope: s })} />
+        <Choice legend="Raw colour scale" value={rawScale} options={[{ value: 'log', label: 'log' }, { value: 'linear', label: 'linear' }]} onChange={(s) => setView({ rawScale: s })} />
+        <NumberField label="Baseline start" unit="s" value={baseline.start} step={dt} testId="baseline-start" onValue={(v) => setBaseline({ start: snap(Math.min(v, baseline.end)), end: baseline.end })} />
+        <NumberField label="Baseline end" unit="s" value={baseline.end} step={dt} testId="baseline-end" onValue={(v) => setBaseline({ start: baseline.start, end: snap(Math.max(v, baseline.start)) })} />
+        <div className="flex gap-2">
+          <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale" onClick={() => void exportPng()} data-testid="export-png">
+            Export PNG
+          </button>
+          <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale" onClick={exportRecipe} data-testid="export-recipe">
+            Export recipe JSON
+          </button>
+        </div>
+      </div>
+      {scope === 'trial' && trialHold?.key === holdKey && trialHold.status !== 'ready' && (
+        <p className={trialHold.status === 'failed' ? 'text-coral-deep' : 'text-ink-soft'} role="status">
+          {trialHold.message}
+        </p>
+      )}
+      <div className="grid grid-cols-1 gap-4 2xl:grid-cols-2">
+        {rawSpec !== null && (
+          <div className="card p-2">
+            <MapPanel testId="map-raw" spec={rawSpec} baseline={baseline} dt={dt} snap={snap} onBaseline={setBaseline} focusable={false} cursor={cursor} onCursor={setCursor} />
+          </div>
+        )}
+        <div className="card p-2">
+          {normSpec !== null ? (
+            <MapPanel testId="map-normalized" spec={normSpec} baseline={baseline} dt={dt} snap={snap} onBaseline={setBaseline} focusable cursor={cursor} onCursor={setCursor} warnings={warnings} />
+          ) : (
+            <p className="p-4 text-ink-soft">Preparing single-trial maps…</p>
+          )}
+        </div>
+      </div>
+      <output
+        className="card block p-2 font-mono text-sm"
+        data-testid="map-readout"
+        data-time={readout?.t}
+        data-frequency={readout?.f}
+        data-raw={readout?.raw}
+        data-normalized={readout?.norm}
+        data-fresh={normFresh ? 'yes' : 'no'}
+      >
+        {readout === null
+          ? 'Point at a map (or focus it and use the arrow keys) to read time, frequency and value.'
+          : `t ${Number(readout.t.toFixed(4))} s · f ${Number(readout.f.toPrecision(4))} Hz · raw ${fmtValue(readout.raw)} µV² · normalized ${fmtValue(readout.norm)} ${methodUnit(method)}`}
+      </output>
+      {d.warnings.length > 0 && (
+        <ul className="text-sm text-coral-deep">
+          {d.warnings.map((w) => (
+            <li key={w}>{w}</li>
+          ))}
+        </ul>
+      )}
+      <p className="text-xs text-ink-soft">
+        Hatched: the edge zone, where the wavelet at that frequency overlaps the epoch's edge (3σ). Dashed line: the event at 0 s. Colour limits are
+        symmetric around the method's neutral value and leave edge-zone cells out.
+      </p>
+    </div>
+  );
 }

@@ -1,5 +1,247 @@
+import { useMemo } from 'react';
 import type { WorkspaceProps } from './types';
+import { AnalysisInputError } from '../../lib/analysis/errors';
+import { planRecipe } from '../../lib/analysis/run-recipe';
+import { decompositionKey, toRecipe, useRecipeStore, type CyclesMode } from '../../stores/recipe';
+import { cancelDecomposition, recordingIdOf, runDecomposition, useResultsStore } from '../../stores/results';
+import { useSourceStore } from '../../stores/source';
+import { useViewStore } from '../../stores/view';
+import NumberField from '../explorer/NumberField';
+import { usePanelVisible } from '../explorer/usePanelVisible';
+import Choice from '../explorer/Choice';
 
+/** Which input shows a core error for `field` (a dotted recipe path). */
+function fieldGroup(field: string): string {
+  if (field.startsWith('channels')) return 'channels';
+  if (field.startsWith('epochs.events')) return 'conditions';
+  if (field.startsWith('cycles')) return 'cycles';
+  if (field.startsWith('baseline')) return 'baseline';
+  return field;
+}
+
+/** The Recipe screen: the decomposition's parameters, validated against the open recording, and its run. */
 export default function RecipeScreen(_props: WorkspaceProps) {
-  return <p className="text-ink-soft">The Recipe screen is not built yet.</p>;
+  const draft = useRecipeStore((s) => s.draft);
+  const run = useRecipeStore((s) => s.run);
+  const setDraft = useRecipeStore((s) => s.setDraft);
+  const recording = useSourceStore((s) => s.recording);
+  const fingerprint = useSourceStore((s) => s.fingerprint);
+  const conditions = useSourceStore((s) => s.conditions);
+  const epochWindow = useSourceStore((s) => s.epochWindow);
+  const decisions = useSourceStore((s) => s.decisions);
+  const baseline = useViewStore((s) => s.baseline);
+  const method = useViewStore((s) => s.method);
+  const scope = useViewStore((s) => s.scope);
+  const viewChannel = useViewStore((s) => s.channel);
+  const cache = useResultsStore((s) => s.cache);
+  const activeKey = useResultsStore((s) => s.activeKey);
+  // Hidden, the screen skips validation: the baseline it reads changes on every drag of the Maps screen.
+  const visible = usePanelVisible('Recipe');
+
+  const conditionNames = conditions.map((c) => c.name);
+  const recipe = toRecipe(draft, { conditionNames, tmin: epochWindow.tmin, tmax: epochWindow.tmax }, { ...baseline, method, scope });
+  const analysis = useMemo(() => (recording === null ? null : useSourceStore.getState().analysisRecording()), [recording, decisions]);
+  const recordingId = recording === null ? null : recordingIdOf(recording, fingerprint);
+  const key = recordingId === null ? null : decompositionKey(recordingId, recipe);
+
+  const check = useMemo((): { field: string; problem: string; message: string } | null => {
+    if (analysis === null || !visible) return null;
+    if (recipe.epochs.events.length === 0) return { field: 'conditions', problem: 'choose at least one condition (define them on the Source screen)', message: '' };
+    try {
+      planRecipe(analysis, recipe);
+      return null;
+    } catch (error) {
+      if (error instanceof AnalysisInputError) return { field: fieldGroup(error.field), problem: error.problem, message: error.message };
+      throw error;
+    }
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [analysis, visible, JSON.stringify(recipe)]);
+  const errorFor = (group: string) => (check !== null && check.field === group ? check.problem : null);
+
+  if (recording === null) {
+    return (
+      <div className="card p-4" data-testid="recipe-empty">
+        <p>Open a recording on the Source screen first; the recipe is checked against its channels, events and sample rate.</p>
+      </div>
+    );
+  }
+  const running = run.status === 'running';
+  const cached = key !== null && cache[key] !== undefined;
+  const start = () => {
+    if (analysis === null || recordingId === null) return;
+    void runDecomposition(analysis, recordingId, recipe, viewChannel);
+  };
+  const cycleOptions: { value: CyclesMode; label: string }[] = [
+    { value: 'range', label: 'cycles min–max' },
+    { value: 'fixed', label: 'fixed cycles' },
+    { value: 'fwhm', label: 'FWHM (s)' },
+  ];
+  const allChannels = draft.channels.length === 0;
+  const fs = recording.sampleRateHz;
+
+  return (
+    <form
+      className="flex flex-col gap-4"
+      data-testid="recipe-screen"
+      onSubmit={(e) => {
+        e.preventDefault();
+        if (!running && check === null) start();
+      }}
+    >
+      <fieldset className="card flex flex-wrap items-end gap-4 p-3">
+        <legend className="px-1 text-sm font-semibold">Frequencies</legend>
+        <NumberField label="Lowest" unit="Hz" value={draft.frequencies.min} step={0.5} testId="recipe-fmin" error={errorFor('frequencies.min')} onValue={(v) => setDraft({ frequencies: { ...draft.frequencies, min: v } })} />
+        <NumberField label="Highest" unit="Hz" value={draft.frequencies.max} step={0.5} testId="recipe-fmax" error={errorFor('frequencies.max')} onValue={(v) => setDraft({ frequencies: { ...draft.frequencies, max: v } })} />
+        <NumberField label="Count" value={draft.frequencies.count} step={1} testId="recipe-fcount" error={errorFor('frequencies.count')} onValue={(v) => setDraft({ frequencies: { ...draft.frequencies, count: v } })} />
+        <Choice legend="Spacing" value={draft.frequencies.spacing} options={[{ value: 'log', label: 'log' }, { value: 'linear', label: 'linear' }]} onChange={(s) => setDraft({ frequencies: { ...draft.frequencies, spacing: s } })} />
+      </fieldset>
+      <fieldset className="card flex flex-wrap items-end gap-4 p-3">
+        <legend className="px-1 text-sm font-semibold">Wavelet width</legend>
+        <Choice legend="Given as" value={draft.cyclesMode} options={cycleOptions} onChange={(m) => setDraft({ cyclesMode: m })} />
+        {draft.cyclesMode === 'fixed' && <NumberField label="Cycles" value={draft.cyclesFixed} step={0.5} onValue={(v) => setDraft({ cyclesFixed: v })} />}
+        {draft.cyclesMode === 'range' && (
+          <>
+            <NumberField label="Cycles at lowest" value={draft.cyclesMin} step={0.5} testId="recipe-cycles-min" onValue={(v) => setDraft({ cyclesMin: v })} />
+            <NumberField label="Cycles at highest" value={draft.cyclesMax} step={0.5} onValue={(v) => setDraft({ cyclesMax: v })} />
+          </>
+        )}
+        {draft.cyclesMode === 'fwhm' && <NumberField label="Full width at half maximum" unit="s" value={draft.fwhmSeconds} step={0.05} onValue={(v) => setDraft({ fwhmSeconds: v })} />}
+        {errorFor('cycles') && (
+          <p className="basis-full text-sm text-coral-deep" role="alert" data-testid="recipe-cycles-error">
+            cycles {errorFor('cycles')}
+          </p>
+        )}
+      </fieldset>
+      <fieldset className="card flex flex-col gap-2 p-3">
+        <legend className="px-1 text-sm font-semibold">Epochs and conditions</legend>
+        <p className="text-sm text-ink-soft">
+          Epochs {epochWindow.tmin} to {epochWindow.tmax} s around each event, kept epochs only (both set on the Source screen).
+        </p>
+        <div className="flex flex-wrap gap-3">
+          {conditions.map((c) => {
+            const on = draft.conditions.length === 0 || draft.conditions.includes(c.name);
+            const kept = decisions.filter((x) => x.condition === c.name && !x.rejected).length;
+            return (
+              <label key={c.name} className="flex items-center gap-1 text-sm">
+                <input
+                  type="checkbox"
+                  checked={on}
+                  onChange={() => {
+                    const current = draft.conditions.length === 0 ? conditionNames : draft.conditions;
+                    const next = on ? current.filter((n) => n !== c.name) : [...current, c.name];
+                    setDraft({ conditions: next.length === conditionNames.length ? [] : next });
+                  }}
+                />
+                {c.name} <span className="text-ink-soft">({kept} kept)</span>
+              </label>
+            );
+          })}
+          {conditions.length === 0 && <span className="text-sm text-coral-deep">No conditions defined yet.</span>}
+        </div>
+        {errorFor('conditions') && (
+          <p className="text-sm text-coral-deep" role="alert">
+            {errorFor('conditions')}
+          </p>
+        )}
+        {(errorFor('epochs.tmin') || errorFor('epochs.tmax')) && (
+          <p className="text-sm text-coral-deep" role="alert">
+            epochs {errorFor('epochs.tmin') ?? errorFor('epochs.tmax')}
+          </p>
+        )}
+      </fieldset>
+      <fieldset className="card flex flex-col gap-2 p-3">
+        <legend className="px-1 text-sm font-semibold">Channels</legend>
+        <label className="flex items-center gap-1 text-sm">
+          <input type="checkbox" checked={allChannels} onChange={() => setDraft({ channels: allChannels ? recording.channelNames.slice(0, 1) : [] })} data-testid="recipe-all-channels" />
+          all {recording.channelNames.length} channels
+        </label>
+        <div className="flex flex-wrap gap-x-3 gap-y-1">
+          {recording.channelNames.map((name) => {
+            const on = allChannels || draft.channels.includes(name);
+            return (
+              <label key={name} className="flex items-center gap-1 font-mono text-sm">
+                <input
+                  type="checkbox"
+                  checked={on}
+                  data-testid={`recipe-channel-${name}`}
+                  onChange={() => {
+                    const current = allChannels ? recording.channelNames : draft.channels;
+                    const next = on ? current.filter((n) => n !== name) : recording.channelNames.filter((n) => n === name || current.includes(n));
+                    setDraft({ channels: next.length === recording.channelNames.length ? [] : next });
+                  }}
+                />
+                {name}
+              </label>
+            );
+          })}
+        </div>
+        {!allChannels && draft.channels.length === 0 && <p className="text-sm text-coral-deep">Choose at least one channel.</p>}
+        {errorFor('channels') && (
+          <p className="text-sm text-coral-deep" role="alert">
+            channels {errorFor('channels')}
+          </p>
+        )}
+      </fieldset>
+      <fieldset className="card flex flex-wrap items-end gap-4 p-3">
+        <legend className="px-1 text-sm font-semibold">Spectrum and aperiodic fit</legend>
+        <NumberField label="Welch segment" unit="s" value={draft.spectrum.segment} step={0.25} error={errorFor('spectrum.segment')} onValue={(v) => setDraft({ spectrum: { ...draft.spectrum, segment: v } })} />
+        <NumberField label="Overlap" unit="fraction" value={draft.spectrum.overlap} step={0.05} error={errorFor('spectrum.overlap')} onValue={(v) => setDraft({ spectrum: { ...draft.spectrum, overlap: v } })} />
+        <NumberField label="Fit from" unit="Hz" value={draft.aperiodic.range[0]} step={0.5} error={errorFor('aperiodic.range')} onValue={(v) => setDraft({ aperiodic: { ...draft.aperiodic, range: [v, draft.aperiodic.range[1]] } })} />
+        <NumberField label="Fit to" unit="Hz" value={draft.aperiodic.range[1]} step={0.5} onValue={(v) => setDraft({ aperiodic: { ...draft.aperiodic, range: [draft.aperiodic.range[0], v] } })} />
+        <Choice legend="Aperiodic model" value={draft.aperiodic.mode} options={[{ value: 'fixed', label: 'fixed' }, { value: 'knee', label: 'knee' }]} onChange={(m) => setDraft({ aperiodic: { ...draft.aperiodic, mode: m } })} />
+      </fieldset>
+      {errorFor('baseline') && (
+        <p className="text-sm text-coral-deep" role="alert">
+          baseline {errorFor('baseline')} (set it on the Maps screen)
+        </p>
+      )}
+      {check !== null && !['frequencies.min', 'frequencies.max', 'frequencies.count', 'cycles', 'conditions', 'channels', 'epochs.tmin', 'epochs.tmax', 'spectrum.segment', 'spectrum.overlap', 'aperiodic.range', 'baseline'].includes(check.field) && (
+        <p className="text-sm text-coral-deep" role="alert">
+          {check.message}
+        </p>
+      )}
+      <div className="flex flex-wrap items-center gap-3">
+        <button type="submit" disabled={running || check !== null} className="rounded-sm bg-kelp px-4 py-2 font-semibold text-foam hover:bg-kelp-deep disabled:opacity-50" data-testid="recipe-run">
+          {cached ? (activeKey === key ? 'Shown on Maps' : 'Show (already computed)') : 'Run decomposition'}
+        </button>
+        {running && (
+          <button type="button" className="rounded-sm border border-coral px-4 py-2 text-coral-deep" onClick={cancelDecomposition} data-testid="recipe-cancel">
+            Cancel
+          </button>
+        )}
+        <span className="text-sm text-ink-soft" role="status" data-testid="recipe-status" data-status={run.status}>
+          {run.status === 'running' ? 'Decomposing in workers on this device…' : (run.message ?? '')}
+        </span>
+        <span className="text-xs text-ink-soft">
+          {fs} Hz · {recording.channelNames.length} channels · the samples stay on this device
+        </span>
+      </div>
+      {run.progress.length > 0 && (
+        <ul className="card grid grid-cols-[repeat(auto-fill,minmax(11rem,1fr))] gap-x-4 gap-y-1 p-3" data-testid="recipe-progress">
+          {run.progress.map((p) => (
+            <li key={p.channel} className="flex items-center gap-2 font-mono text-xs">
+              <span className="w-12">{p.channel}</span>
+              <progress className="h-2 flex-1 accent-kelp" max={1} value={p.fraction} aria-label={`${p.channel} progress`} data-fraction={p.fraction} />
+              <span className="w-10 text-right">{Math.round(p.fraction * 100)} %</span>
+            </li>
+          ))}
+        </ul>
+      )}
+      {Object.values(cache).length > 0 && (
+        <section className="card p-3">
+          <h3 className="text-sm font-semibold">Computed this session (kept in memory; switching back is instant)</h3>
+          <ul className="mt-1 text-sm">
+            {Object.values(cache).map((d) => (
+              <li key={d.key} className="flex items-center gap-2">
+                <button type="button" className="text-kelp-deep underline" onClick={() => useResultsStore.getState().set({ activeKey: d.key })}>
+                  {d.channels.length} ch · {d.frequencies.length} freqs {d.recipe.frequencies.min}–{d.recipe.frequencies.max} Hz ({d.spacing}) · {d.labels.join(', ')}
+                </button>
+                {d.key === activeKey && <span className="text-xs text-ink-soft">(shown)</span>}
+              </li>
+            ))}
+          </ul>
+        </section>
+      )}
+    </form>
+  );
 }

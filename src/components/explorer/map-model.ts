@@ -1,0 +1,53 @@
+import { baselineIndices, type BaselineMethod } from '../../lib/analysis/baseline';
+import { renormalizeAverage } from '../../lib/analysis/renormalize';
+import type { Decomposition } from '../../stores/results';
+
+/** Baseline grid indices clamped to the epoch, as the core plans them (analysis contract). */
+export function baselinePoints(d: Decomposition, baseline: { start: number; end: number }): { first: number; last: number } {
+  const b = baselineIndices(baseline.start, baseline.end, d.tmin, d.sampleRateHz);
+  const nt = d.times.length;
+  return { first: Math.max(0, Math.min(nt - 1, b.first)), last: Math.max(0, Math.min(nt - 1, b.last)) };
+}
+
+/** Snaps seconds to the epoch's sample grid t_j = tmin + j/fs, inside the epoch. */
+export function snapToGrid(d: Decomposition, seconds: number): number {
+  const nt = d.times.length;
+  const j = Math.max(0, Math.min(nt - 1, Math.round((seconds - d.tmin) * d.sampleRateHz)));
+  return d.times[j];
+}
+
+/** Problems of a baseline, shown on the map. */
+export function baselineWarnings(d: Decomposition, points: { first: number; last: number }, end: number, method: BaselineMethod): string[] {
+  const out: string[] = [];
+  const nt = d.times.length;
+  let hit = 0;
+  let lo = -1;
+  let hi = -1;
+  for (let f = 0; f < d.frequencies.length; f++) {
+    if (points.first < d.edges.left[f] || points.last >= nt - d.edges.right[f]) {
+      hit++;
+      if (lo < 0) lo = f;
+      hi = f;
+    }
+  }
+  if (hit > 0) {
+    const fmt = (x: number) => Number(x.toPrecision(3));
+    out.push(`Baseline overlaps the edge zone at ${hit} of ${d.frequencies.length} frequencies (${fmt(d.frequencies[lo])}–${fmt(d.frequencies[hi])} Hz).`);
+  }
+  if (end > 0) out.push(`Baseline reaches past the event at 0 s (ends at ${Number(end.toFixed(3))} s): it includes the response.`);
+  const n = points.last - points.first + 1;
+  if (method === 'zscore' && n < 2) out.push(`Baseline holds ${n} sample; a z-score needs at least 2 for a standard deviation.`);
+  return out;
+}
+
+/** Trial-averaged normalized map of one condition in average scope, into a reused buffer. */
+export function averageNormalized(out: Float64Array, power: Float64Array, nTimes: number, points: { first: number; last: number }, method: BaselineMethod): Float64Array {
+  renormalizeAverage(out, power, nTimes, points.first, points.last, method);
+  return out;
+}
+
+/** out = a − b, element-wise. */
+export function difference(out: Float64Array, a: ArrayLike<number>, b: ArrayLike<number>): Float64Array {
+  for (let i = 0; i < out.length; i++) out[i] = a[i] - b[i];
+  return out;
+}

@@ -1,0 +1,201 @@
+import { create } from 'zustand';
+import { AnalysisCancelledError, AnalysisInputError } from '../lib/analysis/errors';
+import type { AperiodicFit } from '../lib/analysis/aperiodic';
+import type { Recording } from '../lib/analysis/recording';
+import type { RecipeInput } from '../lib/analysis/recipe';
+import { planRecipe } from '../lib/analysis/run-recipe';
+import { DecomposePool } from '../lib/client/decompose-pool';
+import { explorerWorker } from '../lib/client/explorer-worker';
+import { edgeMask, edgeZones, type EdgeZones } from '../lib/plot/edge-zone';
+import { decompositionKey, useRecipeStore } from './recipe';
+
+/**
+ * A finished decomposition kept in memory: trial-averaged power per channel and condition (`[f·T + t]`, µV²), so
+ * re-normalizing for a new baseline or method is F × T work per map.
+ */
+export interface Decomposition {
+  key: string;
+  recipe: RecipeInput;
+  recordingId: string;
+  sampleRateHz: number;
+  tmin: number;
+  channels: string[];
+  labels: string[];
+  trials: number[];
+  times: Float64Array;
+  frequencies: Float64Array;
+  spacing: 'log' | 'linear';
+  edgeSeconds: Float64Array;
+  edges: EdgeZones;
+  /** `[f·T + t]` 1 inside an edge zone. */
+  mask: Uint8Array;
+  /** power[channel][condition] */
+  power: Float64Array[][];
+  spectrum: { frequencies: Float64Array; psd: Float64Array[] };
+  aperiodic: (AperiodicFit & { channel: string })[];
+  warnings: string[];
+  epochStarts: Int32Array[];
+  epochSamples: number;
+  spectrumSegmentSamples: number;
+  spectrumOverlapSamples: number;
+}
+
+export interface TrialHold {
+  /** `${decomposition key}|${channel}` */
+  key: string;
+  status: 'loading' | 'ready' | 'failed';
+  message: string | null;
+}
+
+export interface ResultsState {
+  cache: Record<string, Decomposition>;
+  activeKey: string | null;
+  trialHold: TrialHold | null;
+  /** A field-level problem from the last attempted run (AnalysisInputError), shown beside the field. */
+  fieldError: { field: string; problem: string } | null;
+  set: (patch: Partial<Pick<ResultsState, 'activeKey' | 'fieldError'>>) => void;
+}
+
+export const useResultsStore = create<ResultsState>((set) => ({
+  cache: {},
+  activeKey: null,
+  trialHold: null,
+  fieldError: null,
+  set: (patch) => set(patch),
+}));
+
+/** The shown decomposition, or null. */
+export const selectActive = (s: ResultsState): Decomposition | null => (s.activeKey === null ? null : (s.cache[s.activeKey] ?? null));
+
+const recordingIds = new WeakMap<Float32Array, string>();
+let nextRecordingId = 1;
+
+/** A stable id of the recording's samples: its fingerprint when known, else one per loaded sample array. */
+export function recordingIdOf(recording: Recording, fingerprint: string | null): string {
+  if (fingerprint !== null) return fingerprint;
+  const first = recording.data[0];
+  let id = recordingIds.get(first);
+  if (id === undefined) {
+    id = `local-${nextRecordingId++}`;
+    recordingIds.set(first, id);
+  }
+  return id;
+}
+
+let pool: DecomposePool | null = null;
+let trialPool: DecomposePool | null = null;
+
+function flatten(rows: number[][]): Float64Array {
+  const nf = rows.length;
+  const nt = nf > 0 ? rows[0].length : 0;
+  const out = new Float64Array(nf * nt);
+  for (let f = 0; f < nf; f++) {
+    const r = rows[f];
+    for (let t = 0; t < nt; t++) out[f * nt + t] = r[t] === null ? NaN : r[t];
+  }
+  return out;
+}
+
+/**
+ * Runs (or recalls from the cache) the decomposition of `recipe`: channels spread over the core's worker pool,
+ * progress per channel into the recipe store. Keeps single-trial power of `trialChannel` in the explorer worker.
+ */
+export async function runDecomposition(recording: Recording, recordingId: string, recipe: RecipeInput, trialChannel: string | null): Promise<Decomposition | null> {
+  const key = decompositionKey(recordingId, recipe);
+  const results = useResultsStore.getState();
+  const setRun = useRecipeStore.getState().setRun;
+  const cached = results.cache[key];
+  if (cached !== undefined) {
+    useResultsStore.setState({ activeKey: key, fieldError: null });
+    setRun({ status: 'done', message: 'From the cache: this recipe was already run on this recording.', progress: cached.channels.map((channel) => ({ channel, fraction: 1 })) });
+    return cached;
+  }
+  let plan;
+  try {
+    plan = planRecipe(recording, recipe);
+  } catch (error) {
+    if (error instanceof AnalysisInputError) {
+      useResultsStore.setState({ fieldError: { field: error.field, problem: error.problem } });
+      setRun({ status: 'failed', message: error.message, progress: [] });
+      return null;
+    }
+    throw error;
+  }
+  useResultsStore.setState({ fieldError: null });
+  const channel = trialChannel !== null && plan.channels.includes(trialChannel) ? trialChannel : plan.channels[0];
+  setRun({ status: 'running', message: null, progress: plan.channels.map((c) => ({ channel: c, fraction: 0 })) });
+  pool ??= new DecomposePool();
+  try {
+    const { result, singleTrials } = await pool.run(recording, recipe, {
+      singleTrialChannel: channel,
+      onProgress: (_overall, per) => setRun({ progress: plan.channels.map((c, i) => ({ channel: c, fraction: per[i] })) }),
+    });
+    const labels = plan.labels;
+    const decomposition: Decomposition = {
+      key,
+      recipe,
+      recordingId,
+      sampleRateHz: plan.sampleRateHz,
+      tmin: plan.tminSeconds,
+      channels: result.channels,
+      labels,
+      trials: labels.map((l) => result.conditions[l].trials),
+      times: plan.times,
+      frequencies: plan.frequencies,
+      spacing: recipe.frequencies.spacing ?? 'log',
+      edgeSeconds: plan.edgeSeconds,
+      edges: edgeZones(plan.times, plan.edgeSeconds),
+      mask: edgeMask(edgeZones(plan.times, plan.edgeSeconds), plan.times.length),
+      power: result.channels.map((_, c) => labels.map((l) => flatten(result.conditions[l].power[c]))),
+      spectrum: { frequencies: Float64Array.from(result.spectrum.frequencies), psd: result.spectrum.psd.map((p) => Float64Array.from(p)) },
+      aperiodic: result.aperiodic,
+      warnings: result.warnings,
+      epochStarts: plan.epochStarts,
+      epochSamples: plan.epochSamples,
+      spectrumSegmentSamples: plan.spectrum.segmentSamples,
+      spectrumOverlapSamples: plan.spectrum.overlapSamples,
+    };
+    useResultsStore.setState((s) => ({ cache: { ...s.cache, [key]: decomposition }, activeKey: key }));
+    setRun({ status: 'done', message: `Decomposed ${plan.channels.length} channel(s) × ${labels.length} condition(s).` });
+    if (singleTrials !== null) await holdTrials(decomposition, channel, singleTrials);
+    return decomposition;
+  } catch (error) {
+    if (error instanceof AnalysisCancelledError) {
+      setRun({ status: 'cancelled', message: 'Cancelled; nothing was kept from this run.' });
+      return null;
+    }
+    setRun({ status: 'failed', message: error instanceof Error ? error.message : String(error) });
+    return null;
+  }
+}
+
+/** Stops the running decomposition. */
+export function cancelDecomposition(): void {
+  pool?.cancel();
+}
+
+async function holdTrials(d: Decomposition, channel: string, singleTrials: Float32Array[]): Promise<void> {
+  const key = `${d.key}|${channel}`;
+  await explorerWorker().holdTrials(key, singleTrials, d.trials, d.frequencies.length, d.times.length);
+  useResultsStore.setState({ trialHold: { key, status: 'ready', message: null } });
+}
+
+/**
+ * Makes sure the explorer worker holds single-trial power of `channel` for the decomposition `d` (trial scope):
+ * decomposes that one channel again with single trials kept, unless it is already held.
+ */
+export async function ensureTrials(d: Decomposition, channel: string, recording: Recording): Promise<void> {
+  const key = `${d.key}|${channel}`;
+  const hold = useResultsStore.getState().trialHold;
+  if (hold !== null && hold.key === key && hold.status !== 'failed') return;
+  useResultsStore.setState({ trialHold: { key, status: 'loading', message: `Keeping single trials of ${channel}…` } });
+  trialPool ??= new DecomposePool({ size: 1 });
+  try {
+    const { singleTrials } = await trialPool.run(recording, { ...d.recipe, channels: [channel] }, { singleTrialChannel: channel });
+    if (useResultsStore.getState().trialHold?.key !== key) return;
+    if (singleTrials === null) throw new Error('the worker returned no single trials');
+    await holdTrials(d, channel, singleTrials);
+  } catch (error) {
+    useResultsStore.setState({ trialHold: { key, status: 'failed', message: error instanceof Error ? error.message : String(error) } });
+  }
+}

@@ -1,0 +1,71 @@
+import { create } from 'zustand';
+import type { BaselineMethod, BaselineScope } from '../lib/analysis/baseline';
+
+export interface Band {
+  name: string;
+  lowHz: number;
+  highHz: number;
+}
+
+export interface TimeWindow {
+  name: string;
+  startSeconds: number;
+  endSeconds: number;
+}
+
+/** Defaults of common practice for EEG bands (theta 4–8, alpha 8–13, beta 13–30, gamma 30–45 Hz). */
+export const DEFAULT_BANDS: Band[] = [
+  { name: 'theta', lowHz: 4, highHz: 8 },
+  { name: 'alpha', lowHz: 8, highHz: 13 },
+  { name: 'beta', lowHz: 13, highHz: 30 },
+  { name: 'gamma', lowHz: 30, highHz: 45 },
+];
+
+export const DEFAULT_WINDOWS: TimeWindow[] = [
+  { name: 'early', startSeconds: 0.1, endSeconds: 0.5 },
+  { name: 'late', startSeconds: 0.5, endSeconds: 1.0 },
+];
+
+export type SpectrumAxes = 'linear' | 'log-power' | 'log-log';
+
+/**
+ * What the explorer shows and how: the selection (channel, condition, comparison), the live baseline and the
+ * display choices. Changing anything here re-normalizes and repaints; nothing here re-runs the decomposition.
+ */
+export interface ViewState {
+  channel: string | null;
+  condition: string | null;
+  /** Condition B of the difference map A − B; null shows condition A alone. */
+  compareTo: string | null;
+  baseline: { start: number; end: number };
+  method: BaselineMethod;
+  scope: BaselineScope;
+  rawScale: 'linear' | 'log';
+  spectrumAxes: SpectrumAxes;
+  /** Aperiodic fit range in Hz, dragged on the spectrum's frequency axis. */
+  fitRange: [number, number];
+  bands: Band[];
+  windows: TimeWindow[];
+  set: (patch: Partial<Omit<ViewState, 'set' | 'setBaseline'>>) => void;
+  /** Marks the User Timing start of a baseline change, then applies it. */
+  setBaseline: (baseline: { start: number; end: number }) => void;
+}
+
+export const useViewStore = create<ViewState>((set) => ({
+  channel: null,
+  condition: null,
+  compareTo: null,
+  baseline: { start: -0.4, end: -0.1 },
+  method: 'db',
+  scope: 'average',
+  rawScale: 'log',
+  spectrumAxes: 'log-log',
+  fitRange: [2, 40],
+  bands: DEFAULT_BANDS,
+  windows: DEFAULT_WINDOWS,
+  set: (patch) => set(patch),
+  setBaseline: (baseline) => {
+    performance.mark('tidemark:baseline-input');
+    set({ baseline });
+  },
+}));
