@@ -41,7 +41,7 @@ function usePixelRatio(): number {
 /** One map as a canvas island, with the baseline band (drag body or edges; arrows one sample, shift 50 ms) on top. */
 export default function MapPanel(props: MapPanelProps) {
   const { spec, baseline, dt, snap, onBaseline, focusable, cursor, onCursor, testId, warnings = [] } = props;
-  const height = props.height ?? 320;
+  const height = props.height ?? 300;
   const wrap = useRef<HTMLDivElement>(null);
   const canvas = useRef<HTMLCanvasElement>(null);
   const reuse = useRef<{ image: ImageData | null }>({ image: null });
@@ -193,7 +193,7 @@ export default function MapPanel(props: MapPanelProps) {
         aria-valuetext={`${fmt(baseline.start)} to ${fmt(baseline.end)}`}
         tabIndex={focusable ? 0 : -1}
         data-testid={`${testId}-baseline`}
-        className="absolute cursor-grab border-x-2 border-ink bg-foam/25 active:cursor-grabbing"
+        className="absolute cursor-grab border-x-2 border-ink bg-sand/30 outline-offset-0 active:cursor-grabbing"
         style={{ left: x0, top: bandTop, width: Math.max(4, x1 - x0), height: bandHeight, touchAction: 'none' }}
         onPointerDown={onPointerDown('body')}
         onPointerMove={onPointerMove}

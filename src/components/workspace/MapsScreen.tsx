@@ -168,6 +168,8 @@ export default function MapsScreen(_props: WorkspaceProps) {
     );
   }
   const warnings = baselineWarnings(d, points, baseline.end, method);
+  // The run's own baseline warning describes the baseline it ran with; the live one is drawn on the map.
+  const runWarnings = d.warnings.filter((w) => !w.startsWith('baseline:'));
   const dt = 1 / d.sampleRateHz;
   const snap = (s: number) => snapToGrid(d, s);
   const cell = cursor;
@@ -240,7 +242,8 @@ export default function MapsScreen(_props: WorkspaceProps) {
           {trialHold.message}
         </p>
       )}
-      <div className="grid grid-cols-1 gap-4 2xl:grid-cols-2">
+      <div className="@container">
+      <div className="grid grid-cols-1 gap-3 @3xl:grid-cols-2">
         {rawSpec !== null && (
           <div className="card p-2">
             <MapPanel testId="map-raw" spec={rawSpec} baseline={baseline} dt={dt} snap={snap} onBaseline={setBaseline} focusable={false} cursor={cursor} onCursor={setCursor} />
@@ -253,6 +256,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
             <p className="p-4 text-ink-soft">Preparing single-trial maps…</p>
           )}
         </div>
+      </div>
       </div>
       <output
         className="card block p-2 font-mono text-sm"
@@ -267,9 +271,9 @@ export default function MapsScreen(_props: WorkspaceProps) {
           ? 'Point at a map (or focus it and use the arrow keys) to read time, frequency and value.'
           : `t ${Number(readout.t.toFixed(4))} s · f ${Number(readout.f.toPrecision(4))} Hz · raw ${fmtValue(readout.raw)} µV² · normalized ${fmtValue(readout.norm)} ${methodUnit(method)}`}
       </output>
-      {d.warnings.length > 0 && (
+      {runWarnings.length > 0 && (
         <ul className="text-sm text-coral-deep">
-          {d.warnings.map((w) => (
+          {runWarnings.map((w) => (
             <li key={w}>{w}</li>
           ))}
         </ul>

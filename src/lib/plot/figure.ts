@@ -39,9 +39,9 @@ export interface PanelLayout {
 
 /** Margins for tick labels (left, bottom), a title (top) and a colour bar with its labels (right). */
 export function panelLayout(width: number, height: number): PanelLayout {
-  const left = 52;
+  const left = 48;
   const top = 24;
-  const right = 78;
+  const right = 66;
   const bottom = 38;
   const plotWidth = Math.max(10, width - left - right);
   const plotHeight = Math.max(10, height - top - bottom);
