@@ -3,11 +3,11 @@ import { AnalysisCancelledError } from './errors';
 import { getFft } from './fft';
 import { getWaveletBank } from './wavelet';
 
-/** Everything one channel's time-frequency decomposition needs; plain data, so it can cross to a worker. */
 // Epochs are transformed in blocks and then swept frequency by frequency, so one frequency's weights stay in
 // cache across the block; the per-(frequency, time) sums still run in epoch order.
 const EPOCH_BLOCK = 16;
 
+/** Everything one channel's time-frequency decomposition needs; plain data, so it can cross to a worker. */
 export interface DecomposeJob {
   /** One channel's whole recording, µV. */
   samples: Float32Array;
@@ -42,8 +42,9 @@ export interface DecomposeOptions {
  * Morlet wavelet power `|x ∗ w_f|²` (µV²) of every epoch of one channel, accumulated into trial averages and,
  * for scope `trial`, into averages of per-trial normalized power as each trial is produced (analysis contract,
  * "Complex Morlet wavelet power" and "Baseline normalization"). Per epoch: one real forward FFT; per frequency:
- * one complex transform of `conj(X)·conj(W_f)/N_f` (see `WaveletBank`). Memory is bounded by frequencies ×
- * times per condition; sums run in Float64 in epoch order, so a channel gives the same bits wherever it runs.
+ * the inverse of `X·W_f` over the wavelet's band only, as `N_f/M_f` transforms of size `M_f` (see `WaveletBank`).
+ * No trial × frequency × time array is kept (unless `singleTrials`): memory is bounded by frequencies × times per
+ * condition. Sums run in Float64 in epoch order, so a channel gives the same bits wherever it runs.
  */
 export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = {}): DecomposeOutput {
   const { samples, epochStarts, epochSamples: L, sampleRateHz, frequencies, sigmas, baseline } = job;
@@ -121,7 +122,8 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
 }
 
 // Power of one epoch at one frequency (see WaveletBank): gather conj(X) over the band, then for each output
-// residue r one size-M transform of conj(X)·V_r gives |y[q·R + r]|·… at every q; add p into sum and keep the row.
+// residue r one size-M transform of conj(X)·V_r gives y[q·R + r] up to a phase; add |y|² into sum, and into row
+// when the caller needs the trial's own power.
 function bandPower(
   sum: Float64Array,
   off: number,
