@@ -3,7 +3,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import {
-  assertPortFree, buildIfStale, ensureNodeModules, log, migrate, outDir, onSignals, root, runMain, seed, startChild,
+  assertPortFree, buildIfStale, claimRunLock, ensureNodeModules, log, migrate, outDir, onSignals, root, runMain, seed, startChild,
   startCluster, stopAll,
 } from './lib/bootstrap.mjs';
 
@@ -18,6 +18,7 @@ await runMain(async () => {
     log('stopped');
     process.exit(0);
   });
+  claimRunLock('npm-start');
   ensureNodeModules();
   await assertPortFree(APP_PORT, 'the app');
   await assertPortFree(SMTP_PORT, 'the mail fake');

@@ -5,7 +5,7 @@ import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
 import {
-  assertPortFree, buildIfStale, ensureNodeModules, log, migrate, outDir, onSignals, requireChromium, root, runMain, seed,
+  assertPortFree, buildIfStale, claimRunLock, ensureNodeModules, log, migrate, outDir, onSignals, requireChromium, root, runMain, seed,
   startChild, startCluster, stopAll,
 } from './lib/bootstrap.mjs';
 
@@ -23,6 +23,7 @@ await runMain(async () => {
     await stopAll();
     process.exit(130);
   });
+  claimRunLock(SLOT ? `npm-test-${SLOT}` : 'npm-test');
   ensureNodeModules();
   const chromium = requireChromium();
   await assertPortFree(APP_PORT, 'the test app');

@@ -115,6 +115,44 @@ export function requireChromium() {
   return '/usr/bin/chromium';
 }
 
+// ---------------------------------------------------------------- one run at a time
+
+/**
+ * Claims `.tidemark/<name>.lock` for this process, so a second `npm start` (or a second `npm test` in the same
+ * slot) stops at once instead of racing the first one's build and stopping its database on the way out.
+ */
+export function claimRunLock(name) {
+  const dir = path.join(root, '.tidemark');
+  fs.mkdirSync(dir, { recursive: true });
+  const file = path.join(dir, `${name}.lock`);
+  for (let attempt = 0; attempt < 2; attempt++) {
+    try {
+      fs.writeFileSync(file, String(process.pid), { flag: 'wx' });
+      process.on('exit', () => {
+        try {
+          if (fs.readFileSync(file, 'utf8') === String(process.pid)) fs.rmSync(file);
+        } catch {}
+      });
+      return;
+    } catch (error) {
+      if (error.code !== 'EEXIST') throw error;
+      const holder = Number(fs.readFileSync(file, 'utf8'));
+      if (holder && isAlive(holder)) fail(`another ${name} is already running in this checkout (pid ${holder}); stop it first`);
+      fs.rmSync(file, { force: true });
+    }
+  }
+  fail(`could not claim ${file}`);
+}
+
+function isAlive(pid) {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (error) {
+    return error.code === 'EPERM';
+  }
+}
+
 // ---------------------------------------------------------------- ports
 
 export function assertPortFree(port, what) {
