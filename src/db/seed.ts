@@ -1,4 +1,5 @@
-// The demo: an invented lab, the Saltmarsh Rhythms Lab, studying how people anticipate a harbour-bell cue. People,
+// The demo: an invented lab, the Saltmarsh Rhythms Lab, and its "Harbour Lights" task (the demo cohort of
+// src/lib/demo/cohort.ts: lamp-watch versus oar-pull cues). People,
 // addresses and passwords are invented for the demo (".example" addresses are reserved by RFC 2606).
 import { and, eq, sql } from 'drizzle-orm';
 import type { Db } from './client';
@@ -20,7 +21,8 @@ export const DEMO_PEOPLE: { email: string; displayName: string; role: Role; pass
 export const DEMO_STUDIES = [
   {
     name: 'Harbour-bell anticipation',
-    description: 'Scalp EEG while people wait for a bell that tells them which hand to use; the two cue conditions are compared.',
+    description:
+      'Scalp EEG during the Harbour Lights task: lamp-watch cues (remember a lighthouse blink pattern) against oar-pull cues (squeeze a handle). Demo cohort TM-S01 to TM-S12.',
   },
   {
     name: 'Ebb and flow rest blocks',

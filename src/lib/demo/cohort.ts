@@ -1,5 +1,5 @@
 /**
- * The demo cohort, an invented scenario: the Breakwater Lab's "Harbour Lights" task. Participants watch a harbour
+ * The demo cohort, an invented scenario: the Saltmarsh Rhythms Lab's "Harbour Lights" task (the demo team of src/db/seed.ts). Participants watch a harbour
  * at dusk. On `lamp-watch` trials a lighthouse lamp blinks a pattern to remember (a frontal-midline power increase
  * near 6 Hz follows); on `oar-pull` trials a rowing boat appears and they squeeze a handle (an ongoing central
  * rhythm near 20 Hz is suppressed after the cue). Subjects are TM-S01…; nobody real is behind any of it.
@@ -15,7 +15,7 @@ import { createRandom, mix32 } from './random';
 /** Bump when the synthesis changes, so cached files are rewritten. */
 export const DEMO_GENERATOR_VERSION = 1;
 export const DEMO_PATIENT_FIELD = 'X X X DEMO-ONLY-NOT-A-PERSON';
-export const DEMO_LAB = 'Breakwater Lab (invented)';
+export const DEMO_LAB = 'Saltmarsh Rhythms Lab (invented)';
 export const DEMO_TASK = 'Harbour Lights (invented)';
 export const DEMO_CONDITIONS = {
   'lamp-watch': 'a lighthouse lamp blinks a pattern to remember; power near 6 Hz rises after the cue',
