@@ -222,6 +222,76 @@ describe('Source screen: a recording opened on this device', () => {
     await context.close();
   });
 
+  it('reads a CSV matrix with a BIDS events file, reports bad rows and onsets by row and column, and says when storage is full', async () => {
+    // Invented test data: 2 channels at 100 Hz for 10 s, ±5 µV alternating, one 300 µV spike on Fz at 4.2 s.
+    const rows = ['Fz,Cz'];
+    for (let i = 0; i < 1000; i++) rows.push(`${i === 420 ? 300 : i % 2 ? 5 : -5},${i % 2 ? -4 : 4}`);
+    const csv = Buffer.from(rows.join('\n') + '\n');
+    const ragged = Buffer.from(['Fz,Cz', '1,2', '3,4', '5'].join('\n'));
+    // BIDS events (onset, duration, trial_type): cues at 2, 4, 6, 8 s and one at 9.5 s whose epoch runs past the end.
+    const events = Buffer.from(['onset\tduration\ttrial_type', '2\tn/a\tbell', '4\t0\tbell', '6\t0\tbell', '8\t0\tbell', '9.5\t0\tbell'].join('\n'));
+    const badEvents = Buffer.from(['onset\tduration\ttrial_type', '2\t0\tbell', 'soon\t0\tbell'].join('\n'));
+
+    const context = await browser.newContext();
+    // Simulates a full disk for the library: IndexedDB writes fail with QuotaExceededError while the flag is set.
+    await context.addInitScript(() => {
+      const put = IDBObjectStore.prototype.put;
+      IDBObjectStore.prototype.put = function (this: IDBObjectStore, ...args: Parameters<typeof put>) {
+        if ((window as unknown as { fullDisk?: boolean }).fullDisk) throw new DOMException('quota', 'QuotaExceededError');
+        return put.apply(this, args);
+      };
+    });
+    const page = await signIn(context, 'analyst');
+    const pick = async (name: string, data: Buffer, eventsFile: { name: string; data: Buffer } | null) => {
+      await page.getByLabel('Choose a recording file…').setInputFiles({ name, mimeType: 'text/csv', buffer: data });
+      await page.getByLabel('Sample rate (Hz)').fill('100');
+      if (eventsFile) await page.getByLabel(/Events file/).setInputFiles({ name: eventsFile.name, mimeType: 'text/tab-separated-values', buffer: eventsFile.data });
+      await page.getByRole('button', { name: 'Read the matrix' }).click();
+    };
+
+    await pick('tm-ragged.csv', ragged, null);
+    let problem = (await page.getByTestId('intake-problem').textContent()) ?? '';
+    // Row 4 (the header is row 1) has one cell where the header names two channels.
+    expect(problem).toMatch(/1 cells.*header.* 2 channels/);
+    expect(problem).toMatch(/Row\s*4/);
+    expect(problem).toMatch(/Column\s*Cz/);
+
+    await pick('tm-matrix.csv', csv, { name: 'tm-matrix_events.tsv', data: badEvents });
+    await page.getByTestId('intake-problem').filter({ hasText: 'events file' }).waitFor();
+    problem = (await page.getByTestId('intake-problem').textContent()) ?? '';
+    expect(problem).toContain('tm-matrix_events.tsv (events file)');
+    expect(problem).toMatch(/onset.*"soon".*not a number/);
+    expect(problem).toMatch(/Row\s*3/);
+    expect(await page.getByTestId('recording-details').count()).toBe(0);
+
+    await page.evaluate(() => ((window as unknown as { fullDisk?: boolean }).fullDisk = true));
+    await pick('tm-matrix.csv', csv, { name: 'tm-matrix_events.tsv', data: events });
+    await page.getByTestId('recording-details').waitFor();
+    expect(await page.getByTestId('library-notice').textContent()).toContain('QuotaExceededError');
+    expect(await page.getByTestId('library-entry').count()).toBe(0);
+    expect(await page.getByTestId('recording-details').textContent()).toContain('2 channels at 100 Hz');
+
+    await page.getByLabel('Pick label bell').check();
+    await page.getByLabel('Condition name').fill('bell cue');
+    await page.getByRole('button', { name: 'Make condition from picked labels' }).click();
+    // By hand, window −0.5…1.5 s at 100 Hz: the 4 s cue covers samples 350…550 and holds the spike (300 − (−4)…
+    // Fz: 300 − (−5) = 305 µV > 150); the 9.5 s cue needs samples up to 1100 of 1000 (outside); the others are kept.
+    const verdicts = await page.getByTestId('epoch-row').evaluateAll((els) => els.map((e) => e.getAttribute('data-verdict')));
+    expect(verdicts).toEqual(['kept', 'rejected', 'kept', 'kept', 'rejected']);
+    expect(await page.locator('[data-testid="epoch-row"][data-event-index="1"]').textContent()).toContain('peak-to-peak 305 µV on Fz');
+    expect(await page.locator('[data-testid="epoch-row"][data-event-index="4"]').textContent()).toContain('outside the recording');
+    // Tally (by hand from the verdicts above): 5 epochs, 3 kept, 2 rejected, 1 of them outside, none across a gap.
+    const tally = await page.getByTestId('condition-tally').locator('tbody td').allTextContents();
+    expect(tally).toEqual(['bell cue', '5', '3', '2', '1', '0']);
+
+    // With room again, the recording is kept in the library.
+    await page.evaluate(() => ((window as unknown as { fullDisk?: boolean }).fullDisk = false));
+    await pick('tm-matrix.csv', csv, { name: 'tm-matrix_events.tsv', data: events });
+    await page.getByTestId('library-entry').first().waitFor();
+    expect(await page.getByTestId('library-entry').count()).toBe(1);
+    await context.close();
+  });
+
   it('lists the generated demo cohort and serves only its own files', async () => {
     const context = await browser.newContext();
     const page = await signIn(context, 'analyst');
@@ -233,6 +303,11 @@ describe('Source screen: a recording opened on this device', () => {
       expect(response.status(), probe).toBe(404);
     }
     expect((await page.request.get(`${appUrl}/demo/cohort.json`)).status()).toBe(200);
+    // Opening a demo recording fetches it from the app (demo data, not a person's) and suggests its subject code.
+    await page.getByRole('button', { name: 'Open demo recording' }).click();
+    await page.getByTestId('recording-details').waitFor({ timeout: 60_000 });
+    expect(await page.getByLabel('Subject code').inputValue()).toBe('TM-S01');
+    expect(await page.getByTestId('patient-field').textContent()).toBe(DEMO_PATIENT_FIELD);
     await context.close();
   });
 });

@@ -40,7 +40,7 @@ function Problem({ fileName, error, onDismiss }: { fileName: string; error: Inta
     <div className="notice notice-warn grid gap-2" role="alert" data-testid="intake-problem">
       <p className="font-semibold">
         {fileName}
-        {error.file === 'events' ? ' (events file)' : ''} could not be opened: {error.problem ?? error.message}
+        {error.file === 'events' ? ' (events file)' : ''} could not be opened: {error.message}
       </p>
       {where.length > 0 && (
         <dl className="grid grid-cols-[max-content_1fr] gap-x-3 text-sm">
@@ -88,10 +88,14 @@ export default function SourceScreen(props: WorkspaceProps) {
     async (blob: Blob, fileName: string, kind: RecordingKind, from: Origin, events: { blob: Blob; name: string } | null = null, demoCode?: string) => {
       setBusy({ fileName, phase: 'fingerprint', fraction: 0 });
       setLibraryNotice(null);
+      setProblem(null);
+      // Progress arrives on its own message port, so a late report can follow the result: ignore it then.
+      let finished = false;
       try {
-        const result = await openRecordingFile(blob, kind.kind === 'csv' ? { ...kind, events: events?.blob ?? null } : kind, (phase, fraction) =>
-          setBusy({ fileName, phase, fraction }),
-        );
+        const result = await openRecordingFile(blob, kind.kind === 'csv' ? { ...kind, events: events?.blob ?? null } : kind, (phase, fraction) => {
+          if (!finished) setBusy({ fileName, phase, fraction });
+        });
+        finished = true;
         if (!result.ok) {
           setProblem({ fileName: result.error.file === 'events' && events ? events.name : fileName, error: result.error });
           return;
@@ -126,6 +130,7 @@ export default function SourceScreen(props: WorkspaceProps) {
       } catch (error) {
         refuse(fileName, `reading stopped unexpectedly: ${error instanceof Error ? error.message : String(error)}`);
       } finally {
+        finished = true;
         setBusy(null);
       }
     },
