@@ -57,13 +57,15 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
   const spectra: Float64Array[] = [];
   for (let b = 0; b < EPOCH_BLOCK; b++) spectra.push(new Float64Array(2 * fftSize));
   let maxBand = 2;
-  for (let f = 0; f < nf; f++) if (bank.bandSizes[f] > maxBand) maxBand = bank.bandSizes[f];
+  for (let f = 0; f < nf; f++) maxBand = Math.max(maxBand, bank.bandSizes[f], 2 * bank.averageBandSizes[f]);
   const band = new Float64Array(2 * maxBand);
   const work = new Float64Array(2 * maxBand);
   const out = new Float64Array(2 * maxBand);
   const row = new Float64Array(L);
   const trialScope = baseline.scope === 'trial';
   const keepRow = trialScope || job.singleTrials === true;
+  // Without per-trial rows, frequencies with a narrow band take the trial-average path (see averagePower).
+  const averagePath = !keepRow;
   const { first, last, method } = baseline;
 
   let totalEpochs = 0;
@@ -81,6 +83,8 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
     const sum = new Float64Array(nf * L);
     const normSum = trialScope ? new Float64Array(nf * L) : null;
     const single = singleTrials !== null ? new Float32Array(trials * nf * L) : null;
+    const decimated: (Float64Array | null)[] = [];
+    for (let f = 0; f < nf; f++) decimated.push(averagePath && bank.averageBandSizes[f] > 0 ? new Float64Array(2 * bank.averageBandSizes[f]) : null);
     for (let e0 = 0; e0 < trials; e0 += EPOCH_BLOCK) {
       if (shouldCancel !== undefined && shouldCancel()) throw new AnalysisCancelledError();
       const nb = Math.min(EPOCH_BLOCK, trials - e0);
@@ -91,6 +95,13 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
         forward.completeSpectrum(spectra[b]);
       }
       for (let f = 0; f < nf; f++) {
+        const acc = decimated[f];
+        if (acc !== null) {
+          const bins = bank.averageBins[f] as Int32Array;
+          const weights = bank.averageWeights[f] as Float64Array;
+          for (let b = 0; b < nb; b++) averagePower(acc, spectra[b], bins, weights, work, out);
+          continue;
+        }
         const off = f * L;
         const bins = bank.bins[f];
         const weights = bank.weights[f];
@@ -106,6 +117,10 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
         reported = doneEpochs / totalEpochs;
         onProgress(reported);
       }
+    }
+    for (let f = 0; f < nf; f++) {
+      const acc = decimated[f];
+      if (acc !== null) interpolatePower(sum, f * L, L, acc, bank.sizes[f]);
     }
     for (let i = 0; i < sum.length; i++) sum[i] /= trials;
     power.push(sum);
@@ -172,6 +187,60 @@ function bandPower(
       }
     }
   }
+}
+
+// Trial-average path. Power is |y|², and y's spectrum lies in M bins, so |y|² is a trigonometric polynomial with
+// lags below M: 2M samples per period N fix it exactly. Per epoch, u = FFT_2M(conj(X)·conj(W)/N over the band,
+// zero-padded) gives |y| at j = s·N/(2M) (the same identity as bandPower with a coarser grid); |u|² is summed over
+// trials, and interpolatePower turns the 2M summed samples into all L time points once per condition.
+function averagePower(acc: Float64Array, spectrum: Float64Array, bins: Int32Array, weights: Float64Array, work: Float64Array, out: Float64Array): void {
+  const m = bins.length;
+  const m2 = 2 * m;
+  for (let q = 0; q < m; q++) {
+    const idx = bins[q];
+    const xr = spectrum[idx];
+    const xi = -spectrum[idx + 1];
+    const vr = weights[2 * q];
+    const vi = weights[2 * q + 1];
+    work[2 * q] = xr * vr - xi * vi;
+    work[2 * q + 1] = xr * vi + xi * vr;
+  }
+  work.fill(0, 2 * m, 2 * m2);
+  getFft(m2).transform(out, work);
+  for (let s = 0; s < m2; s++) {
+    const re = out[2 * s];
+    const im = out[2 * s + 1];
+    acc[s] += re * re + im * im;
+  }
+}
+
+// Exact band-limited (Fourier) interpolation of 2M samples acc[s] = p(s·N/(2M)) of a power row p with lags below
+// M, written to sum[off + j] for j < L: c_d = FFT_2M(acc)[d]/(2M), p(j) = Σ_d c_d·exp(2πi d j/N). The Nyquist
+// coefficient (zero up to rounding) is split between ±M as usual; rounding below zero is clamped to 0.
+function interpolatePower(sum: Float64Array, off: number, length: number, acc: Float64Array, n: number): void {
+  const m2 = acc.length;
+  const m = m2 / 2;
+  const input = new Float64Array(2 * m2);
+  for (let s = 0; s < m2; s++) input[2 * s] = acc[s];
+  const c = new Float64Array(2 * m2);
+  getFft(m2).transform(c, input);
+  // p(j) = Re Σ_k S[k]·exp(+2πi k j/N) = Re FFT_N(conj S)[j]; conj S is filled directly.
+  const spectrum = new Float64Array(2 * n);
+  for (let d = 0; d < m; d++) {
+    spectrum[2 * d] = c[2 * d] / m2;
+    spectrum[2 * d + 1] = -c[2 * d + 1] / m2;
+  }
+  for (let d = 1; d < m; d++) {
+    spectrum[2 * (n - d)] = c[2 * (m2 - d)] / m2;
+    spectrum[2 * (n - d) + 1] = -c[2 * (m2 - d) + 1] / m2;
+  }
+  spectrum[2 * m] += c[2 * m] / (2 * m2);
+  spectrum[2 * m + 1] -= c[2 * m + 1] / (2 * m2);
+  spectrum[2 * (n - m)] += c[2 * m] / (2 * m2);
+  spectrum[2 * (n - m) + 1] -= c[2 * m + 1] / (2 * m2);
+  const p = new Float64Array(2 * n);
+  getFft(n).transform(p, spectrum);
+  for (let j = 0; j < length; j++) sum[off + j] = p[2 * j] > 0 ? p[2 * j] : 0;
 }
 
 // One trial's row, normalized by its own baseline and added into the running sum; the method switch sits outside

@@ -110,6 +110,13 @@ export interface WaveletBank {
   halfWidths: Int32Array;
   bins: Int32Array[];
   weights: Float64Array[];
+  /**
+   * Trial-average path (see `decomposeChannel`): band of `averageBandSizes[i]` bins (a power of two ≤ N_i/4, 0 when
+   * the band is too wide for it to pay), their interleaved spectrum indices and `conj(W)/N` over them.
+   */
+  averageBandSizes: Int32Array;
+  averageBins: (Int32Array | null)[];
+  averageWeights: (Float64Array | null)[];
 }
 
 const bankCache = new Map<string, WaveletBank>();
@@ -152,6 +159,9 @@ function buildWaveletBank(frequencies: Float64Array, sigmas: Float64Array, sampl
     if (sizes[i] > fftSize) fftSize = sizes[i];
   }
   const bandSizes = new Int32Array(count);
+  const averageBandSizes = new Int32Array(count);
+  const averageBins: (Int32Array | null)[] = [];
+  const averageWeights: (Float64Array | null)[] = [];
   const bins: Int32Array[] = [];
   const weights: Float64Array[] = [];
   for (let i = 0; i < count; i++) {
@@ -190,8 +200,9 @@ function buildWaveletBank(frequencies: Float64Array, sigmas: Float64Array, sampl
       if (d < 0 && -d > below) below = -d;
       if (d > 0 && d > above) above = d;
     }
-    const m = Math.min(n, nextPowerOfFour(below + above + 1));
-    const k0 = m === n ? 0 : peakBin - Math.floor(m / 2);
+    const width = below + above + 1;
+    const m = Math.min(n, nextPowerOfFour(width));
+    const k0 = m === n ? 0 : peakBin - below - Math.floor((m - width) / 2);
     const r = n / m;
     bandSizes[i] = m;
     const bandBins = new Int32Array(m);
@@ -211,8 +222,26 @@ function buildWaveletBank(frequencies: Float64Array, sigmas: Float64Array, sampl
     }
     bins.push(bandBins);
     weights.push(v);
+    const ma = nextPowerOfTwo(width);
+    if (4 * ma <= n) {
+      const ka = peakBin - below - Math.floor((ma - width) / 2);
+      const aBins = new Int32Array(ma);
+      const aWeights = new Float64Array(2 * ma);
+      for (let q = 0; q < ma; q++) {
+        const k = (((ka + q) % n) + n) % n;
+        aBins[q] = 2 * k * stride;
+        aWeights[2 * q] = spectrum[2 * k] / n;
+        aWeights[2 * q + 1] = -spectrum[2 * k + 1] / n;
+      }
+      averageBandSizes[i] = ma;
+      averageBins.push(aBins);
+      averageWeights.push(aWeights);
+    } else {
+      averageBins.push(null);
+      averageWeights.push(null);
+    }
   }
-  return { epochSamples, sampleRateHz, fftSize, sizes, bandSizes, halfWidths, bins, weights };
+  return { epochSamples, sampleRateHz, fftSize, sizes, bandSizes, halfWidths, bins, weights, averageBandSizes, averageBins, averageWeights };
 }
 
 // fft.js runs pure radix-4 passes at powers of four and adds a radix-2 pass otherwise; measured on fft.js 4.0.4,

@@ -7,7 +7,7 @@ import { seededNormal } from '../../../helpers/seeded-random';
 
 const baseline = { first: 0, last: 1, method: 'db' as const, scope: 'average' as const };
 
-function powerOf(samples: Float32Array, fs: number, freqs: number[], sigmas: Float64Array, starts: number[], L: number) {
+function powerOf(samples: Float32Array, fs: number, freqs: number[], sigmas: Float64Array, starts: number[], L: number, singleTrials = true) {
   return decomposeChannel({
     samples,
     epochStarts: [Int32Array.from(starts)],
@@ -16,7 +16,7 @@ function powerOf(samples: Float32Array, fs: number, freqs: number[], sigmas: Flo
     frequencies: Float64Array.from(freqs),
     sigmas,
     baseline,
-    singleTrials: true,
+    singleTrials,
   });
 }
 
@@ -30,9 +30,11 @@ describe('Morlet wavelet', () => {
       const x = new Float32Array(L);
       for (let i = 0; i < L; i++) x[i] = A * Math.cos(2 * Math.PI * f * (i / fs) + 0.3);
       const sigmas = gaussianSigmas(Float64Array.of(f), { fixed: cycles });
-      const p = powerOf(x, fs, [f], sigmas, [0], L).power[0];
-      const edge = Math.ceil(5 * sigmas[0] * fs);
-      for (let j = edge; j < L - edge; j++) assertClose(p[j], A * A, 0.01 * A * A, `f=${f} j=${j}`);
+      for (const single of [true, false]) {
+        const p = powerOf(x, fs, [f], sigmas, [0], L, single).power[0];
+        const edge = Math.ceil(5 * sigmas[0] * fs);
+        for (let j = edge; j < L - edge; j++) assertClose(p[j], A * A, 0.01 * A * A, `f=${f} j=${j} single=${single}`);
+      }
     }
   });
 
@@ -151,6 +153,40 @@ describe('decomposeChannel', () => {
     for (let j = 0; j < freqs.length * L; j++) {
       const mean = (single[j] + single[freqs.length * L + j] + single[2 * freqs.length * L + j]) / 3;
       assertClose(out.power[0][j], mean, 1e-6 * Math.max(1, mean));
+    }
+  });
+
+  it('gives the same trial average on the decimated trial-average path as direct convolution', () => {
+    // Without single trials, narrow-band frequencies sum |y|² on a 2M-point grid and interpolate once; the
+    // reference is again the time-domain convolution, averaged over epochs.
+    const fs = 256;
+    const L = 513;
+    const normal = seededNormal(31);
+    const x = new Float32Array(4000);
+    for (let i = 0; i < x.length; i++) x[i] = 10 * normal() + 20 * Math.sin((2 * Math.PI * 11 * i) / fs);
+    const freqs = [4, 6, 11, 25, 40];
+    const sigmas = gaussianSigmas(Float64Array.from(freqs), { min: 3, max: 9 });
+    const bank = getWaveletBank(Float64Array.from(freqs), sigmas, fs, L);
+    expect(Array.from(bank.averageBandSizes).filter((m) => m > 0).length).toBeGreaterThan(2);
+    const starts = [0, 700, 1500, 2600, 3400];
+    const average = decomposeChannel({
+      samples: x,
+      epochStarts: [Int32Array.from(starts)],
+      epochSamples: L,
+      sampleRateHz: fs,
+      frequencies: Float64Array.from(freqs),
+      sigmas,
+      baseline,
+    }).power[0];
+    for (let fi = 0; fi < freqs.length; fi++) {
+      const expected = new Float64Array(L);
+      for (const s0 of starts) {
+        const p = directPower(x, s0, L, freqs[fi], sigmas[fi], fs, bank.halfWidths[fi]);
+        for (let j = 0; j < L; j++) expected[j] += p[j] / starts.length;
+      }
+      let max = 0;
+      for (const v of expected) max = Math.max(max, v);
+      assertClose(average.subarray(fi * L, (fi + 1) * L), expected, 1e-11 * max, `f=${freqs[fi]}`);
     }
   });
 
