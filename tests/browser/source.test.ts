@@ -289,6 +289,15 @@ describe('Source screen: a recording opened on this device', () => {
     await pick('tm-matrix.csv', csv, { name: 'tm-matrix_events.tsv', data: events });
     await page.getByTestId('library-entry').first().waitFor();
     expect(await page.getByTestId('library-entry').count()).toBe(1);
+    expect(await page.getByTestId('library-entry').textContent()).toContain('sample matrix, 100 Hz');
+
+    // Reopened from the library, it is read the same way (rate and events kept with it), then removed.
+    await page.getByRole('button', { name: 'Reopen tm-matrix.csv' }).click();
+    await page.getByTestId('recording-details').filter({ hasText: 'this browser’s library' }).waitFor();
+    expect(await page.getByTestId('epoch-row').count()).toBe(5);
+    await page.getByRole('button', { name: 'Remove all…' }).click();
+    await page.getByRole('button', { name: 'Remove all', exact: true }).click();
+    await page.getByText('The library is empty.').waitFor();
     await context.close();
   });
 
