@@ -34,6 +34,15 @@ async function readCell(fi: number, ti: number) {
   };
 }
 
+/** The recipe as the Maps screen exports it (the current view's baseline, method and scope). */
+async function exportedRecipe() {
+  const current = await page.getByRole('tab', { selected: true }).textContent();
+  await page.getByRole('tab', { name: 'Maps' }).click();
+  const recipe = JSON.parse((await download('export-recipe')).bytes.toString('utf8'));
+  await page.getByRole('tab', { name: current ?? 'Maps' }).click();
+  return recipe;
+}
+
 async function download(testId: string): Promise<{ name: string; bytes: Buffer }> {
   const [dl] = await Promise.all([page.waitForEvent('download'), page.getByTestId(testId).click()]);
   const file = path.join(artifactsDir, dl.suggestedFilename());
@@ -98,6 +107,22 @@ describe('the explorer on a demo recording', () => {
     await page.screenshot({ path: path.join(artifactsDir, 'explorer-recipe.png'), fullPage: true });
   });
 
+  it('validates the recipe against the recording with a message naming the field, cancels a run, and recalls a cached one', async () => {
+    await page.getByTestId('recipe-fmax').fill('300');
+    // 500 Hz sampling: Nyquist is 250 Hz (Nyquist–Shannon), so 300 Hz must be refused before any work starts.
+    await expect.poll(() => page.getByRole('alert').allTextContents()).toContainEqual(expect.stringContaining('Nyquist'));
+    expect(await page.getByTestId('recipe-run').isDisabled()).toBe(true);
+    await page.getByTestId('recipe-fmax').fill('40');
+    await page.getByTestId('recipe-fcount').fill('60');
+    await page.getByTestId('recipe-run').click();
+    await page.getByTestId('recipe-cancel').click();
+    await page.waitForFunction(() => document.querySelector('[data-testid="recipe-status"]')?.getAttribute('data-status') === 'cancelled');
+    await page.getByTestId('recipe-fcount').fill('16');
+    expect(await page.getByTestId('recipe-run').textContent()).toContain('Shown on Maps');
+    await page.getByTestId('recipe-run').click();
+    await page.waitForFunction(() => document.querySelector('[data-testid="recipe-status"]')?.textContent?.includes('From the cache'));
+  });
+
   it('shows the normalized value under the cursor equal to the core run in Node, and a dragged baseline changes it', async () => {
     await page.getByRole('tab', { name: 'Maps' }).click();
     await page.getByTestId('map-normalized').waitFor();
@@ -128,7 +153,7 @@ describe('the explorer on a demo recording', () => {
     expect(after.normalized).not.toBeCloseTo(before.normalized, 6);
     const moved = await download('export-recipe');
     recipe = JSON.parse(moved.bytes.toString('utf8'));
-    expect(recipe.baseline.start).toBe(start);
+    expect(recipe.baseline.start).toBeCloseTo(start, 9);
     result = nodeResult(recipe);
     expect(after.normalized).toBeCloseTo(result.conditions['lamp-watch'].normalized[0][fi][ti], 9);
     const marks = await page.evaluate(() => performance.getEntriesByName('tidemark:renormalize', 'measure').length);
@@ -196,5 +221,88 @@ describe('the explorer on a demo recording', () => {
     expect(png.bytes.readUInt32BE(16)).toBe(2 * 640 * 2);
     expect(png.bytes.readUInt32BE(20)).toBe((340 + 36) * 2);
     expect(png.bytes.length).toBeGreaterThan(20_000);
+  });
+});
+
+describe('the spectrum and band screens', () => {
+  it('draws the aperiodic fit of the mean epoch spectrum, equal to the core fit in Node, with a draggable range', async () => {
+    const { epochSpectra } = await import('../../src/lib/analysis/epoch-spectra');
+    const { fitAperiodic } = await import('../../src/lib/analysis/aperiodic');
+    const { planRecipe } = await import('../../src/lib/analysis/run-recipe');
+    await page.getByRole('tab', { name: 'Spectrum' }).click();
+    await page.getByTestId('fit-readout').waitFor({ timeout: 30_000 });
+    const recipe = await exportedRecipe();
+    loadDemo(DEMO);
+    const recording = useSourceStore.getState().analysisRecording()!;
+    const plan = planRecipe(recording, recipe);
+    const starts = Int32Array.from(plan.epochStarts.flatMap((s) => Array.from(s)));
+    const fz = epochSpectra(recording.data[recording.channelNames.indexOf('Fz')], 500, starts, plan.epochSamples, plan.spectrum.segmentSamples, plan.spectrum.overlapSamples, plan.spectrum.range);
+    const expectFit = async (range: [number, number]) => {
+      const expected = fitAperiodic(fz.frequencies, fz.mean, range, 'fixed');
+      await page.waitForFunction((e) => Math.abs(Number(document.querySelector('[data-testid="fit-readout"]')?.getAttribute('data-exponent')) - e) < 1e-9, expected.exponent);
+      return expected.exponent;
+    };
+    const before = await expectFit([2, 40]);
+    // Drag the fit range's start handle to the right with the pointer.
+    const handle = (await page.getByTestId('fit-range-low').boundingBox())!;
+    await page.mouse.move(handle.x + handle.width / 2, handle.y + handle.height / 2);
+    await page.mouse.down();
+    for (let i = 1; i <= 5; i++) await page.mouse.move(handle.x + handle.width / 2 + 12 * i, handle.y + handle.height / 2);
+    await page.mouse.up();
+    const low = Number(await page.getByTestId('fit-low').inputValue());
+    expect(low).toBeGreaterThan(2);
+    const after = await expectFit([low, 40]);
+    expect(after).not.toBeCloseTo(before, 6);
+    expect(await page.getByTestId('scalp-exponent').locator('circle').count()).toBeGreaterThanOrEqual(3);
+
+    const csv = (await download('export-fits')).bytes.toString('utf8').trim().split(/\r?\n/);
+    expect(csv[0]).toBe('channel,exponent,offset,knee,r2,rmse,points,excluded,fit_low_hz,fit_high_hz,mode,trials');
+    expect(csv).toHaveLength(1 + DEMO.channels.length);
+    expect(Number(csv.find((l) => l.startsWith('Fz,'))!.split(',')[1])).toBeCloseTo(after, 9);
+    await page.screenshot({ path: path.join(artifactsDir, 'explorer-spectrum.png'), fullPage: true });
+  });
+
+  it('summarises band × window means per channel and condition, matching the core map averaged by hand', async () => {
+    await page.getByRole('tab', { name: 'Bands' }).click();
+    await page.getByTestId('band-plot').waitFor();
+    const recipe = await exportedRecipe();
+    const csv = (await download('export-bands')).bytes.toString('utf8').trim().split(/\r?\n/);
+    expect(csv[0]).toBe('band,band_low_hz,band_high_hz,window,window_start_s,window_end_s,channel,condition,method,scope,baseline_start_s,baseline_end_s,value,unit,cells');
+    // 4 default bands × 2 windows × 3 channels × 2 conditions.
+    expect(csv).toHaveLength(1 + 4 * 2 * 3 * 2);
+    // theta (4–8 Hz), early window (0.1–0.5 s), Fz, lamp-watch: the mean of the core's dB map over those cells,
+    // leaving out edge-zone cells (closer than edgeSeconds to an epoch edge).
+    const r = nodeResult({ ...recipe, baseline: { ...recipe.baseline, scope: 'average' } });
+    const map = r.conditions['lamp-watch'].normalized[0];
+    let sum = 0;
+    let n = 0;
+    r.frequencies.forEach((f, fi) => {
+      if (f < 4 || f > 8) return;
+      r.times.forEach((t, ti) => {
+        if (t < 0.1 - 1e-9 || t > 0.5 + 1e-9) return;
+        if (t - r.times[0] < r.edgeSeconds[fi] || r.times[r.times.length - 1] - t < r.edgeSeconds[fi]) return;
+        sum += map[fi][ti];
+        n++;
+      });
+    });
+    const line = csv.find((l) => l.startsWith('theta,') && l.includes(',early,') && l.includes(',Fz,lamp-watch,'))!;
+    const cols = line.split(',');
+    expect(Number(cols[12])).toBeCloseTo(sum / n, 9);
+    expect(Number(cols[14])).toBe(n);
+    await page.screenshot({ path: path.join(artifactsDir, 'explorer-bands.png'), fullPage: true });
+  });
+
+  it('stays readable at 200 % zoom: the maps reflow into one column without sideways scrolling', async () => {
+    await page.setViewportSize({ width: 640, height: 900 });
+    await page.getByRole('tab', { name: 'Maps' }).click();
+    await page.getByTestId('map-normalized').waitFor();
+    await page.waitForTimeout(300);
+    const overflow = await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
+    expect(overflow).toBeLessThanOrEqual(0);
+    const raw = (await page.getByTestId('map-raw').boundingBox())!;
+    const norm = (await page.getByTestId('map-normalized').boundingBox())!;
+    expect(norm.y).toBeGreaterThan(raw.y + raw.height - 1);
+    await page.screenshot({ path: path.join(artifactsDir, 'explorer-maps-200-percent.png'), fullPage: true });
+    await page.setViewportSize({ width: 1500, height: 1000 });
   });
 });

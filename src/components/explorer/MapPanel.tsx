@@ -70,7 +70,9 @@ export default function MapPanel(props: MapPanelProps) {
     const ctx = c.getContext('2d');
     if (ctx === null) return;
     paintPanel(ctx, layout, spec, ratio, reuse.current);
-  });
+    // Repaint only for a new picture: the raw map keeps its spec object while the baseline moves.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [spec, width, height, ratio]);
 
   if (layout === null) return <div ref={wrap} className="w-full" style={{ height }} />;
   const scales = panelScales(layout, spec.times, spec.frequencies, spec.spacing);

@@ -1,5 +1,312 @@
+import { useEffect, useMemo, useRef, useState, type PointerEvent, type KeyboardEvent } from 'react';
+import Papa from 'papaparse';
 import type { WorkspaceProps } from './types';
+import { fitAperiodic, type AperiodicFit } from '../../lib/analysis/aperiodic';
+import type { EpochSpectra } from '../../lib/analysis/epoch-spectra';
+import { explorerWorker } from '../../lib/client/explorer-worker';
+import { axisScale, drawLineAxes, drawSeries, type LineLayout, type Series } from '../../lib/plot/line-plot';
+import { CORAL, INK } from '../../lib/plot/figure';
+import { selectActive, useResultsStore, type Decomposition } from '../../stores/results';
+import { useSourceStore } from '../../stores/source';
+import { useViewStore, type SpectrumAxes } from '../../stores/view';
+import CanvasPlot from '../explorer/CanvasPlot';
+import Choice from '../explorer/Choice';
+import FitTable, { type FitRow } from '../explorer/FitTable';
+import NumberField from '../explorer/NumberField';
+import ScalpMap from '../explorer/ScalpMap';
+import { downloadBlob } from '../explorer/download';
+import { usePanelVisible } from '../explorer/usePanelVisible';
 
+const spectraCache = new Map<string, EpochSpectra[]>();
+
+/** Per-epoch Welch spectra of every channel of the decomposition, computed once in the explorer worker. */
+function useEpochSpectra(d: Decomposition | null, visible: boolean): EpochSpectra[] | null {
+  const [spectra, setSpectra] = useState<EpochSpectra[] | null>(null);
+  useEffect(() => {
+    if (d === null || !visible) return;
+    const cached = spectraCache.get(d.key);
+    if (cached !== undefined) {
+      setSpectra(cached);
+      return;
+    }
+    setSpectra(null);
+    const recording = useSourceStore.getState().analysisRecording();
+    if (recording === null) return;
+    let live = true;
+    const samples = d.channels.map((c) => recording.data[recording.channelNames.indexOf(c)].slice());
+    const starts = new Int32Array(d.epochStarts.reduce((n, s) => n + s.length, 0));
+    let o = 0;
+    for (const s of d.epochStarts) {
+      starts.set(s, o);
+      o += s.length;
+    }
+    const range = d.recipe.spectrum.range as [number, number];
+    void explorerWorker()
+      .spectra(samples, d.sampleRateHz, starts, d.epochSamples, d.spectrumSegmentSamples, d.spectrumOverlapSamples, range)
+      .then((out) => {
+        spectraCache.set(d.key, out);
+        if (live) setSpectra(out);
+      });
+    return () => {
+      live = false;
+    };
+  }, [d, visible]);
+  return spectra;
+}
+
+type Fit = { fit: AperiodicFit; error: null } | { fit: null; error: string };
+
+function fitLine(fit: AperiodicFit, f: number): number {
+  return fit.knee === null ? fit.offset - fit.exponent * Math.log10(f) : fit.offset - Math.log10(fit.knee + Math.pow(f, fit.exponent));
+}
+
+/** Welch spectra per trial and averaged, the aperiodic fit with its draggable range, the flattened spectrum. */
 export default function SpectrumScreen(_props: WorkspaceProps) {
-  return <p className="text-ink-soft">The Spectrum screen is not built yet.</p>;
+  const d = useResultsStore(selectActive);
+  const channel = useViewStore((s) => s.channel);
+  const axes = useViewStore((s) => s.spectrumAxes);
+  const fitRange = useViewStore((s) => s.fitRange);
+  const setView = useViewStore((s) => s.set);
+  const visible = usePanelVisible('Spectrum');
+  const spectra = useEpochSpectra(d, visible);
+  const mode = d?.recipe.aperiodic.mode ?? 'fixed';
+
+  const fits = useMemo((): Fit[] | null => {
+    if (spectra === null) return null;
+    return spectra.map((s) => {
+      try {
+        return { fit: fitAperiodic(s.frequencies, s.mean, fitRange, mode), error: null };
+      } catch (error) {
+        return { fit: null, error: error instanceof Error ? error.message : String(error) };
+      }
+    });
+  }, [spectra, fitRange, mode]);
+
+  if (d === null) {
+    return (
+      <div className="card p-4">
+        <p>No decomposition yet: run a recipe on the Recipe screen; its epochs and channels are used here.</p>
+      </div>
+    );
+  }
+  const ci = Math.max(0, channel === null ? 0 : d.channels.indexOf(channel));
+  const ch = d.channels[ci];
+  const sp = spectra?.[ci] ?? null;
+  const fit = fits?.[ci] ?? null;
+  const rows: FitRow[] =
+    fits === null
+      ? []
+      : d.channels.map((c, i) => {
+          const f = fits[i].fit;
+          return { channel: c, exponent: f?.exponent ?? null, offset: f?.offset ?? null, knee: f?.knee ?? null, r2: f?.r2 ?? null, rmse: f?.rmse ?? null, points: f?.points ?? null, excluded: f?.excluded ?? null };
+        });
+
+  const exportFits = () => {
+    const csv = Papa.unparse({
+      fields: ['channel', 'exponent', 'offset', 'knee', 'r2', 'rmse', 'points', 'excluded', 'fit_low_hz', 'fit_high_hz', 'mode', 'trials'],
+      data: rows.map((r) => [r.channel, r.exponent, r.offset, r.knee, r.r2, r.rmse, r.points, r.excluded, fitRange[0], fitRange[1], mode, sp?.trials ?? '']),
+    });
+    downloadBlob(new Blob([csv + '\n'], { type: 'text/csv' }), 'aperiodic-fits.csv');
+  };
+
+  return (
+    <div className="flex flex-col gap-4" data-testid="spectrum-screen">
+      <div className="card flex flex-wrap items-end gap-4 p-3">
+        <label className="flex flex-col gap-0.5 text-xs text-ink-soft">
+          Channel
+          <select className="rounded-sm border border-shell bg-foam px-2 py-1 text-sm text-ink" value={ch} onChange={(e) => setView({ channel: e.target.value })} data-testid="spectrum-channel">
+            {d.channels.map((c) => (
+              <option key={c}>{c}</option>
+            ))}
+          </select>
+        </label>
+        <Choice<SpectrumAxes> legend="Axes" value={axes} options={[{ value: 'linear', label: 'linear' }, { value: 'log-power', label: 'log power' }, { value: 'log-log', label: 'log-log' }]} onChange={(a) => setView({ spectrumAxes: a })} />
+        <NumberField label="Fit from" unit="Hz" value={fitRange[0]} step={0.5} testId="fit-low" onValue={(v) => setView({ fitRange: [v, fitRange[1]] })} />
+        <NumberField label="Fit to" unit="Hz" value={fitRange[1]} step={0.5} testId="fit-high" onValue={(v) => setView({ fitRange: [fitRange[0], v] })} />
+        <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale disabled:opacity-50" disabled={fits === null} onClick={exportFits} data-testid="export-fits">
+          Export fit table CSV
+        </button>
+      </div>
+      {sp === null ? (
+        <p className="text-ink-soft" role="status">
+          Computing per-epoch spectra in a worker…
+        </p>
+      ) : (
+        <>
+          <div className="card p-2">
+            <SpectrumPlot spectra={sp} fit={fit} axes={axes} fitRange={fitRange} onFitRange={(r) => setView({ fitRange: r })} channel={ch} />
+            <FitReadout fit={fit} mode={mode} />
+          </div>
+          <div className="grid grid-cols-1 gap-4 lg:grid-cols-[2fr_1fr]">
+            <div className="card p-2">
+              <FitTable rows={rows} selected={ch} onSelect={(c) => setView({ channel: c })} />
+            </div>
+            <div className="card p-2">
+              <ScalpMap title="Aperiodic exponent" unit="χ" values={rows.map((r) => ({ channel: r.channel, value: r.exponent }))} testId="scalp-exponent" />
+            </div>
+          </div>
+        </>
+      )}
+    </div>
+  );
+}
+
+function FitReadout({ fit, mode }: { fit: Fit | null; mode: string }) {
+  if (fit === null) return null;
+  if (fit.fit === null) return <p className="p-2 text-sm text-coral-deep">{fit.error}</p>;
+  const f = fit.fit;
+  return (
+    <dl className="flex flex-wrap gap-x-6 gap-y-1 p-2 font-mono text-sm" data-testid="fit-readout" data-exponent={f.exponent}>
+      <div>
+        <dt className="inline text-ink-soft">exponent </dt>
+        <dd className="inline">{f.exponent.toFixed(3)}</dd>
+      </div>
+      <div>
+        <dt className="inline text-ink-soft">offset </dt>
+        <dd className="inline">{f.offset.toFixed(3)}</dd>
+      </div>
+      <div>
+        <dt className="inline text-ink-soft">knee </dt>
+        <dd className="inline">{f.knee === null ? `— (${mode})` : f.knee.toFixed(2)}</dd>
+      </div>
+      <div>
+        <dt className="inline text-ink-soft">r² </dt>
+        <dd className="inline">{f.r2.toFixed(4)}</dd>
+      </div>
+      <div>
+        <dt className="inline text-ink-soft">RMSE </dt>
+        <dd className="inline">{f.rmse.toFixed(4)}</dd>
+      </div>
+      <div>
+        <dt className="inline text-ink-soft">bins </dt>
+        <dd className="inline">
+          {f.points} ({f.excluded} peak bins left out)
+        </dd>
+      </div>
+    </dl>
+  );
+}
+
+interface SpectrumPlotProps {
+  spectra: EpochSpectra;
+  fit: Fit | null;
+  axes: SpectrumAxes;
+  fitRange: [number, number];
+  onFitRange: (r: [number, number]) => void;
+  channel: string;
+}
+
+function SpectrumPlot({ spectra, fit, axes, fitRange, onFitRange, channel }: SpectrumPlotProps) {
+  const { frequencies, perTrial, mean, trials } = spectra;
+  const bins = frequencies.length;
+  const xLog = axes === 'log-log';
+  const yLog = axes !== 'linear';
+  const fLo = xLog ? Math.max(frequencies[0], frequencies.find((f) => f > 0) ?? 1) : frequencies[0];
+  const fHi = frequencies[bins - 1];
+  let pMin = Infinity;
+  let pMax = 0;
+  for (let i = 0; i < perTrial.length; i++) {
+    const v = perTrial[i];
+    if (v > 0 && v < pMin) pMin = v;
+    if (v > pMax) pMax = v;
+  }
+  const f = fit?.fit ?? null;
+  const fitXs = frequencies.filter((x) => x >= fitRange[0] - 1e-9 && x <= fitRange[1] + 1e-9 && x > 0);
+  const flat = Float64Array.from(frequencies, (x, i) => (f === null || x <= 0 ? NaN : Math.log10(mean[i]) - fitLine(f, x)));
+  const drag = useRef<{ kind: 'low' | 'high' | 'body'; x0: number; r0: [number, number]; x: ReturnType<typeof axisScale> } | null>(null);
+  const binHz = bins > 1 ? frequencies[1] - frequencies[0] : 1;
+  const clampRange = (r: [number, number]): [number, number] => {
+    const lo = Math.max(fLo, Math.min(r[0], r[1] - 3 * binHz));
+    const hi = Math.min(fHi, Math.max(r[1], lo + 3 * binHz));
+    return [Number(lo.toFixed(4)), Number(hi.toFixed(4))];
+  };
+  const snapHz = (v: number) => Math.round(v / binHz) * binHz;
+
+  const draw = (ctx: CanvasRenderingContext2D, layout: LineLayout) => {
+    const x = axisScale(xLog ? 'log' : 'linear', fLo, fHi, layout.left, layout.left + layout.plotWidth);
+    const y = axisScale(yLog ? 'log' : 'linear', yLog ? pMin : 0, pMax, layout.top + layout.plotHeight, layout.top);
+    const series: Series[] = [];
+    for (let k = 0; k < trials; k++) series.push({ xs: frequencies, ys: perTrial.subarray(k * bins, (k + 1) * bins), colour: '#3b5366', width: 0.75, alpha: 0.22 });
+    series.push({ xs: frequencies, ys: mean, colour: INK, width: 2.5 });
+    if (f !== null) series.push({ xs: fitXs, ys: fitXs.map((v) => Math.pow(10, fitLine(f, v))), colour: CORAL, width: 2, dash: [6, 3] });
+    ctx.save();
+    ctx.globalAlpha = 0.5;
+    ctx.fillStyle = '#dcebe5';
+    ctx.fillRect(x(fitRange[0]), layout.top, x(fitRange[1]) - x(fitRange[0]), layout.plotHeight);
+    ctx.restore();
+    drawSeries(ctx, layout, x, y, series);
+    drawLineAxes(ctx, layout, x, y, { xLog, yLog, xTitle: 'frequency (Hz)', yTitle: 'power (µV²/Hz)', title: `${channel}: ${trials} epochs (thin), mean (thick), aperiodic fit (dashed)` });
+  };
+  const drawFlat = (ctx: CanvasRenderingContext2D, layout: LineLayout) => {
+    const x = axisScale(xLog ? 'log' : 'linear', fLo, fHi, layout.left, layout.left + layout.plotWidth);
+    let lo = Infinity;
+    let hi = -Infinity;
+    for (const v of flat) if (Number.isFinite(v)) (lo = Math.min(lo, v)), (hi = Math.max(hi, v));
+    if (!(hi > lo)) (lo = -1), (hi = 1);
+    const y = axisScale('linear', Math.min(lo, -0.1), Math.max(hi, 0.1), layout.top + layout.plotHeight, layout.top);
+    drawSeries(ctx, layout, x, y, [
+      { xs: [fLo, fHi], ys: [0, 0], colour: '#c9b896', width: 1, dash: [3, 3] },
+      { xs: frequencies, ys: flat, colour: INK, width: 2 },
+    ]);
+    drawLineAxes(ctx, layout, x, y, { xLog, yLog: false, xTitle: 'frequency (Hz)', yTitle: 'log10 P − fit', title: 'Flattened spectrum: mean minus the aperiodic fit' });
+  };
+
+  const overlay = (layout: LineLayout) => {
+    const x = axisScale(xLog ? 'log' : 'linear', fLo, fHi, layout.left, layout.left + layout.plotWidth);
+    const x0 = x(fitRange[0]);
+    const x1 = x(fitRange[1]);
+    const down = (kind: 'low' | 'high' | 'body') => (e: PointerEvent<HTMLDivElement>) => {
+      e.preventDefault();
+      e.stopPropagation();
+      (e.currentTarget as HTMLElement).setPointerCapture(e.pointerId);
+      drag.current = { kind, x0: e.clientX, r0: fitRange, x };
+    };
+    const move = (e: PointerEvent<HTMLDivElement>) => {
+      const g = drag.current;
+      if (g === null) return;
+      const dx = e.clientX - g.x0;
+      const at = (hz: number) => snapHz(g.x.invert(g.x(hz) + dx));
+      if (g.kind === 'low') onFitRange(clampRange([at(g.r0[0]), g.r0[1]]));
+      else if (g.kind === 'high') onFitRange(clampRange([g.r0[0], at(g.r0[1])]));
+      else onFitRange(clampRange([at(g.r0[0]), at(g.r0[1])]));
+    };
+    const up = () => {
+      drag.current = null;
+    };
+    const key = (kind: 'low' | 'high') => (e: KeyboardEvent<HTMLDivElement>) => {
+      if (e.key !== 'ArrowLeft' && e.key !== 'ArrowRight') return;
+      e.preventDefault();
+      const step = (e.shiftKey ? 5 : binHz) * (e.key === 'ArrowLeft' ? -1 : 1);
+      onFitRange(clampRange(kind === 'low' ? [fitRange[0] + step, fitRange[1]] : [fitRange[0], fitRange[1] + step]));
+    };
+    return (
+      <div className="absolute cursor-grab" style={{ left: x0, width: Math.max(4, x1 - x0), top: layout.top + layout.plotHeight - 16, height: 30, touchAction: 'none' }} onPointerDown={down('body')} onPointerMove={move} onPointerUp={up} data-testid="fit-range">
+        <div className="absolute inset-x-0 top-3 h-1 bg-kelp/60" />
+        {(['low', 'high'] as const).map((kind) => (
+          <div
+            key={kind}
+            role="slider"
+            tabIndex={0}
+            aria-label={`Fit range ${kind === 'low' ? 'start' : 'end'}`}
+            aria-valuenow={kind === 'low' ? fitRange[0] : fitRange[1]}
+            aria-valuetext={`${kind === 'low' ? fitRange[0] : fitRange[1]} Hz`}
+            data-testid={`fit-range-${kind}`}
+            className="absolute top-0 h-7 w-3 cursor-ew-resize rounded-sm border border-kelp-deep bg-kelp"
+            style={kind === 'low' ? { left: -6 } : { right: -6 }}
+            onPointerDown={down(kind)}
+            onPointerMove={move}
+            onPointerUp={up}
+            onKeyDown={key(kind)}
+          />
+        ))}
+      </div>
+    );
+  };
+
+  return (
+    <div className="flex flex-col gap-2">
+      <CanvasPlot height={340} label={`Spectra of ${channel}`} testId="spectrum-plot" draw={draw} overlay={overlay} />
+      <CanvasPlot height={180} label={`Flattened spectrum of ${channel}`} testId="flattened-plot" draw={drawFlat} />
+    </div>
+  );
 }

@@ -1,0 +1,117 @@
+// `npm run bench:ui`: the explorer's live re-normalization speed in Chromium (playwright-core, Debian's browser).
+// Boots the app like `npm test` (own cluster, slot TIDEMARK_BENCH_SLOT, default 8), loads a synthetic demo recording
+// through the ?testhooks hook, decomposes one channel into a 40 × 1536 map with 100 trials, then moves the baseline
+// with the keyboard and reads the User Timing measures 'tidemark:renormalize' (from the input's mark to the
+// painted canvas). Targets (issue "The explorer"): p95 ≤ 8 ms in average scope, ≤ 33 ms in single-trial scope.
+import path from 'node:path';
+import {
+  assertPortFree, buildIfStale, ensureNodeModules, log, migrate, onSignals, outDir, requireChromium, root, runMain, seed,
+  startChild, startCluster, stopAll,
+} from './lib/bootstrap.mjs';
+
+const SLOT = Number(process.env.TIDEMARK_BENCH_SLOT ?? 8);
+const APP_PORT = 4331 + SLOT;
+const PG_PORT = 54339 + SLOT;
+const SMTP_PORT = 2535 + SLOT;
+const INPUTS = Number(process.env.TIDEMARK_BENCH_INPUTS ?? 200);
+process.env.TIDEMARK_OUT_DIR = `dist-${SLOT}`;
+
+function percentile(sorted, p) {
+  if (sorted.length === 0) return NaN;
+  const i = Math.min(sorted.length - 1, Math.max(0, Math.ceil((p / 100) * sorted.length) - 1));
+  return sorted[i];
+}
+
+await runMain(async () => {
+  onSignals(async () => {
+    await stopAll();
+    process.exit(130);
+  });
+  ensureNodeModules();
+  const chromiumPath = requireChromium();
+  await assertPortFree(APP_PORT, 'the bench app');
+  await assertPortFree(SMTP_PORT, 'the bench mail fake');
+  const cluster = await startCluster({ name: `pg-test-${SLOT}`, port: PG_PORT, fastAndLoose: true });
+  const db = `tidemark_test_${SLOT}`;
+  cluster.ensureDatabase(db, { fresh: true });
+  const databaseUrl = cluster.url(db);
+  migrate(databaseUrl);
+  seed(databaseUrl);
+  buildIfStale();
+  const appUrl = `http://127.0.0.1:${APP_PORT}`;
+  const env = { DATABASE_URL: databaseUrl, SMTP_HOST: '127.0.0.1', SMTP_PORT: String(SMTP_PORT), TIDEMARK_MAIL_FAKE: '1', HOST: '127.0.0.1', PORT: String(APP_PORT), TIDEMARK_ORIGIN: appUrl };
+  await startChild('mail fake', process.execPath, [path.join(root, 'scripts', 'mail-fake.mjs')], { env, readyLine: 'mail fake listening' });
+  await startChild('app', process.execPath, [path.join(root, outDir(), 'server', 'entry.mjs')], { env, readyLine: 'Server listening' });
+
+  const { chromium } = await import('playwright-core');
+  const browser = await chromium.launch({ executablePath: chromiumPath, headless: true, args: ['--headless', '--no-sandbox', '--disable-gpu', '--no-first-run'] });
+  try {
+    const page = await (await browser.newContext({ viewport: { width: 1500, height: 1000 }, deviceScaleFactor: 1 })).newPage();
+    await page.goto(`${appUrl}/sign-in`);
+    await page.getByLabel('E-mail').fill('analyst1@saltmarsh.example');
+    await page.getByLabel('Password').fill('demo-analyst-pass');
+    await page.getByRole('button', { name: 'Sign in' }).click();
+    await page.waitForURL(/\/teams\//);
+    await page.getByRole('link', { name: 'Harbour-bell anticipation' }).first().click();
+    await page.waitForURL(/\/studies\//);
+    await page.goto(`${page.url().replace(/\/$/, '')}/workspace?testhooks`);
+    await page.waitForFunction(() => window.__tidemark !== undefined);
+    // 250 s of the demo gives 100 cues; -1 … 2.07 s at 500 Hz is 1536 time points; rejection off keeps all 100.
+    const loaded = await page.evaluate(() => {
+      const hooks = window.__tidemark;
+      const info = hooks.loadDemo({ seconds: 250, channels: ['Fz'], tmin: -1, tmax: 2.07, pooled: true });
+      hooks.stores.source.getState().setRejection({ peakToPeakMicrovolts: null, flatMicrovolts: null });
+      hooks.stores.recipe.getState().setDraft({ frequencies: { min: 3, max: 40, count: 40, spacing: 'log' } });
+      hooks.stores.view.getState().set({ baseline: { start: -0.6, end: -0.3 } });
+      return { ...info, kept: hooks.stores.source.getState().decisions.filter((d) => !d.rejected).length };
+    });
+    log(`bench recording: ${loaded.channels.join(', ')}, ${loaded.kept} kept trials`);
+    await page.getByRole('tab', { name: 'Recipe' }).click();
+    await page.getByTestId('recipe-run').click();
+    await page.waitForFunction(() => document.querySelector('[data-testid="recipe-status"]')?.getAttribute('data-status') === 'done', undefined, { timeout: 300_000 });
+    await page.getByRole('tab', { name: 'Maps' }).click();
+    await page.getByTestId('map-normalized').waitFor();
+    const size = await page.evaluate(() => {
+      const c = document.querySelector('[data-testid="map-normalized"]');
+      return { frequencies: Number(c.getAttribute('data-frequencies')), times: Number(c.getAttribute('data-times')), width: c.width, height: c.height };
+    });
+    log(`map ${size.frequencies} × ${size.times}, canvas ${size.width} × ${size.height} px`);
+
+    // Keyboard steps of one sample on the band, alternating direction; each waits for its measure (or 2 s).
+    const measure = (count) =>
+      page.evaluate(async (n) => {
+        const band = document.querySelector('[data-testid="map-normalized-baseline"]');
+        performance.clearMeasures('tidemark:renormalize');
+        for (let i = 0; i < n; i++) {
+          const before = performance.getEntriesByName('tidemark:renormalize').length;
+          band.dispatchEvent(new KeyboardEvent('keydown', { key: i % 2 === 0 ? 'ArrowRight' : 'ArrowLeft', bubbles: true }));
+          const t0 = performance.now();
+          while (performance.getEntriesByName('tidemark:renormalize').length === before && performance.now() - t0 < 2000) {
+            await new Promise((r) => requestAnimationFrame(() => r(undefined)));
+          }
+          await new Promise((r) => setTimeout(r, 4));
+        }
+        return performance.getEntriesByName('tidemark:renormalize').map((e) => e.duration);
+      }, count);
+
+    const results = {};
+    for (const scope of ['average', 'trial']) {
+      if (scope === 'trial') {
+        await page.getByText('single trial', { exact: true }).click();
+        await page.waitForFunction(() => document.querySelector('[data-testid="map-readout"]')?.getAttribute('data-fresh') === 'yes' && !document.body.textContent.includes('Preparing single-trial maps'), undefined, { timeout: 300_000 });
+      }
+      await measure(20); // warm-up: JIT, image buffers, worker
+      const durations = (await measure(INPUTS)).sort((a, b) => a - b);
+      results[scope] = { n: durations.length, p50: percentile(durations, 50), p95: percentile(durations, 95), max: durations[durations.length - 1] };
+    }
+    const target = { average: 8, trial: 33 };
+    for (const scope of ['average', 'trial']) {
+      const r = results[scope];
+      const label = scope === 'average' ? 'average scope          ' : `single-trial (${loaded.kept} trials)`;
+      console.log(`renormalize ${label}: p50 ${r.p50.toFixed(2)} ms, p95 ${r.p95.toFixed(2)} ms, max ${r.max.toFixed(2)} ms over ${r.n} inputs (target p95 ≤ ${target[scope]} ms: ${r.p95 <= target[scope] ? 'met' : 'MISSED'})`);
+    }
+  } finally {
+    await browser.close();
+    await stopAll();
+  }
+});

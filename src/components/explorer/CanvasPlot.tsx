@@ -1,0 +1,53 @@
+import { useEffect, useLayoutEffect, useRef, useState, type ReactNode } from 'react';
+import { lineLayout, type LineLayout } from '../../lib/plot/line-plot';
+
+export interface CanvasPlotProps {
+  height: number;
+  label: string;
+  testId?: string;
+  /** Paints the plot in CSS pixels (the transform already holds the pixel ratio). */
+  draw: (ctx: CanvasRenderingContext2D, layout: LineLayout) => void;
+  /** DOM drawn over the plot (interactive bands). */
+  overlay?: (layout: LineLayout) => ReactNode;
+}
+
+/** A canvas that fills its container's width, repaints at the device pixel ratio, and hosts a DOM overlay. */
+export default function CanvasPlot({ height, label, testId, draw, overlay }: CanvasPlotProps) {
+  const wrap = useRef<HTMLDivElement>(null);
+  const canvas = useRef<HTMLCanvasElement>(null);
+  const [width, setWidth] = useState(0);
+  useEffect(() => {
+    const el = wrap.current;
+    if (el === null) return;
+    const observer = new ResizeObserver(() => setWidth(Math.floor(el.clientWidth)));
+    observer.observe(el);
+    setWidth(Math.floor(el.clientWidth));
+    return () => observer.disconnect();
+  }, []);
+  const layout = width > 0 ? lineLayout(width, height) : null;
+  useLayoutEffect(() => {
+    const c = canvas.current;
+    if (c === null || layout === null) return;
+    const r = window.devicePixelRatio || 1;
+    const w = Math.round(layout.width * r);
+    const h = Math.round(layout.height * r);
+    if (c.width !== w) c.width = w;
+    if (c.height !== h) c.height = h;
+    const ctx = c.getContext('2d');
+    if (ctx === null) return;
+    ctx.setTransform(r, 0, 0, r, 0, 0);
+    ctx.fillStyle = '#fffdf8';
+    ctx.fillRect(0, 0, layout.width, layout.height);
+    draw(ctx, layout);
+  });
+  return (
+    <div ref={wrap} className="relative w-full" style={{ height }}>
+      {layout !== null && (
+        <>
+          <canvas ref={canvas} role="img" aria-label={label} data-testid={testId} data-plot-left={layout.left} data-plot-width={layout.plotWidth} className="block" style={{ width: layout.width, height: layout.height }} />
+          {overlay?.(layout)}
+        </>
+      )}
+    </div>
+  );
+}

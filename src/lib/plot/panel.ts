@@ -1,0 +1,74 @@
+import { frequencyScale, timeScale, type AxisScale } from './axes';
+import type { Colormap } from './colormap';
+import type { ColourScale } from './colour-scale';
+import type { EdgeZones } from './edge-zone';
+import { drawAxes, drawBaselineBand, drawColourBar, FOAM, type Ctx, type PanelLayout } from './figure';
+import { rasterizeMap, type ImageBuffer } from './raster';
+
+/** Everything one map panel shows. */
+export interface PanelSpec {
+  title: string;
+  unit: string;
+  values: ArrayLike<number>;
+  times: ArrayLike<number>;
+  frequencies: ArrayLike<number>;
+  spacing: 'log' | 'linear';
+  edges: EdgeZones | null;
+  colormap: Colormap;
+  scale: ColourScale;
+  /** Draw the baseline band into the picture (exports); the live island draws it in the DOM instead. */
+  baseline?: { start: number; end: number } | null;
+}
+
+export interface PanelScales {
+  time: AxisScale;
+  frequency: AxisScale;
+}
+
+/** Scales of a panel's plot area in CSS pixels. */
+export function panelScales(layout: PanelLayout, times: ArrayLike<number>, frequencies: ArrayLike<number>, spacing: 'log' | 'linear'): PanelScales {
+  return {
+    time: timeScale(times, layout.left, layout.left + layout.plotWidth),
+    frequency: frequencyScale(frequencies, spacing, layout.top + layout.plotHeight, layout.top),
+  };
+}
+
+type PaintCtx = Ctx & {
+  setTransform(a: number, b: number, c: number, d: number, e: number, f: number): void;
+  clearRect(x: number, y: number, w: number, h: number): void;
+  putImageData(image: ImageData, dx: number, dy: number): void;
+  createImageData(w: number, h: number): ImageData;
+};
+
+/**
+ * Paints one panel at `pixelRatio` device pixels per CSS pixel, offset by (`originX`, `originY`) CSS pixels: the
+ * map image at device resolution (so cells stay sharp), then axes and the colour bar. `reuse` lets the caller keep
+ * one ImageData between frames.
+ */
+export function paintPanel(
+  ctx: PaintCtx,
+  layout: PanelLayout,
+  spec: PanelSpec,
+  pixelRatio: number,
+  reuse: { image: ImageData | null } = { image: null },
+  originX = 0,
+  originY = 0,
+): PanelScales {
+  const r = pixelRatio;
+  const w = Math.max(1, Math.round(layout.plotWidth * r));
+  const h = Math.max(1, Math.round(layout.plotHeight * r));
+  let image = reuse.image;
+  if (image === null || image.width !== w || image.height !== h) image = reuse.image = ctx.createImageData(w, h);
+  const nf = spec.frequencies.length;
+  const nt = spec.times.length;
+  rasterizeMap(image as ImageBuffer, { values: spec.values, nFreqs: nf, nTimes: nt }, { colormap: spec.colormap, scale: spec.scale, edges: spec.edges });
+  ctx.setTransform(r, 0, 0, r, originX * r, originY * r);
+  ctx.fillStyle = FOAM;
+  ctx.fillRect(0, 0, layout.width, layout.height);
+  ctx.putImageData(image, Math.round((originX + layout.left) * r), Math.round((originY + layout.top) * r));
+  const scales = panelScales(layout, spec.times, spec.frequencies, spec.spacing);
+  if (spec.baseline) drawBaselineBand(ctx, layout, scales.time, spec.baseline.start, spec.baseline.end);
+  drawAxes(ctx, layout, { title: spec.title, time: scales.time, frequency: scales.frequency, frequencyLog: spec.spacing === 'log' });
+  drawColourBar(ctx, layout, spec.colormap, spec.scale, spec.unit);
+  return scales;
+}
