@@ -169,6 +169,20 @@ describe('the explorer on a demo recording', () => {
     expect(Number(await page.getByTestId('baseline-start').inputValue())).toBeCloseTo(start0 - 1 / 500 - 0.05, 9);
   });
 
+  it('warns on the map when the baseline reaches past the event or holds one sample for a z-score', async () => {
+    const start = await page.getByTestId('baseline-start').inputValue();
+    const end = await page.getByTestId('baseline-end').inputValue();
+    const warnings = page.getByTestId('map-normalized-warnings');
+    await page.getByTestId('baseline-end').fill('0.1');
+    await expect.poll(() => warnings.textContent()).toContain('reaches past the event at 0 s');
+    await page.getByTestId('baseline-end').fill(start);
+    await page.getByText('z-score', { exact: true }).click();
+    await expect.poll(() => warnings.textContent()).toContain('a z-score needs at least 2');
+    await page.getByText('dB', { exact: true }).click();
+    await page.getByTestId('baseline-end').fill(end);
+    await expect.poll(async () => (await warnings.count()) === 0 || !(await warnings.textContent())!.includes('past the event')).toBe(true);
+  });
+
   it('switches methods instantly and keeps matching the core', async () => {
     const fi = nearest(result.frequencies, 6);
     const ti = nearest(result.times, 0.4);

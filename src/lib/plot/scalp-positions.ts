@@ -57,17 +57,14 @@ const RING: Record<string, [string, number]> = { F7: ['F', 1], F8: ['F', -1], FT
 /** Position of a 10-20 / 10-10 name (case-insensitive; T3/T4/T5/T6 accepted), or null when it is not one. */
 export function scalpPosition(name: string): { x: number; y: number } | null {
   const raw = name.trim().replace(/^EEG\s+/i, '');
-  const canonical = ALIASES[raw.toUpperCase().replace(/^(T)(\d)$/, '$1$2')] ?? raw;
+  const canonical = ALIASES[raw.toUpperCase()] ?? raw;
   const m = /^(Fp|AF|FT|FC|F|TP|T|CP|C|PO|P|O)(z|\d+)$/i.exec(canonical);
   if (m === null) return null;
   const prefix = m[1].length === 2 ? m[1][0].toUpperCase() + m[1][1].toLowerCase() : m[1].toUpperCase();
   const rowName = prefix === 'Fp' ? 'Fp' : prefix.toUpperCase();
   const suffix = m[2].toLowerCase();
-  const key = `${rowName}${suffix}`;
-  if (RING[key.toUpperCase().replace('FP', 'Fp')] !== undefined || RING[key] !== undefined) {
-    const [row, side] = RING[key] ?? RING[key.toUpperCase()];
-    return project(sphere(90, side * ROWS[row].ring));
-  }
+  const ring = RING[`${rowName}${suffix}`];
+  if (ring !== undefined) return project(sphere(90, ring[1] * ROWS[ring[0]].ring));
   if (rowName === 'T' || rowName === 'FT' || rowName === 'TP') {
     const n = Number(suffix);
     if (n === 9 || n === 10) {
