@@ -128,12 +128,12 @@ async function main() {
   if (py.status === 0) {
     const out = py.stdout.trim();
     console.log(out);
-    const wall = /wall ([\d.]+) s/.exec(out);
-    const cpu = /cpu ([\d.]+) s/.exec(out);
     // CPU time is the fairer figure on a shared machine; wall time is printed beside it.
-    if (wall && cpu) {
+    for (const variant of ['standard', 'band']) {
+      const m = new RegExp(`${variant}: wall ([\\d.]+) s.*cpu ([\\d.]+) s`).exec(out);
+      if (m === null) continue;
       console.log(
-        `ratio, Node 1 thread / numpy (wavelet power + dB): CPU ${(single.seconds.tfCpu / Number(cpu[1])).toFixed(2)}×, wall ${(single.seconds.tf / Number(wall[1])).toFixed(2)}×  (target ≤ 1.5×)`,
+        `ratio, Node 1 thread / numpy ${variant} (wavelet power + dB): CPU ${(single.seconds.tfCpu / Number(m[2])).toFixed(2)}×, wall ${(single.seconds.tf / Number(m[1])).toFixed(2)}×  (target ≤ 1.5×)`,
       );
     }
   } else {

@@ -1,6 +1,6 @@
 // The worker's API lives apart from its entry file so the browser entry and the Node entry expose the same object.
 import * as Comlink from 'comlink';
-import { analyzeChannel, type ChannelAnalysis, type RecipePlan } from '../src/lib/analysis/run-recipe';
+import { analyzeChannel, type ChannelAnalysis, type RecipePlan } from '../src/lib/analysis/analyze-channel';
 
 export interface ChannelJob {
   plan: RecipePlan;

@@ -1,47 +1,16 @@
-import { fitAperiodic, type AperiodicFit, type AperiodicMode } from './aperiodic';
-import { baselineIndices, type BaselineMethod, type BaselineScope } from './baseline';
-import { decomposeChannel, type DecomposeOptions } from './decompose';
+import { analyzeChannel, type ChannelAnalysis, type RecipePlan } from './analyze-channel';
+import type { AperiodicFit } from './aperiodic';
+import { baselineIndices } from './baseline';
 import { epochLength, epochTimes, selectEpochs } from './epochs';
 import { AnalysisCancelledError, AnalysisInputError } from './errors';
+
 import { frequencyGrid } from './frequency-grid';
 import { parseRecipe, type Recipe } from './recipe';
 import type { Recording } from './recording';
 import { roundHalfUp } from './rounding';
 import { cyclesOf, edgeSecondsOf, gaussianSigmas } from './wavelet';
-import { welchPsd } from './welch';
 
-/** Everything a channel needs besides its samples; plain data and typed arrays, so it crosses to workers as is. */
-export interface RecipePlan {
-  sampleRateHz: number;
-  channels: string[];
-  /** Index into `recording.data` of each planned channel. */
-  channelIndices: number[];
-  labels: string[];
-  epochStarts: Int32Array[];
-  /** Per condition, epochs dropped (outside the recording or across a gap). */
-  dropped: number[];
-  epochSamples: number;
-  tminSeconds: number;
-  times: Float64Array;
-  frequencies: Float64Array;
-  sigmas: Float64Array;
-  edgeSeconds: Float64Array;
-  baseline: { first: number; last: number; method: BaselineMethod; scope: BaselineScope };
-  spectrum: { segmentSamples: number; overlapSamples: number; range: [number, number]; spans: Int32Array };
-  aperiodic: { range: [number, number]; mode: AperiodicMode };
-  warnings: string[];
-}
-
-/** One channel's share of the result, in typed arrays (see `assembleResult`). */
-export interface ChannelAnalysis {
-  power: Float64Array[];
-  normalized: Float64Array[];
-  singleTrials: Float32Array[] | null;
-  /** Welch density over the bins inside `spectrum.range`, µV²/Hz. */
-  psd: Float64Array;
-  spectrumFrequencies: Float64Array;
-  aperiodic: AperiodicFit;
-}
+export { analyzeChannel, type ChannelAnalysis, type ChannelOptions, type RecipePlan } from './analyze-channel';
 
 export interface ResultCondition {
   trials: number;
@@ -227,45 +196,6 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
     spectrum: { segmentSamples, overlapSamples, range: [rLo, rHi], spans: Int32Array.from(spanList) },
     aperiodic: { range: [aLo, aHi], mode: ap.mode },
     warnings,
-  };
-}
-
-export interface ChannelOptions extends DecomposeOptions {
-  singleTrials?: boolean;
-}
-
-/**
- * One channel's whole analysis: wavelet power per condition (`decomposeChannel`), the Welch spectrum and the
- * aperiodic fit. Pure in (plan, samples): a channel gives the same bits in the main thread, a worker or the CLI.
- */
-export function analyzeChannel(plan: RecipePlan, samples: Float32Array, options: ChannelOptions = {}): ChannelAnalysis {
-  const tf = decomposeChannel(
-    {
-      samples,
-      epochStarts: plan.epochStarts,
-      epochSamples: plan.epochSamples,
-      sampleRateHz: plan.sampleRateHz,
-      frequencies: plan.frequencies,
-      sigmas: plan.sigmas,
-      baseline: plan.baseline,
-      singleTrials: options.singleTrials === true,
-    },
-    options,
-  );
-  const sp = plan.spectrum;
-  const welch = welchPsd(samples, plan.sampleRateHz, sp.segmentSamples, sp.overlapSamples, sp.spans);
-  const aperiodic = fitAperiodic(welch.frequencies, welch.psd, plan.aperiodic.range, plan.aperiodic.mode);
-  let k0 = 0;
-  while (k0 < welch.frequencies.length && welch.frequencies[k0] < sp.range[0] - EPS) k0++;
-  let k1 = k0;
-  while (k1 < welch.frequencies.length && welch.frequencies[k1] <= sp.range[1] + EPS) k1++;
-  return {
-    power: tf.power,
-    normalized: tf.normalized,
-    singleTrials: tf.singleTrials,
-    psd: welch.psd.slice(k0, k1),
-    spectrumFrequencies: welch.frequencies.slice(k0, k1),
-    aperiodic,
   };
 }
 

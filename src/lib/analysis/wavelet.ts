@@ -89,11 +89,10 @@ export function morletWavelet(
  * taken every `fftSize/N_i` bins, so one forward FFT per epoch serves all frequencies.
  *
  * The inverse exploits the wavelet's narrow band. Only the `M_i` bins `k0 … k0+M_i−1` around the centre frequency
- * that hold every bin with |W| ≥ 1e-13·max|W| are kept. The FFT size is set by the contract's minimum support of
- * 5σ; within it the wavelet extends toward 8σ, where the Gaussian is exp(−32) ≈ 1e-14, so its spectrum (Gaussian
- * of SD f/n, convolved with the truncation's sidelobes) is band-limited to that floor; a wavelet that cannot reach
- * far enough keeps sidelobes above the floor and simply keeps its whole spectrum (M = N). Dropped bins change power
- * by at most ~1e-13 relative, far below the ~1e-6 the contract's own 5σ cut allows. Writing output j = q·R + r with
+ * that hold every bin with |W| ≥ 1e-13·max|W| are kept. The wavelet runs to 8σ (the contract asks for at least
+ * 5σ), where the Gaussian is exp(−32) ≈ 1e-14, so its spectrum (a Gaussian of SD f/n with the truncation's
+ * sidelobes) is band-limited to that floor; should sidelobes stay above it, the whole spectrum is kept (M = N).
+ * Dropped bins change power by at most ~1e-13 relative, far below the ~1e-6 the contract's own 5σ cut allows. Writing output j = q·R + r with
  * R = N/M, `|y[j]| = |Σ_m conj(X[k0+m])·V_r[m]·exp(−2πi q m/M)|` with `V_r[m] = conj(W[k0+m])·exp(−2πi r m/N)/N`,
  * i.e. R forward transforms of size M replace one inverse of size N (|IFFT(Z)| = |FFT(conj Z)|/N drops the
  * phase). `weights` holds V as `[r][m]` interleaved complex; `bins` the interleaved index of bin k0+m in the
@@ -148,11 +147,10 @@ function buildWaveletBank(frequencies: Float64Array, sigmas: Float64Array, sampl
   const wavelets: MorletWavelet[] = [];
   let fftSize = 2;
   for (let i = 0; i < count; i++) {
-    // The FFT size comes from the contract's 5σ support; the wavelet then runs as far toward 8σ as that size
-    // allows without wrap, which makes the spectrum band-limited to 1e-13 whenever 8σ fits.
-    const h5 = Math.ceil(5 * sigmas[i] * sampleRateHz);
-    sizes[i] = nextPowerOfTwo(epochSamples + h5);
-    const h = Math.max(h5, Math.min(Math.ceil(BANK_SUPPORT_SIGMAS * sigmas[i] * sampleRateHz), sizes[i] - epochSamples));
+    // 8σ support (the contract asks for at least 5σ): exp(−32) ≈ 1e-14 at the ends makes the spectrum
+    // band-limited to the 1e-13 floor, and every path (trial average, single trials) uses this same wavelet.
+    const h = Math.ceil(BANK_SUPPORT_SIGMAS * sigmas[i] * sampleRateHz);
+    sizes[i] = nextPowerOfTwo(epochSamples + h);
     const w = morletWavelet(frequencies[i], sigmas[i], sampleRateHz, h);
     wavelets.push(w);
     halfWidths[i] = h;
