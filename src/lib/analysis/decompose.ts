@@ -42,7 +42,9 @@ export interface DecomposeOptions {
  * Morlet wavelet power `|x ∗ w_f|²` (µV²) of every epoch of one channel, accumulated into trial averages and,
  * for scope `trial`, into averages of per-trial normalized power as each trial is produced (analysis contract,
  * "Complex Morlet wavelet power" and "Baseline normalization"). Per epoch: one real forward FFT; per frequency:
- * the inverse of `X·W_f` over the wavelet's band only, as `N_f/M_f` transforms of size `M_f` (see `WaveletBank`).
+ * the inverse of `X·W_f` over the wavelet's band only, as `N_f/M_f` transforms of size `M_f` (see `WaveletBank`),
+ * or, when no per-trial row is needed (scope `average`, no single trials), one transform of size 2M on a coarse
+ * time grid whose sum over trials is interpolated exactly once per condition (see `averagePower`).
  * No trial × frequency × time array is kept (unless `singleTrials`): memory is bounded by frequencies × times per
  * condition. Sums run in Float64 in epoch order, so a channel gives the same bits wherever it runs.
  */

@@ -92,8 +92,8 @@ export function morletWavelet(
  * that hold every bin with |W| ≥ 1e-13·max|W| are kept. The wavelet runs to 8σ (the contract asks for at least
  * 5σ), where the Gaussian is exp(−32) ≈ 1e-14, so its spectrum (a Gaussian of SD f/n with the truncation's
  * sidelobes) is band-limited to that floor; should sidelobes stay above it, the whole spectrum is kept (M = N).
- * Dropped bins change power by at most ~1e-13 relative, far below the ~1e-6 the contract's own 5σ cut allows. Writing output j = q·R + r with
- * R = N/M, `|y[j]| = |Σ_m conj(X[k0+m])·V_r[m]·exp(−2πi q m/M)|` with `V_r[m] = conj(W[k0+m])·exp(−2πi r m/N)/N`,
+ * Dropped bins change power by at most ~1e-13 relative, far below the ~1e-6 the contract's own 5σ cut allows.
+ * Writing output j = q·R + r with R = N/M, `|y[j]| = |Σ_m conj(X[k0+m])·V_r[m]·exp(−2πi q m/M)|` with `V_r[m] = conj(W[k0+m])·exp(−2πi r m/N)/N`,
  * i.e. R forward transforms of size M replace one inverse of size N (|IFFT(Z)| = |FFT(conj Z)|/N drops the
  * phase). `weights` holds V as `[r][m]` interleaved complex; `bins` the interleaved index of bin k0+m in the
  * `fftSize` spectrum.
