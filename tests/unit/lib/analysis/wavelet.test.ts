@@ -1,4 +1,5 @@
 import { describe, expect, it } from 'vitest';
+import { normalizeAverage, normalizeTrials } from '../../../../src/lib/analysis/baseline';
 import { decomposeChannel } from '../../../../src/lib/analysis/decompose';
 import { getRealDft } from '../../../../src/lib/analysis/fft';
 import { gaussianSigmas, getWaveletBank, morletWavelet } from '../../../../src/lib/analysis/wavelet';
@@ -187,6 +188,32 @@ describe('decomposeChannel', () => {
       let max = 0;
       for (const v of expected) max = Math.max(max, v);
       assertClose(average.subarray(fi * L, (fi + 1) * L), expected, 1e-11 * max, `f=${freqs[fi]}`);
+    }
+  });
+
+  it('normalizes in the same pass as the reference formulas, for each method and scope', () => {
+    // Reference: baseline.ts normalizeTrials / normalizeAverage applied to the stored single trials.
+    const fs = 128;
+    const L = 257;
+    const normal = seededNormal(12);
+    const x = new Float32Array(3000);
+    for (let i = 0; i < x.length; i++) x[i] = 4 * normal();
+    const freqs = Float64Array.of(6, 12, 30);
+    const sigmas = gaussianSigmas(freqs, { fixed: 5 });
+    const starts = Int32Array.of(100, 600, 1200, 2000);
+    for (const method of ['db', 'percent', 'zscore', 'ratio'] as const) {
+      for (const scope of ['average', 'trial'] as const) {
+        const job = { samples: x, epochStarts: [starts], epochSamples: L, sampleRateHz: fs, frequencies: freqs, sigmas, baseline: { first: 60, last: 90, method, scope } };
+        const out = decomposeChannel({ ...job, singleTrials: true });
+        const size = freqs.length * L;
+        const trials = [0, 1, 2, 3].map((e) => Float64Array.from(out.singleTrials![0].subarray(e * size, (e + 1) * size)));
+        const expected = scope === 'trial' ? normalizeTrials(trials, L, job.baseline, method) : normalizeAverage(out.power[0], L, job.baseline, method);
+        // single trials are stored in Float32 (relative rounding ~6e-8)
+        const tolerance = { db: 1e-5, percent: 1e-3, zscore: 1e-4, ratio: 1e-5 }[method];
+        assertClose(out.normalized[0], expected, tolerance, `${method}/${scope}`);
+        // the trial-average path (no single trials) gives the same normalized maps
+        assertClose(decomposeChannel(job).normalized[0], out.normalized[0], tolerance, `${method}/${scope} average path`);
+      }
     }
   });
 
