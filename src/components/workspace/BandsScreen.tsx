@@ -153,7 +153,7 @@ export default function BandsScreen(_props: WorkspaceProps) {
         </ul>
       )}
       <p className="text-sm text-ink-soft">
-        Mean normalized value ({unit}, {method}, baseline {baseline.start} to {baseline.end} s, trial-average scope{scope === 'trial' ? '; the Maps screen shows single-trial scope for one channel only' : ''}) over the band's grid frequencies and the window's times,
+        Mean normalized value (in {unit}, baseline {Number(baseline.start.toFixed(4))} to {Number(baseline.end.toFixed(4))} s, trial-average scope{scope === 'trial' ? '; the Maps screen shows single-trial scope for one channel only' : ''}) over the band's grid frequencies and the window's times,
         edge-zone cells left out.
       </p>
       {rows !== null && (

@@ -180,7 +180,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
 
   const exportPng = async () => {
     if (rawSpec === null || normSpec === null) return;
-    const caption = `${ch} · baseline ${baseline.start} to ${baseline.end} s · ${method} · ${scope} scope · Tidemark`;
+    const caption = `${ch} · baseline ${Number(baseline.start.toFixed(4))} to ${Number(baseline.end.toFixed(4))} s · ${method} · ${scope} scope · Tidemark`;
     const blob = await renderMapsPng({ ...rawSpec, baseline }, { ...normSpec, baseline }, caption);
     downloadBlob(blob, `maps-${fileSafe(ch ?? 'channel')}-${fileSafe(d.labels[a])}${b >= 0 ? `-minus-${fileSafe(d.labels[b])}` : ''}-${method}.png`);
   };
