@@ -29,6 +29,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const conditions = useSourceStore((s) => s.conditions);
   const epochWindow = useSourceStore((s) => s.epochWindow);
   const decisions = useSourceStore((s) => s.decisions);
+  const settingsError = useSourceStore((s) => s.settingsError);
   const baseline = useViewStore((s) => s.baseline);
   const method = useViewStore((s) => s.method);
   const scope = useViewStore((s) => s.scope);
@@ -114,9 +115,17 @@ export default function RecipeScreen(_props: WorkspaceProps) {
       </fieldset>
       <fieldset className="card flex flex-col gap-2 p-3">
         <legend className="px-1 text-sm font-semibold">Epochs and conditions</legend>
-        <p className="text-sm text-ink-soft">
-          Epochs {epochWindow.tmin} to {epochWindow.tmax} s around each event, kept epochs only (both set on the Source screen).
-        </p>
+        <div className="flex flex-wrap items-end gap-4">
+          {/* The epoch window belongs to the Source screen (its rejection rules run on it); edited here through its store. */}
+          <NumberField label="Epoch from" unit="s" value={epochWindow.tmin} step={0.1} testId="recipe-tmin" error={errorFor('epochs.tmin')} onValue={(v) => useSourceStore.getState().setEpochWindow({ tmin: v, tmax: epochWindow.tmax })} />
+          <NumberField label="Epoch to" unit="s" value={epochWindow.tmax} step={0.1} testId="recipe-tmax" error={errorFor('epochs.tmax')} onValue={(v) => useSourceStore.getState().setEpochWindow({ tmin: epochWindow.tmin, tmax: v })} />
+          <p className="text-sm text-ink-soft">around each event; only epochs kept on the Source screen are used.</p>
+        </div>
+        {settingsError !== null && (
+          <p className="text-sm text-coral-deep" role="alert">
+            {settingsError}
+          </p>
+        )}
         <div className="flex flex-wrap gap-3">
           {conditions.map((c) => {
             const on = draft.conditions.length === 0 || draft.conditions.includes(c.name);
@@ -141,11 +150,6 @@ export default function RecipeScreen(_props: WorkspaceProps) {
         {errorFor('conditions') && (
           <p className="text-sm text-coral-deep" role="alert">
             {errorFor('conditions')}
-          </p>
-        )}
-        {(errorFor('epochs.tmin') || errorFor('epochs.tmax')) && (
-          <p className="text-sm text-coral-deep" role="alert">
-            epochs {errorFor('epochs.tmin') ?? errorFor('epochs.tmax')}
           </p>
         )}
       </fieldset>
