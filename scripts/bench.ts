@@ -76,7 +76,11 @@ async function singlePhase(recording: Recording): Promise<PhaseReport> {
   t = performance.now();
   runRecipe(recording, recipe);
   const whole = (performance.now() - t) / 1000;
-  return { phase: 'single', seconds: { tf, tfCpu, whole }, maxRssMb: maxRssMb() };
+  const rss = maxRssMb();
+  t = performance.now();
+  runRecipe(recording, { ...recipe, baseline: { ...recipe.baseline, scope: 'trial' } });
+  const trialScope = (performance.now() - t) / 1000;
+  return { phase: 'single', seconds: { tf, tfCpu, whole, trialScope }, maxRssMb: rss };
 }
 
 async function poolPhase(recording: Recording, size: number): Promise<PhaseReport> {
@@ -114,6 +118,7 @@ async function main() {
   console.log(`  CPU time ${single.seconds.tfCpu.toFixed(3)} s`);
   line('runRecipe, 1 thread (+ Welch, aperiodic, JSON)', single.seconds.whole);
   console.log(`  peak RSS ${single.maxRssMb.toFixed(0)} MB`);
+  line('runRecipe, 1 thread, scope trial (per-trial rows)', single.seconds.trialScope);
   for (const size of [...new Set([Math.max(1, cores - 1), cores])]) {
     const pool = runPhase(['--phase', 'pool', String(size)]);
     line(`worker pool, ${size} worker${size > 1 ? 's' : ''} (whole recipe)`, pool.seconds.whole);
