@@ -275,6 +275,12 @@ describe('the spectrum and band screens', () => {
     const after = await expectFit([low, 40]);
     expect(after).not.toBeCloseTo(before, 6);
     expect(await page.getByTestId('scalp-exponent').locator('circle').count()).toBeGreaterThanOrEqual(3);
+    // The fit table sorts by exponent when its header is pressed (keyboard: it is a button).
+    await page.getByTestId('fit-table').getByRole('button', { name: /^exponent/ }).press('Enter');
+    const exponents = (await page.getByTestId('fit-table').locator('tbody tr td:nth-child(2)').allTextContents()).map(Number);
+    expect(exponents).toHaveLength(DEMO.channels.length);
+    expect([...exponents].sort((x, y) => x - y)).toEqual(exponents);
+    expect(await page.getByTestId('fit-table').locator('th[aria-sort="ascending"]').count()).toBe(1);
 
     const csv = (await download('export-fits')).bytes.toString('utf8').trim().split(/\r?\n/);
     expect(csv[0]).toBe('channel,exponent,offset,knee,r2,rmse,points,excluded,fit_low_hz,fit_high_hz,mode,trials');

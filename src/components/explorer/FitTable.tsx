@@ -28,7 +28,7 @@ const columns = [
 /** Every channel's aperiodic fit, sortable by any column (click or Enter on a header). */
 export default function FitTable({ rows, selected, onSelect }: { rows: FitRow[]; selected: string | null; onSelect: (channel: string) => void }) {
   const [sorting, setSorting] = useState<SortingState>([]);
-  const table = useReactTable({ data: rows, columns, state: { sorting }, onSortingChange: setSorting, getCoreRowModel: getCoreRowModel(), getSortedRowModel: getSortedRowModel() });
+  const table = useReactTable({ data: rows, columns, state: { sorting }, sortDescFirst: false, onSortingChange: setSorting, getCoreRowModel: getCoreRowModel(), getSortedRowModel: getSortedRowModel() });
   return (
     <div className="overflow-x-auto">
       <table className="w-full font-mono text-xs" data-testid="fit-table">
