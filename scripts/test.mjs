@@ -2,11 +2,10 @@
 // and integration, against real PostgreSQL and the built app) and the browser tests (playwright-core driving
 // Debian's Chromium). Extra arguments are passed to Vitest as file filters: `npm test -- permissions`.
 import { spawnSync } from 'node:child_process';
-import fs from 'node:fs';
 import path from 'node:path';
 import {
-  assertPortFree, buildIfStale, claimRunLock, ensureNodeModules, log, migrate, outDir, onSignals, requireChromium, root, runMain, seed,
-  startChild, startCluster, stopAll,
+  assertPortFree, claimRunLock, ensureNodeModules, log, migrate, onSignals, requireChromium, root, runMain, seed, serveApp,
+  startCluster, stopAll,
 } from './lib/bootstrap.mjs';
 
 // TIDEMARK_TEST_SLOT=N (1-9) lets several checkouts' or engineers' runs share a machine: own ports, database and build.
@@ -33,23 +32,8 @@ await runMain(async () => {
   const databaseUrl = cluster.url(DB_NAME);
   migrate(databaseUrl);
   seed(databaseUrl);
-  if (fs.existsSync(path.join(root, 'scripts', 'demo-data.ts'))) {
-    const { generateDemoData } = await import('./lib/demo-data.mjs');
-    generateDemoData();
-  }
-  buildIfStale();
   const appUrl = `http://127.0.0.1:${APP_PORT}`;
-  const env = {
-    DATABASE_URL: databaseUrl,
-    SMTP_HOST: '127.0.0.1',
-    SMTP_PORT: String(SMTP_PORT),
-    TIDEMARK_MAIL_FAKE: '1',
-    HOST: '127.0.0.1',
-    PORT: String(APP_PORT),
-    TIDEMARK_ORIGIN: appUrl,
-  };
-  await startChild('mail fake', process.execPath, [path.join(root, 'scripts', 'mail-fake.mjs')], { env, readyLine: 'mail fake listening' });
-  await startChild('app', process.execPath, [path.join(root, outDir(), 'server', 'entry.mjs')], { env, readyLine: 'Server listening' });
+  const env = await serveApp({ databaseUrl, appPort: APP_PORT, smtpPort: SMTP_PORT });
   log(`test app on ${appUrl}`);
 
   const testEnv = { ...process.env, ...env, TIDEMARK_APP_URL: appUrl, TIDEMARK_CHROMIUM: chromium };

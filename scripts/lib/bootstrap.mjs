@@ -333,6 +333,37 @@ export function buildIfStale() {
   log('build done');
 }
 
+/** Generates the demo cohort (EDF+ files in the git-ignored demo-data/); the generator skips files already there. */
+export function generateDemoData() {
+  log('checking the demo cohort (npm run demo:data)…');
+  const result = spawnSync(process.execPath, ['--import', 'tsx', path.join(root, 'scripts', 'demo-data.ts')], {
+    cwd: root,
+    stdio: ['ignore', 'inherit', 'inherit'],
+  });
+  if (result.status !== 0) fail('generating the demo cohort failed (see above)');
+}
+
+/**
+ * The part `npm start` and `npm test` share after the database is ready: demo files, build, then the mail fake and
+ * the app on loopback. Returns the environment the app runs with.
+ */
+export async function serveApp({ databaseUrl, appPort, smtpPort }) {
+  generateDemoData();
+  buildIfStale();
+  const env = {
+    DATABASE_URL: databaseUrl,
+    SMTP_HOST: '127.0.0.1',
+    SMTP_PORT: String(smtpPort),
+    TIDEMARK_MAIL_FAKE: '1',
+    HOST: '127.0.0.1',
+    PORT: String(appPort),
+    TIDEMARK_ORIGIN: `http://127.0.0.1:${appPort}`,
+  };
+  await startChild('mail fake', process.execPath, [path.join(root, 'scripts', 'mail-fake.mjs')], { env, readyLine: 'mail fake listening' });
+  await startChild('app', process.execPath, [path.join(root, outDir(), 'server', 'entry.mjs')], { env, readyLine: 'Server listening' });
+  return env;
+}
+
 // ---------------------------------------------------------------- child processes
 
 const stoppers = [];
