@@ -1,4 +1,5 @@
 import { useEffect, useLayoutEffect, useMemo, useRef, useState } from 'react';
+import { flushSync } from 'react-dom';
 import type { WorkspaceProps } from './types';
 import type { BaselineMethod } from '../../lib/analysis/baseline';
 import { divergingColormap, sequentialColormap } from '../../lib/plot/colormap';
@@ -91,7 +92,8 @@ export default function MapsScreen(_props: WorkspaceProps) {
         const job = pending.current.next;
         pending.current.next = null;
         const maps = await explorerWorker().renormalize(job.key, job.first, job.last, job.method);
-        if (maps !== null) setTrialMaps({ ...job, maps });
+        // Paint in this task, not a later one: the measure runs from the input to the painted canvas.
+        if (maps !== null) flushSync(() => setTrialMaps({ ...job, maps }));
       }
       pending.current.busy = false;
     };

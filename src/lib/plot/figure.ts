@@ -6,7 +6,7 @@ import { formatTick, logTicks, type AxisScale } from './axes';
 export type Ctx = Pick<
   CanvasRenderingContext2D,
   | 'save' | 'restore' | 'beginPath' | 'moveTo' | 'lineTo' | 'stroke' | 'fillRect' | 'strokeRect' | 'fillText' | 'rect'
-  | 'fill' | 'arc' | 'closePath' | 'setLineDash' | 'measureText' | 'translate' | 'rotate' | 'drawImage'
+  | 'fill' | 'arc' | 'closePath' | 'setLineDash' | 'measureText' | 'translate' | 'rotate' | 'drawImage' | 'createLinearGradient'
 > & {
   fillStyle: string | CanvasGradient | CanvasPattern;
   strokeStyle: string | CanvasGradient | CanvasPattern;
@@ -117,14 +117,16 @@ export function drawAxes(ctx: Ctx, layout: PanelLayout, spec: AxesSpec): void {
 export function drawColourBar(ctx: Ctx, layout: PanelLayout, colormap: Colormap, scale: ColourScale, unit: string, reverse = false): void {
   const { barX, barWidth, top, plotHeight } = layout;
   ctx.save();
-  const steps = Math.max(2, Math.round(plotHeight));
-  for (let i = 0; i < steps; i++) {
-    const t = 1 - i / (steps - 1);
+  // A 33-stop gradient: one fill per frame instead of one per pixel row (the bar repaints on every baseline move).
+  const gradient = ctx.createLinearGradient(0, top + plotHeight, 0, top);
+  const b = colormap.bytes;
+  for (let i = 0; i <= 32; i++) {
+    const t = i / 32;
     const k = Math.round((reverse ? 1 - t : t) * (colormap.size - 1));
-    const b = colormap.bytes;
-    ctx.fillStyle = `rgb(${b[4 * k]},${b[4 * k + 1]},${b[4 * k + 2]})`;
-    ctx.fillRect(barX, top + (i * plotHeight) / steps, barWidth, plotHeight / steps + 1);
+    gradient.addColorStop(t, `rgb(${b[4 * k]},${b[4 * k + 1]},${b[4 * k + 2]})`);
   }
+  ctx.fillStyle = gradient;
+  ctx.fillRect(barX, top, barWidth, plotHeight);
   ctx.strokeStyle = INK;
   ctx.lineWidth = 1;
   ctx.strokeRect(barX - 0.5, top - 0.5, barWidth + 1, plotHeight + 1);
