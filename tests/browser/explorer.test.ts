@@ -1,4 +1,6 @@
+import { execFileSync } from 'node:child_process';
 import fs from 'node:fs';
+import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
@@ -158,6 +160,28 @@ describe('the explorer on a demo recording', () => {
     expect(after.normalized).toBeCloseTo(result.conditions['lamp-watch'].normalized[0][fi][ti], 9);
     const marks = await page.evaluate(() => performance.getEntriesByName('tidemark:renormalize', 'measure').length);
     expect(marks).toBeGreaterThan(0);
+  });
+
+  it('shows the value the command line computes for the exported recipe (CSV samples + BIDS events)', async () => {
+    // The same kept epochs as the page: the Source store's analysis recording, written as a CSV of samples and a
+    // BIDS events TSV (onset, duration, trial_type), then `npm run analyze` on them with the exported recipe.
+    loadDemo(DEMO);
+    const rec = useSourceStore.getState().analysisRecording()!;
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'tidemark-cli-'));
+    const lines = [rec.channelNames.join(',')];
+    for (let i = 0; i < rec.data[0].length; i++) lines.push(rec.data.map((x) => String(x[i])).join(','));
+    fs.writeFileSync(path.join(dir, 'demo.csv'), lines.join('\n') + '\n');
+    fs.writeFileSync(path.join(dir, 'events.tsv'), ['onset\tduration\ttrial_type', ...rec.events.map((e) => `${e.onsetSeconds}\t${e.durationSeconds}\t${e.label}`)].join('\n') + '\n');
+    const exported = await download('export-recipe');
+    fs.writeFileSync(path.join(dir, 'recipe.json'), exported.bytes);
+    const tsx = path.resolve('node_modules', '.bin', 'tsx');
+    execFileSync(tsx, ['src/cli/analyze.ts', path.join(dir, 'demo.csv'), '--rate', '500', '--events', path.join(dir, 'events.tsv'), '--recipe', path.join(dir, 'recipe.json'), '--out', path.join(dir, 'result.json')], { stdio: 'pipe' });
+    const cli = JSON.parse(fs.readFileSync(path.join(dir, 'result.json'), 'utf8')) as AnalysisResult;
+    const fi = nearest(cli.frequencies, 6);
+    const ti = nearest(cli.times, 0.4);
+    const cell = await readCell(fi, ti);
+    expect(cell.normalized).toBeCloseTo(cli.conditions['lamp-watch'].normalized[0][fi][ti], 9);
+    fs.rmSync(dir, { recursive: true, force: true });
   });
 
   it('moves the baseline one sample per arrow key and 50 ms with shift', async () => {
