@@ -225,7 +225,9 @@ export default function RecipeScreen(_props: WorkspaceProps) {
           {run.progress.map((p) => (
             <li key={p.channel} className="flex items-center gap-2 font-mono text-xs">
               <span className="w-12">{p.channel}</span>
-              <progress className="h-2 flex-1 accent-kelp" max={1} value={p.fraction} aria-label={`${p.channel} progress`} data-fraction={p.fraction} />
+              <div role="progressbar" aria-label={`${p.channel} progress`} aria-valuemin={0} aria-valuemax={100} aria-valuenow={Math.round(p.fraction * 100)} data-fraction={p.fraction} className="h-2 flex-1 overflow-hidden rounded-sm bg-sand-deep">
+                <div className="h-full bg-kelp" style={{ width: `${p.fraction * 100}%` }} />
+              </div>
               <span className="w-10 text-right">{Math.round(p.fraction * 100)} %</span>
             </li>
           ))}
