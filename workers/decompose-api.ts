@@ -6,6 +6,8 @@ export interface ChannelJob {
   plan: RecipePlan;
   /** One channel's samples, µV; transferred in, so the caller sends a copy. */
   samples: Float32Array;
+  /** The channel's name, for messages. */
+  channel?: string;
   singleTrials?: boolean;
 }
 

@@ -10,14 +10,31 @@ const tsxApi = pathToFileURL(
   createRequire(import.meta.url).resolve('tsx/package.json').replace(/package\.json$/, 'dist/esm/api/index.mjs'),
 ).href;
 const entry = new URL('./decompose.node-worker.ts', import.meta.url).href;
-const bootstrap = `import { register } from ${JSON.stringify(tsxApi)}; register(); await import(${JSON.stringify(entry)});`;
 
-export function createNodeDecomposeWorker(): PoolWorker {
-  const worker = new Worker(new URL(`data:text/javascript,${encodeURIComponent(bootstrap)}`));
+/** A data: URL module that registers tsx, then imports `entryUrl`. */
+export function tsxBootstrap(entryUrl: string): URL {
+  const code = `import { register } from ${JSON.stringify(tsxApi)}; register(); await import(${JSON.stringify(entryUrl)});`;
+  return new URL(`data:text/javascript,${encodeURIComponent(code)}`);
+}
+
+/** A worker_threads Worker as the pool sees it: 'error' and an exit we did not ask for become failures. */
+export function nodePoolWorker(worker: Worker): PoolWorker {
+  let terminated = false;
   return {
     endpoint: nodeEndpoint(worker as never),
     terminate: () => {
+      terminated = true;
       void worker.terminate();
     },
+    onFailure: (listener) => {
+      worker.on('error', (error: Error) => listener(error.message));
+      worker.on('exit', (code: number) => {
+        if (!terminated) listener(`it exited with code ${code}`);
+      });
+    },
   };
+}
+
+export function createNodeDecomposeWorker(): PoolWorker {
+  return nodePoolWorker(new Worker(tsxBootstrap(entry)));
 }

@@ -8,6 +8,11 @@ import type { DecomposeApi } from '../../../workers/decompose-api';
 export interface PoolWorker {
   endpoint: Comlink.Endpoint;
   terminate(): void;
+  /**
+   * Registers a listener for a failure outside any call's answer: the script did not load, an error escaped, or
+   * the worker stopped by itself. Without it a worker that never loads would leave a run waiting forever.
+   */
+  onFailure?(listener: (problem: string) => void): void;
 }
 
 export type WorkerFactory = () => PoolWorker;
@@ -32,9 +37,33 @@ export interface PoolResult {
   singleTrials: Float32Array[] | null;
 }
 
+/** A worker that could not start, failed to load, threw or stopped during a run; `channel` is the one it held. */
+export class PoolWorkerError extends Error {
+  readonly channel: string | null;
+  readonly problem: string;
+
+  constructor(channel: string | null, problem: string) {
+    super(`the analysis worker failed${channel === null ? '' : ` on channel "${channel}"`}: ${problem}`);
+    this.name = 'PoolWorkerError';
+    this.channel = channel;
+    this.problem = problem;
+  }
+}
+
 function browserWorker(): PoolWorker {
   const worker = new Worker(new URL('../../../workers/decompose.worker.ts', import.meta.url), { type: 'module' });
-  return { endpoint: worker, terminate: () => worker.terminate() };
+  return {
+    endpoint: worker,
+    terminate: () => worker.terminate(),
+    onFailure: (listener) => {
+      worker.addEventListener('error', (event) => {
+        event.preventDefault();
+        const message = event instanceof ErrorEvent && event.message ? event.message : '';
+        listener(message || 'its script did not load (a network error or a syntax error in the worker bundle)');
+      });
+      worker.addEventListener('messageerror', () => listener('a message from it could not be read'));
+    },
+  };
 }
 
 function defaultSize(): number {
@@ -42,23 +71,36 @@ function defaultSize(): number {
   return Math.max(1, cores - 1);
 }
 
+function messageOf(error: unknown): string {
+  return error instanceof Error ? error.message : String(error);
+}
+
 interface Slot {
   worker: PoolWorker;
   remote: Comlink.Remote<DecomposeApi>;
+  /** The channel this worker is computing, or null when idle. */
+  channel: string | null;
+}
+
+interface ActiveRun {
+  done: boolean;
+  /** Ends the run with `error` (once); later calls do nothing. */
+  fail: (error: Error) => void;
 }
 
 /**
  * Splits a recipe's channels across workers running the same core as `runRecipe`, then assembles the same
  * Result: `analyzeChannel` is a pure function of (plan, samples), so the numbers match a single-thread run bit
  * for bit. `cancel()` stops a run: queued channels are never sent and busy workers are terminated (a worker
- * deep in a channel cannot read a flag until it returns) and replaced on the next run.
+ * deep in a channel cannot read a flag until it returns) and replaced on the next run. A worker that fails (does
+ * not load, throws, stops) ends the run with a PoolWorkerError naming the channel and terminates every worker,
+ * so the next run starts on fresh ones.
  */
 export class DecomposePool {
   readonly size: number;
   private readonly createWorker: WorkerFactory;
   private slots: Slot[] = [];
-  private running = false;
-  private cancelRun: (() => void) | null = null;
+  private current: ActiveRun | null = null;
 
   constructor(options: PoolOptions = {}) {
     this.size = Math.max(1, Math.floor(options.size ?? defaultSize()));
@@ -67,71 +109,123 @@ export class DecomposePool {
 
   private slot(i: number): Slot {
     while (this.slots.length <= i) {
-      const worker = this.createWorker();
-      this.slots.push({ worker, remote: Comlink.wrap<DecomposeApi>(worker.endpoint) });
+      let worker: PoolWorker;
+      try {
+        worker = this.createWorker();
+      } catch (error) {
+        throw new PoolWorkerError(null, `it could not be started (${messageOf(error)})`);
+      }
+      const slot: Slot = { worker, remote: Comlink.wrap<DecomposeApi>(worker.endpoint), channel: null };
+      worker.onFailure?.((problem) => this.failed(slot, problem));
+      this.slots.push(slot);
     }
     return this.slots[i];
   }
 
-  /** Runs a recipe; rejects with AnalysisInputError for a bad recipe and AnalysisCancelledError after cancel(). */
+  /** A worker reported a failure: end the current run with it, or just drop the worker when idle. */
+  private failed(slot: Slot, problem: string): void {
+    if (!this.slots.includes(slot)) return; // already terminated by us
+    const run = this.current;
+    if (run !== null && !run.done) {
+      run.fail(new PoolWorkerError(slot.channel, problem));
+    } else {
+      this.slots = this.slots.filter((s) => s !== slot);
+      stop(slot);
+    }
+  }
+
+  /**
+   * Runs a recipe; rejects with AnalysisInputError for a bad recipe, AnalysisCancelledError after cancel() and
+   * PoolWorkerError when a worker fails. Never settles by hanging on a dead worker.
+   */
   async run(recording: Recording, recipe: unknown, options: PoolRunOptions = {}): Promise<PoolResult> {
-    if (this.running) throw new Error('DecomposePool: a run is already in progress; cancel() it first');
-    this.running = true;
+    if (this.current !== null) throw new Error('DecomposePool: a run is already in progress; cancel() it first');
+    const plan = planRecipe(recording, recipe);
+    let fail: (error: Error) => void = () => undefined;
+    const ended = new Promise<never>((_, reject) => (fail = reject));
+    ended.catch(() => undefined);
+    const run: ActiveRun = {
+      done: false,
+      fail: (error) => {
+        if (run.done) return;
+        run.done = true;
+        fail(error);
+      },
+    };
+    this.current = run;
     try {
-      const plan = planRecipe(recording, recipe);
       const n = plan.channels.length;
       const fractions = new Array<number>(n).fill(0);
-      const report = () => options.onProgress?.(fractions.reduce((a, b) => a + b, 0) / n, fractions);
+      const report = () => {
+        if (!run.done) options.onProgress?.(fractions.reduce((a, b) => a + b, 0) / n, fractions);
+      };
       const outputs = new Array<ChannelAnalysis>(n);
       const singleIndex = options.singleTrialChannel === undefined ? -1 : plan.channels.indexOf(options.singleTrialChannel);
       let next = 0;
-      let cancelled = false;
-      const cancelledPromise = new Promise<never>((_, reject) => {
-        this.cancelRun = () => {
-          cancelled = true;
-          reject(new AnalysisCancelledError());
-        };
-      });
-      cancelledPromise.catch(() => undefined);
       const lane = async (i: number) => {
-        const { remote } = this.slot(i);
-        while (!cancelled && next < n) {
+        const slot = this.slot(i);
+        while (!run.done && next < n) {
           const c = next++;
+          const channel = plan.channels[c];
           const samples = recording.data[plan.channelIndices[c]].slice();
-          const job = { plan, samples, singleTrials: c === singleIndex };
+          const job = { plan, samples, channel, singleTrials: c === singleIndex };
           const onChannel = Comlink.proxy((f: number) => {
             fractions[c] = f;
             report();
           });
-          outputs[c] = await remote.run(Comlink.transfer(job, [samples.buffer]), onChannel);
+          slot.channel = channel;
+          try {
+            outputs[c] = await slot.remote.run(Comlink.transfer(job, [samples.buffer]), onChannel);
+          } catch (error) {
+            throw new PoolWorkerError(channel, messageOf(error));
+          } finally {
+            slot.channel = null;
+          }
           fractions[c] = 1;
           report();
         }
       };
-      const lanes = Array.from({ length: Math.min(this.size, n) }, (_, i) => lane(i));
-      await Promise.race([Promise.all(lanes), cancelledPromise]);
+      const lanes = Promise.all(Array.from({ length: Math.min(this.size, n) }, (_, i) => lane(i)));
+      lanes.catch((error: unknown) => run.fail(error instanceof Error ? error : new Error(String(error))));
+      await Promise.race([lanes, ended]);
+      if (run.done) await ended; // a failure or cancel() that raced the last channel's answer wins
+      run.done = true;
       return { result: assembleResult(plan, outputs), singleTrials: singleIndex >= 0 ? outputs[singleIndex].singleTrials : null };
+    } catch (error) {
+      // A failed run leaves no worker busy on its channels: end them all (cancel() already did).
+      if (!(error instanceof AnalysisCancelledError)) this.terminate();
+      throw error;
     } finally {
-      this.running = false;
-      this.cancelRun = null;
+      run.done = true;
+      if (this.current === run) this.current = null;
     }
   }
 
-  /** Stops the current run (if any); its promise rejects with AnalysisCancelledError. */
+  /**
+   * Stops the current run (if any): its promise rejects with AnalysisCancelledError at once, its workers are
+   * terminated, and the pool takes a new run straight away.
+   */
   cancel(): void {
-    if (this.cancelRun === null) return;
-    const stop = this.cancelRun;
-    this.cancelRun = null;
+    const run = this.current;
+    if (run === null) return;
+    this.current = null;
     this.terminate();
-    stop();
+    run.fail(new AnalysisCancelledError());
   }
 
   /** Ends every worker; the pool starts new ones on its next run. */
   terminate(): void {
-    for (const s of this.slots) {
-      s.remote[Comlink.releaseProxy]();
-      s.worker.terminate();
-    }
+    const slots = this.slots;
     this.slots = [];
+    for (const s of slots) stop(s);
   }
+}
+
+function stop(slot: Slot): void {
+  try {
+    slot.remote[Comlink.releaseProxy]();
+  } catch {
+    // a proxy already released or an endpoint already closed: the worker is ended below either way
+  }
+  slot.worker.terminate();
 }
