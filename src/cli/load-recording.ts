@@ -1,3 +1,5 @@
+import { createHash } from 'node:crypto';
+import { createReadStream } from 'node:fs';
 import { open, readFile } from 'node:fs/promises';
 import { extname } from 'node:path';
 import type { Recording } from '../lib/analysis/recording';
@@ -54,6 +56,13 @@ async function readText(path: string): Promise<string> {
   }
 }
 
+/** SHA-256 of a file's bytes in lowercase hex, as the browser fingerprints a recording (FIPS 180-4 via node:crypto). */
+export async function fingerprintFile(path: string): Promise<string> {
+  const hash = createHash('sha256');
+  for await (const chunk of createReadStream(path)) hash.update(chunk as Buffer);
+  return hash.digest('hex');
+}
+
 /**
  * Reads an EDF/EDF+ (annotations become events) or a CSV/TSV sample table (needs the rate) and, when given,
  * a BIDS events TSV whose events are added to the recording's own.
@@ -103,5 +112,7 @@ export async function loadRecording(path: string, options: LoadOptions): Promise
     if (parsed.outside.length > 0) warnings.push(`${options.eventsPath}: ${parsed.outside.length} events lie outside the recording and were ignored`);
     recording.events = [...recording.events, ...parsed.events.map((e) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, label: e.label }))];
   }
+  // The browser fingerprints the recording file alone (not a separate events file), so the CLI does the same.
+  recording.fingerprint = await fingerprintFile(path);
   return { recording, warnings };
 }

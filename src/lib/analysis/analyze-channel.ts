@@ -17,6 +17,8 @@ export interface RecipePlan {
   epochStarts: Int32Array[];
   /** Per condition, epochs dropped (outside the recording or across a gap). */
   dropped: number[];
+  /** Per condition, fitting epochs left out by rejection rules or by hand. */
+  rejected: number[];
   epochSamples: number;
   tminSeconds: number;
   times: Float64Array;

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { AnalysisInputError } from './errors';
+import { EVENT_KEY } from './event-key';
 
 const finite = z.number().refine(Number.isFinite, 'must be a finite number');
 const positive = z.number().positive('must be greater than 0').refine(Number.isFinite, 'must be a finite number');
@@ -51,6 +52,23 @@ export const RecipeSchema = z
       })
       .strict(),
     aperiodic: z.object({ range, mode: z.enum(['fixed', 'knee']) }).strict(),
+    // Extensions of our own (DEVELOPERS.md, "Recipe extensions"); all optional, so a contract recipe parses as is.
+    conditions: z
+      .record(z.string(), z.array(z.string().min(1, 'must not be empty')).min(1, 'must list at least one event label'), {
+        error: 'must map each condition name to a list of event labels',
+      })
+      .optional(),
+    rejection: z
+      .object({
+        peakToPeakMicrovolts: positive.nullable(),
+        flatMicrovolts: z.number().min(0, 'must be zero or more').refine(Number.isFinite, 'must be a finite number').nullable(),
+        scope: z.enum(['any', 'channel']).default('any'),
+        channels: z.array(z.string().min(1, 'must not be empty')).optional(),
+        overrides: z.record(z.string().regex(EVENT_KEY, 'must be an event key "<index>@<onset seconds>:<label>", e.g. "12@30.25:cue"'), z.enum(['keep', 'reject'])).default({}),
+      })
+      .strict()
+      .optional(),
+    recording: z.object({ fingerprint: z.string().regex(/^[0-9a-f]{64}$/, 'must be a SHA-256 in 64 lowercase hex digits') }).strict().optional(),
   })
   .strict();
 

@@ -20,4 +20,6 @@ export interface Recording {
    * on the sample axis as the sample index where a new continuous block begins. Epochs spanning one are dropped.
    */
   gapSampleIndices?: number[];
+  /** SHA-256 of the file's bytes (lowercase hex) when the reader knows it; checked against a recipe's `recording`. */
+  fingerprint?: string;
 }

@@ -5,6 +5,7 @@ import { epochLength, epochTimes, selectEpochs } from './epochs';
 import { AnalysisCancelledError, AnalysisInputError } from './errors';
 
 import { frequencyGrid } from './frequency-grid';
+import { prepareRecording } from './prepare-recording';
 import { parseRecipe, type Recipe } from './recipe';
 import type { Recording } from './recording';
 import { roundHalfUp } from './rounding';
@@ -16,6 +17,8 @@ export interface ResultCondition {
   trials: number;
   /** Epochs of this label dropped (outside the recording or across a gap). */
   dropped: number;
+  /** Epochs that fit but were left out by the recipe's rejection rules or a manual decision (0 without rejection). */
+  rejected: number;
   /** [channel][frequency][time], µV² */
   power: number[][][];
   /** [channel][frequency][time] in the baseline method's unit; undefined values are null in JSON. */
@@ -26,7 +29,7 @@ export interface ResultAperiodic extends AperiodicFit {
   channel: string;
 }
 
-/** The Result JSON of the analysis contract ("Result (output)"), plus `cycles`, `dropped`, `points`, `excluded`. */
+/** The Result JSON of the analysis contract ("Result (output)"), plus `cycles`, `dropped`, `rejected`, `points`, `excluded`. */
 export interface AnalysisResult {
   frequencies: number[];
   cycles: number[];
@@ -125,26 +128,59 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
   }
   if (channels.length === 0) throw new AnalysisInputError('recording', 'has no data signals');
 
+  // Conditions and rejection (recipe extensions) pick the epochs; without them the contract's label selection runs.
+  const prepared = prepareRecording(recording, recipe);
+  const events = prepared.recording.events;
+  if (recipe.recording !== undefined && recording.fingerprint !== undefined && recipe.recording.fingerprint !== recording.fingerprint) {
+    warnings.push(
+      `recording.fingerprint: the recipe was made on a recording with SHA-256 ${recipe.recording.fingerprint.slice(0, 12)}…, but this one is ${recording.fingerprint.slice(0, 12)}…; the numbers may not match the ones it was made with`,
+    );
+  }
   const labels = recipe.epochs.events;
   const epochStarts: Int32Array[] = [];
   const droppedCounts: number[] = [];
+  const rejectedCounts: number[] = [];
   labels.forEach((label, i) => {
     if (labels.indexOf(label) !== i) throw new AnalysisInputError(`epochs.events[${i}]`, `repeats "${label}"`);
-    const sel = selectEpochs(recording.events, label, tmin, L, fs, total, recording.gapSampleIndices ?? []);
-    if (sel.matched === 0) {
-      const present = [...new Set(recording.events.map((e) => e.label))];
-      const shown = present.slice(0, 12).map((l) => `"${l}"`).join(', ') + (present.length > 12 ? ', …' : '');
-      throw new AnalysisInputError(`epochs.events[${i}]`, `: no events labelled "${label}" in the recording (labels present: ${shown || 'none'})`);
-    }
-    const dropped = sel.droppedOutside + sel.droppedGap;
-    if (sel.starts.length === 0) {
-      throw new AnalysisInputError(`epochs.events[${i}]`, `: all ${sel.matched} epochs of "${label}" were dropped (${sel.droppedOutside} run past the recording's start or end, ${sel.droppedGap} span a gap)`);
-    }
-    if (dropped > 0) {
-      warnings.push(`epochs.events[${i}] "${label}": ${dropped} of ${sel.matched} epochs dropped (${sel.droppedOutside} run past the recording's start or end, ${sel.droppedGap} span a gap)`);
+    const sel = selectEpochs(events, label, tmin, L, fs, total, recording.gapSampleIndices ?? []);
+    const count = prepared.counts.find((c) => c.condition === label);
+    if (count === undefined) {
+      if (sel.matched === 0) {
+        const present = [...new Set(recording.events.map((e) => e.label))];
+        const shown = present.slice(0, 12).map((l) => `"${l}"`).join(', ') + (present.length > 12 ? ', …' : '');
+        throw new AnalysisInputError(`epochs.events[${i}]`, `: no events labelled "${label}" in the recording (labels present: ${shown || 'none'})`);
+      }
+      const dropped = sel.droppedOutside + sel.droppedGap;
+      if (sel.starts.length === 0) {
+        throw new AnalysisInputError(`epochs.events[${i}]`, `: all ${sel.matched} epochs of "${label}" were dropped (${sel.droppedOutside} run past the recording's start or end, ${sel.droppedGap} span a gap)`);
+      }
+      if (dropped > 0) {
+        warnings.push(`epochs.events[${i}] "${label}": ${dropped} of ${sel.matched} epochs dropped (${sel.droppedOutside} run past the recording's start or end, ${sel.droppedGap} span a gap)`);
+      }
+      droppedCounts.push(dropped);
+      rejectedCounts.push(0);
+    } else {
+      const labelsOf = prepared.conditions.find((c) => c.name.trim() === label)!.labels.map((l) => `"${l}"`).join(', ');
+      if (count.total === 0) throw new AnalysisInputError(`epochs.events[${i}]`, `: condition "${label}" has no events in the recording (its labels: ${labelsOf})`);
+      const dropped = count.outside + count.gap;
+      if (sel.starts.length === 0) {
+        throw new AnalysisInputError(
+          `epochs.events[${i}]`,
+          `: all ${count.total} epochs of "${label}" were left out (${count.rejected} rejected, ${count.outside} run past the recording's start or end, ${count.gap} span a gap)`,
+        );
+      }
+      if (dropped > 0) {
+        warnings.push(`epochs.events[${i}] "${label}": ${dropped} of ${count.total} epochs dropped (${count.outside} run past the recording's start or end, ${count.gap} span a gap)`);
+      }
+      if (count.rejected > 0 || count.manualKeeps > 0) {
+        const byHand = count.manualRejects > 0 ? `, ${count.manualRejects} of them by hand` : '';
+        const kept = count.manualKeeps > 0 ? `; ${count.manualKeeps} kept by hand against the rules` : '';
+        warnings.push(`rejection "${label}": ${count.rejected} of ${count.total - dropped} epochs rejected${byHand}${kept}; ${count.kept} kept`);
+      }
+      droppedCounts.push(dropped);
+      rejectedCounts.push(count.rejected);
     }
     epochStarts.push(sel.starts);
-    droppedCounts.push(dropped);
   });
 
   const sp = recipe.spectrum;
@@ -186,6 +222,7 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
     labels,
     epochStarts,
     dropped: droppedCounts,
+    rejected: rejectedCounts,
     epochSamples: L,
     tminSeconds: tmin,
     times: epochTimes(tmin, tmax, fs),
@@ -214,6 +251,7 @@ export function assembleResult(plan: RecipePlan, channels: ChannelAnalysis[]): A
     conditions[label] = {
       trials: plan.epochStarts[c].length,
       dropped: plan.dropped[c],
+      rejected: plan.rejected[c],
       power: channels.map((ch) => rows(ch.power[c], nf, nt)),
       normalized: channels.map((ch) => rows(ch.normalized[c], nf, nt)),
     };
