@@ -14,11 +14,10 @@ interface Props {
   busy: boolean;
   onPick: (subject: DemoSubject) => void;
   /** Called once the list is known, so the screen can tell demo file names from a person's own. */
-  onList: (names: string[]) => void;
 }
 
 /** The generated demo cohort (invented data served by the app), to try Tidemark without a recording of one's own. */
-export default function DemoPicker({ busy, onPick, onList }: Props) {
+export default function DemoPicker({ busy, onPick }: Props) {
   const [subjects, setSubjects] = useState<DemoSubject[] | null>(null);
   const [problem, setProblem] = useState<string | null>(null);
   const [chosen, setChosen] = useState('');
@@ -33,7 +32,6 @@ export default function DemoPicker({ busy, onPick, onList }: Props) {
         if (!live) return;
         setSubjects(cohort.subjects);
         setChosen(cohort.subjects[0]?.fileName ?? '');
-        onList(cohort.subjects.map((s) => s.fileName));
       })
       .catch((error: unknown) => live && setProblem(error instanceof Error ? error.message : String(error)));
     return () => {

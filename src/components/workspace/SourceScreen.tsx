@@ -79,7 +79,6 @@ export default function SourceScreen(props: WorkspaceProps) {
   const [origin, setOrigin] = useState<Origin>('your file');
   const [overviewChannel, setOverviewChannel] = useState('');
   const [selectedEvent, setSelectedEvent] = useState<number | null>(null);
-  const demoNames = useRef(new Set<string>());
 
   const refuse = (fileName: string, message: string) =>
     setProblem({ fileName, error: { file: 'recording', message, problem: message, field: null, byteOffset: null, signal: null, row: null, column: null } });
@@ -101,7 +100,8 @@ export default function SourceScreen(props: WorkspaceProps) {
           return;
         }
         setProblem(null);
-        const isDemo = from === 'demo cohort' || demoNames.current.has(fileName);
+        // Only a file fetched from the demo cohort is known to be demo data; a local file with a demo-like name is not.
+        const isDemo = from === 'demo cohort';
         // The file name and header identification must never leave the device; the outbound wrapper refuses them.
         guardAgainst('source-recording', [
           ...(isDemo ? [] : [fileName]),
@@ -172,7 +172,7 @@ export default function SourceScreen(props: WorkspaceProps) {
           </h2>
           <OpenPanel busy={busy !== null} onOpenEdf={openEdf} onOpenCsv={openCsv} onRefuse={(m) => refuse('That file', m)} />
           <hr className="tide-rule" />
-          <DemoPicker busy={busy !== null} onPick={(s) => void openDemo(s)} onList={(names) => (demoNames.current = new Set(names))} />
+          <DemoPicker busy={busy !== null} onPick={(s) => void openDemo(s)} />
           {busy && (
             <div className="grid gap-1" role="status" data-testid="intake-progress">
               <label htmlFor="intake-progress-bar" className="text-sm">

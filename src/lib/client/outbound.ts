@@ -46,9 +46,27 @@ export function outboundLog(): readonly OutboundEntry[] {
   return entries;
 }
 
-/** Strings (at least 4 characters, trimmed) that no request may carry, grouped under `owner` so they can be replaced. */
+// EDF+ header subfields are space-separated and use X for "unknown" (Kemp & Olivan, 2003); "Startdate" is the
+// recording field's fixed keyword, not identifying.
+const NOT_IDENTIFYING = new Set(['startdate']);
+
+/**
+ * Strings that no request may carry, grouped under `owner` so they can be replaced: each value whole, its JSON-escaped
+ * form, and each of its space- or underscore-separated parts of at least 4 characters (a hospital code or a birth
+ * date inside an EDF+ patient field is identifying on its own).
+ */
 export function guardAgainst(owner: string, values: readonly string[]): void {
-  guarded.set(owner, new Set(values.map((v) => v.trim()).filter((v) => v.length >= 4)));
+  const set = new Set<string>();
+  const add = (v: string) => {
+    const t = v.trim();
+    if (t.length >= 4 && !NOT_IDENTIFYING.has(t.toLowerCase())) set.add(t);
+  };
+  for (const value of values) {
+    add(value);
+    add(JSON.stringify(value.trim()).slice(1, -1));
+    for (const part of value.split(/[\s_]+/)) add(part);
+  }
+  guarded.set(owner, set);
 }
 
 function carriesGuarded(text: string): boolean {

@@ -32,4 +32,21 @@ describe('send', () => {
     await send('/api/x', { json: { code: 'X-1' } });
     expect(fetch).toHaveBeenCalledTimes(1);
   });
+
+  it('refuses each identifying part of an EDF+ patient field, not only the whole field', async () => {
+    // The EDF+ patient field holds "code sex birthdate name" separated by spaces, with X for unknown and _ for
+    // spaces inside a name (Kemp & Olivan, 2003); the example values below are invented.
+    const fetch = vi.fn(async () => new Response('{}', { status: 201 }));
+    vi.stubGlobal('fetch', fetch);
+    guardAgainst('test', ['QRZ-7741230 F 02-MAY-1951 Ann_Example', 'Startdate 04-MAR-2024 ROOM-7 X X', 'my "odd" name.edf']);
+    for (const leak of ['QRZ-7741230', '02-MAY-1951', 'Example', '04-MAR-2024', 'ROOM-7']) {
+      await expect(send('/api/x', { json: { subjectCode: leak } })).rejects.toBeInstanceOf(OutboundRefusedError);
+    }
+    // JSON escapes the quotes of a file name; the escaped form is guarded too.
+    await expect(send('/api/x', { json: { note: 'my "odd" name.edf' } })).rejects.toBeInstanceOf(OutboundRefusedError);
+    expect(fetch).not.toHaveBeenCalled();
+    // The fixed keyword of the recording field is not identifying and does not block requests.
+    await send('/api/x', { json: { note: 'Startdate' } });
+    expect(fetch).toHaveBeenCalledTimes(1);
+  });
 });
