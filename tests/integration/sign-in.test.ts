@@ -92,4 +92,20 @@ describe('sign-in against the running app and real PostgreSQL', () => {
     const { rows } = await pool.query('SELECT count(*)::int AS n FROM sessions WHERE id = $1', [sessionId]);
     expect(rows[0].n).toBe(0);
   });
+
+  it('follows ?next= only within the site', async () => {
+    const inside = new Client();
+    const ok = await inside.request('/sign-in?next=%2Fadmin', { method: 'POST', form: { email: lead.email, password: lead.password } });
+    expect(ok.headers.get('location')).toBe('/admin');
+    const outside = new Client();
+    const refused = await outside.request('/sign-in?next=%2F%5Cevil.example', { method: 'POST', form: { email: lead.email, password: lead.password } });
+    expect(refused.status).toBe(302);
+    expect(refused.headers.get('location')).toBe('/');
+  });
+
+  it('shows the dev mailbox to this machine while the mail fake runs', async () => {
+    const page = await new Client().request('/dev/mailbox');
+    expect(page.status).toBe(200);
+    expect(await page.text()).toContain('Mailbox');
+  });
 });

@@ -3,6 +3,7 @@ import { DrizzlePostgreSQLAdapter } from '@lucia-auth/adapter-drizzle';
 import type { AstroCookies } from 'astro';
 import { db } from '../../db/client';
 import { sessions, users } from '../../db/schema';
+import { cookieIsSecure } from './cookies';
 
 const adapter = new DrizzlePostgreSQLAdapter(db, sessions, users);
 
@@ -24,13 +25,6 @@ declare module 'lucia' {
   }
 }
 
-/** Secure cookies everywhere except local development over plain http on a loopback address. */
-export function cookieIsSecure(url: URL): boolean {
-  if (url.protocol === 'https:') return true;
-  const host = url.hostname;
-  const loopback = host === 'localhost' || host === '[::1]' || host.startsWith('127.');
-  return !loopback;
-}
 
 function writeCookie(cookies: AstroCookies, url: URL, cookie: ReturnType<typeof lucia.createBlankSessionCookie>) {
   cookies.set(cookie.name, cookie.value, { ...cookie.attributes, httpOnly: true, sameSite: 'lax', secure: cookieIsSecure(url) });

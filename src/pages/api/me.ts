@@ -1,3 +1,4 @@
+// The signed-in person's own account and memberships: no team's rows, so sign-in is the only check.
 import type { APIRoute } from 'astro';
 import { json, requireUser, route } from '../../lib/server/http';
 import { listTeamsForUser } from '../../db/queries/teams';

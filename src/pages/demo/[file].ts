@@ -1,5 +1,6 @@
 // Serves the generated demo cohort (invented data, never a user's recording) from ./demo-data at /demo/<file>.
-// Only plain names of files directly in that folder are served: no paths, no dot-files, no traversal.
+// Only plain names of files directly in that folder are served: no paths, no dot-files, no traversal. Any signed-in
+// person may read them (invented demo data belongs to no team), so the route asks for sign-in only, not the matrix.
 import fs from 'node:fs/promises';
 import path from 'node:path';
 import type { APIRoute } from 'astro';
