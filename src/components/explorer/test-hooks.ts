@@ -6,6 +6,7 @@ import { useSourceStore } from '../../stores/source';
 import { useRecipeStore } from '../../stores/recipe';
 import { useViewStore } from '../../stores/view';
 import { useResultsStore } from '../../stores/results';
+import { runPoolOnOpenRecording } from './pool-test-hook';
 
 export interface DemoLoadOptions {
   seconds?: number;
@@ -61,6 +62,7 @@ declare global {
   interface Window {
     __tidemark?: {
       loadDemo: typeof loadDemo;
+      runPool: typeof runPoolOnOpenRecording;
       stores: { source: typeof useSourceStore; recipe: typeof useRecipeStore; view: typeof useViewStore; results: typeof useResultsStore };
     };
   }
@@ -69,5 +71,5 @@ declare global {
 export function installTestHooks(): void {
   if (typeof window === 'undefined' || window.__tidemark !== undefined) return;
   if (!new URLSearchParams(window.location.search).has('testhooks')) return;
-  window.__tidemark = { loadDemo, stores: { source: useSourceStore, recipe: useRecipeStore, view: useViewStore, results: useResultsStore } };
+  window.__tidemark = { loadDemo, runPool: runPoolOnOpenRecording, stores: { source: useSourceStore, recipe: useRecipeStore, view: useViewStore, results: useResultsStore } };
 }

@@ -1,0 +1,18 @@
+// Test hook, installed with the others only when the page URL carries `?testhooks`: runs the app's own
+// decomposition pool (module Web Workers from the bundled decompose.worker.ts) on the recording open in the Source
+// store, so a browser test can compare the complete Result with the command line's. Nothing is sent anywhere.
+import { DecomposePool } from '../../lib/client/decompose-pool';
+import { useSourceStore } from '../../stores/source';
+
+/** The pool's Result for `recipe` on the Source store's analysis recording, as the JSON text the CLI writes. */
+export async function runPoolOnOpenRecording(recipe: unknown): Promise<string> {
+  const recording = useSourceStore.getState().analysisRecording();
+  if (recording === null) throw new Error('no recording is open on the Source screen');
+  const pool = new DecomposePool();
+  try {
+    const { result } = await pool.run(recording, recipe);
+    return JSON.stringify(result);
+  } finally {
+    pool.terminate();
+  }
+}
