@@ -4,6 +4,7 @@ import * as Comlink from 'comlink';
 import type { BaselineMethod } from '../src/lib/analysis/baseline';
 import { epochSpectra, type EpochSpectra } from '../src/lib/analysis/epoch-spectra';
 import { prepareTrialPower, renormalizeTrials, type TrialPower } from '../src/lib/analysis/renormalize';
+import { welchPsd } from '../src/lib/analysis/welch';
 
 let held: { key: string; conditions: TrialPower[] } | null = null;
 
@@ -36,6 +37,11 @@ const api = {
   ): EpochSpectra[] {
     const out = channels.map((x) => epochSpectra(x, sampleRateHz, epochStarts, epochSamples, segmentSamples, overlapSamples, rangeHz));
     return Comlink.transfer(out, out.flatMap((s) => [s.frequencies.buffer, s.perTrial.buffer, s.mean.buffer]) as ArrayBuffer[]);
+  },
+  /** The recipe's Welch spectrum of each channel over `spans` (whole recording or epochs), as `analyzeChannel` computes it. */
+  recipeSpectra(channels: Float32Array[], sampleRateHz: number, segmentSamples: number, overlapSamples: number, spans: Int32Array): { frequencies: Float64Array; psd: Float64Array }[] {
+    const out = channels.map((x) => welchPsd(x, sampleRateHz, segmentSamples, overlapSamples, spans));
+    return Comlink.transfer(out, out.flatMap((s) => [s.frequencies.buffer, s.psd.buffer]) as ArrayBuffer[]);
   },
 };
 

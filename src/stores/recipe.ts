@@ -1,5 +1,6 @@
 import { create } from 'zustand';
 import type { RecipeInput } from '../lib/analysis/recipe';
+import { sourceSpec, type Condition, type RejectionSettings } from './source';
 
 export type CyclesMode = 'fixed' | 'range' | 'fwhm';
 
@@ -16,11 +17,14 @@ export interface RecipeDraft {
   /** Condition names to epoch; empty means every condition of the Source screen. */
   conditions: string[];
   spectrum: { segment: number; overlap: number; range: [number, number]; source: 'recording' | 'epochs' };
-  aperiodic: { range: [number, number]; mode: 'fixed' | 'knee' };
+  /** The fit range is live view state (`useViewStore().fitRange`, dragged on the Spectrum screen), like the baseline. */
+  aperiodic: { mode: 'fixed' | 'knee' };
 }
 
+// 3–45 Hz covers the default bands (theta 4–8 … gamma 30–45 Hz). At 3 Hz the 3-cycle wavelet's edge zone is
+// 3σ = 3·3/(2π·3) ≈ 0.477 s, so the default −0.5 … −0.2 s baseline in the default −1 … 2 s epoch stays clear of it.
 export const DEFAULT_DRAFT: RecipeDraft = {
-  frequencies: { min: 3, max: 40, count: 30, spacing: 'log' },
+  frequencies: { min: 3, max: 45, count: 30, spacing: 'log' },
   cyclesMode: 'range',
   cyclesFixed: 5,
   cyclesMin: 3,
@@ -29,7 +33,7 @@ export const DEFAULT_DRAFT: RecipeDraft = {
   channels: [],
   conditions: [],
   spectrum: { segment: 1, overlap: 0.5, range: [1, 45], source: 'recording' },
-  aperiodic: { range: [2, 40], mode: 'fixed' },
+  aperiodic: { mode: 'fixed' },
 };
 
 export interface RunChannelProgress {
@@ -57,14 +61,26 @@ export const useRecipeStore = create<RecipeState>((set, get) => ({
   setRun: (patch) => set({ run: { ...get().run, ...patch } }),
 }));
 
+/** What the Source screen contributes to a recipe. */
+export interface RecipeSource {
+  conditions: Condition[];
+  tmin: number;
+  tmax: number;
+  rejection: RejectionSettings;
+  /** SHA-256 of the open file; written into the recipe only when it is one (64 hex digits). */
+  fingerprint: string | null;
+}
+
 /**
- * The contract recipe (analysis.md, "Recipe (input)") for the draft, the Source screen's conditions and epoch
- * window, and a baseline. Exported as is, so `npm run analyze -- <file> --recipe <it>` reproduces the numbers.
+ * The full recipe (analysis.md, "Recipe (input)", plus our `conditions`, `rejection` and `recording` extensions)
+ * for the draft, the Source screen's conditions, window and rejection, a baseline and the aperiodic fit range.
+ * Exported as is, so `npm run analyze -- <file> --recipe <it>` reproduces the numbers.
  */
 export function toRecipe(
   draft: RecipeDraft,
-  source: { conditionNames: string[]; tmin: number; tmax: number },
+  source: RecipeSource,
   baseline: { start: number; end: number; method: 'db' | 'percent' | 'zscore' | 'ratio'; scope: 'average' | 'trial' },
+  fitRange: readonly [number, number],
 ): RecipeInput {
   const cycles =
     draft.cyclesMode === 'fixed'
@@ -72,7 +88,9 @@ export function toRecipe(
       : draft.cyclesMode === 'fwhm'
         ? { fwhm: draft.fwhmSeconds }
         : { min: draft.cyclesMin, max: draft.cyclesMax };
-  const events = draft.conditions.length > 0 ? draft.conditions.filter((c) => source.conditionNames.includes(c)) : source.conditionNames;
+  const conditionNames = source.conditions.map((c) => c.name);
+  const events = draft.conditions.length > 0 ? draft.conditions.filter((c) => conditionNames.includes(c)) : conditionNames;
+  const spec = sourceSpec({ conditions: source.conditions, epochWindow: source, rejection: source.rejection });
   return {
     epochs: { events, tmin: source.tmin, tmax: source.tmax },
     ...(draft.channels.length > 0 ? { channels: draft.channels } : {}),
@@ -80,12 +98,18 @@ export function toRecipe(
     cycles,
     baseline: { ...baseline },
     spectrum: { ...draft.spectrum, range: [...draft.spectrum.range] as [number, number] },
-    aperiodic: { ...draft.aperiodic, range: [...draft.aperiodic.range] as [number, number] },
+    aperiodic: { range: [fitRange[0], fitRange[1]], mode: draft.aperiodic.mode },
+    conditions: spec.conditions as Record<string, string[]>,
+    rejection: spec.rejection as NonNullable<RecipeInput['rejection']>,
+    ...(source.fingerprint !== null && /^[0-9a-f]{64}$/.test(source.fingerprint) ? { recording: { fingerprint: source.fingerprint } } : {}),
   };
 }
 
-/** Cache key of a decomposition: the recipe without its baseline (the explorer re-normalizes live). */
+/**
+ * Cache key of a decomposition: the recipe without its baseline and aperiodic fit range (the explorer re-normalizes
+ * and re-fits live).
+ */
 export function decompositionKey(recordingId: string, recipe: RecipeInput): string {
-  const { baseline: _baseline, ...rest } = recipe;
-  return `${recordingId}|${JSON.stringify(rest)}`;
+  const { baseline: _baseline, aperiodic, ...rest } = recipe;
+  return `${recordingId}|${JSON.stringify({ ...rest, aperiodicMode: aperiodic.mode })}`;
 }

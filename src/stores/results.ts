@@ -38,6 +38,10 @@ export interface Decomposition {
   epochSamples: number;
   spectrumSegmentSamples: number;
   spectrumOverlapSamples: number;
+  /** Sample spans `[start, end, …]` of the recipe's spectrum (`spectrum.source`: whole recording or kept epochs). */
+  spectrumSpans: Int32Array;
+  /** Per condition, epochs left out by rejection rules or by hand. */
+  rejected: number[];
 }
 
 export interface TrialHold {
@@ -154,6 +158,8 @@ export async function runDecomposition(recording: Recording, recordingId: string
       epochSamples: plan.epochSamples,
       spectrumSegmentSamples: plan.spectrum.segmentSamples,
       spectrumOverlapSamples: plan.spectrum.overlapSamples,
+      spectrumSpans: plan.spectrum.spans,
+      rejected: labels.map((l) => result.conditions[l].rejected),
     };
     useResultsStore.setState((s) => ({ cache: { ...s.cache, [key]: decomposition }, activeKey: key }));
     setRun({ status: 'done', message: `Decomposed ${plan.channels.length} channel(s) × ${labels.length} condition(s).` });

@@ -1,7 +1,7 @@
 import { create } from 'zustand';
 import type { Recording } from '../lib/analysis/recording';
-import { assignConditions } from '../lib/analysis/conditions';
-import { applyOverride, checkEpochs, type EpochFit } from '../lib/analysis/rejection';
+import { eventKey } from '../lib/analysis/event-key';
+import { prepareRecording, type EpochDecision, type PrepareSpec } from '../lib/analysis/prepare-recording';
 
 /**
  * The Source screen's state: the recording opened on this device and how its events become conditions and epochs.
@@ -37,29 +37,11 @@ export interface RejectionSettings {
   scope: 'any' | 'channel';
   /** Channel names the rules check when scope is 'channel'. */
   channels?: string[];
-  /** Manual decisions by epoch key `${eventIndex}` (index into recording.events), overriding the rules. */
+  /** Manual decisions by event key (`eventKey`: index, onset and label of the event), overriding the rules. */
   overrides: Record<string, 'keep' | 'reject'>;
 }
 
-export interface EpochDecision {
-  eventIndex: number;
-  condition: string;
-  onsetSeconds: number;
-  rejected: boolean;
-  /** Why: e.g. "peak-to-peak 212 µV on Fz", "flat on O2", "manual", "outside the recording". */
-  reasons: string[];
-  /** Whether the epoch fits the recording ('outside': runs past an end; 'gap': spans an EDF+D gap). */
-  fit?: EpochFit;
-  /** The rules' verdict before any manual override. */
-  rejectedByRules?: boolean;
-  manual?: 'keep' | 'reject' | null;
-  /** Largest peak-to-peak amplitude over the checked channels (µV) and where; null when the epoch does not fit. */
-  peakToPeakMicrovolts?: number | null;
-  peakToPeakChannel?: string | null;
-  /** Smallest standard deviation over the checked channels (µV) and where. */
-  minStdMicrovolts?: number | null;
-  minStdChannel?: string | null;
-}
+export type { EpochDecision } from '../lib/analysis/prepare-recording';
 
 export interface SourceState {
   recording: Recording | null;
@@ -90,44 +72,55 @@ export interface SourceState {
 
 type Actions = 'load' | 'setConditions' | 'setEpochWindow' | 'setRejection' | 'setOverride' | 'recompute';
 
+/** The Source screen's settings as the recipe's `epochs`, `conditions` and `rejection` fields (recipe extensions). */
+export function sourceSpec(state: Pick<SourceState, 'conditions' | 'epochWindow' | 'rejection'>): PrepareSpec {
+  const { conditions, epochWindow, rejection } = state;
+  return {
+    epochs: { tmin: epochWindow.tmin, tmax: epochWindow.tmax },
+    conditions: Object.fromEntries(conditions.map((c) => [c.name, c.labels.slice()])),
+    rejection: {
+      peakToPeakMicrovolts: rejection.peakToPeakMicrovolts,
+      flatMicrovolts: rejection.flatMicrovolts,
+      scope: rejection.scope,
+      ...(rejection.scope === 'channel' ? { channels: (rejection.channels ?? []).slice() } : {}),
+      overrides: { ...rejection.overrides },
+    },
+  };
+}
+
 /** The decisions for the current state, or the reason there are none. Pure: the store calls it on every change. */
 export function decideEpochs(
   state: Pick<SourceState, 'recording' | 'conditions' | 'epochWindow' | 'rejection'>,
 ): { decisions: EpochDecision[]; settingsError: string | null } {
-  const { recording, conditions, epochWindow, rejection } = state;
+  const { recording, conditions } = state;
   if (!recording || conditions.length === 0) return { decisions: [], settingsError: null };
   try {
-    const assignments = assignConditions(recording.events, conditions);
-    const channelIndices =
-      rejection.scope === 'channel'
-        ? (rejection.channels ?? []).map((name) => recording.channelNames.indexOf(name)).filter((i) => i >= 0)
-        : null;
-    const checks = checkEpochs(recording, assignments, epochWindow, {
-      peakToPeakMicrovolts: rejection.peakToPeakMicrovolts,
-      flatMicrovolts: rejection.flatMicrovolts,
-      channelIndices,
-    });
-    const decisions = checks.map((c): EpochDecision => {
-      const verdict = applyOverride(c, rejection.overrides[String(c.eventIndex)]);
-      return {
-        eventIndex: c.eventIndex,
-        condition: c.condition,
-        onsetSeconds: c.onsetSeconds,
-        rejected: verdict.rejected,
-        reasons: verdict.reasons,
-        fit: c.fit,
-        rejectedByRules: c.rejectedByRules,
-        manual: verdict.manual,
-        peakToPeakMicrovolts: c.peakToPeakMicrovolts,
-        peakToPeakChannel: c.peakToPeakChannel,
-        minStdMicrovolts: c.minStdMicrovolts,
-        minStdChannel: c.minStdChannel,
-      };
-    });
-    return { decisions, settingsError: null };
+    return { decisions: prepareRecording(recording, sourceSpec(state)).decisions, settingsError: null };
   } catch (error) {
     return { decisions: [], settingsError: error instanceof Error ? error.message : String(error) };
   }
+}
+
+/** Condition names may hold letters, digits, space and . _ / : - (conditions.ts); labels may hold more. */
+function conditionNameOf(label: string): string {
+  return label.replace(/[^\p{L}\p{N} ._/:-]+/gu, '-').replace(/^[^\p{L}\p{N}]+/u, '').slice(0, 40).trim();
+}
+
+/** A first-time default: one condition per distinct event label when there are a handful (≤ 8) of them. */
+export function conditionsPerLabel(events: readonly { label: string }[], most = 8): Condition[] {
+  const labels = [...new Set(events.map((e) => e.label))];
+  if (labels.length === 0 || labels.length > most) return [];
+  const out: Condition[] = [];
+  const taken = new Set<string>();
+  for (const label of labels) {
+    const base = conditionNameOf(label);
+    if (base === '') continue;
+    let name = base;
+    for (let k = 2; taken.has(name.toLowerCase()); k++) name = `${base.slice(0, 36)} ${k}`;
+    taken.add(name.toLowerCase());
+    out.push({ name, labels: [label] });
+  }
+  return out;
 }
 
 export const defaultRejection: RejectionSettings = { peakToPeakMicrovolts: 150, flatMicrovolts: 0.5, scope: 'any', overrides: {} };
@@ -138,24 +131,24 @@ export const useSourceStore = create<SourceState>((set, get) => ({
   fingerprint: null,
   subjectCode: '',
   conditions: [],
-  epochWindow: { tmin: -0.5, tmax: 1.5 },
+  // 3 s around the event: room for a −0.5 … −0.2 s baseline clear of the edge zone down to 3 Hz (recipe defaults).
+  epochWindow: { tmin: -1, tmax: 2 },
   rejection: defaultRejection,
   decisions: [],
   settingsError: null,
   analysisRecording: () => {
-    const { recording, decisions } = get();
-    if (!recording) return null;
-    const events = decisions
-      .filter((d) => !d.rejected)
-      .map((d) => ({ ...recording.events[d.eventIndex], label: d.condition }));
-    return { ...recording, events };
+    const state = get();
+    if (!state.recording) return null;
+    if (state.conditions.length === 0 || state.settingsError !== null) return { ...state.recording, events: [] };
+    return prepareRecording(state.recording, sourceSpec(state)).recording;
   },
   set: (patch) => set(patch),
   load: ({ recording, local, fingerprint }) => {
     const labels = new Set(recording.events.map((e) => e.label));
-    const conditions = get()
+    const kept = get()
       .conditions.map((c) => ({ ...c, labels: c.labels.filter((l) => labels.has(l)) }))
       .filter((c) => c.labels.length > 0);
+    const conditions = kept.length > 0 ? kept : conditionsPerLabel(recording.events);
     const rejection = { ...get().rejection, overrides: {}, channels: (get().rejection.channels ?? []).filter((n) => recording.channelNames.includes(n)) };
     set({ recording, local, fingerprint, conditions, rejection, ...decideEpochs({ ...get(), recording, conditions, rejection }) });
   },
@@ -166,9 +159,12 @@ export const useSourceStore = create<SourceState>((set, get) => ({
     set({ rejection, ...decideEpochs({ ...get(), rejection }) });
   },
   setOverride: (eventIndex, decision) => {
+    const recording = get().recording;
+    if (!recording || recording.events[eventIndex] === undefined) return;
+    const key = eventKey(eventIndex, recording.events[eventIndex]);
     const overrides = { ...get().rejection.overrides };
-    if (decision === null) delete overrides[String(eventIndex)];
-    else overrides[String(eventIndex)] = decision;
+    if (decision === null) delete overrides[key];
+    else overrides[key] = decision;
     const rejection = { ...get().rejection, overrides };
     set({ rejection, ...decideEpochs({ ...get(), rejection }) });
   },

@@ -55,7 +55,7 @@ export const useViewStore = create<ViewState>((set) => ({
   channel: null,
   condition: null,
   compareTo: null,
-  baseline: { start: -0.4, end: -0.1 },
+  baseline: { start: -0.5, end: -0.2 },
   method: 'db',
   scope: 'average',
   rawScale: 'log',

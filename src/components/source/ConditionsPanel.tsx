@@ -30,7 +30,7 @@ export default function ConditionsPanel({ recording, conditions, epochWindow, se
     const trimmed = name.trim();
     if (chosen.length === 0) return setProblem('Tick at least one event label first.');
     if (trimmed === '') return setProblem('Give the condition a name.');
-    if (!/^[\p{L}\p{N}][\p{L}\p{N} ._-]{0,39}$/u.test(trimmed)) return setProblem('A condition name is up to 40 letters, digits, spaces, dots, dashes or underscores.');
+    if (!/^[\p{L}\p{N}][\p{L}\p{N} ._/:-]{0,39}$/u.test(trimmed)) return setProblem('A condition name is up to 40 letters, digits, spaces, dots, dashes, underscores, slashes or colons.');
     if (conditions.some((c) => c.name.toLowerCase() === trimmed.toLowerCase())) return setProblem(`There is already a condition called "${trimmed}".`);
     const taken = chosen.filter((l) => owner.has(l));
     if (taken.length > 0) return setProblem(`"${taken[0]}" already belongs to "${owner.get(taken[0])}"; remove it there first.`);

@@ -78,7 +78,8 @@ export default function MapsScreen(_props: WorkspaceProps) {
   // Single-trial scope: the worker holds this channel's trials; ask it for the maps whenever the baseline moves.
   useEffect(() => {
     if (d === null || ch === null || scope !== 'trial') return;
-    const recording = useSourceStore.getState().analysisRecording();
+    // The whole recording: the decomposition's recipe carries the conditions and rejection the core applies.
+    const recording = useSourceStore.getState().recording;
     if (recording !== null) void ensureTrials(d, ch, recording);
   }, [d, ch, scope]);
   const pending = useRef<{ busy: boolean; next: { key: string; first: number; last: number; method: BaselineMethod } | null }>({ busy: false, next: null });
@@ -187,7 +188,9 @@ export default function MapsScreen(_props: WorkspaceProps) {
     downloadBlob(blob, `maps-${fileSafe(ch ?? 'channel')}-${fileSafe(d.labels[a])}${b >= 0 ? `-minus-${fileSafe(d.labels[b])}` : ''}-${method}.png`);
   };
   const exportRecipe = () => {
-    const recipe = { ...d.recipe, baseline: { start: baseline.start, end: baseline.end, method, scope } };
+    // The run's recipe with the live baseline and fit range: everything `npm run analyze` needs to give these numbers.
+    const { fitRange } = useViewStore.getState();
+    const recipe = { ...d.recipe, baseline: { start: baseline.start, end: baseline.end, method, scope }, aperiodic: { ...d.recipe.aperiodic, range: [fitRange[0], fitRange[1]] } };
     downloadBlob(new Blob([JSON.stringify(recipe, null, 2) + '\n'], { type: 'application/json' }), 'recipe.json');
   };
 

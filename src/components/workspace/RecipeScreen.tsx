@@ -1,4 +1,4 @@
-import { useMemo } from 'react';
+import { useMemo, useRef, useState } from 'react';
 import type { WorkspaceProps } from './types';
 import { AnalysisInputError } from '../../lib/analysis/errors';
 import { planRecipe } from '../../lib/analysis/run-recipe';
@@ -6,6 +6,7 @@ import { decompositionKey, toRecipe, useRecipeStore, type CyclesMode } from '../
 import { cancelDecomposition, recordingIdOf, runDecomposition, useResultsStore } from '../../stores/results';
 import { useSourceStore } from '../../stores/source';
 import { useViewStore } from '../../stores/view';
+import { applyRecipe } from '../../stores/apply-recipe';
 import NumberField from '../explorer/NumberField';
 import { usePanelVisible } from '../explorer/usePanelVisible';
 import Choice from '../explorer/Choice';
@@ -29,6 +30,11 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const conditions = useSourceStore((s) => s.conditions);
   const epochWindow = useSourceStore((s) => s.epochWindow);
   const decisions = useSourceStore((s) => s.decisions);
+  const rejection = useSourceStore((s) => s.rejection);
+  const fitRange = useViewStore((s) => s.fitRange);
+  const setView = useViewStore((s) => s.set);
+  const fileInput = useRef<HTMLInputElement>(null);
+  const [loaded, setLoaded] = useState<{ ok: boolean; text: string } | null>(null);
   const settingsError = useSourceStore((s) => s.settingsError);
   const baseline = useViewStore((s) => s.baseline);
   const method = useViewStore((s) => s.method);
@@ -40,8 +46,9 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const visible = usePanelVisible('Recipe');
 
   const conditionNames = conditions.map((c) => c.name);
-  const recipe = toRecipe(draft, { conditionNames, tmin: epochWindow.tmin, tmax: epochWindow.tmax }, { ...baseline, method, scope });
-  const analysis = useMemo(() => (recording === null ? null : useSourceStore.getState().analysisRecording()), [recording, decisions]);
+  const recipe = toRecipe(draft, { conditions, tmin: epochWindow.tmin, tmax: epochWindow.tmax, rejection, fingerprint }, { ...baseline, method, scope }, fitRange);
+  // The whole recording goes to the core with the full recipe: prepareRecording applies conditions and rejection there.
+  const analysis = recording;
   const recordingId = recording === null ? null : recordingIdOf(recording, fingerprint);
   const key = recordingId === null ? null : decompositionKey(recordingId, recipe);
 
@@ -56,7 +63,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
       throw error;
     }
     // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [analysis, visible, JSON.stringify(recipe)]);
+  }, [analysis, visible, decisions, JSON.stringify(recipe)]);
   const errorFor = (group: string) => (check !== null && check.field === group ? check.problem : null);
 
   if (recording === null) {
@@ -79,6 +86,18 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   ];
   const allChannels = draft.channels.length === 0;
   const fs = recording.sampleRateHz;
+  const loadFile = async (file: File) => {
+    let json: unknown;
+    try {
+      json = JSON.parse(await file.text());
+    } catch (error) {
+      setLoaded({ ok: false, text: `${file.name} is not valid JSON (${error instanceof Error ? error.message : String(error)}); nothing was changed.` });
+      return;
+    }
+    const outcome = applyRecipe(json, recording, fingerprint);
+    if (outcome.ok) setLoaded({ ok: true, text: [`Loaded ${file.name}.`, ...outcome.notices].join(' ') });
+    else setLoaded({ ok: false, text: `${file.name}: ${outcome.message}; nothing was changed.` });
+  };
 
   return (
     <form
@@ -89,6 +108,30 @@ export default function RecipeScreen(_props: WorkspaceProps) {
         if (!running && check === null) start();
       }}
     >
+      <div className="card flex flex-wrap items-center gap-3 p-3">
+        <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale" onClick={() => fileInput.current?.click()} data-testid="load-recipe">
+          Load recipe JSON
+        </button>
+        <input
+          ref={fileInput}
+          type="file"
+          accept="application/json,.json"
+          className="sr-only"
+          aria-label="Recipe JSON file"
+          data-testid="load-recipe-file"
+          onChange={(e) => {
+            const file = e.target.files?.[0];
+            e.target.value = '';
+            if (file !== undefined) void loadFile(file);
+          }}
+        />
+        <span className="text-xs text-ink-soft">sets conditions, epochs, rejection, frequencies, wavelets, baseline, spectrum and fit from an exported recipe</span>
+        {loaded !== null && (
+          <p className={`basis-full text-sm ${loaded.ok ? 'text-kelp-deep' : 'text-coral-deep'}`} role={loaded.ok ? 'status' : 'alert'} data-testid="load-recipe-message">
+            {loaded.text}
+          </p>
+        )}
+      </div>
       <fieldset className="card flex flex-wrap items-end gap-4 p-3">
         <legend className="px-1 text-sm font-semibold">Frequencies</legend>
         <NumberField label="Lowest" unit="Hz" value={draft.frequencies.min} step={0.5} testId="recipe-fmin" error={errorFor('frequencies.min')} onValue={(v) => setDraft({ frequencies: { ...draft.frequencies, min: v } })} />
@@ -190,8 +233,9 @@ export default function RecipeScreen(_props: WorkspaceProps) {
         <legend className="px-1 text-sm font-semibold">Spectrum and aperiodic fit</legend>
         <NumberField label="Welch segment" unit="s" value={draft.spectrum.segment} step={0.25} error={errorFor('spectrum.segment')} onValue={(v) => setDraft({ spectrum: { ...draft.spectrum, segment: v } })} />
         <NumberField label="Overlap" unit="fraction" value={draft.spectrum.overlap} step={0.05} error={errorFor('spectrum.overlap')} onValue={(v) => setDraft({ spectrum: { ...draft.spectrum, overlap: v } })} />
-        <NumberField label="Fit from" unit="Hz" value={draft.aperiodic.range[0]} step={0.5} error={errorFor('aperiodic.range')} onValue={(v) => setDraft({ aperiodic: { ...draft.aperiodic, range: [v, draft.aperiodic.range[1]] } })} />
-        <NumberField label="Fit to" unit="Hz" value={draft.aperiodic.range[1]} step={0.5} onValue={(v) => setDraft({ aperiodic: { ...draft.aperiodic, range: [draft.aperiodic.range[0], v] } })} />
+        <NumberField label="Fit from" unit="Hz" value={fitRange[0]} step={0.5} error={errorFor('aperiodic.range')} onValue={(v) => setView({ fitRange: [v, fitRange[1]] })} />
+        <NumberField label="Fit to" unit="Hz" value={fitRange[1]} step={0.5} onValue={(v) => setView({ fitRange: [fitRange[0], v] })} />
+        <Choice legend="Spectrum from" value={draft.spectrum.source} options={[{ value: 'recording', label: 'whole recording' }, { value: 'epochs', label: 'kept epochs' }]} onChange={(src) => setDraft({ spectrum: { ...draft.spectrum, source: src } })} />
         <Choice legend="Aperiodic model" value={draft.aperiodic.mode} options={[{ value: 'fixed', label: 'fixed' }, { value: 'knee', label: 'knee' }]} onChange={(m) => setDraft({ aperiodic: { ...draft.aperiodic, mode: m } })} />
       </fieldset>
       {errorFor('baseline') && (

@@ -30,7 +30,7 @@ function useEpochSpectra(d: Decomposition | null, visible: boolean): EpochSpectr
       return;
     }
     setSpectra(null);
-    const recording = useSourceStore.getState().analysisRecording();
+    const recording = useSourceStore.getState().recording;
     if (recording === null) return;
     let live = true;
     const samples = d.channels.map((c) => recording.data[recording.channelNames.indexOf(c)].slice());
@@ -45,6 +45,44 @@ function useEpochSpectra(d: Decomposition | null, visible: boolean): EpochSpectr
       .spectra(samples, d.sampleRateHz, starts, d.epochSamples, d.spectrumSegmentSamples, d.spectrumOverlapSamples, range)
       .then((out) => {
         spectraCache.set(d.key, out);
+        if (live) setSpectra(out);
+      });
+    return () => {
+      live = false;
+    };
+  }, [d, visible]);
+  return spectra;
+}
+
+interface RecipeSpectrum {
+  frequencies: Float64Array;
+  psd: Float64Array;
+}
+
+const recipeSpectraCache = new Map<string, RecipeSpectrum[]>();
+
+/**
+ * The recipe's own spectrum of every channel: Welch over `spectrum.source` (whole recording or kept epochs) with the
+ * recipe's segment and overlap, the same `welchPsd` call `analyzeChannel` makes, so its fit equals the CLI's.
+ */
+function useRecipeSpectra(d: Decomposition | null, visible: boolean): RecipeSpectrum[] | null {
+  const [spectra, setSpectra] = useState<RecipeSpectrum[] | null>(null);
+  useEffect(() => {
+    if (d === null || !visible) return;
+    const cached = recipeSpectraCache.get(d.key);
+    if (cached !== undefined) {
+      setSpectra(cached);
+      return;
+    }
+    setSpectra(null);
+    const recording = useSourceStore.getState().recording;
+    if (recording === null) return;
+    let live = true;
+    const samples = d.channels.map((c) => recording.data[recording.channelNames.indexOf(c)].slice());
+    void explorerWorker()
+      .recipeSpectra(samples, d.sampleRateHz, d.spectrumSegmentSamples, d.spectrumOverlapSamples, d.spectrumSpans.slice())
+      .then((out) => {
+        recipeSpectraCache.set(d.key, out);
         if (live) setSpectra(out);
       });
     return () => {
@@ -69,18 +107,20 @@ export default function SpectrumScreen(_props: WorkspaceProps) {
   const setView = useViewStore((s) => s.set);
   const visible = usePanelVisible('Spectrum');
   const spectra = useEpochSpectra(d, visible);
+  const recipeSpectra = useRecipeSpectra(d, visible);
   const mode = d?.recipe.aperiodic.mode ?? 'fixed';
 
+  // Fitted as analyzeChannel fits: the recipe's spectrum over all its bins, the live fit range, the recipe's mode.
   const fits = useMemo((): Fit[] | null => {
-    if (spectra === null) return null;
-    return spectra.map((s) => {
+    if (recipeSpectra === null) return null;
+    return recipeSpectra.map((s) => {
       try {
-        return { fit: fitAperiodic(s.frequencies, s.mean, fitRange, mode), error: null };
+        return { fit: fitAperiodic(s.frequencies, s.psd, fitRange, mode), error: null };
       } catch (error) {
         return { fit: null, error: error instanceof Error ? error.message : String(error) };
       }
     });
-  }, [spectra, fitRange, mode]);
+  }, [recipeSpectra, fitRange, mode]);
 
   if (d === null) {
     return (
@@ -92,6 +132,8 @@ export default function SpectrumScreen(_props: WorkspaceProps) {
   const ci = Math.max(0, channel === null ? 0 : d.channels.indexOf(channel));
   const ch = d.channels[ci];
   const sp = spectra?.[ci] ?? null;
+  const rsp = recipeSpectra?.[ci] ?? null;
+  const source = d.recipe.spectrum.source ?? 'recording';
   const fit = fits?.[ci] ?? null;
   const rows: FitRow[] =
     fits === null
@@ -127,14 +169,14 @@ export default function SpectrumScreen(_props: WorkspaceProps) {
           Export fit table CSV
         </button>
       </div>
-      {sp === null ? (
+      {sp === null || rsp === null ? (
         <p className="text-ink-soft" role="status">
           Computing per-epoch spectra in a worker…
         </p>
       ) : (
         <>
           <div className="card p-2">
-            <SpectrumPlot spectra={sp} fit={fit} axes={axes} fitRange={fitRange} onFitRange={(r) => setView({ fitRange: r })} channel={ch} />
+            <SpectrumPlot spectra={sp} recipeSpectrum={rsp} source={source} fit={fit} axes={axes} fitRange={fitRange} onFitRange={(r) => setView({ fitRange: r })} channel={ch} />
             <FitReadout fit={fit} mode={mode} />
           </div>
           <div className="grid grid-cols-1 gap-4 lg:grid-cols-[2fr_1fr]">
@@ -189,6 +231,9 @@ function FitReadout({ fit, mode }: { fit: Fit | null; mode: string }) {
 
 interface SpectrumPlotProps {
   spectra: EpochSpectra;
+  /** The spectrum the fit uses (recipe `spectrum.source`), drawn thick. */
+  recipeSpectrum: RecipeSpectrum;
+  source: 'recording' | 'epochs';
   fit: Fit | null;
   axes: SpectrumAxes;
   fitRange: [number, number];
@@ -196,8 +241,18 @@ interface SpectrumPlotProps {
   channel: string;
 }
 
-function SpectrumPlot({ spectra, fit, axes, fitRange, onFitRange, channel }: SpectrumPlotProps) {
-  const { frequencies, perTrial, mean, trials } = spectra;
+function SpectrumPlot({ spectra, recipeSpectrum, source, fit, axes, fitRange, onFitRange, channel }: SpectrumPlotProps) {
+  const { frequencies, perTrial, trials } = spectra;
+  // The thick line is the recipe's spectrum, kept to the per-epoch spectra's range for the drawing.
+  const [mf, mean] = useMemo(() => {
+    const lo = frequencies[0];
+    const hi = frequencies[frequencies.length - 1];
+    const idx: number[] = [];
+    recipeSpectrum.frequencies.forEach((f, i) => {
+      if (f >= lo - 1e-9 && f <= hi + 1e-9) idx.push(i);
+    });
+    return [Float64Array.from(idx, (i) => recipeSpectrum.frequencies[i]), Float64Array.from(idx, (i) => recipeSpectrum.psd[i])];
+  }, [frequencies, recipeSpectrum]);
   const bins = frequencies.length;
   const xLog = axes === 'log-log';
   const yLog = axes !== 'linear';
@@ -205,14 +260,16 @@ function SpectrumPlot({ spectra, fit, axes, fitRange, onFitRange, channel }: Spe
   const fHi = frequencies[bins - 1];
   let pMin = Infinity;
   let pMax = 0;
-  for (let i = 0; i < perTrial.length; i++) {
-    const v = perTrial[i];
-    if (v > 0 && v < pMin) pMin = v;
-    if (v > pMax) pMax = v;
+  for (const values of [perTrial, mean]) {
+    for (let i = 0; i < values.length; i++) {
+      const v = values[i];
+      if (v > 0 && v < pMin) pMin = v;
+      if (v > pMax) pMax = v;
+    }
   }
   const f = fit?.fit ?? null;
   const fitXs = frequencies.filter((x) => x >= fitRange[0] - 1e-9 && x <= fitRange[1] + 1e-9 && x > 0);
-  const flat = Float64Array.from(frequencies, (x, i) => (f === null || x <= 0 ? NaN : Math.log10(mean[i]) - fitLine(f, x)));
+  const flat = Float64Array.from(mf, (x, i) => (f === null || x <= 0 ? NaN : Math.log10(mean[i]) - fitLine(f, x)));
   const drag = useRef<{ kind: 'low' | 'high' | 'body'; x0: number; r0: [number, number]; x: ReturnType<typeof axisScale> } | null>(null);
   const binHz = bins > 1 ? frequencies[1] - frequencies[0] : 1;
   const clampRange = (r: [number, number]): [number, number] => {
@@ -227,7 +284,7 @@ function SpectrumPlot({ spectra, fit, axes, fitRange, onFitRange, channel }: Spe
     const y = axisScale(yLog ? 'log' : 'linear', yLog ? pMin : 0, pMax, layout.top + layout.plotHeight, layout.top);
     const series: Series[] = [];
     for (let k = 0; k < trials; k++) series.push({ xs: frequencies, ys: perTrial.subarray(k * bins, (k + 1) * bins), colour: '#3b5366', width: 0.75, alpha: 0.22 });
-    series.push({ xs: frequencies, ys: mean, colour: INK, width: 2.5 });
+    series.push({ xs: mf, ys: mean, colour: INK, width: 2.5 });
     if (f !== null) series.push({ xs: fitXs, ys: fitXs.map((v) => Math.pow(10, fitLine(f, v))), colour: CORAL, width: 2, dash: [6, 3] });
     ctx.save();
     ctx.globalAlpha = 0.5;
@@ -235,7 +292,7 @@ function SpectrumPlot({ spectra, fit, axes, fitRange, onFitRange, channel }: Spe
     ctx.fillRect(x(fitRange[0]), layout.top, x(fitRange[1]) - x(fitRange[0]), layout.plotHeight);
     ctx.restore();
     drawSeries(ctx, layout, x, y, series);
-    drawLineAxes(ctx, layout, x, y, { xLog, yLog, xTitle: 'frequency (Hz)', yTitle: 'power (µV²/Hz)', title: `${channel}: ${trials} epochs (thin), mean (thick), aperiodic fit (dashed)` });
+    drawLineAxes(ctx, layout, x, y, { xLog, yLog, xTitle: 'frequency (Hz)', yTitle: 'power (µV²/Hz)', title: `${channel}: ${trials} epochs (thin), ${source === 'epochs' ? 'kept epochs' : 'whole recording'} (thick), aperiodic fit (dashed)` });
   };
   const drawFlat = (ctx: CanvasRenderingContext2D, layout: LineLayout) => {
     const x = axisScale(xLog ? 'log' : 'linear', fLo, fHi, layout.left, layout.left + layout.plotWidth);
@@ -246,9 +303,9 @@ function SpectrumPlot({ spectra, fit, axes, fitRange, onFitRange, channel }: Spe
     const y = axisScale('linear', Math.min(lo, -0.1), Math.max(hi, 0.1), layout.top + layout.plotHeight, layout.top);
     drawSeries(ctx, layout, x, y, [
       { xs: [fLo, fHi], ys: [0, 0], colour: '#c9b896', width: 1, dash: [3, 3] },
-      { xs: frequencies, ys: flat, colour: INK, width: 2 },
+      { xs: mf, ys: flat, colour: INK, width: 2 },
     ]);
-    drawLineAxes(ctx, layout, x, y, { xLog, yLog: false, xTitle: 'frequency (Hz)', yTitle: 'log10 P − fit', title: 'Flattened spectrum: mean minus the aperiodic fit' });
+    drawLineAxes(ctx, layout, x, y, { xLog, yLog: false, xTitle: 'frequency (Hz)', yTitle: 'log10 P − fit', title: 'Flattened spectrum: the recipe spectrum minus the aperiodic fit' });
   };
 
   const overlay = (layout: LineLayout) => {

@@ -32,10 +32,11 @@ export function countLabels(events: readonly RecordingEvent[]): LabelCount[] {
   return [...byLabel.values()];
 }
 
-const NAME = /^[\p{L}\p{N}][\p{L}\p{N} ._-]*$/u;
+// Slash and colon too: the contract's own labels look like "cue/left", and a condition may be named after its label.
+const NAME = /^[\p{L}\p{N}][\p{L}\p{N} ._/:-]*$/u;
 
 /**
- * Checks a list of conditions: names present, at most 40 characters of letters, digits, space, dot, dash or
+ * Checks a list of conditions: names present, at most 40 characters of letters, digits, space, dot, dash, slash, colon or
  * underscore, unique; every condition holds at least one label; no label belongs to two conditions. Throws an
  * AnalysisInputError naming the condition (`conditions[1].labels`) and the problem.
  */
@@ -46,7 +47,7 @@ export function checkConditions(conditions: readonly ConditionSpec[]): void {
     const name = c.name.trim();
     if (name === '') throw new AnalysisInputError(`conditions[${i}].name`, 'is empty: give the condition a name');
     if (name.length > 40) throw new AnalysisInputError(`conditions[${i}].name`, 'is longer than 40 characters');
-    if (!NAME.test(name)) throw new AnalysisInputError(`conditions[${i}].name`, `"${name}" may hold only letters, digits, space, dot, dash and underscore`);
+    if (!NAME.test(name)) throw new AnalysisInputError(`conditions[${i}].name`, `"${name}" may hold only letters, digits, space, dot, dash, underscore, slash and colon`);
     const twin = names.get(name.toLowerCase());
     if (twin !== undefined) throw new AnalysisInputError(`conditions[${i}].name`, `"${name}" is already the name of condition ${twin + 1}`);
     names.set(name.toLowerCase(), i);

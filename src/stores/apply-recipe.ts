@@ -1,0 +1,63 @@
+import { parseRecipe, type Recipe } from '../lib/analysis/recipe';
+import type { Recording } from '../lib/analysis/recording';
+import { planRecipe } from '../lib/analysis/run-recipe';
+import { DEFAULT_DRAFT, useRecipeStore, type RecipeDraft } from './recipe';
+import { defaultRejection, useSourceStore, type Condition, type RejectionSettings } from './source';
+import { useViewStore } from './view';
+
+export type ApplyOutcome = { ok: true; notices: string[] } | { ok: false; field: string; message: string };
+
+function draftOf(recipe: Recipe, conditionNames: string[], current: RecipeDraft): RecipeDraft {
+  const c = recipe.cycles;
+  const cycles: Partial<RecipeDraft> =
+    'fixed' in c ? { cyclesMode: 'fixed', cyclesFixed: c.fixed } : 'fwhm' in c ? { cyclesMode: 'fwhm', fwhmSeconds: c.fwhm } : { cyclesMode: 'range', cyclesMin: c.min, cyclesMax: c.max };
+  const all = recipe.epochs.events.length === conditionNames.length && conditionNames.every((n) => recipe.epochs.events.includes(n));
+  return {
+    ...current,
+    ...cycles,
+    frequencies: { ...recipe.frequencies },
+    channels: recipe.channels?.slice() ?? [],
+    conditions: all ? [] : recipe.epochs.events.slice(),
+    spectrum: { ...recipe.spectrum, range: [recipe.spectrum.range[0], recipe.spectrum.range[1]] },
+    aperiodic: { mode: recipe.aperiodic.mode },
+  };
+}
+
+/**
+ * Puts a loaded recipe JSON into the Source, Recipe and View stores, after checking it with the recipe schema and
+ * against the open recording (`planRecipe`, the same check a run makes). On any problem nothing changes and the
+ * outcome names the field.
+ */
+export function applyRecipe(input: unknown, recording: Recording, fingerprint: string | null): ApplyOutcome {
+  let recipe: Recipe;
+  try {
+    recipe = parseRecipe(input);
+    planRecipe(recording, input);
+  } catch (error) {
+    const e = error as { field?: string; message?: string };
+    return { ok: false, field: e.field ?? 'recipe', message: e.message ?? String(error) };
+  }
+  // Without `conditions`, each listed label is its own condition (the contract's reading of epochs.events).
+  const conditions: Condition[] =
+    recipe.conditions !== undefined
+      ? Object.entries(recipe.conditions).map(([name, labels]) => ({ name, labels: labels.slice() }))
+      : recipe.epochs.events.map((label) => ({ name: label, labels: [label] }));
+  for (const entry of recipe.epochs.events) if (!conditions.some((c) => c.name === entry)) conditions.push({ name: entry, labels: [entry] });
+  const r = recipe.rejection;
+  // A recipe without rejection analyses every fitting epoch: the rules are off.
+  const rejection: RejectionSettings =
+    r === undefined
+      ? { ...defaultRejection, peakToPeakMicrovolts: null, flatMicrovolts: null, overrides: {} }
+      : { peakToPeakMicrovolts: r.peakToPeakMicrovolts, flatMicrovolts: r.flatMicrovolts, scope: r.scope, channels: r.channels?.slice(), overrides: { ...r.overrides } };
+  const source = useSourceStore.getState();
+  source.set({ conditions, epochWindow: { tmin: recipe.epochs.tmin, tmax: recipe.epochs.tmax }, rejection });
+  source.recompute();
+  useRecipeStore.setState((s) => ({ draft: draftOf(recipe, conditions.map((c) => c.name), s.draft ?? DEFAULT_DRAFT) }));
+  useViewStore.getState().set({ method: recipe.baseline.method, scope: recipe.baseline.scope, fitRange: [recipe.aperiodic.range[0], recipe.aperiodic.range[1]] });
+  useViewStore.getState().setBaseline({ start: recipe.baseline.start, end: recipe.baseline.end });
+  const notices: string[] = [];
+  if (recipe.recording !== undefined && fingerprint !== null && recipe.recording.fingerprint !== fingerprint) {
+    notices.push(`This recipe was made on another recording (SHA-256 ${recipe.recording.fingerprint.slice(0, 12)}…); the open one is ${fingerprint.slice(0, 12)}….`);
+  }
+  return { ok: true, notices };
+}
