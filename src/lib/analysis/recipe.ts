@@ -75,10 +75,14 @@ export const RecipeSchema = z
 export type Recipe = z.output<typeof RecipeSchema>;
 export type RecipeInput = z.input<typeof RecipeSchema>;
 
-/** Dotted field path of a zod issue: `["channels", 2]` → `channels[2]`. */
+/** Dotted field path of a zod issue: `["channels", 2]` → `channels[2]`, `["conditions", "cue/left"]` → `conditions["cue/left"]`. */
 export function fieldPath(path: readonly PropertyKey[]): string {
   let out = '';
-  for (const key of path) out += typeof key === 'number' ? `[${key}]` : out === '' ? String(key) : `.${String(key)}`;
+  for (const key of path) {
+    if (typeof key === 'number') out += `[${key}]`;
+    else if (!/^[A-Za-z_$][\w$]*$/.test(String(key))) out += `[${JSON.stringify(String(key))}]`; // a condition name or event key
+    else out += out === '' ? String(key) : `.${String(key)}`;
+  }
   return out === '' ? 'recipe' : out;
 }
 
@@ -89,7 +93,8 @@ export function fieldPath(path: readonly PropertyKey[]): string {
 export function parseRecipe(input: unknown): Recipe {
   const parsed = RecipeSchema.safeParse(input);
   if (parsed.success) return parsed.data;
-  const issues = parsed.error.issues;
+  // A bad record key (an override's event key) carries its own message one level down.
+  const issues = parsed.error.issues.map((i) => (i.code === 'invalid_key' && i.issues.length > 0 ? { ...i, message: i.issues[0].message } : i));
   const first = issues[0];
   const others = issues.slice(1).map((i) => `${fieldPath(i.path)} ${i.message}`);
   const problem = first.message + (others.length > 0 ? `; also ${others.join('; ')}` : '');

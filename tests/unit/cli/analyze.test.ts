@@ -6,7 +6,8 @@ import { fileURLToPath } from 'node:url';
 import { promisify } from 'node:util';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { runRecipe } from '../../../src/lib/analysis/run-recipe';
-import { parseBidsEvents, parseCsvSamples, writeEdf } from '../../../src/lib/formats';
+import { bytesSource, openEdf, parseBidsEvents, parseCsvSamples, toRecording, writeEdf } from '../../../src/lib/formats';
+import { createHash } from 'node:crypto';
 import { seededNormal } from '../../helpers/seeded-random';
 
 const run = promisify(execFile);
@@ -113,6 +114,53 @@ describe('analyze command line', () => {
     // 12 Hz rhythm on C4 only: its spectrum peaks there
     const k = result.spectrum.frequencies.indexOf(12);
     expect(result.spectrum.psd[1][k]).toBeGreaterThan(10 * result.spectrum.psd[0][k]);
+  });
+
+  it('honours conditions, rejection rules and manual overrides like the core in process, and checks the fingerprint', async () => {
+    const edfBytes = readFileSync(file('rec.edf'));
+    const recording = toRecording(await openEdf(bytesSource(new Uint8Array(edfBytes))));
+    // Independent count: peak-to-peak (max − min) of C3 over each epoch's 151 samples from round(o·fs) − 50
+    // (analysis contract, "Units and grids"), against a 21 µV limit, near the typical range of 151 samples of 4 µV noise.
+    const c3 = recording.data[0];
+    const limit = 21;
+    const overLimit = recording.events.map((e) => {
+      const start = Math.round(e.onsetSeconds * fs) - 50;
+      let lo = Infinity;
+      let hi = -Infinity;
+      for (let i = start; i < start + 151; i++) (lo = Math.min(lo, c3[i])), (hi = Math.max(hi, c3[i]));
+      return hi - lo > limit;
+    });
+    const rescued = overLimit.findIndex((x, i) => x && recording.events[i].label === 'go');
+    const dropped = overLimit.findIndex((x, i) => !x && recording.events[i].label === 'stop');
+    expect(rescued).toBeGreaterThanOrEqual(0);
+    expect(dropped).toBeGreaterThanOrEqual(0);
+    const key = (i: number) => `${i}@${recording.events[i].onsetSeconds}:${recording.events[i].label}`;
+    const extended = {
+      ...recipe,
+      epochs: { ...recipe.epochs, events: ['reach', 'halt'] },
+      conditions: { reach: ['go'], halt: ['stop'] },
+      rejection: { peakToPeakMicrovolts: limit, flatMicrovolts: null, scope: 'channel', channels: ['C3'], overrides: { [key(rescued)]: 'keep', [key(dropped)]: 'reject' } },
+      recording: { fingerprint: createHash('sha256').update(edfBytes).digest('hex') },
+    };
+    writeFileSync(file('extended.json'), JSON.stringify(extended));
+    const out = await analyze([file('rec.edf'), '--recipe', file('extended.json'), '--out', file('extended-out.json')]);
+    expect(out.stderr).toBe('');
+    expect(out.code).toBe(0);
+    const result = JSON.parse(readFileSync(file('extended-out.json'), 'utf8'));
+    const kept = (label: string) => recording.events.filter((e, i) => e.label === label && (i === rescued || (!overLimit[i] && i !== dropped))).length;
+    expect(result.conditions.reach.trials).toBe(kept('go'));
+    expect(result.conditions.halt.trials).toBe(kept('stop'));
+    expect(result.conditions.halt.rejected).toBe(7 - kept('stop'));
+    expect(result.warnings.some((w: string) => w.startsWith('recording.fingerprint'))).toBe(false);
+    const local = JSON.parse(JSON.stringify(runRecipe(recording, extended)));
+    expect(result.conditions).toEqual(local.conditions);
+    expect(result.aperiodic).toEqual(local.aperiodic);
+
+    // The same recipe on the CSV copy (same events, another file): the numbers differ in the last bits of the
+    // EDF's 16-bit steps, and the result says the file is not the one the recipe was made on.
+    const csv = await analyze([file('rec.csv'), '--recipe', file('extended.json'), '--events', file('events.tsv'), '--rate', '100']);
+    expect(csv.code).toBe(0);
+    expect(JSON.parse(csv.stdout).warnings.some((w: string) => w.startsWith('recording.fingerprint: the recipe was made on a recording with SHA-256'))).toBe(true);
   });
 
   const bad: [string, string[], RegExp][] = [

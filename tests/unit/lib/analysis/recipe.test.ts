@@ -1,0 +1,64 @@
+import { describe, expect, it } from 'vitest';
+import { parseRecipe } from '../../../../src/lib/analysis/recipe';
+import { eventKey, parseEventKey } from '../../../../src/lib/analysis/event-key';
+
+// The example recipe of the analysis contract (shared/specs/analysis.md, "Recipe (input)"), verbatim.
+const contract = {
+  epochs: { events: ['cue/left', 'cue/right'], tmin: -1.0, tmax: 2.0 },
+  channels: ['Fz', 'Cz'],
+  frequencies: { min: 2, max: 40, count: 30, spacing: 'log' },
+  cycles: { min: 3, max: 10 },
+  baseline: { start: -0.5, end: -0.2, method: 'db', scope: 'average' },
+  spectrum: { segment: 2.0, overlap: 0.5, range: [1, 45], source: 'recording' },
+  aperiodic: { range: [2, 40], mode: 'fixed' },
+};
+
+const extended = {
+  ...contract,
+  epochs: { ...contract.epochs, events: ['left', 'right'] },
+  conditions: { left: ['cue/left'], right: ['cue/right'] },
+  rejection: { peakToPeakMicrovolts: 120, flatMicrovolts: 0.5, scope: 'channel', channels: ['Fz'], overrides: { '3@12.5:cue/left': 'keep', '7@30.002:cue/right': 'reject' } },
+  recording: { fingerprint: 'a'.repeat(64) },
+};
+
+describe('parseRecipe with the recipe extensions', () => {
+  it('parses the contract example unchanged, with no extension fields added', () => {
+    const r = parseRecipe(contract);
+    expect(r).toEqual(contract);
+    expect('conditions' in r || 'rejection' in r || 'recording' in r).toBe(false);
+  });
+
+  it('parses conditions, rejection with overrides, and a recording fingerprint', () => {
+    const r = parseRecipe(extended);
+    expect(r.conditions).toEqual({ left: ['cue/left'], right: ['cue/right'] });
+    expect(r.rejection?.overrides['3@12.5:cue/left']).toBe('keep');
+    expect(r.recording?.fingerprint).toHaveLength(64);
+  });
+
+  it('fills rejection defaults: scope "any" and no overrides; null turns a rule off', () => {
+    const r = parseRecipe({ ...contract, rejection: { peakToPeakMicrovolts: null, flatMicrovolts: null } });
+    expect(r.rejection).toEqual({ peakToPeakMicrovolts: null, flatMicrovolts: null, scope: 'any', overrides: {} });
+  });
+
+  it('names the bad field', () => {
+    const bad = (patch: object) => () => parseRecipe({ ...contract, ...patch });
+    expect(bad({ conditions: { left: [] } })).toThrow(/^conditions\.left must list at least one event label/);
+    expect(bad({ conditions: ['cue/left'] })).toThrow(/^conditions must map each condition name/);
+    expect(bad({ rejection: { peakToPeakMicrovolts: -5, flatMicrovolts: null } })).toThrow(/^rejection\.peakToPeakMicrovolts must be greater than 0/);
+    expect(bad({ rejection: { peakToPeakMicrovolts: 150, flatMicrovolts: null, scope: 'some' } })).toThrow(/^rejection\.scope /);
+    expect(bad({ rejection: { peakToPeakMicrovolts: 150, flatMicrovolts: null, overrides: { '12': 'keep' } } })).toThrow(/^rejection\.overrides\["12"\] must be an event key/);
+    expect(bad({ rejection: { peakToPeakMicrovolts: 150, flatMicrovolts: null, overrides: { '1@2:x': 'maybe' } } })).toThrow(/^rejection\.overrides\["1@2:x"\] /);
+    expect(bad({ rejection: { peakToPeakMicrovolts: 150, flatMicrovolts: null, threshold: 3 } })).toThrow(/^rejection /);
+    expect(bad({ recording: { fingerprint: 'ABC' } })).toThrow(/^recording\.fingerprint must be a SHA-256/);
+  });
+});
+
+describe('event keys', () => {
+  it('round-trip index, onset and a label holding ":" and "@"', () => {
+    const key = eventKey(12, { onsetSeconds: 30.25, durationSeconds: 0, label: 'cue:left@A' });
+    expect(key).toBe('12@30.25:cue:left@A');
+    expect(parseEventKey(key)).toEqual({ index: 12, onsetSeconds: 30.25, label: 'cue:left@A' });
+    expect(parseEventKey('x@1:a')).toBeNull();
+    expect(parseEventKey('1@1:')).toBeNull();
+  });
+});
