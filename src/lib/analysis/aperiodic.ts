@@ -1,5 +1,6 @@
 import { levenbergMarquardt } from 'ml-levenberg-marquardt';
 import { AnalysisInputError } from './errors';
+import { log, log10, pow } from './portable-math';
 
 export type AperiodicMode = 'fixed' | 'knee';
 
@@ -56,7 +57,7 @@ export function fitAperiodic(
     const p = psd[i];
     if (f > 0 && f >= lo - 1e-9 && f <= hi + 1e-9 && p > 0 && Number.isFinite(p)) {
       fs.push(f);
-      ys.push(Math.log10(p));
+      ys.push(log10(p));
     }
   }
   const minPoints = mode === 'fixed' ? 3 : 4;
@@ -111,7 +112,7 @@ export function fitAperiodic(
 
 /** params = [offset, exponent, knee?] */
 function predict(mode: AperiodicMode, params: readonly number[], f: number): number {
-  return mode === 'fixed' ? params[0] - params[1] * Math.log10(f) : params[0] - Math.log10(params[2] + Math.pow(f, params[1]));
+  return mode === 'fixed' ? params[0] - params[1] * log10(f) : params[0] - log10(params[2] + pow(f, params[1]));
 }
 
 // Points kept for the next round: residual − median ≤ 2.5 robust SDs, computed over the points kept now; if that
@@ -159,15 +160,15 @@ function fitModel(mode: AperiodicMode, f: Float64Array, y: Float64Array, keep: U
   const starts: number[][] = start !== null ? [start] : [];
   const fLo = xs[0];
   const fMid = xs[xs.length >> 1];
-  for (const k of [0, Math.pow(fLo, line[1]), Math.pow(fMid, line[1])]) {
-    starts.push([line[0] + Math.log10(k + Math.pow(fMid, line[1])) - line[1] * Math.log10(fMid), line[1], k]);
+  for (const k of [0, pow(fLo, line[1]), pow(fMid, line[1])]) {
+    starts.push([line[0] + log10(k + pow(fMid, line[1])) - line[1] * log10(fMid), line[1], k]);
   }
   let best: number[] = starts[0];
   let bestError = Infinity;
   for (const initial of starts) {
     const result = levenbergMarquardt(
       { x: xs, y: ys },
-      ([b, chi, k]) => (x: number) => b - Math.log10(k + Math.pow(x, chi)),
+      ([b, chi, k]) => (x: number) => b - log10(k + pow(x, chi)),
       {
         initialValues: [initial[0], initial[1], Math.max(0, initial[2])],
         minValues: [-Infinity, 0, 0],
@@ -176,9 +177,9 @@ function fitModel(mode: AperiodicMode, f: Float64Array, y: Float64Array, keep: U
         maxIterations: 300,
         errorTolerance: 1e-12,
         jacobianFunction: ([, chi, k]) => (x: number) => {
-          const fx = Math.pow(x, chi);
+          const fx = pow(x, chi);
           const d = (k + fx) * LN10;
-          return [1, (-fx * Math.log(x)) / d, -1 / d];
+          return [1, (-fx * log(x)) / d, -1 / d];
         },
       },
     );
@@ -198,7 +199,7 @@ function fitLine(f: Float64Array, y: Float64Array, keep: Uint8Array): number[] {
   for (let i = 0; i < f.length; i++) {
     if (!keep[i]) continue;
     n++;
-    sx += Math.log10(f[i]);
+    sx += log10(f[i]);
     sy += y[i];
   }
   const mx = sx / n;
@@ -207,7 +208,7 @@ function fitLine(f: Float64Array, y: Float64Array, keep: Uint8Array): number[] {
   let sxy = 0;
   for (let i = 0; i < f.length; i++) {
     if (!keep[i]) continue;
-    const dx = Math.log10(f[i]) - mx;
+    const dx = log10(f[i]) - mx;
     sxx += dx * dx;
     sxy += dx * (y[i] - my);
   }

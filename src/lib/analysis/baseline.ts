@@ -1,4 +1,5 @@
 import { roundHalfUp } from './rounding';
+import { log10 } from './portable-math';
 
 export type BaselineMethod = 'db' | 'percent' | 'zscore' | 'ratio';
 export type BaselineScope = 'average' | 'trial';
@@ -47,7 +48,7 @@ export function baselineStats(row: ArrayLike<number>, offset: number, first: num
 export function normalizeValue(method: BaselineMethod, p: number, mean: number, sd: number): number {
   switch (method) {
     case 'db':
-      return 10 * Math.log10(p / mean);
+      return 10 * log10(p / mean);
     case 'percent':
       return (100 * (p - mean)) / mean;
     case 'zscore':

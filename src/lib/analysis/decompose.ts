@@ -2,6 +2,7 @@ import { baselineStats, normalizeAverage, type BaselineMethod, type BaselineScop
 import { AnalysisCancelledError } from './errors';
 import { getFft } from './fft';
 import { getWaveletBank } from './wavelet';
+import { log10 } from './portable-math';
 
 // Epochs are transformed in blocks and then swept frequency by frequency, so one frequency's weights stay in
 // cache across the block; the per-(frequency, time) sums still run in epoch order.
@@ -66,8 +67,11 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
   const row = new Float64Array(L);
   const trialScope = baseline.scope === 'trial';
   const keepRow = trialScope || job.singleTrials === true;
-  // Without per-trial rows, frequencies with a narrow band take the trial-average path (see averagePower).
-  const averagePath = !keepRow;
+  // Outside trial scope, frequencies with a narrow band take the trial-average path (see averagePower). Keeping
+  // single trials must not change that choice: the average then has other rounding, and the explorer's channel
+  // would no longer match the command line bit for bit. Those rows go through bandPower into a scratch sum.
+  const averagePath = !trialScope;
+  const scratch = new Float64Array(L);
   const { first, last, method } = baseline;
 
   let totalEpochs = 0;
@@ -102,6 +106,12 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
           const bins = bank.averageBins[f] as Int32Array;
           const weights = bank.averageWeights[f] as Float64Array;
           for (let b = 0; b < nb; b++) averagePower(acc, spectra[b], bins, weights, work, out);
+          if (single !== null) {
+            for (let b = 0; b < nb; b++) {
+              bandPower(scratch, 0, row, L, spectra[b], bank.bins[f], bank.weights[f], bank.sizes[f] / bank.bandSizes[f], band, work, out);
+              single.set(row, ((e0 + b) * nf + f) * L);
+            }
+          }
           continue;
         }
         const off = f * L;
@@ -259,7 +269,7 @@ function accumulateNormalized(
   const { mean, sd } = baselineStats(row, 0, first, last);
   switch (method) {
     case 'db': {
-      for (let j = 0; j < length; j++) sum[off + j] += 10 * Math.log10(row[j] / mean);
+      for (let j = 0; j < length; j++) sum[off + j] += 10 * log10(row[j] / mean);
       break;
     }
     case 'percent': {

@@ -1,5 +1,6 @@
 import FFT from 'fft.js';
 import { AnalysisInputError } from './errors';
+import { cos, sin } from './portable-math';
 
 // fft.js builds its twiddle table in the constructor; a wavelet bank or a Welch run asks for the same few sizes
 // thousands of times, so instances are kept per size.
@@ -22,6 +23,14 @@ export function getFft(size: number): FFT {
   if (f === undefined) {
     if (!isPowerOfTwo(size)) throw new AnalysisInputError('fft.size', `must be a power of two ≥ 2 (got ${size})`);
     f = new FFT(size);
+    // fft.js fills its twiddle table with Math.cos/Math.sin, whose last bit differs between engines; refill it with
+    // the same formula in portable math so a transform gives the same bits in the browser and in Node.
+    const table = (f as unknown as { table: number[] }).table;
+    for (let i = 0; i < table.length; i += 2) {
+      const angle = (Math.PI * i) / size;
+      table[i] = cos(angle);
+      table[i + 1] = -sin(angle);
+    }
     fftCache.set(size, f);
   }
   return f;
@@ -80,8 +89,8 @@ function bluesteinDft(n: number): RealDft {
   for (let k = 0; k < n; k++) {
     const k2 = (k * k) % (2 * n);
     const angle = (-Math.PI * k2) / n;
-    chirp[2 * k] = Math.cos(angle);
-    chirp[2 * k + 1] = Math.sin(angle);
+    chirp[2 * k] = cos(angle);
+    chirp[2 * k + 1] = sin(angle);
   }
   // b_j = conj(c_j) for j = −(n−1) … n−1, placed circularly, then transformed once.
   const b = new Float64Array(2 * m);

@@ -1,4 +1,5 @@
 import { AnalysisInputError } from './errors';
+import { pow } from './portable-math';
 
 export type FrequencySpacing = 'log' | 'linear';
 
@@ -26,7 +27,7 @@ export function frequencyGrid(spec: FrequencyGridSpec): Float64Array {
   }
   const last = count - 1;
   for (let i = 0; i < count; i++) {
-    out[i] = spacing === 'log' ? min * Math.pow(max / min, i / last) : min + (i * (max - min)) / last;
+    out[i] = spacing === 'log' ? min * pow(max / min, i / last) : min + (i * (max - min)) / last;
   }
   return out;
 }
@@ -37,6 +38,6 @@ export function frequencyGrid(spec: FrequencyGridSpec): Float64Array {
  */
 export function geometricSpread(min: number, max: number, count: number): Float64Array {
   const out = new Float64Array(count);
-  for (let i = 0; i < count; i++) out[i] = count === 1 ? min : min * Math.pow(max / min, i / (count - 1));
+  for (let i = 0; i < count; i++) out[i] = count === 1 ? min : min * pow(max / min, i / (count - 1));
   return out;
 }

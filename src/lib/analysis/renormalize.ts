@@ -2,6 +2,7 @@
 // normalization"), arranged so a moved baseline costs F×T work (average scope) or one weighted pass over the
 // stored trials (trial scope), with caller-owned output buffers.
 import { baselineStats, type BaselineMethod } from './baseline';
+import { log10 } from './portable-math';
 
 /**
  * Scope `average` into `out[f·nTimes + t]`: each row of trial-averaged power P (µV²) against its own baseline
@@ -21,8 +22,8 @@ export function renormalizeAverage(
     const { mean, sd } = baselineStats(power, off, first, last);
     switch (method) {
       case 'db': {
-        const c = 10 * Math.log10(mean);
-        for (let j = 0; j < nTimes; j++) out[off + j] = 10 * Math.log10(power[off + j]) - c;
+        const c = 10 * log10(mean);
+        for (let j = 0; j < nTimes; j++) out[off + j] = 10 * log10(power[off + j]) - c;
         break;
       }
       case 'percent': {
@@ -58,7 +59,7 @@ export function prepareTrialPower(trials: Float32Array, count: number, nFreqs: n
   const meanLog10 = new Float64Array(size);
   for (let k = 0; k < count; k++) {
     const base = k * size;
-    for (let i = 0; i < size; i++) meanLog10[i] += Math.log10(trials[base + i]);
+    for (let i = 0; i < size; i++) meanLog10[i] += log10(trials[base + i]);
   }
   for (let i = 0; i < size; i++) meanLog10[i] /= count;
   return { trials, count, nFreqs, nTimes, meanLog10 };
@@ -82,7 +83,7 @@ export function renormalizeTrials(out: Float64Array, tp: TrialPower, first: numb
         const off = (k * nf + f) * nt;
         let sum = 0;
         for (let j = first; j <= last; j++) sum += trials[off + j];
-        logB += Math.log10(sum / (last - first + 1));
+        logB += log10(sum / (last - first + 1));
       }
       const c = (10 * logB) / K;
       const off = f * nt;

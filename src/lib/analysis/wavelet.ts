@@ -1,6 +1,7 @@
 import { AnalysisInputError } from './errors';
 import { getFft, nextPowerOfTwo } from './fft';
 import { geometricSpread } from './frequency-grid';
+import { cos, exp, sin } from './portable-math';
 
 /** How wide each wavelet's Gaussian is: fixed cycles, cycles spread geometrically, or a FWHM in seconds. */
 export type CyclesSpec = { fixed: number } | { min: number; max: number } | { fwhm: number };
@@ -68,14 +69,14 @@ export function morletWavelet(
   let gSum = 0;
   for (let j = 0; j < length; j++) {
     const t = (j - halfWidth) / sampleRateHz;
-    g[j] = Math.exp(-(t * t) / (2 * sigmaSeconds * sigmaSeconds));
+    g[j] = exp(-(t * t) / (2 * sigmaSeconds * sigmaSeconds));
     gSum += g[j];
   }
   const c = 2 / gSum;
   for (let j = 0; j < length; j++) {
     const angle = 2 * Math.PI * frequencyHz * ((j - halfWidth) / sampleRateHz);
-    re[j] = c * g[j] * Math.cos(angle);
-    im[j] = c * g[j] * Math.sin(angle);
+    re[j] = c * g[j] * cos(angle);
+    im[j] = c * g[j] * sin(angle);
   }
   return { halfWidth, re, im };
 }
@@ -212,8 +213,8 @@ function buildWaveletBank(frequencies: Float64Array, sigmas: Float64Array, sampl
       const wi = -spectrum[2 * k + 1] / n;
       for (let s = 0; s < r; s++) {
         const angle = (-2 * Math.PI * ((s * q) % n)) / n;
-        const c = Math.cos(angle);
-        const sn = Math.sin(angle);
+        const c = cos(angle);
+        const sn = sin(angle);
         v[2 * (s * m + q)] = wr * c - wi * sn;
         v[2 * (s * m + q) + 1] = wr * sn + wi * c;
       }

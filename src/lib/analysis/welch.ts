@@ -1,10 +1,11 @@
 import { AnalysisInputError } from './errors';
 import { getRealDft } from './fft';
+import { cos } from './portable-math';
 
 /** Periodic Hann window `w[n] = 0.5 − 0.5·cos(2πn/N)`, n = 0 … N−1 (Harris, 1978, Proc. IEEE 66:51–83). */
 export function hannWindow(length: number): Float64Array {
   const w = new Float64Array(length);
-  for (let n = 0; n < length; n++) w[n] = 0.5 - 0.5 * Math.cos((2 * Math.PI * n) / length);
+  for (let n = 0; n < length; n++) w[n] = 0.5 - 0.5 * cos((2 * Math.PI * n) / length);
   return w;
 }
 
