@@ -4,9 +4,12 @@
 import { DecomposePool } from '../../lib/client/decompose-pool';
 import { useSourceStore } from '../../stores/source';
 
-/** The pool's Result for `recipe` on the Source store's analysis recording, as the JSON text the CLI writes. */
+/**
+ * The pool's Result for `recipe` on the open recording, as the JSON text the CLI writes. Like the Recipe screen it
+ * passes the whole recording: the recipe's conditions and rejection pick the epochs, as on the command line.
+ */
 export async function runPoolOnOpenRecording(recipe: unknown): Promise<string> {
-  const recording = useSourceStore.getState().analysisRecording();
+  const recording = useSourceStore.getState().recording;
   if (recording === null) throw new Error('no recording is open on the Source screen');
   const pool = new DecomposePool();
   try {
