@@ -271,8 +271,8 @@ describe('the explorer on a demo recording', () => {
 });
 
 describe('the spectrum and band screens', () => {
-  it('draws the aperiodic fit of the mean epoch spectrum, equal to the core fit in Node, with a draggable range', async () => {
-    const { epochSpectra } = await import('../../src/lib/analysis/epoch-spectra');
+  it('draws the aperiodic fit of the recipe spectrum (whole recording by default), equal to the core fit in Node, with a draggable range', async () => {
+    const { welchPsd } = await import('../../src/lib/analysis/welch');
     const { fitAperiodic } = await import('../../src/lib/analysis/aperiodic');
     const { planRecipe } = await import('../../src/lib/analysis/run-recipe');
     await page.getByRole('tab', { name: 'Spectrum' }).click();
@@ -281,10 +281,13 @@ describe('the spectrum and band screens', () => {
     loadDemo(DEMO);
     const recording = useSourceStore.getState().analysisRecording()!;
     const plan = planRecipe(recording, recipe);
-    const starts = Int32Array.from(plan.epochStarts.flatMap((s) => Array.from(s)));
-    const fz = epochSpectra(recording.data[recording.channelNames.indexOf('Fz')], 500, starts, plan.epochSamples, plan.spectrum.segmentSamples, plan.spectrum.overlapSamples, plan.spectrum.range);
+    // spectrum.source "recording": Welch over the whole recording, as analyzeChannel computes it for the CLI.
+    const fz = welchPsd(recording.data[recording.channelNames.indexOf('Fz')], 500, plan.spectrum.segmentSamples, plan.spectrum.overlapSamples, plan.spectrum.spans);
+    expect(recipe.spectrum.source).toBe('recording');
+    const { channel: _fz, ...coreFit } = nodeResult(recipe).aperiodic.find((a) => a.channel === 'Fz')!;
+    expect(fitAperiodic(fz.frequencies, fz.psd, [2, 40], 'fixed')).toEqual(coreFit);
     const expectFit = async (range: [number, number]) => {
-      const expected = fitAperiodic(fz.frequencies, fz.mean, range, 'fixed');
+      const expected = fitAperiodic(fz.frequencies, fz.psd, range, 'fixed');
       await page.waitForFunction((e) => Math.abs(Number(document.querySelector('[data-testid="fit-readout"]')?.getAttribute('data-exponent')) - e) < 1e-9, expected.exponent);
       return expected.exponent;
     };

@@ -65,6 +65,14 @@ async function dropFile(page: Page, name: string, data: Uint8Array) {
   );
 }
 
+/** The Source screen's epoch window form (the default is −1 … 2 s; these checks were worked out for −0.5 … 1.5 s). */
+async function setWindow(page: Page, tmin: number, tmax: number) {
+  const form = page.getByRole('form', { name: 'Epoch window' });
+  await form.getByLabel('Epoch start (s)').fill(String(tmin));
+  await form.getByLabel('Epoch end (s)').fill(String(tmax));
+  await form.getByRole('button', { name: 'Apply window' }).click();
+}
+
 interface Seen {
   url: string;
   headers: Record<string, string>;
@@ -107,6 +115,11 @@ describe('Source screen: a recording opened on this device', () => {
     // Labels with counts: the generator puts 12 cues of each condition in 60 s (cohort.ts: ~60 per 5 minutes).
     const labelsTable = page.getByRole('table', { name: 'Event labels' });
     expect(await labelsTable.textContent()).toContain('lamp-watch');
+    // Two distinct labels: a first-time recording gets one condition per label, which the user can replace.
+    expect(await page.getByTestId('condition').allTextContents()).toEqual([expect.stringContaining('lamp-watch'), expect.stringContaining('oar-pull')]);
+    await page.getByRole('button', { name: 'Remove condition lamp-watch' }).click();
+    await page.getByRole('button', { name: 'Remove condition oar-pull' }).click();
+    await setWindow(page, -0.5, 1.5);
     await page.getByLabel('Pick label lamp-watch').check();
     await page.getByLabel('Condition name').fill('lamp');
     await page.getByRole('button', { name: 'Make condition from picked labels' }).click();
@@ -271,6 +284,8 @@ describe('Source screen: a recording opened on this device', () => {
     expect(await page.getByTestId('library-entry').count()).toBe(0);
     expect(await page.getByTestId('recording-details').textContent()).toContain('2 channels at 100 Hz');
 
+    await page.getByRole('button', { name: 'Remove condition bell' }).click();
+    await setWindow(page, -0.5, 1.5);
     await page.getByLabel('Pick label bell').check();
     await page.getByLabel('Condition name').fill('bell cue');
     await page.getByRole('button', { name: 'Make condition from picked labels' }).click();

@@ -50,7 +50,16 @@ export default function FitTable({ rows, selected, onSelect }: { rows: FitRow[];
         </thead>
         <tbody>
           {table.getRowModel().rows.map((r) => (
-            <tr key={r.id} className={`border-b border-sand-deep ${r.original.channel === selected ? 'bg-kelp-pale' : ''}`}>
+            <tr
+              key={r.id}
+              className={`border-b border-sand-deep ${r.original.channel === selected ? 'bg-kelp-pale' : ''}`}
+              data-testid="fit-row"
+              data-channel={r.original.channel}
+              data-exponent={r.original.exponent ?? ''}
+              data-offset={r.original.offset ?? ''}
+              data-r2={r.original.r2 ?? ''}
+              data-rmse={r.original.rmse ?? ''}
+            >
               {r.getVisibleCells().map((c) => (
                 <td key={c.id} className="px-2 py-0.5">
                   {c.column.id === 'channel' ? (

@@ -1,4 +1,4 @@
-import { useId, useMemo, useState } from 'react';
+import { useEffect, useId, useMemo, useState } from 'react';
 import { countLabels } from '../../lib/analysis/conditions';
 import type { Recording } from '../../lib/analysis/recording';
 import type { Condition } from '../../stores/source';
@@ -21,6 +21,11 @@ export default function ConditionsPanel({ recording, conditions, epochWindow, se
   const [tmin, setTmin] = useState(String(epochWindow.tmin));
   const [tmax, setTmax] = useState(String(epochWindow.tmax));
   const [windowProblem, setWindowProblem] = useState<string | null>(null);
+  // The window may change from outside (the Recipe screen, a loaded recipe): show it.
+  useEffect(() => {
+    setTmin(String(epochWindow.tmin));
+    setTmax(String(epochWindow.tmax));
+  }, [epochWindow.tmin, epochWindow.tmax]);
   const id = useId();
   const owner = new Map<string, string>();
   for (const c of conditions) for (const l of c.labels) owner.set(l, c.name);

@@ -1,4 +1,4 @@
-import { useId, useState } from 'react';
+import { useEffect, useId, useState } from 'react';
 import { tallyByCondition } from '../../lib/analysis/rejection';
 import type { Recording } from '../../lib/analysis/recording';
 import type { EpochDecision, RejectionSettings } from '../../stores/source';
@@ -18,6 +18,10 @@ function NumberSetting(props: { id: string; label: string; value: number | null;
   const [text, setText] = useState(props.value === null ? String(props.fallback) : String(props.value));
   const [error, setError] = useState<string | null>(null);
   const on = props.value !== null;
+  // A loaded recipe changes the value from outside: show it.
+  useEffect(() => {
+    if (props.value !== null) setText(String(props.value));
+  }, [props.value]);
   const commit = (t: string) => {
     const v = Number(t);
     if (t.trim() === '' || !Number.isFinite(v) || v < 0) return setError('Enter a number of µV, zero or more.');

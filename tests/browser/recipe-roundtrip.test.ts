@@ -1,0 +1,196 @@
+import { execFileSync } from 'node:child_process';
+import { createHash } from 'node:crypto';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser, Page } from 'playwright-core';
+import { appUrl, artifactsDir, launchBrowser } from '../helpers/browser';
+import { describeCohort, writeSubjectEdf, type SubjectParameters } from '../../src/lib/demo/cohort';
+import type { AnalysisResult } from '../../src/lib/analysis/run-recipe';
+
+// A small recording from the demo generator (the invented Harbour Lights scenario): 1 subject, 60 s, 32 channels,
+// opened in the page by drag and drop and given to the command line as the same file.
+const FILE_NAME = 'tm-roundtrip-71.edf';
+
+let browser: Browser;
+let close: () => Promise<void>;
+let page: Page;
+let subject: SubjectParameters;
+let bytes: Uint8Array;
+const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'tidemark-roundtrip-'));
+
+async function download(testId: string): Promise<Buffer> {
+  const [dl] = await Promise.all([page.waitForEvent('download'), page.getByTestId(testId).click()]);
+  const file = path.join(dir, dl.suggestedFilename());
+  await dl.saveAs(file);
+  return fs.readFileSync(file);
+}
+
+/** The readout's numbers after pointing at the centre of map cell (f, t) (as in explorer.test.ts). */
+async function readCell(fi: number, ti: number) {
+  const canvas = page.getByTestId('map-normalized');
+  const box = (await canvas.boundingBox())!;
+  const attr = async (n: string) => Number(await canvas.getAttribute(n));
+  const [left, top, w, h, nt, nf] = await Promise.all(['data-plot-left', 'data-plot-top', 'data-plot-width', 'data-plot-height', 'data-times', 'data-frequencies'].map(attr));
+  await page.mouse.move(box.x + left + ((ti + 0.5) * w) / nt, box.y + top + ((nf - 1 - fi + 0.5) * h) / nf);
+  await page.waitForFunction(() => document.querySelector('[data-testid="map-readout"]')?.getAttribute('data-fresh') === 'yes');
+  const readout = page.getByTestId('map-readout');
+  return { frequency: Number(await readout.getAttribute('data-frequency')), time: Number(await readout.getAttribute('data-time')), normalized: Number(await readout.getAttribute('data-normalized')) };
+}
+
+const nearest = (xs: number[], v: number) => xs.reduce((best, x, i) => (Math.abs(x - v) < Math.abs(xs[best] - v) ? i : best), 0);
+
+function analyze(recipeFile: string): AnalysisResult {
+  const out = path.join(dir, 'result.json');
+  execFileSync(process.execPath, ['--import', 'tsx', 'src/cli/analyze.ts', path.join(dir, FILE_NAME), '--recipe', recipeFile, '--out', out], { stdio: 'pipe' });
+  return JSON.parse(fs.readFileSync(out, 'utf8')) as AnalysisResult;
+}
+
+beforeAll(async () => {
+  ({ browser, close } = await launchBrowser());
+  fs.mkdirSync(artifactsDir, { recursive: true });
+  subject = describeCohort({ subjects: 1, seconds: 60 }).subjects[0];
+  bytes = writeSubjectEdf(subject);
+  fs.writeFileSync(path.join(dir, FILE_NAME), bytes);
+  const context = await browser.newContext({ viewport: { width: 1500, height: 1000 }, acceptDownloads: true });
+  page = await context.newPage();
+  await page.goto(`${appUrl}/sign-in`);
+  await page.getByLabel('E-mail').fill('analyst1@saltmarsh.example');
+  await page.getByLabel('Password').fill('demo-analyst-pass');
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL(/\/teams\/[0-9a-f-]+$/);
+  await page.getByTestId('study-list').getByRole('link', { name: 'Harbour-bell anticipation' }).click();
+  await page.getByRole('link', { name: 'Open the workspace' }).click();
+  await page.waitForURL(/\/workspace$/);
+  await page.getByTestId('drop-zone').waitFor();
+  await page.evaluate(
+    ({ name, b64 }) => {
+      const binary = atob(b64);
+      const buf = new Uint8Array(binary.length);
+      for (let i = 0; i < binary.length; i++) buf[i] = binary.charCodeAt(i);
+      const transfer = new DataTransfer();
+      transfer.items.add(new File([buf], name, { type: 'application/octet-stream' }));
+      const zone = document.querySelector('[data-testid="drop-zone"]')!;
+      for (const type of ['dragenter', 'dragover', 'drop']) zone.dispatchEvent(new DragEvent(type, { bubbles: true, cancelable: true, dataTransfer: transfer }));
+    },
+    { name: FILE_NAME, b64: Buffer.from(bytes).toString('base64') },
+  );
+  await page.getByTestId('recording-details').waitFor({ timeout: 30_000 });
+});
+afterAll(async () => {
+  await close();
+  fs.rmSync(dir, { recursive: true, force: true });
+});
+
+describe('a recipe exported from the page reproduces the page on the command line', () => {
+  const tally: Record<string, number> = {};
+  let rescued: number;
+  let dropped: number;
+  let recipe: Record<string, any>;
+  let result: AnalysisResult;
+
+  it('takes the Source screen’s conditions, rejection settings and manual decisions into the exported recipe', async () => {
+    // Two distinct labels, so the recording opens with one condition per label.
+    expect(await page.getByTestId('condition').count()).toBe(2);
+    // Peak-to-peak rule raised to 200 µV: the generator's step and spike artifacts (≥ 250 µV, cohort.ts) stay rejected.
+    const p2p = page.getByLabel('Reject above (µV); 150 µV is a common rule of thumb');
+    await p2p.fill('200');
+    await p2p.press('Enter');
+    const artifact = subject.artifacts.find((a) => a.kind !== 'flat') ?? subject.artifacts[0];
+    rescued = artifact.eventIndex;
+    const row = (i: number) => page.locator(`[data-testid="epoch-row"][data-event-index="${i}"]`);
+    expect(await row(rescued).getAttribute('data-verdict')).toBe('rejected');
+    await page.getByLabel(`Decision for event ${rescued + 1}`).selectOption('keep');
+    expect(await row(rescued).getAttribute('data-verdict')).toBe('kept');
+    // And one clean epoch of the other condition rejected by hand.
+    const other = subject.events[rescued].label === 'lamp-watch' ? 'oar-pull' : 'lamp-watch';
+    dropped = subject.events.findIndex((e, i) => e.label === other && !subject.artifacts.some((a) => a.eventIndex === i) && i > 2);
+    await page.getByLabel(`Decision for event ${dropped + 1}`).selectOption('reject');
+    expect(await row(dropped).getAttribute('data-verdict')).toBe('rejected');
+    const cells = await page.getByTestId('condition-tally').locator('tbody tr').evaluateAll((rows) => rows.map((r) => [...r.querySelectorAll('td')].map((td) => td.textContent ?? '')));
+    for (const c of cells) tally[c[0]] = Number(c[2]);
+    expect(Object.keys(tally).sort()).toEqual(['lamp-watch', 'oar-pull']);
+
+    // A light recipe: two channels, 12 frequencies.
+    await page.getByRole('tab', { name: 'Recipe' }).click();
+    await page.getByTestId('recipe-all-channels').uncheck();
+    await page.getByTestId('recipe-channel-Cz').check();
+    await page.getByTestId('recipe-fcount').fill('12');
+    await page.getByTestId('recipe-run').click();
+    await page.waitForFunction(() => document.querySelector('[data-testid="recipe-status"]')?.getAttribute('data-status') === 'done', undefined, { timeout: 90_000 });
+
+    await page.getByRole('tab', { name: 'Maps' }).click();
+    await page.getByTestId('map-normalized').waitFor();
+    recipe = JSON.parse((await download('export-recipe')).toString('utf8'));
+    expect(recipe.conditions).toEqual({ 'lamp-watch': ['lamp-watch'], 'oar-pull': ['oar-pull'] });
+    expect(recipe.rejection).toMatchObject({ peakToPeakMicrovolts: 200, flatMicrovolts: 0.5, scope: 'any' });
+    const key = (i: number) => `${i}@${subject.events[i].onsetSeconds}:${subject.events[i].label}`;
+    expect(recipe.rejection.overrides).toEqual({ [key(rescued)]: 'keep', [key(dropped)]: 'reject' });
+    // The fingerprint is the SHA-256 of the file's bytes (FIPS 180-4, computed here by node:crypto).
+    expect(recipe.recording).toEqual({ fingerprint: createHash('sha256').update(bytes).digest('hex') });
+    expect(recipe.baseline).toEqual({ start: -0.5, end: -0.2, method: 'db', scope: 'average' });
+    expect(recipe.epochs).toMatchObject({ tmin: -1, tmax: 2 });
+    expect(recipe.spectrum.source).toBe('recording');
+    fs.writeFileSync(path.join(dir, 'recipe.json'), JSON.stringify(recipe));
+    result = analyze(path.join(dir, 'recipe.json'));
+    expect(result.warnings.filter((w) => w.startsWith('recording.fingerprint'))).toEqual([]);
+  });
+
+  it('gives the same trials per condition as the Source screen and the Maps screen', async () => {
+    for (const name of ['lamp-watch', 'oar-pull']) {
+      expect(result.conditions[name].trials, name).toBe(tally[name]);
+      const option = await page.getByTestId('maps-condition').locator(`option[value="${name}"]`).textContent();
+      expect(option).toContain(`(${tally[name]} trials)`);
+    }
+    const rescuedCondition = subject.events[rescued].label;
+    expect(result.warnings).toContainEqual(expect.stringMatching(new RegExp(`^rejection "${rescuedCondition}": .*1 kept by hand against the rules`)));
+    expect(result.warnings).toContainEqual(expect.stringMatching(new RegExp(`^rejection "${subject.events[dropped].label}": .*1 of them by hand`)));
+  });
+
+  it('shows the normalized value the command line computes', async () => {
+    const fi = nearest(result.frequencies, 6);
+    const ti = nearest(result.times, 0.4);
+    const cell = await readCell(fi, ti);
+    expect(cell.frequency).toBeCloseTo(result.frequencies[fi], 9);
+    expect(cell.time).toBeCloseTo(result.times[ti], 9);
+    const ci = result.channels.indexOf(await page.getByTestId('maps-channel').inputValue());
+    const condition = await page.getByTestId('maps-condition').inputValue();
+    expect(cell.normalized).toBeCloseTo(result.conditions[condition].normalized[ci][fi][ti], 9);
+  });
+
+  it('shows the aperiodic fit table the command line writes', async () => {
+    await page.getByRole('tab', { name: 'Spectrum' }).click();
+    await page.getByTestId('fit-row').first().waitFor({ timeout: 30_000 });
+    const rows = await page.getByTestId('fit-row').evaluateAll((els) => els.map((e) => ({ channel: e.getAttribute('data-channel'), exponent: Number(e.getAttribute('data-exponent')), offset: Number(e.getAttribute('data-offset')), r2: Number(e.getAttribute('data-r2')), rmse: Number(e.getAttribute('data-rmse')) })));
+    expect(rows.map((r) => r.channel).sort()).toEqual([...result.channels].sort());
+    for (const r of rows) {
+      const cli = result.aperiodic.find((a) => a.channel === r.channel)!;
+      for (const k of ['exponent', 'offset', 'r2', 'rmse'] as const) expect(r[k], `${r.channel} ${k}`).toBeCloseTo(cli[k], 9);
+    }
+    await page.screenshot({ path: path.join(artifactsDir, 'recipe-roundtrip-spectrum.png'), fullPage: true });
+  });
+
+  it('loads a recipe JSON on the Recipe screen, refusing a bad one by field without losing anything', async () => {
+    await page.getByRole('tab', { name: 'Source' }).click();
+    const p2p = page.getByLabel('Reject above (µV); 150 µV is a common rule of thumb');
+    await p2p.fill('300');
+    await p2p.press('Enter');
+    await page.getByRole('tab', { name: 'Recipe' }).click();
+    const bad = { ...recipe, rejection: { ...recipe.rejection, peakToPeakMicrovolts: -1 } };
+    await page.getByTestId('load-recipe-file').setInputFiles({ name: 'bad.json', mimeType: 'application/json', buffer: Buffer.from(JSON.stringify(bad)) });
+    await expect.poll(() => page.getByTestId('load-recipe-message').textContent()).toContain('rejection.peakToPeakMicrovolts must be greater than 0');
+    expect(await page.getByTestId('load-recipe-message').textContent()).toContain('nothing was changed');
+    await page.getByRole('tab', { name: 'Source' }).click();
+    expect(await p2p.inputValue()).toBe('300');
+    await page.getByRole('tab', { name: 'Recipe' }).click();
+    await page.getByTestId('load-recipe-file').setInputFiles({ name: 'recipe.json', mimeType: 'application/json', buffer: Buffer.from(JSON.stringify(recipe)) });
+    await expect.poll(() => page.getByTestId('load-recipe-message').textContent()).toContain('Loaded recipe.json');
+    expect(await page.getByTestId('recipe-fcount').inputValue()).toBe('12');
+    // Back to the exported recipe's rules: the cached run of that recipe is recognised.
+    expect(await page.getByTestId('recipe-run').textContent()).toMatch(/Shown on Maps|already computed/);
+    await page.getByRole('tab', { name: 'Source' }).click();
+    await expect.poll(() => p2p.inputValue()).toBe('200');
+    expect(await page.locator(`[data-testid="epoch-row"][data-event-index="${rescued}"]`).getAttribute('data-verdict')).toBe('kept');
+  });
+});
