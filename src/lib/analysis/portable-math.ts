@@ -21,11 +21,6 @@ function highWord(x: number): number {
   return u32[HI] | 0;
 }
 
-function lowWord(x: number): number {
-  f64[0] = x;
-  return u32[LO];
-}
-
 function withHighWord(x: number, hi: number): number {
   f64[0] = x;
   u32[HI] = hi >>> 0;
@@ -85,23 +80,27 @@ const LG7 = 1.479819860511658591e-1;
 
 /** Natural logarithm (fdlibm e_log.c: x = 2^k·(1+f), √2/2 < 1+f < √2, log(1+f) = f − s(f − R(z)), s = f/(2+f)). */
 export function log(x: number): number {
-  let hx = highWord(x);
-  const lx = lowWord(x);
+  f64[0] = x;
+  let hx = u32[HI] | 0;
   let k = 0;
   if (hx < 0x00100000) {
-    if (((hx & 0x7fffffff) | lx) === 0) return -Infinity;
+    if (((hx & 0x7fffffff) | u32[LO]) === 0) return -Infinity;
     if (hx < 0) return NaN;
     k -= 54;
-    x *= TWO54; // subnormal: scale up
-    hx = highWord(x);
+    f64[0] = x * TWO54; // subnormal: scale up
+    hx = u32[HI] | 0;
   }
   if (hx >= 0x7ff00000) return x + x;
   k += (hx >> 20) - 1023;
   hx &= 0x000fffff;
   const i0 = (hx + 0x95f64) & 0x100000;
-  x = withHighWord(x, hx | (i0 ^ 0x3ff00000)); // normalize x or x/2
+  u32[HI] = hx | (i0 ^ 0x3ff00000); // normalize x or x/2 (f64 still holds x's low word)
   k += i0 >> 20;
-  const f = x - 1;
+  return logKernel(f64[0] - 1, k, hx);
+}
+
+/** log(2^k·(1+f)) for the normalized f of e_log.c; hx is the high word of 1+f without its exponent. */
+function logKernel(f: number, k: number, hx: number): number {
   const dk = k;
   if ((0x000fffff & (2 + hx)) < 3) {
     // |f| < 2^−20
@@ -131,23 +130,28 @@ const LOG10_2LO = 3.69423907715893078616e-13;
 
 /** Base-10 logarithm (fdlibm e_log10.c: log10(2^n·x) = n·log10(2) + log(x)/ln 10, exact for powers of ten up to 10^22). */
 export function log10(x: number): number {
-  let hx = highWord(x);
-  const lx = lowWord(x);
+  f64[0] = x;
+  let hx = u32[HI] | 0;
   let k = 0;
   if (hx < 0x00100000) {
-    if (((hx & 0x7fffffff) | lx) === 0) return -Infinity;
+    if (((hx & 0x7fffffff) | u32[LO]) === 0) return -Infinity;
     if (hx < 0) return NaN;
     k -= 54;
-    x *= TWO54;
-    hx = highWord(x);
+    f64[0] = x * TWO54;
+    hx = u32[HI] | 0;
   }
   if (hx >= 0x7ff00000) return x + x;
   k += (hx >> 20) - 1023;
   const i = k < 0 ? 1 : 0;
   hx = (hx & 0x000fffff) | ((0x3ff - i) << 20);
   const y = k + i;
-  x = withHighWord(x, hx);
-  const z = y * LOG10_2LO + IVLN10 * log(x);
+  u32[HI] = hx; // x/2^y, in [1, 2) (or [0.5, 1) when k < 0)
+  // log of that value, as e_log.c computes it (its normalization step inlined)
+  const mh = hx & 0x000fffff;
+  const i0 = (mh + 0x95f64) & 0x100000;
+  u32[HI] = mh | (i0 ^ 0x3ff00000);
+  const lnm = logKernel(f64[0] - 1, (hx >> 20) - 1023 + (i0 >> 20), mh);
+  const z = y * LOG10_2LO + IVLN10 * lnm;
   return z + y * LOG10_2HI;
 }
 
