@@ -21,17 +21,18 @@ function highWord(x: number): number {
   return u32[HI] | 0;
 }
 
-function withHighWord(x: number, hi: number): number {
-  f64[0] = x;
-  u32[HI] = hi >>> 0;
-  return f64[0];
-}
-
 function fromWords(hi: number, lo: number): number {
   u32[HI] = hi >>> 0;
   u32[LO] = lo >>> 0;
   return f64[0];
 }
+
+// 2^e for e = −1074 … 1023, built by exact doublings from the smallest subnormal. Scaling by a table entry is
+// exact, and unlike writing an exponent into the bits it does not stall the CPU on a mixed-width load.
+const POW2 = new Float64Array(2098);
+POW2[0] = 5e-324;
+for (let i = 1; i < POW2.length; i++) POW2[i] = POW2[i - 1] * 2;
+const pow2 = (e: number) => POW2[e + 1074];
 
 const LN2_HI = 6.93147180369123816490e-1;
 const LN2_LO = 1.90821492927058770002e-10;
@@ -66,8 +67,8 @@ export function exp(x: number): number {
   const c = x - t * (1.66666666666666019037e-1 + t * (-2.77777777770155933842e-3 + t * (6.61375632143793436117e-5 + t * (-1.65339022054652515390e-6 + t * 4.13813679705723846039e-8))));
   if (k === 0) return 1 - ((x * c) / (c - 2) - x);
   const y = 1 - (lo - (x * c) / (2 - c) - hi);
-  if (k >= -1021) return withHighWord(y, highWord(y) + (k << 20));
-  return withHighWord(y, highWord(y) + ((k + 1000) << 20)) * TWO_M1000;
+  if (k >= -1021) return k === 1024 ? y * 2 * pow2(1023) : y * pow2(k);
+  return y * pow2(k + 1000) * TWO_M1000;
 }
 
 const LG1 = 6.666666666666735130e-1;
@@ -81,22 +82,37 @@ const LG7 = 1.479819860511658591e-1;
 /** Natural logarithm (fdlibm e_log.c: x = 2^k·(1+f), √2/2 < 1+f < √2, log(1+f) = f − s(f − R(z)), s = f/(2+f)). */
 export function log(x: number): number {
   f64[0] = x;
-  let hx = u32[HI] | 0;
-  let k = 0;
-  if (hx < 0x00100000) {
-    if (((hx & 0x7fffffff) | u32[LO]) === 0) return -Infinity;
-    if (hx < 0) return NaN;
-    k -= 54;
-    f64[0] = x * TWO54; // subnormal: scale up
-    hx = u32[HI] | 0;
-  }
-  if (hx >= 0x7ff00000) return x + x;
-  k += (hx >> 20) - 1023;
-  hx &= 0x000fffff;
-  const i0 = (hx + 0x95f64) & 0x100000;
-  u32[HI] = hx | (i0 ^ 0x3ff00000); // normalize x or x/2 (f64 still holds x's low word)
-  k += i0 >> 20;
-  return logKernel(f64[0] - 1, k, hx);
+  const hx = u32[HI] | 0;
+  if (hx < 0x00100000 || hx >= 0x7ff00000) return logSpecial(x, false);
+  return lnNormal(x, hx, 0);
+}
+
+/** log(x·2^kAdd) for a normal x with high word hx. */
+function lnNormal(x: number, hx: number, kAdd: number): number {
+  const hm = hx & 0x000fffff;
+  const K = (hx >> 20) - 1023 + (((hm + 0x95f64) & 0x100000) >> 20); // x = 2^K·(1+f), √2/2 < 1+f < √2
+  return logKernel(x * pow2(-K) - 1, K + kAdd, hm);
+}
+
+/** log10(x·2^kAdd) for a normal x with high word hx (e_log10.c: 2^y·m, m in [1, 2), or [1/2, 1) when k < 0). */
+function log10Normal(x: number, hx: number, kAdd: number): number {
+  const k = (hx >> 20) - 1023 + kAdd;
+  const y = k < 0 ? k + 1 : k;
+  const hm = hx & 0x000fffff;
+  const K = (hx >> 20) - 1023 + (((hm + 0x95f64) & 0x100000) >> 20); // then log(m) as e_log.c computes it
+  const z = y * LOG10_2LO + IVLN10 * logKernel(x * pow2(-K) - 1, K + kAdd - y, hm);
+  return z + y * LOG10_2HI;
+}
+
+/** Zero, negative, subnormal, infinite or NaN arguments of log (and of log10 when `base10`). */
+function logSpecial(x: number, base10: boolean): number {
+  if (x !== x || x < 0) return NaN;
+  if (x === 0) return -Infinity;
+  if (x === Infinity) return x;
+  const scaled = x * TWO54; // subnormal: 2^54·x is normal
+  f64[0] = scaled;
+  const hx = u32[HI] | 0;
+  return base10 ? log10Normal(scaled, hx, -54) : lnNormal(scaled, hx, -54);
 }
 
 /** log(2^k·(1+f)) for the normalized f of e_log.c; hx is the high word of 1+f without its exponent. */
@@ -131,28 +147,9 @@ const LOG10_2LO = 3.69423907715893078616e-13;
 /** Base-10 logarithm (fdlibm e_log10.c: log10(2^n·x) = n·log10(2) + log(x)/ln 10, exact for powers of ten up to 10^22). */
 export function log10(x: number): number {
   f64[0] = x;
-  let hx = u32[HI] | 0;
-  let k = 0;
-  if (hx < 0x00100000) {
-    if (((hx & 0x7fffffff) | u32[LO]) === 0) return -Infinity;
-    if (hx < 0) return NaN;
-    k -= 54;
-    f64[0] = x * TWO54;
-    hx = u32[HI] | 0;
-  }
-  if (hx >= 0x7ff00000) return x + x;
-  k += (hx >> 20) - 1023;
-  const i = k < 0 ? 1 : 0;
-  hx = (hx & 0x000fffff) | ((0x3ff - i) << 20);
-  const y = k + i;
-  u32[HI] = hx; // x/2^y, in [1, 2) (or [0.5, 1) when k < 0)
-  // log of that value, as e_log.c computes it (its normalization step inlined)
-  const mh = hx & 0x000fffff;
-  const i0 = (mh + 0x95f64) & 0x100000;
-  u32[HI] = mh | (i0 ^ 0x3ff00000);
-  const lnm = logKernel(f64[0] - 1, (hx >> 20) - 1023 + (i0 >> 20), mh);
-  const z = y * LOG10_2LO + IVLN10 * lnm;
-  return z + y * LOG10_2HI;
+  const hx = u32[HI] | 0;
+  if (hx < 0x00100000 || hx >= 0x7ff00000) return logSpecial(x, true);
+  return log10Normal(x, hx, 0);
 }
 
 /** x^y for x ≥ 0 (and any x when y is 0): exp(y·log x); NaN for negative x. pow(x, 1) = x and pow(x, 0) = 1 exactly. */
