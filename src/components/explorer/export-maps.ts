@@ -5,6 +5,9 @@ import { paintPanel, type PanelSpec } from '../../lib/plot/panel';
 /** Size of the exported picture of the two maps, CSS pixels (the PNG is 2× this). */
 export const EXPORT_PANEL = { width: 640, height: 340, header: 36, scale: 2 } as const;
 
+/** Printed on every exported picture, which may travel further than the app (research caution). */
+export const EXPORT_CAUTION = 'Research output from Tidemark, not a medical device: not for diagnosis or treatment.';
+
 /** Both maps side by side with axes, colour bars and the baseline band, as a PNG blob. */
 export async function renderMapsPng(raw: PanelSpec, normalized: PanelSpec, caption: string): Promise<Blob> {
   const { width, height, header, scale } = EXPORT_PANEL;
@@ -18,6 +21,11 @@ export async function renderMapsPng(raw: PanelSpec, normalized: PanelSpec, capti
   ctx.fillStyle = INK;
   ctx.font = SANS;
   ctx.fillText(caption, 16, 22);
+  ctx.textAlign = 'right';
+  ctx.font = SANS.replace('600 12px', '400 11px');
+  ctx.fillText(EXPORT_CAUTION, 2 * width - 16, 22);
+  ctx.textAlign = 'left';
+  ctx.font = SANS;
   const layout = panelLayout(width, height);
   paintPanel(ctx, layout, raw, scale, { image: null }, 0, header);
   paintPanel(ctx, layout, normalized, scale, { image: null }, width, header);
