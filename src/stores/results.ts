@@ -1,3 +1,4 @@
+import * as Comlink from 'comlink';
 import { create } from 'zustand';
 import { AnalysisCancelledError, AnalysisInputError } from '../lib/analysis/errors';
 import type { AperiodicFit } from '../lib/analysis/aperiodic';
@@ -182,7 +183,9 @@ export function cancelDecomposition(): void {
 
 async function holdTrials(d: Decomposition, channel: string, singleTrials: Float32Array[]): Promise<void> {
   const key = `${d.key}|${channel}`;
-  await explorerWorker().holdTrials(key, singleTrials, d.trials, d.frequencies.length, d.times.length);
+  // The worker keeps these; the main thread does not, so they move rather than being copied (tens of MB).
+  const moved = Comlink.transfer(singleTrials, singleTrials.map((t) => t.buffer));
+  await explorerWorker().holdTrials(key, moved, d.trials, d.frequencies.length, d.times.length);
   useResultsStore.setState({ trialHold: { key, status: 'ready', message: null } });
 }
 

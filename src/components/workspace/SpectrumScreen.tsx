@@ -1,3 +1,4 @@
+import * as Comlink from 'comlink';
 import { useEffect, useMemo, useRef, useState, type PointerEvent, type KeyboardEvent } from 'react';
 import Papa from 'papaparse';
 import type { WorkspaceProps } from './types';
@@ -41,8 +42,9 @@ function useEpochSpectra(d: Decomposition | null, visible: boolean): EpochSpectr
       o += s.length;
     }
     const range = d.recipe.spectrum.range as [number, number];
+    // The slices are copies made for the worker: transfer them instead of cloning them a second time.
     void explorerWorker()
-      .spectra(samples, d.sampleRateHz, starts, d.epochSamples, d.spectrumSegmentSamples, d.spectrumOverlapSamples, range)
+      .spectra(Comlink.transfer(samples, samples.map((x) => x.buffer)), d.sampleRateHz, starts, d.epochSamples, d.spectrumSegmentSamples, d.spectrumOverlapSamples, range)
       .then((out) => {
         spectraCache.set(d.key, out);
         if (live) setSpectra(out);
@@ -80,7 +82,7 @@ function useRecipeSpectra(d: Decomposition | null, visible: boolean): RecipeSpec
     let live = true;
     const samples = d.channels.map((c) => recording.data[recording.channelNames.indexOf(c)].slice());
     void explorerWorker()
-      .recipeSpectra(samples, d.sampleRateHz, d.spectrumSegmentSamples, d.spectrumOverlapSamples, d.spectrumSpans.slice())
+      .recipeSpectra(Comlink.transfer(samples, samples.map((x) => x.buffer)), d.sampleRateHz, d.spectrumSegmentSamples, d.spectrumOverlapSamples, d.spectrumSpans.slice())
       .then((out) => {
         recipeSpectraCache.set(d.key, out);
         if (live) setSpectra(out);

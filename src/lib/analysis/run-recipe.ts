@@ -148,7 +148,7 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
       if (sel.matched === 0) {
         const present = [...new Set(recording.events.map((e) => e.label))];
         const shown = present.slice(0, 12).map((l) => `"${l}"`).join(', ') + (present.length > 12 ? ', …' : '');
-        throw new AnalysisInputError(`epochs.events[${i}]`, `: no events labelled "${label}" in the recording (labels present: ${shown || 'none'})`);
+        throw new AnalysisInputError(`epochs.events[${i}]`, `has no events labelled "${label}" in the recording (labels present: ${shown || 'none'})`);
       }
       const dropped = sel.droppedOutside + sel.droppedGap;
       if (sel.starts.length === 0) {
@@ -161,7 +161,7 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
       rejectedCounts.push(0);
     } else {
       const labelsOf = prepared.conditions.find((c) => c.name.trim() === label)!.labels.map((l) => `"${l}"`).join(', ');
-      if (count.total === 0) throw new AnalysisInputError(`epochs.events[${i}]`, `: condition "${label}" has no events in the recording (its labels: ${labelsOf})`);
+      if (count.total === 0) throw new AnalysisInputError(`epochs.events[${i}]`, `names condition "${label}", which has no events in the recording (its labels: ${labelsOf})`);
       const dropped = count.outside + count.gap;
       if (sel.starts.length === 0) {
         throw new AnalysisInputError(

@@ -169,7 +169,7 @@ describe('analyze command line', () => {
     ['a CSV without --rate', ['rec.csv', '--recipe', 'recipe.json'], /--rate: is required/],
     ['a ragged CSV row', ['ragged.csv', '--recipe', 'recipe.json', '--rate', '100'], /ragged\.csv: .*\brow 3\b/],
     ['an unknown channel', ['rec.csv', '--recipe', 'channel.json', '--events', 'events.tsv', '--rate', '100'], /channel\.json: channels\[1\] names no signal in the recording \("Cz"/],
-    ['no events of a label', ['rec.csv', '--recipe', 'label.json', '--events', 'events.tsv', '--rate', '100'], /label\.json: epochs\.events\[1\] : no events labelled "wait"/],
+    ['no events of a label', ['rec.csv', '--recipe', 'label.json', '--events', 'events.tsv', '--rate', '100'], /label\.json: epochs\.events\[1\] has no events labelled "wait"/],
     ['tmin ≥ tmax', ['rec.csv', '--recipe', 'tmin.json', '--events', 'events.tsv', '--rate', '100'], /tmin\.json: epochs\.tmin must be less than epochs\.tmax/],
     ['a baseline outside the epoch', ['rec.csv', '--recipe', 'baseline.json', '--events', 'events.tsv', '--rate', '100'], /baseline\.json: baseline\.start is before the epoch start/],
     ['a max frequency at Nyquist', ['rec.csv', '--recipe', 'nyquist.json', '--events', 'events.tsv', '--rate', '100'], /nyquist\.json: frequencies\.max must be below the Nyquist frequency \(50 Hz/],

@@ -98,7 +98,7 @@ describe('runRecipe', () => {
     ['max frequency at Nyquist', { frequencies: { ...recipe.frequencies, max: 64 } }, /^frequencies\.max must be below the Nyquist frequency \(64 Hz/],
     ['too few cycles of the lowest frequency in the epoch', { cycles: { fixed: 12 } }, /^cycles is too many for the epoch length: at 4 Hz/],
     ['unknown channel', { channels: ['Fz', 'Oz'] }, /^channels\[1\] names no signal in the recording \("Oz"/],
-    ['no events of a label', { epochs: { ...recipe.epochs, events: ['tone/high', 'tone/mid'] } }, /^epochs\.events\[1\] : no events labelled "tone\/mid"/],
+    ['no events of a label', { epochs: { ...recipe.epochs, events: ['tone/high', 'tone/mid'] } }, /^epochs\.events\[1\] has no events labelled "tone\/mid"/],
     ['bad method', { baseline: { ...recipe.baseline, method: 'decibel' } }, /^baseline\.method /],
     ['cycles of the wrong shape', { cycles: { n: 3 } }, /^cycles must be/],
     ['unknown recipe field', { colour: 'blue' }, /^recipe .*colour/],
