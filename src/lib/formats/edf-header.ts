@@ -44,6 +44,8 @@ export const EDF_SIGNAL_FIELDS = [
 
 export type EdfVariant = 'EDF' | 'EDF+C' | 'EDF+D';
 
+const MAX_PHYSICAL_MAGNITUDE = 1e30;
+
 export interface EdfSignalHeader {
   index: number;
   label: string;
@@ -272,6 +274,13 @@ export function parseEdfSignalHeaders(bytes: Uint8Array, fixed: EdfFixedHeader):
     }
     if (digitalMin >= digitalMax) {
       throw new FormatError('digital minimum', `${digitalMin} must be below the digital maximum ${digitalMax}`, { byteOffset: dMin.at, signal: name });
+    }
+    // Samples come out as 32-bit floats in µV (up to ×1e6 from V), so a physical limit past ±1e30 would overflow to
+    // ±Infinity; no recording has such limits, so they are refused as damage.
+    for (const [value, field, at] of [[physicalMin, 'physical minimum', pMin.at], [physicalMax, 'physical maximum', pMax.at]] as const) {
+      if (!isAnnotation && Math.abs(value) > MAX_PHYSICAL_MAGNITUDE) {
+        throw new FormatError(field, `${value} is too large for a physical limit (at most ±1e30)`, { byteOffset: at, signal: name });
+      }
     }
     if (!isAnnotation && physicalMin === physicalMax) {
       throw new FormatError('physical minimum', `equals the physical maximum (${physicalMax}), so no scaling is defined`, {

@@ -72,6 +72,16 @@ describe('openEdf under damaged input', () => {
     expect(await parseOrFormatError(valid)).toBe('parsed');
   });
 
+  it('refuses a physical limit so large that samples would overflow to Infinity (found by fuzzing)', async () => {
+    // Field 22 is the first signal's physical minimum; fast-check found "4e50", "1E70" and "9E90" there.
+    const span = fieldSpans[22];
+    expect(span.name).toBe('physical minimum');
+    const damaged = valid.slice();
+    damaged.set(new TextEncoder().encode('4e50'.padEnd(span.width, ' ')), span.offset);
+    await expect(openEdf(bytesSource(damaged))).rejects.toThrow(/physical minimum of signal "EEG Fz" at byte \d+: 4e\+50 is too large/);
+    expect(await parseOrFormatError(damaged)).toBe('refused');
+  });
+
   it('refuses every truncation with a FormatError', async () => {
     await fc.assert(
       fc.asyncProperty(fc.integer({ min: 0, max: valid.length - 1 }), async (length) => {
