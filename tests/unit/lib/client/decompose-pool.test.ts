@@ -48,8 +48,8 @@ describe('DecomposePool on worker threads', () => {
   it('rejects a bad recipe with the field named and stops on cancel()', async () => {
     const recording = makeRecording();
     await expect(pool.run(recording, { ...recipe, channels: ['Oz'] })).rejects.toThrow(/^channels\[0\] names no signal/);
-    const running = pool.run(recording, recipe);
-    setTimeout(() => pool.cancel(), 5);
+    // Cancel as soon as the first progress report shows work under way (a timer could fire after a fast run ended).
+    const running = pool.run(recording, recipe, { onProgress: () => pool.cancel() });
     await expect(running).rejects.toThrow(/cancelled/);
     const again = await pool.run(recording, { ...recipe, channels: ['F3'] });
     expect(again.result.channels).toEqual(['F3']);
