@@ -1,3 +1,6 @@
+// fetch is replaced here only to see what the wrapper would hand to the network and that it refuses before sending;
+// the real requests of the real page, against the real server, are checked in tests/browser/source.test.ts and
+// tests/browser/journey.test.ts (every URL, header and body of a whole visit).
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import { guardAgainst, outboundLog, OutboundRefusedError, send } from '../../../../src/lib/client/outbound';
 
