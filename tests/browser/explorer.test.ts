@@ -4,11 +4,11 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
-import { appUrl, artifactsDir, launchBrowser } from '../helpers/browser';
-import { DEMO_PEOPLE } from '../../src/db/seed';
+import { artifactsDir, launchBrowser } from '../helpers/browser';
 import { runRecipe, type AnalysisResult } from '../../src/lib/analysis/run-recipe';
 import { loadDemo } from '../../src/components/explorer/test-hooks';
 import { useSourceStore } from '../../src/stores/source';
+import { openWorkspace } from '../helpers/workspace';
 
 // The demo recording: 60 s of the invented Harbour Lights scenario, three channels, generated from its seed in the
 // page (through the ?testhooks hook) and here in Node, so both sides analyse the same samples.
@@ -66,15 +66,7 @@ beforeAll(async () => {
   fs.mkdirSync(artifactsDir, { recursive: true });
   const context = await browser.newContext({ viewport: { width: 1500, height: 1000 }, acceptDownloads: true });
   page = await context.newPage();
-  const analyst = DEMO_PEOPLE.find((p) => p.role === 'analyst')!;
-  await page.goto(`${appUrl}/sign-in`);
-  await page.getByLabel('E-mail').fill(analyst.email);
-  await page.getByLabel('Password').fill(analyst.password);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL(/\/teams\//);
-  await page.getByRole('link', { name: 'Harbour-bell anticipation' }).first().click();
-  await page.waitForURL(/\/studies\//);
-  await page.goto(`${page.url().replace(/\/$/, '')}/workspace?testhooks`);
+  await openWorkspace(page, 'analyst', '?testhooks');
   await page.waitForFunction(() => window.__tidemark !== undefined);
   const loaded = await page.evaluate((demo) => window.__tidemark!.loadDemo(demo), DEMO);
   expect(loaded.settingsError).toBeNull();

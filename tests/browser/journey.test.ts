@@ -7,11 +7,11 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, BrowserContext, Page, Request } from 'playwright-core';
-import { appUrl, artifactsDir, launchBrowser } from '../helpers/browser';
+import { artifactsDir, launchBrowser } from '../helpers/browser';
 import { DEMO_PATIENT_FIELD, type CohortParameters } from '../../src/lib/demo/cohort';
 import { frequencyGrid } from '../../src/lib/analysis/frequency-grid';
+import { openWorkspace } from '../helpers/workspace';
 
-const ANALYST = { email: 'analyst1@saltmarsh.example', password: 'demo-analyst-pass' };
 const CHANNELS = ['Fz', 'Cz', 'Pz'];
 
 interface Seen {
@@ -72,14 +72,7 @@ describe('an analyst’s journey from sign-in to a time-frequency map', () => {
   let patientShown = '';
 
   it('signs in, opens the study workspace and a demo recording from the Demo cohort picker', async () => {
-    await page.goto(`${appUrl}/sign-in`);
-    await page.getByLabel('E-mail').fill(ANALYST.email);
-    await page.getByLabel('Password').fill(ANALYST.password);
-    await page.getByRole('button', { name: 'Sign in' }).click();
-    await page.waitForURL(/\/teams\/[0-9a-f-]+$/);
-    await page.getByRole('link', { name: 'Harbour-bell anticipation' }).first().click();
-    await page.getByRole('link', { name: 'Open the workspace' }).click();
-    await page.waitForURL(/\/workspace$/);
+    await openWorkspace(page, 'analyst');
 
     const picker = page.getByLabel(/Demo cohort/);
     await picker.waitFor();

@@ -8,11 +8,11 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
-import { appUrl, artifactsDir, launchBrowser } from '../helpers/browser';
-import { DEMO_PEOPLE } from '../../src/db/seed';
+import { artifactsDir, launchBrowser } from '../helpers/browser';
 import { DEMO_PATIENT_FIELD, describeCohort, synthesizeSubject } from '../../src/lib/demo/cohort';
 import { writeEdf } from '../../src/lib/formats';
 import type { AnalysisResult } from '../../src/lib/analysis/run-recipe';
+import { openWorkspace, dropFile } from '../helpers/workspace';
 
 const FILE_NAME = 'tm-parity-check-71.edf';
 const CHANNELS = ['Fz', 'Cz', 'Pz', 'Oz'];
@@ -97,36 +97,14 @@ beforeAll(async () => {
 
   page = await (await browser.newContext({ viewport: { width: 1400, height: 1000 } })).newPage();
   page.on('pageerror', (e) => pageErrors.push(e.message));
-  const analyst = DEMO_PEOPLE.find((p) => p.role === 'analyst')!;
-  await page.goto(`${appUrl}/sign-in`);
-  await page.getByLabel('E-mail').fill(analyst.email);
-  await page.getByLabel('Password').fill(analyst.password);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL(/\/teams\/[0-9a-f-]+$/);
-  await page.getByTestId('study-list').getByRole('link', { name: 'Harbour-bell anticipation' }).click();
-  await page.getByRole('link', { name: 'Open the workspace' }).click();
-  await page.waitForURL(/\/workspace$/);
   // ?testhooks only exposes the stores and a pool runner; the recording is opened through the real drop zone.
-  await page.goto(`${page.url()}?testhooks`);
+  await openWorkspace(page, 'analyst', '?testhooks');
   await page.waitForFunction(() => window.__tidemark !== undefined);
-
-  // A person dragging the file from their desktop onto the drop zone.
   await page.getByTestId('drop-zone').waitFor().catch(async (e: unknown) => {
     await page.screenshot({ path: path.join(artifactsDir, 'parity-failure.png'), fullPage: true });
     throw new Error(`${String(e)}; page errors: ${pageErrors.join(' | ') || 'none'}`);
   });
-  await page.evaluate(
-    ({ name, b64 }) => {
-      const binary = atob(b64);
-      const buf = new Uint8Array(binary.length);
-      for (let i = 0; i < binary.length; i++) buf[i] = binary.charCodeAt(i);
-      const transfer = new DataTransfer();
-      transfer.items.add(new File([buf], name, { type: 'application/octet-stream' }));
-      const zone = document.querySelector('[data-testid="drop-zone"]')!;
-      for (const type of ['dragenter', 'dragover', 'drop']) zone.dispatchEvent(new DragEvent(type, { bubbles: true, cancelable: true, dataTransfer: transfer }));
-    },
-    { name: FILE_NAME, b64: Buffer.from(made.bytes).toString('base64') },
-  );
+  await dropFile(page, FILE_NAME, made.bytes);
   await page.getByTestId('recording-details').waitFor({ timeout: 30_000 });
 });
 afterAll(async () => {

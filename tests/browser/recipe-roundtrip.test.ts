@@ -5,9 +5,10 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
-import { appUrl, artifactsDir, launchBrowser } from '../helpers/browser';
+import { artifactsDir, launchBrowser } from '../helpers/browser';
 import { describeCohort, writeSubjectEdf, type SubjectParameters } from '../../src/lib/demo/cohort';
 import type { AnalysisResult } from '../../src/lib/analysis/run-recipe';
+import { openWorkspace, dropFile } from '../helpers/workspace';
 
 // A small recording from the demo generator (the invented Harbour Lights scenario): 1 subject, 60 s, 32 channels,
 // opened in the page by drag and drop and given to the command line as the same file.
@@ -55,27 +56,8 @@ beforeAll(async () => {
   fs.writeFileSync(path.join(dir, FILE_NAME), bytes);
   const context = await browser.newContext({ viewport: { width: 1500, height: 1000 }, acceptDownloads: true });
   page = await context.newPage();
-  await page.goto(`${appUrl}/sign-in`);
-  await page.getByLabel('E-mail').fill('analyst1@saltmarsh.example');
-  await page.getByLabel('Password').fill('demo-analyst-pass');
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL(/\/teams\/[0-9a-f-]+$/);
-  await page.getByTestId('study-list').getByRole('link', { name: 'Harbour-bell anticipation' }).click();
-  await page.getByRole('link', { name: 'Open the workspace' }).click();
-  await page.waitForURL(/\/workspace$/);
-  await page.getByTestId('drop-zone').waitFor();
-  await page.evaluate(
-    ({ name, b64 }) => {
-      const binary = atob(b64);
-      const buf = new Uint8Array(binary.length);
-      for (let i = 0; i < binary.length; i++) buf[i] = binary.charCodeAt(i);
-      const transfer = new DataTransfer();
-      transfer.items.add(new File([buf], name, { type: 'application/octet-stream' }));
-      const zone = document.querySelector('[data-testid="drop-zone"]')!;
-      for (const type of ['dragenter', 'dragover', 'drop']) zone.dispatchEvent(new DragEvent(type, { bubbles: true, cancelable: true, dataTransfer: transfer }));
-    },
-    { name: FILE_NAME, b64: Buffer.from(bytes).toString('base64') },
-  );
+  await openWorkspace(page);
+  await dropFile(page, FILE_NAME, bytes);
   await page.getByTestId('recording-details').waitFor({ timeout: 30_000 });
 });
 afterAll(async () => {

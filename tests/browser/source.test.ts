@@ -4,9 +4,9 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, BrowserContext, Page, Request } from 'playwright-core';
 import { appUrl, artifactsDir, launchBrowser } from '../helpers/browser';
-import { DEMO_PEOPLE } from '../../src/db/seed';
 import { DEMO_PATIENT_FIELD, describeCohort, writeSubjectEdf, type SubjectParameters } from '../../src/lib/demo/cohort';
 import { bytesSource, openEdf } from '../../src/lib/formats';
+import { openWorkspace, dropFile } from '../helpers/workspace';
 
 // A small recording from the demo generator (invented "Harbour Lights" scenario): 1 subject, 60 s, 32 channels.
 // The file name is our own, so we can prove it never reaches the server.
@@ -33,36 +33,10 @@ beforeAll(async () => {
 afterAll(() => close());
 
 async function signIn(context: BrowserContext, role: 'analyst' | 'reviewer'): Promise<Page> {
-  const person = DEMO_PEOPLE.find((p) => p.role === role)!;
   const page = await context.newPage();
-  await page.goto(`${appUrl}/sign-in`);
-  await page.getByLabel('E-mail').fill(person.email);
-  await page.getByLabel('Password').fill(person.password);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL(/\/teams\/[0-9a-f-]+$/);
-  await page.getByTestId('study-list').getByRole('link', { name: 'Harbour-bell anticipation' }).click();
-  await page.getByRole('link', { name: 'Open the workspace' }).click();
-  await page.waitForURL(/\/workspace$/);
+  await openWorkspace(page, role);
   await page.getByTestId('drop-zone').waitFor();
   return page;
-}
-
-/** A person dragging a file from their desktop: dragenter, dragover, drop with a DataTransfer holding a File. */
-async function dropFile(page: Page, name: string, data: Uint8Array) {
-  await page.evaluate(
-    ({ name, b64 }) => {
-      const binary = atob(b64);
-      const buf = new Uint8Array(binary.length);
-      for (let i = 0; i < binary.length; i++) buf[i] = binary.charCodeAt(i);
-      const transfer = new DataTransfer();
-      transfer.items.add(new File([buf], name, { type: 'application/octet-stream' }));
-      const zone = document.querySelector('[data-testid="drop-zone"]')!;
-      for (const type of ['dragenter', 'dragover', 'drop']) {
-        zone.dispatchEvent(new DragEvent(type, { bubbles: true, cancelable: true, dataTransfer: transfer }));
-      }
-    },
-    { name, b64: Buffer.from(data).toString('base64') },
-  );
 }
 
 /** The Source screen's epoch window form (the default is −1 … 2 s; these checks were worked out for −0.5 … 1.5 s). */

@@ -1,0 +1,41 @@
+// Steps the workspace browser tests share: a demo person signs in and opens a study's workspace, and a file is
+// dropped on the Source screen the way a person drags one from the desktop.
+import type { Page } from 'playwright-core';
+import { DEMO_PEOPLE } from '../../src/db/seed';
+import type { Role } from '../../src/lib/permissions';
+import { appUrl } from './browser';
+
+export const DEMO_STUDY = 'Harbour-bell anticipation';
+
+/** Signs in as the first demo person with `role` and opens the workspace of the demo study (`query` e.g. '?testhooks'). */
+export async function openWorkspace(page: Page, role: Role = 'analyst', query = ''): Promise<void> {
+  const person = DEMO_PEOPLE.find((p) => p.role === role)!;
+  await page.goto(`${appUrl}/sign-in`);
+  await page.getByLabel('E-mail').fill(person.email);
+  await page.getByLabel('Password').fill(person.password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL(/\/teams\/[0-9a-f-]+$/);
+  await page.getByTestId('study-list').getByRole('link', { name: DEMO_STUDY }).click();
+  await page.getByRole('link', { name: 'Open the workspace' }).click();
+  await page.waitForURL(/\/workspace$/);
+  if (query) await page.goto(`${page.url()}${query}`);
+}
+
+/** dragenter, dragover and drop on the drop zone with a DataTransfer holding one File. */
+export async function dropFile(page: Page, name: string, data: Uint8Array): Promise<void> {
+  await page.getByTestId('drop-zone').waitFor();
+  await page.evaluate(
+    ({ name, b64 }) => {
+      const binary = atob(b64);
+      const buf = new Uint8Array(binary.length);
+      for (let i = 0; i < binary.length; i++) buf[i] = binary.charCodeAt(i);
+      const transfer = new DataTransfer();
+      transfer.items.add(new File([buf], name, { type: 'application/octet-stream' }));
+      const zone = document.querySelector('[data-testid="drop-zone"]')!;
+      for (const type of ['dragenter', 'dragover', 'drop']) {
+        zone.dispatchEvent(new DragEvent(type, { bubbles: true, cancelable: true, dataTransfer: transfer }));
+      }
+    },
+    { name, b64: Buffer.from(data).toString('base64') },
+  );
+}
