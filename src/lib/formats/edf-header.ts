@@ -322,27 +322,28 @@ export function parseEdfSignalHeaders(bytes: Uint8Array, fixed: EdfFixedHeader):
   return signals;
 }
 
-/** Combines the two steps for a header already in memory. */
-export function parseEdfHeader(bytes: Uint8Array, fileSize: number): { header: EdfHeader; identifying: EdfIdentifying; warnings: string[] } {
-  const fixed = parseEdfFixedHeader(bytes, fileSize);
-  const signals = parseEdfSignalHeaders(bytes, fixed);
+/** The header record of a file from its two parsed parts; `recordBytes` is the size of one data record. */
+export function assembleEdfHeader(fixed: EdfFixedHeader, signals: EdfSignalHeader[]): EdfHeader {
   let recordBytes = 0;
   for (const s of signals) recordBytes += 2 * s.samplesPerRecord;
   return {
-    header: {
-      variant: fixed.variant,
-      version: fixed.version,
-      headerBytes: fixed.headerBytes,
-      reserved: fixed.reserved,
-      declaredRecordCount: fixed.declaredRecordCount,
-      recordDurationSeconds: fixed.recordDurationSeconds,
-      signalCount: fixed.signalCount,
-      signals,
-      recordBytes,
-    },
-    identifying: fixed.identifying,
-    warnings: fixed.warnings,
+    variant: fixed.variant,
+    version: fixed.version,
+    headerBytes: fixed.headerBytes,
+    reserved: fixed.reserved,
+    declaredRecordCount: fixed.declaredRecordCount,
+    recordDurationSeconds: fixed.recordDurationSeconds,
+    signalCount: fixed.signalCount,
+    signals,
+    recordBytes,
   };
+}
+
+/** Combines the two steps for a header already in memory. */
+export function parseEdfHeader(bytes: Uint8Array, fileSize: number): { header: EdfHeader; identifying: EdfIdentifying; warnings: string[] } {
+  const fixed = parseEdfFixedHeader(bytes, fileSize);
+  const header = assembleEdfHeader(fixed, parseEdfSignalHeaders(bytes, fixed));
+  return { header, identifying: fixed.identifying, warnings: fixed.warnings };
 }
 
 const MONTHS = ['JAN', 'FEB', 'MAR', 'APR', 'MAY', 'JUN', 'JUL', 'AUG', 'SEP', 'OCT', 'NOV', 'DEC'];

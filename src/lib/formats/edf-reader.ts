@@ -10,6 +10,7 @@ import { parseTalBlock, type EdfAnnotation } from './edf-annotations';
 import {
   EDF_FIXED_FIELDS,
   EDF_FIXED_HEADER_BYTES,
+  assembleEdfHeader,
   parseEdfFixedHeader,
   parseEdfSignalHeaders,
   type EdfHeader,
@@ -107,9 +108,8 @@ async function readCheckedHeader(source: ByteSource): Promise<CheckedHeader> {
   const fixed = parseEdfFixedHeader(first, source.size);
   // headerBytes was checked against source.size above, so this read is bounded by the file.
   const headerBytes = fixed.headerBytes === first.length ? first : await readExactly(source, 0, fixed.headerBytes, 'header');
-  const signals = parseEdfSignalHeaders(headerBytes, fixed);
-  let recordBytes = 0;
-  for (const s of signals) recordBytes += 2 * s.samplesPerRecord;
+  const header = assembleEdfHeader(fixed, parseEdfSignalHeaders(headerBytes, fixed));
+  const { recordBytes } = header;
   const warnings = [...fixed.warnings];
   const dataBytes = source.size - fixed.headerBytes;
   const countAt = EDF_FIXED_FIELDS[7].offset;
@@ -129,17 +129,6 @@ async function readCheckedHeader(source: ByteSource): Promise<CheckedHeader> {
       byteOffset: countAt,
     });
   }
-  const header: EdfHeader = {
-    variant: fixed.variant,
-    version: fixed.version,
-    headerBytes: fixed.headerBytes,
-    reserved: fixed.reserved,
-    declaredRecordCount: fixed.declaredRecordCount,
-    recordDurationSeconds: fixed.recordDurationSeconds,
-    signalCount: fixed.signalCount,
-    signals,
-    recordBytes,
-  };
   return { header, identifying: fixed.identifying, warnings, recordCount, headerBytes };
 }
 
