@@ -6,9 +6,10 @@
 import { readFile, writeFile } from 'node:fs/promises';
 import { pathToFileURL } from 'node:url';
 import { AnalysisInputError } from '../lib/analysis/errors';
+import { parseRecipe, RecipeSchema } from '../lib/analysis/recipe';
 import { runRecipe } from '../lib/analysis/run-recipe';
 import { FormatError } from '../lib/formats';
-import { CliInputError, loadRecording } from './load-recording';
+import { CliInputError, loadRecording, type LoadOptions } from './load-recording';
 
 const USAGE = 'usage: analyze <recording.edf|.csv|.tsv> --recipe <recipe.json> [--events <events.tsv>] [--rate <Hz>] [--out <result.json>]';
 
@@ -60,6 +61,19 @@ async function readRecipe(path: string): Promise<unknown> {
   }
 }
 
+/**
+ * The reader options a recipe asks for (`recording.units`, `recording.exclude`, DEVELOPERS.md "Recipe extensions"),
+ * checked before the recording is read; a bad `recording` section is reported like any other recipe field.
+ */
+export function readerOptionsOf(recipe: unknown): Pick<LoadOptions, 'unitFactors' | 'exclude'> {
+  const section = typeof recipe === 'object' && recipe !== null ? (recipe as { recording?: unknown }).recording : undefined;
+  if (section === undefined) return {};
+  const parsed = RecipeSchema.shape.recording.safeParse(section);
+  if (!parsed.success) parseRecipe(recipe); // throws AnalysisInputError naming the field
+  const recording = parsed.data;
+  return { unitFactors: recording?.units, exclude: recording?.exclude };
+}
+
 function oneLine(s: string): string {
   return s.replace(/\s*\n\s*/g, ' ');
 }
@@ -71,7 +85,7 @@ export async function main(argv: string[]): Promise<number> {
     const args = parseArgs(argv);
     recipePath = args.recipe;
     const recipe = await readRecipe(args.recipe);
-    const { recording, warnings } = await loadRecording(args.recording, { eventsPath: args.events, rateHz: args.rate });
+    const { recording, warnings } = await loadRecording(args.recording, { eventsPath: args.events, rateHz: args.rate, ...readerOptionsOf(recipe) });
     const result = runRecipe(recording, recipe);
     result.warnings.unshift(...warnings);
     const json = JSON.stringify(result);

@@ -16,6 +16,10 @@ export class CliInputError extends Error {
 export interface LoadOptions {
   eventsPath?: string;
   rateHz?: number;
+  /** EDF only: physical dimension → factor to µV for units the reader does not know (the recipe's `recording.units`). */
+  unitFactors?: Readonly<Record<string, number>>;
+  /** EDF only: signal labels to leave out (the recipe's `recording.exclude`). */
+  exclude?: readonly string[];
 }
 
 export interface LoadedRecording {
@@ -80,8 +84,11 @@ export async function loadRecording(path: string, options: LoadOptions): Promise
       throw new CliInputError(path, `cannot be read (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
     }
     try {
-      const edf = await openEdf(file.source);
+      const edf = await openEdf(file.source, { unitFactors: options.unitFactors, exclude: options.exclude });
       warnings.push(...edf.warnings);
+      for (const label of options.exclude ?? []) {
+        if (!edf.ignored.some((i) => i.reason === 'excluded' && i.label === label)) warnings.push(`recording.exclude: the file has no signal labelled "${label}"`);
+      }
       recording = toRecording(edf);
     } catch (e) {
       throw e instanceof FormatError ? new CliInputError(path, e.message) : e;
@@ -90,6 +97,9 @@ export async function loadRecording(path: string, options: LoadOptions): Promise
     }
   } else if (TABLE_EXTENSIONS.has(ext)) {
     if (options.rateHz === undefined) throw new CliInputError('--rate', `is required for a CSV/TSV recording (samples per second of ${path})`);
+    if (Object.keys(options.unitFactors ?? {}).length > 0 || (options.exclude ?? []).length > 0) {
+      warnings.push('recording.units and recording.exclude apply to EDF files only; a table is read as it is');
+    }
     const text = await readText(path);
     try {
       recording = parseCsvSamples(text, { sampleRateHz: options.rateHz });

@@ -56,7 +56,7 @@ export function applyRecipe(input: unknown, recording: Recording, fingerprint: s
   useViewStore.getState().set({ method: recipe.baseline.method, scope: recipe.baseline.scope, fitRange: [recipe.aperiodic.range[0], recipe.aperiodic.range[1]] });
   useViewStore.getState().setBaseline({ start: recipe.baseline.start, end: recipe.baseline.end });
   const notices: string[] = [];
-  if (recipe.recording !== undefined && fingerprint !== null && recipe.recording.fingerprint !== fingerprint) {
+  if (recipe.recording?.fingerprint !== undefined && fingerprint !== null && recipe.recording.fingerprint !== fingerprint) {
     notices.push(`This recipe was made on another recording (SHA-256 ${recipe.recording.fingerprint.slice(0, 12)}…); the open one is ${fingerprint.slice(0, 12)}….`);
   }
   return { ok: true, notices };

@@ -68,7 +68,16 @@ export const RecipeSchema = z
       })
       .strict()
       .optional(),
-    recording: z.object({ fingerprint: z.string().regex(/^[0-9a-f]{64}$/, 'must be a SHA-256 in 64 lowercase hex digits') }).strict().optional(),
+    // How the file was read: `units` maps a physical dimension the reader does not know to its factor to µV,
+    // `exclude` lists signal labels left out. The core never reads files; the CLI and the browser pass these on.
+    recording: z
+      .object({
+        fingerprint: z.string().regex(/^[0-9a-f]{64}$/, 'must be a SHA-256 in 64 lowercase hex digits').optional(),
+        units: z.record(z.string(), positive, { error: 'must map each physical dimension to a factor to µV' }).optional(),
+        exclude: z.array(z.string().min(1, 'must not be empty')).optional(),
+      })
+      .strict()
+      .optional(),
   })
   .strict();
 

@@ -131,7 +131,7 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
   // Conditions and rejection (recipe extensions) pick the epochs; without them the contract's label selection runs.
   const prepared = prepareRecording(recording, recipe);
   const events = prepared.recording.events;
-  if (recipe.recording !== undefined && recording.fingerprint !== undefined && recipe.recording.fingerprint !== recording.fingerprint) {
+  if (recipe.recording?.fingerprint !== undefined && recording.fingerprint !== undefined && recipe.recording.fingerprint !== recording.fingerprint) {
     warnings.push(
       `recording.fingerprint: the recipe was made on a recording with SHA-256 ${recipe.recording.fingerprint.slice(0, 12)}…, but this one is ${recording.fingerprint.slice(0, 12)}…; the numbers may not match the ones it was made with`,
     );

@@ -50,6 +50,16 @@ describe('parseRecipe with the recipe extensions', () => {
     expect(bad({ rejection: { peakToPeakMicrovolts: 150, flatMicrovolts: null, overrides: { '1@2:x': 'maybe' } } })).toThrow(/^rejection\.overrides\["1@2:x"\] /);
     expect(bad({ rejection: { peakToPeakMicrovolts: 150, flatMicrovolts: null, threshold: 3 } })).toThrow(/^rejection /);
     expect(bad({ recording: { fingerprint: 'ABC' } })).toThrow(/^recording\.fingerprint must be a SHA-256/);
+    expect(bad({ recording: { units: { '%': 0 } } })).toThrow(/^recording\.units\["%"\] must be greater than 0/);
+    expect(bad({ recording: { units: { arb: -2 } } })).toThrow(/^recording\.units\.arb must be greater than 0/);
+    expect(bad({ recording: { exclude: [''] } })).toThrow(/^recording\.exclude\[0\] must not be empty/);
+    expect(bad({ recording: { unitFactors: { arb: 1 } } })).toThrow(/^recording /);
+  });
+
+  it('parses how the file was read (units and exclude) with or without a fingerprint', () => {
+    const r = parseRecipe({ ...contract, recording: { units: { '%': 2.5, '': 1 }, exclude: ['Resp'] } });
+    expect(r.recording).toEqual({ units: { '%': 2.5, '': 1 }, exclude: ['Resp'] });
+    expect(parseRecipe({ ...extended, recording: { ...extended.recording, exclude: ['Resp'] } }).recording?.fingerprint).toHaveLength(64);
   });
 });
 
