@@ -9,6 +9,7 @@ import {
   blobSource,
   openEdf,
   parseBidsEvents,
+  readEdfHeader,
   parseCsvSamples,
   sha256Hex,
   toRecording,
@@ -27,6 +28,17 @@ export interface IntakeLocal {
   startDateTime: string | null;
   ignoredSignals: string[];
   warnings: string[];
+  /** EDF: signals left out by the caller's `exclude`, and analysed signals read through one of its `unitFactors`. */
+  excludedSignals: string[];
+  mappedSignals: { signal: string; dimension: string; factor: number }[];
+}
+
+/** How to read an EDF beyond the built-in rules (the recipe's `recording.units` and `recording.exclude`). */
+export interface EdfReading {
+  /** Physical dimension (trimmed) → factor to µV. */
+  unitFactors?: Record<string, number>;
+  /** Signal labels to leave out. */
+  exclude?: string[];
 }
 
 export interface IntakeProblem {
@@ -39,6 +51,8 @@ export interface IntakeProblem {
   signal: string | null;
   row: number | null;
   column: string | null;
+  /** For an unknown physical dimension: the dimension as written (trimmed), so the page can offer to map it. */
+  dimension: string | null;
 }
 
 export type IntakeResult =
@@ -64,10 +78,11 @@ function problemOf(error: unknown, file: IntakeProblem['file']): IntakeProblem {
       signal: error.signal,
       row: error.row,
       column: error.column,
+      dimension: null,
     };
   }
   const message = error instanceof Error ? error.message : String(error);
-  return { file, message, field: null, problem: null, byteOffset: null, signal: null, row: null, column: null };
+  return { file, message, field: null, problem: null, byteOffset: null, signal: null, row: null, column: null, dimension: null };
 }
 
 function done(recording: Recording, local: IntakeLocal, fingerprint: string, fingerprintMethod: 'web-crypto' | 'incremental') {
@@ -93,7 +108,7 @@ async function readText(blob: Blob, hash: Sha256 | null, onProgress: (fraction: 
 }
 
 const api = {
-  async openEdf(file: Blob, onProgress: Progress): Promise<IntakeResult> {
+  async openEdf(file: Blob, reading: EdfReading, onProgress: Progress): Promise<IntakeResult> {
     try {
       const small = file.size <= WEB_CRYPTO_BYTES;
       let fingerprint: string | null = null;
@@ -102,7 +117,12 @@ const api = {
         fingerprint = await sha256Hex(await file.arrayBuffer());
         onProgress('fingerprint', 1);
       }
-      const edf = await openEdf(blobSource(file), { fingerprint: !small, onProgress: (f) => onProgress('reading', f) });
+      const edf = await openEdf(blobSource(file), {
+        fingerprint: !small,
+        unitFactors: reading.unitFactors,
+        exclude: reading.exclude,
+        onProgress: (f) => onProgress('reading', f),
+      });
       const recording = toRecording(edf);
       const s = edf.identifying.start;
       const warnings = [...edf.warnings];
@@ -117,12 +137,23 @@ const api = {
         format: edf.header.variant === 'EDF+C' ? 'edf+c' : edf.header.variant === 'EDF+D' ? 'edf+d' : 'edf',
         identifying: { patient: edf.identifying.patientIdentification, recording: edf.identifying.recordingIdentification },
         startDateTime: s ? `${s.year}-${pad(s.month)}-${pad(s.day)} ${pad(s.hour)}:${pad(s.minute)}:${pad(s.second)}` : null,
-        ignoredSignals: edf.ignored.map((i) => `${i.label} (${i.reason === 'sample-rate' ? `${i.sampleRateHz} Hz` : 'excluded'})`),
+        ignoredSignals: edf.ignored.filter((i) => i.reason === 'sample-rate').map((i) => `${i.label} (${i.sampleRateHz} Hz)`),
         warnings,
+        excludedSignals: edf.ignored.filter((i) => i.reason === 'excluded').map((i) => i.label),
+        mappedSignals: edf.channels
+          .filter((c) => Object.hasOwn(reading.unitFactors ?? {}, c.physicalDimension.trim()))
+          .map((c) => ({ signal: c.label, dimension: c.physicalDimension.trim(), factor: c.microvoltFactor })),
       };
       return done(recording, local, fingerprint ?? edf.fingerprint!, small ? 'web-crypto' : 'incremental');
     } catch (error) {
-      return { ok: false, error: problemOf(error, 'recording') };
+      const problem = problemOf(error, 'recording');
+      if (problem.field === 'physical dimension' && problem.signal !== null) {
+        // The header parsed (the units are checked after it), so read it again for the dimension as written.
+        const header = await readEdfHeader(blobSource(file)).catch(() => null);
+        const signal = header?.header.signals.find((s) => s.label === problem.signal);
+        if (signal) problem.dimension = signal.physicalDimension.trim();
+      }
+      return { ok: false, error: problem };
     }
   },
 
@@ -153,6 +184,8 @@ const api = {
         startDateTime: null,
         ignoredSignals: [],
         warnings,
+        excludedSignals: [],
+        mappedSignals: [],
       };
       return done(recording, local, fingerprint, small ? 'web-crypto' : 'incremental');
     } catch (error) {

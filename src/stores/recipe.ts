@@ -69,6 +69,8 @@ export interface RecipeSource {
   rejection: RejectionSettings;
   /** SHA-256 of the open file; written into the recipe only when it is one (64 hex digits). */
   fingerprint: string | null;
+  /** How the file was read beyond the built-in units (LocalRecordingInfo.reading); written when not empty. */
+  reading?: { unitFactors?: Record<string, number>; exclude?: string[] } | null;
 }
 
 /**
@@ -101,8 +103,19 @@ export function toRecipe(
     aperiodic: { range: [fitRange[0], fitRange[1]], mode: draft.aperiodic.mode },
     conditions: spec.conditions as Record<string, string[]>,
     rejection: spec.rejection as NonNullable<RecipeInput['rejection']>,
-    ...(source.fingerprint !== null && /^[0-9a-f]{64}$/.test(source.fingerprint) ? { recording: { fingerprint: source.fingerprint } } : {}),
+    ...recordingSection(source),
   };
+}
+
+/** The recipe's `recording` extension: the file's fingerprint and how it was read (`units`, `exclude`), when known. */
+function recordingSection(source: RecipeSource): Pick<RecipeInput, 'recording'> {
+  const recording: NonNullable<RecipeInput['recording']> = {};
+  if (source.fingerprint !== null && /^[0-9a-f]{64}$/.test(source.fingerprint)) recording.fingerprint = source.fingerprint;
+  const units = source.reading?.unitFactors ?? {};
+  if (Object.keys(units).length > 0) recording.units = { ...units };
+  const exclude = source.reading?.exclude ?? [];
+  if (exclude.length > 0) recording.exclude = exclude.slice();
+  return Object.keys(recording).length > 0 ? { recording } : {};
 }
 
 /**

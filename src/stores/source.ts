@@ -21,6 +21,11 @@ export interface LocalRecordingInfo {
   startDateTime: string | null;
   ignoredSignals: string[];
   warnings: string[];
+  /** EDF signals the person chose to leave out, and analysed signals read through a unit factor they gave. */
+  excludedSignals?: string[];
+  mappedSignals?: { signal: string; dimension: string; factor: number }[];
+  /** The reading choices the file was opened with; they go into the recipe's `recording.units` / `exclude`. */
+  reading?: { unitFactors?: Record<string, number>; exclude?: string[] };
 }
 
 export interface Condition {

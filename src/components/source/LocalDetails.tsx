@@ -34,6 +34,13 @@ export default function LocalDetails({ recording, local, fingerprint, origin }: 
     `${recording.channelNames.length} channels at ${recording.sampleRateHz} Hz · ${formatSeconds(samples / recording.sampleRateHz)} · ${recording.events.length} events`,
     false,
   ]);
+  const readingChoices = [
+    ...(local.excludedSignals ?? []).map((label) => `${label} left out`),
+    ...(local.mappedSignals ?? []).map((m) => `${m.signal} × ${m.factor} µV (unit ${m.dimension === '' ? 'empty' : `“${m.dimension}”`})`),
+  ];
+  if (readingChoices.length > 0) {
+    rows.push(['Your reading choices', <span data-testid="reading-choices">{readingChoices.join(' · ')}</span>, false]);
+  }
   if (recording.gapSampleIndices?.length) rows.push(['Gaps', `${recording.gapSampleIndices.length} (discontinuous recording)`, false]);
   rows.push(['Fingerprint (SHA-256)', <span className="font-mono text-xs break-all" data-testid="fingerprint">{fingerprint}</span>, false]);
   return (

@@ -27,6 +27,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const setDraft = useRecipeStore((s) => s.setDraft);
   const recording = useSourceStore((s) => s.recording);
   const fingerprint = useSourceStore((s) => s.fingerprint);
+  const reading = useSourceStore((s) => s.local?.reading ?? null);
   const conditions = useSourceStore((s) => s.conditions);
   const epochWindow = useSourceStore((s) => s.epochWindow);
   const decisions = useSourceStore((s) => s.decisions);
@@ -46,7 +47,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const visible = usePanelVisible('Recipe');
 
   const conditionNames = conditions.map((c) => c.name);
-  const recipe = toRecipe(draft, { conditions, tmin: epochWindow.tmin, tmax: epochWindow.tmax, rejection, fingerprint }, { ...baseline, method, scope }, fitRange);
+  const recipe = toRecipe(draft, { conditions, tmin: epochWindow.tmin, tmax: epochWindow.tmax, rejection, fingerprint, reading }, { ...baseline, method, scope }, fitRange);
   // The whole recording goes to the core with the full recipe: prepareRecording applies conditions and rejection there.
   const analysis = recording;
   const recordingId = recording === null ? null : recordingIdOf(recording, fingerprint);

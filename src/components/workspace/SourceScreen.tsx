@@ -12,6 +12,7 @@ import ConditionsPanel from '../source/ConditionsPanel';
 import OverviewTrace from '../source/OverviewTrace';
 import RejectionPanel from '../source/RejectionPanel';
 import SessionPanel from '../source/SessionPanel';
+import UnitChoice, { type UnitDecision } from '../source/UnitChoice';
 import { formatBytes } from '../source/format';
 
 type Origin = 'your file' | 'demo cohort' | 'this browser’s library';
@@ -29,7 +30,24 @@ const PHASES: Record<Busy['phase'], string> = {
   events: 'Reading the events',
 };
 
-function Problem({ fileName, error, onDismiss }: { fileName: string; error: IntakeProblem; onDismiss: () => void }) {
+/** The last open attempt, so a reading choice can open the same file again. */
+interface Attempt {
+  blob: Blob;
+  fileName: string;
+  kind: RecordingKind;
+  from: Origin;
+  events: { blob: Blob; name: string } | null;
+  demoCode?: string;
+}
+
+/** The attempt's reading choices plus one more decision about an unknown unit. */
+function withDecision(kind: RecordingKind & { kind: 'edf' }, decision: UnitDecision): RecordingKind {
+  const exclude = kind.exclude ?? [];
+  if (decision.kind === 'leave-out') return { ...kind, exclude: exclude.includes(decision.signal) ? exclude : [...exclude, decision.signal] };
+  return { ...kind, unitFactors: { ...kind.unitFactors, [decision.dimension]: decision.factor } };
+}
+
+function Problem({ fileName, error, onDismiss, children }: { fileName: string; error: IntakeProblem; onDismiss: () => void; children?: React.ReactNode }) {
   const where: [string, string][] = [];
   if (error.field) where.push(['Field', error.field]);
   if (error.signal) where.push(['Signal', error.signal]);
@@ -53,11 +71,20 @@ function Problem({ fileName, error, onDismiss }: { fileName: string; error: Inta
         </dl>
       )}
       <p className="text-sm">Nothing else changed: the recording you had open and the library are as they were.</p>
+      {children}
       <button type="button" className="btn btn-quiet justify-self-start" onClick={onDismiss}>
         Dismiss
       </button>
     </div>
   );
+}
+
+/** The EDF reading choices worth keeping: only the ones that were made. */
+function readingOf(kind: RecordingKind & { kind: 'edf' }): { unitFactors?: Record<string, number>; exclude?: string[] } | null {
+  const unitFactors = kind.unitFactors && Object.keys(kind.unitFactors).length > 0 ? { ...kind.unitFactors } : undefined;
+  const exclude = kind.exclude && kind.exclude.length > 0 ? kind.exclude.slice() : undefined;
+  if (!unitFactors && !exclude) return null;
+  return { ...(unitFactors ? { unitFactors } : {}), ...(exclude ? { exclude } : {}) };
 }
 
 export default function SourceScreen(props: WorkspaceProps) {
@@ -79,15 +106,17 @@ export default function SourceScreen(props: WorkspaceProps) {
   const [origin, setOrigin] = useState<Origin>('your file');
   const [overviewChannel, setOverviewChannel] = useState('');
   const [selectedEvent, setSelectedEvent] = useState<number | null>(null);
+  const lastAttempt = useRef<Attempt | null>(null);
 
   const refuse = (fileName: string, message: string) =>
-    setProblem({ fileName, error: { file: 'recording', message, problem: message, field: null, byteOffset: null, signal: null, row: null, column: null } });
+    setProblem({ fileName, error: { file: 'recording', message, problem: message, field: null, byteOffset: null, signal: null, row: null, column: null, dimension: null } });
 
   const open = useCallback(
     async (blob: Blob, fileName: string, kind: RecordingKind, from: Origin, events: { blob: Blob; name: string } | null = null, demoCode?: string) => {
       setBusy({ fileName, phase: 'fingerprint', fraction: 0 });
       setLibraryNotice(null);
       setProblem(null);
+      lastAttempt.current = { blob, fileName, kind, from, events, demoCode };
       // Progress arrives on its own message port, so a late report can follow the result: ignore it then.
       let finished = false;
       try {
@@ -108,7 +137,8 @@ export default function SourceScreen(props: WorkspaceProps) {
           ...(events && !isDemo ? [events.name] : []),
           ...(result.local.identifying ? [result.local.identifying.patient, result.local.identifying.recording] : []),
         ]);
-        store().load({ recording: result.recording, local: { ...result.local, fileName }, fingerprint: result.fingerprint });
+        const reading = kind.kind === 'edf' ? readingOf(kind) : null;
+        store().load({ recording: result.recording, local: { ...result.local, fileName, ...(reading ? { reading } : {}) }, fingerprint: result.fingerprint });
         if (demoCode && store().subjectCode.trim() === '') store().set({ subjectCode: demoCode });
         setOrigin(from);
         setOverviewChannel(result.recording.channelNames[0] ?? '');
@@ -120,6 +150,7 @@ export default function SourceScreen(props: WorkspaceProps) {
           openedAt: new Date().toISOString(),
           kind: kind.kind,
           csv: kind.kind === 'csv' ? { sampleRateHz: kind.sampleRateHz, delimiter: kind.delimiter, eventsFileName: events?.name ?? null } : null,
+          edf: reading,
         };
         try {
           await keepInLibrary(entry, blob, events?.blob ?? null);
@@ -158,10 +189,23 @@ export default function SourceScreen(props: WorkspaceProps) {
     const found = await getLibraryFile(entry.fingerprint);
     if (!found) return refuse(entry.fileName, 'it is no longer in this browser’s library.');
     const kind: RecordingKind =
-      entry.kind === 'csv' && entry.csv ? { kind: 'csv', sampleRateHz: entry.csv.sampleRateHz, delimiter: entry.csv.delimiter, events: null } : { kind: 'edf' };
+      entry.kind === 'csv' && entry.csv
+        ? { kind: 'csv', sampleRateHz: entry.csv.sampleRateHz, delimiter: entry.csv.delimiter, events: null }
+        : { kind: 'edf', ...(entry.edf ?? {}) };
     const events = found.events && entry.csv?.eventsFileName ? { blob: found.events, name: entry.csv.eventsFileName } : null;
     await open(found.blob, entry.fileName, kind, 'this browser’s library', events);
   };
+
+  const decideUnit = (decision: UnitDecision) => {
+    const attempt = lastAttempt.current;
+    if (!attempt || attempt.kind.kind !== 'edf') return;
+    void open(attempt.blob, attempt.fileName, withDecision(attempt.kind, decision), attempt.from, attempt.events, attempt.demoCode);
+  };
+  const attempt = lastAttempt.current;
+  const unknownUnit =
+    problem && problem.error.file === 'recording' && problem.error.field === 'physical dimension' && problem.error.signal !== null && problem.error.dimension !== null && attempt?.kind.kind === 'edf'
+      ? { signal: problem.error.signal, dimension: problem.error.dimension }
+      : null;
 
   return (
     <div className="grid gap-6">
@@ -181,7 +225,11 @@ export default function SourceScreen(props: WorkspaceProps) {
               <progress id="intake-progress-bar" max={1} value={busy.phase === 'download' ? undefined : busy.fraction} className="h-2 w-full" />
             </div>
           )}
-          {problem && <Problem fileName={problem.fileName} error={problem.error} onDismiss={() => setProblem(null)} />}
+          {problem && (
+            <Problem fileName={problem.fileName} error={problem.error} onDismiss={() => setProblem(null)}>
+              {unknownUnit && <UnitChoice key={`${unknownUnit.signal}|${unknownUnit.dimension}`} {...unknownUnit} busy={busy !== null} onChoose={decideUnit} />}
+            </Problem>
+          )}
         </section>
         <section className="card grid min-w-0 content-start gap-3" aria-labelledby="source-library">
           <h2 id="source-library" className="text-lg font-semibold">

@@ -1,7 +1,7 @@
 import * as Comlink from 'comlink';
-import type { CsvRequest, IntakePhase, IntakeResult, IntakeWorker } from '../../../workers/intake.worker';
+import type { CsvRequest, EdfReading, IntakePhase, IntakeResult, IntakeWorker } from '../../../workers/intake.worker';
 
-export type { CsvRequest, IntakePhase, IntakeProblem, IntakeResult, IntakeLocal } from '../../../workers/intake.worker';
+export type { CsvRequest, EdfReading, IntakePhase, IntakeProblem, IntakeResult, IntakeLocal } from '../../../workers/intake.worker';
 
 let worker: Comlink.Remote<IntakeWorker> | null = null;
 
@@ -15,13 +15,14 @@ function intakeWorker(): Comlink.Remote<IntakeWorker> {
 
 export type ProgressListener = (phase: IntakePhase, fraction: number) => void;
 
-export type RecordingKind = { kind: 'edf' } | ({ kind: 'csv' } & CsvRequest);
+/** An EDF may carry reading choices: unit factors for dimensions the reader does not know, signals to leave out. */
+export type RecordingKind = ({ kind: 'edf' } & EdfReading) | ({ kind: 'csv' } & CsvRequest);
 
 /** Reads a recording file in the worker; the File is passed by reference and read there through Blob.slice. */
 export function openRecordingFile(file: Blob, kind: RecordingKind, onProgress: ProgressListener): Promise<IntakeResult> {
   const remote = intakeWorker();
   const progress = Comlink.proxy(onProgress);
-  if (kind.kind === 'edf') return remote.openEdf(file, progress);
+  if (kind.kind === 'edf') return remote.openEdf(file, { unitFactors: kind.unitFactors, exclude: kind.exclude }, progress);
   return remote.openCsv(file, { sampleRateHz: kind.sampleRateHz, delimiter: kind.delimiter, events: kind.events }, progress);
 }
 

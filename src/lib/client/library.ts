@@ -13,6 +13,8 @@ export interface LibraryEntry {
   kind: 'edf' | 'csv';
   /** CSV/TSV: how it was read, so it reopens the same way. */
   csv: { sampleRateHz: number; delimiter: ',' | '\t'; eventsFileName: string | null } | null;
+  /** EDF: the reading choices it was opened with (unit factors, signals left out), applied again on reopening. */
+  edf?: { unitFactors?: Record<string, number>; exclude?: string[] } | null;
 }
 
 interface StoredEntry extends LibraryEntry {
