@@ -28,7 +28,21 @@ function draftOf(recipe: Recipe, conditionNames: string[], current: RecipeDraft)
  * against the open recording (`planRecipe`, the same check a run makes). On any problem nothing changes and the
  * outcome names the field.
  */
-export function applyRecipe(input: unknown, recording: Recording, fingerprint: string | null): ApplyOutcome {
+/** The reading choices in words, for comparing a recipe's with the open recording's: `"%" × 2.5 µV; "Resp" left out`. */
+export function describeReading(reading: { unitFactors?: Record<string, number>; exclude?: readonly string[] } | null | undefined): string {
+  const units = Object.entries(reading?.unitFactors ?? {})
+    .sort(([a], [b]) => a.localeCompare(b))
+    .map(([dimension, factor]) => `${JSON.stringify(dimension)} × ${factor} µV`);
+  const out = [...(reading?.exclude ?? [])].sort().map((label) => `${JSON.stringify(label)} left out`);
+  return [...units, ...out].join('; ') || 'the built-in units only';
+}
+
+export function applyRecipe(
+  input: unknown,
+  recording: Recording,
+  fingerprint: string | null,
+  reading: { unitFactors?: Record<string, number>; exclude?: readonly string[] } | null = null,
+): ApplyOutcome {
   let recipe: Recipe;
   try {
     recipe = parseRecipe(input);
@@ -58,6 +72,12 @@ export function applyRecipe(input: unknown, recording: Recording, fingerprint: s
   const notices: string[] = [];
   if (recipe.recording?.fingerprint !== undefined && fingerprint !== null && recipe.recording.fingerprint !== fingerprint) {
     notices.push(`This recipe was made on another recording (SHA-256 ${recipe.recording.fingerprint.slice(0, 12)}…); the open one is ${fingerprint.slice(0, 12)}….`);
+  }
+  // How the file is read is chosen when it is opened (Source screen), not by loading a recipe: say when they differ.
+  const wanted = describeReading({ unitFactors: recipe.recording?.units, exclude: recipe.recording?.exclude });
+  const open = describeReading(reading);
+  if (wanted !== open) {
+    notices.push(`This recipe reads the file with ${wanted}; the open recording was read with ${open}. Open the file again with the recipe's choices to get its numbers.`);
   }
   return { ok: true, notices };
 }

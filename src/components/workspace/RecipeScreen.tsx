@@ -95,7 +95,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
       setLoaded({ ok: false, text: `${file.name} is not valid JSON (${error instanceof Error ? error.message : String(error)}); nothing was changed.` });
       return;
     }
-    const outcome = applyRecipe(json, recording, fingerprint);
+    const outcome = applyRecipe(json, recording, fingerprint, reading);
     if (outcome.ok) setLoaded({ ok: true, text: [`Loaded ${file.name}.`, ...outcome.notices].join(' ') });
     else setLoaded({ ok: false, text: `${file.name}: ${outcome.message}; nothing was changed.` });
   };

@@ -1,0 +1,40 @@
+import { describe, expect, it } from 'vitest';
+import { parseRecipe } from '../../../src/lib/analysis/recipe';
+import { applyRecipe, describeReading } from '../../../src/stores/apply-recipe';
+import { DEFAULT_DRAFT, toRecipe } from '../../../src/stores/recipe';
+import { defaultRejection } from '../../../src/stores/source';
+
+// Scenario of our own: one EEG channel plus a pulse sensor read as µV × 2.5, a breathing belt left out.
+const source = { conditions: [{ name: 'bell', labels: ['bell'] }], tmin: -1, tmax: 2, rejection: defaultRejection };
+const baseline = { start: -0.5, end: -0.2, method: 'db' as const, scope: 'average' as const };
+const fingerprint = 'b'.repeat(64);
+const recording = {
+  sampleRateHz: 100,
+  channelNames: ['Fz', 'Pleth'],
+  data: [Float32Array.from({ length: 2000 }, (_, i) => Math.sin(i / 3)), Float32Array.from({ length: 2000 }, (_, i) => Math.cos(i / 5))],
+  events: [{ onsetSeconds: 5, durationSeconds: 0, label: 'bell' }],
+};
+
+describe('reading choices in the recipe', () => {
+  it('toRecipe writes recording.units and recording.exclude beside the fingerprint, and the schema takes them back', () => {
+    const recipe = toRecipe(DEFAULT_DRAFT, { ...source, fingerprint, reading: { unitFactors: { '%': 2.5 }, exclude: ['Resp'] } }, baseline, [2, 40]);
+    expect(recipe.recording).toEqual({ fingerprint, units: { '%': 2.5 }, exclude: ['Resp'] });
+    expect(parseRecipe(recipe).recording).toEqual({ fingerprint, units: { '%': 2.5 }, exclude: ['Resp'] });
+  });
+
+  it('toRecipe leaves recording out when there is neither a fingerprint nor a choice, and writes no empty fields', () => {
+    expect('recording' in toRecipe(DEFAULT_DRAFT, { ...source, fingerprint: null, reading: { unitFactors: {}, exclude: [] } }, baseline, [2, 40])).toBe(false);
+    expect(toRecipe(DEFAULT_DRAFT, { ...source, fingerprint: null, reading: { exclude: ['Resp'] } }, baseline, [2, 40]).recording).toEqual({ exclude: ['Resp'] });
+  });
+
+  it('loading a recipe that reads the file differently says so, and the same choices say nothing', () => {
+    const recipe = toRecipe(DEFAULT_DRAFT, { ...source, fingerprint, reading: { unitFactors: { '%': 2.5 }, exclude: ['Resp'] } }, baseline, [2, 40]);
+    const same = applyRecipe(recipe, recording, fingerprint, { exclude: ['Resp'], unitFactors: { '%': 2.5 } });
+    expect(same).toEqual({ ok: true, notices: [] });
+    const other = applyRecipe(recipe, recording, fingerprint, { exclude: ['Resp'], unitFactors: { '%': 1 } });
+    expect(other.ok && other.notices).toEqual([
+      'This recipe reads the file with "%" × 2.5 µV; "Resp" left out; the open recording was read with "%" × 1 µV; "Resp" left out. Open the file again with the recipe\'s choices to get its numbers.',
+    ]);
+    expect(describeReading(null)).toBe('the built-in units only');
+  });
+});
