@@ -78,7 +78,7 @@ beforeAll(() => {
   });
   writeFileSync(file('drill.edf'), edfBytes);
   put('plain.json', recipe);
-  put('exclude.json', { ...recipe, recording: { exclude: ['Resp'] } });
+  put('exclude.json', { ...recipe, recording: { exclude: ['Resp', 'Belt'] } });
   put('factor1.json', { ...recipe, recording: { units: { arb: 1 } } });
   put('factor3.json', { ...recipe, recording: { units: { arb: 3 } } });
   put('zero.json', { ...recipe, recording: { units: { arb: 0 } } });
@@ -97,13 +97,14 @@ describe('analyze with a same-rate signal in an unknown unit', () => {
     expect(lines[0]).toContain(`physical dimension of signal "Resp" at byte ${h.dimensionOffset(resp)}: unit "arb"`);
   });
 
-  it('leaves the signal out with recording.exclude', async () => {
+  it('leaves the signal out with recording.exclude, and warns about a label the file does not have', async () => {
     const out = await analyze([file('drill.edf'), '--recipe', file('exclude.json')]);
     expect(out.stderr).toBe('');
     expect(out.code).toBe(0);
     const result = JSON.parse(out.stdout);
     expect(result.channels).toEqual(['C3', 'C4']);
     expect(result.conditions.stroke.trials).toBe(12);
+    expect(result.warnings).toContain('recording.exclude: the file has no signal labelled "Belt"');
   });
 
   it('reads the signal as µV × factor with recording.units, sample by the EDF scaling formula', async () => {
