@@ -2,6 +2,7 @@
 // and integration, against real PostgreSQL and the built app) and the browser tests (playwright-core driving
 // Debian's Chromium). Extra arguments are passed to Vitest as file filters: `npm test -- permissions`.
 import { spawnSync } from 'node:child_process';
+import fs from 'node:fs';
 import path from 'node:path';
 import {
   assertPortFree, claimRunLock, ensureNodeModules, log, migrate, onSignals, requireChromium, root, runMain, seed, serveApp,
@@ -38,16 +39,30 @@ await runMain(async () => {
 
   const testEnv = { ...process.env, ...env, TIDEMARK_APP_URL: appUrl, TIDEMARK_CHROMIUM: chromium };
   const vitest = path.join(root, 'node_modules', 'vitest', 'vitest.mjs');
-  const runVitest = (config, label) => {
+  const counts = { passed: 0, failed: 0, skipped: 0 };
+  const runVitest = (config, label, name) => {
     log(`running ${label}…`);
-    const result = spawnSync(process.execPath, [vitest, 'run', '--config', config, ...(filters.length ? ['--passWithNoTests', ...filters] : [])], { cwd: root, env: testEnv, stdio: 'inherit' });
+    const report = path.join(root, '.tidemark', `vitest-${name}${SLOT ? `-${SLOT}` : ''}.json`);
+    fs.rmSync(report, { force: true });
+    const args = [vitest, 'run', '--config', config, '--reporter=default', '--reporter=json', `--outputFile.json=${report}`];
+    const result = spawnSync(process.execPath, [...args, ...(filters.length ? ['--passWithNoTests', ...filters] : [])], { cwd: root, env: testEnv, stdio: 'inherit' });
+    try {
+      const json = JSON.parse(fs.readFileSync(report, 'utf8'));
+      counts.passed += json.numPassedTests;
+      counts.failed += json.numFailedTests;
+      counts.skipped += json.numPendingTests + json.numTodoTests;
+    } catch {
+      counts.failed += 1; // the runner died before writing its report
+    }
     return result.status ?? 1;
   };
   const pick = (dir) => filters.length === 0 || filters.some((f) => f.includes(dir) || !f.includes('/'));
   let failed = 0;
-  if (pick('tests/unit') || pick('tests/integration')) failed += runVitest('tests/vitest.config.ts', 'unit and integration tests') === 0 ? 0 : 1;
-  if (pick('tests/browser')) failed += runVitest('tests/vitest.browser.config.ts', 'browser tests') === 0 ? 0 : 1;
+  if (pick('tests/unit') || pick('tests/integration')) failed += runVitest('tests/vitest.config.ts', 'unit and integration tests', 'node') === 0 ? 0 : 1;
+  if (pick('tests/browser')) failed += runVitest('tests/vitest.browser.config.ts', 'browser tests', 'browser') === 0 ? 0 : 1;
   await stopAll();
   log(failed === 0 ? 'all test suites passed' : `${failed} test suite(s) failed`);
+  // One plain closing line over both runners, for people and for CI.
+  process.stdout.write(`tests: ${counts.passed} passed, ${counts.failed} failed${counts.skipped ? `, ${counts.skipped} skipped` : ''}\n`);
   process.exit(failed === 0 ? 0 : 1);
 });
