@@ -194,4 +194,16 @@ describe('an analyst’s journey from sign-in to a time-frequency map', () => {
       expect(r.body?.length ?? 0, `${where} body size`).toBeLessThanOrEqual(4096);
     }
   });
+
+  it('moves between the workspace screens with the arrow keys (WAI-ARIA tabs pattern)', async () => {
+    await page.getByRole('tab', { name: 'Maps' }).click();
+    await page.keyboard.press('ArrowRight');
+    expect(await page.getByRole('tab', { name: 'Spectrum' }).getAttribute('aria-selected')).toBe('true');
+    expect(await page.evaluate(() => document.activeElement?.textContent)).toBe('Spectrum');
+    await page.keyboard.press('Home');
+    expect(await page.getByRole('tab', { name: 'Source' }).getAttribute('aria-selected')).toBe('true');
+    await page.keyboard.press('ArrowLeft');
+    expect(await page.getByRole('tab', { name: 'Outbound' }).getAttribute('aria-selected')).toBe('true');
+    expect(await page.getByRole('tabpanel', { name: 'Outbound' }).isVisible()).toBe(true);
+  });
 });

@@ -1,4 +1,4 @@
-import { useState, type ComponentType } from 'react';
+import { useRef, useState, type ComponentType, type KeyboardEvent } from 'react';
 import { screens, type ScreenName, type WorkspaceProps } from './types';
 import SourceScreen from './SourceScreen';
 import RecipeScreen from './RecipeScreen';
@@ -19,16 +19,35 @@ const components: Record<ScreenName, ComponentType<WorkspaceProps>> = {
 /** The analysis workspace: one island, one tab per screen. Screens share state through the zustand stores. */
 export default function Workspace(props: WorkspaceProps) {
   const [active, setActive] = useState<ScreenName>('Source');
+  const tabs = useRef<Record<string, HTMLButtonElement | null>>({});
+  // WAI-ARIA Authoring Practices, tabs pattern: arrows move between tabs, Home/End go to the first/last.
+  const onKeyDown = (event: KeyboardEvent<HTMLDivElement>) => {
+    const i = screens.indexOf(active);
+    const next =
+      event.key === 'ArrowRight' ? screens[(i + 1) % screens.length]
+      : event.key === 'ArrowLeft' ? screens[(i - 1 + screens.length) % screens.length]
+      : event.key === 'Home' ? screens[0]
+      : event.key === 'End' ? screens[screens.length - 1]
+      : null;
+    if (next === null) return;
+    event.preventDefault();
+    setActive(next);
+    tabs.current[next]?.focus();
+  };
   return (
     <div className="mt-4">
-      <div role="tablist" aria-label="Workspace screens" className="flex flex-wrap gap-1 border-b border-shell">
+      <div role="tablist" aria-label="Workspace screens" className="flex flex-wrap gap-1 border-b border-shell" onKeyDown={onKeyDown}>
         {screens.map((name) => (
           <button
             key={name}
             type="button"
             role="tab"
             id={`tab-${name}`}
+            ref={(el) => {
+              tabs.current[name] = el;
+            }}
             aria-selected={active === name}
+            tabIndex={active === name ? 0 : -1}
             aria-controls={`panel-${name}`}
             className={`px-4 py-2 text-sm font-semibold ${active === name ? 'border-b-2 border-kelp text-ink' : 'text-ink-soft hover:text-ink'}`}
             onClick={() => setActive(name)}
