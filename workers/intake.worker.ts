@@ -171,9 +171,7 @@ const api = {
         onProgress('events', 0);
         const seconds = recording.data[0].length / recording.sampleRateHz;
         const parsed = parseBidsEvents(await request.events.text(), { recordingSeconds: seconds });
-        recording.events = parsed.events
-          .map((e) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, label: e.label }))
-          .sort((a, b) => a.onsetSeconds - b.onsetSeconds);
+        recording.events = parsed.events.map((e) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, label: e.label }));
         warnings.push(...parsed.warnings);
         onProgress('events', 1);
       }

@@ -65,13 +65,13 @@ async function readRecipe(path: string): Promise<unknown> {
  * The reader options a recipe asks for (`recording.units`, `recording.exclude`, DEVELOPERS.md "Recipe extensions"),
  * checked before the recording is read; a bad `recording` section is reported like any other recipe field.
  */
-export function readerOptionsOf(recipe: unknown): Pick<LoadOptions, 'unitFactors' | 'exclude'> {
+export function readerOptionsOf(recipe: unknown): Pick<LoadOptions, 'unitFactors' | 'exclude' | 'fingerprint'> {
   const section = typeof recipe === 'object' && recipe !== null ? (recipe as { recording?: unknown }).recording : undefined;
   if (section === undefined) return {};
   const parsed = RecipeSchema.shape.recording.safeParse(section);
   if (!parsed.success) parseRecipe(recipe); // throws AnalysisInputError naming the field
   const recording = parsed.data;
-  return { unitFactors: recording?.units, exclude: recording?.exclude };
+  return { unitFactors: recording?.units, exclude: recording?.exclude, fingerprint: recording?.fingerprint !== undefined };
 }
 
 function oneLine(s: string): string {
@@ -85,7 +85,11 @@ export async function main(argv: string[]): Promise<number> {
     const args = parseArgs(argv);
     recipePath = args.recipe;
     const recipe = await readRecipe(args.recipe);
-    const { recording, warnings } = await loadRecording(args.recording, { eventsPath: args.events, rateHz: args.rate, ...readerOptionsOf(recipe) });
+    const { recording, warnings } = await loadRecording(args.recording, {
+      eventsPath: args.events,
+      rateHz: args.rate,
+      ...readerOptionsOf(recipe),
+    });
     const result = runRecipe(recording, recipe);
     result.warnings.unshift(...warnings);
     const json = JSON.stringify(result);

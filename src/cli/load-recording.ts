@@ -20,6 +20,8 @@ export interface LoadOptions {
   unitFactors?: Readonly<Record<string, number>>;
   /** EDF only: signal labels to leave out (the recipe's `recording.exclude`). */
   exclude?: readonly string[];
+  /** Hash the file (SHA-256) so a recipe's `recording.fingerprint` can be compared; skipped when nothing asks. */
+  fingerprint?: boolean;
 }
 
 export interface LoadedRecording {
@@ -123,6 +125,6 @@ export async function loadRecording(path: string, options: LoadOptions): Promise
     recording.events = [...recording.events, ...parsed.events.map((e) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, label: e.label }))];
   }
   // The browser fingerprints the recording file alone (not a separate events file), so the CLI does the same.
-  recording.fingerprint = await fingerprintFile(path);
+  if (options.fingerprint) recording.fingerprint = await fingerprintFile(path);
   return { recording, warnings };
 }

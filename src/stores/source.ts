@@ -148,7 +148,9 @@ export const useSourceStore = create<SourceState>((set, get) => ({
     return prepareRecording(state.recording, sourceSpec(state)).recording;
   },
   set: (patch) => set(patch),
-  load: ({ recording, local, fingerprint }) => {
+  load: ({ recording: opened, local, fingerprint }) => {
+    // The core compares a recipe's recording.fingerprint with this, in the browser as on the command line.
+    const recording = { ...opened, fingerprint };
     const labels = new Set(recording.events.map((e) => e.label));
     const kept = get()
       .conditions.map((c) => ({ ...c, labels: c.labels.filter((l) => labels.has(l)) }))

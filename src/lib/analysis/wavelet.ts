@@ -177,25 +177,26 @@ function buildWaveletBank(frequencies: Float64Array, sigmas: Float64Array, sampl
     }
     const spectrum = new Float64Array(2 * n);
     getFft(n).transform(spectrum, placed);
-    let peak = 0;
+    // Squared magnitudes: exact IEEE arithmetic, where Math.hypot may differ in the last bit between engines.
+    let peakSquared = 0;
     let peakBin = 0;
     for (let k = 0; k < n; k++) {
-      const a = Math.hypot(spectrum[2 * k], spectrum[2 * k + 1]);
-      if (a > peak) {
-        peak = a;
+      const a = spectrum[2 * k] * spectrum[2 * k] + spectrum[2 * k + 1] * spectrum[2 * k + 1];
+      if (a > peakSquared) {
+        peakSquared = a;
         peakBin = k;
       }
     }
     // the band reaches the farthest bin at or above the floor on either side (sidelobes included, not just the
     // first dip below it)
-    const floor = BAND_FLOOR * peak;
+    const floorSquared = BAND_FLOOR * BAND_FLOOR * peakSquared;
     let below = 0;
     let above = 0;
     for (let k = 0; k < n; k++) {
       let d = k - peakBin;
       if (d > n / 2) d -= n;
       if (d <= -n / 2) d += n;
-      if (Math.hypot(spectrum[2 * k], spectrum[2 * k + 1]) < floor) continue;
+      if (spectrum[2 * k] * spectrum[2 * k] + spectrum[2 * k + 1] * spectrum[2 * k + 1] < floorSquared) continue;
       if (d < 0 && -d > below) below = -d;
       if (d > 0 && d > above) above = d;
     }

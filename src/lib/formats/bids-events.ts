@@ -87,5 +87,8 @@ export function parseBidsEvents(text: string, options: BidsEventsOptions = {}): 
   if (outside.length > 0) {
     warnings.push(`${outside.length} events lie outside the recording (0–${end} s), first at row ${outside[0].row}`);
   }
+  // Events in onset order (a stable sort keeps file order among equal onsets), so every reader of the same file
+  // numbers them alike: event keys in a recipe count from this order.
+  events.sort((a, b) => a.onsetSeconds - b.onsetSeconds);
   return { events, outside, warnings };
 }

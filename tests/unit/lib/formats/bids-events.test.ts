@@ -47,4 +47,11 @@ describe('parseBidsEvents', () => {
     expect(events[0].label).toBe('n/a');
     expect(warnings[0]).toMatch(/no "trial_type" column/);
   });
+
+  it('returns events in onset order, keeping file order among equal onsets', () => {
+    // BIDS does not require rows in time order; every reader must number events alike (recipe event keys).
+    const text = 'onset\tduration\ttrial_type\n5.0\t0\tb\n1.5\t0\ta\n5.0\t0\tc\n0.25\tn/a\td\n';
+    const { events } = parseBidsEvents(text, { recordingSeconds: 10 });
+    expect(events.map((e) => e.label)).toEqual(['d', 'a', 'b', 'c']);
+  });
 });
