@@ -177,7 +177,8 @@ export function prepareRecording(recording: Recording, spec: PrepareSpec): Prepa
       kept: t?.kept ?? 0,
       rejected: (t?.rejected ?? 0) - (t?.outside ?? 0) - (t?.gap ?? 0),
       manualRejects: mine.filter((d) => d.manual === 'reject').length,
-      manualKeeps: mine.filter((d) => d.manual === 'keep').length,
+      // Kept by hand against the rules: a manual keep of an epoch the rules would have kept changes nothing.
+      manualKeeps: mine.filter((d) => d.manual === 'keep' && d.rejectedByRules).length,
       outside: t?.outside ?? 0,
       gap: t?.gap ?? 0,
     };

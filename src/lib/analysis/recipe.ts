@@ -16,6 +16,9 @@ const cycles = z.union(
 );
 
 /** The recipe JSON of the analysis contract ("Recipe (input)"); `spacing` defaults to log, `scope` to average. */
+// Physical dimensions with a fixed factor in the contract (ASCII and Latin-1/UTF-8 micro signs).
+const BUILT_IN_UNITS = new Set(['uv', 'µv', 'μv', 'mv', 'v', 'nv']);
+
 export const RecipeSchema = z
   .object({
     epochs: z
@@ -54,7 +57,7 @@ export const RecipeSchema = z
     aperiodic: z.object({ range, mode: z.enum(['fixed', 'knee']) }).strict(),
     // Extensions of our own (DEVELOPERS.md, "Recipe extensions"); all optional, so a contract recipe parses as is.
     conditions: z
-      .record(z.string(), z.array(z.string().min(1, 'must not be empty')).min(1, 'must list at least one event label'), {
+      .record(z.string().refine((n) => n === n.trim(), 'must not begin or end with spaces'), z.array(z.string().min(1, 'must not be empty')).min(1, 'must list at least one event label'), {
         error: 'must map each condition name to a list of event labels',
       })
       .optional(),
@@ -67,13 +70,29 @@ export const RecipeSchema = z
         overrides: z.record(z.string().regex(EVENT_KEY, 'must be an event key "<index>@<onset seconds>:<label>", e.g. "12@30.25:cue"'), z.enum(['keep', 'reject'])).default({}),
       })
       .strict()
+      .superRefine((r, ctx) => {
+        // A rule set that checks no channel would silently reject nothing; one that names channels it ignores misleads.
+        if (r.scope === 'channel' && (r.channels === undefined || r.channels.length === 0)) {
+          ctx.addIssue({ code: 'custom', path: ['channels'], message: 'must name at least one channel when scope is "channel"' });
+        }
+        if (r.scope === 'any' && r.channels !== undefined && r.channels.length > 0) {
+          ctx.addIssue({ code: 'custom', path: ['channels'], message: 'applies only with scope "channel" (scope "any" checks every channel)' });
+        }
+      })
       .optional(),
     // How the file was read: `units` maps a physical dimension the reader does not know to its factor to µV,
     // `exclude` lists signal labels left out. The core never reads files; the CLI and the browser pass these on.
     recording: z
       .object({
         fingerprint: z.string().regex(/^[0-9a-f]{64}$/, 'must be a SHA-256 in 64 lowercase hex digits').optional(),
-        units: z.record(z.string(), positive, { error: 'must map each physical dimension to a factor to µV' }).optional(),
+        units: z
+          .record(
+            // The built-in units keep their fixed factors (analysis.md, Units), so ordinary µV signals cannot be rescaled by accident.
+            z.string().refine((d) => !BUILT_IN_UNITS.has(d.trim().toLowerCase()), 'is a unit the reader already knows (µV, mV, V, nV); only other units can be mapped'),
+            positive.refine((f) => f <= 1e9, 'must be at most 1e9'),
+            { error: 'must map each physical dimension to a factor to µV' },
+          )
+          .optional(),
         exclude: z.array(z.string().min(1, 'must not be empty')).optional(),
       })
       .strict()

@@ -69,6 +69,13 @@ describe('prepareRecording', () => {
     expect(p.counts[1]).toMatchObject({ kept: 0, rejected: 2, manualRejects: 1 });
   });
 
+  it('counts a manual keep of an epoch the rules already keep as no change', () => {
+    // Event 0 (go at 2 s) passes the rules; keeping it by hand is not "kept against the rules".
+    const p = prepareRecording(recording(), { ...spec, rejection: { ...spec.rejection!, overrides: { '0@2:go': 'keep' } } });
+    expect(p.decisions[0]).toMatchObject({ rejected: false, manual: 'keep', rejectedByRules: false });
+    expect(p.counts[0].manualKeeps).toBe(0);
+  });
+
   it('checks only the named channels with scope "channel" (B’s flat stretch is then not seen)', () => {
     const p = prepareRecording(recording(), { ...spec, rejection: { ...spec.rejection!, scope: 'channel', channels: ['A'] } });
     expect(p.decisions.find((d) => d.eventIndex === 4)!.rejected).toBe(false);

@@ -56,6 +56,18 @@ describe('parseRecipe with the recipe extensions', () => {
     expect(bad({ recording: { unitFactors: { arb: 1 } } })).toThrow(/^recording /);
   });
 
+  it('refuses settings that would be accepted and then silently do nothing or the wrong thing', () => {
+    const bad = (patch: object) => () => parseRecipe({ ...contract, ...patch });
+    // scope "channel" with no channel to check would reject nothing; "any" with channels would ignore them.
+    expect(bad({ rejection: { peakToPeakMicrovolts: 150, flatMicrovolts: null, scope: 'channel' } })).toThrow(/^rejection\.channels must name at least one channel/);
+    expect(bad({ rejection: { peakToPeakMicrovolts: 150, flatMicrovolts: null, scope: 'any', channels: ['Fz'] } })).toThrow(/^rejection\.channels applies only with scope "channel"/);
+    // The contract fixes the µV factors of uV/µV/mV/V/nV; a recipe may map only other units.
+    expect(bad({ recording: { units: { uV: 1000 } } })).toThrow(/^recording\.units\.uV is a unit the reader already knows/);
+    expect(bad({ recording: { units: { arb: 1e12 } } })).toThrow(/^recording\.units\.arb must be at most 1e9/);
+    // A padded condition name would never match the names in epochs.events.
+    expect(bad({ conditions: { 'lamp ': ['cue/left'] } })).toThrow(/must not begin or end with spaces/);
+  });
+
   it('parses how the file was read (units and exclude) with or without a fingerprint', () => {
     const r = parseRecipe({ ...contract, recording: { units: { '%': 2.5, '': 1 }, exclude: ['Resp'] } });
     expect(r.recording).toEqual({ units: { '%': 2.5, '': 1 }, exclude: ['Resp'] });
