@@ -5,9 +5,11 @@
  * on 1–10 % of arguments. The analysis contract wants a browser result reproduced bit for bit on the command
  * line, so the core computes these functions here with IEEE 754 basic operations only (+ − × ÷, exactly rounded
  * everywhere), after the algorithms of fdlibm 5.3 (Sun Microsystems, 1993; e_exp.c, e_log.c, e_log10.c,
- * k_sin.c, k_cos.c, e_rem_pio2.c). Accuracy: under 1 ulp for exp, log, log10, sin and cos (sin/cos for
- * |x| ≤ 2^19·π/2; beyond that the reduction still gives the same bits everywhere but loses accuracy);
- * pow(x, y) = exp(y·log x) for x ≥ 0, relative error ≲ (1 + |y·ln x|)·2^−52.
+ * e_pow.c, k_sin.c, k_cos.c, e_rem_pio2.c). Accuracy: under 1 ulp for exp, log, log10, pow, sin and cos
+ * (measured against 200-bit references in tests/unit/lib/analysis/portable-math.test.ts). sin and cos take
+ * |x| < 1647100 rad (about 2^20·π/2) only, where e_rem_pio2.c's three-piece Cody–Waite reduction is exact; above
+ * that they throw a RangeError instead of carrying fdlibm's multi-precision reduction (__kernel_rem_pio2), which
+ * the analysis never needs: its angles are 2π·k/N and 2π·f·t over one wavelet.
  */
 
 // One scratch double and its two 32-bit halves; the high word holds sign, exponent and the top 20 mantissa bits.
@@ -152,14 +154,193 @@ export function log10(x: number): number {
   return log10Normal(x, hx, 0);
 }
 
-/** x^y for x ≥ 0 (and any x when y is 0): exp(y·log x); NaN for negative x. pow(x, 1) = x and pow(x, 0) = 1 exactly. */
+function lowWord(x: number): number {
+  f64[0] = x;
+  return u32[LO] | 0;
+}
+
+/** x with the low 32 bits of its mantissa cleared (fdlibm's SET_LOW_WORD(x, 0)): a "head" whose products are exact. */
+function head(x: number): number {
+  f64[0] = x;
+  u32[LO] = 0;
+  return f64[0];
+}
+
+const TWO53 = 9007199254740992;
+// e_pow.c: log2 in two pieces on [1, √3/2·2) around 1 or 1.5, then 2^z in two pieces; hex values from the source.
+const DP_H = 5.84962487220764160156e-1; // 0x3FE2B803 40000000, head of log2(1.5)
+const DP_L = 1.35003920212974897128e-8; // 0x3E4CFDEB 43CFD006, its tail
+const L1 = 5.99999999999994648725e-1; // 0x3FE33333 33333303, (3/2)(log x − 2s − 2s³/3) polynomial
+const L2 = 4.28571428578550184252e-1; // 0x3FDB6DB6 DB6FABFF
+const L3 = 3.33333329818377432918e-1; // 0x3FD55555 518F264D
+const L4 = 2.72728123808534006489e-1; // 0x3FD17460 A91D4101
+const L5 = 2.30660745775561754067e-1; // 0x3FCD864A 93C9DB65
+const L6 = 2.06975017800338417784e-1; // 0x3FCA7E28 4A454EEF
+const P1 = 1.66666666666666019037e-1; // 0x3FC55555 5555553E, e^r rational approximation (as in exp)
+const P2 = -2.77777777770155933842e-3; // 0xBF66C16C 16BEBD93
+const P3 = 6.61375632143793436117e-5; // 0x3F11566A AF25DE2C
+const P4 = -1.65339022054652515390e-6; // 0xBEBBBD41 C5D26BF1
+const P5 = 4.13813679705723846039e-8; // 0x3E663769 72BEA4D0
+const POW_LN2 = 6.93147180559945286227e-1; // 0x3FE62E42 FEFA39EF, ln 2
+const POW_LN2_H = 6.93147182464599609375e-1; // 0x3FE62E43 00000000
+const POW_LN2_L = -1.90465429995776804525e-9; // 0xBE205C61 0CA86C39
+const OVT = 8.0085662595372944372e-17; // 0x3C971547 652B82FE, −(1024 − log2(largest double + ½ ulp))
+const CP = 9.61796693925975554329e-1; // 0x3FEEC709 DC3A03FD, 2/(3 ln 2)
+const CP_H = 9.61796700954437255859e-1; // 0x3FEEC709 E0000000
+const CP_L = -7.02846165095275826516e-9; // 0xBE3E2FE0 145B01F5
+const IVLN2 = 1.44269504088896338700e0; // 0x3FF71547 652B82FE, 1/ln 2
+const IVLN2_H = 1.44269502162933349609e0; // 0x3FF71547 60000000
+const IVLN2_L = 1.92596299112661746887e-8; // 0x3E54AE0B F85DDF44
+
+/**
+ * x^y, with the special values of ECMA-262 (2024) §6.1.6.1.3 Number::exponentiate: NaN exponent → NaN (also for
+ * base 1), ±0 exponent → 1, ±0 and ±∞ bases by the sign of y and whether y is an odd integer, |x| = 1 with y = ±∞
+ * → NaN, negative x with non-integer y → NaN, overflow → ±∞, underflow → ±0. Finite cases follow fdlibm 5.3
+ * e_pow.c (Sun Microsystems, 1993): log2|x| = t1 + t2 in double-double, y·log2|x| = n + z with |z| ≤ ½ split in
+ * head and tail, x^y = 2^n·2^z. fdlibm's bound: "nearly rounded", under 0.5 ulp + tiny; pow(integer, integer) is
+ * exact when the result is representable. y = 2 is x·x and y = ½ is the correctly rounded IEEE square root.
+ */
 export function pow(x: number, y: number): number {
+  // ECMA-262 §6.1.6.1.3, steps 1–12
+  if (y !== y) return NaN;
   if (y === 0) return 1;
-  if (y === 1 || x !== x) return x;
-  if (x === 1) return 1;
-  if (x < 0) return NaN;
-  if (x === 0) return y > 0 ? 0 : Infinity;
-  return exp(y * log(x));
+  if (x !== x) return NaN;
+  const yIsInteger = Number.isInteger(y);
+  const yIsOdd = yIsInteger && y % 2 !== 0;
+  if (x === Infinity) return y > 0 ? Infinity : 0;
+  if (x === -Infinity) return y > 0 ? (yIsOdd ? -Infinity : Infinity) : yIsOdd ? -0 : 0;
+  if (x === 0) {
+    if (1 / x > 0) return y > 0 ? 0 : Infinity;
+    return y > 0 ? (yIsOdd ? -0 : 0) : yIsOdd ? -Infinity : Infinity;
+  }
+  const ax = Math.abs(x);
+  if (y === Infinity) return ax > 1 ? Infinity : ax === 1 ? NaN : 0;
+  if (y === -Infinity) return ax > 1 ? 0 : ax === 1 ? NaN : Infinity;
+  if (x < 0 && !yIsInteger) return NaN;
+  // step 13, the approximated value: fdlibm's shortcuts first
+  if (y === 1) return x;
+  if (y === -1) return 1 / x;
+  if (y === 2) return x * x;
+  if (y === 0.5 && x > 0) return Math.sqrt(x);
+  const s = x < 0 && yIsOdd ? -1 : 1; // sign of the result
+  if (ax === 1) return s;
+  return s * powPositive(ax, y);
+}
+
+/** |x|^y for finite, positive, normal-or-subnormal |x| ≠ 1 and finite y ∉ {0, ±1, 2} (e_pow.c from "|y| is huge"). */
+function powPositive(ax: number, y: number): number {
+  const hy = highWord(y);
+  const iy = hy & 0x7fffffff;
+  let ix = highWord(ax);
+  let t1: number;
+  let t2: number;
+  if (iy > 0x41e00000) {
+    // |y| > 2^31: over/underflow unless x is within 2^−20 of 1
+    if (iy > 0x43f00000) {
+      // |y| > 2^64 (an even integer)
+      if (ix <= 0x3fefffff) return hy < 0 ? Infinity : 0;
+      if (ix >= 0x3ff00000) return hy > 0 ? Infinity : 0;
+    }
+    if (ix < 0x3fefffff) return hy < 0 ? Infinity : 0;
+    if (ix > 0x3ff00000) return hy > 0 ? Infinity : 0;
+    // |1 − x| ≤ 2^−20: log(x) = t − t²/2 + t³/3 − t⁴/4, t with 20 trailing zero bits
+    const t = ax - 1;
+    const w = t * t * (0.5 - t * (0.3333333333333333333333 - t * 0.25));
+    const u = IVLN2_H * t; // IVLN2_H has 21 significant bits
+    const v = t * IVLN2_L - w * IVLN2;
+    t1 = head(u + v);
+    t2 = v - (t1 - u);
+  } else {
+    let n = 0;
+    let a = ax;
+    if (ix < 0x00100000) {
+      // subnormal x
+      a *= TWO53;
+      n -= 53;
+      ix = highWord(a);
+    }
+    n += (ix >> 20) - 0x3ff;
+    const j = ix & 0x000fffff;
+    // x = 2^n·a with a in [1, √3/2·2): around bp = 1 when a < √(3/2), around bp = 1.5 when a < √3
+    let k = 0;
+    ix = j | 0x3ff00000;
+    if (j <= 0x3988e) k = 0;
+    else if (j < 0xbb67a) k = 1;
+    else {
+      k = 0;
+      n += 1;
+      ix -= 0x00100000;
+    }
+    a = fromWords(ix, lowWord(a));
+    const bp = k === 0 ? 1 : 1.5;
+    const dpH = k === 0 ? 0 : DP_H;
+    const dpL = k === 0 ? 0 : DP_L;
+    // ss = sH + sL = (a − bp)/(a + bp)
+    const u = a - bp;
+    const v = 1 / (a + bp);
+    const ss = u * v;
+    const sH = head(ss);
+    let tH = fromWords(((ix >> 1) | 0x20000000) + 0x00080000 + (k << 18), 0); // head of a + bp
+    let tL = a - (tH - bp);
+    const sL = v * (u - sH * tH - sH * tL);
+    // log(a/bp) = 2s + (2/3)s³ + s⁵·R(s²), scaled by 3/2
+    let s2 = ss * ss;
+    let r = s2 * s2 * (L1 + s2 * (L2 + s2 * (L3 + s2 * (L4 + s2 * (L5 + s2 * L6)))));
+    r += sL * (sH + ss);
+    s2 = sH * sH;
+    tH = head(3 + s2 + r);
+    tL = r - (tH - 3 - s2);
+    const pu = sH * tH;
+    const pv = sL * tH + tL * ss;
+    const pH = head(pu + pv);
+    const pL = pv - (pH - pu);
+    // log2(x) = n + dpH + zH + zL, with 2/(3 ln 2) = CP_H + CP_L
+    const zH = CP_H * pH;
+    const zL = CP_L * pH + pL * CP + dpL;
+    t1 = head(zH + zL + dpH + n);
+    t2 = zL - (t1 - n - dpH - zH);
+  }
+  // y·log2(x) = (y1 + y2)(t1 + t2) = pH + pL, y1 the head of y
+  const y1 = head(y);
+  const pL = (y - y1) * t1 + y * t2;
+  let pH = y1 * t1;
+  let z = pL + pH;
+  const j = highWord(z);
+  const i = lowWord(z);
+  if (j >= 0x40900000) {
+    // z ≥ 1024
+    if (j !== 0x40900000 || i !== 0) return Infinity;
+    if (pL + OVT > z - pH) return Infinity;
+  } else if ((j & 0x7fffffff) >= 0x4090cc00) {
+    // z ≤ −1075
+    if (j >>> 0 !== 0xc090cc00 || i !== 0) return 0;
+    if (pL <= z - pH) return 0;
+  }
+  // 2^(pH + pL) = 2^n·2^(pH − n + pL), n the nearest integer when |z| > ½
+  const iz = j & 0x7fffffff;
+  let k = (iz >> 20) - 0x3ff;
+  let n = 0;
+  if (iz > 0x3fe00000) {
+    n = j + (0x00100000 >> (k + 1));
+    k = ((n & 0x7fffffff) >> 20) - 0x3ff;
+    const t = fromWords(n & ~(0x000fffff >> k), 0);
+    n = ((n & 0x000fffff) | 0x00100000) >> (20 - k);
+    if (j < 0) n = -n;
+    pH -= t;
+  }
+  let t = head(pL + pH);
+  const u = t * POW_LN2_H;
+  const v = (pL - (t - pH)) * POW_LN2 + t * POW_LN2_L;
+  z = u + v;
+  const w = v - (z - u);
+  t = z * z;
+  const c = z - t * (P1 + t * (P2 + t * (P3 + t * (P4 + t * P5))));
+  const r = (z * c) / (c - 2) - (w + z * w);
+  z = 1 - (r - z);
+  // z·2^n: exact while normal, one rounding when subnormal (as fdlibm's scalbn)
+  if (n > 1023) return z * 2 * pow2(n - 1);
+  if (n >= -1074) return z * pow2(n);
+  return z * pow2(n + 1000) * TWO_M1000;
 }
 
 // sin and cos: reduce x to y = y0 + y1 in [−π/4, π/4] with x = n·π/2 + y, then the kernels below.
@@ -171,6 +352,16 @@ const PIO2_2T = 2.02226624879595063154e-21;
 const PIO2_3 = 2.02226624871116645580e-21; // next 33 bits
 const PIO2_3T = 8.47842766036889956997e-32;
 const reduced = new Float64Array(2);
+
+// Largest high word e_rem_pio2.c reduces with the Cody–Waite branch: |x| < 2^20·π/2, so n < 2^20 and n·PIO2_k is exact.
+const MEDIUM_MAX_HIGH_WORD = 0x413921fb;
+
+/** Refuses |x| ≥ 1647100 rad (high word above 0x413921fb, just over 2^20·π/2), where remPio2 would not be exact. */
+function checkReducible(name: string, x: number, ix: number): void {
+  if (ix > MEDIUM_MAX_HIGH_WORD) {
+    throw new RangeError(`${name}(x): x = ${x} rad is outside |x| < 1647100 (about 2^20·π/2), where the argument reduction is exact`);
+  }
+}
 
 /** Writes y0, y1 into `reduced` and returns n (fdlibm e_rem_pio2.c, the Cody–Waite branch for medium |x|). */
 function remPio2(x: number): number {
@@ -264,10 +455,12 @@ function kernelCos(x: number, y: number): number {
   return a - (hz - (z * r - x * y));
 }
 
-/** Sine of x radians. */
+/** Sine of x radians, |x| < 2^20·π/2 (fdlibm s_sin.c); NaN for ±∞ and NaN; RangeError for larger finite |x|. */
 export function sin(x: number): number {
   if (!Number.isFinite(x)) return NaN;
-  if ((highWord(x) & 0x7fffffff) <= 0x3fe921fb) return kernelSin(x, 0, false);
+  const ix = highWord(x) & 0x7fffffff;
+  if (ix <= 0x3fe921fb) return kernelSin(x, 0, false);
+  checkReducible('sin', x, ix);
   const n = remPio2(x) & 3;
   const y0 = reduced[0];
   const y1 = reduced[1];
@@ -277,10 +470,12 @@ export function sin(x: number): number {
   return -kernelCos(y0, y1);
 }
 
-/** Cosine of x radians. */
+/** Cosine of x radians, |x| < 2^20·π/2 (fdlibm s_cos.c); NaN for ±∞ and NaN; RangeError for larger finite |x|. */
 export function cos(x: number): number {
   if (!Number.isFinite(x)) return NaN;
-  if ((highWord(x) & 0x7fffffff) <= 0x3fe921fb) return kernelCos(x, 0);
+  const ix = highWord(x) & 0x7fffffff;
+  if (ix <= 0x3fe921fb) return kernelCos(x, 0);
+  checkReducible('cos', x, ix);
   const n = remPio2(x) & 3;
   const y0 = reduced[0];
   const y1 = reduced[1];
