@@ -3,15 +3,15 @@
  * engine approximate Math.exp, Math.log, Math.sin… its own way (ECMA-262, "Function Properties of the Math
  * Object": "implementation-approximated"), and they do differ: Node 20 and Chromium 156 disagree in the last bit
  * on 1–10 % of arguments. The analysis contract wants a browser result reproduced bit for bit on the command
- * line, so the core computes these functions here with IEEE 754 basic operations only (+ − × ÷, exactly rounded
- * everywhere), after the algorithms of fdlibm 5.3 (Sun Microsystems, 1993; e_exp.c, e_log.c, e_log10.c,
+ * line, so the core computes these functions here with IEEE 754 basic operations only (+ − × ÷ and √, exactly
+ * rounded everywhere), after the algorithms of fdlibm 5.3 (Sun Microsystems, 1993; e_exp.c, e_log.c, e_log10.c,
  * e_pow.c, k_sin.c, k_cos.c, e_rem_pio2.c; log10 as revised in FreeBSD msun). Accuracy: under 1 ulp for exp,
  * log, log10, pow, sin and cos; largest errors measured against mpmath at 200 bits over 22 000–30 000 arguments
  * each: exp 0.77, log 0.79, log10 0.60, pow 0.81, sin 0.78, cos 0.80 ulp (portable-math.test.ts keeps ~200
- * references per function). sin and cos take
- * |x| < 1647100 rad (about 2^20·π/2) only, where e_rem_pio2.c's three-piece Cody–Waite reduction is exact; above
- * that they throw a RangeError instead of carrying fdlibm's multi-precision reduction (__kernel_rem_pio2), which
- * the analysis never needs: its angles are 2π·k/N and 2π·f·t over one wavelet.
+ * references per function). sin and cos take |x| < 1647100 rad (about 2^20·π/2) only, where e_rem_pio2.c's
+ * three-piece Cody–Waite reduction is exact; above that they throw a RangeError instead of carrying fdlibm's
+ * multi-precision reduction (__kernel_rem_pio2), which the analysis never needs: its angles are 2π·k/N and 2π·f·t
+ * over one wavelet.
  */
 
 // One scratch double and its two 32-bit halves; the high word holds sign, exponent and the top 20 mantissa bits.

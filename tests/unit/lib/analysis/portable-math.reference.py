@@ -89,7 +89,7 @@ def log_args():
     return xs
 
 log_x = log_args()
-log10_x = log_args()
+log10_x = log_args() + [0.9999989942367702, 1.000002084277492]  # where the 1993 e_log10.c was 2 bits off
 
 # sin and cos: tiny to 1.6e6 rad, fft/wavelet-like angles 2πk/N, and doubles nearest to k·π/2 (cancellation)
 def trig_args():
