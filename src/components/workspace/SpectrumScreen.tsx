@@ -18,23 +18,45 @@ import ScalpMap from '../explorer/ScalpMap';
 import { downloadBlob } from '../explorer/download';
 import { usePanelVisible } from '../explorer/usePanelVisible';
 
-const spectraCache = new Map<string, EpochSpectra[]>();
-
-/** Per-epoch Welch spectra of every channel of the decomposition, computed once in the explorer worker. */
-function useEpochSpectra(d: Decomposition | null, visible: boolean): EpochSpectra[] | null {
-  const [spectra, setSpectra] = useState<EpochSpectra[] | null>(null);
+/**
+ * A result the explorer worker computes once per decomposition from copies of its channels' samples (transferred,
+ * not cloned a second time), cached by decomposition key and fetched only while the panel is visible.
+ */
+function useChannelWork<T>(
+  d: Decomposition | null,
+  visible: boolean,
+  cache: Map<string, T>,
+  compute: (d: Decomposition, samples: Float32Array[]) => Promise<T>,
+): T | null {
+  const [value, setValue] = useState<T | null>(null);
   useEffect(() => {
     if (d === null || !visible) return;
-    const cached = spectraCache.get(d.key);
+    const cached = cache.get(d.key);
     if (cached !== undefined) {
-      setSpectra(cached);
+      setValue(cached);
       return;
     }
-    setSpectra(null);
+    setValue(null);
     const recording = useSourceStore.getState().recording;
     if (recording === null) return;
     let live = true;
     const samples = d.channels.map((c) => recording.data[recording.channelNames.indexOf(c)].slice());
+    void compute(d, Comlink.transfer(samples, samples.map((x) => x.buffer))).then((out) => {
+      cache.set(d.key, out);
+      if (live) setValue(out);
+    });
+    return () => {
+      live = false;
+    };
+  }, [d, visible]);
+  return value;
+}
+
+const spectraCache = new Map<string, EpochSpectra[]>();
+
+/** Per-epoch Welch spectra of every channel of the decomposition, computed once in the explorer worker. */
+function useEpochSpectra(d: Decomposition | null, visible: boolean): EpochSpectra[] | null {
+  return useChannelWork(d, visible, spectraCache, (d, samples) => {
     const starts = new Int32Array(d.epochStarts.reduce((n, s) => n + s.length, 0));
     let o = 0;
     for (const s of d.epochStarts) {
@@ -42,18 +64,8 @@ function useEpochSpectra(d: Decomposition | null, visible: boolean): EpochSpectr
       o += s.length;
     }
     const range = d.recipe.spectrum.range as [number, number];
-    // The slices are copies made for the worker: transfer them instead of cloning them a second time.
-    void explorerWorker()
-      .spectra(Comlink.transfer(samples, samples.map((x) => x.buffer)), d.sampleRateHz, starts, d.epochSamples, d.spectrumSegmentSamples, d.spectrumOverlapSamples, range)
-      .then((out) => {
-        spectraCache.set(d.key, out);
-        if (live) setSpectra(out);
-      });
-    return () => {
-      live = false;
-    };
-  }, [d, visible]);
-  return spectra;
+    return explorerWorker().spectra(samples, d.sampleRateHz, starts, d.epochSamples, d.spectrumSegmentSamples, d.spectrumOverlapSamples, range);
+  });
 }
 
 interface RecipeSpectrum {
@@ -68,30 +80,9 @@ const recipeSpectraCache = new Map<string, RecipeSpectrum[]>();
  * recipe's segment and overlap, the same `welchPsd` call `analyzeChannel` makes, so its fit equals the CLI's.
  */
 function useRecipeSpectra(d: Decomposition | null, visible: boolean): RecipeSpectrum[] | null {
-  const [spectra, setSpectra] = useState<RecipeSpectrum[] | null>(null);
-  useEffect(() => {
-    if (d === null || !visible) return;
-    const cached = recipeSpectraCache.get(d.key);
-    if (cached !== undefined) {
-      setSpectra(cached);
-      return;
-    }
-    setSpectra(null);
-    const recording = useSourceStore.getState().recording;
-    if (recording === null) return;
-    let live = true;
-    const samples = d.channels.map((c) => recording.data[recording.channelNames.indexOf(c)].slice());
-    void explorerWorker()
-      .recipeSpectra(Comlink.transfer(samples, samples.map((x) => x.buffer)), d.sampleRateHz, d.spectrumSegmentSamples, d.spectrumOverlapSamples, d.spectrumSpans.slice())
-      .then((out) => {
-        recipeSpectraCache.set(d.key, out);
-        if (live) setSpectra(out);
-      });
-    return () => {
-      live = false;
-    };
-  }, [d, visible]);
-  return spectra;
+  return useChannelWork(d, visible, recipeSpectraCache, (d, samples) =>
+    explorerWorker().recipeSpectra(samples, d.sampleRateHz, d.spectrumSegmentSamples, d.spectrumOverlapSamples, d.spectrumSpans.slice()),
+  );
 }
 
 type Fit = { fit: AperiodicFit; error: null } | { fit: null; error: string };
