@@ -77,4 +77,47 @@ describe('roles and team boundaries on the API', () => {
     expect(page.status).toBe(200);
     expect(await page.text()).toContain(lead.email);
   });
+
+  it('lets an administrator change a member\'s role and remove a member, with audit events; not a lead, not oneself', async () => {
+    const { team } = await createTeam();
+    const admin = await createMember(team.id, 'admin');
+    const lead = await createMember(team.id, 'lead');
+    const reviewer = await createMember(team.id, 'reviewer');
+    const adminClient = new Client();
+    await adminClient.signIn(admin.email, admin.password);
+
+    const changed = await adminClient.post(`/teams/${team.id}/membership`, { intent: 'role', userId: reviewer.user.id, role: 'analyst' });
+    expect(changed.status).toBe(303);
+    expect(decodeURIComponent(changed.headers.get('location')!)).toContain('Role changed from reviewer to analyst.');
+    const { rows: role } = await pool.query('SELECT role FROM memberships WHERE team_id = $1 AND user_id = $2', [team.id, reviewer.user.id]);
+    expect(role[0].role).toBe('analyst');
+    const page = await adminClient.request(changed.headers.get('location')!);
+    expect(await page.text()).toContain('Role changed from reviewer to analyst.');
+
+    // Bad input and one's own row change nothing.
+    const badRole = await adminClient.post(`/teams/${team.id}/membership`, { intent: 'role', userId: lead.user.id, role: 'owner' });
+    expect(decodeURIComponent(badRole.headers.get('location')!)).toContain('problem=');
+    const self = await adminClient.post(`/teams/${team.id}/membership`, { intent: 'remove', userId: admin.user.id });
+    expect(decodeURIComponent(self.headers.get('location')!)).toContain('You cannot change or remove your own membership');
+    const { rows: still } = await pool.query('SELECT role FROM memberships WHERE team_id = $1 ORDER BY role', [team.id]);
+    expect(still.map((r) => r.role)).toEqual(['admin', 'lead', 'analyst']);
+
+    // A lead manages studies and invitations, not memberships.
+    const leadClient = new Client();
+    await leadClient.signIn(lead.email, lead.password);
+    const refused = await leadClient.post(`/teams/${team.id}/membership`, { intent: 'remove', userId: reviewer.user.id });
+    expect(refused.status).toBe(403);
+
+    const removed = await adminClient.post(`/teams/${team.id}/membership`, { intent: 'remove', userId: reviewer.user.id });
+    expect(decodeURIComponent(removed.headers.get('location')!)).toContain('Member removed from the team.');
+    const { rows: gone } = await pool.query('SELECT count(*)::int AS n FROM memberships WHERE team_id = $1 AND user_id = $2', [team.id, reviewer.user.id]);
+    expect(gone[0].n).toBe(0);
+    const { rows: audit } = await pool.query("SELECT action, detail FROM audit_events WHERE team_id = $1 AND action LIKE 'membership.%' ORDER BY id", [team.id]);
+    expect(audit.map((a) => a.action)).toEqual(['membership.role', 'membership.remove']);
+    expect(audit[0].detail).toEqual({ from: 'reviewer', to: 'analyst' });
+    // The removed person no longer sees the team.
+    const former = new Client();
+    await former.signIn(reviewer.email, reviewer.password);
+    expect((await former.request(`/teams/${team.id}`)).status).toBe(404);
+  });
 });

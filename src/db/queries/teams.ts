@@ -84,3 +84,24 @@ const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 export function isUuid(value: string): boolean {
   return UUID.test(value);
 }
+
+/** Sets a member's role in a team (with its audit event); null when the person is not a member. */
+export async function changeMemberRole(teamId: string, userId: string, role: Role, actorId: string): Promise<Role | null> {
+  return db.transaction(async (tx) => {
+    const [before] = await tx.select({ role: memberships.role }).from(memberships).where(and(eq(memberships.teamId, teamId), eq(memberships.userId, userId)));
+    if (!before) return null;
+    await tx.update(memberships).set({ role }).where(and(eq(memberships.teamId, teamId), eq(memberships.userId, userId)));
+    await recordAudit(tx, { actorId, action: 'membership.role', targetTable: 'memberships', targetId: `${teamId}:${userId}`, teamId, detail: { from: before.role, to: role } });
+    return before.role;
+  });
+}
+
+/** Removes a member from a team (with its audit event); false when the person was not a member. */
+export async function removeMember(teamId: string, userId: string, actorId: string): Promise<boolean> {
+  return db.transaction(async (tx) => {
+    const removed = await tx.delete(memberships).where(and(eq(memberships.teamId, teamId), eq(memberships.userId, userId))).returning();
+    if (removed.length === 0) return false;
+    await recordAudit(tx, { actorId, action: 'membership.remove', targetTable: 'memberships', targetId: `${teamId}:${userId}`, teamId, detail: { role: removed[0].role } });
+    return true;
+  });
+}

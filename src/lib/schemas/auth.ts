@@ -24,3 +24,9 @@ export const AcceptInvitationInput = z
   .refine((v) => v.password === v.confirm, { message: 'The two passwords differ.', path: ['confirm'] });
 
 export const InvitationInput = z.object({ email, role: z.enum(roles) });
+
+/** A change to one membership, from the Members page: a new role, or removal from the team. */
+export const MembershipChangeInput = z.discriminatedUnion('intent', [
+  z.object({ intent: z.literal('role'), userId: z.string().min(1).max(64), role: z.enum(roles) }),
+  z.object({ intent: z.literal('remove'), userId: z.string().min(1).max(64) }),
+]);
