@@ -8,7 +8,7 @@ import { artifactsDir, launchBrowser } from '../helpers/browser';
 import { runRecipe, type AnalysisResult } from '../../src/lib/analysis/run-recipe';
 import { loadDemo } from '../../src/components/explorer/test-hooks';
 import { useSourceStore } from '../../src/stores/source';
-import { openWorkspace } from '../helpers/workspace';
+import { openWorkspace, readMapCell, recordProgress, progressSeen } from '../helpers/workspace';
 
 // The demo recording: 60 s of the invented Harbour Lights scenario, three channels, generated from its seed in the
 // page (through the ?testhooks hook) and here in Node, so both sides analyse the same samples.
@@ -18,23 +18,6 @@ let browser: Browser;
 let close: () => Promise<void>;
 let page: Page;
 
-/** The readout's numbers after pointing at the centre of map cell (f, t). */
-async function readCell(fi: number, ti: number) {
-  const canvas = page.getByTestId('map-normalized');
-  const box = (await canvas.boundingBox())!;
-  const attr = async (n: string) => Number(await canvas.getAttribute(n));
-  const [left, top, w, h, nt, nf] = await Promise.all(['data-plot-left', 'data-plot-top', 'data-plot-width', 'data-plot-height', 'data-times', 'data-frequencies'].map(attr));
-  await page.mouse.move(box.x + left + ((ti + 0.5) * w) / nt, box.y + top + ((nf - 1 - fi + 0.5) * h) / nf);
-  const readout = page.getByTestId('map-readout');
-  await page.waitForFunction(() => document.querySelector('[data-testid="map-readout"]')?.getAttribute('data-fresh') === 'yes');
-  return {
-    time: Number(await readout.getAttribute('data-time')),
-    frequency: Number(await readout.getAttribute('data-frequency')),
-    raw: Number(await readout.getAttribute('data-raw')),
-    normalized: Number(await readout.getAttribute('data-normalized')),
-    text: (await readout.textContent()) ?? '',
-  };
-}
 
 /** The recipe as the Maps screen exports it (the current view's baseline, method and scope). */
 async function exportedRecipe() {
@@ -82,21 +65,13 @@ describe('the explorer on a demo recording', () => {
     await page.getByRole('tab', { name: 'Recipe' }).click();
     await page.getByTestId('recipe-fcount').fill('16');
     // Record every progress value the bars show while the run goes.
-    await page.evaluate(() => {
-      const seen: number[] = ((window as unknown as { __fractions: number[] }).__fractions = []);
-      new MutationObserver((records) => {
-        for (const r of records) {
-          const v = (r.target as Element).getAttribute?.('data-fraction');
-          if (v !== null && v !== undefined) seen.push(Number(v));
-        }
-      }).observe(document.body, { subtree: true, attributes: true, attributeFilter: ['data-fraction'], childList: true });
-    });
+    await recordProgress(page);
     await page.getByTestId('recipe-run').click();
     await page.waitForFunction(() => document.querySelector('[data-testid="recipe-status"]')?.getAttribute('data-status') === 'done', undefined, { timeout: 60_000 });
     const bars = page.getByTestId('recipe-progress').getByRole('progressbar');
     expect(await bars.count()).toBe(3);
     for (let i = 0; i < 3; i++) expect(Number(await bars.nth(i).getAttribute('data-fraction'))).toBe(1);
-    const seen = await page.evaluate(() => (window as unknown as { __fractions: number[] }).__fractions);
+    const seen = await progressSeen(page);
     expect(seen.some((f) => f > 0 && f < 1)).toBe(true);
     await page.screenshot({ path: path.join(artifactsDir, 'explorer-recipe.png'), fullPage: true });
   });
@@ -127,7 +102,7 @@ describe('the explorer on a demo recording', () => {
     result = nodeResult(recipe);
     const fi = nearest(result.frequencies, 6);
     const ti = nearest(result.times, 0.4);
-    const before = await readCell(fi, ti);
+    const before = await readMapCell(page, fi, ti);
     expect(before.frequency).toBeCloseTo(result.frequencies[fi], 9);
     expect(before.time).toBeCloseTo(result.times[ti], 9);
     const cond = result.conditions['lamp-watch'];
@@ -144,7 +119,7 @@ describe('the explorer on a demo recording', () => {
     await page.mouse.up();
     await expect.poll(async () => Number(await page.getByTestId('baseline-start').inputValue())).toBeGreaterThan(recipe.baseline.start);
     const start = Number(await page.getByTestId('baseline-start').inputValue());
-    const after = await readCell(fi, ti);
+    const after = await readMapCell(page, fi, ti);
     expect(after.normalized).not.toBeCloseTo(before.normalized, 6);
     const moved = await download('export-recipe');
     recipe = JSON.parse(moved.bytes.toString('utf8'));
@@ -172,7 +147,7 @@ describe('the explorer on a demo recording', () => {
     const cli = JSON.parse(fs.readFileSync(path.join(dir, 'result.json'), 'utf8')) as AnalysisResult;
     const fi = nearest(cli.frequencies, 6);
     const ti = nearest(cli.times, 0.4);
-    const cell = await readCell(fi, ti);
+    const cell = await readMapCell(page, fi, ti);
     expect(cell.normalized).toBeCloseTo(cli.conditions['lamp-watch'].normalized[0][fi][ti], 9);
     fs.rmSync(dir, { recursive: true, force: true });
   });
@@ -213,7 +188,7 @@ describe('the explorer on a demo recording', () => {
     const ti = nearest(result.times, 0.4);
     for (const [method, label, unit] of [['percent', 'percent', '%'], ['zscore', 'z-score', ' z'], ['ratio', 'ratio', '×']] as const) {
       await page.getByText(label, { exact: true }).click();
-      const cell = await readCell(fi, ti);
+      const cell = await readMapCell(page, fi, ti);
       expect(cell.text).toContain(unit);
       const exported = JSON.parse((await download('export-recipe')).bytes.toString('utf8'));
       expect(exported.baseline.method).toBe(method);
@@ -227,7 +202,7 @@ describe('the explorer on a demo recording', () => {
     const fi = nearest(result.frequencies, 20);
     const ti = nearest(result.times, 0.5);
     await page.getByTestId('maps-compare').selectOption('oar-pull');
-    const cell = await readCell(fi, ti);
+    const cell = await readMapCell(page, fi, ti);
     const exported = JSON.parse((await download('export-recipe')).bytes.toString('utf8'));
     const r = nodeResult(exported);
     const expected = r.conditions['lamp-watch'].normalized[0][fi][ti] - r.conditions['oar-pull'].normalized[0][fi][ti];
@@ -242,7 +217,7 @@ describe('the explorer on a demo recording', () => {
     const fi = nearest(result.frequencies, 6);
     const ti = nearest(result.times, 0.4);
     await page.waitForFunction(() => document.querySelector('[data-testid="map-normalized"]') !== null, undefined, { timeout: 30_000 });
-    const cell = await readCell(fi, ti);
+    const cell = await readMapCell(page, fi, ti);
     const exported = JSON.parse((await download('export-recipe')).bytes.toString('utf8'));
     expect(exported.baseline.scope).toBe('trial');
     const r = nodeResult(exported);

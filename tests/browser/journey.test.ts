@@ -10,7 +10,7 @@ import type { Browser, BrowserContext, Page, Request } from 'playwright-core';
 import { artifactsDir, launchBrowser } from '../helpers/browser';
 import { DEMO_PATIENT_FIELD, type CohortParameters } from '../../src/lib/demo/cohort';
 import { frequencyGrid } from '../../src/lib/analysis/frequency-grid';
-import { openWorkspace } from '../helpers/workspace';
+import { openWorkspace, readMapCell, recordProgress, progressSeen } from '../helpers/workspace';
 
 const CHANNELS = ['Fz', 'Cz', 'Pz'];
 
@@ -49,23 +49,6 @@ const nearest = (xs: ArrayLike<number>, v: number) => {
   return best;
 };
 
-/** Points at the centre of normalized-map cell (fi, ti) and returns the readout's numbers and text. */
-async function readCell(fi: number, ti: number) {
-  const canvas = page.getByTestId('map-normalized');
-  const box = (await canvas.boundingBox())!;
-  const attr = async (n: string) => Number(await canvas.getAttribute(n));
-  const [left, top, w, h, nt, nf] = await Promise.all(['data-plot-left', 'data-plot-top', 'data-plot-width', 'data-plot-height', 'data-times', 'data-frequencies'].map(attr));
-  await page.mouse.move(box.x + left + ((ti + 0.5) * w) / nt, box.y + top + ((nf - 1 - fi + 0.5) * h) / nf);
-  await page.waitForFunction(() => document.querySelector('[data-testid="map-readout"]')?.getAttribute('data-fresh') === 'yes');
-  const readout = page.getByTestId('map-readout');
-  await expect.poll(async () => (await readout.textContent()) ?? '').toContain('normalized');
-  return {
-    time: Number(await readout.getAttribute('data-time')),
-    frequency: Number(await readout.getAttribute('data-frequency')),
-    normalized: Number(await readout.getAttribute('data-normalized')),
-    text: (await readout.textContent()) ?? '',
-  };
-}
 
 describe('an analyst’s journey from sign-in to a time-frequency map', () => {
   let fileName = '';
@@ -108,15 +91,7 @@ describe('an analyst’s journey from sign-in to a time-frequency map', () => {
       .poll(() => page.locator('[data-testid^="recipe-channel-"]').evaluateAll((els) => els.filter((e) => (e as HTMLInputElement).checked).length))
       .toBe(3);
 
-    await page.evaluate(() => {
-      const fractions: number[] = ((window as unknown as { __seenFractions: number[] }).__seenFractions = []);
-      new MutationObserver((records) => {
-        for (const r of records) {
-          const v = (r.target as Element).getAttribute?.('data-fraction');
-          if (v !== null && v !== undefined) fractions.push(Number(v));
-        }
-      }).observe(document.body, { subtree: true, attributes: true, attributeFilter: ['data-fraction'], childList: true });
-    });
+    await recordProgress(page);
     await page.getByTestId('recipe-run').click();
     const bars = page.getByTestId('recipe-progress').getByRole('progressbar');
     await bars.first().waitFor();
@@ -126,7 +101,7 @@ describe('an analyst’s journey from sign-in to a time-frequency map', () => {
       expect(Number(await bars.nth(i).getAttribute('data-fraction'))).toBe(1);
       expect(await bars.nth(i).getAttribute('aria-valuenow')).toBe('100');
     }
-    const seenFractions = await page.evaluate(() => (window as unknown as { __seenFractions: number[] }).__seenFractions);
+    const seenFractions = await progressSeen(page);
     expect(seenFractions.some((f) => f > 0 && f < 1)).toBe(true);
   });
 
@@ -158,7 +133,7 @@ describe('an analyst’s journey from sign-in to a time-frequency map', () => {
     expect(peak).toBeLessThanOrEqual(0.6);
     const fi = nearest(frequencies, theta.frequencyHz);
     const ti = nearest(times, peak);
-    const lamp = await readCell(fi, ti);
+    const lamp = await readMapCell(page, fi, ti, { textContains: 'normalized' });
     expect(lamp.time).toBeGreaterThanOrEqual(0.2);
     expect(lamp.time).toBeLessThanOrEqual(0.6);
     expect(Math.abs(lamp.frequency - theta.frequencyHz)).toBeLessThan(0.1 * theta.frequencyHz);
@@ -169,7 +144,7 @@ describe('an analyst’s journey from sign-in to a time-frequency map', () => {
 
     // The same cell after oar-pull cues (no theta burst in the scenario) stays well below it.
     await page.getByTestId('maps-condition').selectOption('oar-pull');
-    const oar = await readCell(fi, ti);
+    const oar = await readMapCell(page, fi, ti, { textContains: 'normalized' });
     expect(oar.frequency).toBe(lamp.frequency);
     expect(oar.normalized).toBeLessThan(lamp.normalized - 1);
   });

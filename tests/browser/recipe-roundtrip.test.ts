@@ -8,7 +8,7 @@ import type { Browser, Page } from 'playwright-core';
 import { artifactsDir, launchBrowser } from '../helpers/browser';
 import { describeCohort, writeSubjectEdf, type SubjectParameters } from '../../src/lib/demo/cohort';
 import type { AnalysisResult } from '../../src/lib/analysis/run-recipe';
-import { openWorkspace, dropFile } from '../helpers/workspace';
+import { openWorkspace, dropFile, readMapCell } from '../helpers/workspace';
 
 // A small recording from the demo generator (the invented Harbour Lights scenario): 1 subject, 60 s, 32 channels,
 // opened in the page by drag and drop and given to the command line as the same file.
@@ -28,17 +28,6 @@ async function download(testId: string): Promise<Buffer> {
   return fs.readFileSync(file);
 }
 
-/** The readout's numbers after pointing at the centre of map cell (f, t) (as in explorer.test.ts). */
-async function readCell(fi: number, ti: number) {
-  const canvas = page.getByTestId('map-normalized');
-  const box = (await canvas.boundingBox())!;
-  const attr = async (n: string) => Number(await canvas.getAttribute(n));
-  const [left, top, w, h, nt, nf] = await Promise.all(['data-plot-left', 'data-plot-top', 'data-plot-width', 'data-plot-height', 'data-times', 'data-frequencies'].map(attr));
-  await page.mouse.move(box.x + left + ((ti + 0.5) * w) / nt, box.y + top + ((nf - 1 - fi + 0.5) * h) / nf);
-  await page.waitForFunction(() => document.querySelector('[data-testid="map-readout"]')?.getAttribute('data-fresh') === 'yes');
-  const readout = page.getByTestId('map-readout');
-  return { frequency: Number(await readout.getAttribute('data-frequency')), time: Number(await readout.getAttribute('data-time')), normalized: Number(await readout.getAttribute('data-normalized')) };
-}
 
 const nearest = (xs: number[], v: number) => xs.reduce((best, x, i) => (Math.abs(x - v) < Math.abs(xs[best] - v) ? i : best), 0);
 
@@ -133,7 +122,7 @@ describe('a recipe exported from the page reproduces the page on the command lin
   it('shows the normalized value the command line computes', async () => {
     const fi = nearest(result.frequencies, 6);
     const ti = nearest(result.times, 0.4);
-    const cell = await readCell(fi, ti);
+    const cell = await readMapCell(page, fi, ti);
     expect(cell.frequency).toBeCloseTo(result.frequencies[fi], 9);
     expect(cell.time).toBeCloseTo(result.times[ti], 9);
     const ci = result.channels.indexOf(await page.getByTestId('maps-channel').inputValue());

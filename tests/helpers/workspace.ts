@@ -39,3 +39,43 @@ export async function dropFile(page: Page, name: string, data: Uint8Array): Prom
     { name, b64: Buffer.from(data).toString('base64') },
   );
 }
+
+/**
+ * Points at the centre of cell (fi, ti) of the normalized map and returns the cursor readout's numbers once it is
+ * fresh; `textContains` also waits for the readout's text to say so.
+ */
+export async function readMapCell(page: Page, fi: number, ti: number, { textContains }: { textContains?: string } = {}) {
+  const canvas = page.getByTestId('map-normalized');
+  const box = (await canvas.boundingBox())!;
+  const attr = async (n: string) => Number(await canvas.getAttribute(n));
+  const [left, top, w, h, nt, nf] = await Promise.all(['data-plot-left', 'data-plot-top', 'data-plot-width', 'data-plot-height', 'data-times', 'data-frequencies'].map(attr));
+  await page.mouse.move(box.x + left + ((ti + 0.5) * w) / nt, box.y + top + ((nf - 1 - fi + 0.5) * h) / nf);
+  await page.waitForFunction(() => document.querySelector('[data-testid="map-readout"]')?.getAttribute('data-fresh') === 'yes');
+  const readout = page.getByTestId('map-readout');
+  if (textContains !== undefined) await page.waitForFunction((t) => (document.querySelector('[data-testid="map-readout"]')?.textContent ?? '').includes(t), textContains);
+  return {
+    time: Number(await readout.getAttribute('data-time')),
+    frequency: Number(await readout.getAttribute('data-frequency')),
+    raw: Number(await readout.getAttribute('data-raw')),
+    normalized: Number(await readout.getAttribute('data-normalized')),
+    text: (await readout.textContent()) ?? '',
+  };
+}
+
+/** Starts recording every value the Recipe screen's progress bars show (their data-fraction attribute). */
+export async function recordProgress(page: Page): Promise<void> {
+  await page.evaluate(() => {
+    const seen: number[] = ((window as unknown as { __tidemarkProgress: number[] }).__tidemarkProgress = []);
+    new MutationObserver((records) => {
+      for (const r of records) {
+        const v = (r.target as Element).getAttribute?.('data-fraction');
+        if (v !== null && v !== undefined) seen.push(Number(v));
+      }
+    }).observe(document.body, { subtree: true, attributes: true, attributeFilter: ['data-fraction'], childList: true });
+  });
+}
+
+/** The progress values seen since recordProgress(). */
+export function progressSeen(page: Page): Promise<number[]> {
+  return page.evaluate(() => (window as unknown as { __tidemarkProgress: number[] }).__tidemarkProgress);
+}
