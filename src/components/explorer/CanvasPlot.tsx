@@ -1,4 +1,5 @@
-import { useEffect, useLayoutEffect, useRef, useState, type ReactNode } from 'react';
+import { useLayoutEffect, useRef, type ReactNode } from 'react';
+import { useElementWidth } from './useElementWidth';
 import { lineLayout, type LineLayout } from '../../lib/plot/line-plot';
 
 export interface CanvasPlotProps {
@@ -15,15 +16,7 @@ export interface CanvasPlotProps {
 export default function CanvasPlot({ height, label, testId, draw, overlay }: CanvasPlotProps) {
   const wrap = useRef<HTMLDivElement>(null);
   const canvas = useRef<HTMLCanvasElement>(null);
-  const [width, setWidth] = useState(0);
-  useEffect(() => {
-    const el = wrap.current;
-    if (el === null) return;
-    const observer = new ResizeObserver(() => setWidth(Math.floor(el.clientWidth)));
-    observer.observe(el);
-    setWidth(Math.floor(el.clientWidth));
-    return () => observer.disconnect();
-  }, []);
+  const width = useElementWidth(wrap);
   const layout = width > 0 ? lineLayout(width, height) : null;
   useLayoutEffect(() => {
     const c = canvas.current;

@@ -1,4 +1,5 @@
 import { useEffect, useLayoutEffect, useRef, useState, type KeyboardEvent, type PointerEvent } from 'react';
+import { useElementWidth } from './useElementWidth';
 import { panelLayout, type PanelLayout } from '../../lib/plot/figure';
 import { paintPanel, panelScales, type PanelSpec } from '../../lib/plot/panel';
 
@@ -46,17 +47,9 @@ export default function MapPanel(props: MapPanelProps) {
   const canvas = useRef<HTMLCanvasElement>(null);
   const reuse = useRef<{ image: ImageData | null }>({ image: null });
   const drag = useRef<Drag | null>(null);
-  const [width, setWidth] = useState(0);
+  const width = useElementWidth(wrap);
   const ratio = usePixelRatio();
 
-  useEffect(() => {
-    const el = wrap.current;
-    if (el === null) return;
-    const observer = new ResizeObserver(() => setWidth(Math.floor(el.clientWidth)));
-    observer.observe(el);
-    setWidth(Math.floor(el.clientWidth));
-    return () => observer.disconnect();
-  }, []);
 
   const layout: PanelLayout | null = width > 0 ? panelLayout(width, height) : null;
 
