@@ -21,9 +21,10 @@ await runMain(async () => {
   await assertPortFree(SMTP_PORT, 'the mail fake');
   const cluster = await startCluster({ name: 'pg-dev', port: PG_PORT });
   cluster.ensureDatabase('tidemark');
-  const databaseUrl = cluster.url('tidemark');
-  migrate(databaseUrl);
-  const seedReport = seed(databaseUrl);
+  const ownerUrl = cluster.url('tidemark');
+  migrate(ownerUrl);
+  const databaseUrl = cluster.appUrl('tidemark');
+  const seedReport = seed(ownerUrl);
   await serveApp({ databaseUrl, appPort: APP_PORT, smtpPort: SMTP_PORT });
   process.stdout.write(`
   Tidemark is running: http://127.0.0.1:${APP_PORT}

@@ -30,14 +30,15 @@ await runMain(async () => {
   await assertPortFree(SMTP_PORT, 'the test mail fake');
   const cluster = await startCluster({ name: SLOT ? `pg-test-${SLOT}` : 'pg-test', port: PG_PORT, fastAndLoose: true });
   cluster.ensureDatabase(DB_NAME, { fresh: true });
-  const databaseUrl = cluster.url(DB_NAME);
-  migrate(databaseUrl);
-  seed(databaseUrl);
+  const ownerUrl = cluster.url(DB_NAME);
+  migrate(ownerUrl);
+  const databaseUrl = cluster.appUrl(DB_NAME);
+  seed(ownerUrl);
   const appUrl = `http://127.0.0.1:${APP_PORT}`;
   const env = await serveApp({ databaseUrl, appPort: APP_PORT, smtpPort: SMTP_PORT });
   log(`test app on ${appUrl}`);
 
-  const testEnv = { ...process.env, ...env, TIDEMARK_APP_URL: appUrl, TIDEMARK_CHROMIUM: chromium };
+  const testEnv = { ...process.env, ...env, TIDEMARK_APP_URL: appUrl, TIDEMARK_CHROMIUM: chromium, TIDEMARK_OWNER_DATABASE_URL: ownerUrl };
   const vitest = path.join(root, 'node_modules', 'vitest', 'vitest.mjs');
   const counts = { passed: 0, failed: 0, skipped: 0 };
   const runVitest = (config, label, name) => {

@@ -2,7 +2,16 @@
 
 declare namespace App {
   interface Locals {
-    user: import('lucia').User | null;
-    session: import('lucia').Session | null;
+    user: import('./lib/server/sessions').SessionUser | null;
+    session: import('./lib/server/sessions').ActiveSession | null;
+    /** Why a session cookie stopped working on this request (idle, absolute, disabled), for the sign-in notice. */
+    sessionEnded?: 'idle' | 'absolute' | 'disabled';
   }
+}
+
+interface ImportMetaEnv {
+  /** true in demo and test builds (TIDEMARK_BUILD=demo): dev mailbox, demo files, test hooks. */
+  readonly TIDEMARK_DEMO: boolean;
+  /** true in every other build: HSTS, no demo routes. */
+  readonly TIDEMARK_PRODUCTION: boolean;
 }

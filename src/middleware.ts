@@ -1,21 +1,42 @@
 import { defineMiddleware } from 'astro:middleware';
-import { blankSessionCookie, lucia, refreshSessionCookie } from './lib/server/auth';
+import { blankSessionCookie, SESSION_COOKIE, writeSessionCookie } from './lib/server/auth';
+import { validateSessionToken } from './lib/server/sessions';
+import { withSecurityHeaders } from './lib/server/security-headers';
+import { crossSiteRefusal } from './lib/server/same-origin';
 
-// Lucia v3's Astro pattern: read the cookie, validate, refresh when fresh, blank when invalid.
+/** The workspace's expiry prompt asks here how long its session has left; asking is not activity. */
+const STATUS_PATH = '/api/session';
+
 export const onRequest = defineMiddleware(async (context, next) => {
-  const sessionId = context.cookies.get(lucia.sessionCookieName)?.value ?? null;
-  if (!sessionId) {
-    context.locals.user = null;
-    context.locals.session = null;
-    return next();
+  context.locals.user = null;
+  context.locals.session = null;
+  const crossSite = crossSiteRefusal(context.request, context.url.origin);
+  if (crossSite) {
+    return withSecurityHeaders(
+      new Response(`Cross-site request refused: ${crossSite}. Nothing was changed.`, { status: 403, headers: { 'content-type': 'text/plain; charset=utf-8' } }),
+    );
   }
-  const { session, user } = await lucia.validateSession(sessionId);
-  if (session && session.fresh) refreshSessionCookie(context.cookies, context.url, session.id);
-  if (!session) blankSessionCookie(context.cookies, context.url);
-  context.locals.session = session;
-  context.locals.user = user;
+  const token = context.cookies.get(SESSION_COOKIE)?.value ?? null;
+  if (token) {
+    const touch = !(context.request.method === 'GET' && context.url.pathname === STATUS_PATH);
+    const found = await validateSessionToken(token, { touch });
+    if (found.state === 'valid') {
+      context.locals.user = found.user;
+      context.locals.session = found.session;
+      if (found.rotatedToken) writeSessionCookie(context.cookies, context.url, found.rotatedToken);
+    } else {
+      if (found.state === 'ended') context.locals.sessionEnded = found.why;
+      blankSessionCookie(context.cookies, context.url);
+    }
+  }
   const response = await next();
   // Pages for signed-in people are private and change as data changes.
-  if (user && !response.headers.has('cache-control')) response.headers.set('cache-control', 'private, no-store');
-  return response;
+  if (context.locals.user && !response.headers.has('cache-control')) {
+    try {
+      response.headers.set('cache-control', 'private, no-store');
+    } catch {
+      /* immutable headers: withSecurityHeaders copies them */
+    }
+  }
+  return withSecurityHeaders(response);
 });

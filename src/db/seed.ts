@@ -10,8 +10,9 @@ import { newUserId } from '../lib/server/auth';
 
 export const DEMO_TEAM = { name: 'Saltmarsh Rhythms Lab', slug: 'saltmarsh' };
 
-export const DEMO_PEOPLE: { email: string; displayName: string; role: Role; password: string }[] = [
-  { email: 'admin@saltmarsh.example', displayName: 'Rowan Quay', role: 'admin', password: 'demo-admin-pass' },
+/** `operator` is the site-administration flag (no team role: the operator is not a member of the demo team). */
+export const DEMO_PEOPLE: { email: string; displayName: string; role: Role | 'operator'; password: string }[] = [
+  { email: 'operator@saltmarsh.example', displayName: 'Rowan Quay', role: 'operator', password: 'demo-operator-pass' },
   { email: 'lead@saltmarsh.example', displayName: 'Maren Holt', role: 'lead', password: 'demo-lead-pass' },
   { email: 'analyst1@saltmarsh.example', displayName: 'Idris Fenn', role: 'analyst', password: 'demo-analyst-pass' },
   { email: 'analyst2@saltmarsh.example', displayName: 'Sol Varga', role: 'analyst', password: 'demo-analyst-pass' },
@@ -45,11 +46,12 @@ export async function seedDemo(db: Db): Promise<{ created: number }> {
       if (!user) {
         [user] = await tx
           .insert(users)
-          .values({ id: newUserId(), email: person.email, displayName: person.displayName, passwordHash: await hashPassword(person.password) })
+          .values({ id: newUserId(), email: person.email, displayName: person.displayName, passwordHash: await hashPassword(person.password), isOperator: person.role === 'operator' })
           .returning();
         created++;
       }
       if (person.role === 'lead') leadId = user.id;
+      if (person.role === 'operator') continue;
       const inserted = await tx.insert(memberships).values({ userId: user.id, teamId: team.id, role: person.role }).onConflictDoNothing().returning();
       created += inserted.length;
     }

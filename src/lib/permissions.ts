@@ -1,9 +1,11 @@
 /**
- * The permission matrix: every page and API route asks `can(role, action)` and nothing else decides who may do
- * what. Roles are per team (a person may lead one team and review for another). Pure and dependency-free, so the
+ * The permission matrix: every page and API route asks `can(role, action)` (team work) or `canSite(user, action)`
+ * (site administration) and nothing else decides who may do what. Team roles are per team (a person may lead one
+ * team and review for another). Site administration is not a team role: it is the `operator` flag on the account,
+ * and an operator sees no team's studies unless also a member of that team. Pure and dependency-free, so the
  * matrix is unit-tested exhaustively.
  */
-export const roles = ['admin', 'lead', 'analyst', 'reviewer'] as const;
+export const roles = ['lead', 'analyst', 'reviewer'] as const;
 export type Role = (typeof roles)[number];
 
 export const actions = [
@@ -21,19 +23,13 @@ export const actions = [
   'analysisSession:return',
   'note:create',
   'audit:view',
-  'site:administer',
 ] as const;
 export type Action = (typeof actions)[number];
 
 const matrix: Record<Role, ReadonlySet<Action>> = {
-  // Site administration: people, memberships, studies; does not analyse or sign off.
-  admin: new Set<Action>([
-    'team:view', 'study:view', 'study:create', 'study:edit', 'member:view', 'member:invite', 'member:manage',
-    'audit:view', 'site:administer',
-  ]),
-  // Manages the team and its studies, invites, reviews and signs off.
+  // Manages the team, its members and its studies, invites, reviews and signs off.
   lead: new Set<Action>([
-    'team:view', 'study:view', 'study:create', 'study:edit', 'member:view', 'member:invite',
+    'team:view', 'study:view', 'study:create', 'study:edit', 'member:view', 'member:invite', 'member:manage',
     'analysisSession:signOff', 'analysisSession:return', 'note:create', 'audit:view',
   ]),
   // Creates and edits own analysis sessions and submits them for review.
@@ -54,9 +50,16 @@ export function can(role: Role | null | undefined, action: Action): boolean {
   return role != null && matrix[role].has(action);
 }
 
-/** Roles a member of `role` may hand out in an invitation. */
+/** Roles a member of `role` may hand out in an invitation or a role change. Operator is never one of them. */
 export function invitableRoles(role: Role | null | undefined): Role[] {
-  if (role === 'admin') return [...roles];
-  if (role === 'lead') return ['lead', 'analyst', 'reviewer'];
+  if (role === 'lead') return [...roles];
   return [];
+}
+
+/** Site-level actions, granted by the operator flag alone (never by a team role). */
+export const siteActions = ['site:users', 'site:teams', 'site:audit', 'site:operators'] as const;
+export type SiteAction = (typeof siteActions)[number];
+
+export function canSite(user: { isOperator: boolean } | null | undefined, _action: SiteAction): boolean {
+  return user?.isOperator === true;
 }

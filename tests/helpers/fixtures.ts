@@ -22,3 +22,13 @@ export async function createMember(teamId: string, role: Role, password = 'fixtu
   await db.insert(memberships).values({ userId: user.id, teamId, role });
   return { user, email, password };
 }
+
+/** A site operator (the account flag), member of no team. */
+export async function createOperator(password = 'fixture-password-1') {
+  const email = `${unique('operator')}@fixture.example`;
+  const [user] = await db
+    .insert(users)
+    .values({ id: newUserId(), email, displayName: 'Fixture operator', passwordHash: await hashPassword(password), isOperator: true })
+    .returning();
+  return { user, email, password };
+}

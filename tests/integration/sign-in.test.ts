@@ -1,8 +1,11 @@
+import { createHash } from 'node:crypto';
 import { afterAll, describe, expect, it } from 'vitest';
 import { Client, pool } from '../helpers/app';
 import { DEMO_PEOPLE } from '../../src/db/seed';
 
 const lead = DEMO_PEOPLE.find((p) => p.role === 'lead')!;
+/** The table keeps SHA-256(cookie token), never the token. */
+const rowId = (token: string) => createHash('sha256').update(token).digest('hex');
 
 afterAll(() => pool.end());
 
@@ -69,7 +72,7 @@ describe('sign-in against the running app and real PostgreSQL', () => {
   it('treats an expired session as signed out and deletes it', async () => {
     const client = new Client();
     await client.signIn(lead.email, lead.password);
-    const sessionId = client.cookies.get('tidemark_session')!;
+    const sessionId = rowId(client.cookies.get('tidemark_session')!);
     expect((await client.request('/api/me')).status).toBe(200);
     await pool.query("UPDATE sessions SET expires_at = now() - interval '1 minute' WHERE id = $1", [sessionId]);
     const after = await client.request('/api/me');
@@ -85,7 +88,7 @@ describe('sign-in against the running app and real PostgreSQL', () => {
   it('signs out: the session row is gone and the cookie blanked', async () => {
     const client = new Client();
     await client.signIn(lead.email, lead.password);
-    const sessionId = client.cookies.get('tidemark_session')!;
+    const sessionId = rowId(client.cookies.get('tidemark_session')!);
     const out = await client.post('/sign-out', {});
     expect(out.status).toBe(303);
     expect(client.cookies.has('tidemark_session')).toBe(false);

@@ -216,7 +216,7 @@ export default function SourceScreen(props: WorkspaceProps) {
           </h2>
           <OpenPanel busy={busy !== null} onOpenEdf={openEdf} onOpenCsv={openCsv} onRefuse={(m) => refuse('That file', m)} />
           <hr className="tide-rule" />
-          <DemoPicker busy={busy !== null} onPick={(s) => void openDemo(s)} />
+          {import.meta.env.TIDEMARK_DEMO && <DemoPicker busy={busy !== null} onPick={(s) => void openDemo(s)} />}
           {busy && (
             <div className="grid gap-1" role="status" data-testid="intake-progress">
               <label htmlFor="intake-progress-bar" className="text-sm">

@@ -60,7 +60,7 @@ export async function lookupInvitation(token: string): Promise<InvitationLookup>
 export async function acceptInvitation(
   token: string,
   input: { displayName: string; password: string },
-): Promise<{ userId: string } | { refused: 'invalid' | 'wrong-password' }> {
+): Promise<{ userId: string; keptRole: Role | null } | { refused: 'invalid' | 'wrong-password' }> {
   const passwordHash = await hashPassword(input.password);
   return db.transaction(async (tx) => {
     const [invitation] = await tx
@@ -83,15 +83,15 @@ export async function acceptInvitation(
       userId = newUserId();
       await tx.insert(users).values({ id: userId, email: invitation.email, displayName: input.displayName, passwordHash });
     }
-    await tx
-      .insert(memberships)
-      .values({ userId, teamId: invitation.teamId, role: invitation.role })
-      .onConflictDoUpdate({ target: [memberships.userId, memberships.teamId], set: { role: invitation.role } });
+    // An invitation never changes an existing member's role: only a lead does, on the Members page.
+    const [current] = await tx.select({ role: memberships.role }).from(memberships)
+      .where(and(eq(memberships.userId, userId), eq(memberships.teamId, invitation.teamId))).limit(1);
+    if (!current) await tx.insert(memberships).values({ userId, teamId: invitation.teamId, role: invitation.role });
     await recordAudit(tx, {
       actorId: userId, action: 'invitation.accept', targetTable: 'invitations', targetId: invitation.id, teamId: invitation.teamId,
-      detail: { role: invitation.role },
+      detail: current ? { role: current.role, invitedAs: invitation.role, keptRole: true } : { role: invitation.role },
     });
-    return { userId };
+    return { userId, keptRole: current ? current.role : null };
   }).catch((error: unknown) => {
     if (error instanceof TransactionRollbackError) return { refused: 'wrong-password' as const };
     throw error;

@@ -1,6 +1,6 @@
 import { and, asc, desc, eq } from 'drizzle-orm';
 import { db } from '../client';
-import { memberships, studies, teams, users, type Study, type Team } from '../schema';
+import { memberships, sessions, studies, teams, users, type Study, type Team } from '../schema';
 import type { Role } from '../../lib/permissions';
 import { recordAudit } from './audit';
 
@@ -91,6 +91,8 @@ export async function changeMemberRole(teamId: string, userId: string, role: Rol
     const [before] = await tx.select({ role: memberships.role }).from(memberships).where(and(eq(memberships.teamId, teamId), eq(memberships.userId, userId)));
     if (!before) return null;
     await tx.update(memberships).set({ role }).where(and(eq(memberships.teamId, teamId), eq(memberships.userId, userId)));
+    // A role change rotates the person's session ids (on their next request), so no id outlives the rights it had.
+    await tx.update(sessions).set({ rotationDue: true }).where(eq(sessions.userId, userId));
     await recordAudit(tx, { actorId, action: 'membership.role', targetTable: 'memberships', targetId: `${teamId}:${userId}`, teamId, detail: { from: before.role, to: role } });
     return before.role;
   });
@@ -101,6 +103,7 @@ export async function removeMember(teamId: string, userId: string, actorId: stri
   return db.transaction(async (tx) => {
     const removed = await tx.delete(memberships).where(and(eq(memberships.teamId, teamId), eq(memberships.userId, userId))).returning();
     if (removed.length === 0) return false;
+    await tx.update(sessions).set({ rotationDue: true }).where(eq(sessions.userId, userId));
     await recordAudit(tx, { actorId, action: 'membership.remove', targetTable: 'memberships', targetId: `${teamId}:${userId}`, teamId, detail: { role: removed[0].role } });
     return true;
   });

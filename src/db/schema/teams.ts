@@ -1,7 +1,7 @@
 import { pgEnum, pgTable, primaryKey, text, timestamp, uuid, index } from 'drizzle-orm/pg-core';
 import { users } from './auth';
 
-export const roleEnum = pgEnum('team_role', ['admin', 'lead', 'analyst', 'reviewer']);
+export const roleEnum = pgEnum('team_role', ['lead', 'analyst', 'reviewer']);
 
 export const teams = pgTable('teams', {
   id: uuid('id').primaryKey().defaultRandom(),

@@ -1,48 +1,51 @@
-import { Lucia, TimeSpan, generateIdFromEntropySize } from 'lucia';
-import { DrizzlePostgreSQLAdapter } from '@lucia-auth/adapter-drizzle';
+import { randomBytes } from 'node:crypto';
 import type { AstroCookies } from 'astro';
-import { db } from '../../db/client';
-import { sessions, users } from '../../db/schema';
 import { cookieIsSecure } from './cookies';
+import { createSession, type ActiveSession } from './sessions';
 
-const adapter = new DrizzlePostgreSQLAdapter(db, sessions, users);
+export const SESSION_COOKIE = 'tidemark_session';
 
-export const SESSION_LIFETIME_DAYS = 14;
-
-export const lucia = new Lucia(adapter, {
-  sessionExpiresIn: new TimeSpan(SESSION_LIFETIME_DAYS, 'd'),
-  sessionCookie: {
-    name: 'tidemark_session',
-    attributes: { sameSite: 'lax' },
-  },
-  getUserAttributes: (attributes) => ({ email: attributes.email, displayName: attributes.displayName }),
-});
-
-declare module 'lucia' {
-  interface Register {
-    Lucia: typeof lucia;
-    DatabaseUserAttributes: { email: string; displayName: string };
-  }
-}
-
-
-function writeCookie(cookies: AstroCookies, url: URL, cookie: ReturnType<typeof lucia.createBlankSessionCookie>) {
-  cookies.set(cookie.name, cookie.value, { ...cookie.attributes, httpOnly: true, sameSite: 'lax', secure: cookieIsSecure(url) });
-}
-
-export async function startSession(cookies: AstroCookies, url: URL, userId: string): Promise<void> {
-  const session = await lucia.createSession(userId, {});
-  writeCookie(cookies, url, lucia.createSessionCookie(session.id));
-}
-
-export function refreshSessionCookie(cookies: AstroCookies, url: URL, sessionId: string): void {
-  writeCookie(cookies, url, lucia.createSessionCookie(sessionId));
+/**
+ * The cookie carries no Max-Age: it lives as long as the browser session at most, and the server's idle and absolute
+ * limits decide validity. HttpOnly, SameSite=Lax, Secure off loopback (see cookies.ts).
+ */
+export function writeSessionCookie(cookies: AstroCookies, url: URL, token: string): void {
+  cookies.set(SESSION_COOKIE, token, { path: '/', httpOnly: true, sameSite: 'lax', secure: cookieIsSecure(url) });
 }
 
 export function blankSessionCookie(cookies: AstroCookies, url: URL): void {
-  writeCookie(cookies, url, lucia.createBlankSessionCookie());
+  cookies.set(SESSION_COOKIE, '', { path: '/', httpOnly: true, sameSite: 'lax', secure: cookieIsSecure(url), maxAge: 0 });
 }
 
+/**
+ * Signs `userId` in with a new session id (rotation on sign-in: any session the browser held before is ended by the
+ * caller through `previous`). Returns the new session.
+ */
+export async function startSession(
+  cookies: AstroCookies,
+  url: URL,
+  userId: string,
+  meta: { userAgent: string; address: string },
+): Promise<ActiveSession> {
+  const { token, session } = await createSession(userId, meta);
+  writeSessionCookie(cookies, url, token);
+  return session;
+}
+
+/** A new user id: 16 lowercase base32 characters (80 random bits). */
 export function newUserId(): string {
-  return generateIdFromEntropySize(10);
+  const bytes = randomBytes(10);
+  const alphabet = 'abcdefghijklmnopqrstuvwxyz234567';
+  let bits = 0;
+  let value = 0;
+  let out = '';
+  for (const byte of bytes) {
+    value = (value << 8) | byte;
+    bits += 8;
+    while (bits >= 5) {
+      out += alphabet[(value >>> (bits - 5)) & 31];
+      bits -= 5;
+    }
+  }
+  return out;
 }

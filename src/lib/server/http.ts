@@ -52,12 +52,46 @@ export function issuesOf(error: z.ZodError): { path: string; message: string }[]
   return error.issues.map((i) => ({ path: i.path.join('.') || '(body)', message: i.message }));
 }
 
-/** Parses a JSON body against a zod schema; 413 when too large, 400 with every issue's path when invalid. */
+/**
+ * Reads a request body as text, refusing it before reading when its declared Content-Length is over `maxBytes` and
+ * counting bytes as they stream in when it declares none (chunked): the read stops at the first byte over the cap.
+ */
+export async function readBodyText(request: Request, maxBytes: number): Promise<string> {
+  const tooLarge = () => new HttpError(413, 'too_large', `The body is larger than ${maxBytes} bytes.`);
+  const declared = request.headers.get('content-length');
+  if (declared !== null && !(Number(declared) <= maxBytes)) throw tooLarge();
+  if (!request.body) return '';
+  const reader = request.body.getReader();
+  const chunks: Uint8Array[] = [];
+  let total = 0;
+  for (;;) {
+    const { done, value } = await reader.read();
+    if (done) break;
+    total += value.byteLength;
+    if (total > maxBytes) {
+      await reader.cancel().catch(() => {});
+      throw tooLarge();
+    }
+    chunks.push(value);
+  }
+  const all = new Uint8Array(total);
+  let at = 0;
+  for (const c of chunks) {
+    all.set(c, at);
+    at += c.byteLength;
+  }
+  try {
+    return new TextDecoder('utf-8', { fatal: true }).decode(all);
+  } catch {
+    throw new HttpError(400, 'bad_encoding', 'The body is not valid UTF-8.');
+  }
+}
+
+/** Parses a JSON body against a zod schema; 413 when too large (before or while reading), 400 with every issue's path when invalid. */
 export async function parseJson<T extends z.ZodType>(request: Request, schema: T, { maxBytes = 65_536 } = {}): Promise<z.infer<T>> {
   const type = request.headers.get('content-type') ?? '';
   if (!type.includes('application/json')) throw new HttpError(415, 'unsupported_media_type', 'Send the body as application/json.');
-  const text = await request.text();
-  if (Buffer.byteLength(text) > maxBytes) throw new HttpError(413, 'too_large', `The body is larger than ${maxBytes} bytes.`);
+  const text = await readBodyText(request, maxBytes);
   let data: unknown;
   try {
     data = JSON.parse(text);
@@ -72,24 +106,31 @@ export async function parseJson<T extends z.ZodType>(request: Request, schema: T
   return parsed.data;
 }
 
-export type FormResult<T> = { ok: true; data: T } | { ok: false; message: string; fields: Record<string, string> };
+export type FormResult<T> = { ok: true; data: T } | { ok: false; message: string; fields: Record<string, string>; status?: number };
 
-/** Reads a form post and validates it; a malformed post (wrong content type, unreadable) is reported, not thrown. */
+/** The largest form post a page accepts (forms here carry a few short fields; no page takes an upload). */
+export const MAX_FORM_BYTES = 16_384;
+
+/**
+ * Reads a urlencoded form post (capped at MAX_FORM_BYTES, counted while streaming) and validates it; a malformed
+ * post (another content type, multipart included, too large, unreadable) is reported, not thrown.
+ */
 export async function readForm<T extends z.ZodType>(request: Request, schema: T): Promise<FormResult<z.infer<T>>> {
   const type = request.headers.get('content-type') ?? '';
-  if (!type.includes('application/x-www-form-urlencoded') && !type.includes('multipart/form-data')) {
+  if (!type.includes('application/x-www-form-urlencoded')) {
     return { ok: false, message: 'The form could not be read (unexpected content type). Nothing was changed.', fields: {} };
   }
-  let form: FormData;
+  let form: URLSearchParams;
   try {
-    form = await request.formData();
-  } catch {
-    return { ok: false, message: 'The form could not be read. Nothing was changed.', fields: {} };
+    form = new URLSearchParams(await readBodyText(request, MAX_FORM_BYTES));
+  } catch (error) {
+    const tooLarge = error instanceof HttpError && error.status === 413;
+    return { ok: false, message: tooLarge ? `The form is larger than ${MAX_FORM_BYTES} bytes. Nothing was changed.` : 'The form could not be read. Nothing was changed.', fields: {}, status: tooLarge ? 413 : 400 };
   }
   const raw: Record<string, string> = {};
   // An absent field reads as empty, so it earns the field's own message ("Enter your password.").
   if ('shape' in schema && schema.shape && typeof schema.shape === 'object') for (const k of Object.keys(schema.shape)) raw[k] = '';
-  for (const [k, v] of form.entries()) if (typeof v === 'string') raw[k] = v;
+  for (const [k, v] of form.entries()) raw[k] = v;
   const parsed = schema.safeParse(raw);
   if (parsed.success) return { ok: true, data: parsed.data };
   const fields: Record<string, string> = {};

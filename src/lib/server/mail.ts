@@ -8,7 +8,7 @@ const transport = nodemailer.createTransport({ host, port, secure: false, ignore
 
 /** true when mail goes to the local fake (the dev mailbox page is shown only then). */
 export function mailFakeActive(): boolean {
-  return process.env.TIDEMARK_MAIL_FAKE === '1';
+  return import.meta.env.TIDEMARK_DEMO === true && process.env.TIDEMARK_MAIL_FAKE === '1';
 }
 
 export async function sendMail(to: string, subject: string, text: string): Promise<void> {

@@ -1,32 +1,24 @@
 /**
- * A fixed-window counter kept in memory, per key. Enough for one app process; counts only what the caller
- * reports (failed sign-ins, reset requests), so normal use never trips it.
- * TODO: Assumes a single server process; several processes would each keep their own counts.
+ * The rate limits, kept in PostgreSQL (src/db/queries/throttles.ts) so they hold across restarts and processes.
+ * Accounts are keyed by the e-mail as typed (lower-cased), so an address without an account is limited and answered
+ * exactly like one with an account. Addresses come from `clientAddress` (src/lib/server/client-address.ts), which
+ * honours forwarded headers only from configured proxies.
  */
-export class RateLimit {
-  private readonly hits = new Map<string, { count: number; resetAt: number }>();
-  constructor(
-    private readonly max: number,
-    private readonly windowSeconds: number,
-  ) {}
+import type { ThrottleRule } from '../../db/queries/throttles';
 
-  /** true when `key` has used up its allowance in the current window. */
-  blocked(key: string, now = Date.now()): boolean {
-    const entry = this.hits.get(key);
-    return entry !== undefined && entry.resetAt > now && entry.count >= this.max;
-  }
+export const limits = {
+  signInAccount: { bucket: 'sign-in:account', max: 10, windowMinutes: 15, lockMinutes: 15 },
+  signInAddress: { bucket: 'sign-in:address', max: 50, windowMinutes: 15, lockMinutes: 15 },
+  resetAccount: { bucket: 'reset:account', max: 3, windowMinutes: 60, lockMinutes: 60 },
+  resetAddress: { bucket: 'reset:address', max: 20, windowMinutes: 60, lockMinutes: 60 },
+  invitationToken: { bucket: 'invitation:token', max: 5, windowMinutes: 60, lockMinutes: 60 },
+  invitationAddress: { bucket: 'invitation:address', max: 30, windowMinutes: 60, lockMinutes: 60 },
+  passwordChangeAccount: { bucket: 'password-change:account', max: 5, windowMinutes: 15, lockMinutes: 15 },
+} as const satisfies Record<string, ThrottleRule>;
 
-  hit(key: string, now = Date.now()): void {
-    const entry = this.hits.get(key);
-    if (!entry || entry.resetAt <= now) this.hits.set(key, { count: 1, resetAt: now + this.windowSeconds * 1000 });
-    else entry.count += 1;
-    if (this.hits.size > 10_000) for (const [k, v] of this.hits) if (v.resetAt <= now) this.hits.delete(k);
-  }
-
-  clear(key: string): void {
-    this.hits.delete(key);
-  }
+/** "Wait 14 minutes" / "Wait 40 seconds": how long, in words, for a refusal. */
+export function waitWords(seconds: number): string {
+  if (seconds < 60) return `${seconds} second${seconds === 1 ? '' : 's'}`;
+  const minutes = Math.ceil(seconds / 60);
+  return `${minutes} minute${minutes === 1 ? '' : 's'}`;
 }
-
-export const signInFailures = new RateLimit(10, 15 * 60);
-export const resetRequests = new RateLimit(5, 15 * 60);

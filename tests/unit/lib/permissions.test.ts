@@ -1,28 +1,27 @@
 import { describe, expect, it } from 'vitest';
-import { actions, can, invitableRoles, roles, type Action, type Role } from '../../../src/lib/permissions';
+import { actions, can, canSite, invitableRoles, roles, siteActions, type Action, type Role } from '../../../src/lib/permissions';
 
-// The expected matrix, written out from the role descriptions of the Foundation issue: admin = site
-// administration; lead = manages the team and its studies, invites, signs off; analyst = creates and edits own
-// analysis sessions; reviewer = reads and leaves notes. Every cell is listed, so a change to the matrix must
+// The expected matrix, written out from the role descriptions of the Foundation and deployment issues: lead =
+// manages the team, its members and studies, invites, signs off; analyst = creates and edits own analysis
+// sessions; reviewer = reads and leaves notes. Site administration is the operator flag, not a team role. Every cell is listed, so a change to the matrix must
 // change this table too.
 const Y = true;
 const N = false;
 const expected: Record<Action, Record<Role, boolean>> = {
-  'team:view':               { admin: Y, lead: Y, analyst: Y, reviewer: Y },
-  'study:view':              { admin: Y, lead: Y, analyst: Y, reviewer: Y },
-  'study:create':            { admin: Y, lead: Y, analyst: N, reviewer: N },
-  'study:edit':              { admin: Y, lead: Y, analyst: N, reviewer: N },
-  'member:view':             { admin: Y, lead: Y, analyst: Y, reviewer: Y },
-  'member:invite':           { admin: Y, lead: Y, analyst: N, reviewer: N },
-  'member:manage':           { admin: Y, lead: N, analyst: N, reviewer: N },
-  'analysisSession:create':  { admin: N, lead: N, analyst: Y, reviewer: N },
-  'analysisSession:editOwn': { admin: N, lead: N, analyst: Y, reviewer: N },
-  'analysisSession:submit':  { admin: N, lead: N, analyst: Y, reviewer: N },
-  'analysisSession:signOff': { admin: N, lead: Y, analyst: N, reviewer: N },
-  'analysisSession:return':  { admin: N, lead: Y, analyst: N, reviewer: N },
-  'note:create':             { admin: N, lead: Y, analyst: Y, reviewer: Y },
-  'audit:view':              { admin: Y, lead: Y, analyst: N, reviewer: N },
-  'site:administer':         { admin: Y, lead: N, analyst: N, reviewer: N },
+  'team:view':               { lead: Y, analyst: Y, reviewer: Y },
+  'study:view':              { lead: Y, analyst: Y, reviewer: Y },
+  'study:create':            { lead: Y, analyst: N, reviewer: N },
+  'study:edit':              { lead: Y, analyst: N, reviewer: N },
+  'member:view':             { lead: Y, analyst: Y, reviewer: Y },
+  'member:invite':           { lead: Y, analyst: N, reviewer: N },
+  'member:manage':           { lead: Y, analyst: N, reviewer: N },
+  'analysisSession:create':  { lead: N, analyst: Y, reviewer: N },
+  'analysisSession:editOwn': { lead: N, analyst: Y, reviewer: N },
+  'analysisSession:submit':  { lead: N, analyst: Y, reviewer: N },
+  'analysisSession:signOff': { lead: Y, analyst: N, reviewer: N },
+  'analysisSession:return':  { lead: Y, analyst: N, reviewer: N },
+  'note:create':             { lead: Y, analyst: Y, reviewer: Y },
+  'audit:view':              { lead: Y, analyst: N, reviewer: N },
 };
 
 describe('permission matrix', () => {
@@ -45,10 +44,18 @@ describe('permission matrix', () => {
     }
   });
 
-  it('lets a lead invite leads, analysts and reviewers but not administrators', () => {
+  it('lets a lead hand out the three team roles and nothing else', () => {
     expect(invitableRoles('lead')).toEqual(['lead', 'analyst', 'reviewer']);
-    expect(invitableRoles('admin')).toEqual(['admin', 'lead', 'analyst', 'reviewer']);
+    expect(roles).toEqual(['lead', 'analyst', 'reviewer']);
     expect(invitableRoles('analyst')).toEqual([]);
     expect(invitableRoles('reviewer')).toEqual([]);
+  });
+
+  it('grants site actions to the operator flag only, whatever the team role', () => {
+    for (const action of siteActions) {
+      expect(canSite({ isOperator: true }, action)).toBe(true);
+      expect(canSite({ isOperator: false }, action)).toBe(false);
+      expect(canSite(null, action)).toBe(false);
+    }
   });
 });

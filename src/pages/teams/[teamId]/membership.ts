@@ -18,7 +18,7 @@ export const POST: APIRoute = async (ctx) => {
   const form = await readForm(request, MembershipChangeInput);
   if (!form.ok) return back(`problem=${encodeURIComponent(form.message)}`);
   if (form.data.userId === locals.user.id) {
-    return back(`problem=${encodeURIComponent('You cannot change or remove your own membership; ask another administrator.')}`);
+    return back(`problem=${encodeURIComponent('You cannot change or remove your own membership; ask another lead of the team.')}`);
   }
   if (form.data.intent === 'role') {
     const before = await changeMemberRole(found.team.id, form.data.userId, form.data.role, locals.user.id);

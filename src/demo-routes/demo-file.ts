@@ -4,7 +4,7 @@
 import fs from 'node:fs/promises';
 import path from 'node:path';
 import type { APIRoute } from 'astro';
-import { json, requireUser, route } from '../../lib/server/http';
+import { json, requireUser, route } from '../lib/server/http';
 
 const DEMO_DIR = path.resolve(process.cwd(), 'demo-data');
 const SAFE_NAME = /^[a-z0-9][a-z0-9-]{0,80}\.(edf|json)$/;

@@ -1,0 +1,69 @@
+// Serves the built app (dist/ or TIDEMARK_OUT_DIR) over Node's http module. Used by `npm start`, `npm test` and
+// `npm run serve`. Before Astro sees a request this wrapper: resolves the client address (server/forwarded.mjs) and
+// hands it to the app in one header; strips forwarded headers a client sent itself; refuses a body whose declared
+// Content-Length is over the cap (413, before reading it). On SIGTERM/SIGINT it stops accepting, lets requests in
+// flight finish (up to 10 s) and exits.
+import http from 'node:http';
+import path from 'node:path';
+import { pathToFileURL } from 'node:url';
+import { CLIENT_HEADER, FORWARDED_HEADERS, normalizeAddress, parseTrustedProxies, resolveClientAddress } from './forwarded.mjs';
+
+const root = path.resolve(path.dirname(new URL(import.meta.url).pathname), '..');
+const outDir = path.resolve(root, process.env.TIDEMARK_OUT_DIR ?? 'dist');
+const host = process.env.HOST ?? '127.0.0.1';
+const port = Number(process.env.PORT ?? 4321);
+/** The largest body any route accepts (routes cap lower: forms 16 KiB, JSON 64 KiB unless they say otherwise). */
+export const MAX_BODY_BYTES = Number(process.env.TIDEMARK_MAX_BODY_BYTES ?? 1_048_576);
+
+let trusted;
+try {
+  trusted = parseTrustedProxies(process.env.TIDEMARK_TRUSTED_PROXIES ?? '');
+} catch (error) {
+  process.stderr.write(`tidemark: ${error.message}\n`);
+  process.exit(1);
+}
+
+process.env.ASTRO_NODE_AUTOSTART = 'disabled';
+const { handler } = await import(pathToFileURL(path.join(outDir, 'server', 'entry.mjs')).href);
+
+function refuse(res, status, message) {
+  res.writeHead(status, { 'content-type': 'text/plain; charset=utf-8', connection: 'close', 'x-content-type-options': 'nosniff' });
+  res.end(message);
+}
+
+const server = http.createServer((req, res) => {
+  const peer = normalizeAddress(req.socket.remoteAddress);
+  const client = resolveClientAddress(peer, req.headers['x-forwarded-for'], trusted);
+  if (!trusted.has(peer)) for (const name of FORWARDED_HEADERS) delete req.headers[name];
+  delete req.headers[CLIENT_HEADER];
+  req.headers[CLIENT_HEADER] = client;
+  // Astro reads the first X-Forwarded-For value for its own clientAddress: make it agree with ours.
+  req.headers['x-forwarded-for'] = client;
+  const declared = req.headers['content-length'];
+  if (declared !== undefined && !(Number(declared) <= MAX_BODY_BYTES)) {
+    refuse(res, 413, `The request body is larger than ${MAX_BODY_BYTES} bytes.`);
+    req.resume();
+    return;
+  }
+  handler(req, res);
+});
+server.requestTimeout = 60_000;
+server.headersTimeout = 20_000;
+server.keepAliveTimeout = 5_000;
+
+server.listen(port, host, () => {
+  process.stdout.write(`tidemark: Server listening on http://${host}:${port}\n`);
+});
+
+let closing = false;
+function shutdown(signal) {
+  if (closing) return;
+  closing = true;
+  process.stdout.write(`tidemark: ${signal}: finishing requests in flight, then stopping\n`);
+  const force = setTimeout(() => process.exit(0), 10_000);
+  force.unref();
+  server.close(() => process.exit(0));
+  server.closeIdleConnections();
+}
+process.on('SIGTERM', () => shutdown('SIGTERM'));
+process.on('SIGINT', () => shutdown('SIGINT'));
