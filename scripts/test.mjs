@@ -50,7 +50,8 @@ await runMain(async () => {
     try {
       const json = JSON.parse(fs.readFileSync(report, 'utf8'));
       counts.passed += json.numPassedTests;
-      counts.failed += json.numFailedTests;
+      // A suite whose hooks failed has no failed test of its own: count it, so the closing line never says 0 falsely.
+      counts.failed += json.numFailedTests + json.testResults.filter((r) => r.status === 'failed' && r.assertionResults.every((a) => a.status !== 'failed')).length;
       counts.skipped += json.numPendingTests + json.numTodoTests;
     } catch {
       counts.failed += 1; // the runner died before writing its report

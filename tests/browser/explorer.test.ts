@@ -85,7 +85,8 @@ describe('the explorer on a demo recording', () => {
     await page.getByTestId('recipe-fmax').fill(fmax);
     await page.getByTestId('recipe-fcount').fill('60');
     await page.getByTestId('recipe-run').click();
-    await page.getByTestId('recipe-cancel').click();
+    // The button re-renders with each progress report; dispatching the click does not wait for it to hold still.
+    await page.getByTestId('recipe-cancel').dispatchEvent('click');
     await page.waitForFunction(() => document.querySelector('[data-testid="recipe-status"]')?.getAttribute('data-status') === 'cancelled');
     await page.getByTestId('recipe-fcount').fill('16');
     expect(await page.getByTestId('recipe-run').textContent()).toContain('Shown on Maps');

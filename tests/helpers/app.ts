@@ -11,9 +11,12 @@ export class Client {
   cookies = new Map<string, string>();
   lastSetCookie: string[] = [];
 
+  /** `base`: another instance of the app (tests/helpers/instance.ts), else the one npm test serves. */
+  constructor(readonly base = appUrl) {}
+
   async request(path: string, init: RequestInit & { form?: Record<string, string>; json?: unknown } = {}): Promise<Response> {
     const headers = new Headers(init.headers);
-    headers.set('origin', headers.get('origin') ?? appUrl);
+    headers.set('origin', headers.get('origin') ?? this.base);
     if (this.cookies.size) headers.set('cookie', [...this.cookies].map(([k, v]) => `${k}=${v}`).join('; '));
     let body = init.body;
     if (init.form) {
@@ -23,7 +26,7 @@ export class Client {
       headers.set('content-type', 'application/json');
       body = JSON.stringify(init.json);
     }
-    const response = await fetch(appUrl + path, { ...init, headers, body, redirect: 'manual' });
+    const response = await fetch(this.base + path, { ...init, headers, body, redirect: 'manual' });
     this.lastSetCookie = response.headers.getSetCookie();
     for (const line of this.lastSetCookie) {
       const [pair] = line.split(';');

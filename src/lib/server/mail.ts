@@ -4,7 +4,11 @@ const host = process.env.SMTP_HOST ?? '127.0.0.1';
 const port = Number(process.env.SMTP_PORT ?? 2525);
 const from = process.env.MAIL_FROM ?? 'Tidemark <no-reply@tidemark.invalid>';
 
-const transport = nodemailer.createTransport({ host, port, secure: false, ignoreTLS: true });
+// A deployment names its relay in TIDEMARK_SMTP_URL (smtp:// or smtps://, checked by `npm run serve`); the local demo
+// talks to the mail fake on loopback.
+const transport = process.env.TIDEMARK_SMTP_URL
+  ? nodemailer.createTransport(process.env.TIDEMARK_SMTP_URL)
+  : nodemailer.createTransport({ host, port, secure: false, ignoreTLS: true });
 
 /** true when mail goes to the local fake (the dev mailbox page is shown only then). */
 export function mailFakeActive(): boolean {
