@@ -47,6 +47,7 @@ await runMain(async () => {
     fs.rmSync(report, { force: true });
     const args = [vitest, 'run', '--config', config, '--reporter=default', '--reporter=json', `--outputFile.json=${report}`];
     const result = spawnSync(process.execPath, [...args, ...(filters.length ? ['--passWithNoTests', ...filters] : [])], { cwd: root, env: testEnv, stdio: 'inherit' });
+    const before = counts.failed;
     try {
       const json = JSON.parse(fs.readFileSync(report, 'utf8'));
       counts.passed += json.numPassedTests;
@@ -56,6 +57,8 @@ await runMain(async () => {
     } catch {
       counts.failed += 1; // the runner died before writing its report
     }
+    // Errors outside any test (an unhandled rejection, say) fail the run: count one, so the line never reads 0.
+    if (result.status !== 0 && counts.failed === before) counts.failed += 1;
     return result.status ?? 1;
   };
   const pick = (dir) => filters.length === 0 || filters.some((f) => f.includes(dir) || !f.includes('/'));

@@ -5,6 +5,7 @@ import http from 'node:http';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Client, appUrl, pool, unique } from '../helpers/app';
 import { createMember, createTeam } from '../helpers/fixtures';
+import { createInvitation } from '../../src/db/queries/invitations';
 import { startInstance, type Instance } from '../helpers/instance';
 
 let proxied: Instance;
@@ -128,6 +129,31 @@ describe('rate limits kept in PostgreSQL', () => {
     }
     expect(statuses).toEqual([200, 200, 200, 429]);
     expect(text).toMatch(/Too many reset requests\. Wait (59|60) minutes/);
+  });
+});
+
+describe('invitation attempts are limited per token', () => {
+  it('locks an invitation after five wrong current passwords of the existing account, even from new addresses, and keeps its role untouched', async () => {
+    const home = await createTeam();
+    const other = await createTeam();
+    const member = await createMember(home.team.id, 'reviewer');
+    const lead = await createMember(other.team.id, 'lead');
+    const { token } = await createInvitation(other.team.id, lead.user.id, { email: member.email, role: 'analyst' });
+    const statuses: number[] = [];
+    for (let i = 0; i < 6; i++) {
+      const r = await behindProxy(`203.0.113.${120 + i}`).request(`/invitations/${token}`, {
+        method: 'POST',
+        form: { displayName: 'Someone', password: `not-the-password-${i}`, confirm: `not-the-password-${i}` },
+      });
+      statuses.push(r.status);
+      if (i === 5) expect(await r.text()).toMatch(/Too many attempts with this invitation\. Wait (59|60) minutes/);
+    }
+    expect(statuses).toEqual([400, 400, 400, 400, 400, 429]);
+    // Even the right password waits now; nothing was joined.
+    const right = await behindProxy('203.0.113.130').request(`/invitations/${token}`, { method: 'POST', form: { displayName: 'x', password: member.password, confirm: member.password } });
+    expect(right.status).toBe(429);
+    const { rows } = await pool.query('SELECT count(*)::int AS n FROM memberships WHERE user_id = $1 AND team_id = $2', [member.user.id, other.team.id]);
+    expect(rows[0].n).toBe(0);
   });
 });
 

@@ -13,6 +13,8 @@ const scratchUrl = (() => {
   return u.toString();
 })();
 const admin = new pg.Pool({ connectionString: ownerUrl, max: 1 });
+// Dropping the scratch database ends its connections: an idle client's farewell is expected, not an error.
+admin.on('error', () => {});
 let scratch: pg.Pool;
 const env = { PATH: process.env.PATH, HOME: process.env.HOME, DATABASE_URL: scratchUrl, TIDEMARK_ORIGIN: 'https://tidemark.example.org' };
 
@@ -22,6 +24,7 @@ beforeAll(async () => {
   const migrated = await runToEnd('scripts/migrate.mjs', { PATH: process.env.PATH, TIDEMARK_OWNER_DATABASE_URL: scratchUrl });
   expect(migrated.code, migrated.output).toBe(0);
   scratch = new pg.Pool({ connectionString: scratchUrl, max: 1 });
+  scratch.on('error', () => {});
 }, 60_000);
 afterAll(async () => {
   await scratch?.end();
