@@ -1,13 +1,26 @@
 import { defineMiddleware } from 'astro:middleware';
+import type { APIContext, MiddlewareNext } from 'astro';
 import { blankSessionCookie, SESSION_COOKIE, writeSessionCookie } from './lib/server/auth';
 import { validateSessionToken } from './lib/server/sessions';
 import { withSecurityHeaders } from './lib/server/security-headers';
 import { crossSiteRefusal } from './lib/server/same-origin';
+import { databaseUnavailable } from './lib/server/unavailable';
+import { isDatabaseUnavailable } from './db/client';
 
 /** The workspace's expiry prompt asks here how long its session has left; asking is not activity. */
 const STATUS_PATH = '/api/session';
 
 export const onRequest = defineMiddleware(async (context, next) => {
+  try {
+    return await handle(context, next);
+  } catch (error) {
+    if (!isDatabaseUnavailable(error)) throw error;
+    console.error(`[tidemark] ${context.request.method} ${context.url.pathname}: database unavailable`);
+    return withSecurityHeaders(databaseUnavailable(context.url));
+  }
+});
+
+async function handle(context: APIContext, next: MiddlewareNext): Promise<Response> {
   context.locals.user = null;
   context.locals.session = null;
   const crossSite = crossSiteRefusal(context.request, context.url.origin);
@@ -39,4 +52,4 @@ export const onRequest = defineMiddleware(async (context, next) => {
     }
   }
   return withSecurityHeaders(response);
-});
+}

@@ -7,7 +7,40 @@ if (!url) {
   throw new Error('DATABASE_URL is not set: start the app with `npm start`, which starts PostgreSQL and sets it.');
 }
 
-/** The one connection pool of the process. */
-export const pool = new pg.Pool({ connectionString: url, max: 10 });
+/**
+ * The one connection pool of the process. Bounded waits everywhere: a connection attempt gives up after 5 s, a
+ * statement after 15 s (server side, `statement_timeout`), a transaction left idle after 30 s. An idle connection the
+ * server drops (a restart, a failover) is reported and replaced, never fatal: without the `error` listener node-postgres
+ * would throw it as an uncaught exception and end the process.
+ */
+export const pool = new pg.Pool({
+  connectionString: url,
+  max: 10,
+  connectionTimeoutMillis: 5_000,
+  idleTimeoutMillis: 30_000,
+  statement_timeout: 15_000,
+  idle_in_transaction_session_timeout: 30_000,
+});
+pool.on('error', (error) => {
+  console.error(`[tidemark] database connection lost while idle (${(error as { code?: string }).code ?? error.message}); it will be replaced`);
+});
 export const db = drizzle(pool, { schema });
 export type Db = typeof db;
+
+const UNAVAILABLE_CODES = new Set([
+  'ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EPIPE', 'ENOTFOUND', 'EHOSTUNREACH',
+  '57P01', // admin_shutdown
+  '57P02', // crash_shutdown
+  '57P03', // cannot_connect_now (starting up, shutting down)
+  '08000', '08001', '08003', '08004', '08006', // connection exceptions (PostgreSQL Appendix A, class 08)
+  '53300', // too_many_connections
+]);
+
+/** true when `error` (or its cause) says the database cannot be reached right now, rather than that a query is wrong. */
+export function isDatabaseUnavailable(error: unknown): boolean {
+  for (let e = error as { code?: string; message?: string; cause?: unknown } | undefined, depth = 0; e && depth < 5; e = e.cause as typeof e, depth++) {
+    if (e.code && UNAVAILABLE_CODES.has(e.code)) return true;
+    if (typeof e.message === 'string' && /Connection terminated|timeout exceeded when trying to connect|Connection ended unexpectedly/i.test(e.message)) return true;
+  }
+  return false;
+}

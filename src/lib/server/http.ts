@@ -1,6 +1,7 @@
 import type { APIContext } from 'astro';
 import type { z } from 'zod';
 import { can, type Action, type Role } from '../permissions';
+import { isDatabaseUnavailable } from '../../db/client';
 
 export interface ErrorBody {
   error: { code: string; message: string; issues?: { path: string; message: string }[] };
@@ -30,6 +31,8 @@ export async function route(ctx: APIContext, handler: (ctx: APIContext) => Promi
       const body: ErrorBody = { error: { code: error.code, message: error.message, ...(error.issues ? { issues: error.issues } : {}) } };
       return json(body, error.status);
     }
+    // The middleware answers these for every route alike (503 with Retry-After).
+    if (isDatabaseUnavailable(error)) throw error;
     console.error(`[tidemark] ${ctx.request.method} ${ctx.url.pathname}:`, error);
     return json({ error: { code: 'internal', message: 'Something went wrong on the server; nothing was changed.' } }, 500);
   }

@@ -1,0 +1,95 @@
+// The app against a PostgreSQL cluster of its own that the test stops and starts (a real server restart, not a
+// simulated socket error): API routes answer 503 with Retry-After, pages say the local work is safe, the process
+// never exits, and it recovers by itself. Acknowledged writes made around a restart are stored exactly once.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import pg from 'pg';
+import { Client } from '../helpers/app';
+import { runToEnd, startInstance, type Instance } from '../helpers/instance';
+// @ts-expect-error: a plain .mjs module without types (the lifecycle scripts run before node_modules exists)
+import { APP_DB_ROLE, startCluster } from '../../scripts/lib/bootstrap.mjs';
+
+const slot = Number(process.env.TIDEMARK_TEST_SLOT ?? 0);
+const PORT = 54369 + slot;
+const DB = 'tidemark_faults';
+type Cluster = { url: (db: string) => string; appUrl: (db: string) => string; ensureDatabase: (db: string, o?: { fresh?: boolean }) => void; stop: () => void };
+let cluster: Cluster;
+let app: Instance;
+let owner: pg.Pool;
+const start = async (): Promise<Cluster> => startCluster({ name: `pg-faults${slot ? `-${slot}` : ''}`, port: PORT, fastAndLoose: true });
+
+beforeAll(async () => {
+  cluster = await start();
+  cluster.ensureDatabase(DB, { fresh: true });
+  const env = { PATH: process.env.PATH, HOME: process.env.HOME };
+  const migrated = await runToEnd('scripts/migrate.mjs', { ...env, TIDEMARK_OWNER_DATABASE_URL: cluster.url(DB), TIDEMARK_APP_DB_ROLE: APP_DB_ROLE });
+  expect(migrated.code, migrated.output).toBe(0);
+  const seeded = await runToEnd('scripts/seed.ts', { ...env, DATABASE_URL: cluster.url(DB) });
+  expect(seeded.code, seeded.output).toBe(0);
+  app = await startInstance({ DATABASE_URL: cluster.appUrl(DB) });
+  owner = new pg.Pool({ connectionString: cluster.url(DB), max: 1 });
+  owner.on('error', () => {});
+}, 120_000);
+
+afterAll(async () => {
+  await owner?.end().catch(() => {});
+  await app?.stop();
+  cluster?.stop();
+});
+
+async function signedInAnalyst(): Promise<{ client: Client; studyId: string }> {
+  const client = new Client(app.url);
+  expect((await client.signIn('analyst1@saltmarsh.example', 'demo-analyst-pass')).status).toBe(302);
+  const me = await (await client.request('/api/me')).json();
+  const studies = await (await client.request(`/api/teams/${me.teams[0].id}/studies`)).json();
+  return { client, studyId: studies.studies.find((s: { name: string }) => s.name === 'Harbour-bell anticipation').id };
+}
+
+describe('PostgreSQL stopped and started under the app', () => {
+  it('answers 503 with Retry-After while the database is down, shows a safe-work page, and recovers by itself', async () => {
+    const { client } = await signedInAnalyst();
+    cluster.stop();
+    const api = await client.request('/api/me');
+    expect(api.status).toBe(503);
+    expect(api.headers.get('retry-after')).toBe('5');
+    expect((await api.json()).error.code).toBe('database_unavailable');
+    const page = await client.request('/');
+    expect(page.status).toBe(503);
+    expect(await page.text()).toContain('Your local work is safe');
+    expect(page.headers.get('content-security-policy')).toContain("default-src 'self'");
+    expect(app.child.exitCode).toBeNull();
+
+    cluster = await start();
+    let status = 0;
+    for (let i = 0; i < 50 && status !== 200; i++) {
+      status = (await client.request('/api/me')).status;
+      if (status !== 200) await new Promise((r) => setTimeout(r, 200));
+    }
+    expect(status).toBe(200);
+    expect(app.child.exitCode).toBeNull();
+  }, 90_000);
+
+  it('keeps every acknowledged write exactly once across a restart in the middle of a stream of writes', async () => {
+    const { client, studyId } = await signedInAnalyst();
+    const acknowledged: string[] = [];
+    const refused: number[] = [];
+    let restarted = false;
+    for (let i = 0; i < 40; i++) {
+      if (i === 15) {
+        cluster.stop();
+        cluster = await start();
+        restarted = true;
+      }
+      const code = `FLT-${slot}-${Date.now().toString(36)}-${i}`;
+      const r = await client.request(`/api/studies/${studyId}/analysis-sessions`, { method: 'POST', json: { subjectCode: code } });
+      if (r.status === 201) acknowledged.push(code);
+      else refused.push(r.status);
+    }
+    expect(restarted).toBe(true);
+    expect(refused.every((s) => s === 503)).toBe(true);
+    expect(acknowledged.length).toBeGreaterThan(20);
+    const { rows } = await owner.query('SELECT subject_code, count(*)::int AS n FROM analysis_sessions WHERE subject_code = ANY($1) GROUP BY subject_code', [acknowledged]);
+    expect(rows.length).toBe(acknowledged.length);
+    expect(rows.every((r) => r.n === 1)).toBe(true);
+    expect(app.child.exitCode).toBeNull();
+  }, 90_000);
+});
