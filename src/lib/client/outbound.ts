@@ -4,7 +4,9 @@
  * the recording was sent.
  *
  * Caution: `guardAgainst` registers strings that must never leave the device (a recording's file name and header
- * identification); a request whose path or body contains one is refused before it is sent.
+ * identification); a request whose path or body contains one, in any case or Unicode form, is refused before it is
+ * sent. This is the visible log and a guard against our own mistakes; what stops any other script on the page from
+ * sending data elsewhere is the Content-Security-Policy (src/lib/server/security-headers.ts).
  */
 export interface OutboundEntry {
   id: number;
@@ -50,27 +52,54 @@ export function outboundLog(): readonly OutboundEntry[] {
 // recording field's fixed keyword, not identifying.
 const NOT_IDENTIFYING = new Set(['startdate']);
 
+const DEFAULT_IGNORABLE = /\p{Default_Ignorable_Code_Point}/gu;
+
+/**
+ * The form in which guarded strings and outgoing text are compared: Unicode's NFKC_Casefold mapping — default
+ * ignorable code points removed (zero-width space and joiners, soft hyphen, word joiner, BOM, variation selectors),
+ * compatibility normalization NFKC (Unicode Standard Annex #15), full case folding (Unicode Standard §3.13), NFKC
+ * again. So "ＡＮＮ", "ann", "A\u200Bnn" and "Ａnn" all match a guarded "Ann", and "STRASSE" matches "Straße".
+ * JavaScript has no case-folding function: upper- then lower-casing gives the same equivalence classes for the
+ * full folding (ß → ss, ς → σ, ſ → s, ﬁ → fi); it also joins a few pairs folding keeps apart (dotless ı with i),
+ * which can only refuse more, never send more. Lower-casing's one context rule (a word-final sigma) is undone.
+ */
+export function foldForMatching(text: string): string {
+  return text
+    .replace(DEFAULT_IGNORABLE, '')
+    .normalize('NFKC')
+    .toUpperCase()
+    .toLowerCase()
+    // toLowerCase writes a word-final sigma as ς (SpecialCasing's Final_Sigma); case folding maps ς to σ.
+    .replace(/ς/g, 'σ')
+    .normalize('NFKC')
+    .replace(DEFAULT_IGNORABLE, '');
+}
+
 /**
  * Strings that no request may carry, grouped under `owner` so they can be replaced: each value whole, its JSON-escaped
  * form, and each of its space- or underscore-separated parts of at least 4 characters (a hospital code or a birth
- * date inside an EDF+ patient field is identifying on its own).
+ * date inside an EDF+ patient field is identifying on its own). They are kept folded (`foldForMatching`) and
+ * matched against the folded request, so case, full-width forms, ligatures and zero-width characters do not hide them.
  */
 export function guardAgainst(owner: string, values: readonly string[]): void {
   const set = new Set<string>();
   const add = (v: string) => {
-    const t = v.trim();
-    if (t.length >= 4 && !NOT_IDENTIFYING.has(t.toLowerCase())) set.add(t);
+    const t = foldForMatching(v).trim();
+    if ([...t].length >= 4 && !NOT_IDENTIFYING.has(t)) set.add(t);
   };
   for (const value of values) {
     add(value);
     add(JSON.stringify(value.trim()).slice(1, -1));
     for (const part of value.split(/[\s_]+/)) add(part);
+    // Folding can join or split words (a zero-width space between two names, a full-width space): split after it too.
+    for (const part of foldForMatching(value).split(/[\s_]+/)) add(part);
   }
   guarded.set(owner, set);
 }
 
 function carriesGuarded(text: string): boolean {
-  for (const set of guarded.values()) for (const v of set) if (text.includes(v)) return true;
+  const folded = foldForMatching(text);
+  for (const set of guarded.values()) for (const v of set) if (folded.includes(v)) return true;
   return false;
 }
 
