@@ -1,4 +1,4 @@
-import { z } from 'zod';
+import { z } from './zod';
 import { AnalysisInputError } from './errors';
 import { EVENT_KEY } from './event-key';
 

@@ -1,4 +1,4 @@
-import { z } from 'zod';
+import { z } from '../analysis/zod';
 import { MIN_PASSWORD_LENGTH } from '../constants';
 import { roles } from '../permissions';
 

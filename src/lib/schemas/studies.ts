@@ -1,4 +1,4 @@
-import { z } from 'zod';
+import { z } from '../analysis/zod';
 
 export const StudyInput = z.object({
   name: z.string().trim().min(1, 'Give the study a name.').max(120, 'Use at most 120 characters.'),
