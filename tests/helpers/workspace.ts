@@ -7,14 +7,28 @@ import { appUrl } from './browser';
 
 export const DEMO_STUDY = 'Harbour-bell anticipation';
 
-/** Signs in as the first demo person with `role` and opens the workspace of the demo study (`query` e.g. '?testhooks'). */
-export async function openWorkspace(page: Page, role: Role = 'analyst', query = ''): Promise<void> {
-  const person = DEMO_PEOPLE.find((p) => p.role === role)!;
+/** The `nth` (from 0) demo person with `role`: the demo team has two analysts. */
+export function demoPerson(role: Role = 'analyst', nth = 0) {
+  const person = DEMO_PEOPLE.filter((p) => p.role === role)[nth];
+  if (!person) throw new Error(`The demo has no person number ${nth} with role ${role}.`);
+  return person;
+}
+
+/** Signs in through the sign-in page as a demo person; ends on their team's page. */
+export async function signInAs(page: Page, person: { email: string; password: string }): Promise<void> {
   await page.goto(`${appUrl}/sign-in`);
   await page.getByLabel('E-mail').fill(person.email);
   await page.getByLabel('Password').fill(person.password);
   await page.getByRole('button', { name: 'Sign in' }).click();
   await page.waitForURL(/\/teams\/[0-9a-f-]+$/);
+}
+
+/**
+ * Signs in as the first demo person with `role` (or the `nth`) and opens the workspace of the demo study (`query`
+ * e.g. '?testhooks').
+ */
+export async function openWorkspace(page: Page, role: Role = 'analyst', query = '', { nth = 0 }: { nth?: number } = {}): Promise<void> {
+  await signInAs(page, demoPerson(role, nth));
   await page.getByTestId('study-list').getByRole('link', { name: DEMO_STUDY }).click();
   await page.getByRole('link', { name: 'Open the workspace' }).click();
   await page.waitForURL(/\/workspace$/);
