@@ -1,8 +1,12 @@
 import { useEffect, useState } from 'react';
-import { clearLibrary, listLibrary, removeFromLibrary, storageEstimate, type LibraryEntry } from '../../lib/client/library';
+import { removeSharedLegacyLibrary, storageEstimate, type Library, type LibraryEntry } from '../../lib/client/library';
 import { formatBytes, shortFingerprint } from './format';
 
 interface Props {
+  /** The signed-in account's library. */
+  library: Library;
+  /** Entries not opened for this many days are removed (the server's `libraryDays` setting). */
+  expiryDays: number;
   /** Bumped by the screen whenever it adds to the library. */
   version: number;
   busy: boolean;
@@ -12,18 +16,28 @@ interface Props {
 }
 
 /** Recordings kept in this browser (IndexedDB), with the storage quota; nothing of it leaves the device. */
-export default function LibraryPanel({ version, busy, currentFingerprint, onReopen, notice }: Props) {
+export default function LibraryPanel({ library, expiryDays, version, busy, currentFingerprint, onReopen, notice }: Props) {
   const [entries, setEntries] = useState<LibraryEntry[] | null>(null);
   const [estimate, setEstimate] = useState<{ usage: number; quota: number } | null>(null);
   const [problem, setProblem] = useState<string | null>(null);
   const [confirmAll, setConfirmAll] = useState(false);
   const [own, setOwn] = useState(0);
+  const [expired, setExpired] = useState<LibraryEntry[]>([]);
+  const [legacyRemoved, setLegacyRemoved] = useState(false);
+
+  useEffect(() => {
+    removeSharedLegacyLibrary().then((held) => held && setLegacyRemoved(true), () => undefined);
+  }, []);
 
   useEffect(() => {
     let live = true;
-    Promise.all([listLibrary(), storageEstimate()])
-      .then(([list, est]) => {
+    (async () => {
+      const gone = await library.expire(expiryDays);
+      return [gone, await library.list(), await storageEstimate()] as const;
+    })()
+      .then(([gone, list, est]) => {
         if (!live) return;
+        if (gone.length > 0) setExpired((seen) => [...seen, ...gone.filter((g) => !seen.some((s) => s.fingerprint === g.fingerprint))]);
         setEntries(list);
         setEstimate(est);
         setProblem(null);
@@ -32,14 +46,16 @@ export default function LibraryPanel({ version, busy, currentFingerprint, onReop
     return () => {
       live = false;
     };
-  }, [version, own]);
+  }, [library, expiryDays, version, own]);
 
   const refresh = () => setOwn((n) => n + 1);
 
   return (
     <div className="grid gap-3" data-testid="library">
       <p className="text-sm text-ink-soft">
-        Recordings you opened are kept in this browser only (IndexedDB), to reopen later. Nothing here is synchronised.
+        Recordings you opened are kept in this browser only (IndexedDB), for your account, to reopen later. Nothing here
+        is synchronised. Each is removed {formatDays(expiryDays)} after you last opened it, and at sign-out unless you
+        choose to keep it.
       </p>
       {estimate && (
         <div className="grid gap-1 text-sm">
@@ -49,6 +65,30 @@ export default function LibraryPanel({ version, busy, currentFingerprint, onReop
           </label>
           <progress id="library-usage" max={estimate.quota} value={estimate.usage} className="h-2 w-full" />
         </div>
+      )}
+      {expired.length > 0 && (
+        <div className="notice notice-warn grid gap-1" role="status" data-testid="library-expired">
+          <p>
+            Not opened for {formatDays(expiryDays)}, so removed from this browser ({expired.length === 1 ? '1 recording' : `${expired.length} recordings`}; the
+            files on your disk are not touched):
+          </p>
+          <ul className="ml-4 list-disc text-sm">
+            {expired.map((e) => (
+              <li key={e.fingerprint}>
+                <span className="break-all">{e.fileName}</span> <span className="text-xs text-ink-soft">last opened {new Date(e.openedAt).toLocaleDateString()}</span>
+              </li>
+            ))}
+          </ul>
+          <button type="button" className="btn btn-quiet justify-self-start" onClick={() => setExpired([])}>
+            Dismiss
+          </button>
+        </div>
+      )}
+      {legacyRemoved && (
+        <p className="notice notice-warn" role="status" data-testid="library-legacy-removed">
+          This browser still held recordings from before each account had its own library. They could belong to anyone
+          who used this browser, so they were removed; open your files again to keep them in your library.
+        </p>
       )}
       {notice && (
         <p className="notice notice-warn" role="alert" data-testid="library-notice">
@@ -81,7 +121,7 @@ export default function LibraryPanel({ version, busy, currentFingerprint, onReop
                     type="button"
                     className="btn btn-quiet"
                     aria-label={`Remove ${e.fileName} from this browser`}
-                    onClick={() => removeFromLibrary(e.fingerprint).then(refresh, (err: unknown) => setProblem(String(err)))}
+                    onClick={() => library.remove(e.fingerprint).then(refresh, (err: unknown) => setProblem(String(err)))}
                   >
                     Remove
                   </button>
@@ -100,7 +140,7 @@ export default function LibraryPanel({ version, busy, currentFingerprint, onReop
                 type="button"
                 className="btn btn-primary"
                 onClick={() =>
-                  clearLibrary().then(
+                  library.clear().then(
                     () => {
                       setConfirmAll(false);
                       refresh();
@@ -121,3 +161,5 @@ export default function LibraryPanel({ version, busy, currentFingerprint, onReop
     </div>
   );
 }
+
+const formatDays = (days: number) => (days === 1 ? '1 day' : `${Number.isInteger(days) ? days : days.toFixed(1)} days`);

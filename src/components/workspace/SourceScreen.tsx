@@ -2,7 +2,7 @@ import { useCallback, useRef, useState } from 'react';
 import type { WorkspaceProps } from './types';
 import { useSourceStore } from '../../stores/source';
 import { openRecordingFile, type IntakePhase, type IntakeProblem, type RecordingKind } from '../../lib/client/intake';
-import { getLibraryFile, keepInLibrary, LibraryFullError, type LibraryEntry } from '../../lib/client/library';
+import { libraryFor, LibraryFullError, type LibraryEntry } from '../../lib/client/library';
 import { errorMessageOf, guardAgainst, send } from '../../lib/client/outbound';
 import OpenPanel, { type CsvChoice } from '../source/OpenPanel';
 import DemoPicker, { type DemoSubject } from '../source/DemoPicker';
@@ -98,6 +98,7 @@ export default function SourceScreen(props: WorkspaceProps) {
   const settingsError = useSourceStore((s) => s.settingsError);
   const subjectCode = useSourceStore((s) => s.subjectCode);
   const store = useSourceStore.getState;
+  const library = libraryFor(props.userId);
 
   const [busy, setBusy] = useState<Busy | null>(null);
   const [problem, setProblem] = useState<{ fileName: string; error: IntakeProblem } | null>(null);
@@ -153,7 +154,7 @@ export default function SourceScreen(props: WorkspaceProps) {
           edf: reading,
         };
         try {
-          await keepInLibrary(entry, blob, events?.blob ?? null);
+          await library.keep(entry, blob, events?.blob ?? null);
         } catch (error) {
           setLibraryNotice(error instanceof LibraryFullError ? error.message : `The recording is open but could not be kept in the library: ${String(error)}`);
         }
@@ -186,7 +187,7 @@ export default function SourceScreen(props: WorkspaceProps) {
   };
 
   const reopen = async (entry: LibraryEntry) => {
-    const found = await getLibraryFile(entry.fingerprint);
+    const found = await library.file(entry.fingerprint);
     if (!found) return refuse(entry.fileName, 'it is no longer in this browser’s library.');
     const kind: RecordingKind =
       entry.kind === 'csv' && entry.csv
@@ -235,7 +236,7 @@ export default function SourceScreen(props: WorkspaceProps) {
           <h2 id="source-library" className="text-lg font-semibold">
             Library on this device
           </h2>
-          <LibraryPanel version={libraryVersion} busy={busy !== null} currentFingerprint={fingerprint} onReopen={(e) => void reopen(e)} notice={libraryNotice} />
+          <LibraryPanel library={library} expiryDays={props.libraryDays} version={libraryVersion} busy={busy !== null} currentFingerprint={fingerprint} onReopen={(e) => void reopen(e)} notice={libraryNotice} />
         </section>
       </div>
 

@@ -5,6 +5,10 @@ export interface WorkspaceProps {
   team: { id: string; name: string };
   role: Role;
   mayCreateSessions: boolean;
+  /** The signed-in account: its local library is its own (src/lib/client/library.ts). */
+  userId: string;
+  /** Days a recording stays in the local library after it was last opened (settings.libraryDays). */
+  libraryDays: number;
 }
 
 /** The screens of the analysis workspace, in the order a person works through them (names: GLOSSARY.md). */
