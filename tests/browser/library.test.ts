@@ -155,6 +155,22 @@ describe('the local library belongs to one account', () => {
     await context.close();
   });
 
+  it('sign-out removes the recordings even while another workspace tab holds the library open', async () => {
+    const context = await browser.newContext({ viewport: { width: 1440, height: 900 } });
+    const first = await context.newPage();
+    await openWorkspace(first, 'analyst', '', { nth: 1 });
+    await keep(first, NAME_B, fileB);
+    // A second tab of the same account, its library listed (so its IndexedDB connection is open).
+    const second = await context.newPage();
+    await second.goto(first.url());
+    expect(await libraryNames(second)).toEqual([NAME_B]);
+    await signOut(first, { removeRecordings: true });
+    const stored = await indexedDbContents(first);
+    expect(stored.binaries).toEqual([]);
+    expect(stored.databases.filter((d) => d.startsWith('tidemark-library'))).toEqual([]);
+    await context.close();
+  });
+
   it('the sign-out script is a bundled module file of this origin, not an inline script', async () => {
     const context = await browser.newContext();
     const page = await context.newPage();
