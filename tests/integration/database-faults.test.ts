@@ -5,7 +5,6 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import pg from 'pg';
 import { Client } from '../helpers/app';
 import { runToEnd, startInstance, type Instance } from '../helpers/instance';
-// @ts-expect-error: a plain .mjs module without types (the lifecycle scripts run before node_modules exists)
 import { APP_DB_ROLE, startCluster } from '../../scripts/lib/bootstrap.mjs';
 
 const slot = Number(process.env.TIDEMARK_TEST_SLOT ?? 0);
