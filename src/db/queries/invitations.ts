@@ -16,19 +16,29 @@ export async function createInvitation(
   invitedBy: string,
   input: { email: string; role: Role },
 ): Promise<{ invitation: Invitation; token: string }> {
+  return db.transaction((tx) => insertInvitation(tx, teamId, invitedBy, input));
+}
+
+type Tx = Parameters<Parameters<typeof db.transaction>[0]>[0];
+
+/** The invitation and its audit event inside the caller's transaction (a lead's invite, or a new team's first lead). */
+export async function insertInvitation(
+  tx: Tx,
+  teamId: string,
+  invitedBy: string,
+  input: { email: string; role: Role },
+): Promise<{ invitation: Invitation; token: string }> {
   const { token, tokenHash } = newToken();
   const expiresAt = new Date(Date.now() + INVITATION_LIFETIME_DAYS * 86_400_000);
-  return db.transaction(async (tx) => {
-    const [invitation] = await tx
-      .insert(invitations)
-      .values({ teamId, email: input.email, role: input.role, tokenHash, invitedBy, expiresAt })
-      .returning();
-    await recordAudit(tx, {
-      actorId: invitedBy, action: 'invitation.create', targetTable: 'invitations', targetId: invitation.id, teamId,
-      detail: { email: input.email, role: input.role },
-    });
-    return { invitation, token };
+  const [invitation] = await tx
+    .insert(invitations)
+    .values({ teamId, email: input.email, role: input.role, tokenHash, invitedBy, expiresAt })
+    .returning();
+  await recordAudit(tx, {
+    actorId: invitedBy, action: 'invitation.create', targetTable: 'invitations', targetId: invitation.id, teamId,
+    detail: { email: input.email, role: input.role },
   });
+  return { invitation, token };
 }
 
 export type InvitationLookup =

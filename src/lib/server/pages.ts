@@ -1,5 +1,5 @@
 import type { AstroGlobal } from 'astro';
-import { can, type Action } from '../permissions';
+import { can, canSite, type Action, type SiteAction } from '../permissions';
 import { getStudyForMember, getTeamForMember, type StudyWithRole, type TeamWithRole } from '../../db/queries/teams';
 
 /** Page guards: a redirect to sign-in, a 404 for another team's rows, a 403 for a role that may not look. */
@@ -32,6 +32,14 @@ export async function guardStudyPage(Astro: AstroGlobal, action: Action): Promis
   if (!found || found.team.id !== Astro.params.teamId) return { ok: false, response: statusPage(404, 'No such study in your teams.') };
   if (!can(found.role, action)) return { ok: false, response: statusPage(403, `Your role (${found.role}) does not allow this page.`) };
   return { ok: true, value: found };
+}
+
+/** Site administration pages: sign-in first, then the operator flag (a team role never grants these). */
+export function guardSitePage(Astro: AstroGlobal, action: SiteAction): PageGuard<NonNullable<App.Locals['user']>> {
+  const user = Astro.locals.user;
+  if (!user) return { ok: false, response: signInRedirect(Astro) };
+  if (!canSite(user, action)) return { ok: false, response: statusPage(403, 'Site administration is for operators.') };
+  return { ok: true, value: user };
 }
 
 export { signInRedirect, statusPage };
