@@ -200,6 +200,16 @@ function clusterBase(name) {
 }
 
 /**
+ * Where an existing cluster `name` lives, without creating or changing anything (the two places clusterBase may
+ * choose), or null when neither holds one. Tests use it to check the password files' modes.
+ */
+export function findClusterBase(name) {
+  const hash = createHash('sha256').update(root).digest('hex').slice(0, 12);
+  const candidates = [path.join(root, '.tidemark', name), path.join('/var/tmp', `tidemark-${hash}`, name)];
+  return candidates.find((dir) => fs.existsSync(path.join(dir, 'password'))) ?? null;
+}
+
+/**
  * Starts (or reuses) a private PostgreSQL cluster on 127.0.0.1:`port`. Returns { url(dbName), stop() }.
  * The superuser password is generated once and kept beside the data folder.
  */
