@@ -7,6 +7,7 @@ import http from 'node:http';
 import path from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { CLIENT_HEADER, FORWARDED_HEADERS, normalizeAddress, parseTrustedProxies, resolveClientAddress } from './forwarded.mjs';
+import { contentSecurityPolicy, FIXED_SECURITY_HEADERS } from '../src/lib/server/security-policy.mjs';
 
 const root = path.resolve(path.dirname(new URL(import.meta.url).pathname), '..');
 const outDir = path.resolve(root, process.env.TIDEMARK_OUT_DIR ?? 'dist');
@@ -31,7 +32,13 @@ function refuse(res, status, message) {
   res.end(message);
 }
 
+// Static files (public/, the built scripts) never pass through Astro's middleware, nor do this wrapper's own
+// refusals: they get the security headers here. Anything Astro renders sets its own (a page's CSP carries the hashes
+// of its inline scripts), and Node lets those replace these (http.ServerResponse#writeHead merges, its own win).
+const BASE_SECURITY_HEADERS = Object.entries({ ...FIXED_SECURITY_HEADERS, 'content-security-policy': contentSecurityPolicy() });
+
 const server = http.createServer((req, res) => {
+  for (const [name, value] of BASE_SECURITY_HEADERS) res.setHeader(name, value);
   const peer = normalizeAddress(req.socket.remoteAddress);
   const client = resolveClientAddress(peer, req.headers['x-forwarded-for'], trusted);
   if (!trusted.has(peer)) for (const name of FORWARDED_HEADERS) delete req.headers[name];

@@ -6,40 +6,13 @@
  * (CSP Level 3, "hash-source"); nothing may use eval.
  */
 import { createHash } from 'node:crypto';
+import { contentSecurityPolicy, FIXED_SECURITY_HEADERS } from './security-policy.mjs';
 
 const PRODUCTION = import.meta.env.TIDEMARK_PRODUCTION === true;
 
-const fixed: Record<string, string> = {
-  'x-content-type-options': 'nosniff',
-  'referrer-policy': 'no-referrer',
-  'permissions-policy':
-    'accelerometer=(), autoplay=(), camera=(), display-capture=(), geolocation=(), gyroscope=(), hid=(), magnetometer=(), microphone=(), midi=(), payment=(), publickey-credentials-get=(), serial=(), usb=(), xr-spatial-tracking=()',
-  'cross-origin-opener-policy': 'same-origin',
-  'cross-origin-resource-policy': 'same-origin',
-  'x-frame-options': 'DENY',
-};
+const fixed: Record<string, string> = FIXED_SECURITY_HEADERS;
 
-/** The policy, with `scriptHashes` ('sha256-…' sources) for the page's inline scripts. */
-export function contentSecurityPolicy(scriptHashes: string[] = []): string {
-  return [
-    `default-src 'self'`,
-    `script-src 'self'${scriptHashes.map((h) => ` '${h}'`).join('')}`,
-    // React sets style attributes on the plots; styles cannot send data anywhere that connect-src/img-src allow.
-    `style-src 'self' 'unsafe-inline'`,
-    `img-src 'self' data: blob:`,
-    // The type faces ship their smallest subsets inlined as data: URLs.
-    `font-src 'self' data:`,
-    `connect-src 'self'`,
-    `worker-src 'self' blob:`,
-    `manifest-src 'self'`,
-    `media-src 'none'`,
-    `form-action 'self'`,
-    `frame-src 'none'`,
-    `frame-ancestors 'none'`,
-    `base-uri 'none'`,
-    `object-src 'none'`,
-  ].join('; ');
-}
+export { contentSecurityPolicy };
 
 const hashCache = new Map<string, string>();
 function hashOf(script: string): string {
