@@ -4,6 +4,9 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser } from 'playwright-core';
 import { appUrl, artifactsDir, launchBrowser } from '../helpers/browser';
 import { DEMO_PEOPLE } from '../../src/db/seed';
+import { createMember, createTeam } from '../helpers/fixtures';
+import { pool as dbPool } from '../../src/db/client';
+import { pool as helperPool } from '../helpers/app';
 
 let browser: Browser;
 let close: () => Promise<void>;
@@ -12,7 +15,11 @@ beforeAll(async () => {
   ({ browser, close } = await launchBrowser());
   fs.mkdirSync(artifactsDir, { recursive: true });
 });
-afterAll(() => close());
+afterAll(async () => {
+  await close();
+  await dbPool.end();
+  await helperPool.end();
+});
 
 // What each role must (and must not) see once signed in.
 const expectations = {
@@ -40,8 +47,10 @@ describe('each demo role signs in, sees its navigation and signs out', () => {
         // Site administration only: the operator belongs to no team and sees no study.
         await page.waitForURL(/\/admin$/);
         expect(await nav.getByRole('link', { name: 'Studies' }).count()).toBe(0);
+        expect(await nav.getByRole('link', { name: 'Site' }).getAttribute('aria-current')).toBe('page');
         expect(await page.getByTestId('admin-users').textContent()).toContain('reviewer@saltmarsh.example');
         expect(await page.getByText('Harbour-bell anticipation').count()).toBe(0);
+        expect(await page.getByTestId('caution').textContent()).toContain('not a medical device');
         await page.getByRole('button', { name: 'Sign out' }).click();
         await page.waitForURL(/\/sign-in\?notice=signed-out$/);
         await context.close();
@@ -71,6 +80,73 @@ describe('each demo role signs in, sees its navigation and signs out', () => {
       await context.close();
     });
   }
+
+  it('operator area: people, teams and the site audit, used with the keyboard and the mouse (screenshots at 1440×900)', async () => {
+    const operator = DEMO_PEOPLE.find((p) => p.role === 'operator')!;
+    const { team } = await createTeam(`Browser fixture ${Date.now().toString(36)}`);
+    const member = await createMember(team.id, 'analyst');
+    const context = await browser.newContext({ viewport: { width: 1440, height: 900 } });
+    const page = await context.newPage();
+    const blocked: string[] = [];
+    // Chromium reports what a Content-Security-Policy refuses as console errors ("Refused to …"); uncaught
+    // script errors arrive as page errors. (The form's deliberate 400 below is neither.)
+    page.on('console', (m) => {
+      if (m.type() === 'error' && /Refused to|Content Security Policy/i.test(m.text())) blocked.push(m.text());
+    });
+    page.on('pageerror', (e) => blocked.push(e.message));
+    await page.goto(`${appUrl}/sign-in`);
+    await page.getByLabel('E-mail').fill(operator.email);
+    await page.getByLabel('Password').fill(operator.password);
+    await page.getByRole('button', { name: 'Sign in' }).click();
+    await page.waitForURL(/\/admin$/);
+    const tabs = page.getByRole('navigation', { name: 'Site administration' });
+    expect(await tabs.getByRole('link', { name: 'People' }).getAttribute('aria-current')).toBe('page');
+
+    // Suspend, then reactivate, the fixture analyst with the row's own buttons.
+    const row = page.locator(`tr[data-person="${member.email}"]`);
+    await row.getByRole('button', { name: `Suspend ${member.user.displayName}` }).click();
+    await page.waitForURL(/\/admin\?done=suspend/);
+    expect(await page.getByTestId('site-done').textContent()).toContain('is suspended and signed out everywhere.');
+    expect(await row.getByTestId('account-state').textContent()).toBe('suspended');
+    await page.screenshot({ path: path.join(artifactsDir, 'site-people.png') });
+    await row.getByRole('button', { name: `Reactivate ${member.user.displayName}` }).click();
+    await page.waitForURL(/\/admin\?done=reactivate/);
+    expect(await row.getByTestId('account-state').textContent()).toBe('active');
+
+    // Teams: create one with the keyboard; the form's message names a bad e-mail first.
+    await tabs.getByRole('link', { name: 'Teams' }).click();
+    await page.waitForURL(/\/admin\/teams$/);
+    expect(await page.getByTestId('site-teams').textContent()).toContain('Maren Holt');
+    expect(await page.getByTestId('site-teams').textContent()).not.toContain('Harbour-bell');
+    const name = `Dune Lab ${Date.now().toString(36)}`;
+    await page.getByLabel('Team name').fill(name);
+    await page.getByLabel("First lead's e-mail").fill('not an address');
+    await page.getByRole('button', { name: 'Create team and invite' }).click();
+    await page.waitForLoadState();
+    expect(await page.getByTestId('form-error').textContent()).toContain('Please correct the marked fields.');
+    expect(await page.getByText('Enter a valid e-mail address.').count()).toBe(1);
+    expect(await page.getByLabel('Team name').inputValue()).toBe(name);
+    await page.getByLabel("First lead's e-mail").fill(`lead-${Date.now().toString(36)}@dune.example`);
+    await page.getByLabel("First lead's e-mail").press('Enter');
+    await page.waitForURL(/\/admin\/teams\?created=/);
+    expect(await page.getByTestId('team-created').textContent()).toContain(`Team ${name} created.`);
+    await page.screenshot({ path: path.join(artifactsDir, 'site-teams.png') });
+
+    // Site audit: filter by prefix; the suspension and the new team are there, newest first.
+    await tabs.getByRole('link', { name: 'Site audit' }).click();
+    await page.getByLabel('Action starts with').fill('site.');
+    await page.getByRole('button', { name: 'Filter' }).click();
+    await page.waitForURL(/\/admin\/audit\?action=site\./);
+    const actions = await page.locator('tr[data-action]').evaluateAll((rows) => rows.map((r) => r.getAttribute('data-action')));
+    expect(actions.slice(0, 3)).toEqual(['site.createTeam', 'site.reactivate', 'site.suspend']);
+    await page.screenshot({ path: path.join(artifactsDir, 'site-audit.png') });
+    for (const file of ['site-people.png', 'site-teams.png', 'site-audit.png']) {
+      expect(fs.statSync(path.join(artifactsDir, file)).size).toBeGreaterThan(20_000);
+    }
+    // Nothing on these pages was blocked by the Content-Security-Policy, and no script failed.
+    expect(blocked).toEqual([]);
+    await context.close();
+  });
 
   it('stays readable at 200 % zoom: no sideways scrolling on the team home', async () => {
     // 200 % zoom of a 1280 px window leaves a 640 CSS px layout viewport.

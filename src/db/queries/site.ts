@@ -1,6 +1,7 @@
 // Site administration (operators only; pages check canSite before calling): every account, every team, the site
 // audit. Nothing here reads a team's studies or analysis sessions: an operator sees those only as a team member.
 import { and, asc, desc, eq, inArray, isNull, lt, sql } from 'drizzle-orm';
+import { alias } from 'drizzle-orm/pg-core';
 import { db } from '../client';
 import { auditEvents, memberships, teams, users, type Team } from '../schema';
 import type { Role } from '../../lib/permissions';
@@ -220,6 +221,8 @@ export interface SiteAuditRow {
   actorEmail: string | null;
   targetTable: string;
   targetId: string;
+  /** The account's e-mail when the target is an account. */
+  targetEmail: string | null;
   teamName: string | null;
   /** null when the event is a team's own work (studies, analysis sessions, notes): its details stay with the team. */
   detail: Record<string, unknown> | null;
@@ -243,6 +246,7 @@ export async function listSiteAudit(opts: { before?: number; actionPrefix?: stri
     const escaped = opts.actionPrefix.replace(/[\\%_]/g, (c) => `\\${c}`);
     where.push(sql`${auditEvents.action} LIKE ${`${escaped}%`}`);
   }
+  const target = alias(users, 'target_user');
   const rows = await db
     .select({
       id: auditEvents.id,
@@ -252,12 +256,14 @@ export async function listSiteAudit(opts: { before?: number; actionPrefix?: stri
       actorEmail: users.email,
       targetTable: auditEvents.targetTable,
       targetId: auditEvents.targetId,
+      targetEmail: target.email,
       teamName: teams.name,
       detail: auditEvents.detail,
     })
     .from(auditEvents)
     .leftJoin(users, eq(users.id, auditEvents.actorId))
     .leftJoin(teams, eq(teams.id, auditEvents.teamId))
+    .leftJoin(target, and(eq(auditEvents.targetTable, 'users'), eq(target.id, auditEvents.targetId)))
     .where(where.length ? and(...where) : undefined)
     .orderBy(desc(auditEvents.id))
     .limit(AUDIT_PAGE_SIZE + 1);

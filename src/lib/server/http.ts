@@ -109,7 +109,10 @@ export async function parseJson<T extends z.ZodType>(request: Request, schema: T
   return parsed.data;
 }
 
-export type FormResult<T> = { ok: true; data: T } | { ok: false; message: string; fields: Record<string, string>; status?: number };
+export type FormResult<T> =
+  | { ok: true; data: T }
+  /** `values`: what was posted, so a page can show the form again as the person filled it in. */
+  | { ok: false; message: string; fields: Record<string, string>; status?: number; values?: Record<string, string> };
 
 /** The largest form post a page accepts (forms here carry a few short fields; no page takes an upload). */
 export const MAX_FORM_BYTES = 16_384;
@@ -141,5 +144,5 @@ export async function readForm<T extends z.ZodType>(request: Request, schema: T)
     const key = String(issue.path[0] ?? 'form');
     fields[key] ??= issue.message;
   }
-  return { ok: false, message: 'Please correct the marked fields. Nothing was changed.', fields };
+  return { ok: false, message: 'Please correct the marked fields. Nothing was changed.', fields, values: raw };
 }
