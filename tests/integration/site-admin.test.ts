@@ -167,6 +167,31 @@ describe('suspending and reactivating an account', () => {
   });
 });
 
+describe('a suspended account and invitations', () => {
+  it('cannot join a team through an invitation: refused with a message, no membership, no session, link still unused', async () => {
+    const { team } = await createTeam();
+    const lead = await createMember(team.id, 'lead');
+    const other = await createTeam();
+    const suspended = await createMember(other.team.id, 'analyst');
+    const operator = await createOperator();
+    expect((await (await signedIn(operator)).post('/admin', { intent: 'suspend', userId: suspended.user.id })).status).toBe(303);
+    const since = await latestMailId();
+    await (await signedIn(lead)).post(`/teams/${team.id}/members`, { email: suspended.email, role: 'analyst' });
+    const path = linkIn((await waitForMail(suspended.email, since)).text, '/invitations/');
+    const client = new Client();
+    const refused = await client.post(path, { displayName: 'Fixture analyst', password: suspended.password, confirm: suspended.password });
+    expect(refused.status).toBe(403);
+    expect(await refused.text()).toContain('This account is suspended, so it cannot join a team.');
+    expect(client.cookies.has('tidemark_session')).toBe(false);
+    const { rows } = await pool.query('SELECT count(*)::int AS n FROM memberships WHERE team_id = $1 AND user_id = $2', [team.id, suspended.user.id]);
+    expect(rows[0].n).toBe(0);
+    const { rows: sessions } = await pool.query('SELECT count(*)::int AS n FROM sessions WHERE user_id = $1', [suspended.user.id]);
+    expect(sessions[0].n).toBe(0);
+    const { rows: inv } = await pool.query('SELECT accepted_at FROM invitations WHERE team_id = $1 AND lower(email) = lower($2)', [team.id, suspended.email]);
+    expect(inv).toEqual([{ accepted_at: null }]);
+  });
+});
+
 describe('Teams: an operator creates a team and invites its first lead', () => {
   it('creates the team, mails the lead an invitation, and the invitee joins as its lead', async () => {
     const operator = await createOperator();

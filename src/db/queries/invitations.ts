@@ -70,7 +70,7 @@ export async function lookupInvitation(token: string): Promise<InvitationLookup>
 export async function acceptInvitation(
   token: string,
   input: { displayName: string; password: string },
-): Promise<{ userId: string; keptRole: Role | null } | { refused: 'invalid' | 'wrong-password' }> {
+): Promise<{ userId: string; keptRole: Role | null } | { refused: 'invalid' | 'wrong-password' | 'suspended' }> {
   const passwordHash = await hashPassword(input.password);
   return db.transaction(async (tx) => {
     const [invitation] = await tx
@@ -89,6 +89,8 @@ export async function acceptInvitation(
         // Holding the link is not enough to enter an existing account: its own password must match.
         tx.rollback();
       }
+      // A suspended account joins nothing (and the token stays unused): an invitation is no way around suspension.
+      if (existing[0].disabledAt) throw new AccountSuspended();
     } else {
       userId = newUserId();
       await tx.insert(users).values({ id: userId, email: invitation.email, displayName: input.displayName, passwordHash });
@@ -104,6 +106,9 @@ export async function acceptInvitation(
     return { userId, keptRole: current ? current.role : null };
   }).catch((error: unknown) => {
     if (error instanceof TransactionRollbackError) return { refused: 'wrong-password' as const };
+    if (error instanceof AccountSuspended) return { refused: 'suspended' as const };
     throw error;
   });
 }
+
+class AccountSuspended extends Error {}
