@@ -1,7 +1,7 @@
 // Least privilege in the database (issue 8, item 10): the app's own role (DATABASE_URL, as the app connects) is no
 // superuser, has no DDL rights, may append to the audit and read it but never rewrite or delete it; the cluster's
-// password files are readable by their owner only. Error codes are PostgreSQL's SQLSTATE 42501
-// (insufficient_privilege) and 42P01/42501 as documented in the PostgreSQL manual, appendix A "Error Codes".
+// password files are readable by their owner only. Every refusal is SQLSTATE 42501, insufficient_privilege
+// (PostgreSQL manual, appendix A "Error Codes"; DROP and ALTER by a non-owner report it as "must be owner").
 import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
