@@ -1,4 +1,4 @@
-import { z } from 'zod';
+import { z } from '../analysis/zod';
 
 const email = z.string().trim().toLowerCase().min(1, 'Enter an e-mail address.').max(254).email('Enter a valid e-mail address.');
 
