@@ -69,7 +69,11 @@ function shutdown(signal) {
   process.stdout.write(`tidemark: ${signal}: finishing requests in flight, then stopping\n`);
   const force = setTimeout(() => process.exit(0), 10_000);
   force.unref();
-  server.close(() => process.exit(0));
+  server.close(async () => {
+    // Then the database pool (src/db/client.ts registers how to close it), so PostgreSQL sees a clean goodbye.
+    await globalThis.__tidemarkCloseDatabase?.().catch(() => {});
+    process.exit(0);
+  });
   server.closeIdleConnections();
 }
 process.on('SIGTERM', () => shutdown('SIGTERM'));
