@@ -10,6 +10,7 @@ const tsxApi = pathToFileURL(
   createRequire(import.meta.url).resolve('tsx/package.json').replace(/package\.json$/, 'dist/esm/api/index.mjs'),
 ).href;
 const entry = new URL('./decompose.node-worker.ts', import.meta.url).href;
+const mapTestEntry = new URL('./map-test.node-worker.ts', import.meta.url).href;
 
 /** A data: URL module that registers tsx, then imports `entryUrl`. */
 export function tsxBootstrap(entryUrl: string): URL {
@@ -37,4 +38,9 @@ export function nodePoolWorker(worker: Worker): PoolWorker {
 
 export function createNodeDecomposeWorker(): PoolWorker {
   return nodePoolWorker(new Worker(tsxBootstrap(entry)));
+}
+
+/** A worker_threads worker running the statistics map test (workers/map-test-api.ts). */
+export function createNodeMapTestWorker(): PoolWorker {
+  return nodePoolWorker(new Worker(tsxBootstrap(mapTestEntry)));
 }

@@ -142,7 +142,8 @@ interface Plan {
   bound: Float64Array;
 }
 
-function checkInput(input: MapTestInput): void {
+/** Throws StatisticsInputError for input the map test cannot run on (callers may check before posting to a worker). */
+export function checkMapTestInput(input: MapTestInput): void {
   const { nSubjects: n, nFrequencies: nF, nTimes: nT, values } = input;
   if (!(Number.isInteger(n) && n >= 2)) throw new StatisticsInputError('subjects', `needs at least 2 subjects for the map test, got ${n}`);
   if (!(Number.isInteger(nF) && nF >= 1 && Number.isInteger(nT) && nT >= 1)) {
@@ -168,7 +169,7 @@ function checkInput(input: MapTestInput): void {
 }
 
 function planMapTest(input: MapTestInput): Plan {
-  checkInput(input);
+  checkMapTestInput(input);
   const { nSubjects: n, nFrequencies: nF, nTimes: nT, values } = input;
   const points = nF * nT;
   const alpha = input.alpha ?? 0.05;
