@@ -5,12 +5,15 @@
 export class StatisticsInputError extends Error {
   readonly field: string;
   readonly problem: string;
+  /** Which input the field is in, when a caller reads several: the values table, the design or the maps. */
+  readonly source: 'values' | 'design' | 'maps' | null;
 
-  constructor(field: string, problem: string) {
+  constructor(field: string, problem: string, source: 'values' | 'design' | 'maps' | null = null) {
     super(`${field} ${problem}`);
     this.name = 'StatisticsInputError';
     this.field = field;
     this.problem = problem;
+    this.source = source;
   }
 }
 
