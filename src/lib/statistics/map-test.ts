@@ -356,7 +356,7 @@ function codesOf(plan: Plan, k: number, codes: Int32Array, random: (() => number
  * async runners below drive it; a caller may drive it itself (e.g. to interleave with other work).
  */
 export class MapTestRun {
-  readonly plan: Plan;
+  private readonly plan: Plan;
   private readonly evaluator: Evaluator;
   private readonly codes: Int32Array;
   private readonly random: (() => number) | null;
