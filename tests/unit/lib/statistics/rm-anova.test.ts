@@ -26,6 +26,33 @@ describe('repeated-measures ANOVA', () => {
     expect(r.effects[0].F.toFixed(2)).toBe('26.10');
   });
 
+  // Graziano & Raulin, Research Methods, 9th ed., companion tutorial "Computational Procedures for a Repeated-Measures
+  // ANOVA" (graziano-raulin.com/tutorials/stat_comp/manrman.htm): 6 participants × 3 conditions. The page prints the
+  // condition means 10.83, 9.00, 8.17 (G = 168, ΣX² = 1600); its computational formulas give, by hand,
+  // SS_between = ΣT²/n − G²/N = 9542/6 − 1568 = 67/3, SS_subjects = ΣP²/k − G²/N = 4, SS_error = 32 − 67/3 − 4 = 17/3,
+  // F(2, 10) = (67/6)/(17/30) = 335/17 ≈ 19.71; p = 0.000339506564985 from SciPy 1.17.1
+  // (python3 -c "from scipy import stats; print(stats.f.sf(335/17, 2, 10))").
+  it('reproduces the hand computation of Graziano & Raulin\'s six participants × three conditions', () => {
+    const data = [
+      [10, 8, 8],
+      [12, 9, 8],
+      [11, 10, 9],
+      [11, 10, 8],
+      [10, 8, 9],
+      [11, 9, 7],
+    ];
+    const means = [0, 1, 2].map((j) => data.reduce((a, row) => a + row[j], 0) / 6);
+    expect(means.map((m) => m.toFixed(2))).toEqual(['10.83', '9.00', '8.17']);
+    const e = repeatedMeasuresAnova({ factors: [{ name: 'condition', levels: 3 }], nSubjects: 6, values: data.flat() }).effects[0];
+    assertClose(e.ss, 67 / 3, 1e-12, 'SS between');
+    assertClose(e.ssError, 17 / 3, 1e-12, 'SS error');
+    expect([e.df1, e.df2]).toEqual([2, 10]);
+    assertClose(e.F, 335 / 17, 1e-11, 'F');
+    expect(e.F.toFixed(2)).toBe('19.71');
+    assertClose(e.p, 0.00033950656498517057, 1e-7 * 0.00034, 'p');
+    assertClose(e.eta2p, 67 / 3 / (67 / 3 + 17 / 3), 1e-12, 'partial eta squared');
+  });
+
   // Two within factors (3 × 4) on seeded data with unequal variances: SciPy/NumPy classical sums of squares over
   // marginal means and ε from eigenvalues in a scipy.linalg.null_space basis (reference.py).
   it('two factors give both main effects and the interaction as the classical computation does', () => {
