@@ -153,6 +153,35 @@ describe('npm run --silent stats', () => {
     expect(result.warnings.join('\n')).toMatch(/cond-band.*1 subject left out for missing cells \(G01\)/);
   });
 
+  it('runs a paired map test with random flips above 12 subjects, the design\'s seed reported', async () => {
+    const z = seededNormal(123);
+    const subjects: Record<string, Record<string, number[][]>> = {};
+    for (let s = 0; s < 14; s++) {
+      const right = frequencies.map(() => times.map(() => Math.round(z() * 1000) / 1000));
+      const left = right.map((row, f) => row.map((v, t) => Math.round((v + z() + (f <= 1 && t >= 6 ? 1.8 : 0)) * 1000) / 1000));
+      subjects[`H${s + 1}`] = { 'cue/left': left, 'cue/right': right };
+    }
+    delete subjects.H14['cue/right'];
+    const mapsText = JSON.stringify({ times, frequencies, subjects, test: { kind: 'paired', conditions: ['cue/left', 'cue/right'] } });
+    writeFileSync(file('paired-maps.json'), mapsText);
+    writeFileSync(file('seeded.json'), JSON.stringify({ ...design, seed: 42 }));
+    const seeded = await inProcess([file('values.csv'), '--design', file('seeded.json'), '--maps', file('paired-maps.json')]);
+    expect(seeded.code).toBe(0);
+    const result = JSON.parse(seeded.stdout);
+    expect(result.mapTest).toMatchObject({ n: 13, permutations: 10_000, exact: false, seed: 42, df: 12 });
+    expect(result.mapTest.subjects).not.toContain('H14');
+    expect(result.warnings).toEqual(['map test: 1 subject left out without "cue/left" and "cue/right" (H14)']);
+    expect(result.clusters[0]).toMatchObject({ sign: 1, frequencies: [4, 6] });
+    expect(result.clusters[0].p).toBeLessThan(0.01);
+    expect(result.clusters[0].p).toBeGreaterThanOrEqual(1 / 10_000);
+
+    const again = await inProcess([file('values.csv'), '--design', file('seeded.json'), '--maps', file('paired-maps.json')]);
+    expect(again.stdout).toBe(seeded.stdout);
+    const unseeded = JSON.parse((await inProcess([file('values.csv'), '--design', file('design.json'), '--maps', file('paired-maps.json')])).stdout);
+    expect(unseeded.mapTest.seed).toBe(1);
+    expect(unseeded.warnings).toContain('map test: 13 subjects need random sign flips and no seed was given; seed 1 was used');
+  });
+
   it('exits 2 with one line and no stack trace as a process', async () => {
     const e = await run(process.execPath, ['--import', 'tsx', 'src/cli/stats.ts', file('nothing.csv'), '--design', file('design.json')], { cwd: root }).catch((x) => x);
     expect(e.code).toBe(2);
