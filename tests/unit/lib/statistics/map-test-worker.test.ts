@@ -1,9 +1,10 @@
 import { describe, expect, it } from 'vitest';
 import { seededNormal } from '../../../helpers/seeded-random';
-import { runMapTestInWorker } from '../../../../src/lib/client/map-test-runner';
+import { Worker } from 'node:worker_threads';
+import { MapTestWorkerError, runMapTestInWorker } from '../../../../src/lib/client/map-test-runner';
 import { MapTestCancelledError } from '../../../../src/lib/statistics/errors';
 import { runMapTestSync, type MapTestInput } from '../../../../src/lib/statistics/map-test';
-import { createNodeMapTestWorker } from '../../../../workers/node-worker-factory';
+import { createNodeMapTestWorker, nodePoolWorker } from '../../../../workers/node-worker-factory';
 
 function cohort(n: number, nF: number, nT: number, seed: number): MapTestInput {
   const z = seededNormal(seed);
@@ -45,5 +46,11 @@ describe('map test in a worker (workers/map-test-api.ts on worker_threads)', () 
     const bad = { ...cohort(3, 2, 2, 1), nTimes: 3 };
     await expect(runMapTestInWorker(bad, { createWorker: () => (started++, createNodeMapTestWorker()) })).rejects.toThrow(/values has 12 entries/);
     expect(started).toBe(0);
+  });
+
+  it('rejects with MapTestWorkerError, not a hang, when the worker fails to load', async () => {
+    const broken = () => nodePoolWorker(new Worker(new URL('data:text/javascript,throw new Error("no map test here")')));
+    await expect(runMapTestInWorker(cohort(4, 2, 3, 1), { createWorker: broken })).rejects.toThrow(MapTestWorkerError);
+    await expect(runMapTestInWorker(cohort(4, 2, 3, 1), { createWorker: broken })).rejects.toThrow(/the map test worker failed: .*no map test here/);
   });
 });
