@@ -2,6 +2,9 @@
  * The statistics contract's values.csv: a header row, then one row per subject × condition × band × window ×
  * channel with `subject,condition,band,window,channel,value` and any further columns, each a numeric per-subject
  * covariate. Pure (papaparse on a string), so a page can read the same file the command line reads.
+ *
+ * TODO: the study page's export (issue 12, item 6) is to add a recipe hash and the sign-off state per row; read
+ * as further columns they are non-numeric covariates and refused. The contract must name such columns first.
  */
 import Papa from 'papaparse';
 import { StatisticsInputError } from './errors';
