@@ -34,12 +34,15 @@ export interface MapTestInput {
 }
 
 export interface MapTestOptions {
-  /** Fraction of permutations done, 0 … 1; called at most every `progressIntervalMs` and once at the end. */
+  /** Fraction of flips done, 0 … 1; called after each of `progressSteps` equal parts of the run. */
   onProgress?: (fraction: number) => void;
   /** Aborting ends the run with MapTestCancelledError at the next block of permutations. */
   signal?: AbortSignal;
-  /** Default 100 ms. The async run also yields to the event loop this often, so a cancel message can arrive. */
-  progressIntervalMs?: number;
+  /**
+   * Parts the run is cut into (default 20): progress is reported, the AbortSignal checked and, in the async run, the
+   * event loop given a turn after each. Counted in flips, not time, so the core reads no clock.
+   */
+  progressSteps?: number;
 }
 
 export interface MapCluster {
@@ -433,43 +436,38 @@ export class MapTestRun {
   }
 }
 
-const now = () => globalThis.performance.now();
-/** Permutations between clock reads. */
-const BLOCK = 16;
+/** Flips per part of the run. */
+function partSize(run: MapTestRun, options: MapTestOptions): number {
+  const steps = options.progressSteps ?? 20;
+  if (!(Number.isInteger(steps) && steps >= 1)) throw new StatisticsInputError('progressSteps', `must be a positive integer, got ${steps}`);
+  return Math.max(1, Math.ceil(run.total / steps));
+}
 
-/** Runs the whole test synchronously (server, CLI, tests); `signal` and `onProgress` work between blocks. */
+/** Runs the whole test synchronously (server, CLI, tests); `signal` and `onProgress` work between parts. */
 export function runMapTestSync(input: MapTestInput, options: MapTestOptions = {}): MapTestResult {
   const run = new MapTestRun(input);
+  const part = partSize(run, options);
   run.observe();
-  const interval = options.progressIntervalMs ?? 100;
-  let last = now();
-  while (run.step(BLOCK) > 0) {
+  while (run.step(part) > 0) {
     if (options.signal?.aborted) throw new MapTestCancelledError();
-    if (options.onProgress !== undefined && now() - last >= interval) {
-      options.onProgress(run.done / run.total);
-      last = now();
-    }
+    options.onProgress?.(run.done / run.total);
   }
   options.onProgress?.(1);
   return run.finish();
 }
 
 /**
- * Runs the test and yields to the event loop every `progressIntervalMs`, so a worker can receive a cancel message
- * (and a page stays responsive) while it runs; the numbers are those of runMapTestSync.
+ * Runs the test and yields to the event loop after each part, so a worker can receive a cancel message (and a page
+ * stays responsive) while it runs; the numbers are those of runMapTestSync.
  */
 export async function runMapTest(input: MapTestInput, options: MapTestOptions = {}): Promise<MapTestResult> {
   const run = new MapTestRun(input);
+  const part = partSize(run, options);
   run.observe();
-  const interval = options.progressIntervalMs ?? 100;
-  let last = now();
   options.onProgress?.(0);
-  while (run.step(BLOCK) > 0) {
-    if (now() - last >= interval) {
-      options.onProgress?.(run.done / run.total);
-      await new Promise<void>((resolve) => setTimeout(resolve, 0));
-      last = now();
-    }
+  while (run.step(part) > 0) {
+    options.onProgress?.(run.done / run.total);
+    await new Promise<void>((resolve) => setTimeout(resolve, 0));
     if (options.signal?.aborted) throw new MapTestCancelledError();
   }
   options.onProgress?.(1);
