@@ -55,13 +55,18 @@ export function parseTidyValues(text: string): TidyValues {
   const levels = Object.fromEntries(KEY_COLUMNS.map((k) => [k, [] as string[]])) as unknown as Record<KeyColumn, string[]>;
   const levelSets = Object.fromEntries(KEY_COLUMNS.map((k) => [k, new Set<string>()])) as unknown as Record<KeyColumn, Set<string>>;
   let line = 0;
+  let newlinesBefore = 0; // in body[0 … cursor), so a quoted cell spanning lines keeps later line numbers right
+  let cursor = 0;
   let failure: unknown = null;
 
   Papa.parse<string[]>(body, {
     delimiter: ',',
     skipEmptyLines: false,
     step(results, parser) {
-      line++;
+      line = newlinesBefore + 1;
+      const end = results.meta.cursor;
+      for (let i = cursor; i < end; i++) if (body.charCodeAt(i) === 10) newlinesBefore++;
+      cursor = end;
       try {
         const cells = results.data;
         if (results.errors.length > 0) fail(`line ${line}`, `cannot be read as CSV (${results.errors[0].message})`);
