@@ -142,7 +142,7 @@ function cellsOf(table: TidyValues, condition: string): { band: string; window: 
   const cells = new Map<string, { band: string; window: string; channel: string; bySubject: Map<string, number> }>();
   for (const row of table.rows) {
     if (row.condition !== condition) continue;
-    const key = JSON.stringify([row.band, row.window, row.channel]);
+    const key = cellKey(row);
     let cell = cells.get(key);
     if (cell === undefined) {
       cell = { band: row.band, window: row.window, channel: row.channel, bySubject: new Map() };
@@ -165,6 +165,8 @@ function requireLevel(table: TidyValues, column: KeyColumn, value: string, field
 }
 
 const cellName = (c: { band: string; window: string; channel: string }) => `${c.band}/${c.window}/${c.channel}`;
+/** A collision-free key of a cell (names may hold '/'). */
+const cellKey = (c: { band: string; window: string; channel: string }) => JSON.stringify([c.band, c.window, c.channel]);
 
 function applyFdr<T extends { p: number | null; q: number | null; discovery: boolean }>(cells: T[], fdr: number): void {
   const q = benjaminiHochberg(cells.map((c) => (c.p === null ? NaN : c.p)));
@@ -177,13 +179,13 @@ function applyFdr<T extends { p: number | null; q: number | null; discovery: boo
 function tTestCells(table: TidyValues, test: Extract<DesignTest, { kind: 'one-sample' | 'paired' }>, design: Design, warnings: string[]): TTestCell[] {
   const first = test.kind === 'one-sample' ? test.condition : test.conditions[0];
   const second = test.kind === 'paired' ? cellsOf(table, test.conditions[1]) : null;
-  const secondByKey = new Map((second ?? []).map((c) => [cellName(c), c]));
+  const secondByKey = new Map((second ?? []).map((c) => [cellKey(c), c]));
   const out: TTestCell[] = [];
   const cells = cellsOf(table, first);
-  const keys = new Set(cells.map(cellName));
+  const keys = new Set(cells.map(cellKey));
   if (test.kind === 'paired') {
     for (const c of second ?? []) {
-      if (!keys.has(cellName(c))) warnings.push(`test "${test.name}": cell ${cellName(c)} has values for "${test.conditions[1]}" only; not tested`);
+      if (!keys.has(cellKey(c))) warnings.push(`test "${test.name}": cell ${cellName(c)} has values for "${test.conditions[1]}" only; not tested`);
     }
   }
   for (const cell of cells) {
@@ -191,7 +193,7 @@ function tTestCells(table: TidyValues, test: Extract<DesignTest, { kind: 'one-sa
     if (second === null) {
       for (const v of cell.bySubject.values()) x.push(v - design.neutral);
     } else {
-      const other = secondByKey.get(cellName(cell));
+      const other = secondByKey.get(cellKey(cell));
       for (const [subject, v] of cell.bySubject) {
         const w = other?.bySubject.get(subject);
         if (w !== undefined) x.push(v - w);

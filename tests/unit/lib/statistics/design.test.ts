@@ -51,4 +51,42 @@ describe('runDesign', () => {
     const design = parseWith(DesignSchema, { neutral: 0, fdr: 0.05, tests: [{ name: 'g', kind: 'repeated-anova', factors: ['band'] }] }, 'design');
     expect(() => runDesign(table, design)).toThrow(/tests\[0\]\.factors\[0\] \("band"\) has 1 level/);
   });
+
+  it('gives a cell with too few subjects null statistics and a warning, and leaves it out of Benjamini–Hochberg', () => {
+    // Scenario of our own: three subjects, theta in a/b (band names holding "/"), one lone alpha value, and a cell
+    // that only the second condition has.
+    const csv = [
+      'subject,condition,band,window,channel,value',
+      'P1,on,theta a/b,w,Cz,1.0',
+      'P2,on,theta a/b,w,Cz,2.0',
+      'P3,on,theta a/b,w,Cz,2.5',
+      'P1,off,theta a/b,w,Cz,0.5',
+      'P2,off,theta a/b,w,Cz,0.0',
+      'P3,off,theta a/b,w,Cz,1.5',
+      'P1,on,alpha,w,Cz,3.0',
+      'P1,off,alpha,w,Cz,1.0',
+      'P1,off,beta,w,Cz,1.0',
+    ].join('\n');
+    const table = parseTidyValues(csv);
+    const design = parseWith(
+      DesignSchema,
+      { neutral: 0, fdr: 0.05, tests: [{ name: 'on-off', kind: 'paired', conditions: ['on', 'off'] }] },
+      'design',
+    );
+    const { tests, warnings } = runDesign(table, design);
+    const test = tests[0];
+    if (test.kind !== 'paired') throw new Error('expected a paired test');
+    expect(test.cells.map((c) => [c.band, c.n])).toEqual([
+      ['theta a/b', 3],
+      ['alpha', 1],
+    ]);
+    const lone = test.cells[1];
+    expect([lone.t, lone.p, lone.q, lone.discovery]).toEqual([null, null, null, false]);
+    // Only one testable cell: M = 1, so q = p.
+    expect(test.cells[0].q).toBe(test.cells[0].p);
+    expect(warnings).toEqual([
+      'test "on-off": cell beta/w/Cz has values for "off" only; not tested',
+      'test "on-off": cell alpha/w/Cz has 1 subject with both conditions; a t-test needs 2',
+    ]);
+  });
 });
