@@ -2,7 +2,7 @@
  * The statistics contract's design.json and the tests it names, run on a values table (tidy-values.ts). Cells are
  * band × window × channel; a cell missing for some subjects is tested on the subjects that have it.
  */
-import { z } from 'zod';
+import { z } from '../analysis/zod';
 import { benjaminiHochberg } from './fdr';
 import { StatisticsInputError } from './errors';
 import { linearRegression } from './regression';

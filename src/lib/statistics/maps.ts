@@ -2,7 +2,7 @@
  * The statistics contract's maps.json (group maps for the cluster-based permutation test) and the `clusters` part
  * of the result: `{ times, frequencies, subjects: { <code>: { <condition>: [[f][t]] } }, test }`.
  */
-import { z } from 'zod';
+import { z } from '../analysis/zod';
 import { StatisticsInputError } from './errors';
 import { EXACT_MAX_SUBJECTS, type MapTestInput, type MapTestResult } from './map-test';
 
