@@ -38,6 +38,7 @@ function browserWorker(): PoolWorker {
 /**
  * Runs the map test (src/lib/statistics/map-test.ts) in a worker of its own, which is ended afterwards. Bad input
  * throws StatisticsInputError here, before any worker starts; the caller's `values` are copied, not transferred.
+ * `onProgress` gets 1 before the promise resolves and nothing after it.
  */
 export async function runMapTestInWorker(input: MapTestInput, options: MapTestRunnerOptions = {}): Promise<MapTestResult> {
   checkMapTestInput(input);
@@ -53,8 +54,15 @@ export async function runMapTestInWorker(input: MapTestInput, options: MapTestRu
   try {
     const values = input.values.slice();
     const job: MapTestInput = { ...input, values };
-    const progress = options.onProgress === undefined ? undefined : Comlink.proxy(options.onProgress);
-    return await Promise.race([remote.run(Comlink.transfer(job, [values.buffer as ArrayBuffer]), progress), failure]);
+    // Progress arrives on the proxy's own message port, the answer on the worker's: the two are not ordered, so a
+    // late progress message is dropped and the caller gets 1 here, before the promise resolves.
+    let settled = false;
+    const onProgress = options.onProgress;
+    const progress = onProgress === undefined ? undefined : Comlink.proxy((f: number) => void (settled || onProgress(f)));
+    const result = await Promise.race([remote.run(Comlink.transfer(job, [values.buffer as ArrayBuffer]), progress), failure]);
+    settled = true;
+    onProgress?.(1);
+    return result;
   } catch (error) {
     // comlink rebuilds a thrown Error from its name and message only
     if (error instanceof Error && error.name === 'MapTestCancelledError') throw new MapTestCancelledError();
