@@ -29,7 +29,7 @@ describe('map test in a worker (workers/map-test-api.ts on worker_threads)', () 
   });
 
   it('stops when the signal aborts: the worker receives cancel() and the run rejects with MapTestCancelledError', async () => {
-    const input = cohort(12, 40, 256, 9);
+    const input = cohort(13, 40, 256, 9); // 10,000 random flips: seconds of work, so the cancel surely arrives in time
     const controller = new AbortController();
     const fractions: number[] = [];
     const run = runMapTestInWorker(input, {
