@@ -132,3 +132,25 @@ export async function listUserSessions(userId: string): Promise<ListedSession[]>
   const rows = await db.select().from(sessions).where(eq(sessions.userId, userId)).orderBy(sql`${sessions.lastUsedAt} desc`);
   return rows.map((r) => ({ ...toActive(r), userAgent: r.userAgent, address: r.address }));
 }
+
+export interface SessionTimes {
+  /** Seconds until the idle limit ends the session if no request comes before (database clock). */
+  idleSecondsLeft: number;
+  /** Seconds until the absolute limit ends it, whatever happens. */
+  absoluteSecondsLeft: number;
+}
+
+/** How long session `id` has left, counted on the database's clock; null when it does not exist. */
+export async function sessionTimes(id: string): Promise<SessionTimes | null> {
+  const rows = await db
+    .select({
+      idle: sql<number>`floor(extract(epoch from ${sessions.lastUsedAt} + make_interval(mins => ${settings.sessionIdleMinutes}) - now()))::int`,
+      absolute: sql<number>`floor(extract(epoch from ${sessions.expiresAt} - now()))::int`,
+    })
+    .from(sessions)
+    .where(eq(sessions.id, id))
+    .limit(1);
+  const row = rows[0];
+  if (!row) return null;
+  return { idleSecondsLeft: Math.max(0, Math.min(row.idle, row.absolute)), absoluteSecondsLeft: Math.max(0, row.absolute) };
+}
