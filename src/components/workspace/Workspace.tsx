@@ -6,6 +6,7 @@ import MapsScreen from './MapsScreen';
 import SpectrumScreen from './SpectrumScreen';
 import BandsScreen from './BandsScreen';
 import OutboundScreen from './OutboundScreen';
+import SignInWatch from './SignInWatch';
 
 const components: Record<ScreenName, ComponentType<WorkspaceProps>> = {
   Source: SourceScreen,
@@ -36,6 +37,7 @@ export default function Workspace(props: WorkspaceProps) {
   };
   return (
     <div className="mt-4">
+      <SignInWatch />
       <div role="tablist" aria-label="Workspace screens" className="flex flex-wrap gap-1 border-b border-shell" onKeyDown={onKeyDown}>
         {screens.map((name) => (
           <button

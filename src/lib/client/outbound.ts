@@ -108,6 +108,11 @@ export interface SendOptions {
   /** Serialised with JSON.stringify; exactly that text is sent and logged. */
   json?: unknown;
   signal?: AbortSignal;
+  /**
+   * What the log shows in place of the body, for a body that must not be displayed (the sign-in-again dialog's
+   * password). The guard still checks the real body.
+   */
+  logBodyAs?: string;
 }
 
 /** fetch() for same-origin paths, logged. Rejects with OutboundRefusedError before sending a guarded string. */
@@ -115,7 +120,7 @@ export async function send(path: string, options: SendOptions = {}): Promise<Res
   if (!path.startsWith('/')) throw new Error(`send() takes a same-origin path, not ${path}`);
   const method = options.method ?? (options.json === undefined ? 'GET' : 'POST');
   const body = options.json === undefined ? null : JSON.stringify(options.json);
-  const entry: OutboundEntry = { id: nextId++, method, path, sentAt: new Date().toISOString(), body, status: null, failure: null };
+  const entry: OutboundEntry = { id: nextId++, method, path, sentAt: new Date().toISOString(), body: body === null ? null : (options.logBodyAs ?? body), status: null, failure: null };
   let decodedPath = path;
   try {
     decodedPath = decodeURIComponent(path);
