@@ -88,6 +88,13 @@ describe('the sign-in watch in the workspace', () => {
     await notice.waitFor({ state: 'detached' });
     const { rows } = await owner.query('SELECT extract(epoch from now() - last_used_at)::int AS idle FROM sessions WHERE id = $1', [id]);
     expect(rows[0].idle).toBeLessThan(60);
+
+    // Near the 12-hour limit nothing can keep it alive: the notice only says when, with no button.
+    await owner.query("UPDATE sessions SET expires_at = now() + interval '4 minutes' WHERE id = $1", [id]);
+    await comeBack();
+    await notice.waitFor();
+    expect(await notice.textContent()).toContain('Your sign-in reaches its time limit in 4 minutes.');
+    expect(await notice.getByRole('button').count()).toBe(0);
   });
 
   it('after 60 idle minutes, signs in again in a dialog; the recording and its decomposition stay', async () => {

@@ -9,6 +9,8 @@ import { dictionary } from '@zxcvbn-ts/language-common';
 import { Client, latestMailId, linkIn, pool, unique, waitForMail } from '../helpers/app';
 import { createMember, createTeam } from '../helpers/fixtures';
 import { DEMO_PEOPLE } from '../../src/db/seed';
+import { throttleSubject } from '../../src/db/queries/throttles';
+import { limits } from '../../src/lib/server/rate-limit';
 
 /** The table keeps SHA-256(cookie token) in hex (FIPS 180-4, computed here with node:crypto), never the token. */
 const rowId = (token: string) => createHash('sha256').update(token).digest('hex');
@@ -386,5 +388,28 @@ describe('signing in again from the workspace (/api/session)', () => {
     expect((await client.request('/api/me')).status).toBe(200);
     const { rows } = await owner.query("SELECT action FROM audit_events WHERE actor_id = $1 AND action LIKE 'session.signIn%' ORDER BY id", [member.user.id]);
     expect(rows.map((r) => r.action)).toEqual(['session.signIn', 'session.signInFailed', 'session.signIn']);
+  });
+
+  it('shares the sign-in page\'s throttle: ten wrong passwords lock the account on both', async () => {
+    const { team } = await createTeam();
+    const member = await createMember(team.id, 'analyst');
+    const client = new Client();
+    const statuses: number[] = [];
+    for (let i = 0; i < 10; i++) {
+      statuses.push((await client.request('/api/session', { method: 'POST', json: { email: member.email, password: `wrong-${i}-password` } })).status);
+    }
+    expect(statuses).toEqual([400, 400, 400, 400, 400, 400, 400, 400, 400, 429]);
+    const locked = await client.request('/api/session', { method: 'POST', json: { email: member.email, password: member.password } });
+    expect(locked.status).toBe(429);
+    expect((await locked.json()).error.waitSeconds).toBeGreaterThan(0);
+    const page = await new Client().signIn(member.email, member.password);
+    expect(page.status).toBe(429);
+    expect(await page.text()).toContain('Too many failed sign-ins.');
+
+    // These ten failures also count against this machine's address (50 per 15 minutes, shared by every test that
+    // signs in from loopback): give that allowance back so later tests are not refused for it.
+    const { rows } = await owner.query("SELECT DISTINCT detail->>'address' AS address FROM audit_events WHERE actor_id = $1 AND action = 'session.signInFailed'", [member.user.id]);
+    expect(rows).toHaveLength(1);
+    await owner.query('DELETE FROM throttles WHERE bucket = $1 AND subject = $2', [limits.signInAddress.bucket, throttleSubject(limits.signInAddress, rows[0].address)]);
   });
 });
