@@ -63,6 +63,9 @@ describe('session limits (defaults: 60 minutes idle, 12 hours absolute)', () => 
     expect(body.absoluteMinutes).toBe(ABSOLUTE_HOURS * 60);
     expect(body.idleSecondsLeft).toBeGreaterThan(0);
     expect(body.idleSecondsLeft).toBeLessThanOrEqual(60);
+    const { rows: stored } = await pool.query('SELECT last_used_at, expires_at FROM sessions WHERE id = $1', [id]);
+    expect(body.idleExpiresAt).toBe(new Date(stored[0].last_used_at.getTime() + IDLE_MINUTES * 60_000).toISOString());
+    expect(body.expiresAt).toBe(stored[0].expires_at.toISOString());
     // Asking for the status is not activity: the idle clock did not restart.
     const { rows: after } = await pool.query(`SELECT extract(epoch from now() - last_used_at)::int AS idle FROM sessions WHERE id = $1`, [id]);
     expect(after[0].idle).toBeGreaterThanOrEqual((IDLE_MINUTES - 1) * 60);

@@ -138,6 +138,9 @@ export interface SessionTimes {
   idleSecondsLeft: number;
   /** Seconds until the absolute limit ends it, whatever happens. */
   absoluteSecondsLeft: number;
+  /** The same two moments as ISO times (the database's clock). */
+  idleExpiresAt: string;
+  expiresAt: string;
 }
 
 /** How long session `id` has left, counted on the database's clock; null when it does not exist. */
@@ -146,11 +149,18 @@ export async function sessionTimes(id: string): Promise<SessionTimes | null> {
     .select({
       idle: sql<number>`floor(extract(epoch from ${sessions.lastUsedAt} + make_interval(mins => ${settings.sessionIdleMinutes}) - now()))::int`,
       absolute: sql<number>`floor(extract(epoch from ${sessions.expiresAt} - now()))::int`,
+      idleAtMs: sql<string>`floor(extract(epoch from least(${sessions.lastUsedAt} + make_interval(mins => ${settings.sessionIdleMinutes}), ${sessions.expiresAt})) * 1000)::float8`,
+      absoluteAt: sessions.expiresAt,
     })
     .from(sessions)
     .where(eq(sessions.id, id))
     .limit(1);
   const row = rows[0];
   if (!row) return null;
-  return { idleSecondsLeft: Math.max(0, Math.min(row.idle, row.absolute)), absoluteSecondsLeft: Math.max(0, row.absolute) };
+  return {
+    idleSecondsLeft: Math.max(0, Math.min(row.idle, row.absolute)),
+    absoluteSecondsLeft: Math.max(0, row.absolute),
+    idleExpiresAt: new Date(Number(row.idleAtMs)).toISOString(),
+    expiresAt: row.absoluteAt.toISOString(),
+  };
 }
