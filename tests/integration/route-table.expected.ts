@@ -70,8 +70,17 @@ export const routeTable: Record<string, Expected> = {
   'GET /teams/[teamId]/studies/[studyId]/workspace':  row(404, 200, 200, 200, signIn('/teams/{teamId}/studies/{studyId}/workspace'), 404),
   'POST /teams/[teamId]/studies/[studyId]/workspace': row(404, 200, 200, 200, signIn('/teams/{teamId}/studies/{studyId}/workspace'), 404),
 
+  // One's own account (password, sessions): any signed-in person; the empty form names no action (400).
+  'GET /account':                                row(200, 200, 200, 200, signIn('/account'), 200),
+  'POST /account':                               row(400, 400, 400, 400, signIn('/account'), 400),
+
   // JSON API: 401 signed out, 404 outside one's teams, 403 for the role, 400 for the empty body.
   'GET /api/me':                                 row(200, 200, 200, 200, 401, 200),
+  // The workspace's sign-in watch: status (401 with the reason when signed out), sign in again (anyone; `{}` is
+  // 400 before any account is looked at), keep alive.
+  'GET /api/session':                            row(200, 200, 200, 200, 401, 200),
+  'POST /api/session':                           all(400),
+  'POST /api/session/keep':                      row(200, 200, 200, 200, 401, 200),
   'GET /api/studies/[studyId]':                  row(404, 200, 200, 200, 401, 404),
   'GET /api/studies/[studyId]/analysis-sessions':  row(404, 200, 200, 200, 401, 404),
   'POST /api/studies/[studyId]/analysis-sessions': row(404, 403, 400, 403, 401, 404),
