@@ -71,7 +71,7 @@ function shutdown(signal) {
   force.unref();
   server.close(async () => {
     // Then the database pool (src/db/client.ts registers how to close it), so PostgreSQL sees a clean goodbye.
-    await globalThis.__tidemarkCloseDatabase?.().catch(() => {});
+    await globalThis.__closeTidemarkDatabasePool?.().catch(() => {});
     process.exit(0);
   });
   server.closeIdleConnections();

@@ -27,7 +27,7 @@ pool.on('error', (error) => {
 export const db = drizzle(pool, { schema });
 export type Db = typeof db;
 // server/main.mjs closes the pool after the last request in flight on SIGTERM.
-(globalThis as { __tidemarkCloseDatabase?: () => Promise<void> }).__tidemarkCloseDatabase = () => pool.end();
+(globalThis as { __closeTidemarkDatabasePool?: () => Promise<void> }).__closeTidemarkDatabasePool = () => pool.end();
 
 const UNAVAILABLE_CODES = new Set([
   'ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EPIPE', 'ENOTFOUND', 'EHOSTUNREACH',
