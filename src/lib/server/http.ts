@@ -101,12 +101,41 @@ export async function parseJson<T extends z.ZodType>(request: Request, schema: T
   } catch {
     throw new HttpError(400, 'bad_json', 'The body is not valid JSON.');
   }
+  const nul = nulPath(data, '');
+  if (nul !== null) {
+    const issues = [{ path: nul || '(body)', message: 'Text may not contain the NUL character (U+0000).' }];
+    throw new HttpError(400, 'invalid', `${issues[0].path}: ${issues[0].message}`, issues);
+  }
   const parsed = schema.safeParse(data);
   if (!parsed.success) {
     const issues = issuesOf(parsed.error);
     throw new HttpError(400, 'invalid', issues.map((i) => `${i.path}: ${i.message}`).join('; '), issues);
   }
   return parsed.data;
+}
+
+/**
+ * The path of the first string (value or key) holding U+0000, else null. PostgreSQL's text type cannot store NUL
+ * (PostgreSQL docs, "Character Types"), so such input is refused as input, not left to fail as a server error.
+ */
+export function nulPath(value: unknown, path: string): string | null {
+  if (typeof value === 'string') return value.includes('\u0000') ? path : null;
+  if (Array.isArray(value)) {
+    for (let i = 0; i < value.length; i++) {
+      const found = nulPath(value[i], path ? `${path}.${i}` : String(i));
+      if (found !== null) return found;
+    }
+    return null;
+  }
+  if (value && typeof value === 'object') {
+    for (const [k, v] of Object.entries(value)) {
+      const here = path ? `${path}.${k}` : k;
+      if (k.includes('\u0000')) return here;
+      const found = nulPath(v, here);
+      if (found !== null) return found;
+    }
+  }
+  return null;
 }
 
 export type FormResult<T> =
@@ -137,6 +166,8 @@ export async function readForm<T extends z.ZodType>(request: Request, schema: T)
   // An absent field reads as empty, so it earns the field's own message ("Enter your password.").
   if ('shape' in schema && schema.shape && typeof schema.shape === 'object') for (const k of Object.keys(schema.shape)) raw[k] = '';
   for (const [k, v] of form.entries()) raw[k] = v;
+  const nul = nulPath(raw, '');
+  if (nul !== null) return { ok: false, message: 'Please correct the marked fields. Nothing was changed.', fields: { [nul]: 'Text may not contain the NUL character.' }, values: raw };
   const parsed = schema.safeParse(raw);
   if (parsed.success) return { ok: true, data: parsed.data };
   const fields: Record<string, string> = {};
