@@ -1,16 +1,8 @@
 import FFT from 'fft.js';
+import { mulberry32 } from '../../src/lib/statistics/map-test';
 
-/** mulberry32, a small seeded 32-bit generator (Tommy Ettinger, public domain): uniform in [0, 1). */
-export function seededUniform(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** mulberry32 (Tommy Ettinger, public domain): the statistics core's own generator, uniform in [0, 1). */
+export const seededUniform: (seed: number) => () => number = mulberry32;
 
 /** Standard normal deviates by the Box–Muller transform (Box & Muller, 1958, Ann. Math. Stat. 29:610–611). */
 export function seededNormal(seed: number): () => number {
