@@ -40,12 +40,13 @@ export interface DecomposeOptions {
 }
 
 /**
- * Morlet wavelet power `|x ∗ w_f|²` (µV²) of every epoch of one channel, accumulated into trial averages and,
- * for scope `trial`, into averages of per-trial normalized power as each trial is produced (analysis contract,
- * "Complex Morlet wavelet power" and "Baseline normalization"). Per epoch: one real forward FFT; per frequency:
- * the inverse of `X·W_f` over the wavelet's band only, as `N_f/M_f` transforms of size `M_f` (see `WaveletBank`),
- * or, when no per-trial row is needed (scope `average`, no single trials), one transform of size 2M on a coarse
- * time grid whose sum over trials is interpolated exactly once per condition (see `averagePower`).
+ * Morlet wavelet power `|x ∗ w_f|²` (µV²) of every epoch of one channel, each epoch's own mean removed first,
+ * accumulated into trial averages and, for scope `trial`, into averages of per-trial normalized power as each
+ * trial is produced (analysis contract, "Epoch means", "Complex Morlet wavelet power" and "Baseline
+ * normalization"). Per epoch: one real forward FFT; per frequency: the inverse of `X·W_f` over the wavelet's band
+ * only, as `N_f/M_f` transforms of size `M_f` (see `WaveletBank`), or, when no per-trial row is needed (scope
+ * `average`, no single trials), one transform of size 2M on a coarse time grid whose sum over trials is
+ * interpolated exactly once per condition (see `averagePower`).
  * No trial × frequency × time array is kept (unless `singleTrials`): memory is bounded by frequencies × times per
  * condition. Sums run in Float64 in epoch order, so a channel gives the same bits wherever it runs.
  */
@@ -96,7 +97,13 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
       const nb = Math.min(EPOCH_BLOCK, trials - e0);
       for (let b = 0; b < nb; b++) {
         const s0 = starts[e0 + b];
-        for (let j = 0; j < L; j++) epoch[j] = samples[s0 + j];
+        // Each epoch's own mean is removed before the transform (analysis contract, "Epoch means"): a Morlet
+        // wavelet without a correction term passes about 2·exp(−n²/2) of a steady offset. The sum runs in Float64
+        // in sample order, so the mean has the same bits in every engine.
+        let total = 0;
+        for (let j = 0; j < L; j++) total += samples[s0 + j];
+        const mean = total / L;
+        for (let j = 0; j < L; j++) epoch[j] = samples[s0 + j] - mean;
         forward.realTransform(spectra[b], epoch);
         forward.completeSpectrum(spectra[b]);
       }

@@ -100,10 +100,12 @@ describe('Morlet wavelet', () => {
 
 describe('decomposeChannel', () => {
   // Independent reference: the linear convolution y[j] = Σ_k x[j−k]·w[k] written out in the time domain, with the
-  // epoch zero outside its own samples.
+  // epoch zero outside its own samples and its own mean removed first (analysis contract, "Epoch means").
   function directPower(x: Float32Array, start: number, L: number, f: number, sigma: number, fs: number, halfWidth?: number) {
     const w = morletWavelet(f, sigma, fs, halfWidth);
     const h = w.halfWidth;
+    let mean = 0;
+    for (let i = 0; i < L; i++) mean += x[start + i] / L;
     const out = new Float64Array(L);
     for (let j = 0; j < L; j++) {
       let re = 0;
@@ -111,8 +113,8 @@ describe('decomposeChannel', () => {
       for (let k = -h; k <= h; k++) {
         const i = j - k;
         if (i < 0 || i >= L) continue;
-        re += x[start + i] * w.re[k + h];
-        im += x[start + i] * w.im[k + h];
+        re += (x[start + i] - mean) * w.re[k + h];
+        im += (x[start + i] - mean) * w.im[k + h];
       }
       out[j] = re * re + im * im;
     }
