@@ -1,4 +1,4 @@
-import { parseRecipe, type Recipe } from '../lib/analysis/recipe';
+import { readRecipe, type Recipe } from '../lib/analysis/recipe';
 import type { Recording } from '../lib/analysis/recording';
 import { planRecipe } from '../lib/analysis/run-recipe';
 import { DEFAULT_DRAFT, useRecipeStore, type RecipeDraft } from './recipe';
@@ -19,7 +19,7 @@ function draftOf(recipe: Recipe, conditionNames: string[], current: RecipeDraft)
     channels: recipe.channels?.slice() ?? [],
     conditions: all ? [] : recipe.epochs.events.slice(),
     spectrum: { ...recipe.spectrum, range: [recipe.spectrum.range[0], recipe.spectrum.range[1]] },
-    aperiodic: { mode: recipe.aperiodic.mode },
+    aperiodic: { model: recipe.aperiodic.model },
   };
 }
 
@@ -44,9 +44,10 @@ export function applyRecipe(
   reading: { unitFactors?: Record<string, number>; exclude?: readonly string[] } | null = null,
 ): ApplyOutcome {
   let recipe: Recipe;
+  let upgraded: string | null;
   try {
-    recipe = parseRecipe(input);
-    planRecipe(recording, input);
+    ({ recipe, notice: upgraded } = readRecipe(input));
+    planRecipe(recording, recipe);
   } catch (error) {
     const e = error as { field?: string; message?: string };
     return { ok: false, field: e.field ?? 'recipe', message: e.message ?? String(error) };
@@ -64,12 +65,14 @@ export function applyRecipe(
       ? { ...defaultRejection, peakToPeakMicrovolts: null, flatMicrovolts: null, overrides: {} }
       : { peakToPeakMicrovolts: r.peakToPeakMicrovolts, flatMicrovolts: r.flatMicrovolts, scope: r.scope, channels: r.channels?.slice(), overrides: { ...r.overrides } };
   const source = useSourceStore.getState();
-  source.set({ conditions, epochWindow: { tmin: recipe.epochs.tmin, tmax: recipe.epochs.tmax }, rejection });
+  source.set({ conditions, epochWindow: { start: recipe.epochs.start, end: recipe.epochs.end }, rejection });
   source.recompute();
   useRecipeStore.setState((s) => ({ draft: draftOf(recipe, conditions.map((c) => c.name), s.draft ?? DEFAULT_DRAFT) }));
   useViewStore.getState().set({ method: recipe.baseline.method, scope: recipe.baseline.scope, fitRange: [recipe.aperiodic.range[0], recipe.aperiodic.range[1]] });
   useViewStore.getState().setBaseline({ start: recipe.baseline.start, end: recipe.baseline.end });
   const notices: string[] = [];
+  // Format 1 is upgraded in place; say so (analysis contract: never silently). The next export writes format 2.
+  if (upgraded !== null) notices.push('This recipe is in format 1 (written before format 2): it was read with its old names upgraded (epochs.tmin/tmax → start/end, method "db" → "decibel" and so on); Export recipe JSON writes it in format 2.');
   if (recipe.recording?.fingerprint !== undefined && fingerprint !== null && recipe.recording.fingerprint !== fingerprint) {
     notices.push(`This recipe was made on another recording (SHA-256 ${recipe.recording.fingerprint.slice(0, 12)}…); the open one is ${fingerprint.slice(0, 12)}….`);
   }

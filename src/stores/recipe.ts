@@ -1,4 +1,6 @@
 import { create } from 'zustand';
+import type { AperiodicModel } from '../lib/analysis/aperiodic';
+import type { BaselineMethod } from '../lib/analysis/baseline';
 import type { RecipeInput } from '../lib/analysis/recipe';
 import { sourceSpec, type Condition, type RejectionSettings } from './source';
 
@@ -18,7 +20,7 @@ export interface RecipeDraft {
   conditions: string[];
   spectrum: { segment: number; overlap: number; range: [number, number]; source: 'recording' | 'epochs' };
   /** The fit range is live view state (`useViewStore().fitRange`, dragged on the Spectrum screen), like the baseline. */
-  aperiodic: { mode: 'fixed' | 'knee' };
+  aperiodic: { model: AperiodicModel };
 }
 
 // 3–45 Hz covers the default bands (theta 4–8 … gamma 30–45 Hz). At 3 Hz the 3-cycle wavelet's edge zone is
@@ -33,7 +35,7 @@ export const DEFAULT_DRAFT: RecipeDraft = {
   channels: [],
   conditions: [],
   spectrum: { segment: 1, overlap: 0.5, range: [1, 45], source: 'recording' },
-  aperiodic: { mode: 'fixed' },
+  aperiodic: { model: 'power-law' },
 };
 
 export interface RunChannelProgress {
@@ -64,8 +66,9 @@ export const useRecipeStore = create<RecipeState>((set, get) => ({
 /** What the Source screen contributes to a recipe. */
 export interface RecipeSource {
   conditions: Condition[];
-  tmin: number;
-  tmax: number;
+  /** The epoch window, `epochs.start`/`end` in seconds from the event. */
+  epochStart: number;
+  epochEnd: number;
   rejection: RejectionSettings;
   /** SHA-256 of the open file; written into the recipe only when it is one (64 hex digits). */
   fingerprint: string | null;
@@ -81,7 +84,7 @@ export interface RecipeSource {
 export function toRecipe(
   draft: RecipeDraft,
   source: RecipeSource,
-  baseline: { start: number; end: number; method: 'db' | 'percent' | 'zscore' | 'ratio'; scope: 'average' | 'trial' },
+  baseline: { start: number; end: number; method: BaselineMethod; scope: 'average' | 'trial' },
   fitRange: readonly [number, number],
 ): RecipeInput {
   const cycles =
@@ -92,15 +95,16 @@ export function toRecipe(
         : { min: draft.cyclesMin, max: draft.cyclesMax };
   const conditionNames = source.conditions.map((c) => c.name);
   const events = draft.conditions.length > 0 ? draft.conditions.filter((c) => conditionNames.includes(c)) : conditionNames;
-  const spec = sourceSpec({ conditions: source.conditions, epochWindow: source, rejection: source.rejection });
+  const spec = sourceSpec({ conditions: source.conditions, epochWindow: { start: source.epochStart, end: source.epochEnd }, rejection: source.rejection });
   return {
-    epochs: { events, tmin: source.tmin, tmax: source.tmax },
+    format: 2,
+    epochs: { events, start: source.epochStart, end: source.epochEnd },
     ...(draft.channels.length > 0 ? { channels: draft.channels } : {}),
     frequencies: { ...draft.frequencies },
     cycles,
     baseline: { ...baseline },
     spectrum: { ...draft.spectrum, range: [...draft.spectrum.range] as [number, number] },
-    aperiodic: { range: [fitRange[0], fitRange[1]], mode: draft.aperiodic.mode },
+    aperiodic: { range: [fitRange[0], fitRange[1]], model: draft.aperiodic.model },
     conditions: spec.conditions as Record<string, string[]>,
     rejection: spec.rejection as NonNullable<RecipeInput['rejection']>,
     ...recordingSection(source),
@@ -124,5 +128,5 @@ function recordingSection(source: RecipeSource): Pick<RecipeInput, 'recording'> 
  */
 export function decompositionKey(recordingId: string, recipe: RecipeInput): string {
   const { baseline: _baseline, aperiodic, ...rest } = recipe;
-  return `${recordingId}|${JSON.stringify({ ...rest, aperiodicMode: aperiodic.mode })}`;
+  return `${recordingId}|${JSON.stringify({ ...rest, aperiodicModel: aperiodic.model })}`;
 }

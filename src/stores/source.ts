@@ -55,7 +55,7 @@ export interface SourceState {
   fingerprint: string | null;
   subjectCode: string;
   conditions: Condition[];
-  epochWindow: { tmin: number; tmax: number };
+  epochWindow: { start: number; end: number };
   rejection: RejectionSettings;
   /** One entry per event that belongs to a condition, recomputed when settings change. */
   decisions: EpochDecision[];
@@ -67,7 +67,7 @@ export interface SourceState {
   /** Puts a freshly opened recording in place, keeping conditions whose labels it also has. */
   load: (opened: { recording: Recording; local: LocalRecordingInfo; fingerprint: string }) => void;
   setConditions: (conditions: Condition[]) => void;
-  setEpochWindow: (epochWindow: { tmin: number; tmax: number }) => void;
+  setEpochWindow: (epochWindow: { start: number; end: number }) => void;
   setRejection: (patch: Partial<Omit<RejectionSettings, 'overrides'>>) => void;
   /** A manual decision for one epoch; null returns it to the rules. */
   setOverride: (eventIndex: number, decision: 'keep' | 'reject' | null) => void;
@@ -81,7 +81,7 @@ type Actions = 'load' | 'setConditions' | 'setEpochWindow' | 'setRejection' | 's
 export function sourceSpec(state: Pick<SourceState, 'conditions' | 'epochWindow' | 'rejection'>): PrepareSpec {
   const { conditions, epochWindow, rejection } = state;
   return {
-    epochs: { tmin: epochWindow.tmin, tmax: epochWindow.tmax },
+    epochs: { start: epochWindow.start, end: epochWindow.end },
     conditions: Object.fromEntries(conditions.map((c) => [c.name, c.labels.slice()])),
     rejection: {
       peakToPeakMicrovolts: rejection.peakToPeakMicrovolts,
@@ -137,7 +137,7 @@ export const useSourceStore = create<SourceState>((set, get) => ({
   subjectCode: '',
   conditions: [],
   // 3 s around the event: room for a −0.5 … −0.2 s baseline clear of the edge zone down to 3 Hz (recipe defaults).
-  epochWindow: { tmin: -1, tmax: 2 },
+  epochWindow: { start: -1, end: 2 },
   rejection: defaultRejection,
   decisions: [],
   settingsError: null,

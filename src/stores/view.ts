@@ -56,7 +56,7 @@ export const useViewStore = create<ViewState>((set) => ({
   condition: null,
   compareTo: null,
   baseline: { start: -0.5, end: -0.2 },
-  method: 'db',
+  method: 'decibel',
   scope: 'average',
   rawScale: 'log',
   spectrumAxes: 'log-log',

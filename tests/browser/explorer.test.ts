@@ -12,7 +12,7 @@ import { openWorkspace, readMapCell, recordProgress, progressSeen } from '../hel
 
 // The demo recording: 60 s of the invented Harbour Lights scenario, three channels, generated from its seed in the
 // page (through the ?testhooks hook) and here in Node, so both sides analyse the same samples.
-const DEMO = { seconds: 60, channels: ['Fz', 'Cz', 'Pz'], tmin: -0.5, tmax: 1.5 };
+const DEMO = { seconds: 60, channels: ['Fz', 'Cz', 'Pz'], epochStart: -0.5, epochEnd: 1.5 };
 
 let browser: Browser;
 let close: () => Promise<void>;
@@ -186,7 +186,7 @@ describe('the explorer on a demo recording', () => {
   it('switches methods instantly and keeps matching the core', async () => {
     const fi = nearest(result.frequencies, 6);
     const ti = nearest(result.times, 0.4);
-    for (const [method, label, unit] of [['percent', 'percent', '%'], ['zscore', 'z-score', ' z'], ['ratio', 'ratio', '×']] as const) {
+    for (const [method, label, unit] of [['percent-change', 'percent change', '%'], ['z-score', 'z-score', ' z'], ['power-ratio', 'power ratio', '×']] as const) {
       await page.getByText(label, { exact: true }).click();
       const cell = await readMapCell(page, fi, ti);
       expect(cell.text).toContain(unit);
@@ -253,9 +253,9 @@ describe('the spectrum and band screens', () => {
     const fz = welchPsd(recording.data[recording.channelNames.indexOf('Fz')], 500, plan.spectrum.segmentSamples, plan.spectrum.overlapSamples, plan.spectrum.spans);
     expect(recipe.spectrum.source).toBe('recording');
     const { channel: _fz, ...coreFit } = nodeResult(recipe).aperiodic.find((a) => a.channel === 'Fz')!;
-    expect(fitAperiodic(fz.frequencies, fz.psd, [2, 40], 'fixed')).toEqual(coreFit);
+    expect(fitAperiodic(fz.frequencies, fz.psd, [2, 40], 'power-law')).toEqual(coreFit);
     const expectFit = async (range: [number, number]) => {
-      const expected = fitAperiodic(fz.frequencies, fz.psd, range, 'fixed');
+      const expected = fitAperiodic(fz.frequencies, fz.psd, range, 'power-law');
       await page.waitForFunction((e) => Math.abs(Number(document.querySelector('[data-testid="fit-readout"]')?.getAttribute('data-exponent')) - e) < 1e-9, expected.exponent);
       return expected.exponent;
     };
@@ -280,7 +280,7 @@ describe('the spectrum and band screens', () => {
     expect(await page.getByTestId('fit-table').locator('th[aria-sort="ascending"]').count()).toBe(1);
 
     const csv = (await download('export-fits')).bytes.toString('utf8').trim().split(/\r?\n/);
-    expect(csv[0]).toBe('channel,exponent,offset,knee,r2,rmse,points,excluded,fit_low_hz,fit_high_hz,mode,trials');
+    expect(csv[0]).toBe('channel,exponent,offset,knee,r2,rmse,points,excluded,fit_low_hz,fit_high_hz,model,trials');
     expect(csv).toHaveLength(1 + DEMO.channels.length);
     expect(Number(csv.find((l) => l.startsWith('Fz,'))!.split(',')[1])).toBeCloseTo(after, 9);
     await page.screenshot({ path: path.join(artifactsDir, 'explorer-spectrum.png'), fullPage: true });

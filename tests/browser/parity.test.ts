@@ -197,9 +197,9 @@ describe('browser worker pool and command line on the same EDF+ bytes', () => {
       channels: ['Pz', 'Fz'],
       frequencies: { min: 4, max: 30, count: 7, spacing: 'linear' },
       cycles: { fwhm: 0.35 },
-      baseline: { ...(recipe.baseline as object), method: 'zscore', scope: 'trial' },
+      baseline: { ...(recipe.baseline as object), method: 'z-score', scope: 'trial' },
       spectrum: { segment: 0.5, overlap: 0.25, range: [1, 60], source: 'epochs' },
-      aperiodic: { range: [2, 50], mode: 'knee' },
+      aperiodic: { range: [2, 50], model: 'power-law-knee' },
     };
     const pageText = await page.evaluate((r) => window.__tidemark!.runPool(r), variant);
     const { text, result } = cli(variant, 'variant');

@@ -100,8 +100,10 @@ describe('a recipe exported from the page reproduces the page on the command lin
     expect(recipe.rejection.overrides).toEqual({ [key(rescued)]: 'keep', [key(dropped)]: 'reject' });
     // The fingerprint is the SHA-256 of the file's bytes (FIPS 180-4, computed here by node:crypto).
     expect(recipe.recording).toEqual({ fingerprint: createHash('sha256').update(bytes).digest('hex') });
-    expect(recipe.baseline).toEqual({ start: -0.5, end: -0.2, method: 'db', scope: 'average' });
-    expect(recipe.epochs).toMatchObject({ tmin: -1, tmax: 2 });
+    expect(recipe.baseline).toEqual({ start: -0.5, end: -0.2, method: 'decibel', scope: 'average' });
+    expect(recipe.format).toBe(2);
+    expect(recipe.epochs).toMatchObject({ start: -1, end: 2 });
+    expect(recipe.aperiodic.model).toBe('power-law');
     expect(recipe.spectrum.source).toBe('recording');
     fs.writeFileSync(path.join(dir, 'recipe.json'), JSON.stringify(recipe));
     result = analyze(path.join(dir, 'recipe.json'));
@@ -163,5 +165,16 @@ describe('a recipe exported from the page reproduces the page on the command lin
     await page.getByRole('tab', { name: 'Source' }).click();
     await expect.poll(() => p2p.inputValue()).toBe('200');
     expect(await page.locator(`[data-testid="epoch-row"][data-event-index="${rescued}"]`).getAttribute('data-verdict')).toBe('kept');
+  });
+
+  it('loads the same recipe written in format 1 with a visible note that it was upgraded (analysis contract)', async () => {
+    await page.getByRole('tab', { name: 'Recipe' }).click();
+    const { format: _format, ...rest } = recipe;
+    const old = { ...rest, epochs: { events: recipe.epochs.events, tmin: recipe.epochs.start, tmax: recipe.epochs.end }, baseline: { ...recipe.baseline, method: 'zscore' }, aperiodic: { range: recipe.aperiodic.range, mode: 'knee' } };
+    await page.getByTestId('load-recipe-file').setInputFiles({ name: 'old.json', mimeType: 'application/json', buffer: Buffer.from(JSON.stringify(old)) });
+    await expect.poll(() => page.getByTestId('load-recipe-message').textContent()).toContain('Loaded old.json');
+    expect(await page.getByTestId('load-recipe-message').textContent()).toMatch(/This recipe is in format 1 .*upgraded/);
+    expect(await page.getByTestId('recipe-epoch-start').inputValue()).toBe(String(recipe.epochs.start));
+    expect(await page.getByLabel('power law with knee').isChecked()).toBe(true);
   });
 });

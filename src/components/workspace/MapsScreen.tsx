@@ -20,10 +20,10 @@ import { installTestHooks } from '../explorer/test-hooks';
 installTestHooks();
 
 const METHODS: { value: BaselineMethod; label: string }[] = [
-  { value: 'db', label: 'dB' },
-  { value: 'percent', label: 'percent' },
-  { value: 'zscore', label: 'z-score' },
-  { value: 'ratio', label: 'ratio' },
+  { value: 'decibel', label: 'dB' },
+  { value: 'percent-change', label: 'percent change' },
+  { value: 'z-score', label: 'z-score' },
+  { value: 'power-ratio', label: 'power ratio' },
 ];
 
 interface TrialMaps {

@@ -47,7 +47,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const visible = usePanelVisible('Recipe');
 
   const conditionNames = conditions.map((c) => c.name);
-  const recipe = toRecipe(draft, { conditions, tmin: epochWindow.tmin, tmax: epochWindow.tmax, rejection, fingerprint, reading }, { ...baseline, method, scope }, fitRange);
+  const recipe = toRecipe(draft, { conditions, epochStart: epochWindow.start, epochEnd: epochWindow.end, rejection, fingerprint, reading }, { ...baseline, method, scope }, fitRange);
   // The whole recording goes to the core with the full recipe: prepareRecording applies conditions and rejection there.
   const analysis = recording;
   const recordingId = recording === null ? null : recordingIdOf(recording, fingerprint);
@@ -161,8 +161,8 @@ export default function RecipeScreen(_props: WorkspaceProps) {
         <legend className="px-1 text-sm font-semibold">Epochs and conditions</legend>
         <div className="flex flex-wrap items-end gap-4">
           {/* The epoch window belongs to the Source screen (its rejection rules run on it); edited here through its store. */}
-          <NumberField label="Epoch from" unit="s" value={epochWindow.tmin} step={0.1} testId="recipe-tmin" error={errorFor('epochs.tmin')} onValue={(v) => useSourceStore.getState().setEpochWindow({ tmin: v, tmax: epochWindow.tmax })} />
-          <NumberField label="Epoch to" unit="s" value={epochWindow.tmax} step={0.1} testId="recipe-tmax" error={errorFor('epochs.tmax')} onValue={(v) => useSourceStore.getState().setEpochWindow({ tmin: epochWindow.tmin, tmax: v })} />
+          <NumberField label="Epoch from" unit="s" value={epochWindow.start} step={0.1} testId="recipe-epoch-start" error={errorFor('epochs.start')} onValue={(v) => useSourceStore.getState().setEpochWindow({ start: v, end: epochWindow.end })} />
+          <NumberField label="Epoch to" unit="s" value={epochWindow.end} step={0.1} testId="recipe-epoch-end" error={errorFor('epochs.end')} onValue={(v) => useSourceStore.getState().setEpochWindow({ start: epochWindow.start, end: v })} />
           <p className="text-sm text-ink-soft">around each event; only epochs kept on the Source screen are used.</p>
         </div>
         {settingsError !== null && (
@@ -237,14 +237,14 @@ export default function RecipeScreen(_props: WorkspaceProps) {
         <NumberField label="Fit from" unit="Hz" value={fitRange[0]} step={0.5} error={errorFor('aperiodic.range')} onValue={(v) => setView({ fitRange: [v, fitRange[1]] })} />
         <NumberField label="Fit to" unit="Hz" value={fitRange[1]} step={0.5} onValue={(v) => setView({ fitRange: [fitRange[0], v] })} />
         <Choice legend="Spectrum from" value={draft.spectrum.source} options={[{ value: 'recording', label: 'whole recording' }, { value: 'epochs', label: 'kept epochs' }]} onChange={(src) => setDraft({ spectrum: { ...draft.spectrum, source: src } })} />
-        <Choice legend="Aperiodic model" value={draft.aperiodic.mode} options={[{ value: 'fixed', label: 'fixed' }, { value: 'knee', label: 'knee' }]} onChange={(m) => setDraft({ aperiodic: { ...draft.aperiodic, mode: m } })} />
+        <Choice legend="Aperiodic model" value={draft.aperiodic.model} options={[{ value: 'power-law', label: 'power law' }, { value: 'power-law-knee', label: 'power law with knee' }]} onChange={(m) => setDraft({ aperiodic: { ...draft.aperiodic, model: m } })} />
       </fieldset>
       {errorFor('baseline') && (
         <p className="text-sm text-coral-deep" role="alert">
           baseline {errorFor('baseline')} (set it on the Maps screen)
         </p>
       )}
-      {check !== null && !['frequencies.min', 'frequencies.max', 'frequencies.count', 'cycles', 'conditions', 'channels', 'epochs.tmin', 'epochs.tmax', 'spectrum.segment', 'spectrum.overlap', 'aperiodic.range', 'baseline'].includes(check.field) && (
+      {check !== null && !['frequencies.min', 'frequencies.max', 'frequencies.count', 'cycles', 'conditions', 'channels', 'epochs.start', 'epochs.end', 'spectrum.segment', 'spectrum.overlap', 'aperiodic.range', 'baseline'].includes(check.field) && (
         <p className="text-sm text-coral-deep" role="alert">
           {check.message}
         </p>

@@ -1,4 +1,4 @@
-import { fitAperiodic, type AperiodicFit, type AperiodicMode } from './aperiodic';
+import { fitAperiodic, type AperiodicFit, type AperiodicModel } from './aperiodic';
 import type { BaselineMethod, BaselineScope } from './baseline';
 import { decomposeChannel, type DecomposeOptions } from './decompose';
 import { welchPsd } from './welch';
@@ -20,14 +20,15 @@ export interface RecipePlan {
   /** Per condition, fitting epochs left out by rejection rules or by hand. */
   rejected: number[];
   epochSamples: number;
-  tminSeconds: number;
+  /** `epochs.start`, seconds from the event. */
+  epochStartSeconds: number;
   times: Float64Array;
   frequencies: Float64Array;
   sigmas: Float64Array;
   edgeSeconds: Float64Array;
   baseline: { first: number; last: number; method: BaselineMethod; scope: BaselineScope };
   spectrum: { segmentSamples: number; overlapSamples: number; range: [number, number]; spans: Int32Array };
-  aperiodic: { range: [number, number]; mode: AperiodicMode };
+  aperiodic: { range: [number, number]; model: AperiodicModel };
   warnings: string[];
 }
 
@@ -66,7 +67,7 @@ export function analyzeChannel(plan: RecipePlan, samples: Float32Array, options:
   );
   const sp = plan.spectrum;
   const welch = welchPsd(samples, plan.sampleRateHz, sp.segmentSamples, sp.overlapSamples, sp.spans);
-  const aperiodic = fitAperiodic(welch.frequencies, welch.psd, plan.aperiodic.range, plan.aperiodic.mode);
+  const aperiodic = fitAperiodic(welch.frequencies, welch.psd, plan.aperiodic.range, plan.aperiodic.model);
   let k0 = 0;
   while (k0 < welch.frequencies.length && welch.frequencies[k0] < sp.range[0] - EPS) k0++;
   let k1 = k0;

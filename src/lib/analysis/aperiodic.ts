@@ -2,13 +2,13 @@ import { levenbergMarquardt } from 'ml-levenberg-marquardt';
 import { AnalysisInputError } from './errors';
 import { log, log10, pow } from './portable-math';
 
-export type AperiodicMode = 'fixed' | 'knee';
+export type AperiodicModel = 'power-law' | 'power-law-knee';
 
 export interface AperiodicFit {
-  /** log10 power at 1 Hz for `fixed`; the additive constant b for `knee` (log10 µV²/Hz). */
+  /** log10 power at 1 Hz for `power-law`; the additive constant b for `power-law-knee` (log10 µV²/Hz). */
   offset: number;
   exponent: number;
-  /** Knee constant k (Hz^exponent) for `knee`, null for `fixed`. */
+  /** Knee constant k (Hz^exponent) for `power-law-knee`, null for `power-law`. */
   knee: number | null;
   /** Coefficient of determination over the points the final fit used (log10 units). */
   r2: number;
@@ -33,7 +33,7 @@ const LN10 = Math.LN10;
 
 /**
  * Aperiodic (1/f) fit of a power spectrum over `range` Hz, in log10 power against frequency:
- * `fixed` `log10 P = offset − exponent·log10 f` by ordinary least squares; `knee`
+ * `power-law` `log10 P = offset − exponent·log10 f` by ordinary least squares; `power-law-knee`
  * `log10 P = offset − log10(knee + f^exponent)` by Levenberg–Marquardt (ml-levenberg-marquardt).
  *
  * Robust to narrow oscillatory peaks after the spectral parameterization approach of Donoghue et al. (2020,
@@ -46,7 +46,7 @@ export function fitAperiodic(
   frequencies: ArrayLike<number>,
   psd: ArrayLike<number>,
   range: readonly [number, number],
-  mode: AperiodicMode,
+  model: AperiodicModel,
   options: AperiodicOptions = {},
 ): AperiodicFit {
   const [lo, hi] = range;
@@ -60,26 +60,26 @@ export function fitAperiodic(
       ys.push(log10(p));
     }
   }
-  const minPoints = mode === 'fixed' ? 3 : 4;
+  const minPoints = model === 'power-law' ? 3 : 4;
   if (fs.length < minPoints) {
-    throw new AnalysisInputError('aperiodic.range', `holds ${fs.length} usable spectrum bins between ${lo} and ${hi} Hz; the ${mode} fit needs at least ${minPoints}`);
+    throw new AnalysisInputError('aperiodic.range', `holds ${fs.length} usable spectrum bins between ${lo} and ${hi} Hz; the ${model} fit needs at least ${minPoints}`);
   }
   const f = Float64Array.from(fs);
   const y = Float64Array.from(ys);
   const n = f.length;
   const keep = new Uint8Array(n).fill(1);
-  let params = fitModel(mode, f, y, keep, null);
+  let params = fitModel(model, f, y, keep, null);
   if (options.robust !== false) {
     const residuals = new Float64Array(n);
     const minKeep = Math.max(minPoints, Math.ceil(n / 2));
     for (let round = 0; round < MAX_ROUNDS; round++) {
-      for (let i = 0; i < n; i++) residuals[i] = y[i] - predict(mode, params, f[i]);
+      for (let i = 0; i < n; i++) residuals[i] = y[i] - predict(model, params, f[i]);
       const next = peakFreeSet(residuals, keep, minKeep);
       let changed = false;
       for (let i = 0; i < n; i++) if (next[i] !== keep[i]) changed = true;
       if (!changed) break;
       keep.set(next);
-      params = fitModel(mode, f, y, keep, params);
+      params = fitModel(model, f, y, keep, params);
     }
   }
   let used = 0;
@@ -95,14 +95,14 @@ export function fitAperiodic(
   let ssTot = 0;
   for (let i = 0; i < n; i++) {
     if (!keep[i]) continue;
-    const r = y[i] - predict(mode, params, f[i]);
+    const r = y[i] - predict(model, params, f[i]);
     ssRes += r * r;
     ssTot += (y[i] - mean) * (y[i] - mean);
   }
   return {
     offset: params[0],
     exponent: params[1],
-    knee: mode === 'knee' ? params[2] : null,
+    knee: model === 'power-law-knee' ? params[2] : null,
     r2: ssTot > 0 ? 1 - ssRes / ssTot : 1,
     rmse: Math.sqrt(ssRes / used),
     points: n,
@@ -111,8 +111,8 @@ export function fitAperiodic(
 }
 
 /** params = [offset, exponent, knee?] */
-function predict(mode: AperiodicMode, params: readonly number[], f: number): number {
-  return mode === 'fixed' ? params[0] - params[1] * log10(f) : params[0] - log10(params[2] + pow(f, params[1]));
+function predict(model: AperiodicModel, params: readonly number[], f: number): number {
+  return model === 'power-law' ? params[0] - params[1] * log10(f) : params[0] - log10(params[2] + pow(f, params[1]));
 }
 
 // Points kept for the next round: residual − median ≤ 2.5 robust SDs, computed over the points kept now; if that
@@ -144,9 +144,9 @@ function median(values: number[]): number {
   return s.length % 2 === 1 ? s[mid] : 0.5 * (s[mid - 1] + s[mid]);
 }
 
-function fitModel(mode: AperiodicMode, f: Float64Array, y: Float64Array, keep: Uint8Array, start: number[] | null): number[] {
+function fitModel(model: AperiodicModel, f: Float64Array, y: Float64Array, keep: Uint8Array, start: number[] | null): number[] {
   const line = fitLine(f, y, keep);
-  if (mode === 'fixed') return line;
+  if (model === 'power-law') return line;
   const xs: number[] = [];
   const ys: number[] = [];
   for (let i = 0; i < f.length; i++) {

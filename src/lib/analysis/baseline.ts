@@ -1,7 +1,7 @@
 import { roundHalfUp } from './rounding';
 import { log10 } from './portable-math';
 
-export type BaselineMethod = 'db' | 'percent' | 'zscore' | 'ratio';
+export type BaselineMethod = 'decibel' | 'percent-change' | 'z-score' | 'power-ratio';
 export type BaselineScope = 'average' | 'trial';
 
 export interface BaselineIndices {
@@ -10,13 +10,13 @@ export interface BaselineIndices {
 }
 
 /**
- * Epoch grid indices of the baseline, `round((start − tmin)·fs)` to `round((end − tmin)·fs)` inclusive, halves up
+ * Epoch grid indices of the baseline, `round((start − epochs.start)·fs)` to `round((end − epochs.start)·fs)` inclusive, halves up
  * (analysis contract, "Baseline normalization"). Times in seconds, rate in Hz.
  */
-export function baselineIndices(startSeconds: number, endSeconds: number, tminSeconds: number, sampleRateHz: number): BaselineIndices {
+export function baselineIndices(startSeconds: number, endSeconds: number, epochStartSeconds: number, sampleRateHz: number): BaselineIndices {
   return {
-    first: roundHalfUp((startSeconds - tminSeconds) * sampleRateHz),
-    last: roundHalfUp((endSeconds - tminSeconds) * sampleRateHz),
+    first: roundHalfUp((startSeconds - epochStartSeconds) * sampleRateHz),
+    last: roundHalfUp((endSeconds - epochStartSeconds) * sampleRateHz),
   };
 }
 
@@ -42,18 +42,18 @@ export function baselineStats(row: ArrayLike<number>, offset: number, first: num
 }
 
 /**
- * One normalized value: db `10·log10(P/B)` (decibel, IEC 60027-3), percent `100·(P − B)/B`, zscore `(P − B)/S`,
- * ratio `P/B` (analysis contract table). Undefined cases (B = 0, S = 0) give ±Infinity or NaN, never a number.
+ * One normalized value: decibel `10·log10(P/B)` (IEC 60027-3), percent-change `100·(P − B)/B`, z-score
+ * `(P − B)/S`, power-ratio `P/B` (analysis contract table). Undefined cases (B = 0, S = 0) give ±Infinity or NaN, never a number.
  */
 export function normalizeValue(method: BaselineMethod, p: number, mean: number, sd: number): number {
   switch (method) {
-    case 'db':
+    case 'decibel':
       return 10 * log10(p / mean);
-    case 'percent':
+    case 'percent-change':
       return (100 * (p - mean)) / mean;
-    case 'zscore':
+    case 'z-score':
       return (p - mean) / sd;
-    case 'ratio':
+    case 'power-ratio':
       return p / mean;
   }
 }

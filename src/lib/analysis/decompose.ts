@@ -275,19 +275,19 @@ function accumulateNormalized(
 ): void {
   const { mean, sd } = baselineStats(row, 0, first, last);
   switch (method) {
-    case 'db': {
+    case 'decibel': {
       for (let j = 0; j < length; j++) sum[off + j] += 10 * log10(row[j] / mean);
       break;
     }
-    case 'percent': {
+    case 'percent-change': {
       for (let j = 0; j < length; j++) sum[off + j] += (100 * (row[j] - mean)) / mean;
       break;
     }
-    case 'zscore': {
+    case 'z-score': {
       for (let j = 0; j < length; j++) sum[off + j] += (row[j] - mean) / sd;
       break;
     }
-    case 'ratio': {
+    case 'power-ratio': {
       for (let j = 0; j < length; j++) sum[off + j] += row[j] / mean;
       break;
     }

@@ -7,7 +7,7 @@ import { applyOverride, checkEpochs, tallyByCondition, type EpochFit } from './r
 /** The part of a recipe that decides which epochs are analysed (recipe fields `epochs`, `conditions`, `rejection`). */
 export interface PrepareSpec {
   /** `events` may name conditions or plain labels; a plain label not claimed by a condition is its own condition. */
-  epochs: { events?: readonly string[]; tmin: number; tmax: number };
+  epochs: { events?: readonly string[]; start: number; end: number };
   /** Condition name → event labels, in the order the conditions are listed. */
   conditions?: Readonly<Record<string, readonly string[]>>;
   rejection?: {
@@ -116,7 +116,7 @@ function requireOverrides(events: readonly RecordingEvent[], overrides: Readonly
 
 /**
  * Applies a recipe's conditions and epoch rejection to a recording: every event whose label belongs to a condition
- * gets an epoch `[round(o·fs) + round(tmin·fs), … + round((tmax − tmin)·fs)]` (analysis contract); an epoch that does
+ * gets an epoch `[round(o·fs) + round(start·fs), … + round((end − start)·fs)]` (analysis contract); an epoch that does
  * not fit the recording is dropped; a fitting epoch is rejected by the peak-to-peak and flat rules of `checkEpochs`,
  * and a manual override then wins. The result holds the kept epochs' events relabelled to their condition names,
  * so `planRecipe` epochs by condition. This one function serves the Source screen, the browser runs and the CLI.

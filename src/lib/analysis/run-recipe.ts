@@ -63,20 +63,20 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
   const nyquist = fs / 2;
   const warnings: string[] = [];
 
-  const { tmin, tmax } = recipe.epochs;
-  if (!(tmin < tmax)) throw new AnalysisInputError('epochs.tmin', `must be less than epochs.tmax (${tmin} s ≥ ${tmax} s)`);
-  const L = epochLength(tmin, tmax, fs);
-  if (L < 2) throw new AnalysisInputError('epochs.tmax', `leaves fewer than 2 samples per epoch at ${fs} Hz`);
+  const { start: epochStart, end: epochEnd } = recipe.epochs;
+  if (!(epochStart < epochEnd)) throw new AnalysisInputError('epochs.start', `must be less than epochs.end (${epochStart} s ≥ ${epochEnd} s)`);
+  const L = epochLength(epochStart, epochEnd, fs);
+  if (L < 2) throw new AnalysisInputError('epochs.end', `leaves fewer than 2 samples per epoch at ${fs} Hz`);
 
   const { start, end, method, scope } = recipe.baseline;
   if (start > end) throw new AnalysisInputError('baseline.start', `must not be after baseline.end (${start} s > ${end} s)`);
-  if (start < tmin - EPS) throw new AnalysisInputError('baseline.start', `is before the epoch start (${start} s < epochs.tmin ${tmin} s)`);
-  if (end > tmax + EPS) throw new AnalysisInputError('baseline.end', `is after the epoch end (${end} s > epochs.tmax ${tmax} s)`);
-  const b = baselineIndices(start, end, tmin, fs);
+  if (start < epochStart - EPS) throw new AnalysisInputError('baseline.start', `is before the epoch start (${start} s < epochs.start ${epochStart} s)`);
+  if (end > epochEnd + EPS) throw new AnalysisInputError('baseline.end', `is after the epoch end (${end} s > epochs.end ${epochEnd} s)`);
+  const b = baselineIndices(start, end, epochStart, fs);
   b.first = Math.max(0, b.first);
   b.last = Math.min(L - 1, b.last);
-  if (method === 'zscore' && b.last - b.first < 1) {
-    throw new AnalysisInputError('baseline.end', `gives a single baseline point at ${fs} Hz; zscore needs at least 2 for a standard deviation`);
+  if (method === 'z-score' && b.last - b.first < 1) {
+    throw new AnalysisInputError('baseline.end', `gives a single baseline point at ${fs} Hz; z-score needs at least 2 for a standard deviation`);
   }
 
   const fr = recipe.frequencies;
@@ -142,7 +142,7 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
   const rejectedCounts: number[] = [];
   labels.forEach((label, i) => {
     if (labels.indexOf(label) !== i) throw new AnalysisInputError(`epochs.events[${i}]`, `repeats "${label}"`);
-    const sel = selectEpochs(events, label, tmin, L, fs, total, recording.gapSampleIndices ?? []);
+    const sel = selectEpochs(events, label, epochStart, L, fs, total, recording.gapSampleIndices ?? []);
     const count = prepared.counts.find((c) => c.condition === label);
     if (count === undefined) {
       if (sel.matched === 0) {
@@ -212,8 +212,8 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
   if (!(aLo > 0 && aLo < aHi && aHi <= nyquist)) throw new AnalysisInputError('aperiodic.range', `must satisfy 0 < low < high ≤ Nyquist (${fmt(nyquist)} Hz); got [${aLo}, ${aHi}]`);
   const binHz = fs / segmentSamples;
   const bins = Math.floor(aHi / binHz + EPS) - Math.ceil(aLo / binHz - EPS) + 1;
-  const needed = ap.mode === 'fixed' ? 3 : 4;
-  if (bins < needed) throw new AnalysisInputError('aperiodic.range', `holds ${bins} spectrum bins of ${fmt(binHz)} Hz; the ${ap.mode} fit needs at least ${needed} (widen the range or lengthen spectrum.segment)`);
+  const needed = ap.model === 'power-law' ? 3 : 4;
+  if (bins < needed) throw new AnalysisInputError('aperiodic.range', `holds ${bins} spectrum bins of ${fmt(binHz)} Hz; the ${ap.model} fit needs at least ${needed} (widen the range or lengthen spectrum.segment)`);
 
   return {
     sampleRateHz: fs,
@@ -224,14 +224,14 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
     dropped: droppedCounts,
     rejected: rejectedCounts,
     epochSamples: L,
-    tminSeconds: tmin,
-    times: epochTimes(tmin, tmax, fs),
+    epochStartSeconds: epochStart,
+    times: epochTimes(epochStart, epochEnd, fs),
     frequencies,
     sigmas,
     edgeSeconds,
     baseline: { first: b.first, last: b.last, method, scope },
     spectrum: { segmentSamples, overlapSamples, range: [rLo, rHi], spans: Int32Array.from(spanList) },
-    aperiodic: { range: [aLo, aHi], mode: ap.mode },
+    aperiodic: { range: [aLo, aHi], model: ap.model },
     warnings,
   };
 }

@@ -25,13 +25,13 @@ export function colourPosition(scale: ColourScale, value: number): number {
 }
 
 /** The method's neutral value: no change from baseline. 0 for dB, percent and z-score, 1 for a ratio. */
-export function neutralValue(method: 'db' | 'percent' | 'zscore' | 'ratio'): number {
-  return method === 'ratio' ? 1 : 0;
+export function neutralValue(method: 'decibel' | 'percent-change' | 'z-score' | 'power-ratio'): number {
+  return method === 'power-ratio' ? 1 : 0;
 }
 
 /** The unit shown on colour bars and readouts. */
-export function methodUnit(method: 'db' | 'percent' | 'zscore' | 'ratio'): string {
-  return method === 'db' ? 'dB' : method === 'percent' ? '%' : method === 'zscore' ? 'z' : '×';
+export function methodUnit(method: 'decibel' | 'percent-change' | 'z-score' | 'power-ratio'): string {
+  return method === 'decibel' ? 'dB' : method === 'percent-change' ? '%' : method === 'z-score' ? 'z' : '×';
 }
 
 /**

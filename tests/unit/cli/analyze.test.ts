@@ -38,13 +38,14 @@ const seconds = 40;
 const dir = mkdtempSync(join(tmpdir(), 'tidemark-cli-'));
 const file = (name: string) => join(dir, name);
 const recipe = {
-  epochs: { events: ['go', 'stop'], tmin: -0.5, tmax: 1.0 },
+  format: 2,
+  epochs: { events: ['go', 'stop'], start: -0.5, end: 1.0 },
   channels: ['C3', 'C4'],
   frequencies: { min: 4, max: 30, count: 5, spacing: 'log' },
   cycles: { min: 3, max: 6 },
-  baseline: { start: -0.4, end: -0.1, method: 'db', scope: 'average' },
+  baseline: { start: -0.4, end: -0.1, method: 'decibel', scope: 'average' },
   spectrum: { segment: 2, overlap: 0.5, range: [1, 40], source: 'recording' },
-  aperiodic: { range: [2, 40], mode: 'fixed' },
+  aperiodic: { range: [2, 40], model: 'power-law' },
 };
 
 beforeAll(() => {
@@ -63,7 +64,12 @@ beforeAll(() => {
   writeFileSync(file('events.tsv'), events);
   writeFileSync(file('recipe.json'), JSON.stringify(recipe));
   const put = (name: string, change: object) => writeFileSync(file(name), JSON.stringify({ ...recipe, ...change }));
-  put('tmin.json', { epochs: { ...recipe.epochs, tmin: 1.0 } });
+  // the same recipe as format 1 wrote it (no "format"; tmin/tmax, "db", mode "fixed")
+  writeFileSync(
+    file('format1.json'),
+    JSON.stringify({ ...recipe, format: undefined, epochs: { events: recipe.epochs.events, tmin: -0.5, tmax: 1.0 }, baseline: { ...recipe.baseline, method: 'db' }, aperiodic: { range: [2, 40], mode: 'fixed' } }),
+  );
+  put('start-after-end.json', { epochs: { ...recipe.epochs, start: 1.0 } });
   put('baseline.json', { baseline: { ...recipe.baseline, start: -0.9 } });
   put('nyquist.json', { frequencies: { ...recipe.frequencies, max: 50 } });
   put('cycles.json', { cycles: { fixed: 9 } });
@@ -114,6 +120,17 @@ describe('analyze command line', () => {
     // 12 Hz rhythm on C4 only: its spectrum peaks there
     const k = result.spectrum.frequencies.indexOf(12);
     expect(result.spectrum.psd[1][k]).toBeGreaterThan(10 * result.spectrum.psd[0][k]);
+  });
+
+  it('reads a format-1 recipe with a one-line notice on stderr and gives the same output as format 2', async () => {
+    // Analysis contract, "Recipe (input), format 2": format 1 is read and upgraded, never silently.
+    const two = await analyze([file('rec.edf'), '--recipe', file('recipe.json')]);
+    const one = await analyze([file('rec.edf'), '--recipe', file('format1.json')]);
+    expect(one.code).toBe(0);
+    const lines = one.stderr.split('\n').filter((l) => l !== '');
+    expect(lines).toHaveLength(1);
+    expect(lines[0]).toMatch(/^analyze: .*format1\.json: recipe format 1 \(no "format" field\) read and upgraded to format 2: epochs\.tmin\/tmax → epochs\.start\/end/);
+    expect(one.stdout).toBe(two.stdout);
   });
 
   it('honours conditions, rejection rules and manual overrides like the core in process, and checks the fingerprint', async () => {
@@ -170,7 +187,7 @@ describe('analyze command line', () => {
     ['a ragged CSV row', ['ragged.csv', '--recipe', 'recipe.json', '--rate', '100'], /ragged\.csv: .*\brow 3\b/],
     ['an unknown channel', ['rec.csv', '--recipe', 'channel.json', '--events', 'events.tsv', '--rate', '100'], /channel\.json: channels\[1\] names no signal in the recording \("Cz"/],
     ['no events of a label', ['rec.csv', '--recipe', 'label.json', '--events', 'events.tsv', '--rate', '100'], /label\.json: epochs\.events\[1\] has no events labelled "wait"/],
-    ['tmin ≥ tmax', ['rec.csv', '--recipe', 'tmin.json', '--events', 'events.tsv', '--rate', '100'], /tmin\.json: epochs\.tmin must be less than epochs\.tmax/],
+    ['start ≥ end', ['rec.csv', '--recipe', 'start-after-end.json', '--events', 'events.tsv', '--rate', '100'], /start-after-end\.json: epochs\.start must be less than epochs\.end/],
     ['a baseline outside the epoch', ['rec.csv', '--recipe', 'baseline.json', '--events', 'events.tsv', '--rate', '100'], /baseline\.json: baseline\.start is before the epoch start/],
     ['a max frequency at Nyquist', ['rec.csv', '--recipe', 'nyquist.json', '--events', 'events.tsv', '--rate', '100'], /nyquist\.json: frequencies\.max must be below the Nyquist frequency \(50 Hz/],
     ['too few cycles for the epoch length', ['rec.csv', '--recipe', 'cycles.json', '--events', 'events.tsv', '--rate', '100'], /cycles\.json: cycles is too many for the epoch length/],

@@ -26,7 +26,7 @@ describe('aperiodic fit', () => {
     // Synthesized with PSD ∝ f^(−χ); in log-log that is a line of slope −χ (definition of the fixed model).
     for (const chi of [1.0, 1.5, 2.0, 2.5]) {
       const { frequencies, psd } = spectrumOf(coloredNoise(length, fs, chi, 100 + chi * 10));
-      const fit = fitAperiodic(frequencies, psd, [2, 40], 'fixed');
+      const fit = fitAperiodic(frequencies, psd, [2, 40], 'power-law');
       assertClose(fit.exponent, chi, 0.1, `χ=${chi}`);
       expect(fit.knee).toBeNull();
       expect(fit.r2).toBeGreaterThan(0.95);
@@ -40,8 +40,8 @@ describe('aperiodic fit', () => {
     for (const chi of [1.0, 1.5, 2.0, 2.5]) {
       const x = withPeak(coloredNoise(length, fs, chi, 200 + chi * 10), 100); // 20 dB above the aperiodic line
       const { frequencies, psd } = spectrumOf(x);
-      const robust = fitAperiodic(frequencies, psd, [2, 40], 'fixed');
-      const naive = fitAperiodic(frequencies, psd, [2, 40], 'fixed', { robust: false });
+      const robust = fitAperiodic(frequencies, psd, [2, 40], 'power-law');
+      const naive = fitAperiodic(frequencies, psd, [2, 40], 'power-law', { robust: false });
       assertClose(robust.exponent, chi, 0.15, `robust χ=${chi}`);
       expect(robust.excluded).toBeGreaterThan(0);
       expect(Math.abs(naive.exponent - chi), `naive χ=${chi} gave ${naive.exponent}, robust ${robust.exponent}`).toBeGreaterThan(0.1);
@@ -56,20 +56,20 @@ describe('aperiodic fit', () => {
     const chi = 2;
     const f = Float64Array.from({ length: 119 }, (_, i) => 1 + i * 0.5);
     const exact = f.map((v) => Math.pow(10, b) / (k + Math.pow(v, chi)));
-    const fit = fitAperiodic(f, exact, [1, 60], 'knee');
+    const fit = fitAperiodic(f, exact, [1, 60], 'power-law-knee');
     assertClose(fit.exponent, chi, 1e-3, 'exponent');
-    assertClose(fit.knee!, k, 0.1, 'knee');
+    assertClose(fit.knee!, k, 0.1, 'power-law-knee');
     assertClose(fit.offset, b, 1e-3, 'offset');
     assertClose(fit.r2, 1, 1e-6);
     const normal = seededNormal(77);
     const noisy = exact.map((v) => v * Math.pow(10, 0.03 * normal()));
-    const nfit = fitAperiodic(f, noisy, [1, 60], 'knee');
+    const nfit = fitAperiodic(f, noisy, [1, 60], 'power-law-knee');
     assertClose(nfit.exponent, chi, 0.1, 'noisy exponent');
     // a fixed fit of the same knee spectrum is flatter than χ: the knee model is doing real work
-    expect(fitAperiodic(f, exact, [1, 60], 'fixed').exponent).toBeLessThan(chi - 0.2);
+    expect(fitAperiodic(f, exact, [1, 60], 'power-law').exponent).toBeLessThan(chi - 0.2);
   });
 
   it('names the range when it holds too few bins', () => {
-    expect(() => fitAperiodic([0, 1, 2, 3], [1, 1, 1, 1], [2.5, 2.9], 'fixed')).toThrow(/aperiodic\.range/);
+    expect(() => fitAperiodic([0, 1, 2, 3], [1, 1, 1, 1], [2.5, 2.9], 'power-law')).toThrow(/aperiodic\.range/);
   });
 });

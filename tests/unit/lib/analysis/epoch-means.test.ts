@@ -33,7 +33,7 @@ function run(samples: Float32Array, starts: Int32Array, scope: 'average' | 'tria
     sampleRateHz: fs,
     frequencies: freqs,
     sigmas,
-    baseline: { first: 40, last: 200, method: 'db', scope },
+    baseline: { first: 40, last: 200, method: 'decibel', scope },
     singleTrials: true,
   });
   return { ...out, sigmas };
@@ -113,7 +113,7 @@ describe('epoch means are removed before the wavelet transform', () => {
         sampleRateHz: fs,
         frequencies: Float64Array.of(f),
         sigmas,
-        baseline: { first: 0, last: 10, method: 'ratio', scope: 'average' },
+        baseline: { first: 0, last: 10, method: 'power-ratio', scope: 'average' },
       });
       const spurious = (c * leak) ** 2;
       expect(spurious).toBeGreaterThan(5e-5); // the leak is real for these widths …

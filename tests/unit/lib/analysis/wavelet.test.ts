@@ -6,7 +6,7 @@ import { gaussianSigmas, getWaveletBank, morletWavelet } from '../../../../src/l
 import { assertClose } from '../../../helpers/assert-close';
 import { seededNormal } from '../../../helpers/seeded-random';
 
-const baseline = { first: 0, last: 1, method: 'db' as const, scope: 'average' as const };
+const baseline = { first: 0, last: 1, method: 'decibel' as const, scope: 'average' as const };
 
 function powerOf(samples: Float32Array, fs: number, freqs: number[], sigmas: Float64Array, starts: number[], L: number, singleTrials = true) {
   return decomposeChannel({
@@ -203,7 +203,7 @@ describe('decomposeChannel', () => {
     const freqs = Float64Array.of(6, 12, 30);
     const sigmas = gaussianSigmas(freqs, { fixed: 5 });
     const starts = Int32Array.of(100, 600, 1200, 2000);
-    for (const method of ['db', 'percent', 'zscore', 'ratio'] as const) {
+    for (const method of ['decibel', 'percent-change', 'z-score', 'power-ratio'] as const) {
       for (const scope of ['average', 'trial'] as const) {
         const job = { samples: x, epochStarts: [starts], epochSamples: L, sampleRateHz: fs, frequencies: freqs, sigmas, baseline: { first: 60, last: 90, method, scope } };
         const out = decomposeChannel({ ...job, singleTrials: true });
@@ -211,7 +211,7 @@ describe('decomposeChannel', () => {
         const trials = [0, 1, 2, 3].map((e) => Float64Array.from(out.singleTrials![0].subarray(e * size, (e + 1) * size)));
         const expected = scope === 'trial' ? normalizeTrials(trials, L, job.baseline, method) : normalizeAverage(out.power[0], L, job.baseline, method);
         // single trials are stored in Float32 (relative rounding ~6e-8)
-        const tolerance = { db: 1e-5, percent: 1e-3, zscore: 1e-4, ratio: 1e-5 }[method];
+        const tolerance = { decibel: 1e-5, 'percent-change': 1e-3, 'z-score': 1e-4, 'power-ratio': 1e-5 }[method];
         assertClose(out.normalized[0], expected, tolerance, `${method}/${scope}`);
         // the trial-average path (no single trials) gives the same normalized maps
         assertClose(decomposeChannel(job).normalized[0], out.normalized[0], tolerance, `${method}/${scope} average path`);
