@@ -2,7 +2,7 @@ import { readRecipe, type Recipe } from '../lib/analysis/recipe';
 import type { Recording } from '../lib/analysis/recording';
 import { planRecipe } from '../lib/analysis/run-recipe';
 import { DEFAULT_DRAFT, useRecipeStore, type RecipeDraft } from './recipe';
-import { defaultRejection, useSourceStore, type Condition, type RejectionSettings } from './source';
+import { defaultRejection, useSourceStore, type Condition, type ConditioningSettings, type RejectionSettings } from './source';
 import { useViewStore } from './view';
 
 export type ApplyOutcome = { ok: true; notices: string[] } | { ok: false; field: string; message: string };
@@ -63,9 +63,10 @@ export function applyRecipe(
   const rejection: RejectionSettings =
     r === undefined
       ? { ...defaultRejection, peakToPeakMicrovolts: null, flatMicrovolts: null, overrides: {} }
-      : { peakToPeakMicrovolts: r.peakToPeakMicrovolts, flatMicrovolts: r.flatMicrovolts, scope: r.scope, channels: r.channels?.slice(), overrides: { ...r.overrides } };
+      : { peakToPeakMicrovolts: r.peakToPeakMicrovolts, flatMicrovolts: r.flatMicrovolts, scope: r.scope, channels: r.channels?.slice(), overrides: { ...r.overrides }, ...(r.byType ? { byType: { ...r.byType } } : {}) };
+  const conditioning: ConditioningSettings = { types: { ...(recipe.signals?.types ?? {}) }, bad: (recipe.signals?.bad ?? []).slice() };
   const source = useSourceStore.getState();
-  source.set({ conditions, epochWindow: { start: recipe.epochs.start, end: recipe.epochs.end }, rejection });
+  source.set({ conditions, epochWindow: { start: recipe.epochs.start, end: recipe.epochs.end }, rejection, conditioning });
   source.recompute();
   useRecipeStore.setState((s) => ({ draft: draftOf(recipe, conditions.map((c) => c.name), s.draft ?? DEFAULT_DRAFT) }));
   useViewStore.getState().set({ method: recipe.baseline.method, scope: recipe.baseline.scope, fitRange: [recipe.aperiodic.range[0], recipe.aperiodic.range[1]] });

@@ -2,7 +2,7 @@ import { create } from 'zustand';
 import type { AperiodicModel } from '../lib/analysis/aperiodic';
 import type { BaselineMethod } from '../lib/analysis/baseline';
 import type { RecipeInput } from '../lib/analysis/recipe';
-import { sourceSpec, type Condition, type RejectionSettings } from './source';
+import { conditioningSpec, sourceSpec, type Condition, type ConditioningSettings, type RejectionSettings } from './source';
 
 export type CyclesMode = 'fixed' | 'range' | 'fwhm';
 
@@ -70,6 +70,8 @@ export interface RecipeSource {
   epochStart: number;
   epochEnd: number;
   rejection: RejectionSettings;
+  /** Channel types changed by hand, bad channels, reference and filters (recipe `signals`, `reference`, `filters`). */
+  conditioning?: ConditioningSettings;
   /** SHA-256 of the open file; written into the recipe only when it is one (64 hex digits). */
   fingerprint: string | null;
   /** How the file was read beyond the built-in units (LocalRecordingInfo.reading); written when not empty. */
@@ -107,6 +109,7 @@ export function toRecipe(
     aperiodic: { range: [fitRange[0], fitRange[1]], model: draft.aperiodic.model },
     conditions: spec.conditions as Record<string, string[]>,
     rejection: spec.rejection as NonNullable<RecipeInput['rejection']>,
+    ...((source.conditioning !== undefined ? conditioningSpec(source.conditioning) : {}) as Pick<RecipeInput, 'signals'>),
     ...recordingSection(source),
   };
 }

@@ -1,10 +1,12 @@
 import { useMemo, useRef, useState } from 'react';
+import { isBrainType } from '../../lib/analysis/channel-types';
+import { conditionRecording } from '../../lib/analysis/condition-recording';
 import type { WorkspaceProps } from './types';
 import { AnalysisInputError } from '../../lib/analysis/errors';
 import { planRecipe } from '../../lib/analysis/run-recipe';
 import { decompositionKey, toRecipe, useRecipeStore, type CyclesMode } from '../../stores/recipe';
 import { cancelDecomposition, recordingIdOf, runDecomposition, useResultsStore } from '../../stores/results';
-import { useSourceStore } from '../../stores/source';
+import { conditioningSpec, useSourceStore } from '../../stores/source';
 import { useViewStore } from '../../stores/view';
 import { applyRecipe } from '../../stores/apply-recipe';
 import NumberField from '../explorer/NumberField';
@@ -32,6 +34,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const epochWindow = useSourceStore((s) => s.epochWindow);
   const decisions = useSourceStore((s) => s.decisions);
   const rejection = useSourceStore((s) => s.rejection);
+  const conditioning = useSourceStore((s) => s.conditioning);
   const fitRange = useViewStore((s) => s.fitRange);
   const setView = useViewStore((s) => s.set);
   const fileInput = useRef<HTMLInputElement>(null);
@@ -47,7 +50,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const visible = usePanelVisible('Recipe');
 
   const conditionNames = conditions.map((c) => c.name);
-  const recipe = toRecipe(draft, { conditions, epochStart: epochWindow.start, epochEnd: epochWindow.end, rejection, fingerprint, reading }, { ...baseline, method, scope }, fitRange);
+  const recipe = toRecipe(draft, { conditions, epochStart: epochWindow.start, epochEnd: epochWindow.end, rejection, conditioning, fingerprint, reading }, { ...baseline, method, scope }, fitRange);
   // The whole recording goes to the core with the full recipe: prepareRecording applies conditions and rejection there.
   const analysis = recording;
   const recordingId = recording === null ? null : recordingIdOf(recording, fingerprint);
@@ -86,6 +89,16 @@ export default function RecipeScreen(_props: WorkspaceProps) {
     { value: 'fwhm', label: 'FWHM (s)' },
   ];
   const allChannels = draft.channels.length === 0;
+  // The channels a recipe can name: the recording as conditioned (bad ones out, bipolar pairs in), brain ones first.
+  const conditioned = (() => {
+    try {
+      return conditionRecording(recording, conditioningSpec(conditioning)).recording;
+    } catch {
+      return null;
+    }
+  })();
+  const candidates = conditioned?.channelNames ?? recording.channelNames;
+  const brain = conditioned === null ? candidates : candidates.filter((_, c) => isBrainType(conditioned.channelTypes[c]));
   const fs = recording.sampleRateHz;
   const loadFile = async (file: File) => {
     let json: unknown;
@@ -200,12 +213,12 @@ export default function RecipeScreen(_props: WorkspaceProps) {
       <fieldset className="card flex flex-col gap-2 p-3">
         <legend className="px-1 text-sm font-semibold">Channels</legend>
         <label className="flex items-center gap-1 text-sm">
-          <input type="checkbox" checked={allChannels} onChange={() => setDraft({ channels: allChannels ? recording.channelNames.slice(0, 1) : [] })} data-testid="recipe-all-channels" />
-          all {recording.channelNames.length} channels
+          <input type="checkbox" checked={allChannels} onChange={() => setDraft({ channels: allChannels ? brain.slice(0, 1) : [] })} data-testid="recipe-all-channels" />
+          all {brain.length} brain channels (EEG, MEG, intracranial; types and bad channels on the Source screen)
         </label>
         <div className="flex flex-wrap gap-x-3 gap-y-1">
-          {recording.channelNames.map((name) => {
-            const on = allChannels || draft.channels.includes(name);
+          {candidates.map((name) => {
+            const on = allChannels ? brain.includes(name) : draft.channels.includes(name);
             return (
               <label key={name} className="flex items-center gap-1 font-mono text-sm">
                 <input
@@ -213,9 +226,9 @@ export default function RecipeScreen(_props: WorkspaceProps) {
                   checked={on}
                   data-testid={`recipe-channel-${name}`}
                   onChange={() => {
-                    const current = allChannels ? recording.channelNames : draft.channels;
-                    const next = on ? current.filter((n) => n !== name) : recording.channelNames.filter((n) => n === name || current.includes(n));
-                    setDraft({ channels: next.length === recording.channelNames.length ? [] : next });
+                    const current = allChannels ? brain : draft.channels;
+                    const next = on ? current.filter((n) => n !== name) : candidates.filter((n) => n === name || current.includes(n));
+                    setDraft({ channels: next.length === brain.length && next.every((n) => brain.includes(n)) ? [] : next });
                   }}
                 />
                 {name}

@@ -8,6 +8,7 @@ import OpenPanel, { type CsvChoice } from '../source/OpenPanel';
 import DemoPicker, { type DemoSubject } from '../source/DemoPicker';
 import LibraryPanel from '../source/LibraryPanel';
 import LocalDetails from '../source/LocalDetails';
+import ChannelsPanel from '../source/ChannelsPanel';
 import ConditionsPanel from '../source/ConditionsPanel';
 import OverviewTrace from '../source/OverviewTrace';
 import RejectionPanel from '../source/RejectionPanel';
@@ -94,6 +95,7 @@ export default function SourceScreen(props: WorkspaceProps) {
   const conditions = useSourceStore((s) => s.conditions);
   const epochWindow = useSourceStore((s) => s.epochWindow);
   const rejection = useSourceStore((s) => s.rejection);
+  const conditioning = useSourceStore((s) => s.conditioning);
   const decisions = useSourceStore((s) => s.decisions);
   const settingsError = useSourceStore((s) => s.settingsError);
   const subjectCode = useSourceStore((s) => s.subjectCode);
@@ -247,6 +249,12 @@ export default function SourceScreen(props: WorkspaceProps) {
             </h2>
             <LocalDetails recording={recording} local={local} fingerprint={fingerprint} origin={origin} />
           </section>
+          <section className="card grid min-w-0 gap-3" aria-labelledby="source-channels" data-testid="channels-panel">
+            <h2 id="source-channels" className="text-lg font-semibold">
+              Channels
+            </h2>
+            <ChannelsPanel recording={recording} conditioning={conditioning} onChange={(p) => store().setConditioning(p)} />
+          </section>
           <section className="card grid min-w-0 gap-3" aria-labelledby="source-conditions">
             <h2 id="source-conditions" className="text-lg font-semibold">
               Events to conditions
@@ -282,6 +290,7 @@ export default function SourceScreen(props: WorkspaceProps) {
               <RejectionPanel
                 recording={recording}
                 rejection={rejection}
+                conditioning={conditioning}
                 decisions={decisions}
                 overviewChannel={overviewChannel || recording.channelNames[0]}
                 onRejection={(p) => store().setRejection(p)}

@@ -1,4 +1,6 @@
 import * as Comlink from 'comlink';
+import { conditionRecording } from '../../lib/analysis/condition-recording';
+import { parseRecipe } from '../../lib/analysis/recipe';
 import { useEffect, useMemo, useRef, useState, type PointerEvent, type KeyboardEvent } from 'react';
 import Papa from 'papaparse';
 import type { WorkspaceProps } from './types';
@@ -40,7 +42,9 @@ function useChannelWork<T>(
     const recording = useSourceStore.getState().recording;
     if (recording === null) return;
     let live = true;
-    const samples = d.channels.map((c) => recording.data[recording.channelNames.indexOf(c)].slice());
+    // The recording as the run saw it: channel types, bad channels, reference and filters (cached in the core).
+    const conditioned = conditionRecording(recording, parseRecipe(d.recipe)).recording;
+    const samples = d.channels.map((c) => conditioned.data[conditioned.channelNames.indexOf(c)].slice());
     void compute(d, Comlink.transfer(samples, samples.map((x) => x.buffer))).then((out) => {
       cache.set(d.key, out);
       if (live) setValue(out);

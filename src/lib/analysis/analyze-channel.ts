@@ -1,5 +1,6 @@
 import { fitAperiodic, type AperiodicFit, type AperiodicModel } from './aperiodic';
 import type { BaselineMethod, BaselineScope } from './baseline';
+import type { ChannelType, ChannelUnit } from './channel-types';
 import { decomposeChannel, type DecomposeOptions } from './decompose';
 import { welchPsd } from './welch';
 
@@ -11,8 +12,11 @@ const EPS = 1e-9;
 export interface RecipePlan {
   sampleRateHz: number;
   channels: string[];
-  /** Index into `recording.data` of each planned channel. */
+  /** Index into the conditioned recording's `data` (see `planRun`) of each planned channel. */
   channelIndices: number[];
+  channelTypes: ChannelType[];
+  /** Unit of each channel's samples (power is in unit²). */
+  channelUnits: ChannelUnit[];
   labels: string[];
   epochStarts: Int32Array[];
   /** Per condition, epochs dropped (outside the recording or across a gap). */

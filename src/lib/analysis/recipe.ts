@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { AnalysisInputError } from './errors';
+import { CHANNEL_TYPES } from './channel-types';
 import { EVENT_KEY } from './event-key';
 
 const finite = z.number().refine(Number.isFinite, 'must be a finite number');
@@ -28,6 +29,58 @@ const METHOD_OF_FORMAT_1 = { db: 'decibel', percent: 'percent-change', zscore: '
 const MODEL_OF_FORMAT_1 = { fixed: 'power-law', knee: 'power-law-knee' } as const;
 
 const events = z.array(z.string().min(1, 'must not be empty')).min(1, 'must name at least one event label');
+const name = z.string().min(1, 'must not be empty');
+const channelType = z.enum(CHANNEL_TYPES, { error: `must be a channel type: ${CHANNEL_TYPES.map((t) => `"${t}"`).join(', ')}` });
+const typeLimits = z
+  .object({
+    peakToPeak: positive.nullable(),
+    flat: z.number().min(0, 'must be zero or more').refine(Number.isFinite, 'must be a finite number').nullable(),
+  })
+  .strict();
+
+// eslint-disable-next-line @typescript-eslint/no-unused-vars
+/** The recipe's `reference` (DEVELOPERS.md, "References"): how the electrode channels are re-referenced. */
+const reference = z.discriminatedUnion(
+  'kind',
+  [
+    z.object({ kind: z.literal('as-recorded') }).strict(),
+    z.object({ kind: z.literal('common-average') }).strict(),
+    z.object({ kind: z.literal('mean-of-channels'), channels: z.array(name).min(1, 'must name at least one channel') }).strict(),
+    z
+      .object({
+        kind: z.literal('bipolar'),
+        pairs: z.array(z.tuple([name, name], { error: 'must be a pair ["A", "B"] of channel names (A − B)' })).optional(),
+        shafts: z.array(name).optional(),
+      })
+      .strict()
+      .refine((r) => (r.pairs?.length ?? 0) + (r.shafts?.length ?? 0) > 0, 'must list pairs, shafts or both'),
+  ],
+  { error: 'must be { "kind": "as-recorded" | "common-average" | "mean-of-channels" | "bipolar", … }' },
+);
+
+/** The recipe's `filters` (DEVELOPERS.md, "Filters"): zero-phase high-pass and line-noise notch. */
+const filters = z
+  .object({
+    highPass: z
+      .object({
+        cutoffHz: positive,
+        order: z.union([z.literal(2), z.literal(4), z.literal(6), z.literal(8)], { error: 'must be 2, 4, 6 or 8 (Butterworth order of one pass)' }).default(4),
+      })
+      .strict()
+      .optional(),
+    notch: z
+      .object({
+        lineHz: positive.optional(),
+        harmonics: z.number().int('must be a whole number').min(1, 'must be at least 1').max(20, 'must be at most 20').default(1),
+        q: positive.refine((q) => q >= 1 && q <= 200, 'must be between 1 and 200').default(30),
+      })
+      .strict()
+      .superRefine((n, ctx) => {
+        if (n.lineHz === undefined) ctx.addIssue({ code: 'custom', path: ['lineHz'], message: 'is required for a notch: the line frequency, 50 or 60 Hz' });
+      })
+      .optional(),
+  })
+  .strict();
 
 // Fields both formats share: the contract's and our extensions (DEVELOPERS.md, "Recipe extensions"; all optional,
 // so a contract recipe parses as is).
@@ -61,6 +114,15 @@ const shared = {
       flatMicrovolts: z.number().min(0, 'must be zero or more').refine(Number.isFinite, 'must be a finite number').nullable(),
       scope: z.enum(['any', 'channel']).default('any'),
       channels: z.array(z.string().min(1, 'must not be empty')).optional(),
+      // Per channel type, limits in that type's unit (µV; fT or fT/cm for MEG) replacing the two µV limits above.
+      byType: z
+        .record(z.string(), typeLimits)
+        .superRefine((r, ctx) => {
+          for (const key of Object.keys(r)) {
+            if (!(CHANNEL_TYPES as readonly string[]).includes(key)) ctx.addIssue({ code: 'custom', path: [key], message: `is not a channel type (${CHANNEL_TYPES.join(', ')})` });
+          }
+        })
+        .optional(),
       overrides: z.record(z.string().regex(EVENT_KEY, 'must be an event key "<index>@<onset seconds>:<label>", e.g. "12@30.25:cue"'), z.enum(['keep', 'reject'])).default({}),
     })
     .strict()
@@ -74,6 +136,8 @@ const shared = {
       }
     })
     .optional(),
+  // Channel types changed by hand and channels marked bad (DEVELOPERS.md, "Channel types").
+  signals: z.object({ types: z.record(name, channelType).optional(), bad: z.array(name).optional() }).strict().optional(),
   // How the file was read: `units` maps a physical dimension the reader does not know to its factor to µV,
   // `exclude` lists signal labels left out. The core never reads files; the CLI and the browser pass these on.
   recording: z

@@ -11,6 +11,11 @@ export interface RejectionRule {
   flatMicrovolts: number | null;
   /** Channels (indices into recording.data) the rules look at; all channels when null. */
   channelIndices: readonly number[] | null;
+  /**
+   * Per checked channel (in `channelIndices` order), limits in that channel's own unit (µV, fT, fT/cm) that replace
+   * the two µV limits above: the recipe's per-type thresholds (`rejection.byType`).
+   */
+  limits?: readonly { peakToPeak: number | null; flat: number | null }[];
 }
 
 export type EpochFit = 'fits' | 'outside' | 'gap';
@@ -99,8 +104,8 @@ export function checkEpochs(
   const length = epochLength(window.start, window.end, fs);
   const offset = roundHalfUp(window.start * fs);
   const gaps = recording.gapSampleIndices ?? [];
-  const p2pLimit = rule.peakToPeakMicrovolts;
-  const flatLimit = rule.flatMicrovolts;
+  const limits = rule.limits ?? channels.map(() => ({ peakToPeak: rule.peakToPeakMicrovolts, flat: rule.flatMicrovolts }));
+  if (limits.length !== channels.length) throw new AnalysisInputError('rejection', `has ${limits.length} limits for ${channels.length} checked channels`);
 
   const out: EpochCheck[] = [];
   for (const a of assignments) {
@@ -134,9 +139,13 @@ export function checkEpochs(
     }
     let worstP2p = -1;
     let worstStd = Infinity;
-    for (const c of channels) {
+    for (let k = 0; k < channels.length; k++) {
+      const c = channels[k];
       const x = recording.data[c];
       const name = recording.channelNames[c];
+      const unit = recording.channelUnits?.[c] ?? 'µV';
+      const p2pLimit = limits[k].peakToPeak;
+      const flatLimit = limits[k].flat;
       const p2p = peakToPeak(x, start, end);
       const sd = standardDeviation(x, start, end);
       if (p2p > worstP2p) {
@@ -147,8 +156,8 @@ export function checkEpochs(
         worstStd = sd;
         check.minStdChannel = name;
       }
-      if (p2pLimit !== null && p2p > p2pLimit) check.reasons.push(`peak-to-peak ${format(p2p)} µV on ${name}`);
-      if (flatLimit !== null && sd < flatLimit) check.reasons.push(`flat on ${name} (SD ${sd.toFixed(2)} µV)`);
+      if (p2pLimit !== null && p2p > p2pLimit) check.reasons.push(`peak-to-peak ${format(p2p)} ${unit} on ${name}`);
+      if (flatLimit !== null && sd < flatLimit) check.reasons.push(`flat on ${name} (SD ${sd.toFixed(2)} ${unit})`);
     }
     check.peakToPeakMicrovolts = channels.length > 0 ? worstP2p : null;
     check.minStdMicrovolts = channels.length > 0 ? worstStd : null;

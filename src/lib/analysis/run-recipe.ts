@@ -5,11 +5,13 @@ import { epochLength, epochTimes, selectEpochs } from './epochs';
 import { AnalysisCancelledError, AnalysisInputError } from './errors';
 
 import { frequencyGrid } from './frequency-grid';
+import { brainChannels, conditionRecording } from './condition-recording';
 import { prepareRecording } from './prepare-recording';
 import { parseRecipe, type Recipe } from './recipe';
 import type { Recording } from './recording';
 import { roundHalfUp } from './rounding';
 import { cyclesOf, edgeSecondsOf, gaussianSigmas } from './wavelet';
+import { isBrainType, shortList, type ChannelType, type ChannelUnit } from './channel-types';
 
 export { analyzeChannel, type ChannelAnalysis, type ChannelOptions, type RecipePlan } from './analyze-channel';
 
@@ -29,13 +31,18 @@ export interface ResultAperiodic extends AperiodicFit {
   channel: string;
 }
 
-/** The Result JSON of the analysis contract ("Result (output)"), plus `cycles`, `dropped`, `rejected`, `points`, `excluded`. */
+/**
+ * The Result JSON of the analysis contract ("Result (output)"), plus `cycles`, `dropped`, `rejected`, `points`,
+ * `excluded`, and each channel's type and unit (`channelTypes`, `channelUnits`: power is in unit², e.g. fT²).
+ */
 export interface AnalysisResult {
   frequencies: number[];
   cycles: number[];
   edgeSeconds: number[];
   times: number[];
   channels: string[];
+  channelTypes: ChannelType[];
+  channelUnits: ChannelUnit[];
   conditions: Record<string, ResultCondition>;
   spectrum: { frequencies: number[]; psd: number[][] };
   aperiodic: ResultAperiodic[];
@@ -53,13 +60,30 @@ function fmt(x: number): string {
  * grids, wavelet widths, epoch starts, baseline indices, Welch spans. Throws AnalysisInputError naming the field.
  */
 export function planRecipe(recording: Recording, recipeInput: unknown): RecipePlan {
+  return planRun(recording, recipeInput).plan;
+}
+
+/**
+ * `planRecipe` plus the recording the plan's channel indices point into: the input conditioned as the recipe asks
+ * (channel types, bad channels left out; `conditionRecording`). Runs take each channel's samples from there.
+ */
+export function planRun(input: Recording, recipeInput: unknown): { plan: RecipePlan; recording: Recording } {
   const recipe: Recipe = parseRecipe(recipeInput);
-  const fs = recording.sampleRateHz;
+  const fs = input.sampleRateHz;
   if (!(fs > 0) || !Number.isFinite(fs)) throw new AnalysisInputError('recording.sampleRateHz', `must be a positive number of Hz (got ${fs})`);
-  const total = recording.data.length > 0 ? recording.data[0].length : 0;
-  recording.data.forEach((d, i) => {
+  const total = input.data.length > 0 ? input.data[0].length : 0;
+  input.data.forEach((d, i) => {
     if (d.length !== total) throw new AnalysisInputError(`recording.data[${i}]`, `has ${d.length} samples where channel 0 has ${total}`);
   });
+  const bad = new Set(recipe.signals?.bad ?? []);
+  recipe.channels?.forEach((name, i) => {
+    if (bad.has(name)) throw new AnalysisInputError(`channels[${i}]`, `"${name}" is marked bad (signals.bad); a bad channel is left out everywhere`);
+  });
+  recipe.rejection?.channels?.forEach((name, i) => {
+    if (bad.has(name)) throw new AnalysisInputError(`rejection.channels[${i}]`, `"${name}" is marked bad (signals.bad); a bad channel is left out everywhere`);
+  });
+  const conditioned = conditionRecording(input, recipe);
+  const recording = conditioned.recording;
   const nyquist = fs / 2;
   const warnings: string[] = [];
 
@@ -112,8 +136,12 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
   let channels: string[];
   let channelIndices: number[];
   if (recipe.channels === undefined) {
-    channels = recording.channelNames.slice();
-    channelIndices = channels.map((_, i) => i);
+    // All good brain channels: eye, heart, muscle, stimulus and other channels only when named.
+    channelIndices = brainChannels(recording);
+    channels = channelIndices.map((c) => recording.channelNames[c]);
+    if (channelIndices.length === 0) {
+      throw new AnalysisInputError('channels', `may be left out only when the recording has good EEG, MEG or intracranial channels; this one has ${recording.channelNames.length === 0 ? 'none left' : `only ${shortList(recording.channelNames.map((n, c) => `${n} (${recording.channelTypes[c]})`))}`}: name the channels to analyse`);
+    }
   } else {
     channels = recipe.channels;
     channelIndices = recipe.channels.map((name, i) => {
@@ -127,6 +155,11 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
     });
   }
   if (channels.length === 0) throw new AnalysisInputError('recording', 'has no data signals');
+  warnings.push(...conditioned.warnings);
+  if (recipe.rejection !== undefined) {
+    const unchecked = [...new Set(recording.channelTypes.filter((t, c) => isBrainType(t) && recording.channelUnits[c] !== 'µV' && recipe.rejection?.byType?.[t] === undefined))];
+    for (const t of unchecked) warnings.push(`rejection: ${t} channels are not checked (no rejection.byType["${t}"] limits in their unit)`);
+  }
 
   // Conditions and rejection (recipe extensions) pick the epochs; without them the contract's label selection runs.
   const prepared = prepareRecording(recording, recipe);
@@ -215,10 +248,12 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
   const needed = ap.model === 'power-law' ? 3 : 4;
   if (bins < needed) throw new AnalysisInputError('aperiodic.range', `holds ${bins} spectrum bins of ${fmt(binHz)} Hz; the ${ap.model} fit needs at least ${needed} (widen the range or lengthen spectrum.segment)`);
 
-  return {
+  const plan: RecipePlan = {
     sampleRateHz: fs,
     channels,
     channelIndices,
+    channelTypes: channelIndices.map((c) => recording.channelTypes[c]),
+    channelUnits: channelIndices.map((c) => recording.channelUnits[c]),
     labels,
     epochStarts,
     dropped: droppedCounts,
@@ -234,6 +269,7 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
     aperiodic: { range: [aLo, aHi], model: ap.model },
     warnings,
   };
+  return { plan, recording };
 }
 
 function rows(flat: Float64Array, nf: number, nt: number): number[][] {
@@ -262,6 +298,8 @@ export function assembleResult(plan: RecipePlan, channels: ChannelAnalysis[]): A
     edgeSeconds: Array.from(plan.edgeSeconds),
     times: Array.from(plan.times),
     channels: plan.channels.slice(),
+    channelTypes: plan.channelTypes.slice(),
+    channelUnits: plan.channelUnits.slice(),
     conditions,
     spectrum: {
       frequencies: channels.length > 0 ? Array.from(channels[0].spectrumFrequencies) : [],
@@ -281,14 +319,14 @@ export interface RunOptions {
 
 /** Runs a recipe on a recording in this thread and returns the contract's Result. */
 export function runRecipe(recording: Recording, recipe: unknown, options: RunOptions = {}): AnalysisResult {
-  const plan = planRecipe(recording, recipe);
+  const { plan, recording: conditioned } = planRun(recording, recipe);
   const { onProgress, shouldCancel } = options;
   const n = plan.channels.length;
   const out: ChannelAnalysis[] = [];
   for (let i = 0; i < n; i++) {
     if (shouldCancel !== undefined && shouldCancel()) throw new AnalysisCancelledError();
     out.push(
-      analyzeChannel(plan, recording.data[plan.channelIndices[i]], {
+      analyzeChannel(plan, conditioned.data[plan.channelIndices[i]], {
         shouldCancel,
         onProgress: onProgress === undefined ? undefined : (f) => onProgress((i + f) / n),
       }),

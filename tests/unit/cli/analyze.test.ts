@@ -75,6 +75,8 @@ beforeAll(() => {
   put('cycles.json', { cycles: { fixed: 9 } });
   put('channel.json', { channels: ['C3', 'Cz'] });
   put('label.json', { epochs: { ...recipe.epochs, events: ['go', 'wait'] } });
+  put('type.json', { signals: { types: { C4: 'scalp' } } });
+  put('bad-channel.json', { signals: { bad: ['C4'] } });
   writeFileSync(file('broken.json'), '{"epochs": ');
   writeFileSync(file('ragged.csv'), 'C3,C4\n1,2\n3\n');
   // the same samples as EDF+ with the cues as annotations
@@ -191,6 +193,8 @@ describe('analyze command line', () => {
     ['a baseline outside the epoch', ['rec.csv', '--recipe', 'baseline.json', '--events', 'events.tsv', '--rate', '100'], /baseline\.json: baseline\.start is before the epoch start/],
     ['a max frequency at Nyquist', ['rec.csv', '--recipe', 'nyquist.json', '--events', 'events.tsv', '--rate', '100'], /nyquist\.json: frequencies\.max must be below the Nyquist frequency \(50 Hz/],
     ['too few cycles for the epoch length', ['rec.csv', '--recipe', 'cycles.json', '--events', 'events.tsv', '--rate', '100'], /cycles\.json: cycles is too many for the epoch length/],
+    ['an unknown channel type', ['rec.csv', '--recipe', 'type.json', '--events', 'events.tsv', '--rate', '100'], /type\.json: signals\.types\.C4 must be a channel type: "eeg", "eog"/],
+    ['a channel marked bad and still named', ['rec.csv', '--recipe', 'bad-channel.json', '--events', 'events.tsv', '--rate', '100'], /bad-channel\.json: channels\[1\] "C4" is marked bad \(signals\.bad\)/],
     ['an unknown option', ['rec.csv', '--recipe', 'recipe.json', '--colour', 'red'], /--colour: is not an option/],
   ];
   it.each(bad)('exits 2 with one line on stderr for %s', async (_what, args, message) => {

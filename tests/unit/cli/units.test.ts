@@ -80,8 +80,9 @@ beforeAll(() => {
   writeFileSync(file('drill.edf'), edfBytes);
   put('plain.json', recipe);
   put('exclude.json', { ...recipe, recording: { exclude: ['Resp', 'Belt'] } });
-  put('factor1.json', { ...recipe, recording: { units: { arb: 1 } } });
-  put('factor3.json', { ...recipe, recording: { units: { arb: 3 } } });
+  // "Resp" is typed "other" (an EDF+ signal-type word), so it is decomposed only when named: name all three.
+  put('factor1.json', { ...recipe, channels: ['C3', 'C4', 'Resp'], recording: { units: { arb: 1 } } });
+  put('factor3.json', { ...recipe, channels: ['C3', 'C4', 'Resp'], recording: { units: { arb: 3 } } });
   put('zero.json', { ...recipe, recording: { units: { arb: 0 } } });
 });
 
