@@ -2,7 +2,7 @@ import { create } from 'zustand';
 import type { Recording } from '../lib/analysis/recording';
 import { eventKey } from '../lib/analysis/event-key';
 import type { ChannelType } from '../lib/analysis/channel-types';
-import { conditionRecording, type ConditionSpec } from '../lib/analysis/condition-recording';
+import { conditionRecording, type ConditionSpec, type ReferenceSpec } from '../lib/analysis/condition-recording';
 import { prepareRecording, type EpochDecision, type PrepareSpec } from '../lib/analysis/prepare-recording';
 
 /**
@@ -59,9 +59,11 @@ export type { EpochDecision } from '../lib/analysis/prepare-recording';
 export interface ConditioningSettings {
   types: Record<string, ChannelType>;
   bad: string[];
+  /** The recipe's `reference`; as recorded when null. */
+  reference: ReferenceSpec | null;
 }
 
-export const defaultConditioning: ConditioningSettings = { types: {}, bad: [] };
+export const defaultConditioning: ConditioningSettings = { types: {}, bad: [], reference: null };
 
 /** The conditioning settings as the recipe's fields, without empty ones. */
 export function conditioningSpec(c: ConditioningSettings): ConditionSpec {
@@ -69,7 +71,10 @@ export function conditioningSpec(c: ConditioningSettings): ConditionSpec {
     ...(Object.keys(c.types).length > 0 ? { types: { ...c.types } } : {}),
     ...(c.bad.length > 0 ? { bad: c.bad.slice() } : {}),
   };
-  return Object.keys(signals).length > 0 ? { signals } : {};
+  return {
+    ...(Object.keys(signals).length > 0 ? { signals } : {}),
+    ...(c.reference !== null && c.reference.kind !== 'as-recorded' ? { reference: c.reference } : {}),
+  };
 }
 
 export interface SourceState {

@@ -6,7 +6,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import { artifactsDir, launchBrowser } from '../helpers/browser';
 import { seededNormal } from '../helpers/seeded-random';
-import { openWorkspace, dropFile } from '../helpers/workspace';
+import { openWorkspace, dropFile, readMapCell } from '../helpers/workspace';
 import { writeEdf } from '../../src/lib/formats';
 import type { AnalysisResult } from '../../src/lib/analysis/run-recipe';
 
@@ -97,4 +97,38 @@ describe('channel types on the Source screen', () => {
     const shown = await page.getByTestId('maps-channel').locator('option').allTextContents();
     expect(shown.map((t) => t.trim())).toEqual(['C3', 'C4', 'Chin']);
   });
+
+  it('names the reference field when a chosen reference channel is marked bad, and keeps the choice', async () => {
+    await page.getByRole('tab', { name: 'Source' }).click();
+    const panel = page.getByTestId('reference-panel');
+    await panel.getByLabel('Mean of chosen channels').check();
+    await panel.getByLabel('Reference channels').selectOption(['C4']);
+    await row('C4').getByLabel('C4 is bad').check();
+    await page.getByTestId('channels-problem').waitFor();
+    expect(await page.getByTestId('channels-problem').textContent()).toContain('reference.channels[0] "C4" is marked bad');
+    await row('C4').getByLabel('C4 is bad').uncheck();
+    await expect.poll(() => page.getByTestId('channels-problem').count()).toBe(0);
+    expect(await panel.getByLabel('Mean of chosen channels').isChecked()).toBe(true);
+    expect(await panel.getByLabel('Reference channels').inputValue()).toBe('C4');
+  });
+
+  it('runs with a common average reference, and the command line gives the value the page shows', async () => {
+    await page.getByTestId('reference-panel').getByLabel('Common average').check();
+    await page.getByRole('tab', { name: 'Recipe' }).click();
+    await page.getByTestId('recipe-run').click();
+    await page.waitForFunction(() => document.querySelector('[data-testid="recipe-status"]')?.getAttribute('data-status') === 'done', undefined, { timeout: 90_000 });
+    await page.getByRole('tab', { name: 'Maps' }).click();
+    await page.getByTestId('map-normalized').waitFor();
+    const recipe = JSON.parse((await download('export-recipe')).toString('utf8'));
+    expect(recipe.reference).toEqual({ kind: 'common-average' });
+    const recipeFile = path.join(dir, 'recipe-average.json');
+    fs.writeFileSync(recipeFile, JSON.stringify(recipe));
+    const out = path.join(dir, 'result-average.json');
+    execFileSync(process.execPath, ['--import', 'tsx', 'src/cli/analyze.ts', path.join(dir, FILE_NAME), '--recipe', recipeFile, '--out', out], { stdio: 'pipe' });
+    const result = JSON.parse(fs.readFileSync(out, 'utf8')) as AnalysisResult;
+    const ci = result.channels.indexOf(await page.getByTestId('maps-channel').inputValue());
+    const cell = await readMapCell(page, 2, 300);
+    expect(cell.normalized).toBeCloseTo(result.conditions.chirp.normalized[ci][2][300], 9);
+  });
 });
+

@@ -2,6 +2,7 @@ import { useMemo } from 'react';
 import { CHANNEL_TYPES, isBrainType, resolveChannels, type ChannelType } from '../../lib/analysis/channel-types';
 import type { Recording } from '../../lib/analysis/recording';
 import type { ConditioningSettings } from '../../stores/source';
+import ReferencePanel from './ReferencePanel';
 
 const TYPE_WORDS: Record<ChannelType, string> = {
   eeg: 'EEG (scalp)',
@@ -19,13 +20,15 @@ interface Props {
   recording: Recording;
   conditioning: ConditioningSettings;
   onChange: (patch: Partial<ConditioningSettings>) => void;
+  /** Why the settings cannot be applied, when a channel or reference field is the cause. */
+  problem: string | null;
 }
 
 /**
  * Every channel with the type read from the file (EDF+ type word, label, unit) and a way to change it or mark the
  * channel bad. Brain channels are analysed, referenced and checked for rejection; the others only when named.
  */
-export default function ChannelsPanel({ recording, conditioning, onChange }: Props) {
+export default function ChannelsPanel({ recording, conditioning, onChange, problem }: Props) {
   const inferred = useMemo(() => resolveChannels(recording, undefined), [recording]);
   const typeOf = (name: string, c: number): ChannelType => conditioning.types[name] ?? inferred.types[c];
   const setType = (name: string, c: number, type: ChannelType) => {
@@ -36,6 +39,9 @@ export default function ChannelsPanel({ recording, conditioning, onChange }: Pro
   };
   const setBad = (name: string, bad: boolean) => onChange({ bad: bad ? [...conditioning.bad.filter((n) => n !== name), name] : conditioning.bad.filter((n) => n !== name) });
   const analysed = recording.channelNames.filter((n, c) => isBrainType(typeOf(n, c)) && !conditioning.bad.includes(n)).length;
+  const good = recording.channelNames.map((n, c) => ({ n, c })).filter(({ n }) => !conditioning.bad.includes(n));
+  const electrodes = good.filter(({ c }) => inferred.units[c] === 'µV').map(({ n }) => n);
+  const intracranial = good.filter(({ n, c }) => typeOf(n, c) === 'intracranial').map(({ n }) => n);
   return (
     <div className="grid gap-2">
       <p className="text-sm text-ink-soft" data-testid="channels-summary">
@@ -79,6 +85,12 @@ export default function ChannelsPanel({ recording, conditioning, onChange }: Pro
           </tbody>
         </table>
       </div>
+      <ReferencePanel electrodes={electrodes} intracranial={intracranial} reference={conditioning.reference} onChange={(reference) => onChange({ reference })} />
+      {problem !== null && (
+        <p className="notice notice-warn text-sm" role="alert" data-testid="channels-problem">
+          These settings cannot be applied: {problem}
+        </p>
+      )}
     </div>
   );
 }

@@ -253,7 +253,12 @@ export default function SourceScreen(props: WorkspaceProps) {
             <h2 id="source-channels" className="text-lg font-semibold">
               Channels
             </h2>
-            <ChannelsPanel recording={recording} conditioning={conditioning} onChange={(p) => store().setConditioning(p)} />
+            <ChannelsPanel
+              recording={recording}
+              conditioning={conditioning}
+              onChange={(p) => store().setConditioning(p)}
+              problem={settingsError !== null && /^(signals|reference|filters)/.test(settingsError) ? settingsError : null}
+            />
           </section>
           <section className="card grid min-w-0 gap-3" aria-labelledby="source-conditions">
             <h2 id="source-conditions" className="text-lg font-semibold">

@@ -1,10 +1,23 @@
-import { isBrainType, resolveChannels, type ChannelType, type ChannelUnit, type SignalsSpec } from './channel-types';
+import { isBrainType, resolveChannels, shortList, type ChannelType, type ChannelUnit, type SignalsSpec } from './channel-types';
+import { AnalysisInputError } from './errors';
 import type { Recording } from './recording';
+import { bipolar, commonAverage, meanOfChannels, shaftContacts } from './reference';
+
+/** The recipe's `reference` (DEVELOPERS.md, "References"). */
+export type ReferenceSpec =
+  | { kind: 'as-recorded' }
+  | { kind: 'common-average' }
+  | { kind: 'mean-of-channels'; channels: readonly string[] }
+  | { kind: 'bipolar'; pairs?: readonly (readonly [string, string])[]; shafts?: readonly string[] };
 
 /** The recipe fields that change the continuous recording before it is cut into epochs. */
 export interface ConditionSpec {
   signals?: SignalsSpec;
+  reference?: ReferenceSpec;
 }
+
+// Referencing applies to electrodes on or in the brain; MEG sensors measure fields and have no reference.
+const ELECTRODE: ReadonlySet<ChannelType> = new Set(['eeg', 'intracranial']);
 
 export interface ConditionedRecording {
   /** Bad channels left out, every channel's type and unit set; samples shared with the input where unchanged. */
@@ -19,26 +32,29 @@ export interface ConditionedRecording {
 const cache = new WeakMap<Recording, { key: string; result: ConditionedRecording }>();
 
 /**
- * The continuous recording as the recipe conditions it before epoching (DEVELOPERS.md, "Channel types"): each
- * channel's type resolved (reader's inference, then `signals.types`), channels in `signals.bad` left out.
+ * The continuous recording as the recipe conditions it before epoching (DEVELOPERS.md, "Channel types",
+ * "References"): each channel's type resolved (reader's inference, then `signals.types`), channels in `signals.bad`
+ * left out, then the `reference` applied.
  * Pure in (recording, spec); throws AnalysisInputError naming the field.
  */
 export function conditionRecording(recording: Recording, spec: ConditionSpec): ConditionedRecording {
-  const key = JSON.stringify({ signals: spec.signals ?? null });
+  const key = JSON.stringify({ signals: spec.signals ?? null, reference: spec.reference ?? null });
   const hit = cache.get(recording);
   if (hit !== undefined && hit.key === key) return hit.result;
   const resolved = resolveChannels(recording, spec.signals);
   const keep: number[] = [];
   const bad: string[] = [];
   recording.channelNames.forEach((name, c) => (resolved.bad[c] ? bad.push(name) : keep.push(c)));
-  const out: ConditionedRecording['recording'] = {
+  let out: ConditionedRecording['recording'] = {
     ...recording,
     channelNames: keep.map((c) => recording.channelNames[c]),
     data: keep.map((c) => recording.data[c]),
     channelTypes: keep.map((c) => resolved.types[c]),
     channelUnits: keep.map((c) => resolved.units[c]),
   };
-  const result: ConditionedRecording = { recording: out, bad, warnings: [] };
+  const warnings: string[] = [];
+  if (spec.reference !== undefined) out = applyReference(out, spec.reference, bad, warnings);
+  const result: ConditionedRecording = { recording: out, bad, warnings };
   cache.set(recording, { key, result });
   return result;
 }
@@ -50,4 +66,96 @@ export function brainChannels(recording: { channelTypes: readonly ChannelType[] 
     if (isBrainType(t)) out.push(c);
   });
   return out;
+}
+
+type Conditioned = ConditionedRecording['recording'];
+
+/**
+ * Applies `reference` to the good channels (`rec` has the bad ones left out; `bad` names them for messages):
+ * `common-average` and `mean-of-channels` re-reference the electrode channels (EEG, intracranial) and leave the
+ * others as recorded; `bipolar` replaces the electrode channels by the pairs' differences, named "A-B".
+ */
+function applyReference(rec: Conditioned, reference: ReferenceSpec, bad: readonly string[], warnings: string[]): Conditioned {
+  const names = rec.channelNames;
+  const electrodes = rec.channelTypes.flatMap((t, c) => (ELECTRODE.has(t) ? [c] : []));
+  const find = (field: string, name: string): number => {
+    const c = names.indexOf(name);
+    if (c >= 0) return c;
+    if (bad.includes(name)) throw new AnalysisInputError(field, `"${name}" is marked bad (signals.bad) and cannot serve in a reference`);
+    throw new AnalysisInputError(field, `names no signal in the recording ("${name}"; signals: ${shortList(names)})`);
+  };
+  const requireMicrovolts = (field: string, c: number) => {
+    if (rec.channelUnits[c] !== 'µV') throw new AnalysisInputError(field, `"${names[c]}" is in ${rec.channelUnits[c]}; only µV channels can be subtracted from electrodes`);
+  };
+  const replaced = (channels: readonly number[], arrays: Float32Array[]): Conditioned => {
+    const data = rec.data.slice();
+    channels.forEach((c, i) => (data[c] = arrays[i]));
+    return { ...rec, data };
+  };
+  switch (reference.kind) {
+    case 'as-recorded':
+      return rec;
+    case 'common-average': {
+      if (electrodes.length < 2) throw new AnalysisInputError('reference', `"common-average" needs at least 2 good EEG or intracranial channels; the recording has ${electrodes.length}`);
+      return replaced(electrodes, commonAverage(rec.data, electrodes));
+    }
+    case 'mean-of-channels': {
+      const refs = reference.channels.map((name, i) => {
+        const c = find(`reference.channels[${i}]`, name);
+        requireMicrovolts(`reference.channels[${i}]`, c);
+        if (reference.channels.indexOf(name) !== i) throw new AnalysisInputError(`reference.channels[${i}]`, `repeats "${name}"`);
+        return c;
+      });
+      if (electrodes.length === 0) throw new AnalysisInputError('reference', 'has no good EEG or intracranial channel to re-reference');
+      return replaced(electrodes, meanOfChannels(rec.data, electrodes, refs));
+    }
+    case 'bipolar': {
+      const pairs: [number, number][] = [];
+      (reference.pairs ?? []).forEach(([a, b], i) => {
+        const ia = find(`reference.pairs[${i}][0]`, a);
+        const ib = find(`reference.pairs[${i}][1]`, b);
+        requireMicrovolts(`reference.pairs[${i}][0]`, ia);
+        requireMicrovolts(`reference.pairs[${i}][1]`, ib);
+        if (ia === ib) throw new AnalysisInputError(`reference.pairs[${i}]`, `pairs "${a}" with itself`);
+        pairs.push([ia, ib]);
+      });
+      (reference.shafts ?? []).forEach((shaft, i) => {
+        const field = `reference.shafts[${i}]`;
+        const all = shaftContacts([...names, ...bad], shaft);
+        if (all.length === 0) throw new AnalysisInputError(field, `"${shaft}" matches no channel named ${shaft}<number> (signals: ${shortList(names)})`);
+        const good = new Map(shaftContacts(names, shaft));
+        let formed = 0;
+        const skipped: string[] = [];
+        for (const [n] of all) {
+          if (!all.some(([m]) => m === n + 1)) continue;
+          const a = good.get(n);
+          const b = good.get(n + 1);
+          if (a === undefined || b === undefined) {
+            skipped.push(`${shaft}${n}-${shaft}${n + 1}`);
+            continue;
+          }
+          requireMicrovolts(field, a);
+          pairs.push([a, b]);
+          formed++;
+        }
+        if (formed === 0) throw new AnalysisInputError(field, `"${shaft}" has no two neighbouring good contacts (${shaft}n and ${shaft}n+1) to pair`);
+        if (skipped.length > 0) warnings.push(`reference.shafts[${i}] "${shaft}": ${skipped.join(', ')} left out (a contact is marked bad)`);
+      });
+      const derivedNames = pairs.map(([a, b]) => `${names[a]}-${names[b]}`);
+      derivedNames.forEach((n, i) => {
+        if (derivedNames.indexOf(n) !== i) throw new AnalysisInputError('reference', `gives the pair "${n}" twice`);
+      });
+      // The pairs replace the electrode channels; eye, heart, muscle, stimulus, other and MEG channels stay.
+      const others = names.flatMap((_, c) => (ELECTRODE.has(rec.channelTypes[c]) ? [] : [c]));
+      const clash = others.find((c) => derivedNames.includes(names[c]));
+      if (clash !== undefined) throw new AnalysisInputError('reference', `gives the pair "${names[clash]}", a name another channel already has`);
+      return {
+        ...rec,
+        channelNames: [...derivedNames, ...others.map((c) => names[c])],
+        data: [...bipolar(rec.data, pairs), ...others.map((c) => rec.data[c])],
+        channelTypes: [...pairs.map(([a]) => rec.channelTypes[a]), ...others.map((c) => rec.channelTypes[c])],
+        channelUnits: [...pairs.map(() => 'µV' as const), ...others.map((c) => rec.channelUnits[c])],
+      };
+    }
+  }
 }

@@ -38,7 +38,6 @@ const typeLimits = z
   })
   .strict();
 
-// eslint-disable-next-line @typescript-eslint/no-unused-vars
 /** The recipe's `reference` (DEVELOPERS.md, "References"): how the electrode channels are re-referenced. */
 const reference = z.discriminatedUnion(
   'kind',
@@ -138,6 +137,7 @@ const shared = {
     .optional(),
   // Channel types changed by hand and channels marked bad (DEVELOPERS.md, "Channel types").
   signals: z.object({ types: z.record(name, channelType).optional(), bad: z.array(name).optional() }).strict().optional(),
+  reference: reference.optional(),
   // How the file was read: `units` maps a physical dimension the reader does not know to its factor to µV,
   // `exclude` lists signal labels left out. The core never reads files; the CLI and the browser pass these on.
   recording: z

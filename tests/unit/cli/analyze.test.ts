@@ -77,6 +77,8 @@ beforeAll(() => {
   put('label.json', { epochs: { ...recipe.epochs, events: ['go', 'wait'] } });
   put('type.json', { signals: { types: { C4: 'scalp' } } });
   put('bad-channel.json', { signals: { bad: ['C4'] } });
+  put('reference.json', { reference: { kind: 'mean-of-channels', channels: ['A1'] } });
+  put('bad-reference.json', { channels: ['C3'], signals: { bad: ['C4'] }, reference: { kind: 'mean-of-channels', channels: ['C4'] } });
   writeFileSync(file('broken.json'), '{"epochs": ');
   writeFileSync(file('ragged.csv'), 'C3,C4\n1,2\n3\n');
   // the same samples as EDF+ with the cues as annotations
@@ -133,6 +135,17 @@ describe('analyze command line', () => {
     expect(lines).toHaveLength(1);
     expect(lines[0]).toMatch(/^analyze: .*format1\.json: recipe format 1 \(no "format" field\) read and upgraded to format 2: epochs\.tmin\/tmax → epochs\.start\/end/);
     expect(one.stdout).toBe(two.stdout);
+  });
+
+  it('honours the recipe reference: the same numbers as the core in process, and not those without it', async () => {
+    writeFileSync(file('average.json'), JSON.stringify({ ...recipe, reference: { kind: 'common-average' } }));
+    const out = await analyze([file('rec.edf'), '--recipe', file('average.json')]);
+    expect(out.code).toBe(0);
+    const edf = toRecording(await openEdf(bytesSource(readFileSync(file('rec.edf')))));
+    expect(out.stdout).toBe(JSON.stringify(runRecipe(edf, { ...recipe, reference: { kind: 'common-average' } })) + '\n');
+    // With two channels the common average leaves C3 = −C4 = (C3 − C4)/2: their powers become equal.
+    const r = JSON.parse(out.stdout);
+    expect(r.conditions.go.power[0]).toEqual(r.conditions.go.power[1]);
   });
 
   it('honours conditions, rejection rules and manual overrides like the core in process, and checks the fingerprint', async () => {
@@ -195,6 +208,8 @@ describe('analyze command line', () => {
     ['too few cycles for the epoch length', ['rec.csv', '--recipe', 'cycles.json', '--events', 'events.tsv', '--rate', '100'], /cycles\.json: cycles is too many for the epoch length/],
     ['an unknown channel type', ['rec.csv', '--recipe', 'type.json', '--events', 'events.tsv', '--rate', '100'], /type\.json: signals\.types\.C4 must be a channel type: "eeg", "eog"/],
     ['a channel marked bad and still named', ['rec.csv', '--recipe', 'bad-channel.json', '--events', 'events.tsv', '--rate', '100'], /bad-channel\.json: channels\[1\] "C4" is marked bad \(signals\.bad\)/],
+    ['a reference channel the recording lacks', ['rec.csv', '--recipe', 'reference.json', '--events', 'events.tsv', '--rate', '100'], /reference\.json: reference\.channels\[0\] names no signal in the recording \("A1"/],
+    ['a reference channel marked bad', ['rec.csv', '--recipe', 'bad-reference.json', '--events', 'events.tsv', '--rate', '100'], /bad-reference\.json: reference\.channels\[0\] "C4" is marked bad/],
     ['an unknown option', ['rec.csv', '--recipe', 'recipe.json', '--colour', 'red'], /--colour: is not an option/],
   ];
   it.each(bad)('exits 2 with one line on stderr for %s', async (_what, args, message) => {
