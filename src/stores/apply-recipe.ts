@@ -64,7 +64,7 @@ export function applyRecipe(
     r === undefined
       ? { ...defaultRejection, peakToPeakMicrovolts: null, flatMicrovolts: null, overrides: {} }
       : { peakToPeakMicrovolts: r.peakToPeakMicrovolts, flatMicrovolts: r.flatMicrovolts, scope: r.scope, channels: r.channels?.slice(), overrides: { ...r.overrides }, ...(r.byType ? { byType: { ...r.byType } } : {}) };
-  const conditioning: ConditioningSettings = { types: { ...(recipe.signals?.types ?? {}) }, bad: (recipe.signals?.bad ?? []).slice(), reference: recipe.reference ?? null };
+  const conditioning: ConditioningSettings = { types: { ...(recipe.signals?.types ?? {}) }, bad: (recipe.signals?.bad ?? []).slice(), reference: recipe.reference ?? null, filters: recipe.filters ?? null };
   const source = useSourceStore.getState();
   source.set({ conditions, epochWindow: { start: recipe.epochs.start, end: recipe.epochs.end }, rejection, conditioning });
   source.recompute();

@@ -109,7 +109,7 @@ export function toRecipe(
     aperiodic: { range: [fitRange[0], fitRange[1]], model: draft.aperiodic.model },
     conditions: spec.conditions as Record<string, string[]>,
     rejection: spec.rejection as NonNullable<RecipeInput['rejection']>,
-    ...((source.conditioning !== undefined ? conditioningSpec(source.conditioning) : {}) as Pick<RecipeInput, 'signals' | 'reference'>),
+    ...((source.conditioning !== undefined ? conditioningSpec(source.conditioning) : {}) as Pick<RecipeInput, 'signals' | 'reference' | 'filters'>),
     ...recordingSection(source),
   };
 }

@@ -2,7 +2,7 @@ import { create } from 'zustand';
 import type { Recording } from '../lib/analysis/recording';
 import { eventKey } from '../lib/analysis/event-key';
 import type { ChannelType } from '../lib/analysis/channel-types';
-import { conditionRecording, type ConditionSpec, type ReferenceSpec } from '../lib/analysis/condition-recording';
+import { conditionRecording, type ConditionSpec, type FiltersSpec, type ReferenceSpec } from '../lib/analysis/condition-recording';
 import { prepareRecording, type EpochDecision, type PrepareSpec } from '../lib/analysis/prepare-recording';
 
 /**
@@ -61,9 +61,11 @@ export interface ConditioningSettings {
   bad: string[];
   /** The recipe's `reference`; as recorded when null. */
   reference: ReferenceSpec | null;
+  /** The recipe's `filters`; none when null. */
+  filters: FiltersSpec | null;
 }
 
-export const defaultConditioning: ConditioningSettings = { types: {}, bad: [], reference: null };
+export const defaultConditioning: ConditioningSettings = { types: {}, bad: [], reference: null, filters: null };
 
 /** The conditioning settings as the recipe's fields, without empty ones. */
 export function conditioningSpec(c: ConditioningSettings): ConditionSpec {
@@ -74,6 +76,7 @@ export function conditioningSpec(c: ConditioningSettings): ConditionSpec {
   return {
     ...(Object.keys(signals).length > 0 ? { signals } : {}),
     ...(c.reference !== null && c.reference.kind !== 'as-recorded' ? { reference: c.reference } : {}),
+    ...(c.filters !== null && (c.filters.highPass !== undefined || c.filters.notch !== undefined) ? { filters: c.filters } : {}),
   };
 }
 

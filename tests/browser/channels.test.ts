@@ -130,5 +130,37 @@ describe('channel types on the Source screen', () => {
     const cell = await readMapCell(page, 2, 300);
     expect(cell.normalized).toBeCloseTo(result.conditions.chirp.normalized[ci][2][300], 9);
   });
+
+  it('filters with a zero-phase high-pass and notch, refuses a notch past Nyquist by field, and matches the command line', async () => {
+    await page.getByRole('tab', { name: 'Source' }).click();
+    const panel = page.getByTestId('filters-panel');
+    await panel.getByLabel('High-pass (Butterworth)').check();
+    await panel.getByLabel('Line-noise notch').check();
+    await panel.getByLabel('60 Hz').check();
+    // 200 Hz sampling: 2 × 60 Hz = 120 Hz is past the 100 Hz Nyquist frequency
+    await page.getByTestId('notch-harmonics').fill('2');
+    await page.getByTestId('notch-harmonics').press('Enter');
+    expect(await panel.textContent()).toContain('while 2 × 60 Hz stays below 100 Hz');
+    expect(await page.getByTestId('notch-harmonics').getAttribute('aria-invalid')).toBe('true');
+    await page.getByTestId('highpass-cutoff').fill('1');
+    await page.getByTestId('highpass-cutoff').press('Enter');
+    await page.getByRole('tab', { name: 'Recipe' }).click();
+    await page.getByTestId('recipe-run').click();
+    await page.waitForFunction(() => document.querySelector('[data-testid="recipe-status"]')?.getAttribute('data-status') === 'done', undefined, { timeout: 90_000 });
+    await page.getByRole('tab', { name: 'Maps' }).click();
+    await page.getByTestId('map-normalized').waitFor();
+    const recipe = JSON.parse((await download('export-recipe')).toString('utf8'));
+    expect(recipe.filters).toEqual({ highPass: { cutoffHz: 1, order: 4 }, notch: { lineHz: 60, harmonics: 1, q: 30 } });
+    const recipeFile = path.join(dir, 'recipe-filters.json');
+    fs.writeFileSync(recipeFile, JSON.stringify(recipe));
+    const out = path.join(dir, 'result-filters.json');
+    execFileSync(process.execPath, ['--import', 'tsx', 'src/cli/analyze.ts', path.join(dir, FILE_NAME), '--recipe', recipeFile, '--out', out], { stdio: 'pipe' });
+    const result = JSON.parse(fs.readFileSync(out, 'utf8')) as AnalysisResult;
+    const ci = result.channels.indexOf(await page.getByTestId('maps-channel').inputValue());
+    const cell = await readMapCell(page, 3, 250);
+    expect(cell.normalized).toBeCloseTo(result.conditions.chirp.normalized[ci][3][250], 9);
+    await page.getByRole('tab', { name: 'Source' }).click();
+    await page.getByTestId('channels-panel').screenshot({ path: path.join(artifactsDir, 'channels-reference-filters.png') });
+  });
 });
 

@@ -2,6 +2,7 @@ import { useMemo } from 'react';
 import { CHANNEL_TYPES, isBrainType, resolveChannels, type ChannelType } from '../../lib/analysis/channel-types';
 import type { Recording } from '../../lib/analysis/recording';
 import type { ConditioningSettings } from '../../stores/source';
+import FiltersPanel from './FiltersPanel';
 import ReferencePanel from './ReferencePanel';
 
 const TYPE_WORDS: Record<ChannelType, string> = {
@@ -86,6 +87,7 @@ export default function ChannelsPanel({ recording, conditioning, onChange, probl
         </table>
       </div>
       <ReferencePanel electrodes={electrodes} intracranial={intracranial} reference={conditioning.reference} onChange={(reference) => onChange({ reference })} />
+      <FiltersPanel sampleRateHz={recording.sampleRateHz} filters={conditioning.filters} onChange={(filters) => onChange({ filters })} />
       {problem !== null && (
         <p className="notice notice-warn text-sm" role="alert" data-testid="channels-problem">
           These settings cannot be applied: {problem}

@@ -251,7 +251,7 @@ export default function SourceScreen(props: WorkspaceProps) {
           </section>
           <section className="card grid min-w-0 gap-3" aria-labelledby="source-channels" data-testid="channels-panel">
             <h2 id="source-channels" className="text-lg font-semibold">
-              Channels
+              Channels, reference and filters
             </h2>
             <ChannelsPanel
               recording={recording}

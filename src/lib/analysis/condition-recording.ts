@@ -1,6 +1,7 @@
 import { isBrainType, resolveChannels, shortList, type ChannelType, type ChannelUnit, type SignalsSpec } from './channel-types';
 import { AnalysisInputError } from './errors';
 import type { Recording } from './recording';
+import { butterworthHighPass, filtfilt, notch, type Biquad } from './filters';
 import { bipolar, commonAverage, meanOfChannels, shaftContacts } from './reference';
 
 /** The recipe's `reference` (DEVELOPERS.md, "References"). */
@@ -10,10 +11,17 @@ export type ReferenceSpec =
   | { kind: 'mean-of-channels'; channels: readonly string[] }
   | { kind: 'bipolar'; pairs?: readonly (readonly [string, string])[]; shafts?: readonly string[] };
 
+/** The recipe's `filters` (DEVELOPERS.md, "Filters"). */
+export interface FiltersSpec {
+  highPass?: { cutoffHz: number; order?: number };
+  notch?: { lineHz?: number; harmonics?: number; q?: number };
+}
+
 /** The recipe fields that change the continuous recording before it is cut into epochs. */
 export interface ConditionSpec {
   signals?: SignalsSpec;
   reference?: ReferenceSpec;
+  filters?: FiltersSpec;
 }
 
 // Referencing applies to electrodes on or in the brain; MEG sensors measure fields and have no reference.
@@ -34,11 +42,11 @@ const cache = new WeakMap<Recording, { key: string; result: ConditionedRecording
 /**
  * The continuous recording as the recipe conditions it before epoching (DEVELOPERS.md, "Channel types",
  * "References"): each channel's type resolved (reader's inference, then `signals.types`), channels in `signals.bad`
- * left out, then the `reference` applied.
+ * left out, then the `reference` applied, then the `filters` (each continuous stretch between gaps on its own).
  * Pure in (recording, spec); throws AnalysisInputError naming the field.
  */
 export function conditionRecording(recording: Recording, spec: ConditionSpec): ConditionedRecording {
-  const key = JSON.stringify({ signals: spec.signals ?? null, reference: spec.reference ?? null });
+  const key = JSON.stringify({ signals: spec.signals ?? null, reference: spec.reference ?? null, filters: spec.filters ?? null });
   const hit = cache.get(recording);
   if (hit !== undefined && hit.key === key) return hit.result;
   const resolved = resolveChannels(recording, spec.signals);
@@ -54,6 +62,7 @@ export function conditionRecording(recording: Recording, spec: ConditionSpec): C
   };
   const warnings: string[] = [];
   if (spec.reference !== undefined) out = applyReference(out, spec.reference, bad, warnings);
+  if (spec.filters !== undefined) out = applyFilters(out, spec.filters);
   const result: ConditionedRecording = { recording: out, bad, warnings };
   cache.set(recording, { key, result });
   return result;
@@ -158,4 +167,61 @@ function applyReference(rec: Conditioned, reference: ReferenceSpec, bad: readonl
       };
     }
   }
+}
+
+const fmtHz = (x: number) => Number(x.toFixed(4)).toString();
+
+/** The filter cascade a `filters` spec asks for at `fs`, checked against Nyquist, and its padding in samples. */
+export function filterDesign(filters: FiltersSpec, sampleRateHz: number): { sections: Biquad[]; padSamples: number } {
+  const nyquist = sampleRateHz / 2;
+  const sections: Biquad[] = [];
+  let slowestHz = Infinity;
+  const hp = filters.highPass;
+  if (hp !== undefined) {
+    if (!(hp.cutoffHz > 0 && hp.cutoffHz < nyquist)) {
+      throw new AnalysisInputError('filters.highPass.cutoffHz', `must be above 0 and below the Nyquist frequency (${fmtHz(nyquist)} Hz at ${sampleRateHz} Hz sampling; got ${hp.cutoffHz} Hz)`);
+    }
+    const order = hp.order ?? 4;
+    if (![2, 4, 6, 8].includes(order)) throw new AnalysisInputError('filters.highPass.order', `must be 2, 4, 6 or 8 (got ${order})`);
+    sections.push(...butterworthHighPass(hp.cutoffHz, order, sampleRateHz));
+    slowestHz = Math.min(slowestHz, hp.cutoffHz);
+  }
+  const nt = filters.notch;
+  if (nt !== undefined) {
+    if (nt.lineHz === undefined) throw new AnalysisInputError('filters.notch.lineHz', 'is required for a notch: the line frequency, 50 or 60 Hz');
+    if (!(nt.lineHz > 0 && nt.lineHz < nyquist)) {
+      throw new AnalysisInputError('filters.notch.lineHz', `must be above 0 and below the Nyquist frequency (${fmtHz(nyquist)} Hz at ${sampleRateHz} Hz sampling; got ${nt.lineHz} Hz)`);
+    }
+    const harmonics = nt.harmonics ?? 1;
+    const fit = Math.ceil(nyquist / nt.lineHz) - 1;
+    if (harmonics > fit) {
+      throw new AnalysisInputError('filters.notch.harmonics', `asks for ${harmonics} × ${nt.lineHz} Hz = ${fmtHz(harmonics * nt.lineHz)} Hz, at or above the Nyquist frequency (${fmtHz(nyquist)} Hz); at most ${fit} fit`);
+    }
+    const q = nt.q ?? 30;
+    // Each harmonic gets the fundamental's width in Hz (lineHz/q), so its neighbours lose as little as 45/55 Hz do.
+    for (let h = 1; h <= harmonics; h++) sections.push(notch(h * nt.lineHz, h * q, sampleRateHz));
+    slowestHz = Math.min(slowestHz, nt.lineHz / q);
+  }
+  // Three time constants of the slowest part (its bandwidth), where the odd extension lets the transient settle.
+  const padSamples = Number.isFinite(slowestHz) ? Math.ceil((3 * sampleRateHz) / slowestHz) : 0;
+  return { sections, padSamples };
+}
+
+/** Filters every channel but stimulus lines, each continuous stretch between gaps apart (no filter across a gap). */
+function applyFilters(rec: Conditioned, filters: FiltersSpec): Conditioned {
+  const { sections, padSamples } = filterDesign(filters, rec.sampleRateHz);
+  if (sections.length === 0) return rec;
+  const total = rec.data.length > 0 ? rec.data[0].length : 0;
+  const cuts = [0, ...(rec.gapSampleIndices ?? []).filter((g) => g > 0 && g < total).sort((a, b) => a - b), total];
+  const data = rec.data.map((x, c) => {
+    if (rec.channelTypes[c] === 'stimulus') return x;
+    const y = new Float32Array(total);
+    for (let i = 0; i + 1 < cuts.length; i++) {
+      const [s0, s1] = [cuts[i], cuts[i + 1]];
+      if (s1 <= s0) continue;
+      y.set(filtfilt(x.subarray(s0, s1), sections, padSamples), s0);
+    }
+    return y;
+  });
+  return { ...rec, data };
 }

@@ -77,6 +77,8 @@ beforeAll(() => {
   put('label.json', { epochs: { ...recipe.epochs, events: ['go', 'wait'] } });
   put('type.json', { signals: { types: { C4: 'scalp' } } });
   put('bad-channel.json', { signals: { bad: ['C4'] } });
+  put('highpass.json', { filters: { highPass: { cutoffHz: 50 } } });
+  put('notch.json', { filters: { notch: { harmonics: 2 } } });
   put('reference.json', { reference: { kind: 'mean-of-channels', channels: ['A1'] } });
   put('bad-reference.json', { channels: ['C3'], signals: { bad: ['C4'] }, reference: { kind: 'mean-of-channels', channels: ['C4'] } });
   writeFileSync(file('broken.json'), '{"epochs": ');
@@ -210,6 +212,8 @@ describe('analyze command line', () => {
     ['a channel marked bad and still named', ['rec.csv', '--recipe', 'bad-channel.json', '--events', 'events.tsv', '--rate', '100'], /bad-channel\.json: channels\[1\] "C4" is marked bad \(signals\.bad\)/],
     ['a reference channel the recording lacks', ['rec.csv', '--recipe', 'reference.json', '--events', 'events.tsv', '--rate', '100'], /reference\.json: reference\.channels\[0\] names no signal in the recording \("A1"/],
     ['a reference channel marked bad', ['rec.csv', '--recipe', 'bad-reference.json', '--events', 'events.tsv', '--rate', '100'], /bad-reference\.json: reference\.channels\[0\] "C4" is marked bad/],
+    ['a high-pass at Nyquist', ['rec.csv', '--recipe', 'highpass.json', '--events', 'events.tsv', '--rate', '100'], /highpass\.json: filters\.highPass\.cutoffHz must be above 0 and below the Nyquist frequency \(50 Hz/],
+    ['a notch without a line frequency', ['rec.csv', '--recipe', 'notch.json', '--events', 'events.tsv', '--rate', '100'], /notch\.json: filters\.notch\.lineHz is required for a notch/],
     ['an unknown option', ['rec.csv', '--recipe', 'recipe.json', '--colour', 'red'], /--colour: is not an option/],
   ];
   it.each(bad)('exits 2 with one line on stderr for %s', async (_what, args, message) => {
