@@ -132,6 +132,19 @@ describe('a recipe exported from the page reproduces the page on the command lin
     expect(cell.normalized).toBeCloseTo(result.conditions[condition].normalized[ci][fi][ti], 9);
   });
 
+  it('shows the time and frequency resolution of each frequency on the Recipe screen, as the Result reports it', async () => {
+    await page.getByRole('tab', { name: 'Recipe' }).click();
+    await page.getByTestId('resolution').locator('summary').click();
+    const rows = await page.getByTestId('resolution-row').evaluateAll((els) => els.map((e) => [Number(e.getAttribute('data-frequency')), Number(e.getAttribute('data-time-fwhm')), Number(e.getAttribute('data-frequency-fwhm'))]));
+    expect(rows.length).toBe(result.frequencies.length);
+    rows.forEach(([f, t, s], i) => {
+      expect(f).toBeCloseTo(result.frequencies[i], 12);
+      expect(t).toBeCloseTo(result.temporalFwhmSeconds[i], 12);
+      expect(s).toBeCloseTo(result.spectralFwhmHz[i], 12);
+    });
+    await page.getByTestId('resolution').screenshot({ path: path.join(artifactsDir, 'recipe-resolution.png') });
+  });
+
   it('shows the aperiodic fit table the command line writes', async () => {
     await page.getByRole('tab', { name: 'Spectrum' }).click();
     await page.getByTestId('fit-row').first().waitFor({ timeout: 30_000 });

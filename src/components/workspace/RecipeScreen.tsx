@@ -1,4 +1,5 @@
 import { useMemo, useRef, useState } from 'react';
+import ResolutionTable from './ResolutionTable';
 import { isBrainType } from '../../lib/analysis/channel-types';
 import { conditionRecording } from '../../lib/analysis/condition-recording';
 import type { WorkspaceProps } from './types';
@@ -170,6 +171,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
           </p>
         )}
       </fieldset>
+      <ResolutionTable frequencies={draft.frequencies} cycles={draft.cyclesMode === 'fixed' ? { fixed: draft.cyclesFixed } : draft.cyclesMode === 'fwhm' ? { fwhm: draft.fwhmSeconds } : { min: draft.cyclesMin, max: draft.cyclesMax }} />
       <fieldset className="card flex flex-col gap-2 p-3">
         <legend className="px-1 text-sm font-semibold">Epochs and conditions</legend>
         <div className="flex flex-wrap items-end gap-4">

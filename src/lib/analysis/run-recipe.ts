@@ -10,7 +10,7 @@ import { prepareRecording } from './prepare-recording';
 import { parseRecipe, type Recipe } from './recipe';
 import type { Recording } from './recording';
 import { roundHalfUp } from './rounding';
-import { cyclesOf, edgeSecondsOf, gaussianSigmas } from './wavelet';
+import { cyclesOf, edgeSecondsOf, gaussianSigmas, resolutionOf } from './wavelet';
 import { isBrainType, shortList, type ChannelType, type ChannelUnit } from './channel-types';
 
 export { analyzeChannel, type ChannelAnalysis, type ChannelOptions, type RecipePlan } from './analyze-channel';
@@ -33,12 +33,15 @@ export interface ResultAperiodic extends AperiodicFit {
 
 /**
  * The Result JSON of the analysis contract ("Result (output)"), plus `cycles`, `dropped`, `rejected`, `points`,
- * `excluded`, and each channel's type and unit (`channelTypes`, `channelUnits`: power is in unit², e.g. fT²).
+ * `excluded`, each frequency's resolution (`temporalFwhmSeconds`, `spectralFwhmHz`), and each channel's type and unit (`channelTypes`, `channelUnits`: power is in unit², e.g. fT²).
  */
 export interface AnalysisResult {
   frequencies: number[];
   cycles: number[];
   edgeSeconds: number[];
+  /** Per frequency, the wavelet's temporal FWHM (s) and spectral FWHM (Hz) (`resolutionOf`). */
+  temporalFwhmSeconds: number[];
+  spectralFwhmHz: number[];
   times: number[];
   channels: string[];
   channelTypes: ChannelType[];
@@ -292,10 +295,13 @@ export function assembleResult(plan: RecipePlan, channels: ChannelAnalysis[]): A
       normalized: channels.map((ch) => rows(ch.normalized[c], nf, nt)),
     };
   });
+  const resolution = resolutionOf(plan.sigmas);
   return {
     frequencies: Array.from(plan.frequencies),
     cycles: Array.from(cyclesOf(plan.frequencies, plan.sigmas)),
     edgeSeconds: Array.from(plan.edgeSeconds),
+    temporalFwhmSeconds: Array.from(resolution.temporalFwhmSeconds),
+    spectralFwhmHz: Array.from(resolution.spectralFwhmHz),
     times: Array.from(plan.times),
     channels: plan.channels.slice(),
     channelTypes: plan.channelTypes.slice(),

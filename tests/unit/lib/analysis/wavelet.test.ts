@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { normalizeAverage, normalizeTrials } from '../../../../src/lib/analysis/baseline';
 import { decomposeChannel } from '../../../../src/lib/analysis/decompose';
 import { getRealDft } from '../../../../src/lib/analysis/fft';
-import { gaussianSigmas, getWaveletBank, morletWavelet } from '../../../../src/lib/analysis/wavelet';
+import { gaussianSigmas, getWaveletBank, morletWavelet, resolutionOf } from '../../../../src/lib/analysis/wavelet';
 import { assertClose } from '../../../helpers/assert-close';
 import { seededNormal } from '../../../helpers/seeded-random';
 
@@ -88,6 +88,16 @@ describe('Morlet wavelet', () => {
     }
     const sigma = gaussianSigmas(Float64Array.of(12), { fwhm: 0.3 })[0];
     assertClose(measure(12, sigma), 0.3, 1e-4, 'fwhm 0.3 s');
+  });
+
+  it('reports the temporal and spectral FWHM of each wavelet (Cohen, 2019), worked by hand at 10 Hz with 7 cycles', () => {
+    // σ = 7/(2π·10) = 0.1114085 s; temporal FWHM = √(8 ln 2)·σ = 2.354820 × 0.1114085 = 0.262347 s; spectral SD =
+    // f/n = 1.428571 Hz, so spectral FWHM = 2.354820 × 1.428571 = 3.364029 Hz (by hand, 7 digits).
+    const r = resolutionOf(gaussianSigmas(Float64Array.of(10, 4), { fixed: 7 }));
+    assertClose(r.temporalFwhmSeconds[0], 0.262347, 1e-6);
+    assertClose(r.spectralFwhmHz[0], 3.364029, 1e-6);
+    // time × frequency FWHM is the same for every Gaussian: 8 ln 2 / (2π) = 0.882542 (the uncertainty product)
+    for (let i = 0; i < 2; i++) assertClose(r.temporalFwhmSeconds[i] * r.spectralFwhmHz[i], (8 * Math.LN2) / (2 * Math.PI), 1e-12);
   });
 
   it('spreads cycles geometrically from min to max over the frequency index', () => {
