@@ -280,7 +280,7 @@ describe('the spectrum and band screens', () => {
     expect(await page.getByTestId('fit-table').locator('th[aria-sort="ascending"]').count()).toBe(1);
 
     const csv = (await download('export-fits')).bytes.toString('utf8').trim().split(/\r?\n/);
-    expect(csv[0]).toBe('channel,exponent,offset,knee,r2,rmse,points,excluded,fit_low_hz,fit_high_hz,model,trials');
+    expect(csv[0]).toBe('channel,exponent,offset,knee,knee_hz,r2,rmse,r2_kept,points,excluded,peaks,fit_low_hz,fit_high_hz,model,trials');
     expect(csv).toHaveLength(1 + DEMO.channels.length);
     expect(Number(csv.find((l) => l.startsWith('Fz,'))!.split(',')[1])).toBeCloseTo(after, 9);
     await page.screenshot({ path: path.join(artifactsDir, 'explorer-spectrum.png'), fullPage: true });

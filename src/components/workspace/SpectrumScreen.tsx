@@ -14,7 +14,7 @@ import { useSourceStore } from '../../stores/source';
 import { useViewStore, type SpectrumAxes } from '../../stores/view';
 import CanvasPlot from '../explorer/CanvasPlot';
 import Choice from '../explorer/Choice';
-import FitTable, { type FitRow } from '../explorer/FitTable';
+import FitTable, { describePeaks, type FitRow } from '../explorer/FitTable';
 import NumberField from '../explorer/NumberField';
 import ScalpMap from '../explorer/ScalpMap';
 import { downloadBlob } from '../explorer/download';
@@ -137,13 +137,25 @@ export default function SpectrumScreen(_props: WorkspaceProps) {
       ? []
       : d.channels.map((c, i) => {
           const f = fits[i].fit;
-          return { channel: c, exponent: f?.exponent ?? null, offset: f?.offset ?? null, knee: f?.knee ?? null, r2: f?.r2 ?? null, rmse: f?.rmse ?? null, points: f?.points ?? null, excluded: f?.excluded ?? null };
+          return {
+            channel: c,
+            exponent: f?.exponent ?? null,
+            offset: f?.offset ?? null,
+            knee: f?.knee ?? null,
+            kneeHz: f?.kneeHz ?? null,
+            r2: f?.r2 ?? null,
+            rmse: f?.rmse ?? null,
+            r2Kept: f?.r2Kept ?? null,
+            points: f?.points ?? null,
+            excluded: f?.excluded ?? null,
+            peaks: describePeaks(f?.peaks),
+          };
         });
 
   const exportFits = () => {
     const csv = Papa.unparse({
-      fields: ['channel', 'exponent', 'offset', 'knee', 'r2', 'rmse', 'points', 'excluded', 'fit_low_hz', 'fit_high_hz', 'model', 'trials'],
-      data: rows.map((r) => [r.channel, r.exponent, r.offset, r.knee, r.r2, r.rmse, r.points, r.excluded, fitRange[0], fitRange[1], model, sp?.trials ?? '']),
+      fields: ['channel', 'exponent', 'offset', 'knee', 'knee_hz', 'r2', 'rmse', 'r2_kept', 'points', 'excluded', 'peaks', 'fit_low_hz', 'fit_high_hz', 'model', 'trials'],
+      data: rows.map((r) => [r.channel, r.exponent, r.offset, r.knee, r.kneeHz, r.r2, r.rmse, r.r2Kept, r.points, r.excluded, r.peaks, fitRange[0], fitRange[1], model, sp?.trials ?? '']),
     });
     downloadBlob(new Blob([csv + '\n'], { type: 'text/csv' }), 'aperiodic-fits.csv');
   };
@@ -179,6 +191,10 @@ export default function SpectrumScreen(_props: WorkspaceProps) {
           <div className="grid grid-cols-1 gap-4 lg:grid-cols-[2fr_1fr]">
             <div className="card p-2">
               <FitTable rows={rows} selected={ch} onSelect={(c) => setView({ channel: c })} />
+              <p className="px-2 pt-1 text-xs text-ink-soft">
+                r² and RMSE over all bins of the fit range; "kept bins" leaves out the bins the robust fit set aside as peaks. Peaks: runs of
+                bins well above the line, centre by parabolic interpolation, height in log10 power above the line, width at half that height.
+              </p>
             </div>
             <div className="card p-2">
               <ScalpMap title="Aperiodic exponent" unit="χ" values={rows.map((r) => ({ channel: r.channel, value: r.exponent }))} testId="scalp-exponent" />
