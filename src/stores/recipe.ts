@@ -34,7 +34,8 @@ export const DEFAULT_DRAFT: RecipeDraft = {
   fwhmSeconds: 0.3,
   channels: [],
   conditions: [],
-  spectrum: { segment: 1, overlap: 0.5, range: [1, 45], source: 'recording' },
+  // The kept epochs by default: the whole recording would mix in breaks, rejected epochs and artefacts.
+  spectrum: { segment: 1, overlap: 0.5, range: [1, 45], source: 'epochs' },
   aperiodic: { model: 'power-law' },
 };
 

@@ -239,7 +239,7 @@ describe('the explorer on a demo recording', () => {
 });
 
 describe('the spectrum and band screens', () => {
-  it('draws the aperiodic fit of the recipe spectrum (whole recording by default), equal to the core fit in Node, with a draggable range', async () => {
+  it('draws the aperiodic fit of the recipe spectrum (kept epochs by default), equal to the core fit in Node, with a draggable range', async () => {
     const { welchPsd } = await import('../../src/lib/analysis/welch');
     const { fitAperiodic } = await import('../../src/lib/analysis/aperiodic');
     const { planRecipe } = await import('../../src/lib/analysis/run-recipe');
@@ -249,9 +249,10 @@ describe('the spectrum and band screens', () => {
     loadDemo(DEMO);
     const recording = useSourceStore.getState().analysisRecording()!;
     const plan = planRecipe(recording, recipe);
-    // spectrum.source "recording": Welch over the whole recording, as analyzeChannel computes it for the CLI.
+    // spectrum.source "epochs" (the browser's default): Welch over the kept epochs, as analyzeChannel computes it for the CLI.
     const fz = welchPsd(recording.data[recording.channelNames.indexOf('Fz')], 500, plan.spectrum.segmentSamples, plan.spectrum.overlapSamples, plan.spectrum.spans);
-    expect(recipe.spectrum.source).toBe('recording');
+    expect(recipe.spectrum.source).toBe('epochs');
+    expect(plan.spectrum.spans.length).toBe(2 * plan.epochStarts.reduce((n, s) => n + s.length, 0));
     const { channel: _fz, ...coreFit } = nodeResult(recipe).aperiodic.find((a) => a.channel === 'Fz')!;
     expect(fitAperiodic(fz.frequencies, fz.psd, [2, 40], 'power-law')).toEqual(coreFit);
     const expectFit = async (range: [number, number]) => {

@@ -104,7 +104,7 @@ describe('a recipe exported from the page reproduces the page on the command lin
     expect(recipe.format).toBe(2);
     expect(recipe.epochs).toMatchObject({ start: -1, end: 2 });
     expect(recipe.aperiodic.model).toBe('power-law');
-    expect(recipe.spectrum.source).toBe('recording');
+    expect(recipe.spectrum.source).toBe('epochs'); // the kept epochs by default
     fs.writeFileSync(path.join(dir, 'recipe.json'), JSON.stringify(recipe));
     result = analyze(path.join(dir, 'recipe.json'));
     expect(result.warnings.filter((w) => w.startsWith('recording.fingerprint'))).toEqual([]);

@@ -251,7 +251,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
         <NumberField label="Overlap" unit="fraction" value={draft.spectrum.overlap} step={0.05} error={errorFor('spectrum.overlap')} onValue={(v) => setDraft({ spectrum: { ...draft.spectrum, overlap: v } })} />
         <NumberField label="Fit from" unit="Hz" value={fitRange[0]} step={0.5} error={errorFor('aperiodic.range')} onValue={(v) => setView({ fitRange: [v, fitRange[1]] })} />
         <NumberField label="Fit to" unit="Hz" value={fitRange[1]} step={0.5} onValue={(v) => setView({ fitRange: [fitRange[0], v] })} />
-        <Choice legend="Spectrum from" value={draft.spectrum.source} options={[{ value: 'recording', label: 'whole recording' }, { value: 'epochs', label: 'kept epochs' }]} onChange={(src) => setDraft({ spectrum: { ...draft.spectrum, source: src } })} />
+        <Choice legend="Spectrum from" value={draft.spectrum.source} options={[{ value: 'epochs', label: 'kept epochs' }, { value: 'recording', label: 'whole recording' }]} onChange={(src) => setDraft({ spectrum: { ...draft.spectrum, source: src } })} />
         <Choice legend="Aperiodic model" value={draft.aperiodic.model} options={[{ value: 'power-law', label: 'power law' }, { value: 'power-law-knee', label: 'power law with knee' }]} onChange={(m) => setDraft({ aperiodic: { ...draft.aperiodic, model: m } })} />
       </fieldset>
       {errorFor('baseline') && (
