@@ -46,6 +46,11 @@ export interface ViewState {
   fitRange: [number, number];
   bands: Band[];
   windows: TimeWindow[];
+  /**
+   * Colour limits held fixed while other channels and conditions are shown, so panels can be compared; `key` names
+   * what they were taken for (method, difference or not, raw scale), and they apply only while that matches.
+   */
+  heldLimits: { key: string; raw: [number, number]; normalized: [number, number] } | null;
   set: (patch: Partial<Omit<ViewState, 'set' | 'setBaseline'>>) => void;
   /** Marks the User Timing start of a baseline change, then applies it. */
   setBaseline: (baseline: { start: number; end: number }) => void;
@@ -63,6 +68,7 @@ export const useViewStore = create<ViewState>((set) => ({
   fitRange: [2, 40],
   bands: DEFAULT_BANDS,
   windows: DEFAULT_WINDOWS,
+  heldLimits: null,
   set: (patch) => set(patch),
   setBaseline: (baseline) => {
     performance.mark('tidemark:baseline-input');

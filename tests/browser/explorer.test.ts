@@ -198,6 +198,25 @@ describe('the explorer on a demo recording', () => {
     await page.getByText('dB', { exact: true }).click();
   });
 
+  it('draws a power ratio on a log scale centred on 1, and holds colour limits across channels when asked', async () => {
+    const map = page.getByTestId('map-normalized');
+    const limits = async () => [await map.getAttribute('data-scale-kind'), Number(await map.getAttribute('data-scale-low')), Number(await map.getAttribute('data-scale-high'))] as const;
+    await page.getByText('power ratio', { exact: true }).click();
+    await expect.poll(async () => (await limits())[0]).toBe('log');
+    const [, lo, hi] = await limits();
+    expect(lo * hi).toBeCloseTo(1, 12); // [1/m, m]: the centre of the colour bar is a ratio of 1
+    await page.getByText('dB', { exact: true }).click();
+    await expect.poll(async () => (await limits())[0]).toBe('linear');
+    const fz = await limits();
+    await page.getByTestId('hold-limits').check();
+    await page.getByTestId('maps-channel').selectOption('Pz');
+    await expect.poll(async () => (await page.getByTestId('map-normalized').getAttribute('aria-label')) ?? '').toContain('Pz');
+    expect(await limits()).toEqual(fz);
+    await page.getByTestId('hold-limits').uncheck();
+    await expect.poll(async () => (await limits())[2]).not.toBe(fz[2]);
+    await page.getByTestId('maps-channel').selectOption('Fz');
+  });
+
   it('draws the difference map A − B in the chosen unit', async () => {
     const fi = nearest(result.frequencies, 20);
     const ti = nearest(result.times, 0.5);

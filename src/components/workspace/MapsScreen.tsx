@@ -3,7 +3,7 @@ import { flushSync } from 'react-dom';
 import type { WorkspaceProps } from './types';
 import type { BaselineMethod } from '../../lib/analysis/baseline';
 import { divergingColormap, sequentialColormap } from '../../lib/plot/colormap';
-import { extentLimits, methodUnit, neutralValue, symmetricLimits, type ColourScale } from '../../lib/plot/colour-scale';
+import { extentLimits, methodUnit, neutralValue, ratioLimits, symmetricLimits, type ColourScale } from '../../lib/plot/colour-scale';
 import type { PanelSpec } from '../../lib/plot/panel';
 import { explorerWorker } from '../../lib/client/explorer-worker';
 import { useResultsStore, selectActive, ensureTrials } from '../../stores/results';
@@ -51,6 +51,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
   const method = useViewStore((s) => s.method);
   const scope = useViewStore((s) => s.scope);
   const rawScale = useViewStore((s) => s.rawScale);
+  const heldLimits = useViewStore((s) => s.heldLimits);
   const setView = useViewStore((s) => s.set);
   const setBaseline = useViewStore((s) => s.setBaseline);
   const [cursor, setCursor] = useState<Cell | null>(null);
@@ -108,11 +109,14 @@ export default function MapsScreen(_props: WorkspaceProps) {
     buffers.current = { a: new Float64Array(n), b: new Float64Array(n), diff: new Float64Array(n), rawDiff: new Float64Array(n) };
   }
 
+  const limitsKey = `${method}|${b >= 0 ? 'difference' : 'single'}|${rawScale}`;
   const rawSpec = useMemo((): PanelSpec | null => {
     if (d === null || buffers.current === null) return null;
     const pa = d.power[ci][a];
     const values = b >= 0 ? difference(new Float64Array(nf * nt), pa, d.power[ci][b]) : pa;
-    const scale: ColourScale = b >= 0 ? { domain: symmetricLimits(values, 0, d.mask), kind: 'linear' } : { domain: extentLimits(values, rawScale, d.mask), kind: rawScale };
+    const kind = b >= 0 ? 'linear' : rawScale;
+    const held = heldLimits !== null && heldLimits.key === limitsKey ? heldLimits.raw : null;
+    const scale: ColourScale = { domain: held ?? (b >= 0 ? symmetricLimits(values, 0, d.mask) : extentLimits(values, rawScale, d.mask)), kind };
     return {
       title: b >= 0 ? `Raw power ${d.labels[a]} − ${d.labels[b]} · ${ch}` : `Raw power · ${d.labels[a]} · ${ch}`,
       unit: 'µV²',
@@ -124,7 +128,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
       colormap: b >= 0 ? divergingColormap() : sequentialColormap(),
       scale,
     };
-  }, [d, ci, a, b, rawScale, ch, nf, nt]);
+  }, [d, ci, a, b, rawScale, ch, nf, nt, heldLimits, limitsKey]);
 
   let normValues: Float64Array | null = null;
   let normFresh = true;
@@ -140,6 +144,9 @@ export default function MapsScreen(_props: WorkspaceProps) {
     }
   }
   const neutral = b >= 0 ? 0 : neutralValue(method);
+  // A power ratio is drawn on a log scale centred on 1, so a halving looks as strong as a doubling.
+  const ratioScale = b < 0 && method === 'power-ratio';
+  const heldNorm = heldLimits !== null && heldLimits.key === limitsKey ? heldLimits.normalized : null;
   const normSpec: PanelSpec | null =
     d === null || normValues === null
       ? null
@@ -152,8 +159,13 @@ export default function MapsScreen(_props: WorkspaceProps) {
           spacing: d.spacing,
           edges: d.edges,
           colormap: divergingColormap(),
-          scale: { domain: symmetricLimits(normValues, neutral, d.mask), kind: 'linear' },
+          scale: { domain: heldNorm ?? (ratioScale ? ratioLimits(normValues, d.mask) : symmetricLimits(normValues, neutral, d.mask)), kind: ratioScale ? 'log' : 'linear' },
         };
+  const holdLimits = () => {
+    if (heldLimits !== null) return setView({ heldLimits: null });
+    if (rawSpec === null || normSpec === null) return;
+    setView({ heldLimits: { key: limitsKey, raw: [...rawSpec.scale.domain], normalized: [...normSpec.scale.domain] } });
+  };
 
   // Both panels have painted (children's layout effects run first): close the User Timing measure.
   useLayoutEffect(() => {
@@ -230,6 +242,10 @@ export default function MapsScreen(_props: WorkspaceProps) {
         </label>
         <Choice legend="Method" value={method} options={METHODS} onChange={(m) => setView({ method: m })} />
         <Choice legend="Scope" value={scope} options={[{ value: 'average', label: 'trial average' }, { value: 'trial', label: 'single trial' }]} onChange={(s) => setView({ scope: s })} />
+        <label className="flex items-center gap-1 text-sm" title="Keep the colour limits fixed while you switch channels and conditions, so maps can be compared">
+          <input type="checkbox" checked={heldLimits !== null} onChange={holdLimits} data-testid="hold-limits" />
+          same colour limits for every map{heldLimits !== null && heldLimits.key !== limitsKey ? ' (taken for another method or view: not applied)' : ''}
+        </label>
         <Choice legend="Raw colour scale" value={rawScale} options={[{ value: 'log', label: 'log' }, { value: 'linear', label: 'linear' }]} onChange={(s) => setView({ rawScale: s })} />
         <NumberField label="Baseline start" unit="s" value={baseline.start} step={dt} testId="baseline-start" onValue={(v) => setBaseline({ start: snap(Math.min(v, baseline.end)), end: baseline.end })} />
         <NumberField label="Baseline end" unit="s" value={baseline.end} step={dt} testId="baseline-end" onValue={(v) => setBaseline({ start: baseline.start, end: snap(Math.max(v, baseline.start)) })} />
@@ -285,7 +301,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
       )}
       <p className="text-xs text-ink-soft">
         Hatched: the edge zone, where the wavelet at that frequency overlaps the epoch's edge (3σ). Dashed line: the event at 0 s. Colour limits are
-        symmetric around the method's neutral value and leave edge-zone cells out.
+        symmetric around the method's neutral value (a power ratio on a log scale centred on 1) and leave edge-zone cells out.
       </p>
     </div>
   );

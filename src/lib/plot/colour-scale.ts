@@ -68,3 +68,21 @@ export function extentLimits(values: ArrayLike<number>, kind: 'linear' | 'log', 
   if (hi === lo) return kind === 'log' ? [lo / 2, hi * 2] : [lo - 1, hi + 1];
   return [lo, hi];
 }
+
+/**
+ * Limits of a power-ratio map on a log scale centred on 1: [1/m, m] with m the largest of v and 1/v over positive
+ * finite unmasked values, so a halving sits as far below the centre as a doubling sits above it. Empty or all-1
+ * data give [1/2, 2].
+ */
+export function ratioLimits(values: ArrayLike<number>, mask: ArrayLike<number> | null = null): [number, number] {
+  let m = 1;
+  for (let i = 0; i < values.length; i++) {
+    if (mask !== null && mask[i] !== 0) continue;
+    const v = values[i];
+    if (!(v > 0) || v === Infinity) continue;
+    const r = v >= 1 ? v : 1 / v;
+    if (r > m) m = r;
+  }
+  if (!(m > 1)) m = 2;
+  return [1 / m, m];
+}
