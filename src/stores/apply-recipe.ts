@@ -69,7 +69,7 @@ export function applyRecipe(
   source.set({ conditions, epochWindow: { start: recipe.epochs.start, end: recipe.epochs.end }, rejection, conditioning });
   source.recompute();
   useRecipeStore.setState((s) => ({ draft: draftOf(recipe, conditions.map((c) => c.name), s.draft ?? DEFAULT_DRAFT) }));
-  useViewStore.getState().set({ method: recipe.baseline.method, scope: recipe.baseline.scope, fitRange: [recipe.aperiodic.range[0], recipe.aperiodic.range[1]] });
+  useViewStore.getState().set({ method: recipe.baseline.method, scope: recipe.baseline.scope, spread: recipe.baseline.spread ?? 'time', fitRange: [recipe.aperiodic.range[0], recipe.aperiodic.range[1]] });
   useViewStore.getState().setBaseline({ start: recipe.baseline.start, end: recipe.baseline.end });
   const notices: string[] = [];
   // Format 1 is upgraded in place; say so (analysis contract: never silently). The next export writes format 2.

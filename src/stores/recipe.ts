@@ -87,7 +87,7 @@ export interface RecipeSource {
 export function toRecipe(
   draft: RecipeDraft,
   source: RecipeSource,
-  baseline: { start: number; end: number; method: BaselineMethod; scope: 'average' | 'trial' },
+  baseline: { start: number; end: number; method: BaselineMethod; scope: 'average' | 'trial'; spread?: 'time' | 'trials' },
   fitRange: readonly [number, number],
 ): RecipeInput {
   const cycles =
@@ -105,7 +105,8 @@ export function toRecipe(
     ...(draft.channels.length > 0 ? { channels: draft.channels } : {}),
     frequencies: { ...draft.frequencies },
     cycles,
-    baseline: { ...baseline },
+    // `spread` is written only where it means something: an across-trials z-score.
+    baseline: { start: baseline.start, end: baseline.end, method: baseline.method, scope: baseline.scope, ...(baseline.method === 'z-score' && baseline.spread === 'trials' ? { spread: 'trials' as const } : {}) },
     spectrum: { ...draft.spectrum, range: [...draft.spectrum.range] as [number, number] },
     aperiodic: { range: [fitRange[0], fitRange[1]], model: draft.aperiodic.model },
     conditions: spec.conditions as Record<string, string[]>,

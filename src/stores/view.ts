@@ -1,5 +1,5 @@
 import { create } from 'zustand';
-import type { BaselineMethod, BaselineScope } from '../lib/analysis/baseline';
+import type { BaselineMethod, BaselineScope, BaselineSpread } from '../lib/analysis/baseline';
 
 export interface Band {
   name: string;
@@ -40,6 +40,8 @@ export interface ViewState {
   baseline: { start: number; end: number };
   method: BaselineMethod;
   scope: BaselineScope;
+  /** For z-scores: S over the baseline's time points or across trials (recipe `baseline.spread`). */
+  spread: BaselineSpread;
   rawScale: 'linear' | 'log';
   spectrumAxes: SpectrumAxes;
   /** Aperiodic fit range in Hz, dragged on the spectrum's frequency axis. */
@@ -63,6 +65,7 @@ export const useViewStore = create<ViewState>((set) => ({
   baseline: { start: -0.5, end: -0.2 },
   method: 'decibel',
   scope: 'average',
+  spread: 'time',
   rawScale: 'log',
   spectrumAxes: 'log-log',
   fitRange: [2, 40],

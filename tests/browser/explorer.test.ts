@@ -217,6 +217,21 @@ describe('the explorer on a demo recording', () => {
     await page.getByTestId('maps-channel').selectOption('Fz');
   });
 
+  it('z-scores with the spread across trials when asked, as the core does', async () => {
+    const fi = nearest(result.frequencies, 6);
+    const ti = nearest(result.times, 0.4);
+    await page.getByText('z-score', { exact: true }).click();
+    await page.getByText('across trials', { exact: true }).click();
+    const cell = await readMapCell(page, fi, ti, { textContains: ' z' });
+    const exported = JSON.parse((await download('export-recipe')).bytes.toString('utf8'));
+    expect(exported.baseline).toMatchObject({ method: 'z-score', spread: 'trials' });
+    const expected = nodeResult(exported).conditions['lamp-watch'].normalized[0][fi][ti];
+    // live maps come from single trials held as Float32: agreement to ~1e-6 relative
+    expect(Math.abs(cell.normalized - expected)).toBeLessThan(1e-4 * Math.max(1, Math.abs(expected)));
+    await page.getByText('over baseline time', { exact: true }).click();
+    await page.getByText('dB', { exact: true }).click();
+  });
+
   it('draws the difference map A − B in the chosen unit', async () => {
     const fi = nearest(result.frequencies, 20);
     const ti = nearest(result.times, 0.5);

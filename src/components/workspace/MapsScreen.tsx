@@ -1,7 +1,7 @@
 import { useEffect, useLayoutEffect, useMemo, useRef, useState } from 'react';
 import { flushSync } from 'react-dom';
 import type { WorkspaceProps } from './types';
-import type { BaselineMethod } from '../../lib/analysis/baseline';
+import type { BaselineMethod, BaselineSpread } from '../../lib/analysis/baseline';
 import { divergingColormap, sequentialColormap } from '../../lib/plot/colormap';
 import { extentLimits, methodUnit, neutralValue, ratioLimits, symmetricLimits, type ColourScale } from '../../lib/plot/colour-scale';
 import type { PanelSpec } from '../../lib/plot/panel';
@@ -31,6 +31,7 @@ interface TrialMaps {
   first: number;
   last: number;
   method: BaselineMethod;
+  spread: BaselineSpread;
   maps: Float64Array[];
 }
 
@@ -50,6 +51,10 @@ export default function MapsScreen(_props: WorkspaceProps) {
   const baseline = useViewStore((s) => s.baseline);
   const method = useViewStore((s) => s.method);
   const scope = useViewStore((s) => s.scope);
+  const spread = useViewStore((s) => s.spread);
+  // Across-trials z-scores need every trial's baseline: they come from the held trials, like single-trial scope.
+  const spreadTrials = method === 'z-score' && spread === 'trials';
+  const useTrials = scope === 'trial' || spreadTrials;
   const rawScale = useViewStore((s) => s.rawScale);
   const heldLimits = useViewStore((s) => s.heldLimits);
   const setView = useViewStore((s) => s.set);
@@ -78,29 +83,29 @@ export default function MapsScreen(_props: WorkspaceProps) {
 
   // Single-trial scope: the worker holds this channel's trials; ask it for the maps whenever the baseline moves.
   useEffect(() => {
-    if (d === null || ch === null || scope !== 'trial') return;
+    if (d === null || ch === null || !useTrials) return;
     // The whole recording: the decomposition's recipe carries the conditions and rejection the core applies.
     const recording = useSourceStore.getState().recording;
     if (recording !== null) void ensureTrials(d, ch, recording);
-  }, [d, ch, scope]);
-  const pending = useRef<{ busy: boolean; next: { key: string; first: number; last: number; method: BaselineMethod } | null }>({ busy: false, next: null });
+  }, [d, ch, useTrials]);
+  const pending = useRef<{ busy: boolean; next: { key: string; first: number; last: number; method: BaselineMethod; spread: BaselineSpread } | null }>({ busy: false, next: null });
   useEffect(() => {
-    if (scope !== 'trial' || holdKey === null || trialHold?.key !== holdKey || trialHold.status !== 'ready') return;
-    pending.current.next = { key: holdKey, first: points.first, last: points.last, method };
+    if (!useTrials || holdKey === null || trialHold?.key !== holdKey || trialHold.status !== 'ready') return;
+    pending.current.next = { key: holdKey, first: points.first, last: points.last, method, spread: spreadTrials ? 'trials' : 'time' };
     if (pending.current.busy) return;
     const pump = async () => {
       pending.current.busy = true;
       while (pending.current.next !== null) {
         const job = pending.current.next;
         pending.current.next = null;
-        const maps = await explorerWorker().renormalize(job.key, job.first, job.last, job.method);
+        const maps = await explorerWorker().renormalize(job.key, job.first, job.last, job.method, job.spread);
         // Paint in this task, not a later one: the measure runs from the input to the painted canvas.
         if (maps !== null) flushSync(() => setTrialMaps({ ...job, maps }));
       }
       pending.current.busy = false;
     };
     void pump();
-  }, [scope, holdKey, trialHold, points.first, points.last, method]);
+  }, [useTrials, spreadTrials, holdKey, trialHold, points.first, points.last, method]);
 
   const nf = d === null ? 0 : d.frequencies.length;
   const nt = d === null ? 0 : d.times.length;
@@ -134,11 +139,11 @@ export default function MapsScreen(_props: WorkspaceProps) {
   let normFresh = true;
   if (d !== null && buffers.current !== null) {
     const buf = buffers.current;
-    if (scope === 'average') {
+    if (!useTrials) {
       const na = averageNormalized(buf.a, d.power[ci][a], nt, points, method);
       normValues = b >= 0 ? difference(buf.diff, na, averageNormalized(buf.b, d.power[ci][b], nt, points, method)) : na;
     } else if (trialMaps !== null && trialMaps.key === holdKey) {
-      normFresh = trialMaps.first === points.first && trialMaps.last === points.last && trialMaps.method === method;
+      normFresh = trialMaps.first === points.first && trialMaps.last === points.last && trialMaps.method === method && trialMaps.spread === (spreadTrials ? 'trials' : 'time');
       const na = trialMaps.maps[a];
       normValues = b >= 0 ? difference(buf.diff, na, trialMaps.maps[b]) : na;
     }
@@ -151,7 +156,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
     d === null || normValues === null
       ? null
       : {
-          title: `${b >= 0 ? `${d.labels[a]} − ${d.labels[b]}` : d.labels[a]} · ${METHODS.find((m) => m.value === method)!.label} · ${scope === 'trial' ? 'single-trial' : 'trial-average'} · ${ch}`,
+          title: `${b >= 0 ? `${d.labels[a]} − ${d.labels[b]}` : d.labels[a]} · ${METHODS.find((m) => m.value === method)!.label} · ${scope === 'trial' ? 'single-trial' : 'trial-average'}${spreadTrials ? ' · S across trials' : ''} · ${ch}`,
           unit: methodUnit(method),
           values: normValues,
           times: d.times,
@@ -202,7 +207,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
   const exportRecipe = () => {
     // The run's recipe with the live baseline and fit range: everything `npm run analyze` needs to give these numbers.
     const { fitRange } = useViewStore.getState();
-    const recipe = { ...d.recipe, baseline: { start: baseline.start, end: baseline.end, method, scope }, aperiodic: { ...d.recipe.aperiodic, range: [fitRange[0], fitRange[1]] } };
+    const recipe = { ...d.recipe, baseline: { start: baseline.start, end: baseline.end, method, scope, ...(spreadTrials ? { spread: 'trials' } : {}) }, aperiodic: { ...d.recipe.aperiodic, range: [fitRange[0], fitRange[1]] } };
     downloadBlob(new Blob([JSON.stringify(recipe, null, 2) + '\n'], { type: 'application/json' }), 'recipe.json');
   };
 
@@ -241,6 +246,9 @@ export default function MapsScreen(_props: WorkspaceProps) {
           </select>
         </label>
         <Choice legend="Method" value={method} options={METHODS} onChange={(m) => setView({ method: m })} />
+        {method === 'z-score' && (
+          <Choice legend="z-score spread" value={spread} options={[{ value: 'time', label: 'over baseline time' }, { value: 'trials', label: 'across trials' }]} onChange={(s) => setView({ spread: s })} />
+        )}
         <Choice legend="Scope" value={scope} options={[{ value: 'average', label: 'trial average' }, { value: 'trial', label: 'single trial' }]} onChange={(s) => setView({ scope: s })} />
         <label className="flex items-center gap-1 text-sm" title="Keep the colour limits fixed while you switch channels and conditions, so maps can be compared">
           <input type="checkbox" checked={heldLimits !== null} onChange={holdLimits} data-testid="hold-limits" />
@@ -258,7 +266,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
           </button>
         </div>
       </div>
-      {scope === 'trial' && trialHold?.key === holdKey && trialHold.status !== 'ready' && (
+      {useTrials && trialHold?.key === holdKey && trialHold.status !== 'ready' && (
         <p className={trialHold.status === 'failed' ? 'text-coral-deep' : 'text-ink-soft'} role="status">
           {trialHold.message}
         </p>

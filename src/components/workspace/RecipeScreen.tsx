@@ -44,6 +44,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const baseline = useViewStore((s) => s.baseline);
   const method = useViewStore((s) => s.method);
   const scope = useViewStore((s) => s.scope);
+  const spread = useViewStore((s) => s.spread);
   const viewChannel = useViewStore((s) => s.channel);
   const cache = useResultsStore((s) => s.cache);
   const activeKey = useResultsStore((s) => s.activeKey);
@@ -51,7 +52,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const visible = usePanelVisible('Recipe');
 
   const conditionNames = conditions.map((c) => c.name);
-  const recipe = toRecipe(draft, { conditions, epochStart: epochWindow.start, epochEnd: epochWindow.end, rejection, conditioning, fingerprint, reading }, { ...baseline, method, scope }, fitRange);
+  const recipe = toRecipe(draft, { conditions, epochStart: epochWindow.start, epochEnd: epochWindow.end, rejection, conditioning, fingerprint, reading }, { ...baseline, method, scope, spread }, fitRange);
   // The whole recording goes to the core with the full recipe: prepareRecording applies conditions and rejection there.
   const analysis = recording;
   const recordingId = recording === null ? null : recordingIdOf(recording, fingerprint);

@@ -1,5 +1,5 @@
 import { fitAperiodic, type AperiodicFit, type AperiodicModel } from './aperiodic';
-import type { BaselineMethod, BaselineScope } from './baseline';
+import type { BaselineMethod, BaselineScope, BaselineSpread } from './baseline';
 import type { ChannelType, ChannelUnit } from './channel-types';
 import { decomposeChannel, type DecomposeOptions } from './decompose';
 import { welchPsd } from './welch';
@@ -30,7 +30,7 @@ export interface RecipePlan {
   frequencies: Float64Array;
   sigmas: Float64Array;
   edgeSeconds: Float64Array;
-  baseline: { first: number; last: number; method: BaselineMethod; scope: BaselineScope };
+  baseline: { first: number; last: number; method: BaselineMethod; scope: BaselineScope; spread: BaselineSpread };
   spectrum: { segmentSamples: number; overlapSamples: number; range: [number, number]; spans: Int32Array };
   aperiodic: { range: [number, number]; model: AperiodicModel };
   warnings: string[];

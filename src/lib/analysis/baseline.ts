@@ -3,6 +3,8 @@ import { log10 } from './portable-math';
 
 export type BaselineMethod = 'decibel' | 'percent-change' | 'z-score' | 'power-ratio';
 export type BaselineScope = 'average' | 'trial';
+/** Where a z-score's S comes from: the baseline's time points (`time`, the contract's) or the trials (`trials`). */
+export type BaselineSpread = 'time' | 'trials';
 
 export interface BaselineIndices {
   first: number;
@@ -100,4 +102,29 @@ export function normalizeTrials(trials: ArrayLike<number>[], nTimes: number, bas
   }
   for (let i = 0; i < size; i++) sum[i] /= trials.length;
   return sum;
+}
+
+/**
+ * z-score with the spread across trials (recipe `baseline.spread: "trials"`, DEVELOPERS.md): per frequency f,
+ * `B_k` is trial k's mean power over the baseline points, `B̄ = (1/K)·Σ_k B_k`, `S = √(Σ_k (B_k − B̄)²/(K − 1))`,
+ * and `z = (P̄ − B̄)/S` for the trial-averaged power P̄. The same for scope `average` and `trial`, since
+ * `(1/K)·Σ_k (P_k − B_k)/S = (P̄ − B̄)/S`. `trialBaselines[k·nFreqs + f]` holds B_k(f).
+ */
+export function zScoreAcrossTrials(power: Float64Array, nTimes: number, trialBaselines: Float64Array, trials: number): Float64Array {
+  const nf = power.length / nTimes;
+  const out = new Float64Array(power.length);
+  for (let f = 0; f < nf; f++) {
+    let mean = 0;
+    for (let k = 0; k < trials; k++) mean += trialBaselines[k * nf + f];
+    mean /= trials;
+    let ss = 0;
+    for (let k = 0; k < trials; k++) {
+      const d = trialBaselines[k * nf + f] - mean;
+      ss += d * d;
+    }
+    const sd = trials > 1 ? Math.sqrt(ss / (trials - 1)) : NaN;
+    const off = f * nTimes;
+    for (let j = 0; j < nTimes; j++) out[off + j] = (power[off + j] - mean) / sd;
+  }
+  return out;
 }

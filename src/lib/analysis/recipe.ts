@@ -169,8 +169,13 @@ export const RecipeSchema = z
         end: finite,
         method: z.enum(BASELINE_METHODS, { error: `must be one of ${BASELINE_METHODS.map((m) => `"${m}"`).join(', ')}` }),
         scope: z.enum(['average', 'trial']).default('average'),
+        // Extension (DEVELOPERS.md, "Baseline spread"): where a z-score's S comes from; absent means "time".
+        spread: z.enum(['time', 'trials'], { error: 'must be "time" or "trials"' }).optional(),
       })
-      .strict(),
+      .strict()
+      .superRefine((b, ctx) => {
+        if (b.spread !== undefined && b.method !== 'z-score') ctx.addIssue({ code: 'custom', path: ['spread'], message: `applies only to method "z-score" (the method is "${b.method}")` });
+      }),
     aperiodic: z.object({ range, model: z.enum(APERIODIC_MODELS, { error: `must be "power-law" or "power-law-knee"` }) }).strict(),
     ...shared,
   })

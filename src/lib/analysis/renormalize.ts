@@ -1,7 +1,7 @@
 // Live re-normalization for the explorer: the same definitions as baseline.ts (analysis contract, "Baseline
 // normalization"), arranged so a moved baseline costs F×T work (average scope) or one weighted pass over the
 // stored trials (trial scope), with caller-owned output buffers.
-import { baselineStats, type BaselineMethod } from './baseline';
+import { baselineStats, zScoreAcrossTrials, type BaselineMethod, type BaselineSpread } from './baseline';
 import { log10 } from './portable-math';
 
 /**
@@ -72,9 +72,19 @@ export function prepareTrialPower(trials: Float32Array, count: number, nFreqs: n
  * power-ratio (1/K)·Σ P_k/B_k; percent-change 100·((1/K)·Σ P_k/B_k − 1); z-score (1/K)·Σ P_k/S_k − (1/K)·Σ B_k/S_k.
  * Equal to `normalizeTrials` up to rounding.
  */
-export function renormalizeTrials(out: Float64Array, tp: TrialPower, first: number, last: number, method: BaselineMethod): void {
+export function renormalizeTrials(out: Float64Array, tp: TrialPower, first: number, last: number, method: BaselineMethod, spread: BaselineSpread = 'time'): void {
   const { trials, count: K, nFreqs: nf, nTimes: nt, meanLog10 } = tp;
   const size = nf * nt;
+  if (method === 'z-score' && spread === 'trials') {
+    // (P̄ − B̄)/S with S the SD across trials of each trial's baseline mean (zScoreAcrossTrials, from held trials).
+    const mean = new Float64Array(size);
+    for (let k = 0; k < K; k++) for (let i = 0; i < size; i++) mean[i] += trials[k * size + i];
+    for (let i = 0; i < size; i++) mean[i] /= K;
+    const bk = new Float64Array(K * nf);
+    for (let k = 0; k < K; k++) for (let f = 0; f < nf; f++) bk[k * nf + f] = baselineStats(trials, (k * nf + f) * nt, first, last).mean;
+    out.set(zScoreAcrossTrials(mean, nt, bk, K));
+    return;
+  }
   if (method === 'decibel') {
     for (let f = 0; f < nf; f++) {
       let logB = 0;

@@ -219,6 +219,12 @@ export function planRun(input: Recording, recipeInput: unknown): { plan: RecipeP
     epochStarts.push(sel.starts);
   });
 
+  if (recipe.baseline.spread === 'trials') {
+    epochStarts.forEach((starts, i) => {
+      if (starts.length < 2) throw new AnalysisInputError('baseline.spread', `"trials" needs at least 2 kept epochs per condition for a standard deviation; "${labels[i]}" has ${starts.length}`);
+    });
+  }
+
   const sp = recipe.spectrum;
   const segmentSamples = roundHalfUp(sp.segment * fs);
   const overlapSamples = roundHalfUp(sp.overlap * segmentSamples);
@@ -267,7 +273,7 @@ export function planRun(input: Recording, recipeInput: unknown): { plan: RecipeP
     frequencies,
     sigmas,
     edgeSeconds,
-    baseline: { first: b.first, last: b.last, method, scope },
+    baseline: { first: b.first, last: b.last, method, scope, spread: recipe.baseline.spread ?? 'time' },
     spectrum: { segmentSamples, overlapSamples, range: [rLo, rHi], spans: Int32Array.from(spanList) },
     aperiodic: { range: [aLo, aHi], model: ap.model },
     warnings,
