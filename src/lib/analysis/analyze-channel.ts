@@ -31,7 +31,8 @@ export interface RecipePlan {
   sigmas: Float64Array;
   edgeSeconds: Float64Array;
   baseline: { first: number; last: number; method: BaselineMethod; scope: BaselineScope; spread: BaselineSpread };
-  spectrum: { segmentSamples: number; overlapSamples: number; range: [number, number]; spans: Int32Array };
+  /** `conditionSpans` (source `epochs` only): each condition's epoch spans, for one aperiodic fit per condition. */
+  spectrum: { segmentSamples: number; overlapSamples: number; range: [number, number]; spans: Int32Array; conditionSpans: Int32Array[] | null };
   aperiodic: { range: [number, number]; model: AperiodicModel };
   warnings: string[];
 }
@@ -45,6 +46,8 @@ export interface ChannelAnalysis {
   psd: Float64Array;
   spectrumFrequencies: Float64Array;
   aperiodic: AperiodicFit;
+  /** With spectrum source `epochs`, the fit of each condition's own epochs, in plan label order; else null. */
+  aperiodicByCondition: AperiodicFit[] | null;
 }
 
 export interface ChannelOptions extends DecomposeOptions {
@@ -72,6 +75,14 @@ export function analyzeChannel(plan: RecipePlan, samples: Float32Array, options:
   const sp = plan.spectrum;
   const welch = welchPsd(samples, plan.sampleRateHz, sp.segmentSamples, sp.overlapSamples, sp.spans);
   const aperiodic = fitAperiodic(welch.frequencies, welch.psd, plan.aperiodic.range, plan.aperiodic.model);
+  // One fit per condition, on Welch over that condition's kept epochs only (same segments, same range).
+  const aperiodicByCondition =
+    sp.conditionSpans === null
+      ? null
+      : sp.conditionSpans.map((spans) => {
+          const w = welchPsd(samples, plan.sampleRateHz, sp.segmentSamples, sp.overlapSamples, spans);
+          return fitAperiodic(w.frequencies, w.psd, plan.aperiodic.range, plan.aperiodic.model);
+        });
   let k0 = 0;
   while (k0 < welch.frequencies.length && welch.frequencies[k0] < sp.range[0] - EPS) k0++;
   let k1 = k0;
@@ -83,5 +94,6 @@ export function analyzeChannel(plan: RecipePlan, samples: Float32Array, options:
     psd: welch.psd.slice(k0, k1),
     spectrumFrequencies: welch.frequencies.slice(k0, k1),
     aperiodic,
+    aperiodicByCondition,
   };
 }

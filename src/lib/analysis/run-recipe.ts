@@ -49,6 +49,8 @@ export interface AnalysisResult {
   conditions: Record<string, ResultCondition>;
   spectrum: { frequencies: number[]; psd: number[][] };
   aperiodic: ResultAperiodic[];
+  /** With spectrum source `epochs`: per condition, each channel's fit on that condition's kept epochs alone. */
+  aperiodicByCondition?: Record<string, ResultAperiodic[]>;
   warnings: string[];
 }
 
@@ -233,6 +235,7 @@ export function planRun(input: Recording, recipeInput: unknown): { plan: RecipeP
   const [rLo, rHi] = sp.range;
   if (!(rLo >= 0 && rLo <= rHi && rHi <= nyquist)) throw new AnalysisInputError('spectrum.range', `must satisfy 0 ≤ low ≤ high ≤ Nyquist (${fmt(nyquist)} Hz); got [${rLo}, ${rHi}]`);
   const spanList: number[] = [];
+  let conditionSpans: Int32Array[] | null = null;
   if (sp.source === 'recording') {
     const gaps = (recording.gapSampleIndices ?? []).filter((g) => g > 0 && g < total).sort((x, y) => x - y);
     let s0 = 0;
@@ -247,6 +250,7 @@ export function planRun(input: Recording, recipeInput: unknown): { plan: RecipeP
   } else {
     if (segmentSamples > L) throw new AnalysisInputError('spectrum.segment', `(${sp.segment} s) is longer than an epoch (${fmt(epochSeconds)} s) with spectrum.source "epochs"`);
     for (const starts of epochStarts) for (const s of starts) spanList.push(s, s + L);
+    conditionSpans = epochStarts.map((starts) => Int32Array.from(Array.from(starts).flatMap((s) => [s, s + L])));
   }
 
   const ap = recipe.aperiodic;
@@ -274,7 +278,7 @@ export function planRun(input: Recording, recipeInput: unknown): { plan: RecipeP
     sigmas,
     edgeSeconds,
     baseline: { first: b.first, last: b.last, method, scope, spread: recipe.baseline.spread ?? 'time' },
-    spectrum: { segmentSamples, overlapSamples, range: [rLo, rHi], spans: Int32Array.from(spanList) },
+    spectrum: { segmentSamples, overlapSamples, range: [rLo, rHi], spans: Int32Array.from(spanList), conditionSpans },
     aperiodic: { range: [aLo, aHi], model: ap.model },
     warnings,
   };
@@ -318,6 +322,9 @@ export function assembleResult(plan: RecipePlan, channels: ChannelAnalysis[]): A
       psd: channels.map((ch) => Array.from(ch.psd)),
     },
     aperiodic: channels.map((ch, i) => ({ channel: plan.channels[i], ...ch.aperiodic })),
+    ...(plan.spectrum.conditionSpans !== null
+      ? { aperiodicByCondition: Object.fromEntries(plan.labels.map((label, c) => [label, channels.map((ch, i) => ({ channel: plan.channels[i], ...ch.aperiodicByCondition![c] }))])) }
+      : {}),
     warnings: plan.warnings.slice(),
   };
 }

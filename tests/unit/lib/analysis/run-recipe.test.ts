@@ -1,6 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { analyzeChannel, assembleResult, planRecipe, runRecipe } from '../../../../src/lib/analysis/run-recipe';
 import type { Recording } from '../../../../src/lib/analysis/recording';
+import { fitAperiodic } from '../../../../src/lib/analysis/aperiodic';
+import { welchPsd } from '../../../../src/lib/analysis/welch';
 import { assertClose } from '../../../helpers/assert-close';
 import { seededNormal } from '../../../helpers/seeded-random';
 
@@ -92,6 +94,26 @@ describe('runRecipe', () => {
       };
       expect(JSON.stringify(runRecipe(recording, one))).toBe(JSON.stringify(runRecipe(recording, { ...two, channels: ['Cz'] })));
     }
+  });
+
+  it('fits the aperiodic line per condition on that condition’s kept epochs when the spectrum comes from epochs', () => {
+    const r = { ...recipe, spectrum: { segment: 1, overlap: 0.5, range: [1, 45], source: 'epochs' } };
+    const result = runRecipe(recording, r);
+    const plan = planRecipe(recording, r);
+    expect(Object.keys(result.aperiodicByCondition!)).toEqual(['tone/high', 'tone/low']);
+    plan.labels.forEach((label, c) => {
+      // Welch over this condition's epochs only, spans written out here from the plan's epoch starts
+      const spans = Int32Array.from(Array.from(plan.epochStarts[c]).flatMap((s) => [s, s + plan.epochSamples]));
+      const w = welchPsd(recording.data[1], plan.sampleRateHz, plan.spectrum.segmentSamples, plan.spectrum.overlapSamples, spans);
+      const { channel, ...fit } = result.aperiodicByCondition![label][1];
+      expect(channel).toBe('Cz');
+      expect(fit).toEqual(fitAperiodic(w.frequencies, w.psd, [2, 40], 'power-law'));
+    });
+    // the 8 Hz burst after "tone/high" on Cz shows as a peak above that condition's line only
+    const near8 = (label: string) => result.aperiodicByCondition![label][1].peaks.some((p) => Math.abs(p.centreHz - 8) < 1.5);
+    expect(near8('tone/high')).toBe(true);
+    expect(near8('tone/low')).toBe(false);
+    expect(runRecipe(recording, recipe).aperiodicByCondition).toBeUndefined();
   });
 
   it('reports progress and honours cancellation', () => {
