@@ -46,7 +46,7 @@ const cache = new WeakMap<Recording, { key: string; result: ConditionedRecording
  * Pure in (recording, spec); throws AnalysisInputError naming the field.
  */
 export function conditionRecording(recording: Recording, spec: ConditionSpec): ConditionedRecording {
-  const key = JSON.stringify({ signals: spec.signals ?? null, reference: spec.reference ?? null, filters: spec.filters ?? null });
+  const key = conditionKey(spec);
   const hit = cache.get(recording);
   if (hit !== undefined && hit.key === key) return hit.result;
   const resolved = resolveChannels(recording, spec.signals);
@@ -66,6 +66,22 @@ export function conditionRecording(recording: Recording, spec: ConditionSpec): C
   const result: ConditionedRecording = { recording: out, bad, warnings };
   cache.set(recording, { key, result });
   return result;
+}
+
+/**
+ * The spec in one canonical spelling (defaults filled, fields in a fixed order), so the Source screen's settings and
+ * a parsed recipe that mean the same conditioning share one cache entry.
+ */
+function conditionKey(spec: ConditionSpec): string {
+  const r = spec.reference;
+  const f = spec.filters;
+  return JSON.stringify([
+    spec.signals?.types === undefined ? {} : Object.fromEntries(Object.entries(spec.signals.types).sort(([x], [y]) => (x < y ? -1 : x > y ? 1 : 0))),
+    spec.signals?.bad ?? [],
+    r === undefined || r.kind === 'as-recorded' ? null : r.kind === 'bipolar' ? [r.kind, r.pairs ?? [], r.shafts ?? []] : r.kind === 'mean-of-channels' ? [r.kind, r.channels] : [r.kind],
+    f?.highPass === undefined ? null : [f.highPass.cutoffHz, f.highPass.order ?? 4],
+    f?.notch === undefined ? null : [f.notch.lineHz ?? null, f.notch.harmonics ?? 1, f.notch.q ?? 30],
+  ]);
 }
 
 /** Indices of the brain channels of a conditioned recording (bad channels are already left out). */
