@@ -108,7 +108,8 @@ async function readText(blob: Blob, hash: Sha256 | null, onProgress: (fraction: 
 }
 
 const api = {
-  async openEdf(file: Blob, reading: EdfReading, onProgress: Progress): Promise<IntakeResult> {
+  async openEdf(file: Blob, reading: EdfReading, onProgress: Progress, events: Blob | null = null): Promise<IntakeResult> {
+    let stage: IntakeProblem['file'] = 'recording';
     try {
       const small = file.size <= WEB_CRYPTO_BYTES;
       let fingerprint: string | null = null;
@@ -132,6 +133,16 @@ const api = {
           `${edf.eventsOutside.length} annotations fall outside the recorded samples and are left out (first: "${first.annotation.label}" at ${first.annotation.onsetSeconds} s, ${first.reason.replace('-', ' ')})`,
         );
       }
+      if (events !== null) {
+        // A paired BIDS events file: its events follow the EDF+ annotations, in the order the CLI's --events gives.
+        stage = 'events';
+        onProgress('events', 0);
+        const seconds = recording.data[0].length / recording.sampleRateHz;
+        const parsed = parseBidsEvents(await events.text(), { recordingSeconds: seconds });
+        recording.events = [...recording.events, ...parsed.events.map((e) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, label: e.label }))];
+        warnings.push(...parsed.warnings);
+        onProgress('events', 1);
+      }
       const local: IntakeLocal = {
         sizeBytes: file.size,
         format: edf.header.variant === 'EDF+C' ? 'edf+c' : edf.header.variant === 'EDF+D' ? 'edf+d' : 'edf',
@@ -146,7 +157,7 @@ const api = {
       };
       return done(recording, local, fingerprint ?? edf.fingerprint!, small ? 'web-crypto' : 'incremental');
     } catch (error) {
-      const problem = problemOf(error, 'recording');
+      const problem = problemOf(error, stage);
       if (problem.field === 'physical dimension' && problem.signal !== null) {
         // The header parsed (the units are checked after it), so read it again for the dimension as written.
         const header = await readEdfHeader(blobSource(file)).catch(() => null);
