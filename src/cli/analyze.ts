@@ -92,6 +92,7 @@ export async function main(argv: string[]): Promise<number> {
       eventsPath: args.events,
       rateHz: args.rate,
       ...readerOptionsOf(recipe),
+      eventTable: recipe.eventTable,
     });
     const result = runRecipe(recording, recipe);
     result.warnings.unshift(...warnings);

@@ -138,6 +138,8 @@ const shared = {
   // Channel types changed by hand and channels marked bad (DEVELOPERS.md, "Channel types").
   signals: z.object({ types: z.record(name, channelType).optional(), bad: z.array(name).optional() }).strict().optional(),
   reference: reference.optional(),
+  // Which rows of a BIDS events file become events, and response-locking (DEVELOPERS.md, "Event tables").
+  eventTable: z.object({ labelColumn: name.optional(), where: z.array(name).optional(), shiftBy: name.optional() }).strict().optional(),
   filters: filters.optional(),
   // How the file was read: `units` maps a physical dimension the reader does not know to its factor to µV,
   // `exclude` lists signal labels left out. The core never reads files; the CLI and the browser pass these on.

@@ -62,6 +62,10 @@ beforeAll(() => {
   let events = 'onset\tduration\ttrial_type\n';
   for (let k = 0; k < 14; k++) events += `${2 + 2.5 * k}\tn/a\t${k % 2 === 0 ? 'go' : 'stop'}\n`;
   writeFileSync(file('events.tsv'), events);
+  // the same cues with a response time each (0.3 … 0.69 s) and a "correct" column, for eventTable
+  let withRt = 'onset\tduration\ttrial_type\tresponse_time\tcorrect\n';
+  for (let k = 0; k < 14; k++) withRt += `${2 + 2.5 * k}\tn/a\t${k % 2 === 0 ? 'go' : 'stop'}\t${(0.3 + 0.03 * k).toFixed(2)}\t${k % 3 === 0 ? 'no' : 'yes'}\n`;
+  writeFileSync(file('events-rt.tsv'), withRt);
   writeFileSync(file('recipe.json'), JSON.stringify(recipe));
   const put = (name: string, change: object) => writeFileSync(file(name), JSON.stringify({ ...recipe, ...change }));
   // the same recipe as format 1 wrote it (no "format"; tmin/tmax, "db", mode "fixed")
@@ -79,6 +83,7 @@ beforeAll(() => {
   put('bad-channel.json', { signals: { bad: ['C4'] } });
   put('highpass.json', { filters: { highPass: { cutoffHz: 50 } } });
   put('notch.json', { filters: { notch: { harmonics: 2 } } });
+  put('locked.json', { eventTable: { where: ['correct == yes'], shiftBy: 'response_time' } });
   put('reference.json', { reference: { kind: 'mean-of-channels', channels: ['A1'] } });
   put('bad-reference.json', { channels: ['C3'], signals: { bad: ['C4'] }, reference: { kind: 'mean-of-channels', channels: ['C4'] } });
   writeFileSync(file('broken.json'), '{"epochs": ');
@@ -150,6 +155,21 @@ describe('analyze command line', () => {
     expect(r.conditions.go.power[0]).toEqual(r.conditions.go.power[1]);
   });
 
+  it('selects events by a column and locks epochs to the response with the recipe eventTable', async () => {
+    const out = await analyze([file('rec.csv'), '--recipe', file('locked.json'), '--events', file('events-rt.tsv'), '--rate', '100']);
+    expect(out.code).toBe(0);
+    const r = JSON.parse(out.stdout);
+    // k = 0 … 13 with k mod 3 ≠ 0 are correct: go at k = 2, 4, 8, 10 and stop at k = 1, 5, 7, 11, 13 (by hand)
+    expect([r.conditions.go.trials, r.conditions.stop.trials]).toEqual([4, 5]);
+    expect(r.warnings).toContain('eventTable.where: 9 of 14 events selected');
+    // the same as the core on events moved by hand to onset + response_time
+    const recording = parseCsvSamples(readFileSync(file('rec.csv'), 'utf8'), { sampleRateHz: fs });
+    recording.events = [];
+    for (let k = 0; k < 14; k++) if (k % 3 !== 0) recording.events.push({ onsetSeconds: 2 + 2.5 * k + Number((0.3 + 0.03 * k).toFixed(2)), durationSeconds: 0, label: k % 2 === 0 ? 'go' : 'stop' });
+    const local = JSON.parse(JSON.stringify(runRecipe(recording, JSON.parse(readFileSync(file('locked.json'), 'utf8')))));
+    expect(r.conditions).toEqual(local.conditions);
+  });
+
   it('honours conditions, rejection rules and manual overrides like the core in process, and checks the fingerprint', async () => {
     const edfBytes = readFileSync(file('rec.edf'));
     const recording = toRecording(await openEdf(bytesSource(new Uint8Array(edfBytes))));
@@ -214,6 +234,8 @@ describe('analyze command line', () => {
     ['a reference channel marked bad', ['rec.csv', '--recipe', 'bad-reference.json', '--events', 'events.tsv', '--rate', '100'], /bad-reference\.json: reference\.channels\[0\] "C4" is marked bad/],
     ['a high-pass at Nyquist', ['rec.csv', '--recipe', 'highpass.json', '--events', 'events.tsv', '--rate', '100'], /highpass\.json: filters\.highPass\.cutoffHz must be above 0 and below the Nyquist frequency \(50 Hz/],
     ['a notch without a line frequency', ['rec.csv', '--recipe', 'notch.json', '--events', 'events.tsv', '--rate', '100'], /notch\.json: filters\.notch\.lineHz is required for a notch/],
+    ['an eventTable without an events file', ['rec.csv', '--recipe', 'locked.json', '--rate', '100'], /--events: is required: the recipe's eventTable selects rows of a BIDS events file/],
+    ['an eventTable naming a column the events file lacks', ['rec.csv', '--recipe', 'locked.json', '--events', 'events.tsv', '--rate', '100'], /locked\.json: eventTable\.where\[0\] names column "correct", which the events file lacks/],
     ['an unknown option', ['rec.csv', '--recipe', 'recipe.json', '--colour', 'red'], /--colour: is not an option/],
   ];
   it.each(bad)('exits 2 with one line on stderr for %s', async (_what, args, message) => {
