@@ -31,6 +31,11 @@ export interface IntakeLocal {
   /** EDF: signals left out by the caller's `exclude`, and analysed signals read through one of its `unitFactors`. */
   excludedSignals: string[];
   mappedSignals: { signal: string; dimension: string; factor: number }[];
+  /**
+   * A paired BIDS events file's rows (cells by column), for choosing events by column on the Source screen; its
+   * events follow the first `annotationCount` events (the EDF+ annotations) in `recording.events`.
+   */
+  eventTable?: { header: string[]; rows: { onsetSeconds: number; durationSeconds: number; columns: Record<string, string> }[]; annotationCount: number };
 }
 
 /** How to read an EDF beyond the built-in rules (the recipe's `recording.units` and `recording.exclude`). */
@@ -107,9 +112,12 @@ async function readText(blob: Blob, hash: Sha256 | null, onProgress: (fraction: 
   return parts.join('');
 }
 
+const rowOf = (e: { onsetSeconds: number; durationSeconds: number; columns: Record<string, string> }) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, columns: e.columns });
+
 const api = {
   async openEdf(file: Blob, reading: EdfReading, onProgress: Progress, events: Blob | null = null): Promise<IntakeResult> {
     let stage: IntakeProblem['file'] = 'recording';
+    let eventTable: IntakeLocal['eventTable'];
     try {
       const small = file.size <= WEB_CRYPTO_BYTES;
       let fingerprint: string | null = null;
@@ -139,6 +147,7 @@ const api = {
         onProgress('events', 0);
         const seconds = recording.data[0].length / recording.sampleRateHz;
         const parsed = parseBidsEvents(await events.text(), { recordingSeconds: seconds });
+        eventTable = { header: parsed.header, rows: parsed.events.map(rowOf), annotationCount: recording.events.length };
         recording.events = [...recording.events, ...parsed.events.map((e) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, label: e.label }))];
         warnings.push(...parsed.warnings);
         onProgress('events', 1);
@@ -154,6 +163,7 @@ const api = {
         mappedSignals: edf.channels
           .filter((c) => Object.hasOwn(reading.unitFactors ?? {}, c.physicalDimension.trim()))
           .map((c) => ({ signal: c.label, dimension: c.physicalDimension.trim(), factor: c.microvoltFactor })),
+        ...(eventTable ? { eventTable } : {}),
       };
       return done(recording, local, fingerprint ?? edf.fingerprint!, small ? 'web-crypto' : 'incremental');
     } catch (error) {
@@ -170,6 +180,7 @@ const api = {
 
   async openCsv(file: Blob, request: CsvRequest, onProgress: Progress): Promise<IntakeResult> {
     let stage: IntakeProblem['file'] = 'recording';
+    let eventTable: IntakeLocal['eventTable'];
     try {
       const small = file.size <= WEB_CRYPTO_BYTES;
       const hash = small ? null : new Sha256();
@@ -182,6 +193,7 @@ const api = {
         onProgress('events', 0);
         const seconds = recording.data[0].length / recording.sampleRateHz;
         const parsed = parseBidsEvents(await request.events.text(), { recordingSeconds: seconds });
+        eventTable = { header: parsed.header, rows: parsed.events.map(rowOf), annotationCount: 0 };
         recording.events = parsed.events.map((e) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, label: e.label }));
         warnings.push(...parsed.warnings);
         onProgress('events', 1);
@@ -195,6 +207,7 @@ const api = {
         warnings,
         excludedSignals: [],
         mappedSignals: [],
+        ...(eventTable ? { eventTable } : {}),
       };
       return done(recording, local, fingerprint, small ? 'web-crypto' : 'incremental');
     } catch (error) {

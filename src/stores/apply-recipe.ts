@@ -1,6 +1,7 @@
 import { readRecipe, type Recipe } from '../lib/analysis/recipe';
 import type { Recording } from '../lib/analysis/recording';
 import { planRecipe } from '../lib/analysis/run-recipe';
+import { selectEventRows } from '../lib/analysis/event-table';
 import { DEFAULT_DRAFT, useRecipeStore, type RecipeDraft } from './recipe';
 import { defaultRejection, useSourceStore, type Condition, type ConditioningSettings, type RejectionSettings } from './source';
 import { useViewStore } from './view';
@@ -45,13 +46,22 @@ export function applyRecipe(
 ): ApplyOutcome {
   let recipe: Recipe;
   let upgraded: string | null;
+  let selected: Recording = recording;
+  const table = useSourceStore.getState().local?.eventTable;
   try {
     ({ recipe, notice: upgraded } = readRecipe(input));
-    planRecipe(recording, recipe);
+    // The recipe's eventTable picks the events of the paired events file first; the recipe is checked on those.
+    if (recipe.eventTable !== undefined || table !== undefined) {
+      if (table === undefined) return { ok: false, field: 'eventTable', message: 'eventTable selects rows of a BIDS events file: open the recording with its events file first; nothing was changed' };
+      const chosen = selectEventRows(table.rows, table.header, recipe.eventTable ?? {}, recording.data[0].length / recording.sampleRateHz);
+      selected = { ...recording, events: [...recording.events.slice(0, table.annotationCount), ...chosen.events] };
+    }
+    planRecipe(selected, recipe);
   } catch (error) {
     const e = error as { field?: string; message?: string };
     return { ok: false, field: e.field ?? 'recipe', message: e.message ?? String(error) };
   }
+  if (table !== undefined) useSourceStore.getState().setEventSelection(recipe.eventTable ?? null);
   // Without `conditions`, each listed label is its own condition (the contract's reading of epochs.events).
   const conditions: Condition[] =
     recipe.conditions !== undefined

@@ -1,6 +1,7 @@
 import { create } from 'zustand';
 import type { AperiodicModel } from '../lib/analysis/aperiodic';
 import type { BaselineMethod } from '../lib/analysis/baseline';
+import type { EventTableSpec } from '../lib/analysis/event-table';
 import type { RecipeInput } from '../lib/analysis/recipe';
 import { conditioningSpec, sourceSpec, type Condition, type ConditioningSettings, type RejectionSettings } from './source';
 
@@ -73,6 +74,8 @@ export interface RecipeSource {
   rejection: RejectionSettings;
   /** Channel types changed by hand, bad channels, reference and filters (recipe `signals`, `reference`, `filters`). */
   conditioning?: ConditioningSettings;
+  /** Rows of the paired events file chosen as events (recipe `eventTable`); null or absent: all rows. */
+  eventSelection?: EventTableSpec | null;
   /** SHA-256 of the open file; written into the recipe only when it is one (64 hex digits). */
   fingerprint: string | null;
   /** How the file was read beyond the built-in units (LocalRecordingInfo.reading); written when not empty. */
@@ -112,7 +115,17 @@ export function toRecipe(
     conditions: spec.conditions as Record<string, string[]>,
     rejection: spec.rejection as NonNullable<RecipeInput['rejection']>,
     ...((source.conditioning !== undefined ? conditioningSpec(source.conditioning) : {}) as Pick<RecipeInput, 'signals' | 'reference' | 'filters'>),
+    ...(source.eventSelection ? { eventTable: eventTableOf(source.eventSelection) } : {}),
     ...recordingSection(source),
+  };
+}
+
+/** The recipe's `eventTable`: only the parts that were set. */
+function eventTableOf(spec: EventTableSpec): NonNullable<RecipeInput['eventTable']> {
+  return {
+    ...(spec.labelColumn !== undefined ? { labelColumn: spec.labelColumn } : {}),
+    ...(spec.where !== undefined && spec.where.length > 0 ? { where: spec.where.slice() } : {}),
+    ...(spec.shiftBy !== undefined ? { shiftBy: spec.shiftBy } : {}),
   };
 }
 

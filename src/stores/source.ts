@@ -2,6 +2,7 @@ import { create } from 'zustand';
 import type { Recording } from '../lib/analysis/recording';
 import { eventKey } from '../lib/analysis/event-key';
 import type { ChannelType } from '../lib/analysis/channel-types';
+import { selectEventRows, type EventRow, type EventTableSpec } from '../lib/analysis/event-table';
 import { conditionRecording, type ConditionSpec, type FiltersSpec, type ReferenceSpec } from '../lib/analysis/condition-recording';
 import { prepareRecording, type EpochDecision, type PrepareSpec } from '../lib/analysis/prepare-recording';
 
@@ -28,6 +29,8 @@ export interface LocalRecordingInfo {
   mappedSignals?: { signal: string; dimension: string; factor: number }[];
   /** The reading choices the file was opened with; they go into the recipe's `recording.units` / `exclude`. */
   reading?: { unitFactors?: Record<string, number>; exclude?: string[] };
+  /** A paired BIDS events file's rows; its events follow the first `annotationCount` events of the recording. */
+  eventTable?: { header: string[]; rows: EventRow[]; annotationCount: number };
 }
 
 export interface Condition {
@@ -90,6 +93,8 @@ export interface SourceState {
   epochWindow: { start: number; end: number };
   rejection: RejectionSettings;
   conditioning: ConditioningSettings;
+  /** Which rows of the paired events file are events, and onset shifts (recipe `eventTable`); null: all rows. */
+  eventSelection: EventTableSpec | null;
   /** One entry per event that belongs to a condition, recomputed when settings change. */
   decisions: EpochDecision[];
   /** The recording to analyse: events relabelled to condition names, rejected epochs left out. */
@@ -103,13 +108,15 @@ export interface SourceState {
   setEpochWindow: (epochWindow: { start: number; end: number }) => void;
   setRejection: (patch: Partial<Omit<RejectionSettings, 'overrides'>>) => void;
   setConditioning: (patch: Partial<ConditioningSettings>) => void;
+  /** Re-derives the events from the events file; returns the problem (naming the field) and changes nothing on one. */
+  setEventSelection: (spec: EventTableSpec | null) => string | null;
   /** A manual decision for one epoch; null returns it to the rules. */
   setOverride: (eventIndex: number, decision: 'keep' | 'reject' | null) => void;
   /** Recomputes `decisions` from the recording, conditions, window and rejection settings. */
   recompute: () => void;
 }
 
-type Actions = 'load' | 'setConditions' | 'setEpochWindow' | 'setRejection' | 'setConditioning' | 'setOverride' | 'recompute';
+type Actions = 'load' | 'setConditions' | 'setEpochWindow' | 'setRejection' | 'setConditioning' | 'setEventSelection' | 'setOverride' | 'recompute';
 
 /** The Source screen's settings as the recipe's `epochs`, `conditions` and `rejection` fields (recipe extensions). */
 export function sourceSpec(state: Pick<SourceState, 'conditions' | 'epochWindow' | 'rejection'>): PrepareSpec {
@@ -177,6 +184,7 @@ export const useSourceStore = create<SourceState>((set, get) => ({
   epochWindow: { start: -1, end: 2 },
   rejection: defaultRejection,
   conditioning: defaultConditioning,
+  eventSelection: null,
   decisions: [],
   settingsError: null,
   analysisRecording: () => {
@@ -202,13 +210,38 @@ export const useSourceStore = create<SourceState>((set, get) => ({
     const has = (n: string) => recording.channelNames.includes(n);
     const previous = get().conditioning;
     const conditioning = { ...previous, types: Object.fromEntries(Object.entries(previous.types).filter(([n]) => has(n))), bad: previous.bad.filter(has) };
-    set({ recording, local, fingerprint, conditions, rejection, conditioning, ...decideEpochs({ ...get(), recording, conditions, rejection, conditioning }) });
+    set({ recording, local, fingerprint, conditions, rejection, conditioning, eventSelection: null, ...decideEpochs({ ...get(), recording, conditions, rejection, conditioning }) });
   },
   setConditions: (conditions) => set({ conditions, ...decideEpochs({ ...get(), conditions }) }),
   setEpochWindow: (epochWindow) => set({ epochWindow, ...decideEpochs({ ...get(), epochWindow }) }),
   setRejection: (patch) => {
     const rejection = { ...get().rejection, ...patch };
     set({ rejection, ...decideEpochs({ ...get(), rejection }) });
+  },
+  setEventSelection: (spec) => {
+    const { recording, local } = get();
+    if (recording === null || local?.eventTable === undefined) return spec === null ? null : 'eventTable needs a BIDS events file opened with the recording';
+    const table = local.eventTable;
+    let chosen;
+    try {
+      chosen = selectEventRows(table.rows, table.header, spec ?? {}, recording.data[0].length / recording.sampleRateHz);
+    } catch (error) {
+      return error instanceof Error ? error.message : String(error);
+    }
+    const events = [...recording.events.slice(0, table.annotationCount), ...chosen.events];
+    const next = { ...recording, events };
+    // Conditions keep the labels that still occur; with none left, one condition per label as on opening.
+    const labels = new Set(events.map((e) => e.label));
+    const kept = get()
+      .conditions.map((c) => ({ ...c, labels: c.labels.filter((l) => labels.has(l)) }))
+      .filter((c) => c.labels.length > 0);
+    const claimed = new Set(kept.flatMap((c) => c.labels));
+    const added = conditionsPerLabel(events.filter((e) => !claimed.has(e.label))).filter((c) => !kept.some((k) => k.name === c.name));
+    const conditions = [...kept, ...added];
+    // Event keys count positions in the event list, which a new selection changes: manual decisions start afresh.
+    const rejection = { ...get().rejection, overrides: {} };
+    set({ recording: next, eventSelection: spec, conditions, rejection, ...decideEpochs({ ...get(), recording: next, conditions, rejection }) });
+    return null;
   },
   setConditioning: (patch) => {
     const conditioning = { ...get().conditioning, ...patch };

@@ -110,4 +110,40 @@ describe('an EDF paired with a BIDS events file', () => {
     expect(cell.normalized).toBeCloseTo(result.conditions[condition].normalized[ci][2][250], 9);
     await page.screenshot({ path: path.join(artifactsDir, 'events-pairing.png'), fullPage: true });
   });
+
+  it('chooses events by a column and locks epochs to the response, and the command line follows the recipe', async () => {
+    await page.getByRole('tab', { name: 'Source' }).click();
+    const panel = page.getByTestId('event-table-panel');
+    // response_time is 0.5 + 0.07·k s for the bell at 6 + 4k s: below 0.8 s for k = 0 … 4 (by hand)
+    await panel.getByLabel('Keep rows where').fill('response_time < 0.8');
+    await panel.getByLabel('Lock epochs to').selectOption('response_time');
+    await page.getByTestId('event-table-apply').click();
+    await expect.poll(tally).toEqual({ chirp: 10, bell: 5 });
+    // a column the file lacks is named, and the events stay as they were
+    await panel.getByLabel('Keep rows where').fill('reaction < 1');
+    await page.getByTestId('event-table-apply').click();
+    expect(await page.getByTestId('event-table-problem').textContent()).toContain('eventTable.where[0] names column "reaction"');
+    expect(await tally()).toEqual({ chirp: 10, bell: 5 });
+    await panel.getByLabel('Keep rows where').fill('response_time < 0.8');
+    await page.getByTestId('event-table-apply').click();
+
+    await page.getByRole('tab', { name: 'Recipe' }).click();
+    await page.getByTestId('recipe-run').click();
+    await page.waitForFunction(() => document.querySelector('[data-testid="recipe-status"]')?.getAttribute('data-status') === 'done', undefined, { timeout: 90_000 });
+    await page.getByRole('tab', { name: 'Maps' }).click();
+    await page.getByTestId('map-normalized').waitFor();
+    const recipe = JSON.parse((await download('export-recipe')).toString('utf8'));
+    expect(recipe.eventTable).toEqual({ where: ['response_time < 0.8'], shiftBy: 'response_time' });
+    const recipeFile = path.join(dir, 'recipe-locked.json');
+    fs.writeFileSync(recipeFile, JSON.stringify(recipe));
+    const out = path.join(dir, 'result-locked.json');
+    execFileSync(process.execPath, ['--import', 'tsx', 'src/cli/analyze.ts', path.join(dir, EDF_NAME), '--events', path.join(dir, EVENTS_NAME), '--recipe', recipeFile, '--out', out], { stdio: 'pipe' });
+    const result = JSON.parse(fs.readFileSync(out, 'utf8')) as AnalysisResult;
+    expect(result.conditions.bell.trials).toBe(5);
+    await page.getByTestId('maps-condition').selectOption('bell');
+    const ci = result.channels.indexOf(await page.getByTestId('maps-channel').inputValue());
+    const cell = await readMapCell(page, 2, 250);
+    expect(cell.normalized).toBeCloseTo(result.conditions.bell.normalized[ci][2][250], 9);
+  });
 });
+

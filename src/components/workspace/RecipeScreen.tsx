@@ -36,6 +36,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const decisions = useSourceStore((s) => s.decisions);
   const rejection = useSourceStore((s) => s.rejection);
   const conditioning = useSourceStore((s) => s.conditioning);
+  const eventSelection = useSourceStore((s) => s.eventSelection);
   const fitRange = useViewStore((s) => s.fitRange);
   const setView = useViewStore((s) => s.set);
   const fileInput = useRef<HTMLInputElement>(null);
@@ -52,7 +53,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const visible = usePanelVisible('Recipe');
 
   const conditionNames = conditions.map((c) => c.name);
-  const recipe = toRecipe(draft, { conditions, epochStart: epochWindow.start, epochEnd: epochWindow.end, rejection, conditioning, fingerprint, reading }, { ...baseline, method, scope, spread }, fitRange);
+  const recipe = toRecipe(draft, { conditions, epochStart: epochWindow.start, epochEnd: epochWindow.end, rejection, conditioning, eventSelection, fingerprint, reading }, { ...baseline, method, scope, spread }, fitRange);
   // The whole recording goes to the core with the full recipe: prepareRecording applies conditions and rejection there.
   const analysis = recording;
   const recordingId = recording === null ? null : recordingIdOf(recording, fingerprint);

@@ -10,6 +10,7 @@ import LibraryPanel from '../source/LibraryPanel';
 import LocalDetails from '../source/LocalDetails';
 import ChannelsPanel from '../source/ChannelsPanel';
 import ConditionsPanel from '../source/ConditionsPanel';
+import EventTablePanel from '../source/EventTablePanel';
 import OverviewTrace from '../source/OverviewTrace';
 import RejectionPanel from '../source/RejectionPanel';
 import SessionPanel from '../source/SessionPanel';
@@ -96,6 +97,7 @@ export default function SourceScreen(props: WorkspaceProps) {
   const epochWindow = useSourceStore((s) => s.epochWindow);
   const rejection = useSourceStore((s) => s.rejection);
   const conditioning = useSourceStore((s) => s.conditioning);
+  const eventSelection = useSourceStore((s) => s.eventSelection);
   const decisions = useSourceStore((s) => s.decisions);
   const settingsError = useSourceStore((s) => s.settingsError);
   const subjectCode = useSourceStore((s) => s.subjectCode);
@@ -285,6 +287,7 @@ export default function SourceScreen(props: WorkspaceProps) {
             <h2 id="source-conditions" className="text-lg font-semibold">
               Events to conditions
             </h2>
+            {local.eventTable && <EventTablePanel key={`${fingerprint}|${local.eventTable.header.join('\t')}`} header={local.eventTable.header} selection={eventSelection} onApply={(s) => store().setEventSelection(s)} />}
             <ConditionsPanel
               key={fingerprint}
               recording={recording}
