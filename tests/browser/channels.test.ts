@@ -140,7 +140,7 @@ describe('channel types on the Source screen', () => {
     // 200 Hz sampling: 2 × 60 Hz = 120 Hz is past the 100 Hz Nyquist frequency
     await page.getByTestId('notch-harmonics').fill('2');
     await page.getByTestId('notch-harmonics').press('Enter');
-    expect(await panel.textContent()).toContain('while 2 × 60 Hz stays below 100 Hz');
+    expect(await panel.textContent()).toContain('filters.notch.harmonics must be a whole number from 1 while 2 × 60 Hz stays below 100 Hz');
     expect(await page.getByTestId('notch-harmonics').getAttribute('aria-invalid')).toBe('true');
     await page.getByTestId('highpass-cutoff').fill('1');
     await page.getByTestId('highpass-cutoff').press('Enter');

@@ -15,7 +15,7 @@ function NumberText(props: { label: string; value: number; onCommit: (v: number)
   useEffect(() => setText(String(props.value)), [props.value]);
   const commit = () => {
     const v = Number(text);
-    const problem = text.trim() === '' || !Number.isFinite(v) ? 'Enter a number.' : props.problem(v);
+    const problem = text.trim() === '' || !Number.isFinite(v) ? `${props.label}: enter a number.` : props.problem(v);
     setError(problem);
     if (problem === null) props.onCommit(v);
   };
@@ -56,7 +56,7 @@ export default function FiltersPanel({ sampleRateHz, filters, onChange }: Props)
             label="Cutoff (Hz)"
             value={hp.cutoffHz}
             testId="highpass-cutoff"
-            problem={(v) => (v > 0 && v < nyquist ? null : `Must be above 0 and below ${nyquist} Hz (half the ${sampleRateHz} Hz sampling rate).`)}
+            problem={(v) => (v > 0 && v < nyquist ? null : `filters.highPass.cutoffHz must be above 0 and below ${nyquist} Hz (half the ${sampleRateHz} Hz sampling rate).`)}
             onCommit={(v) => set({ ...(filters ?? {}), highPass: { ...hp, cutoffHz: v } })}
           />
           <div className="field">
@@ -90,14 +90,14 @@ export default function FiltersPanel({ sampleRateHz, filters, onChange }: Props)
             label="Harmonics (1 = the line frequency only)"
             value={nt.harmonics ?? 1}
             testId="notch-harmonics"
-            problem={(v) => (Number.isInteger(v) && v >= 1 && v * (nt.lineHz ?? 50) < nyquist ? null : `A whole number from 1 while ${v} × ${nt.lineHz ?? 50} Hz stays below ${nyquist} Hz.`)}
+            problem={(v) => (Number.isInteger(v) && v >= 1 && v * (nt.lineHz ?? 50) < nyquist ? null : `filters.notch.harmonics must be a whole number from 1 while ${v} × ${nt.lineHz ?? 50} Hz stays below ${nyquist} Hz (half the sampling rate).`)}
             onCommit={(v) => set({ ...(filters ?? {}), notch: { ...nt, harmonics: v } })}
           />
           <NumberText
             label="Q (width = line frequency / Q)"
             value={nt.q ?? 30}
             testId="notch-q"
-            problem={(v) => (v >= 1 && v <= 200 ? null : 'Between 1 and 200.')}
+            problem={(v) => (v >= 1 && v <= 200 ? null : 'filters.notch.q must be between 1 and 200.')}
             onCommit={(v) => set({ ...(filters ?? {}), notch: { ...nt, q: v } })}
           />
         </div>
