@@ -59,7 +59,7 @@ await runMain(async () => {
     // 250 s of the demo gives 100 cues; -1 … 2.07 s at 500 Hz is 1536 time points; rejection off keeps all 100.
     const loaded = await page.evaluate(() => {
       const hooks = window.__tidemark;
-      const info = hooks.loadDemo({ seconds: 250, channels: ['Fz'], tmin: -1, tmax: 2.07, pooled: true });
+      const info = hooks.loadDemo({ seconds: 250, channels: ['Fz'], epochStart: -1, epochEnd: 2.07, pooled: true });
       hooks.stores.source.getState().setRejection({ peakToPeakMicrovolts: null, flatMicrovolts: null });
       hooks.stores.recipe.getState().setDraft({ frequencies: { min: 3, max: 40, count: 40, spacing: 'log' } });
       hooks.stores.view.getState().set({ baseline: { start: -0.6, end: -0.3 } });
@@ -97,10 +97,10 @@ await runMain(async () => {
     // dB is the default method; percent in single-trial scope is the heavier path (one multiply-add per trial
     // and cell, where dB reuses the precomputed mean log power), so it is measured too.
     const runs = [
-      { scope: 'average', method: 'db', target: 8 },
-      { scope: 'average', method: 'percent', target: 8 },
-      { scope: 'trial', method: 'db', target: 33 },
-      { scope: 'trial', method: 'percent', target: 33 },
+      { scope: 'average', method: 'decibel', target: 8 },
+      { scope: 'average', method: 'percent-change', target: 8 },
+      { scope: 'trial', method: 'decibel', target: 33 },
+      { scope: 'trial', method: 'percent-change', target: 33 },
     ];
     for (const run of runs) {
       await page.evaluate(({ scope, method }) => window.__tidemark.stores.view.getState().set({ scope, method }), run);

@@ -18,12 +18,13 @@ const FS = 512;
 const FREQS = 40;
 
 const recipe = {
-  epochs: { events: ['cue'], tmin: -1, tmax: 2 },
+  format: 2,
+  epochs: { events: ['cue'], start: -1, end: 2 },
   frequencies: { min: 2, max: 60, count: FREQS, spacing: 'log' },
   cycles: { min: 3, max: 10 },
-  baseline: { start: -0.5, end: -0.2, method: 'db', scope: 'average' },
+  baseline: { start: -0.5, end: -0.2, method: 'decibel', scope: 'average' },
   spectrum: { segment: 2, overlap: 0.5, range: [1, 60], source: 'recording' },
-  aperiodic: { range: [2, 40], mode: 'fixed' },
+  aperiodic: { range: [2, 40], model: 'power-law' },
 };
 
 // Same layout as bench-numpy.py: epochs of L samples 64 samples apart, the first starting at sample 512.

@@ -1,7 +1,7 @@
 // The explorer's worker: holds one channel's single-trial power for live trial-scope re-normalization, and
 // computes per-epoch spectra. Wiring only; the maths is in src/lib/analysis (renormalize.ts, epoch-spectra.ts).
 import * as Comlink from 'comlink';
-import type { BaselineMethod } from '../src/lib/analysis/baseline';
+import type { BaselineMethod, BaselineSpread } from '../src/lib/analysis/baseline';
 import { epochSpectra, type EpochSpectra } from '../src/lib/analysis/epoch-spectra';
 import { prepareTrialPower, renormalizeTrials, type TrialPower } from '../src/lib/analysis/renormalize';
 import { welchPsd } from '../src/lib/analysis/welch';
@@ -17,11 +17,11 @@ const api = {
     return held === null ? null : held.key;
   },
   /** Trial-scope normalized maps, one per condition, for baseline points first … last. */
-  renormalize(key: string, first: number, last: number, method: BaselineMethod): Float64Array[] | null {
+  renormalize(key: string, first: number, last: number, method: BaselineMethod, spread: BaselineSpread = 'time'): Float64Array[] | null {
     if (held === null || held.key !== key) return null;
     const out = held.conditions.map((tp) => {
       const o = new Float64Array(tp.nFreqs * tp.nTimes);
-      renormalizeTrials(o, tp, first, last, method);
+      renormalizeTrials(o, tp, first, last, method, spread);
       return o;
     });
     return Comlink.transfer(out, out.map((o) => o.buffer));

@@ -31,6 +31,11 @@ export interface IntakeLocal {
   /** EDF: signals left out by the caller's `exclude`, and analysed signals read through one of its `unitFactors`. */
   excludedSignals: string[];
   mappedSignals: { signal: string; dimension: string; factor: number }[];
+  /**
+   * A paired BIDS events file's rows (cells by column), for choosing events by column on the Source screen; its
+   * events follow the first `annotationCount` events (the EDF+ annotations) in `recording.events`.
+   */
+  eventTable?: { header: string[]; rows: { onsetSeconds: number; durationSeconds: number; columns: Record<string, string> }[]; annotationCount: number };
 }
 
 /** How to read an EDF beyond the built-in rules (the recipe's `recording.units` and `recording.exclude`). */
@@ -107,8 +112,12 @@ async function readText(blob: Blob, hash: Sha256 | null, onProgress: (fraction: 
   return parts.join('');
 }
 
+const rowOf = (e: { onsetSeconds: number; durationSeconds: number; columns: Record<string, string> }) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, columns: e.columns });
+
 const api = {
-  async openEdf(file: Blob, reading: EdfReading, onProgress: Progress): Promise<IntakeResult> {
+  async openEdf(file: Blob, reading: EdfReading, onProgress: Progress, events: Blob | null = null): Promise<IntakeResult> {
+    let stage: IntakeProblem['file'] = 'recording';
+    let eventTable: IntakeLocal['eventTable'];
     try {
       const small = file.size <= WEB_CRYPTO_BYTES;
       let fingerprint: string | null = null;
@@ -132,6 +141,17 @@ const api = {
           `${edf.eventsOutside.length} annotations fall outside the recorded samples and are left out (first: "${first.annotation.label}" at ${first.annotation.onsetSeconds} s, ${first.reason.replace('-', ' ')})`,
         );
       }
+      if (events !== null) {
+        // A paired BIDS events file: its events follow the EDF+ annotations, in the order the CLI's --events gives.
+        stage = 'events';
+        onProgress('events', 0);
+        const seconds = recording.data[0].length / recording.sampleRateHz;
+        const parsed = parseBidsEvents(await events.text(), { recordingSeconds: seconds });
+        eventTable = { header: parsed.header, rows: parsed.events.map(rowOf), annotationCount: recording.events.length };
+        recording.events = [...recording.events, ...parsed.events.map((e) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, label: e.label }))];
+        warnings.push(...parsed.warnings);
+        onProgress('events', 1);
+      }
       const local: IntakeLocal = {
         sizeBytes: file.size,
         format: edf.header.variant === 'EDF+C' ? 'edf+c' : edf.header.variant === 'EDF+D' ? 'edf+d' : 'edf',
@@ -143,10 +163,11 @@ const api = {
         mappedSignals: edf.channels
           .filter((c) => Object.hasOwn(reading.unitFactors ?? {}, c.physicalDimension.trim()))
           .map((c) => ({ signal: c.label, dimension: c.physicalDimension.trim(), factor: c.microvoltFactor })),
+        ...(eventTable ? { eventTable } : {}),
       };
       return done(recording, local, fingerprint ?? edf.fingerprint!, small ? 'web-crypto' : 'incremental');
     } catch (error) {
-      const problem = problemOf(error, 'recording');
+      const problem = problemOf(error, stage);
       if (problem.field === 'physical dimension' && problem.signal !== null) {
         // The header parsed (the units are checked after it), so read it again for the dimension as written.
         const header = await readEdfHeader(blobSource(file)).catch(() => null);
@@ -159,6 +180,7 @@ const api = {
 
   async openCsv(file: Blob, request: CsvRequest, onProgress: Progress): Promise<IntakeResult> {
     let stage: IntakeProblem['file'] = 'recording';
+    let eventTable: IntakeLocal['eventTable'];
     try {
       const small = file.size <= WEB_CRYPTO_BYTES;
       const hash = small ? null : new Sha256();
@@ -171,6 +193,7 @@ const api = {
         onProgress('events', 0);
         const seconds = recording.data[0].length / recording.sampleRateHz;
         const parsed = parseBidsEvents(await request.events.text(), { recordingSeconds: seconds });
+        eventTable = { header: parsed.header, rows: parsed.events.map(rowOf), annotationCount: 0 };
         recording.events = parsed.events.map((e) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, label: e.label }));
         warnings.push(...parsed.warnings);
         onProgress('events', 1);
@@ -184,6 +207,7 @@ const api = {
         warnings,
         excludedSignals: [],
         mappedSignals: [],
+        ...(eventTable ? { eventTable } : {}),
       };
       return done(recording, local, fingerprint, small ? 'web-crypto' : 'incremental');
     } catch (error) {

@@ -6,7 +6,7 @@
 import { readFile, writeFile } from 'node:fs/promises';
 import { pathToFileURL } from 'node:url';
 import { AnalysisInputError } from '../lib/analysis/errors';
-import { parseRecipe, RecipeSchema } from '../lib/analysis/recipe';
+import { parseRecipe, readRecipe as checkRecipe, RecipeSchema } from '../lib/analysis/recipe';
 import { runRecipe } from '../lib/analysis/run-recipe';
 import { FormatError } from '../lib/formats';
 import { CliInputError, loadRecording, type LoadOptions } from './load-recording';
@@ -47,7 +47,7 @@ function parseArgs(argv: string[]): Args {
   return { recording: positional[0], recipe: named.recipe, events: named.events, rate, out: named.out };
 }
 
-async function readRecipe(path: string): Promise<unknown> {
+async function readRecipeFile(path: string): Promise<unknown> {
   let text: string;
   try {
     text = await readFile(path, 'utf8');
@@ -84,23 +84,27 @@ export async function main(argv: string[]): Promise<number> {
   try {
     const args = parseArgs(argv);
     recipePath = args.recipe;
-    const recipe = await readRecipe(args.recipe);
+    const json = await readRecipeFile(args.recipe);
+    // A format-1 recipe is upgraded to format 2 with a one-line notice on stderr (analysis contract), never silently.
+    const { recipe, notice } = checkRecipe(json);
+    if (notice !== null) process.stderr.write(`analyze: ${args.recipe}: ${notice}\n`);
     const { recording, warnings } = await loadRecording(args.recording, {
       eventsPath: args.events,
       rateHz: args.rate,
       ...readerOptionsOf(recipe),
+      eventTable: recipe.eventTable,
     });
     const result = runRecipe(recording, recipe);
     result.warnings.unshift(...warnings);
-    const json = JSON.stringify(result);
+    const text = JSON.stringify(result);
     if (args.out !== undefined) {
       try {
-        await writeFile(args.out, json + '\n');
+        await writeFile(args.out, text + '\n');
       } catch (e) {
         throw new CliInputError(args.out, `cannot be written (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
       }
     } else {
-      await new Promise<void>((resolve, reject) => process.stdout.write(json + '\n', (err) => (err ? reject(err) : resolve())));
+      await new Promise<void>((resolve, reject) => process.stdout.write(text + '\n', (err) => (err ? reject(err) : resolve())));
     }
     return 0;
   } catch (e) {

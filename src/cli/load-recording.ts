@@ -1,4 +1,5 @@
 import { createHash } from 'node:crypto';
+import { selectEventRows, type EventTableSpec } from '../lib/analysis/event-table';
 import { createReadStream } from 'node:fs';
 import { open, readFile } from 'node:fs/promises';
 import { extname } from 'node:path';
@@ -22,6 +23,8 @@ export interface LoadOptions {
   exclude?: readonly string[];
   /** Hash the file (SHA-256) so a recipe's `recording.fingerprint` can be compared; skipped when nothing asks. */
   fingerprint?: boolean;
+  /** The recipe's `eventTable`: which rows of the events file become events, and onset shifts. */
+  eventTable?: EventTableSpec;
 }
 
 export interface LoadedRecording {
@@ -122,7 +125,11 @@ export async function loadRecording(path: string, options: LoadOptions): Promise
     }
     warnings.push(...parsed.warnings.map((w) => `${options.eventsPath}: ${w}`));
     if (parsed.outside.length > 0) warnings.push(`${options.eventsPath}: ${parsed.outside.length} events lie outside the recording and were ignored`);
-    recording.events = [...recording.events, ...parsed.events.map((e) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, label: e.label }))];
+    const chosen = options.eventTable === undefined ? { events: parsed.events, warnings: [] } : selectEventRows(parsed.events, parsed.header, options.eventTable, total / recording.sampleRateHz);
+    warnings.push(...chosen.warnings);
+    recording.events = [...recording.events, ...chosen.events.map((e) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, label: e.label }))];
+  } else if (options.eventTable !== undefined) {
+    throw new CliInputError('--events', "is required: the recipe's eventTable selects rows of a BIDS events file");
   }
   // The browser fingerprints the recording file alone (not a separate events file), so the CLI does the same.
   if (options.fingerprint) recording.fingerprint = await fingerprintFile(path);

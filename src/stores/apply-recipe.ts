@@ -1,8 +1,9 @@
-import { parseRecipe, type Recipe } from '../lib/analysis/recipe';
+import { readRecipe, type Recipe } from '../lib/analysis/recipe';
 import type { Recording } from '../lib/analysis/recording';
 import { planRecipe } from '../lib/analysis/run-recipe';
+import { selectEventRows } from '../lib/analysis/event-table';
 import { DEFAULT_DRAFT, useRecipeStore, type RecipeDraft } from './recipe';
-import { defaultRejection, useSourceStore, type Condition, type RejectionSettings } from './source';
+import { defaultRejection, useSourceStore, type Condition, type ConditioningSettings, type RejectionSettings } from './source';
 import { useViewStore } from './view';
 
 export type ApplyOutcome = { ok: true; notices: string[] } | { ok: false; field: string; message: string };
@@ -19,7 +20,7 @@ function draftOf(recipe: Recipe, conditionNames: string[], current: RecipeDraft)
     channels: recipe.channels?.slice() ?? [],
     conditions: all ? [] : recipe.epochs.events.slice(),
     spectrum: { ...recipe.spectrum, range: [recipe.spectrum.range[0], recipe.spectrum.range[1]] },
-    aperiodic: { mode: recipe.aperiodic.mode },
+    aperiodic: { model: recipe.aperiodic.model },
   };
 }
 
@@ -44,13 +45,23 @@ export function applyRecipe(
   reading: { unitFactors?: Record<string, number>; exclude?: readonly string[] } | null = null,
 ): ApplyOutcome {
   let recipe: Recipe;
+  let upgraded: string | null;
+  let selected: Recording = recording;
+  const table = useSourceStore.getState().local?.eventTable;
   try {
-    recipe = parseRecipe(input);
-    planRecipe(recording, input);
+    ({ recipe, notice: upgraded } = readRecipe(input));
+    // The recipe's eventTable picks the events of the paired events file first; the recipe is checked on those.
+    if (recipe.eventTable !== undefined || table !== undefined) {
+      if (table === undefined) return { ok: false, field: 'eventTable', message: 'eventTable selects rows of a BIDS events file: open the recording with its events file first; nothing was changed' };
+      const chosen = selectEventRows(table.rows, table.header, recipe.eventTable ?? {}, recording.data[0].length / recording.sampleRateHz);
+      selected = { ...recording, events: [...recording.events.slice(0, table.annotationCount), ...chosen.events] };
+    }
+    planRecipe(selected, recipe);
   } catch (error) {
     const e = error as { field?: string; message?: string };
     return { ok: false, field: e.field ?? 'recipe', message: e.message ?? String(error) };
   }
+  if (table !== undefined) useSourceStore.getState().setEventSelection(recipe.eventTable ?? null);
   // Without `conditions`, each listed label is its own condition (the contract's reading of epochs.events).
   const conditions: Condition[] =
     recipe.conditions !== undefined
@@ -62,14 +73,17 @@ export function applyRecipe(
   const rejection: RejectionSettings =
     r === undefined
       ? { ...defaultRejection, peakToPeakMicrovolts: null, flatMicrovolts: null, overrides: {} }
-      : { peakToPeakMicrovolts: r.peakToPeakMicrovolts, flatMicrovolts: r.flatMicrovolts, scope: r.scope, channels: r.channels?.slice(), overrides: { ...r.overrides } };
+      : { peakToPeakMicrovolts: r.peakToPeakMicrovolts, flatMicrovolts: r.flatMicrovolts, scope: r.scope, channels: r.channels?.slice(), overrides: { ...r.overrides }, ...(r.byType ? { byType: { ...r.byType } } : {}) };
+  const conditioning: ConditioningSettings = { types: { ...(recipe.signals?.types ?? {}) }, bad: (recipe.signals?.bad ?? []).slice(), reference: recipe.reference ?? null, filters: recipe.filters ?? null };
   const source = useSourceStore.getState();
-  source.set({ conditions, epochWindow: { tmin: recipe.epochs.tmin, tmax: recipe.epochs.tmax }, rejection });
+  source.set({ conditions, epochWindow: { start: recipe.epochs.start, end: recipe.epochs.end }, rejection, conditioning });
   source.recompute();
   useRecipeStore.setState((s) => ({ draft: draftOf(recipe, conditions.map((c) => c.name), s.draft ?? DEFAULT_DRAFT) }));
-  useViewStore.getState().set({ method: recipe.baseline.method, scope: recipe.baseline.scope, fitRange: [recipe.aperiodic.range[0], recipe.aperiodic.range[1]] });
+  useViewStore.getState().set({ method: recipe.baseline.method, scope: recipe.baseline.scope, spread: recipe.baseline.spread ?? 'time', fitRange: [recipe.aperiodic.range[0], recipe.aperiodic.range[1]] });
   useViewStore.getState().setBaseline({ start: recipe.baseline.start, end: recipe.baseline.end });
   const notices: string[] = [];
+  // Format 1 is upgraded in place; say so (analysis contract: never silently). The next export writes format 2.
+  if (upgraded !== null) notices.push('This recipe is in format 1 (written before format 2): it was read with its old names upgraded (epochs.tmin/tmax → start/end, method "db" → "decibel" and so on); Export recipe JSON writes it in format 2.');
   if (recipe.recording?.fingerprint !== undefined && fingerprint !== null && recipe.recording.fingerprint !== fingerprint) {
     notices.push(`This recipe was made on another recording (SHA-256 ${recipe.recording.fingerprint.slice(0, 12)}…); the open one is ${fingerprint.slice(0, 12)}….`);
   }

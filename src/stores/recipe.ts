@@ -1,6 +1,9 @@
 import { create } from 'zustand';
+import type { AperiodicModel } from '../lib/analysis/aperiodic';
+import type { BaselineMethod } from '../lib/analysis/baseline';
+import type { EventTableSpec } from '../lib/analysis/event-table';
 import type { RecipeInput } from '../lib/analysis/recipe';
-import { sourceSpec, type Condition, type RejectionSettings } from './source';
+import { conditioningSpec, sourceSpec, type Condition, type ConditioningSettings, type RejectionSettings } from './source';
 
 export type CyclesMode = 'fixed' | 'range' | 'fwhm';
 
@@ -18,7 +21,7 @@ export interface RecipeDraft {
   conditions: string[];
   spectrum: { segment: number; overlap: number; range: [number, number]; source: 'recording' | 'epochs' };
   /** The fit range is live view state (`useViewStore().fitRange`, dragged on the Spectrum screen), like the baseline. */
-  aperiodic: { mode: 'fixed' | 'knee' };
+  aperiodic: { model: AperiodicModel };
 }
 
 // 3–45 Hz covers the default bands (theta 4–8 … gamma 30–45 Hz). At 3 Hz the 3-cycle wavelet's edge zone is
@@ -32,8 +35,9 @@ export const DEFAULT_DRAFT: RecipeDraft = {
   fwhmSeconds: 0.3,
   channels: [],
   conditions: [],
-  spectrum: { segment: 1, overlap: 0.5, range: [1, 45], source: 'recording' },
-  aperiodic: { mode: 'fixed' },
+  // The kept epochs by default: the whole recording would mix in breaks, rejected epochs and artefacts.
+  spectrum: { segment: 1, overlap: 0.5, range: [1, 45], source: 'epochs' },
+  aperiodic: { model: 'power-law' },
 };
 
 export interface RunChannelProgress {
@@ -64,9 +68,14 @@ export const useRecipeStore = create<RecipeState>((set, get) => ({
 /** What the Source screen contributes to a recipe. */
 export interface RecipeSource {
   conditions: Condition[];
-  tmin: number;
-  tmax: number;
+  /** The epoch window, `epochs.start`/`end` in seconds from the event. */
+  epochStart: number;
+  epochEnd: number;
   rejection: RejectionSettings;
+  /** Channel types changed by hand, bad channels, reference and filters (recipe `signals`, `reference`, `filters`). */
+  conditioning?: ConditioningSettings;
+  /** Rows of the paired events file chosen as events (recipe `eventTable`); null or absent: all rows. */
+  eventSelection?: EventTableSpec | null;
   /** SHA-256 of the open file; written into the recipe only when it is one (64 hex digits). */
   fingerprint: string | null;
   /** How the file was read beyond the built-in units (LocalRecordingInfo.reading); written when not empty. */
@@ -81,7 +90,7 @@ export interface RecipeSource {
 export function toRecipe(
   draft: RecipeDraft,
   source: RecipeSource,
-  baseline: { start: number; end: number; method: 'db' | 'percent' | 'zscore' | 'ratio'; scope: 'average' | 'trial' },
+  baseline: { start: number; end: number; method: BaselineMethod; scope: 'average' | 'trial'; spread?: 'time' | 'trials' },
   fitRange: readonly [number, number],
 ): RecipeInput {
   const cycles =
@@ -92,18 +101,31 @@ export function toRecipe(
         : { min: draft.cyclesMin, max: draft.cyclesMax };
   const conditionNames = source.conditions.map((c) => c.name);
   const events = draft.conditions.length > 0 ? draft.conditions.filter((c) => conditionNames.includes(c)) : conditionNames;
-  const spec = sourceSpec({ conditions: source.conditions, epochWindow: source, rejection: source.rejection });
+  const spec = sourceSpec({ conditions: source.conditions, epochWindow: { start: source.epochStart, end: source.epochEnd }, rejection: source.rejection });
   return {
-    epochs: { events, tmin: source.tmin, tmax: source.tmax },
+    format: 2,
+    epochs: { events, start: source.epochStart, end: source.epochEnd },
     ...(draft.channels.length > 0 ? { channels: draft.channels } : {}),
     frequencies: { ...draft.frequencies },
     cycles,
-    baseline: { ...baseline },
+    // `spread` is written only where it means something: an across-trials z-score.
+    baseline: { start: baseline.start, end: baseline.end, method: baseline.method, scope: baseline.scope, ...(baseline.method === 'z-score' && baseline.spread === 'trials' ? { spread: 'trials' as const } : {}) },
     spectrum: { ...draft.spectrum, range: [...draft.spectrum.range] as [number, number] },
-    aperiodic: { range: [fitRange[0], fitRange[1]], mode: draft.aperiodic.mode },
+    aperiodic: { range: [fitRange[0], fitRange[1]], model: draft.aperiodic.model },
     conditions: spec.conditions as Record<string, string[]>,
     rejection: spec.rejection as NonNullable<RecipeInput['rejection']>,
+    ...((source.conditioning !== undefined ? conditioningSpec(source.conditioning) : {}) as Pick<RecipeInput, 'signals' | 'reference' | 'filters'>),
+    ...(source.eventSelection ? { eventTable: eventTableOf(source.eventSelection) } : {}),
     ...recordingSection(source),
+  };
+}
+
+/** The recipe's `eventTable`: only the parts that were set. */
+function eventTableOf(spec: EventTableSpec): NonNullable<RecipeInput['eventTable']> {
+  return {
+    ...(spec.labelColumn !== undefined ? { labelColumn: spec.labelColumn } : {}),
+    ...(spec.where !== undefined && spec.where.length > 0 ? { where: spec.where.slice() } : {}),
+    ...(spec.shiftBy !== undefined ? { shiftBy: spec.shiftBy } : {}),
   };
 }
 
@@ -124,5 +146,5 @@ function recordingSection(source: RecipeSource): Pick<RecipeInput, 'recording'> 
  */
 export function decompositionKey(recordingId: string, recipe: RecipeInput): string {
   const { baseline: _baseline, aperiodic, ...rest } = recipe;
-  return `${recordingId}|${JSON.stringify({ ...rest, aperiodicMode: aperiodic.mode })}`;
+  return `${recordingId}|${JSON.stringify({ ...rest, aperiodicModel: aperiodic.model })}`;
 }

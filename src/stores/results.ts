@@ -19,7 +19,8 @@ export interface Decomposition {
   recipe: RecipeInput;
   recordingId: string;
   sampleRateHz: number;
-  tmin: number;
+  /** `epochs.start`, seconds from the event. */
+  epochStart: number;
   channels: string[];
   labels: string[];
   trials: number[];
@@ -141,7 +142,7 @@ export async function runDecomposition(recording: Recording, recordingId: string
       recipe,
       recordingId,
       sampleRateHz: plan.sampleRateHz,
-      tmin: plan.tminSeconds,
+      epochStart: plan.epochStartSeconds,
       channels: result.channels,
       labels,
       trials: labels.map((l) => result.conditions[l].trials),

@@ -1,6 +1,9 @@
 import { create } from 'zustand';
 import type { Recording } from '../lib/analysis/recording';
 import { eventKey } from '../lib/analysis/event-key';
+import type { ChannelType } from '../lib/analysis/channel-types';
+import { selectEventRows, type EventRow, type EventTableSpec } from '../lib/analysis/event-table';
+import { conditionRecording, type ConditionSpec, type FiltersSpec, type ReferenceSpec } from '../lib/analysis/condition-recording';
 import { prepareRecording, type EpochDecision, type PrepareSpec } from '../lib/analysis/prepare-recording';
 
 /**
@@ -26,6 +29,8 @@ export interface LocalRecordingInfo {
   mappedSignals?: { signal: string; dimension: string; factor: number }[];
   /** The reading choices the file was opened with; they go into the recipe's `recording.units` / `exclude`. */
   reading?: { unitFactors?: Record<string, number>; exclude?: string[] };
+  /** A paired BIDS events file's rows; its events follow the first `annotationCount` events of the recording. */
+  eventTable?: { header: string[]; rows: EventRow[]; annotationCount: number };
 }
 
 export interface Condition {
@@ -42,11 +47,41 @@ export interface RejectionSettings {
   scope: 'any' | 'channel';
   /** Channel names the rules check when scope is 'channel'. */
   channels?: string[];
+  /** Limits per channel type, in that type's unit (the recipe's `rejection.byType`). */
+  byType?: Partial<Record<ChannelType, { peakToPeak: number | null; flat: number | null }>>;
   /** Manual decisions by event key (`eventKey`: index, onset and label of the event), overriding the rules. */
   overrides: Record<string, 'keep' | 'reject'>;
 }
 
 export type { EpochDecision } from '../lib/analysis/prepare-recording';
+
+/**
+ * How the continuous recording is conditioned before epoching (recipe `signals`, `reference`, `filters`): types
+ * changed by hand (only the changes; the rest is inferred from the file) and channels marked bad.
+ */
+export interface ConditioningSettings {
+  types: Record<string, ChannelType>;
+  bad: string[];
+  /** The recipe's `reference`; as recorded when null. */
+  reference: ReferenceSpec | null;
+  /** The recipe's `filters`; none when null. */
+  filters: FiltersSpec | null;
+}
+
+export const defaultConditioning: ConditioningSettings = { types: {}, bad: [], reference: null, filters: null };
+
+/** The conditioning settings as the recipe's fields, without empty ones. */
+export function conditioningSpec(c: ConditioningSettings): ConditionSpec {
+  const signals = {
+    ...(Object.keys(c.types).length > 0 ? { types: { ...c.types } } : {}),
+    ...(c.bad.length > 0 ? { bad: c.bad.slice() } : {}),
+  };
+  return {
+    ...(Object.keys(signals).length > 0 ? { signals } : {}),
+    ...(c.reference !== null && c.reference.kind !== 'as-recorded' ? { reference: c.reference } : {}),
+    ...(c.filters !== null && (c.filters.highPass !== undefined || c.filters.notch !== undefined) ? { filters: c.filters } : {}),
+  };
+}
 
 export interface SourceState {
   recording: Recording | null;
@@ -55,8 +90,11 @@ export interface SourceState {
   fingerprint: string | null;
   subjectCode: string;
   conditions: Condition[];
-  epochWindow: { tmin: number; tmax: number };
+  epochWindow: { start: number; end: number };
   rejection: RejectionSettings;
+  conditioning: ConditioningSettings;
+  /** Which rows of the paired events file are events, and onset shifts (recipe `eventTable`); null: all rows. */
+  eventSelection: EventTableSpec | null;
   /** One entry per event that belongs to a condition, recomputed when settings change. */
   decisions: EpochDecision[];
   /** The recording to analyse: events relabelled to condition names, rejected epochs left out. */
@@ -67,27 +105,31 @@ export interface SourceState {
   /** Puts a freshly opened recording in place, keeping conditions whose labels it also has. */
   load: (opened: { recording: Recording; local: LocalRecordingInfo; fingerprint: string }) => void;
   setConditions: (conditions: Condition[]) => void;
-  setEpochWindow: (epochWindow: { tmin: number; tmax: number }) => void;
+  setEpochWindow: (epochWindow: { start: number; end: number }) => void;
   setRejection: (patch: Partial<Omit<RejectionSettings, 'overrides'>>) => void;
+  setConditioning: (patch: Partial<ConditioningSettings>) => void;
+  /** Re-derives the events from the events file; returns the problem (naming the field) and changes nothing on one. */
+  setEventSelection: (spec: EventTableSpec | null) => string | null;
   /** A manual decision for one epoch; null returns it to the rules. */
   setOverride: (eventIndex: number, decision: 'keep' | 'reject' | null) => void;
   /** Recomputes `decisions` from the recording, conditions, window and rejection settings. */
   recompute: () => void;
 }
 
-type Actions = 'load' | 'setConditions' | 'setEpochWindow' | 'setRejection' | 'setOverride' | 'recompute';
+type Actions = 'load' | 'setConditions' | 'setEpochWindow' | 'setRejection' | 'setConditioning' | 'setEventSelection' | 'setOverride' | 'recompute';
 
 /** The Source screen's settings as the recipe's `epochs`, `conditions` and `rejection` fields (recipe extensions). */
 export function sourceSpec(state: Pick<SourceState, 'conditions' | 'epochWindow' | 'rejection'>): PrepareSpec {
   const { conditions, epochWindow, rejection } = state;
   return {
-    epochs: { tmin: epochWindow.tmin, tmax: epochWindow.tmax },
+    epochs: { start: epochWindow.start, end: epochWindow.end },
     conditions: Object.fromEntries(conditions.map((c) => [c.name, c.labels.slice()])),
     rejection: {
       peakToPeakMicrovolts: rejection.peakToPeakMicrovolts,
       flatMicrovolts: rejection.flatMicrovolts,
       scope: rejection.scope,
       ...(rejection.scope === 'channel' ? { channels: (rejection.channels ?? []).slice() } : {}),
+      ...(rejection.byType !== undefined && Object.keys(rejection.byType).length > 0 ? { byType: { ...rejection.byType } } : {}),
       overrides: { ...rejection.overrides },
     },
   };
@@ -95,12 +137,14 @@ export function sourceSpec(state: Pick<SourceState, 'conditions' | 'epochWindow'
 
 /** The decisions for the current state, or the reason there are none. Pure: the store calls it on every change. */
 export function decideEpochs(
-  state: Pick<SourceState, 'recording' | 'conditions' | 'epochWindow' | 'rejection'>,
+  state: Pick<SourceState, 'recording' | 'conditions' | 'epochWindow' | 'rejection' | 'conditioning'>,
 ): { decisions: EpochDecision[]; settingsError: string | null } {
   const { recording, conditions } = state;
   if (!recording || conditions.length === 0) return { decisions: [], settingsError: null };
   try {
-    return { decisions: prepareRecording(recording, sourceSpec(state)).decisions, settingsError: null };
+    // Rejection looks at the recording as the run will see it: types, bad channels, reference, filters.
+    const conditioned = conditionRecording(recording, conditioningSpec(state.conditioning)).recording;
+    return { decisions: prepareRecording(conditioned, sourceSpec(state)).decisions, settingsError: null };
   } catch (error) {
     return { decisions: [], settingsError: error instanceof Error ? error.message : String(error) };
   }
@@ -137,15 +181,20 @@ export const useSourceStore = create<SourceState>((set, get) => ({
   subjectCode: '',
   conditions: [],
   // 3 s around the event: room for a −0.5 … −0.2 s baseline clear of the edge zone down to 3 Hz (recipe defaults).
-  epochWindow: { tmin: -1, tmax: 2 },
+  epochWindow: { start: -1, end: 2 },
   rejection: defaultRejection,
+  conditioning: defaultConditioning,
+  eventSelection: null,
   decisions: [],
   settingsError: null,
   analysisRecording: () => {
     const state = get();
     if (!state.recording) return null;
     if (state.conditions.length === 0 || state.settingsError !== null) return { ...state.recording, events: [] };
-    return prepareRecording(state.recording, sourceSpec(state)).recording;
+    // Decided on the conditioned recording (as a run decides), returned with the file's own samples: a run
+    // conditions them itself from the recipe.
+    const conditioned = conditionRecording(state.recording, conditioningSpec(state.conditioning)).recording;
+    return { ...state.recording, events: prepareRecording(conditioned, sourceSpec(state)).recording.events };
   },
   set: (patch) => set(patch),
   load: ({ recording: opened, local, fingerprint }) => {
@@ -157,13 +206,46 @@ export const useSourceStore = create<SourceState>((set, get) => ({
       .filter((c) => c.labels.length > 0);
     const conditions = kept.length > 0 ? kept : conditionsPerLabel(recording.events);
     const rejection = { ...get().rejection, overrides: {}, channels: (get().rejection.channels ?? []).filter((n) => recording.channelNames.includes(n)) };
-    set({ recording, local, fingerprint, conditions, rejection, ...decideEpochs({ ...get(), recording, conditions, rejection }) });
+    // Type changes and bad marks belong to one file's channels: keep those whose channel the new file also has.
+    const has = (n: string) => recording.channelNames.includes(n);
+    const previous = get().conditioning;
+    const conditioning = { ...previous, types: Object.fromEntries(Object.entries(previous.types).filter(([n]) => has(n))), bad: previous.bad.filter(has) };
+    set({ recording, local, fingerprint, conditions, rejection, conditioning, eventSelection: null, ...decideEpochs({ ...get(), recording, conditions, rejection, conditioning }) });
   },
   setConditions: (conditions) => set({ conditions, ...decideEpochs({ ...get(), conditions }) }),
   setEpochWindow: (epochWindow) => set({ epochWindow, ...decideEpochs({ ...get(), epochWindow }) }),
   setRejection: (patch) => {
     const rejection = { ...get().rejection, ...patch };
     set({ rejection, ...decideEpochs({ ...get(), rejection }) });
+  },
+  setEventSelection: (spec) => {
+    const { recording, local } = get();
+    if (recording === null || local?.eventTable === undefined) return spec === null ? null : 'eventTable needs a BIDS events file opened with the recording';
+    const table = local.eventTable;
+    let chosen;
+    try {
+      chosen = selectEventRows(table.rows, table.header, spec ?? {}, recording.data[0].length / recording.sampleRateHz);
+    } catch (error) {
+      return error instanceof Error ? error.message : String(error);
+    }
+    const events = [...recording.events.slice(0, table.annotationCount), ...chosen.events];
+    const next = { ...recording, events };
+    // Conditions keep the labels that still occur; with none left, one condition per label as on opening.
+    const labels = new Set(events.map((e) => e.label));
+    const kept = get()
+      .conditions.map((c) => ({ ...c, labels: c.labels.filter((l) => labels.has(l)) }))
+      .filter((c) => c.labels.length > 0);
+    const claimed = new Set(kept.flatMap((c) => c.labels));
+    const added = conditionsPerLabel(events.filter((e) => !claimed.has(e.label))).filter((c) => !kept.some((k) => k.name === c.name));
+    const conditions = [...kept, ...added];
+    // Event keys count positions in the event list, which a new selection changes: manual decisions start afresh.
+    const rejection = { ...get().rejection, overrides: {} };
+    set({ recording: next, eventSelection: spec, conditions, rejection, ...decideEpochs({ ...get(), recording: next, conditions, rejection }) });
+    return null;
+  },
+  setConditioning: (patch) => {
+    const conditioning = { ...get().conditioning, ...patch };
+    set({ conditioning, ...decideEpochs({ ...get(), conditioning }) });
   },
   setOverride: (eventIndex, decision) => {
     const recording = get().recording;

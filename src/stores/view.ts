@@ -1,5 +1,5 @@
 import { create } from 'zustand';
-import type { BaselineMethod, BaselineScope } from '../lib/analysis/baseline';
+import type { BaselineMethod, BaselineScope, BaselineSpread } from '../lib/analysis/baseline';
 
 export interface Band {
   name: string;
@@ -40,12 +40,19 @@ export interface ViewState {
   baseline: { start: number; end: number };
   method: BaselineMethod;
   scope: BaselineScope;
+  /** For z-scores: S over the baseline's time points or across trials (recipe `baseline.spread`). */
+  spread: BaselineSpread;
   rawScale: 'linear' | 'log';
   spectrumAxes: SpectrumAxes;
   /** Aperiodic fit range in Hz, dragged on the spectrum's frequency axis. */
   fitRange: [number, number];
   bands: Band[];
   windows: TimeWindow[];
+  /**
+   * Colour limits held fixed while other channels and conditions are shown, so panels can be compared; `key` names
+   * what they were taken for (method, difference or not, raw scale), and they apply only while that matches.
+   */
+  heldLimits: { key: string; raw: [number, number]; normalized: [number, number] } | null;
   set: (patch: Partial<Omit<ViewState, 'set' | 'setBaseline'>>) => void;
   /** Marks the User Timing start of a baseline change, then applies it. */
   setBaseline: (baseline: { start: number; end: number }) => void;
@@ -56,13 +63,15 @@ export const useViewStore = create<ViewState>((set) => ({
   condition: null,
   compareTo: null,
   baseline: { start: -0.5, end: -0.2 },
-  method: 'db',
+  method: 'decibel',
   scope: 'average',
+  spread: 'time',
   rawScale: 'log',
   spectrumAxes: 'log-log',
   fitRange: [2, 40],
   bands: DEFAULT_BANDS,
   windows: DEFAULT_WINDOWS,
+  heldLimits: null,
   set: (patch) => set(patch),
   setBaseline: (baseline) => {
     performance.mark('tidemark:baseline-input');

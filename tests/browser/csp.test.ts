@@ -328,7 +328,7 @@ describe('Content-Security-Policy: nothing leaves for another origin', () => {
     const page = await context.newPage();
     await openWorkspace(page, 'analyst', '?testhooks');
     await page.waitForFunction(() => window.__tidemark !== undefined);
-    const loaded = await page.evaluate(() => window.__tidemark!.loadDemo({ seconds: 30, channels: ['Fz', 'Cz'], tmin: -0.5, tmax: 1.5 }));
+    const loaded = await page.evaluate(() => window.__tidemark!.loadDemo({ seconds: 30, channels: ['Fz', 'Cz'], epochStart: -0.5, epochEnd: 1.5 }));
     expect(loaded.settingsError).toBeNull();
 
     // Decompose in the worker pool (module workers from this origin).

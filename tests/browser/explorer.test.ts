@@ -12,7 +12,7 @@ import { openWorkspace, readMapCell, recordProgress, progressSeen } from '../hel
 
 // The demo recording: 60 s of the invented Harbour Lights scenario, three channels, generated from its seed in the
 // page (through the ?testhooks hook) and here in Node, so both sides analyse the same samples.
-const DEMO = { seconds: 60, channels: ['Fz', 'Cz', 'Pz'], tmin: -0.5, tmax: 1.5 };
+const DEMO = { seconds: 60, channels: ['Fz', 'Cz', 'Pz'], epochStart: -0.5, epochEnd: 1.5 };
 
 let browser: Browser;
 let close: () => Promise<void>;
@@ -187,7 +187,7 @@ describe('the explorer on a demo recording', () => {
   it('switches methods instantly and keeps matching the core', async () => {
     const fi = nearest(result.frequencies, 6);
     const ti = nearest(result.times, 0.4);
-    for (const [method, label, unit] of [['percent', 'percent', '%'], ['zscore', 'z-score', ' z'], ['ratio', 'ratio', '×']] as const) {
+    for (const [method, label, unit] of [['percent-change', 'percent change', '%'], ['z-score', 'z-score', ' z'], ['power-ratio', 'power ratio', '×']] as const) {
       await page.getByText(label, { exact: true }).click();
       const cell = await readMapCell(page, fi, ti);
       expect(cell.text).toContain(unit);
@@ -196,6 +196,40 @@ describe('the explorer on a demo recording', () => {
       const r = nodeResult(exported);
       expect(cell.normalized).toBeCloseTo(r.conditions['lamp-watch'].normalized[0][fi][ti], 8);
     }
+    await page.getByText('dB', { exact: true }).click();
+  });
+
+  it('draws a power ratio on a log scale centred on 1, and holds colour limits across channels when asked', async () => {
+    const map = page.getByTestId('map-normalized');
+    const limits = async () => [await map.getAttribute('data-scale-kind'), Number(await map.getAttribute('data-scale-low')), Number(await map.getAttribute('data-scale-high'))] as const;
+    await page.getByText('power ratio', { exact: true }).click();
+    await expect.poll(async () => (await limits())[0]).toBe('log');
+    const [, lo, hi] = await limits();
+    expect(lo * hi).toBeCloseTo(1, 12); // [1/m, m]: the centre of the colour bar is a ratio of 1
+    await page.getByText('dB', { exact: true }).click();
+    await expect.poll(async () => (await limits())[0]).toBe('linear');
+    const fz = await limits();
+    await page.getByTestId('hold-limits').check();
+    await page.getByTestId('maps-channel').selectOption('Pz');
+    await expect.poll(async () => (await page.getByTestId('map-normalized').getAttribute('aria-label')) ?? '').toContain('Pz');
+    expect(await limits()).toEqual(fz);
+    await page.getByTestId('hold-limits').uncheck();
+    await expect.poll(async () => (await limits())[2]).not.toBe(fz[2]);
+    await page.getByTestId('maps-channel').selectOption('Fz');
+  });
+
+  it('z-scores with the spread across trials when asked, as the core does', async () => {
+    const fi = nearest(result.frequencies, 6);
+    const ti = nearest(result.times, 0.4);
+    await page.getByText('z-score', { exact: true }).click();
+    await page.getByText('across trials', { exact: true }).click();
+    const cell = await readMapCell(page, fi, ti, { textContains: ' z' });
+    const exported = JSON.parse((await download('export-recipe')).bytes.toString('utf8'));
+    expect(exported.baseline).toMatchObject({ method: 'z-score', spread: 'trials' });
+    const expected = nodeResult(exported).conditions['lamp-watch'].normalized[0][fi][ti];
+    // live maps come from single trials held as Float32: agreement to ~1e-6 relative
+    expect(Math.abs(cell.normalized - expected)).toBeLessThan(1e-4 * Math.max(1, Math.abs(expected)));
+    await page.getByText('over baseline time', { exact: true }).click();
     await page.getByText('dB', { exact: true }).click();
   });
 
@@ -240,7 +274,7 @@ describe('the explorer on a demo recording', () => {
 });
 
 describe('the spectrum and band screens', () => {
-  it('draws the aperiodic fit of the recipe spectrum (whole recording by default), equal to the core fit in Node, with a draggable range', async () => {
+  it('draws the aperiodic fit of the recipe spectrum (kept epochs by default), equal to the core fit in Node, with a draggable range', async () => {
     const { welchPsd } = await import('../../src/lib/analysis/welch');
     const { fitAperiodic } = await import('../../src/lib/analysis/aperiodic');
     const { planRecipe } = await import('../../src/lib/analysis/run-recipe');
@@ -250,13 +284,14 @@ describe('the spectrum and band screens', () => {
     loadDemo(DEMO);
     const recording = useSourceStore.getState().analysisRecording()!;
     const plan = planRecipe(recording, recipe);
-    // spectrum.source "recording": Welch over the whole recording, as analyzeChannel computes it for the CLI.
+    // spectrum.source "epochs" (the browser's default): Welch over the kept epochs, as analyzeChannel computes it for the CLI.
     const fz = welchPsd(recording.data[recording.channelNames.indexOf('Fz')], 500, plan.spectrum.segmentSamples, plan.spectrum.overlapSamples, plan.spectrum.spans);
-    expect(recipe.spectrum.source).toBe('recording');
+    expect(recipe.spectrum.source).toBe('epochs');
+    expect(plan.spectrum.spans.length).toBe(2 * plan.epochStarts.reduce((n, s) => n + s.length, 0));
     const { channel: _fz, ...coreFit } = nodeResult(recipe).aperiodic.find((a) => a.channel === 'Fz')!;
-    expect(fitAperiodic(fz.frequencies, fz.psd, [2, 40], 'fixed')).toEqual(coreFit);
+    expect(fitAperiodic(fz.frequencies, fz.psd, [2, 40], 'power-law')).toEqual(coreFit);
     const expectFit = async (range: [number, number]) => {
-      const expected = fitAperiodic(fz.frequencies, fz.psd, range, 'fixed');
+      const expected = fitAperiodic(fz.frequencies, fz.psd, range, 'power-law');
       await page.waitForFunction((e) => Math.abs(Number(document.querySelector('[data-testid="fit-readout"]')?.getAttribute('data-exponent')) - e) < 1e-9, expected.exponent);
       return expected.exponent;
     };
@@ -281,7 +316,7 @@ describe('the spectrum and band screens', () => {
     expect(await page.getByTestId('fit-table').locator('th[aria-sort="ascending"]').count()).toBe(1);
 
     const csv = (await download('export-fits')).bytes.toString('utf8').trim().split(/\r?\n/);
-    expect(csv[0]).toBe('channel,exponent,offset,knee,r2,rmse,points,excluded,fit_low_hz,fit_high_hz,mode,trials');
+    expect(csv[0]).toBe('channel,exponent,offset,knee,knee_hz,r2,rmse,r2_kept,points,excluded,peaks,fit_low_hz,fit_high_hz,model,trials');
     expect(csv).toHaveLength(1 + DEMO.channels.length);
     expect(Number(csv.find((l) => l.startsWith('Fz,'))!.split(',')[1])).toBeCloseTo(after, 9);
     await page.screenshot({ path: path.join(artifactsDir, 'explorer-spectrum.png'), fullPage: true });

@@ -122,10 +122,10 @@ describe('an analyst’s journey from sign-in to a time-frequency map', () => {
     await download.saveAs(recipePath);
     const recipe = JSON.parse(fs.readFileSync(recipePath, 'utf8'));
     expect(recipe.channels).toEqual(CHANNELS);
-    expect(recipe.baseline.method).toBe('db');
+    expect(recipe.baseline.method).toBe('decibel');
     const frequencies = frequencyGrid(recipe.frequencies);
     const fs_ = subject.sampleRateHz;
-    const times = Array.from({ length: Math.round((recipe.epochs.tmax - recipe.epochs.tmin) * fs_) + 1 }, (_, j) => recipe.epochs.tmin + j / fs_);
+    const times = Array.from({ length: Math.round((recipe.epochs.end - recipe.epochs.start) * fs_) + 1 }, (_, j) => recipe.epochs.start + j / fs_);
 
     // The burst's Hann envelope peaks at latency + duration/2 after the cue (cohort.ts), 0.4 s for this scenario.
     const peak = theta.latencySeconds + theta.durationSeconds / 2;

@@ -191,15 +191,18 @@ describe('browser worker pool and command line on the same EDF+ bytes', () => {
     expect(result.conditions['lamp-watch'].normalized[0].flat().filter((v) => v !== null && v !== 0).length).toBeGreaterThan(1000);
   });
 
-  it('matches too for single-trial z-scores, a knee fit on epoch spectra, FWHM widths and linear frequencies', async () => {
+  it('matches too for single-trial z-scores, a knee fit on epoch spectra, FWHM widths, linear frequencies, a reference and filters', async () => {
     const variant = {
       ...recipe,
       channels: ['Pz', 'Fz'],
       frequencies: { min: 4, max: 30, count: 7, spacing: 'linear' },
       cycles: { fwhm: 0.35 },
-      baseline: { ...(recipe.baseline as object), method: 'zscore', scope: 'trial' },
+      baseline: { ...(recipe.baseline as object), method: 'z-score', scope: 'trial' },
       spectrum: { segment: 0.5, overlap: 0.25, range: [1, 60], source: 'epochs' },
-      aperiodic: { range: [2, 50], mode: 'knee' },
+      aperiodic: { range: [2, 50], model: 'power-law-knee' },
+      // the continuous recording conditioned first: a reference and zero-phase filters (portable maths only)
+      reference: { kind: 'common-average' },
+      filters: { highPass: { cutoffHz: 0.5, order: 4 }, notch: { lineHz: 50, harmonics: 2, q: 30 } },
     };
     const pageText = await page.evaluate((r) => window.__tidemark!.runPool(r), variant);
     const { text, result } = cli(variant, 'variant');

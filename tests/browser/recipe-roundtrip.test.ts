@@ -100,9 +100,11 @@ describe('a recipe exported from the page reproduces the page on the command lin
     expect(recipe.rejection.overrides).toEqual({ [key(rescued)]: 'keep', [key(dropped)]: 'reject' });
     // The fingerprint is the SHA-256 of the file's bytes (FIPS 180-4, computed here by node:crypto).
     expect(recipe.recording).toEqual({ fingerprint: createHash('sha256').update(bytes).digest('hex') });
-    expect(recipe.baseline).toEqual({ start: -0.5, end: -0.2, method: 'db', scope: 'average' });
-    expect(recipe.epochs).toMatchObject({ tmin: -1, tmax: 2 });
-    expect(recipe.spectrum.source).toBe('recording');
+    expect(recipe.baseline).toEqual({ start: -0.5, end: -0.2, method: 'decibel', scope: 'average' });
+    expect(recipe.format).toBe(2);
+    expect(recipe.epochs).toMatchObject({ start: -1, end: 2 });
+    expect(recipe.aperiodic.model).toBe('power-law');
+    expect(recipe.spectrum.source).toBe('epochs'); // the kept epochs by default
     fs.writeFileSync(path.join(dir, 'recipe.json'), JSON.stringify(recipe));
     result = analyze(path.join(dir, 'recipe.json'));
     expect(result.warnings.filter((w) => w.startsWith('recording.fingerprint'))).toEqual([]);
@@ -128,6 +130,19 @@ describe('a recipe exported from the page reproduces the page on the command lin
     const ci = result.channels.indexOf(await page.getByTestId('maps-channel').inputValue());
     const condition = await page.getByTestId('maps-condition').inputValue();
     expect(cell.normalized).toBeCloseTo(result.conditions[condition].normalized[ci][fi][ti], 9);
+  });
+
+  it('shows the time and frequency resolution of each frequency on the Recipe screen, as the Result reports it', async () => {
+    await page.getByRole('tab', { name: 'Recipe' }).click();
+    await page.getByTestId('resolution').locator('summary').click();
+    const rows = await page.getByTestId('resolution-row').evaluateAll((els) => els.map((e) => [Number(e.getAttribute('data-frequency')), Number(e.getAttribute('data-time-fwhm')), Number(e.getAttribute('data-frequency-fwhm'))]));
+    expect(rows.length).toBe(result.frequencies.length);
+    rows.forEach(([f, t, s], i) => {
+      expect(f).toBeCloseTo(result.frequencies[i], 12);
+      expect(t).toBeCloseTo(result.temporalFwhmSeconds[i], 12);
+      expect(s).toBeCloseTo(result.spectralFwhmHz[i], 12);
+    });
+    await page.getByTestId('resolution').screenshot({ path: path.join(artifactsDir, 'recipe-resolution.png') });
   });
 
   it('shows the aperiodic fit table the command line writes', async () => {
@@ -163,5 +178,16 @@ describe('a recipe exported from the page reproduces the page on the command lin
     await page.getByRole('tab', { name: 'Source' }).click();
     await expect.poll(() => p2p.inputValue()).toBe('200');
     expect(await page.locator(`[data-testid="epoch-row"][data-event-index="${rescued}"]`).getAttribute('data-verdict')).toBe('kept');
+  });
+
+  it('loads the same recipe written in format 1 with a visible note that it was upgraded (analysis contract)', async () => {
+    await page.getByRole('tab', { name: 'Recipe' }).click();
+    const { format: _format, ...rest } = recipe;
+    const old = { ...rest, epochs: { events: recipe.epochs.events, tmin: recipe.epochs.start, tmax: recipe.epochs.end }, baseline: { ...recipe.baseline, method: 'zscore' }, aperiodic: { range: recipe.aperiodic.range, mode: 'knee' } };
+    await page.getByTestId('load-recipe-file').setInputFiles({ name: 'old.json', mimeType: 'application/json', buffer: Buffer.from(JSON.stringify(old)) });
+    await expect.poll(() => page.getByTestId('load-recipe-message').textContent()).toContain('Loaded old.json');
+    expect(await page.getByTestId('load-recipe-message').textContent()).toMatch(/This recipe is in format 1 .*upgraded/);
+    expect(await page.getByTestId('recipe-epoch-start').inputValue()).toBe(String(recipe.epochs.start));
+    expect(await page.getByLabel('power law with knee').isChecked()).toBe(true);
   });
 });

@@ -40,10 +40,10 @@ async function signIn(context: BrowserContext, role: 'analyst' | 'reviewer'): Pr
 }
 
 /** The Source screen's epoch window form (the default is −1 … 2 s; these checks were worked out for −0.5 … 1.5 s). */
-async function setWindow(page: Page, tmin: number, tmax: number) {
+async function setWindow(page: Page, start: number, end: number) {
   const form = page.getByRole('form', { name: 'Epoch window' });
-  await form.getByLabel('Epoch start (s)').fill(String(tmin));
-  await form.getByLabel('Epoch end (s)').fill(String(tmax));
+  await form.getByLabel('Epoch start (s)').fill(String(start));
+  await form.getByLabel('Epoch end (s)').fill(String(end));
   await form.getByRole('button', { name: 'Apply window' }).click();
 }
 

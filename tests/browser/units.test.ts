@@ -147,7 +147,9 @@ describe('a signal in a unit Tidemark does not know', () => {
     const out = path.join(dir, 'result.json');
     execFileSync(process.execPath, ['--import', 'tsx', 'src/cli/analyze.ts', path.join(dir, FILE_NAME), '--recipe', recipeFile, '--out', out], { stdio: 'pipe' });
     const result = JSON.parse(fs.readFileSync(out, 'utf8')) as AnalysisResult;
-    expect(result.channels).toEqual(['Fz', 'Cz', 'Pz', 'Pleth']);
+    // Pleth is read (× 2.5) but typed "other" from its label, so only the EEG channels are analysed by default.
+    expect(result.channels).toEqual(['Fz', 'Cz', 'Pz']);
+    expect(await page.locator('[data-testid="channel-row"][data-channel="Pleth"]').getAttribute('data-type')).toBe('other');
     expect(result.warnings.filter((w) => w.startsWith('recording.'))).toEqual([]);
   });
 });

@@ -6,10 +6,20 @@ export interface FitRow {
   exponent: number | null;
   offset: number | null;
   knee: number | null;
+  kneeHz: number | null;
   r2: number | null;
   rmse: number | null;
+  r2Kept: number | null;
   points: number | null;
   excluded: number | null;
+  /** Peaks above the aperiodic line in words: "10.02 Hz +0.58 (2.31 Hz wide)". */
+  peaks: string;
+}
+
+/** A fit's peaks in words, for the table and the CSV export. */
+export function describePeaks(peaks: readonly { centreHz: number; heightLog10: number; bandwidthHz: number }[] | undefined): string {
+  if (peaks === undefined || peaks.length === 0) return '';
+  return peaks.map((p) => `${p.centreHz.toFixed(2)} Hz +${p.heightLog10.toFixed(2)} (${p.bandwidthHz.toFixed(2)} Hz wide)`).join('; ');
 }
 
 const col = createColumnHelper<FitRow>();
@@ -19,10 +29,13 @@ const columns = [
   col.accessor('exponent', { header: 'exponent', cell: (c) => num(3)(c.getValue()), sortUndefined: 'last' }),
   col.accessor('offset', { header: 'offset (log10 µV²/Hz)', cell: (c) => num(3)(c.getValue()) }),
   col.accessor('knee', { header: 'knee', cell: (c) => num(2)(c.getValue()) }),
-  col.accessor('r2', { header: 'r²', cell: (c) => num(4)(c.getValue()) }),
-  col.accessor('rmse', { header: 'RMSE (log10)', cell: (c) => num(4)(c.getValue()) }),
+  col.accessor('kneeHz', { header: 'knee (Hz)', cell: (c) => num(2)(c.getValue()) }),
+  col.accessor('r2', { header: 'r² (all bins)', cell: (c) => num(4)(c.getValue()) }),
+  col.accessor('rmse', { header: 'RMSE (log10, all bins)', cell: (c) => num(4)(c.getValue()) }),
+  col.accessor('r2Kept', { header: 'r² (kept bins)', cell: (c) => num(4)(c.getValue()) }),
   col.accessor('points', { header: 'bins', cell: (c) => c.getValue() ?? '—' }),
   col.accessor('excluded', { header: 'peak bins left out', cell: (c) => c.getValue() ?? '—' }),
+  col.accessor('peaks', { header: 'peaks above the line (log10)', cell: (c) => c.getValue() || '—', enableSorting: false }),
 ];
 
 /** Every channel's aperiodic fit, sortable by any column (click or Enter on a header). */

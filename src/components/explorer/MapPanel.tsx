@@ -168,6 +168,9 @@ export default function MapPanel(props: MapPanelProps) {
         data-plot-height={layout.plotHeight}
         data-times={nt}
         data-frequencies={nf}
+        data-scale-kind={spec.scale.kind}
+        data-scale-low={spec.scale.domain[0]}
+        data-scale-high={spec.scale.domain[1]}
         role="img"
         aria-label={`${spec.title}: ${nf} frequencies × ${nt} times, colour in ${spec.unit}`}
         tabIndex={focusable ? 0 : -1}

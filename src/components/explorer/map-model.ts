@@ -4,15 +4,15 @@ import type { Decomposition } from '../../stores/results';
 
 /** Baseline grid indices clamped to the epoch, as the core plans them (analysis contract). */
 export function baselinePoints(d: Decomposition, baseline: { start: number; end: number }): { first: number; last: number } {
-  const b = baselineIndices(baseline.start, baseline.end, d.tmin, d.sampleRateHz);
+  const b = baselineIndices(baseline.start, baseline.end, d.epochStart, d.sampleRateHz);
   const nt = d.times.length;
   return { first: Math.max(0, Math.min(nt - 1, b.first)), last: Math.max(0, Math.min(nt - 1, b.last)) };
 }
 
-/** Snaps seconds to the epoch's sample grid t_j = tmin + j/fs, inside the epoch. */
+/** Snaps seconds to the epoch's sample grid t_j = start + j/fs, inside the epoch. */
 export function snapToGrid(d: Decomposition, seconds: number): number {
   const nt = d.times.length;
-  const j = Math.max(0, Math.min(nt - 1, Math.round((seconds - d.tmin) * d.sampleRateHz)));
+  const j = Math.max(0, Math.min(nt - 1, Math.round((seconds - d.epochStart) * d.sampleRateHz)));
   return d.times[j];
 }
 
@@ -36,7 +36,7 @@ export function baselineWarnings(d: Decomposition, points: { first: number; last
   }
   if (end > 0) out.push(`Baseline reaches past the event at 0 s (ends at ${Number(end.toFixed(3))} s): it includes the response.`);
   const n = points.last - points.first + 1;
-  if (method === 'zscore' && n < 2) out.push(`Baseline holds ${n} sample; a z-score needs at least 2 for a standard deviation.`);
+  if (method === 'z-score' && n < 2) out.push(`Baseline holds ${n} sample; a z-score needs at least 2 for a standard deviation.`);
   return out;
 }
 

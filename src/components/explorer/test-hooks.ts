@@ -14,8 +14,8 @@ export interface DemoLoadOptions {
   subject?: number;
   /** Keep only these channels (fewer channels, faster tests). */
   channels?: string[];
-  tmin?: number;
-  tmax?: number;
+  epochStart?: number;
+  epochEnd?: number;
   /** Pool both conditions into one named `all` (the benchmark's many-trial condition). */
   pooled?: boolean;
 }
@@ -50,7 +50,7 @@ export function loadDemo(options: DemoLoadOptions = {}) {
     },
     fingerprint: `demo-${parameters.seed}-${parameters.seconds}-${recording.channelNames.join('.')}`,
   });
-  useSourceStore.getState().setEpochWindow({ tmin: options.tmin ?? -0.5, tmax: options.tmax ?? 1.5 });
+  useSourceStore.getState().setEpochWindow({ start: options.epochStart ?? -0.5, end: options.epochEnd ?? 1.5 });
   useSourceStore
     .getState()
     .setConditions(options.pooled ? [{ name: 'all', labels: ['lamp-watch', 'oar-pull'] }] : [{ name: 'lamp-watch', labels: ['lamp-watch'] }, { name: 'oar-pull', labels: ['oar-pull'] }]);

@@ -6,10 +6,10 @@ import type { Condition } from '../../stores/source';
 interface Props {
   recording: Recording;
   conditions: Condition[];
-  epochWindow: { tmin: number; tmax: number };
+  epochWindow: { start: number; end: number };
   settingsError: string | null;
   onConditions: (conditions: Condition[]) => void;
-  onWindow: (w: { tmin: number; tmax: number }) => void;
+  onWindow: (w: { start: number; end: number }) => void;
 }
 
 /** Event labels with counts; tick one or several and name them as a condition. Then the epoch window. */
@@ -18,14 +18,14 @@ export default function ConditionsPanel({ recording, conditions, epochWindow, se
   const [ticked, setTicked] = useState<Set<string>>(new Set());
   const [name, setName] = useState('');
   const [problem, setProblem] = useState<string | null>(null);
-  const [tmin, setTmin] = useState(String(epochWindow.tmin));
-  const [tmax, setTmax] = useState(String(epochWindow.tmax));
+  const [startText, setStartText] = useState(String(epochWindow.start));
+  const [endText, setEndText] = useState(String(epochWindow.end));
   const [windowProblem, setWindowProblem] = useState<string | null>(null);
   // The window may change from outside (the Recipe screen, a loaded recipe): show it.
   useEffect(() => {
-    setTmin(String(epochWindow.tmin));
-    setTmax(String(epochWindow.tmax));
-  }, [epochWindow.tmin, epochWindow.tmax]);
+    setStartText(String(epochWindow.start));
+    setEndText(String(epochWindow.end));
+  }, [epochWindow.start, epochWindow.end]);
   const id = useId();
   const owner = new Map<string, string>();
   for (const c of conditions) for (const l of c.labels) owner.set(l, c.name);
@@ -46,13 +46,13 @@ export default function ConditionsPanel({ recording, conditions, epochWindow, se
   };
 
   const applyWindow = () => {
-    const a = Number(tmin);
-    const b = Number(tmax);
-    if (tmin.trim() === '' || tmax.trim() === '' || !Number.isFinite(a) || !Number.isFinite(b)) return setWindowProblem('Both ends of the window are numbers of seconds.');
+    const a = Number(startText);
+    const b = Number(endText);
+    if (startText.trim() === '' || endText.trim() === '' || !Number.isFinite(a) || !Number.isFinite(b)) return setWindowProblem('Both ends of the window are numbers of seconds.');
     if (!(b > a)) return setWindowProblem(`The window must end after it starts (${a} s to ${b} s).`);
     if (b - a > 60) return setWindowProblem('Keep the window under 60 s.');
     setWindowProblem(null);
-    onWindow({ tmin: a, tmax: b });
+    onWindow({ start: a, end: b });
   };
 
   if (labels.length === 0) {
@@ -148,12 +148,12 @@ export default function ConditionsPanel({ recording, conditions, epochWindow, se
         }}
       >
         <div className="field w-28">
-          <label htmlFor={`${id}-tmin`}>Epoch start (s)</label>
-          <input id={`${id}-tmin`} inputMode="decimal" value={tmin} onChange={(e) => setTmin(e.target.value)} />
+          <label htmlFor={`${id}-epoch-start`}>Epoch start (s)</label>
+          <input id={`${id}-epoch-start`} inputMode="decimal" value={startText} onChange={(e) => setStartText(e.target.value)} />
         </div>
         <div className="field w-28">
-          <label htmlFor={`${id}-tmax`}>Epoch end (s)</label>
-          <input id={`${id}-tmax`} inputMode="decimal" value={tmax} onChange={(e) => setTmax(e.target.value)} />
+          <label htmlFor={`${id}-epoch-end`}>Epoch end (s)</label>
+          <input id={`${id}-epoch-end`} inputMode="decimal" value={endText} onChange={(e) => setEndText(e.target.value)} />
         </div>
         <button type="submit" className="btn btn-quiet">
           Apply window

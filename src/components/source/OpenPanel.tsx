@@ -9,14 +9,16 @@ export interface CsvChoice {
 
 interface Props {
   busy: boolean;
-  onOpenEdf: (file: File) => void;
+  onOpenEdf: (file: File, events: File | null) => void;
   onOpenCsv: (file: File, choice: CsvChoice) => void;
+  /** A BIDS events file chosen or dropped on its own: pair it with the open EDF. */
+  onEvents: (file: File) => void;
   /** A file of a kind we do not read. */
   onRefuse: (message: string) => void;
 }
 
 /** Drag and drop or pick a recording; a CSV/TSV matrix asks for its sample rate and an optional BIDS events file. */
-export default function OpenPanel({ busy, onOpenEdf, onOpenCsv, onRefuse }: Props) {
+export default function OpenPanel({ busy, onOpenEdf, onOpenCsv, onEvents, onRefuse }: Props) {
   const [dragging, setDragging] = useState(false);
   const [pendingCsv, setPendingCsv] = useState<File | null>(null);
   const [events, setEvents] = useState<File | null>(null);
@@ -32,7 +34,7 @@ export default function OpenPanel({ busy, onOpenEdf, onOpenCsv, onRefuse }: Prop
     const table = kinds.find((k) => k.kind === 'csv' || k.kind === 'tsv');
     const eventsFile = kinds.find((k) => k.kind === 'events');
     if (edf) {
-      onOpenEdf(edf.file);
+      onOpenEdf(edf.file, eventsFile?.file ?? null);
       return;
     }
     if (table) {
@@ -42,6 +44,10 @@ export default function OpenPanel({ busy, onOpenEdf, onOpenCsv, onRefuse }: Prop
     }
     if (eventsFile && pendingCsv) {
       setEvents(eventsFile.file);
+      return;
+    }
+    if (eventsFile) {
+      onEvents(eventsFile.file);
       return;
     }
     onRefuse(`"${files[0].name}" is not a recording Tidemark reads: choose an EDF/EDF+ file (.edf) or a CSV/TSV sample matrix (.csv, .tsv).`);
@@ -86,14 +92,14 @@ export default function OpenPanel({ busy, onOpenEdf, onOpenCsv, onRefuse }: Prop
         onDrop={onDrop}
         className={`grid place-items-center gap-2 rounded border-2 border-dashed p-6 text-center ${dragging ? 'border-kelp bg-kelp-pale' : 'border-shell bg-foam'}`}
       >
-        <p className="font-semibold">Drop an EDF/EDF+ or CSV/TSV recording here</p>
+        <p className="font-semibold">Drop an EDF/EDF+ or CSV/TSV recording here, with its BIDS events .tsv if it has one</p>
         <p className="text-sm text-ink-soft">It is read on this device and never uploaded.</p>
         <input
           ref={input}
           id={`${id}-file`}
           type="file"
           className="peer sr-only"
-          accept=".edf,.csv,.tsv,.txt"
+          accept=".edf,.rec,.csv,.tsv,.txt"
           multiple
           disabled={busy}
           onChange={(e) => {

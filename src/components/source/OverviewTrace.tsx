@@ -8,7 +8,7 @@ import { drawOverview, envelope, type OverviewSpan } from './overview-draw';
 interface Props {
   recording: Recording;
   decisions: EpochDecision[];
-  epochWindow: { tmin: number; tmax: number };
+  epochWindow: { start: number; end: number };
   channel: string;
   onChannel: (name: string) => void;
   selectedEvent: number | null;
@@ -47,8 +47,8 @@ export default function OverviewTrace({ recording, decisions, epochWindow, chann
 
   const spans = useMemo<OverviewSpan[]>(() => {
     const fs = recording.sampleRateHz;
-    const length = epochLength(epochWindow.tmin, epochWindow.tmax, fs);
-    const offset = roundHalfUp(epochWindow.tmin * fs);
+    const length = epochLength(epochWindow.start, epochWindow.end, fs);
+    const offset = roundHalfUp(epochWindow.start * fs);
     return decisions.map((d) => {
       const start = roundHalfUp(d.onsetSeconds * fs) + offset;
       return { startSample: start, endSample: start + length, rejected: d.rejected, selected: d.eventIndex === selectedEvent };

@@ -1,12 +1,14 @@
 import { useEffect, useId, useState } from 'react';
 import { tallyByCondition } from '../../lib/analysis/rejection';
 import type { Recording } from '../../lib/analysis/recording';
-import type { EpochDecision, RejectionSettings } from '../../stores/source';
+import { isBrainType, resolveChannels, type ChannelType, type ChannelUnit } from '../../lib/analysis/channel-types';
+import type { ConditioningSettings, EpochDecision, RejectionSettings } from '../../stores/source';
 import EpochTable from './EpochTable';
 
 interface Props {
   recording: Recording;
   rejection: RejectionSettings;
+  conditioning: ConditioningSettings;
   decisions: EpochDecision[];
   overviewChannel: string;
   onRejection: (patch: Partial<Omit<RejectionSettings, 'overrides'>>) => void;
@@ -62,9 +64,50 @@ function NumberSetting(props: { id: string; label: string; value: number | null;
   );
 }
 
+/** One type's own limits, in its unit; an empty field falls back to the µV rules (µV types) or no check (MEG). */
+function TypeLimits(props: { type: ChannelType; unit: ChannelUnit; limits: { peakToPeak: number | null; flat: number | null } | undefined; onChange: (l: { peakToPeak: number | null; flat: number | null } | undefined) => void }) {
+  const { type, unit, limits } = props;
+  const [p2p, setP2p] = useState(limits?.peakToPeak?.toString() ?? '');
+  const [flat, setFlat] = useState(limits?.flat?.toString() ?? '');
+  const [error, setError] = useState<string | null>(null);
+  useEffect(() => {
+    setP2p(limits?.peakToPeak?.toString() ?? '');
+    setFlat(limits?.flat?.toString() ?? '');
+  }, [limits?.peakToPeak, limits?.flat]);
+  const commit = (p: string, f: string) => {
+    const parse = (t: string) => (t.trim() === '' ? null : Number(t));
+    const a = parse(p);
+    const b = parse(f);
+    if ((a !== null && !(a > 0)) || (b !== null && !(b >= 0))) return setError(`Enter a number of ${unit} (peak-to-peak above 0), or leave the field empty.`);
+    setError(null);
+    props.onChange(a === null && b === null ? undefined : { peakToPeak: a, flat: b });
+  };
+  const fallback = unit === 'µV' ? 'the µV rules above' : 'not checked';
+  return (
+    <tr data-testid="type-limits" data-type={type}>
+      <td className="pr-3">{type}</td>
+      <td className="pr-3">
+        <input aria-label={`Peak-to-peak limit for ${type} (${unit})`} inputMode="decimal" className="w-24" value={p2p} placeholder={fallback} onChange={(e) => setP2p(e.target.value)} onBlur={() => commit(p2p, flat)} onKeyDown={(e) => e.key === 'Enter' && commit(p2p, flat)} />
+      </td>
+      <td className="pr-3">
+        <input aria-label={`Flat limit for ${type} (${unit})`} inputMode="decimal" className="w-24" value={flat} placeholder={fallback} onChange={(e) => setFlat(e.target.value)} onBlur={() => commit(p2p, flat)} onKeyDown={(e) => e.key === 'Enter' && commit(p2p, flat)} />
+      </td>
+      <td className="font-mono">{unit}</td>
+      <td>{error && <span className="field-error">{error}</span>}</td>
+    </tr>
+  );
+}
+
 /** The rules (peak-to-peak, flat signal; all channels or chosen ones), the tally per condition and the table. */
-export default function RejectionPanel({ recording, rejection, decisions, overviewChannel, onRejection, onOverride, onSelect }: Props) {
+export default function RejectionPanel({ recording, rejection, conditioning, decisions, overviewChannel, onRejection, onOverride, onSelect }: Props) {
   const id = useId();
+  // The types the rules can meet: brain types (checked across channels) and the types of hand-picked channels.
+  const resolved = resolveChannels(recording, { types: conditioning.types });
+  const picked = new Set(rejection.scope === 'channel' ? rejection.channels ?? [] : []);
+  const present = new Map<ChannelType, ChannelUnit>();
+  recording.channelNames.forEach((n, c) => {
+    if (rejection.scope === 'channel' ? picked.has(n) : isBrainType(resolved.types[c])) present.set(resolved.types[c], resolved.units[c]);
+  });
   const tally = tallyByCondition(decisions.map((d) => ({ condition: d.condition, rejected: d.rejected, fit: d.fit ?? 'fits' })));
   const chosen = rejection.channels ?? [];
   return (
@@ -91,7 +134,7 @@ export default function RejectionPanel({ recording, rejection, decisions, overvi
         <legend className="font-semibold">Channels the rules check</legend>
         <label className="flex items-center gap-2">
           <input type="radio" name={`${id}-scope`} checked={rejection.scope === 'any'} onChange={() => onRejection({ scope: 'any' })} />
-          Across channels: any channel breaking a rule rejects the epoch
+          Across brain channels (EEG, MEG, intracranial): any one breaking a rule rejects the epoch
         </label>
         <label className="flex items-center gap-2">
           <input
@@ -119,6 +162,39 @@ export default function RejectionPanel({ recording, rejection, decisions, overvi
           </div>
         )}
       </fieldset>
+
+      {present.size > 0 && (
+        <div className="grid gap-1 text-sm">
+          <p className="font-semibold">Limits by channel type</p>
+          <p className="text-xs text-ink-soft">In each type&apos;s own unit; empty uses the µV rules above for µV channels and leaves MEG unchecked.</p>
+          <table>
+            <thead>
+              <tr className="text-left text-ink-soft">
+                <th className="pr-3 font-normal">Type</th>
+                <th className="pr-3 font-normal">Peak-to-peak above</th>
+                <th className="pr-3 font-normal">Flat below (SD)</th>
+                <th className="font-normal">Unit</th>
+              </tr>
+            </thead>
+            <tbody>
+              {[...present].map(([type, unit]) => (
+                <TypeLimits
+                  key={type}
+                  type={type}
+                  unit={unit}
+                  limits={rejection.byType?.[type]}
+                  onChange={(l) => {
+                    const byType = { ...(rejection.byType ?? {}) };
+                    if (l === undefined) delete byType[type];
+                    else byType[type] = l;
+                    onRejection({ byType });
+                  }}
+                />
+              ))}
+            </tbody>
+          </table>
+        </div>
+      )}
 
       <div className="overflow-x-auto">
         <table className="data-table" data-testid="condition-tally" aria-label="Epochs per condition">

@@ -21,7 +21,7 @@ export interface BandRow {
 }
 
 /** Every band × window × channel × condition mean of the trial-averaged normalized map (average scope). */
-function summarize(d: Decomposition, bands: Band[], windows: TimeWindow[], baseline: { start: number; end: number }, method: 'db' | 'percent' | 'zscore' | 'ratio'): BandRow[] {
+function summarize(d: Decomposition, bands: Band[], windows: TimeWindow[], baseline: { start: number; end: number }, method: 'decibel' | 'percent-change' | 'z-score' | 'power-ratio'): BandRow[] {
   const points = baselinePoints(d, baseline);
   const nt = d.times.length;
   const buf = new Float64Array(d.frequencies.length * nt);

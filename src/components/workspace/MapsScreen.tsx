@@ -1,9 +1,9 @@
 import { useEffect, useLayoutEffect, useMemo, useRef, useState } from 'react';
 import { flushSync } from 'react-dom';
 import type { WorkspaceProps } from './types';
-import type { BaselineMethod } from '../../lib/analysis/baseline';
+import type { BaselineMethod, BaselineSpread } from '../../lib/analysis/baseline';
 import { divergingColormap, sequentialColormap } from '../../lib/plot/colormap';
-import { extentLimits, methodUnit, neutralValue, symmetricLimits, type ColourScale } from '../../lib/plot/colour-scale';
+import { extentLimits, methodUnit, neutralValue, ratioLimits, symmetricLimits, type ColourScale } from '../../lib/plot/colour-scale';
 import type { PanelSpec } from '../../lib/plot/panel';
 import { explorerWorker } from '../../lib/client/explorer-worker';
 import { useResultsStore, selectActive, ensureTrials } from '../../stores/results';
@@ -20,10 +20,10 @@ import { downloadBlob, fileSafe } from '../explorer/download';
 if (import.meta.env.TIDEMARK_DEMO) void import('../explorer/test-hooks').then((m) => m.installTestHooks());
 
 const METHODS: { value: BaselineMethod; label: string }[] = [
-  { value: 'db', label: 'dB' },
-  { value: 'percent', label: 'percent' },
-  { value: 'zscore', label: 'z-score' },
-  { value: 'ratio', label: 'ratio' },
+  { value: 'decibel', label: 'dB' },
+  { value: 'percent-change', label: 'percent change' },
+  { value: 'z-score', label: 'z-score' },
+  { value: 'power-ratio', label: 'power ratio' },
 ];
 
 interface TrialMaps {
@@ -31,6 +31,7 @@ interface TrialMaps {
   first: number;
   last: number;
   method: BaselineMethod;
+  spread: BaselineSpread;
   maps: Float64Array[];
 }
 
@@ -50,7 +51,12 @@ export default function MapsScreen(_props: WorkspaceProps) {
   const baseline = useViewStore((s) => s.baseline);
   const method = useViewStore((s) => s.method);
   const scope = useViewStore((s) => s.scope);
+  const spread = useViewStore((s) => s.spread);
+  // Across-trials z-scores need every trial's baseline: they come from the held trials, like single-trial scope.
+  const spreadTrials = method === 'z-score' && spread === 'trials';
+  const useTrials = scope === 'trial' || spreadTrials;
   const rawScale = useViewStore((s) => s.rawScale);
+  const heldLimits = useViewStore((s) => s.heldLimits);
   const setView = useViewStore((s) => s.set);
   const setBaseline = useViewStore((s) => s.setBaseline);
   const [cursor, setCursor] = useState<Cell | null>(null);
@@ -77,29 +83,29 @@ export default function MapsScreen(_props: WorkspaceProps) {
 
   // Single-trial scope: the worker holds this channel's trials; ask it for the maps whenever the baseline moves.
   useEffect(() => {
-    if (d === null || ch === null || scope !== 'trial') return;
+    if (d === null || ch === null || !useTrials) return;
     // The whole recording: the decomposition's recipe carries the conditions and rejection the core applies.
     const recording = useSourceStore.getState().recording;
     if (recording !== null) void ensureTrials(d, ch, recording);
-  }, [d, ch, scope]);
-  const pending = useRef<{ busy: boolean; next: { key: string; first: number; last: number; method: BaselineMethod } | null }>({ busy: false, next: null });
+  }, [d, ch, useTrials]);
+  const pending = useRef<{ busy: boolean; next: { key: string; first: number; last: number; method: BaselineMethod; spread: BaselineSpread } | null }>({ busy: false, next: null });
   useEffect(() => {
-    if (scope !== 'trial' || holdKey === null || trialHold?.key !== holdKey || trialHold.status !== 'ready') return;
-    pending.current.next = { key: holdKey, first: points.first, last: points.last, method };
+    if (!useTrials || holdKey === null || trialHold?.key !== holdKey || trialHold.status !== 'ready') return;
+    pending.current.next = { key: holdKey, first: points.first, last: points.last, method, spread: spreadTrials ? 'trials' : 'time' };
     if (pending.current.busy) return;
     const pump = async () => {
       pending.current.busy = true;
       while (pending.current.next !== null) {
         const job = pending.current.next;
         pending.current.next = null;
-        const maps = await explorerWorker().renormalize(job.key, job.first, job.last, job.method);
+        const maps = await explorerWorker().renormalize(job.key, job.first, job.last, job.method, job.spread);
         // Paint in this task, not a later one: the measure runs from the input to the painted canvas.
         if (maps !== null) flushSync(() => setTrialMaps({ ...job, maps }));
       }
       pending.current.busy = false;
     };
     void pump();
-  }, [scope, holdKey, trialHold, points.first, points.last, method]);
+  }, [useTrials, spreadTrials, holdKey, trialHold, points.first, points.last, method]);
 
   const nf = d === null ? 0 : d.frequencies.length;
   const nt = d === null ? 0 : d.times.length;
@@ -108,11 +114,14 @@ export default function MapsScreen(_props: WorkspaceProps) {
     buffers.current = { a: new Float64Array(n), b: new Float64Array(n), diff: new Float64Array(n), rawDiff: new Float64Array(n) };
   }
 
+  const limitsKey = `${method}|${b >= 0 ? 'difference' : 'single'}|${rawScale}`;
   const rawSpec = useMemo((): PanelSpec | null => {
     if (d === null || buffers.current === null) return null;
     const pa = d.power[ci][a];
     const values = b >= 0 ? difference(new Float64Array(nf * nt), pa, d.power[ci][b]) : pa;
-    const scale: ColourScale = b >= 0 ? { domain: symmetricLimits(values, 0, d.mask), kind: 'linear' } : { domain: extentLimits(values, rawScale, d.mask), kind: rawScale };
+    const kind = b >= 0 ? 'linear' : rawScale;
+    const held = heldLimits !== null && heldLimits.key === limitsKey ? heldLimits.raw : null;
+    const scale: ColourScale = { domain: held ?? (b >= 0 ? symmetricLimits(values, 0, d.mask) : extentLimits(values, rawScale, d.mask)), kind };
     return {
       title: b >= 0 ? `Raw power ${d.labels[a]} − ${d.labels[b]} · ${ch}` : `Raw power · ${d.labels[a]} · ${ch}`,
       unit: 'µV²',
@@ -124,27 +133,30 @@ export default function MapsScreen(_props: WorkspaceProps) {
       colormap: b >= 0 ? divergingColormap() : sequentialColormap(),
       scale,
     };
-  }, [d, ci, a, b, rawScale, ch, nf, nt]);
+  }, [d, ci, a, b, rawScale, ch, nf, nt, heldLimits, limitsKey]);
 
   let normValues: Float64Array | null = null;
   let normFresh = true;
   if (d !== null && buffers.current !== null) {
     const buf = buffers.current;
-    if (scope === 'average') {
+    if (!useTrials) {
       const na = averageNormalized(buf.a, d.power[ci][a], nt, points, method);
       normValues = b >= 0 ? difference(buf.diff, na, averageNormalized(buf.b, d.power[ci][b], nt, points, method)) : na;
     } else if (trialMaps !== null && trialMaps.key === holdKey) {
-      normFresh = trialMaps.first === points.first && trialMaps.last === points.last && trialMaps.method === method;
+      normFresh = trialMaps.first === points.first && trialMaps.last === points.last && trialMaps.method === method && trialMaps.spread === (spreadTrials ? 'trials' : 'time');
       const na = trialMaps.maps[a];
       normValues = b >= 0 ? difference(buf.diff, na, trialMaps.maps[b]) : na;
     }
   }
   const neutral = b >= 0 ? 0 : neutralValue(method);
+  // A power ratio is drawn on a log scale centred on 1, so a halving looks as strong as a doubling.
+  const ratioScale = b < 0 && method === 'power-ratio';
+  const heldNorm = heldLimits !== null && heldLimits.key === limitsKey ? heldLimits.normalized : null;
   const normSpec: PanelSpec | null =
     d === null || normValues === null
       ? null
       : {
-          title: `${b >= 0 ? `${d.labels[a]} − ${d.labels[b]}` : d.labels[a]} · ${METHODS.find((m) => m.value === method)!.label} · ${scope === 'trial' ? 'single-trial' : 'trial-average'} · ${ch}`,
+          title: `${b >= 0 ? `${d.labels[a]} − ${d.labels[b]}` : d.labels[a]} · ${METHODS.find((m) => m.value === method)!.label} · ${scope === 'trial' ? 'single-trial' : 'trial-average'}${spreadTrials ? ' · S across trials' : ''} · ${ch}`,
           unit: methodUnit(method),
           values: normValues,
           times: d.times,
@@ -152,8 +164,13 @@ export default function MapsScreen(_props: WorkspaceProps) {
           spacing: d.spacing,
           edges: d.edges,
           colormap: divergingColormap(),
-          scale: { domain: symmetricLimits(normValues, neutral, d.mask), kind: 'linear' },
+          scale: { domain: heldNorm ?? (ratioScale ? ratioLimits(normValues, d.mask) : symmetricLimits(normValues, neutral, d.mask)), kind: ratioScale ? 'log' : 'linear' },
         };
+  const holdLimits = () => {
+    if (heldLimits !== null) return setView({ heldLimits: null });
+    if (rawSpec === null || normSpec === null) return;
+    setView({ heldLimits: { key: limitsKey, raw: [...rawSpec.scale.domain], normalized: [...normSpec.scale.domain] } });
+  };
 
   // Both panels have painted (children's layout effects run first): close the User Timing measure.
   useLayoutEffect(() => {
@@ -190,7 +207,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
   const exportRecipe = () => {
     // The run's recipe with the live baseline and fit range: everything `npm run analyze` needs to give these numbers.
     const { fitRange } = useViewStore.getState();
-    const recipe = { ...d.recipe, baseline: { start: baseline.start, end: baseline.end, method, scope }, aperiodic: { ...d.recipe.aperiodic, range: [fitRange[0], fitRange[1]] } };
+    const recipe = { ...d.recipe, baseline: { start: baseline.start, end: baseline.end, method, scope, ...(spreadTrials ? { spread: 'trials' } : {}) }, aperiodic: { ...d.recipe.aperiodic, range: [fitRange[0], fitRange[1]] } };
     downloadBlob(new Blob([JSON.stringify(recipe, null, 2) + '\n'], { type: 'application/json' }), 'recipe.json');
   };
 
@@ -229,7 +246,14 @@ export default function MapsScreen(_props: WorkspaceProps) {
           </select>
         </label>
         <Choice legend="Method" value={method} options={METHODS} onChange={(m) => setView({ method: m })} />
+        {method === 'z-score' && (
+          <Choice legend="z-score spread" value={spread} options={[{ value: 'time', label: 'over baseline time' }, { value: 'trials', label: 'across trials' }]} onChange={(s) => setView({ spread: s })} />
+        )}
         <Choice legend="Scope" value={scope} options={[{ value: 'average', label: 'trial average' }, { value: 'trial', label: 'single trial' }]} onChange={(s) => setView({ scope: s })} />
+        <label className="flex items-center gap-1 text-sm" title="Keep the colour limits fixed while you switch channels and conditions, so maps can be compared">
+          <input type="checkbox" checked={heldLimits !== null} onChange={holdLimits} data-testid="hold-limits" />
+          same colour limits for every map{heldLimits !== null && heldLimits.key !== limitsKey ? ' (taken for another method or view: not applied)' : ''}
+        </label>
         <Choice legend="Raw colour scale" value={rawScale} options={[{ value: 'log', label: 'log' }, { value: 'linear', label: 'linear' }]} onChange={(s) => setView({ rawScale: s })} />
         <NumberField label="Baseline start" unit="s" value={baseline.start} step={dt} testId="baseline-start" onValue={(v) => setBaseline({ start: snap(Math.min(v, baseline.end)), end: baseline.end })} />
         <NumberField label="Baseline end" unit="s" value={baseline.end} step={dt} testId="baseline-end" onValue={(v) => setBaseline({ start: baseline.start, end: snap(Math.max(v, baseline.start)) })} />
@@ -242,7 +266,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
           </button>
         </div>
       </div>
-      {scope === 'trial' && trialHold?.key === holdKey && trialHold.status !== 'ready' && (
+      {useTrials && trialHold?.key === holdKey && trialHold.status !== 'ready' && (
         <p className={trialHold.status === 'failed' ? 'text-coral-deep' : 'text-ink-soft'} role="status">
           {trialHold.message}
         </p>
@@ -285,7 +309,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
       )}
       <p className="text-xs text-ink-soft">
         Hatched: the edge zone, where the wavelet at that frequency overlaps the epoch's edge (3σ). Dashed line: the event at 0 s. Colour limits are
-        symmetric around the method's neutral value and leave edge-zone cells out.
+        symmetric around the method's neutral value (a power ratio on a log scale centred on 1) and leave edge-zone cells out.
       </p>
     </div>
   );

@@ -1,10 +1,13 @@
 import { useMemo, useRef, useState } from 'react';
+import ResolutionTable from './ResolutionTable';
+import { isBrainType } from '../../lib/analysis/channel-types';
+import { conditionRecording } from '../../lib/analysis/condition-recording';
 import type { WorkspaceProps } from './types';
 import { AnalysisInputError } from '../../lib/analysis/errors';
 import { planRecipe } from '../../lib/analysis/run-recipe';
 import { decompositionKey, toRecipe, useRecipeStore, type CyclesMode } from '../../stores/recipe';
 import { cancelDecomposition, recordingIdOf, runDecomposition, useResultsStore } from '../../stores/results';
-import { useSourceStore } from '../../stores/source';
+import { conditioningSpec, useSourceStore } from '../../stores/source';
 import { useViewStore } from '../../stores/view';
 import { applyRecipe } from '../../stores/apply-recipe';
 import NumberField from '../explorer/NumberField';
@@ -32,6 +35,8 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const epochWindow = useSourceStore((s) => s.epochWindow);
   const decisions = useSourceStore((s) => s.decisions);
   const rejection = useSourceStore((s) => s.rejection);
+  const conditioning = useSourceStore((s) => s.conditioning);
+  const eventSelection = useSourceStore((s) => s.eventSelection);
   const fitRange = useViewStore((s) => s.fitRange);
   const setView = useViewStore((s) => s.set);
   const fileInput = useRef<HTMLInputElement>(null);
@@ -40,6 +45,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const baseline = useViewStore((s) => s.baseline);
   const method = useViewStore((s) => s.method);
   const scope = useViewStore((s) => s.scope);
+  const spread = useViewStore((s) => s.spread);
   const viewChannel = useViewStore((s) => s.channel);
   const cache = useResultsStore((s) => s.cache);
   const activeKey = useResultsStore((s) => s.activeKey);
@@ -47,7 +53,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const visible = usePanelVisible('Recipe');
 
   const conditionNames = conditions.map((c) => c.name);
-  const recipe = toRecipe(draft, { conditions, tmin: epochWindow.tmin, tmax: epochWindow.tmax, rejection, fingerprint, reading }, { ...baseline, method, scope }, fitRange);
+  const recipe = toRecipe(draft, { conditions, epochStart: epochWindow.start, epochEnd: epochWindow.end, rejection, conditioning, eventSelection, fingerprint, reading }, { ...baseline, method, scope, spread }, fitRange);
   // The whole recording goes to the core with the full recipe: prepareRecording applies conditions and rejection there.
   const analysis = recording;
   const recordingId = recording === null ? null : recordingIdOf(recording, fingerprint);
@@ -86,6 +92,16 @@ export default function RecipeScreen(_props: WorkspaceProps) {
     { value: 'fwhm', label: 'FWHM (s)' },
   ];
   const allChannels = draft.channels.length === 0;
+  // The channels a recipe can name: the recording as conditioned (bad ones out, bipolar pairs in), brain ones first.
+  const conditioned = (() => {
+    try {
+      return conditionRecording(recording, conditioningSpec(conditioning)).recording;
+    } catch {
+      return null;
+    }
+  })();
+  const candidates = conditioned?.channelNames ?? recording.channelNames;
+  const brain = conditioned === null ? candidates : candidates.filter((_, c) => isBrainType(conditioned.channelTypes[c]));
   const fs = recording.sampleRateHz;
   const loadFile = async (file: File) => {
     let json: unknown;
@@ -157,12 +173,13 @@ export default function RecipeScreen(_props: WorkspaceProps) {
           </p>
         )}
       </fieldset>
+      <ResolutionTable frequencies={draft.frequencies} cycles={draft.cyclesMode === 'fixed' ? { fixed: draft.cyclesFixed } : draft.cyclesMode === 'fwhm' ? { fwhm: draft.fwhmSeconds } : { min: draft.cyclesMin, max: draft.cyclesMax }} />
       <fieldset className="card flex flex-col gap-2 p-3">
         <legend className="px-1 text-sm font-semibold">Epochs and conditions</legend>
         <div className="flex flex-wrap items-end gap-4">
           {/* The epoch window belongs to the Source screen (its rejection rules run on it); edited here through its store. */}
-          <NumberField label="Epoch from" unit="s" value={epochWindow.tmin} step={0.1} testId="recipe-tmin" error={errorFor('epochs.tmin')} onValue={(v) => useSourceStore.getState().setEpochWindow({ tmin: v, tmax: epochWindow.tmax })} />
-          <NumberField label="Epoch to" unit="s" value={epochWindow.tmax} step={0.1} testId="recipe-tmax" error={errorFor('epochs.tmax')} onValue={(v) => useSourceStore.getState().setEpochWindow({ tmin: epochWindow.tmin, tmax: v })} />
+          <NumberField label="Epoch from" unit="s" value={epochWindow.start} step={0.1} testId="recipe-epoch-start" error={errorFor('epochs.start')} onValue={(v) => useSourceStore.getState().setEpochWindow({ start: v, end: epochWindow.end })} />
+          <NumberField label="Epoch to" unit="s" value={epochWindow.end} step={0.1} testId="recipe-epoch-end" error={errorFor('epochs.end')} onValue={(v) => useSourceStore.getState().setEpochWindow({ start: epochWindow.start, end: v })} />
           <p className="text-sm text-ink-soft">around each event; only epochs kept on the Source screen are used.</p>
         </div>
         {settingsError !== null && (
@@ -200,12 +217,12 @@ export default function RecipeScreen(_props: WorkspaceProps) {
       <fieldset className="card flex flex-col gap-2 p-3">
         <legend className="px-1 text-sm font-semibold">Channels</legend>
         <label className="flex items-center gap-1 text-sm">
-          <input type="checkbox" checked={allChannels} onChange={() => setDraft({ channels: allChannels ? recording.channelNames.slice(0, 1) : [] })} data-testid="recipe-all-channels" />
-          all {recording.channelNames.length} channels
+          <input type="checkbox" checked={allChannels} onChange={() => setDraft({ channels: allChannels ? brain.slice(0, 1) : [] })} data-testid="recipe-all-channels" />
+          all {brain.length} brain channels (EEG, MEG, intracranial; types and bad channels on the Source screen)
         </label>
         <div className="flex flex-wrap gap-x-3 gap-y-1">
-          {recording.channelNames.map((name) => {
-            const on = allChannels || draft.channels.includes(name);
+          {candidates.map((name) => {
+            const on = allChannels ? brain.includes(name) : draft.channels.includes(name);
             return (
               <label key={name} className="flex items-center gap-1 font-mono text-sm">
                 <input
@@ -213,9 +230,9 @@ export default function RecipeScreen(_props: WorkspaceProps) {
                   checked={on}
                   data-testid={`recipe-channel-${name}`}
                   onChange={() => {
-                    const current = allChannels ? recording.channelNames : draft.channels;
-                    const next = on ? current.filter((n) => n !== name) : recording.channelNames.filter((n) => n === name || current.includes(n));
-                    setDraft({ channels: next.length === recording.channelNames.length ? [] : next });
+                    const current = allChannels ? brain : draft.channels;
+                    const next = on ? current.filter((n) => n !== name) : candidates.filter((n) => n === name || current.includes(n));
+                    setDraft({ channels: next.length === brain.length && next.every((n) => brain.includes(n)) ? [] : next });
                   }}
                 />
                 {name}
@@ -236,15 +253,15 @@ export default function RecipeScreen(_props: WorkspaceProps) {
         <NumberField label="Overlap" unit="fraction" value={draft.spectrum.overlap} step={0.05} error={errorFor('spectrum.overlap')} onValue={(v) => setDraft({ spectrum: { ...draft.spectrum, overlap: v } })} />
         <NumberField label="Fit from" unit="Hz" value={fitRange[0]} step={0.5} error={errorFor('aperiodic.range')} onValue={(v) => setView({ fitRange: [v, fitRange[1]] })} />
         <NumberField label="Fit to" unit="Hz" value={fitRange[1]} step={0.5} onValue={(v) => setView({ fitRange: [fitRange[0], v] })} />
-        <Choice legend="Spectrum from" value={draft.spectrum.source} options={[{ value: 'recording', label: 'whole recording' }, { value: 'epochs', label: 'kept epochs' }]} onChange={(src) => setDraft({ spectrum: { ...draft.spectrum, source: src } })} />
-        <Choice legend="Aperiodic model" value={draft.aperiodic.mode} options={[{ value: 'fixed', label: 'fixed' }, { value: 'knee', label: 'knee' }]} onChange={(m) => setDraft({ aperiodic: { ...draft.aperiodic, mode: m } })} />
+        <Choice legend="Spectrum from" value={draft.spectrum.source} options={[{ value: 'epochs', label: 'kept epochs' }, { value: 'recording', label: 'whole recording' }]} onChange={(src) => setDraft({ spectrum: { ...draft.spectrum, source: src } })} />
+        <Choice legend="Aperiodic model" value={draft.aperiodic.model} options={[{ value: 'power-law', label: 'power law' }, { value: 'power-law-knee', label: 'power law with knee' }]} onChange={(m) => setDraft({ aperiodic: { ...draft.aperiodic, model: m } })} />
       </fieldset>
       {errorFor('baseline') && (
         <p className="text-sm text-coral-deep" role="alert">
           baseline {errorFor('baseline')} (set it on the Maps screen)
         </p>
       )}
-      {check !== null && !['frequencies.min', 'frequencies.max', 'frequencies.count', 'cycles', 'conditions', 'channels', 'epochs.tmin', 'epochs.tmax', 'spectrum.segment', 'spectrum.overlap', 'aperiodic.range', 'baseline'].includes(check.field) && (
+      {check !== null && !['frequencies.min', 'frequencies.max', 'frequencies.count', 'cycles', 'conditions', 'channels', 'epochs.start', 'epochs.end', 'spectrum.segment', 'spectrum.overlap', 'aperiodic.range', 'baseline'].includes(check.field) && (
         <p className="text-sm text-coral-deep" role="alert">
           {check.message}
         </p>

@@ -1,6 +1,6 @@
 import { useCallback, useRef, useState } from 'react';
 import type { WorkspaceProps } from './types';
-import { useSourceStore } from '../../stores/source';
+import { conditionsPerLabel, useSourceStore } from '../../stores/source';
 import { openRecordingFile, type IntakePhase, type IntakeProblem, type RecordingKind } from '../../lib/client/intake';
 import { libraryFor, LibraryFullError, type LibraryEntry } from '../../lib/client/library';
 import { errorMessageOf, guardAgainst, send } from '../../lib/client/outbound';
@@ -8,7 +8,9 @@ import OpenPanel, { type CsvChoice } from '../source/OpenPanel';
 import DemoPicker, { type DemoSubject } from '../source/DemoPicker';
 import LibraryPanel from '../source/LibraryPanel';
 import LocalDetails from '../source/LocalDetails';
+import ChannelsPanel from '../source/ChannelsPanel';
 import ConditionsPanel from '../source/ConditionsPanel';
+import EventTablePanel from '../source/EventTablePanel';
 import OverviewTrace from '../source/OverviewTrace';
 import RejectionPanel from '../source/RejectionPanel';
 import SessionPanel from '../source/SessionPanel';
@@ -94,6 +96,8 @@ export default function SourceScreen(props: WorkspaceProps) {
   const conditions = useSourceStore((s) => s.conditions);
   const epochWindow = useSourceStore((s) => s.epochWindow);
   const rejection = useSourceStore((s) => s.rejection);
+  const conditioning = useSourceStore((s) => s.conditioning);
+  const eventSelection = useSourceStore((s) => s.eventSelection);
   const decisions = useSourceStore((s) => s.decisions);
   const settingsError = useSourceStore((s) => s.settingsError);
   const subjectCode = useSourceStore((s) => s.subjectCode);
@@ -113,7 +117,7 @@ export default function SourceScreen(props: WorkspaceProps) {
     setProblem({ fileName, error: { file: 'recording', message, problem: message, field: null, byteOffset: null, signal: null, row: null, column: null, dimension: null } });
 
   const open = useCallback(
-    async (blob: Blob, fileName: string, kind: RecordingKind, from: Origin, events: { blob: Blob; name: string } | null = null, demoCode?: string) => {
+    async (blob: Blob, fileName: string, kind: RecordingKind, from: Origin, events: { blob: Blob; name: string; pairing?: boolean } | null = null, demoCode?: string) => {
       setBusy({ fileName, phase: 'fingerprint', fraction: 0 });
       setLibraryNotice(null);
       setProblem(null);
@@ -121,9 +125,14 @@ export default function SourceScreen(props: WorkspaceProps) {
       // Progress arrives on its own message port, so a late report can follow the result: ignore it then.
       let finished = false;
       try {
-        const result = await openRecordingFile(blob, kind.kind === 'csv' ? { ...kind, events: events?.blob ?? null } : kind, (phase, fraction) => {
-          if (!finished) setBusy({ fileName, phase, fraction });
-        });
+        const result = await openRecordingFile(
+          blob,
+          kind.kind === 'csv' ? { ...kind, events: events?.blob ?? null } : kind,
+          (phase, fraction) => {
+            if (!finished) setBusy({ fileName, phase, fraction });
+          },
+          kind.kind === 'edf' ? (events?.blob ?? null) : null,
+        );
         finished = true;
         if (!result.ok) {
           setProblem({ fileName: result.error.file === 'events' && events ? events.name : fileName, error: result.error });
@@ -141,6 +150,12 @@ export default function SourceScreen(props: WorkspaceProps) {
         const reading = kind.kind === 'edf' ? readingOf(kind) : null;
         store().load({ recording: result.recording, local: { ...result.local, fileName, ...(reading ? { reading } : {}) }, fingerprint: result.fingerprint });
         if (demoCode && store().subjectCode.trim() === '') store().set({ subjectCode: demoCode });
+        if (events?.pairing) {
+          // Paired with the open EDF: the events file's labels become conditions beside the ones already chosen.
+          const claimed = new Set(store().conditions.flatMap((c) => c.labels));
+          const added = conditionsPerLabel(result.recording.events.filter((e) => !claimed.has(e.label)));
+          if (added.length > 0) store().setConditions([...store().conditions, ...added.filter((c) => !store().conditions.some((k) => k.name === c.name))]);
+        }
         setOrigin(from);
         setOverviewChannel(result.recording.channelNames[0] ?? '');
         setSelectedEvent(null);
@@ -152,6 +167,7 @@ export default function SourceScreen(props: WorkspaceProps) {
           kind: kind.kind,
           csv: kind.kind === 'csv' ? { sampleRateHz: kind.sampleRateHz, delimiter: kind.delimiter, eventsFileName: events?.name ?? null } : null,
           edf: reading,
+          ...(kind.kind === 'edf' ? { edfEventsFileName: events?.name ?? null } : {}),
         };
         try {
           await library.keep(entry, blob, events?.blob ?? null);
@@ -169,7 +185,15 @@ export default function SourceScreen(props: WorkspaceProps) {
     [],
   );
 
-  const openEdf = (file: File) => void open(file, file.name, { kind: 'edf' }, 'your file');
+  const openEdf = (file: File, events: File | null) => void open(file, file.name, { kind: 'edf' }, 'your file', events ? { blob: events, name: events.name } : null);
+  // An events file on its own pairs with the open EDF: the same file is read again with it.
+  const pairEvents = (file: File) => {
+    const a = lastAttempt.current;
+    if (a === null || a.kind.kind !== 'edf' || store().recording === null) {
+      return refuse(file.name, 'is an events file: open an EDF/EDF+ recording first (or drop both together), or choose it with a CSV/TSV matrix.');
+    }
+    void open(a.blob, a.fileName, a.kind, a.from, { blob: file, name: file.name, pairing: true }, a.demoCode);
+  };
   const openCsv = (file: File, c: CsvChoice) =>
     void open(file, file.name, { kind: 'csv', sampleRateHz: c.sampleRateHz, delimiter: c.delimiter, events: null }, 'your file', c.events ? { blob: c.events, name: c.events.name } : null);
 
@@ -193,7 +217,8 @@ export default function SourceScreen(props: WorkspaceProps) {
       entry.kind === 'csv' && entry.csv
         ? { kind: 'csv', sampleRateHz: entry.csv.sampleRateHz, delimiter: entry.csv.delimiter, events: null }
         : { kind: 'edf', ...(entry.edf ?? {}) };
-    const events = found.events && entry.csv?.eventsFileName ? { blob: found.events, name: entry.csv.eventsFileName } : null;
+    const eventsName = entry.csv?.eventsFileName ?? entry.edfEventsFileName ?? null;
+    const events = found.events && eventsName ? { blob: found.events, name: eventsName } : null;
     await open(found.blob, entry.fileName, kind, 'this browser’s library', events);
   };
 
@@ -215,7 +240,7 @@ export default function SourceScreen(props: WorkspaceProps) {
           <h2 id="source-open" className="text-lg font-semibold">
             Open a recording
           </h2>
-          <OpenPanel busy={busy !== null} onOpenEdf={openEdf} onOpenCsv={openCsv} onRefuse={(m) => refuse('That file', m)} />
+          <OpenPanel busy={busy !== null} onOpenEdf={openEdf} onOpenCsv={openCsv} onEvents={pairEvents} onRefuse={(m) => refuse('That file', m)} />
           <hr className="tide-rule" />
           {import.meta.env.TIDEMARK_DEMO && <DemoPicker busy={busy !== null} onPick={(s) => void openDemo(s)} />}
           {busy && (
@@ -248,10 +273,22 @@ export default function SourceScreen(props: WorkspaceProps) {
             </h2>
             <LocalDetails recording={recording} local={local} fingerprint={fingerprint} origin={origin} />
           </section>
+          <section className="card grid min-w-0 gap-3" aria-labelledby="source-channels" data-testid="channels-panel">
+            <h2 id="source-channels" className="text-lg font-semibold">
+              Channels, reference and filters
+            </h2>
+            <ChannelsPanel
+              recording={recording}
+              conditioning={conditioning}
+              onChange={(p) => store().setConditioning(p)}
+              problem={settingsError !== null && /^(signals|reference|filters)/.test(settingsError) ? settingsError : null}
+            />
+          </section>
           <section className="card grid min-w-0 gap-3" aria-labelledby="source-conditions">
             <h2 id="source-conditions" className="text-lg font-semibold">
               Events to conditions
             </h2>
+            {local.eventTable && <EventTablePanel key={`${fingerprint}|${local.eventTable.header.join('\t')}`} header={local.eventTable.header} selection={eventSelection} onApply={(s) => store().setEventSelection(s)} />}
             <ConditionsPanel
               key={fingerprint}
               recording={recording}
@@ -283,6 +320,7 @@ export default function SourceScreen(props: WorkspaceProps) {
               <RejectionPanel
                 recording={recording}
                 rejection={rejection}
+                conditioning={conditioning}
                 decisions={decisions}
                 overviewChannel={overviewChannel || recording.channelNames[0]}
                 onRejection={(p) => store().setRejection(p)}

@@ -1,4 +1,6 @@
 import * as Comlink from 'comlink';
+import { conditionRecording } from '../../lib/analysis/condition-recording';
+import { parseRecipe } from '../../lib/analysis/recipe';
 import { useEffect, useMemo, useRef, useState, type PointerEvent, type KeyboardEvent } from 'react';
 import Papa from 'papaparse';
 import type { WorkspaceProps } from './types';
@@ -12,7 +14,7 @@ import { useSourceStore } from '../../stores/source';
 import { useViewStore, type SpectrumAxes } from '../../stores/view';
 import CanvasPlot from '../explorer/CanvasPlot';
 import Choice from '../explorer/Choice';
-import FitTable, { type FitRow } from '../explorer/FitTable';
+import FitTable, { describePeaks, type FitRow } from '../explorer/FitTable';
 import NumberField from '../explorer/NumberField';
 import ScalpMap from '../explorer/ScalpMap';
 import { downloadBlob } from '../explorer/download';
@@ -40,7 +42,9 @@ function useChannelWork<T>(
     const recording = useSourceStore.getState().recording;
     if (recording === null) return;
     let live = true;
-    const samples = d.channels.map((c) => recording.data[recording.channelNames.indexOf(c)].slice());
+    // The recording as the run saw it: channel types, bad channels, reference and filters (cached in the core).
+    const conditioned = conditionRecording(recording, parseRecipe(d.recipe)).recording;
+    const samples = d.channels.map((c) => conditioned.data[conditioned.channelNames.indexOf(c)].slice());
     void compute(d, Comlink.transfer(samples, samples.map((x) => x.buffer))).then((out) => {
       cache.set(d.key, out);
       if (live) setValue(out);
@@ -91,7 +95,7 @@ function fitLine(fit: AperiodicFit, f: number): number {
   return fit.knee === null ? fit.offset - fit.exponent * Math.log10(f) : fit.offset - Math.log10(fit.knee + Math.pow(f, fit.exponent));
 }
 
-/** Welch spectra per trial and averaged, the aperiodic fit with its draggable range, the flattened spectrum. */
+/** Welch spectra per trial and averaged, the aperiodic fit with its draggable range, the spectrum above the fit. */
 export default function SpectrumScreen(_props: WorkspaceProps) {
   const d = useResultsStore(selectActive);
   const channel = useViewStore((s) => s.channel);
@@ -101,19 +105,19 @@ export default function SpectrumScreen(_props: WorkspaceProps) {
   const visible = usePanelVisible('Spectrum');
   const spectra = useEpochSpectra(d, visible);
   const recipeSpectra = useRecipeSpectra(d, visible);
-  const mode = d?.recipe.aperiodic.mode ?? 'fixed';
+  const model = d?.recipe.aperiodic.model ?? 'power-law';
 
-  // Fitted as analyzeChannel fits: the recipe's spectrum over all its bins, the live fit range, the recipe's mode.
+  // Fitted as analyzeChannel fits: the recipe's spectrum over all its bins, the live fit range, the recipe's model.
   const fits = useMemo((): Fit[] | null => {
     if (recipeSpectra === null) return null;
     return recipeSpectra.map((s) => {
       try {
-        return { fit: fitAperiodic(s.frequencies, s.psd, fitRange, mode), error: null };
+        return { fit: fitAperiodic(s.frequencies, s.psd, fitRange, model), error: null };
       } catch (error) {
         return { fit: null, error: error instanceof Error ? error.message : String(error) };
       }
     });
-  }, [recipeSpectra, fitRange, mode]);
+  }, [recipeSpectra, fitRange, model]);
 
   if (d === null) {
     return (
@@ -133,13 +137,25 @@ export default function SpectrumScreen(_props: WorkspaceProps) {
       ? []
       : d.channels.map((c, i) => {
           const f = fits[i].fit;
-          return { channel: c, exponent: f?.exponent ?? null, offset: f?.offset ?? null, knee: f?.knee ?? null, r2: f?.r2 ?? null, rmse: f?.rmse ?? null, points: f?.points ?? null, excluded: f?.excluded ?? null };
+          return {
+            channel: c,
+            exponent: f?.exponent ?? null,
+            offset: f?.offset ?? null,
+            knee: f?.knee ?? null,
+            kneeHz: f?.kneeHz ?? null,
+            r2: f?.r2 ?? null,
+            rmse: f?.rmse ?? null,
+            r2Kept: f?.r2Kept ?? null,
+            points: f?.points ?? null,
+            excluded: f?.excluded ?? null,
+            peaks: describePeaks(f?.peaks),
+          };
         });
 
   const exportFits = () => {
     const csv = Papa.unparse({
-      fields: ['channel', 'exponent', 'offset', 'knee', 'r2', 'rmse', 'points', 'excluded', 'fit_low_hz', 'fit_high_hz', 'mode', 'trials'],
-      data: rows.map((r) => [r.channel, r.exponent, r.offset, r.knee, r.r2, r.rmse, r.points, r.excluded, fitRange[0], fitRange[1], mode, sp?.trials ?? '']),
+      fields: ['channel', 'exponent', 'offset', 'knee', 'knee_hz', 'r2', 'rmse', 'r2_kept', 'points', 'excluded', 'peaks', 'fit_low_hz', 'fit_high_hz', 'model', 'trials'],
+      data: rows.map((r) => [r.channel, r.exponent, r.offset, r.knee, r.kneeHz, r.r2, r.rmse, r.r2Kept, r.points, r.excluded, r.peaks, fitRange[0], fitRange[1], model, sp?.trials ?? '']),
     });
     downloadBlob(new Blob([csv + '\n'], { type: 'text/csv' }), 'aperiodic-fits.csv');
   };
@@ -170,11 +186,15 @@ export default function SpectrumScreen(_props: WorkspaceProps) {
         <>
           <div className="card p-2">
             <SpectrumPlot spectra={sp} recipeSpectrum={rsp} source={source} fit={fit} axes={axes} fitRange={fitRange} onFitRange={(r) => setView({ fitRange: r })} channel={ch} />
-            <FitReadout fit={fit} mode={mode} />
+            <FitReadout fit={fit} model={model} />
           </div>
           <div className="grid grid-cols-1 gap-4 lg:grid-cols-[2fr_1fr]">
             <div className="card p-2">
               <FitTable rows={rows} selected={ch} onSelect={(c) => setView({ channel: c })} />
+              <p className="px-2 pt-1 text-xs text-ink-soft">
+                r² and RMSE over all bins of the fit range; "kept bins" leaves out the bins the robust fit set aside as peaks. Peaks: runs of
+                bins well above the line, centre by parabolic interpolation, height in log10 power above the line, width at half that height.
+              </p>
             </div>
             <div className="card p-2">
               <ScalpMap title="Aperiodic exponent" unit="χ" values={rows.map((r) => ({ channel: r.channel, value: r.exponent }))} testId="scalp-exponent" />
@@ -186,7 +206,7 @@ export default function SpectrumScreen(_props: WorkspaceProps) {
   );
 }
 
-function FitReadout({ fit, mode }: { fit: Fit | null; mode: string }) {
+function FitReadout({ fit, model }: { fit: Fit | null; model: string }) {
   if (fit === null) return null;
   if (fit.fit === null) return <p className="p-2 text-sm text-coral-deep">{fit.error}</p>;
   const f = fit.fit;
@@ -202,7 +222,7 @@ function FitReadout({ fit, mode }: { fit: Fit | null; mode: string }) {
       </div>
       <div>
         <dt className="inline text-ink-soft">knee </dt>
-        <dd className="inline">{f.knee === null ? `— (${mode})` : f.knee.toFixed(2)}</dd>
+        <dd className="inline">{f.knee === null ? `— (${model})` : f.knee.toFixed(2)}</dd>
       </div>
       <div>
         <dt className="inline text-ink-soft">r² </dt>
@@ -287,7 +307,7 @@ function SpectrumPlot({ spectra, recipeSpectrum, source, fit, axes, fitRange, on
     drawSeries(ctx, layout, x, y, series);
     drawLineAxes(ctx, layout, x, y, { xLog, yLog, xTitle: 'frequency (Hz)', yTitle: 'power (µV²/Hz)', title: `${channel}: ${trials} epochs (thin), ${source === 'epochs' ? 'kept epochs' : 'whole recording'} (thick), aperiodic fit (dashed)` });
   };
-  const drawFlat = (ctx: CanvasRenderingContext2D, layout: LineLayout) => {
+  const drawAboveLine = (ctx: CanvasRenderingContext2D, layout: LineLayout) => {
     const x = axisScale(xLog ? 'log' : 'linear', fLo, fHi, layout.left, layout.left + layout.plotWidth);
     let lo = Infinity;
     let hi = -Infinity;
@@ -298,7 +318,7 @@ function SpectrumPlot({ spectra, recipeSpectrum, source, fit, axes, fitRange, on
       { xs: [fLo, fHi], ys: [0, 0], colour: '#c9b896', width: 1, dash: [3, 3] },
       { xs: mf, ys: flat, colour: INK, width: 2 },
     ]);
-    drawLineAxes(ctx, layout, x, y, { xLog, yLog: false, xTitle: 'frequency (Hz)', yTitle: 'log10 P − fit', title: 'Flattened spectrum: the recipe spectrum minus the aperiodic fit' });
+    drawLineAxes(ctx, layout, x, y, { xLog, yLog: false, xTitle: 'frequency (Hz)', yTitle: 'log10 P − fit', title: 'Above the aperiodic line: log10 power minus the fit' });
   };
 
   const overlay = (layout: LineLayout) => {
@@ -356,7 +376,7 @@ function SpectrumPlot({ spectra, recipeSpectrum, source, fit, axes, fitRange, on
   return (
     <div className="flex flex-col gap-2">
       <CanvasPlot height={340} label={`Spectra of ${channel}`} testId="spectrum-plot" draw={draw} overlay={overlay} />
-      <CanvasPlot height={180} label={`Flattened spectrum of ${channel}`} testId="flattened-plot" draw={drawFlat} />
+      <CanvasPlot height={180} label={`Power above the aperiodic line, ${channel}`} testId="above-line-plot" draw={drawAboveLine} />
     </div>
   );
 }

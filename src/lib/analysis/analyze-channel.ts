@@ -1,5 +1,6 @@
-import { fitAperiodic, type AperiodicFit, type AperiodicMode } from './aperiodic';
-import type { BaselineMethod, BaselineScope } from './baseline';
+import { fitAperiodic, type AperiodicFit, type AperiodicModel } from './aperiodic';
+import type { BaselineMethod, BaselineScope, BaselineSpread } from './baseline';
+import type { ChannelType, ChannelUnit } from './channel-types';
 import { decomposeChannel, type DecomposeOptions } from './decompose';
 import { welchPsd } from './welch';
 
@@ -11,8 +12,11 @@ const EPS = 1e-9;
 export interface RecipePlan {
   sampleRateHz: number;
   channels: string[];
-  /** Index into `recording.data` of each planned channel. */
+  /** Index into the conditioned recording's `data` (see `planRun`) of each planned channel. */
   channelIndices: number[];
+  channelTypes: ChannelType[];
+  /** Unit of each channel's samples (power is in unit²). */
+  channelUnits: ChannelUnit[];
   labels: string[];
   epochStarts: Int32Array[];
   /** Per condition, epochs dropped (outside the recording or across a gap). */
@@ -20,14 +24,16 @@ export interface RecipePlan {
   /** Per condition, fitting epochs left out by rejection rules or by hand. */
   rejected: number[];
   epochSamples: number;
-  tminSeconds: number;
+  /** `epochs.start`, seconds from the event. */
+  epochStartSeconds: number;
   times: Float64Array;
   frequencies: Float64Array;
   sigmas: Float64Array;
   edgeSeconds: Float64Array;
-  baseline: { first: number; last: number; method: BaselineMethod; scope: BaselineScope };
-  spectrum: { segmentSamples: number; overlapSamples: number; range: [number, number]; spans: Int32Array };
-  aperiodic: { range: [number, number]; mode: AperiodicMode };
+  baseline: { first: number; last: number; method: BaselineMethod; scope: BaselineScope; spread: BaselineSpread };
+  /** `conditionSpans` (source `epochs` only): each condition's epoch spans, for one aperiodic fit per condition. */
+  spectrum: { segmentSamples: number; overlapSamples: number; range: [number, number]; spans: Int32Array; conditionSpans: Int32Array[] | null };
+  aperiodic: { range: [number, number]; model: AperiodicModel };
   warnings: string[];
 }
 
@@ -40,6 +46,8 @@ export interface ChannelAnalysis {
   psd: Float64Array;
   spectrumFrequencies: Float64Array;
   aperiodic: AperiodicFit;
+  /** With spectrum source `epochs`, the fit of each condition's own epochs, in plan label order; else null. */
+  aperiodicByCondition: AperiodicFit[] | null;
 }
 
 export interface ChannelOptions extends DecomposeOptions {
@@ -66,7 +74,15 @@ export function analyzeChannel(plan: RecipePlan, samples: Float32Array, options:
   );
   const sp = plan.spectrum;
   const welch = welchPsd(samples, plan.sampleRateHz, sp.segmentSamples, sp.overlapSamples, sp.spans);
-  const aperiodic = fitAperiodic(welch.frequencies, welch.psd, plan.aperiodic.range, plan.aperiodic.mode);
+  const aperiodic = fitAperiodic(welch.frequencies, welch.psd, plan.aperiodic.range, plan.aperiodic.model);
+  // One fit per condition, on Welch over that condition's kept epochs only (same segments, same range).
+  const aperiodicByCondition =
+    sp.conditionSpans === null
+      ? null
+      : sp.conditionSpans.map((spans) => {
+          const w = welchPsd(samples, plan.sampleRateHz, sp.segmentSamples, sp.overlapSamples, spans);
+          return fitAperiodic(w.frequencies, w.psd, plan.aperiodic.range, plan.aperiodic.model);
+        });
   let k0 = 0;
   while (k0 < welch.frequencies.length && welch.frequencies[k0] < sp.range[0] - EPS) k0++;
   let k1 = k0;
@@ -78,5 +94,6 @@ export function analyzeChannel(plan: RecipePlan, samples: Float32Array, options:
     psd: welch.psd.slice(k0, k1),
     spectrumFrequencies: welch.frequencies.slice(k0, k1),
     aperiodic,
+    aperiodicByCondition,
   };
 }

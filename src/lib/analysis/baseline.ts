@@ -1,8 +1,10 @@
 import { roundHalfUp } from './rounding';
 import { log10 } from './portable-math';
 
-export type BaselineMethod = 'db' | 'percent' | 'zscore' | 'ratio';
+export type BaselineMethod = 'decibel' | 'percent-change' | 'z-score' | 'power-ratio';
 export type BaselineScope = 'average' | 'trial';
+/** Where a z-score's S comes from: the baseline's time points (`time`, the contract's) or the trials (`trials`). */
+export type BaselineSpread = 'time' | 'trials';
 
 export interface BaselineIndices {
   first: number;
@@ -10,13 +12,13 @@ export interface BaselineIndices {
 }
 
 /**
- * Epoch grid indices of the baseline, `round((start − tmin)·fs)` to `round((end − tmin)·fs)` inclusive, halves up
+ * Epoch grid indices of the baseline, `round((start − epochs.start)·fs)` to `round((end − epochs.start)·fs)` inclusive, halves up
  * (analysis contract, "Baseline normalization"). Times in seconds, rate in Hz.
  */
-export function baselineIndices(startSeconds: number, endSeconds: number, tminSeconds: number, sampleRateHz: number): BaselineIndices {
+export function baselineIndices(startSeconds: number, endSeconds: number, epochStartSeconds: number, sampleRateHz: number): BaselineIndices {
   return {
-    first: roundHalfUp((startSeconds - tminSeconds) * sampleRateHz),
-    last: roundHalfUp((endSeconds - tminSeconds) * sampleRateHz),
+    first: roundHalfUp((startSeconds - epochStartSeconds) * sampleRateHz),
+    last: roundHalfUp((endSeconds - epochStartSeconds) * sampleRateHz),
   };
 }
 
@@ -42,18 +44,18 @@ export function baselineStats(row: ArrayLike<number>, offset: number, first: num
 }
 
 /**
- * One normalized value: db `10·log10(P/B)` (decibel, IEC 60027-3), percent `100·(P − B)/B`, zscore `(P − B)/S`,
- * ratio `P/B` (analysis contract table). Undefined cases (B = 0, S = 0) give ±Infinity or NaN, never a number.
+ * One normalized value: decibel `10·log10(P/B)` (IEC 60027-3), percent-change `100·(P − B)/B`, z-score
+ * `(P − B)/S`, power-ratio `P/B` (analysis contract table). Undefined cases (B = 0, S = 0) give ±Infinity or NaN, never a number.
  */
 export function normalizeValue(method: BaselineMethod, p: number, mean: number, sd: number): number {
   switch (method) {
-    case 'db':
+    case 'decibel':
       return 10 * log10(p / mean);
-    case 'percent':
+    case 'percent-change':
       return (100 * (p - mean)) / mean;
-    case 'zscore':
+    case 'z-score':
       return (p - mean) / sd;
-    case 'ratio':
+    case 'power-ratio':
       return p / mean;
   }
 }
@@ -100,4 +102,29 @@ export function normalizeTrials(trials: ArrayLike<number>[], nTimes: number, bas
   }
   for (let i = 0; i < size; i++) sum[i] /= trials.length;
   return sum;
+}
+
+/**
+ * z-score with the spread across trials (recipe `baseline.spread: "trials"`, DEVELOPERS.md): per frequency f,
+ * `B_k` is trial k's mean power over the baseline points, `B̄ = (1/K)·Σ_k B_k`, `S = √(Σ_k (B_k − B̄)²/(K − 1))`,
+ * and `z = (P̄ − B̄)/S` for the trial-averaged power P̄. The same for scope `average` and `trial`, since
+ * `(1/K)·Σ_k (P_k − B_k)/S = (P̄ − B̄)/S`. `trialBaselines[k·nFreqs + f]` holds B_k(f).
+ */
+export function zScoreAcrossTrials(power: Float64Array, nTimes: number, trialBaselines: Float64Array, trials: number): Float64Array {
+  const nf = power.length / nTimes;
+  const out = new Float64Array(power.length);
+  for (let f = 0; f < nf; f++) {
+    let mean = 0;
+    for (let k = 0; k < trials; k++) mean += trialBaselines[k * nf + f];
+    mean /= trials;
+    let ss = 0;
+    for (let k = 0; k < trials; k++) {
+      const d = trialBaselines[k * nf + f] - mean;
+      ss += d * d;
+    }
+    const sd = trials > 1 ? Math.sqrt(ss / (trials - 1)) : NaN;
+    const off = f * nTimes;
+    for (let j = 0; j < nTimes; j++) out[off + j] = (power[off + j] - mean) / sd;
+  }
+  return out;
 }

@@ -1,4 +1,4 @@
-import { baselineStats, normalizeAverage, type BaselineMethod, type BaselineScope } from './baseline';
+import { baselineStats, normalizeAverage, zScoreAcrossTrials, type BaselineMethod, type BaselineScope, type BaselineSpread } from './baseline';
 import { AnalysisCancelledError } from './errors';
 import { getFft } from './fft';
 import { getWaveletBank } from './wavelet';
@@ -20,7 +20,8 @@ export interface DecomposeJob {
   frequencies: Float64Array;
   /** Gaussian σ per frequency, seconds (see `gaussianSigmas`). */
   sigmas: Float64Array;
-  baseline: { first: number; last: number; method: BaselineMethod; scope: BaselineScope };
+  /** `spread` (z-score only): S over the baseline's time points (default) or across trials (`zScoreAcrossTrials`). */
+  baseline: { first: number; last: number; method: BaselineMethod; scope: BaselineScope; spread?: BaselineSpread };
   /** Keep every trial's power (only for the one channel the explorer shows trial by trial). */
   singleTrials?: boolean;
 }
@@ -40,12 +41,13 @@ export interface DecomposeOptions {
 }
 
 /**
- * Morlet wavelet power `|x ∗ w_f|²` (µV²) of every epoch of one channel, accumulated into trial averages and,
- * for scope `trial`, into averages of per-trial normalized power as each trial is produced (analysis contract,
- * "Complex Morlet wavelet power" and "Baseline normalization"). Per epoch: one real forward FFT; per frequency:
- * the inverse of `X·W_f` over the wavelet's band only, as `N_f/M_f` transforms of size `M_f` (see `WaveletBank`),
- * or, when no per-trial row is needed (scope `average`, no single trials), one transform of size 2M on a coarse
- * time grid whose sum over trials is interpolated exactly once per condition (see `averagePower`).
+ * Morlet wavelet power `|x ∗ w_f|²` (µV²) of every epoch of one channel, each epoch's own mean removed first,
+ * accumulated into trial averages and, for scope `trial`, into averages of per-trial normalized power as each
+ * trial is produced (analysis contract, "Epoch means", "Complex Morlet wavelet power" and "Baseline
+ * normalization"). Per epoch: one real forward FFT; per frequency: the inverse of `X·W_f` over the wavelet's band
+ * only, as `N_f/M_f` transforms of size `M_f` (see `WaveletBank`), or, when no per-trial row is needed (scope
+ * `average`, no single trials), one transform of size 2M on a coarse time grid whose sum over trials is
+ * interpolated exactly once per condition (see `averagePower`).
  * No trial × frequency × time array is kept (unless `singleTrials`): memory is bounded by frequencies × times per
  * condition. Sums run in Float64 in epoch order, so a channel gives the same bits wherever it runs.
  */
@@ -65,8 +67,10 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
   const work = new Float64Array(2 * maxBand);
   const out = new Float64Array(2 * maxBand);
   const row = new Float64Array(L);
-  const trialScope = baseline.scope === 'trial';
-  const keepRow = trialScope || job.singleTrials === true;
+  const spreadTrials = baseline.method === 'z-score' && baseline.spread === 'trials';
+  // Across-trials z-scores normalize the trial average once (zScoreAcrossTrials), whatever the scope.
+  const trialScope = baseline.scope === 'trial' && !spreadTrials;
+  const keepRow = trialScope || job.singleTrials === true || spreadTrials;
   // Outside trial scope, frequencies with a narrow band take the trial-average path (see averagePower). Keeping
   // single trials must not change that choice: the average then has other rounding, and the explorer's channel
   // would no longer match the command line bit for bit. Those rows go through bandPower into a scratch sum.
@@ -89,6 +93,8 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
     const sum = new Float64Array(nf * L);
     const normSum = trialScope ? new Float64Array(nf * L) : null;
     const single = singleTrials !== null ? new Float32Array(trials * nf * L) : null;
+    // B_k(f), each trial's baseline mean, for across-trials z-scores.
+    const trialBaselines = spreadTrials ? new Float64Array(trials * nf) : null;
     const decimated: (Float64Array | null)[] = [];
     for (let f = 0; f < nf; f++) decimated.push(averagePath && bank.averageBandSizes[f] > 0 ? new Float64Array(2 * bank.averageBandSizes[f]) : null);
     for (let e0 = 0; e0 < trials; e0 += EPOCH_BLOCK) {
@@ -96,7 +102,13 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
       const nb = Math.min(EPOCH_BLOCK, trials - e0);
       for (let b = 0; b < nb; b++) {
         const s0 = starts[e0 + b];
-        for (let j = 0; j < L; j++) epoch[j] = samples[s0 + j];
+        // Each epoch's own mean is removed before the transform (analysis contract, "Epoch means"): a Morlet
+        // wavelet without a correction term passes about 2·exp(−n²/2) of a steady offset. The sum runs in Float64
+        // in sample order, so the mean has the same bits in every engine.
+        let total = 0;
+        for (let j = 0; j < L; j++) total += samples[s0 + j];
+        const mean = total / L;
+        for (let j = 0; j < L; j++) epoch[j] = samples[s0 + j] - mean;
         forward.realTransform(spectra[b], epoch);
         forward.completeSpectrum(spectra[b]);
       }
@@ -106,10 +118,11 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
           const bins = bank.averageBins[f] as Int32Array;
           const weights = bank.averageWeights[f] as Float64Array;
           for (let b = 0; b < nb; b++) averagePower(acc, spectra[b], bins, weights, work, out);
-          if (single !== null) {
+          if (single !== null || trialBaselines !== null) {
             for (let b = 0; b < nb; b++) {
               bandPower(scratch, 0, row, L, spectra[b], bank.bins[f], bank.weights[f], bank.sizes[f] / bank.bandSizes[f], band, work, out);
-              single.set(row, ((e0 + b) * nf + f) * L);
+              if (single !== null) single.set(row, ((e0 + b) * nf + f) * L);
+              if (trialBaselines !== null) trialBaselines[(e0 + b) * nf + f] = baselineStats(row, 0, first, last).mean;
             }
           }
           continue;
@@ -122,6 +135,7 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
           bandPower(sum, off, keepRow ? row : null, L, spectra[b], bins, weights, residues, band, work, out);
           if (normSum !== null) accumulateNormalized(normSum, off, row, L, method, first, last);
           if (single !== null) single.set(row, ((e0 + b) * nf + f) * L);
+          if (trialBaselines !== null) trialBaselines[(e0 + b) * nf + f] = baselineStats(row, 0, first, last).mean;
         }
       }
       doneEpochs += nb;
@@ -136,7 +150,9 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
     }
     for (let i = 0; i < sum.length; i++) sum[i] /= trials;
     power.push(sum);
-    if (normSum !== null) {
+    if (trialBaselines !== null) {
+      normalized.push(zScoreAcrossTrials(sum, L, trialBaselines, trials));
+    } else if (normSum !== null) {
       for (let i = 0; i < normSum.length; i++) normSum[i] /= trials;
       normalized.push(normSum);
     } else {
@@ -268,19 +284,19 @@ function accumulateNormalized(
 ): void {
   const { mean, sd } = baselineStats(row, 0, first, last);
   switch (method) {
-    case 'db': {
+    case 'decibel': {
       for (let j = 0; j < length; j++) sum[off + j] += 10 * log10(row[j] / mean);
       break;
     }
-    case 'percent': {
+    case 'percent-change': {
       for (let j = 0; j < length; j++) sum[off + j] += (100 * (row[j] - mean)) / mean;
       break;
     }
-    case 'zscore': {
+    case 'z-score': {
       for (let j = 0; j < length; j++) sum[off + j] += (row[j] - mean) / sd;
       break;
     }
-    case 'ratio': {
+    case 'power-ratio': {
       for (let j = 0; j < length; j++) sum[off + j] += row[j] / mean;
       break;
     }

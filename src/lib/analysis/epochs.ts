@@ -1,16 +1,16 @@
 import type { RecordingEvent } from './recording';
 import { roundHalfUp } from './rounding';
 
-/** Number of points on the epoch time grid, `round((tmax − tmin)·fs) + 1` (analysis contract, "Units and grids"). */
-export function epochLength(tminSeconds: number, tmaxSeconds: number, sampleRateHz: number): number {
-  return roundHalfUp((tmaxSeconds - tminSeconds) * sampleRateHz) + 1;
+/** Number of points on the epoch time grid, `round((end − start)·fs) + 1` (analysis contract, "Units and grids"). */
+export function epochLength(epochStartSeconds: number, epochEndSeconds: number, sampleRateHz: number): number {
+  return roundHalfUp((epochEndSeconds - epochStartSeconds) * sampleRateHz) + 1;
 }
 
-/** Epoch time grid `t_j = tmin + j/fs` in seconds, `j = 0 … round((tmax − tmin)·fs)`. */
-export function epochTimes(tminSeconds: number, tmaxSeconds: number, sampleRateHz: number): Float64Array {
-  const n = epochLength(tminSeconds, tmaxSeconds, sampleRateHz);
+/** Epoch time grid `t_j = start + j/fs` in seconds, `j = 0 … round((end − start)·fs)`. */
+export function epochTimes(epochStartSeconds: number, epochEndSeconds: number, sampleRateHz: number): Float64Array {
+  const n = epochLength(epochStartSeconds, epochEndSeconds, sampleRateHz);
   const out = new Float64Array(n);
-  for (let j = 0; j < n; j++) out[j] = tminSeconds + j / sampleRateHz;
+  for (let j = 0; j < n; j++) out[j] = epochStartSeconds + j / sampleRateHz;
   return out;
 }
 
@@ -27,14 +27,14 @@ export interface EpochSelection {
 
 /**
  * Epochs around every event labelled `label`: the epoch of an event at onset `o` s starts at sample
- * `round(o·fs) + round(tmin·fs)` and holds `epochSamples` samples (analysis contract). Epochs that do not fit in
+ * `round(o·fs) + round(start·fs)` and holds `epochSamples` samples (analysis contract). Epochs that do not fit in
  * `[0, totalSamples)` or that contain the start of a new continuous block (`gapSampleIndices`) are dropped and
  * counted, never padded.
  */
 export function selectEpochs(
   events: readonly RecordingEvent[],
   label: string,
-  tminSeconds: number,
+  epochStartSeconds: number,
   epochSamples: number,
   sampleRateHz: number,
   totalSamples: number,
@@ -44,7 +44,7 @@ export function selectEpochs(
   let droppedOutside = 0;
   let droppedGap = 0;
   let matched = 0;
-  const offset = roundHalfUp(tminSeconds * sampleRateHz);
+  const offset = roundHalfUp(epochStartSeconds * sampleRateHz);
   for (const event of events) {
     if (event.label !== label) continue;
     matched++;

@@ -1,3 +1,4 @@
+import { isBrainType, resolveChannels, type ChannelType } from './channel-types';
 import { assignConditions, type ConditionSpec } from './conditions';
 import { AnalysisInputError } from './errors';
 import { eventKey, parseEventKey } from './event-key';
@@ -7,15 +8,17 @@ import { applyOverride, checkEpochs, tallyByCondition, type EpochFit } from './r
 /** The part of a recipe that decides which epochs are analysed (recipe fields `epochs`, `conditions`, `rejection`). */
 export interface PrepareSpec {
   /** `events` may name conditions or plain labels; a plain label not claimed by a condition is its own condition. */
-  epochs: { events?: readonly string[]; tmin: number; tmax: number };
+  epochs: { events?: readonly string[]; start: number; end: number };
   /** Condition name → event labels, in the order the conditions are listed. */
   conditions?: Readonly<Record<string, readonly string[]>>;
   rejection?: {
     peakToPeakMicrovolts: number | null;
     flatMicrovolts: number | null;
-    /** 'any': every data channel is checked; 'channel': only `channels`. */
+    /** 'any': every brain channel is checked (EEG, MEG, intracranial); 'channel': only `channels`, of any type. */
     scope: 'any' | 'channel';
     channels?: readonly string[];
+    /** Per channel type, limits in that type's unit replacing the two µV limits (µV types) or adding some (MEG). */
+    byType?: Readonly<Partial<Record<ChannelType, { peakToPeak: number | null; flat: number | null }>>>;
     /** Manual decisions by event key (event-key.ts); they win over the rules for epochs that fit the recording. */
     overrides?: Readonly<Record<string, 'keep' | 'reject'>>;
   };
@@ -116,7 +119,7 @@ function requireOverrides(events: readonly RecordingEvent[], overrides: Readonly
 
 /**
  * Applies a recipe's conditions and epoch rejection to a recording: every event whose label belongs to a condition
- * gets an epoch `[round(o·fs) + round(tmin·fs), … + round((tmax − tmin)·fs)]` (analysis contract); an epoch that does
+ * gets an epoch `[round(o·fs) + round(start·fs), … + round((end − start)·fs)]` (analysis contract); an epoch that does
  * not fit the recording is dropped; a fitting epoch is rejected by the peak-to-peak and flat rules of `checkEpochs`,
  * and a manual override then wins. The result holds the kept epochs' events relabelled to their condition names,
  * so `planRecipe` epochs by condition. This one function serves the Source screen, the browser runs and the CLI.
@@ -134,19 +137,32 @@ export function prepareRecording(recording: Recording, spec: PrepareSpec): Prepa
     throw renamed(error, conditions, declared);
   }
   const rejection = spec.rejection ?? { peakToPeakMicrovolts: null, flatMicrovolts: null, scope: 'any' as const };
-  let channelIndices: number[] | null = null;
+  const { types, units } = resolveChannels(recording, undefined);
+  let channelIndices: number[];
   if (rejection.scope === 'channel') {
     channelIndices = (rejection.channels ?? []).map((name, i) => {
       const c = recording.channelNames.indexOf(name);
       if (c < 0) throw new AnalysisInputError(`rejection.channels[${i}]`, `names no signal in the recording ("${name}")`);
       return c;
     });
+  } else {
+    // Eye, heart and muscle channels would reject nearly every epoch by the scalp rule: only brain channels count.
+    channelIndices = types.flatMap((t, c) => (isBrainType(t) ? [c] : []));
   }
+  // Limits per checked channel: its type's own (rejection.byType, in the channel's unit), else the µV rules for a
+  // µV channel; an MEG channel without limits of its type is not checked (a µV number means nothing in fT).
+  const byType = rejection.byType ?? {};
+  const limits = channelIndices.map((c) => {
+    const own = byType[types[c]];
+    if (own !== undefined) return own;
+    return units[c] === 'µV' ? { peakToPeak: rejection.peakToPeakMicrovolts, flat: rejection.flatMicrovolts } : { peakToPeak: null, flat: null };
+  });
   const overrides = requireOverrides(recording.events, rejection.overrides ?? {});
   const checks = checkEpochs(recording, assignments, spec.epochs, {
     peakToPeakMicrovolts: rejection.peakToPeakMicrovolts,
     flatMicrovolts: rejection.flatMicrovolts,
     channelIndices,
+    limits,
   });
   const decisions = checks.map((c): EpochDecision => {
     const verdict = applyOverride(c, overrides.get(c.eventIndex));

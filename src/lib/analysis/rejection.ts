@@ -11,6 +11,11 @@ export interface RejectionRule {
   flatMicrovolts: number | null;
   /** Channels (indices into recording.data) the rules look at; all channels when null. */
   channelIndices: readonly number[] | null;
+  /**
+   * Per checked channel (in `channelIndices` order), limits in that channel's own unit (µV, fT, fT/cm) that replace
+   * the two µV limits above: the recipe's per-type thresholds (`rejection.byType`).
+   */
+  limits?: readonly { peakToPeak: number | null; flat: number | null }[];
 }
 
 export type EpochFit = 'fits' | 'outside' | 'gap';
@@ -19,7 +24,7 @@ export interface EpochCheck {
   eventIndex: number;
   condition: string;
   onsetSeconds: number;
-  /** First sample of the epoch: round(onset·fs) + round(tmin·fs) (analysis contract). */
+  /** First sample of the epoch: round(onset·fs) + round(start·fs) (analysis contract). */
   startSample: number;
   fit: EpochFit;
   /** True when a rule rejects the epoch or it does not fit (outside the recording, or across a gap). */
@@ -68,8 +73,8 @@ export function standardDeviation(x: Float32Array, start: number, end: number): 
 const format = (uv: number) => (uv >= 100 ? uv.toFixed(0) : uv.toFixed(uv >= 10 ? 1 : 2));
 
 /**
- * Checks the epoch of every assigned event. The epoch of an event at onset `o` s holds `round((tmax − tmin)·fs) + 1`
- * samples from `round(o·fs) + round(tmin·fs)` (the same rule as `selectEpochs`). An epoch that runs past either end
+ * Checks the epoch of every assigned event. The epoch of an event at onset `o` s holds `round((end − start)·fs) + 1`
+ * samples from `round(o·fs) + round(start·fs)` (the same rule as `selectEpochs`). An epoch that runs past either end
  * of the recording, or that contains the start of a new continuous block (`gapSampleIndices`, EDF+D), does not fit
  * and is rejected. A fitting epoch is rejected when any checked channel's peak-to-peak amplitude exceeds
  * `peakToPeakMicrovolts` (a 150 µV threshold is a common rule of thumb for scalp EEG) or its standard deviation is
@@ -78,11 +83,11 @@ const format = (uv: number) => (uv >= 100 ? uv.toFixed(0) : uv.toFixed(uv >= 10 
 export function checkEpochs(
   recording: Recording,
   assignments: readonly EpochAssignment[],
-  window: { tmin: number; tmax: number },
+  window: { start: number; end: number },
   rule: RejectionRule,
 ): EpochCheck[] {
   const fs = recording.sampleRateHz;
-  if (!(window.tmax > window.tmin)) throw new AnalysisInputError('epochWindow.tmax', `(${window.tmax} s) must be after tmin (${window.tmin} s)`);
+  if (!(window.end > window.start)) throw new AnalysisInputError('epochs.end', `(${window.end} s) must be after epochs.start (${window.start} s)`);
   if (rule.peakToPeakMicrovolts !== null && !(rule.peakToPeakMicrovolts > 0)) {
     throw new AnalysisInputError('rejection.peakToPeakMicrovolts', 'must be a positive number of µV');
   }
@@ -96,11 +101,11 @@ export function checkEpochs(
     }
   }
   const total = recording.data.length > 0 ? recording.data[0].length : 0;
-  const length = epochLength(window.tmin, window.tmax, fs);
-  const offset = roundHalfUp(window.tmin * fs);
+  const length = epochLength(window.start, window.end, fs);
+  const offset = roundHalfUp(window.start * fs);
   const gaps = recording.gapSampleIndices ?? [];
-  const p2pLimit = rule.peakToPeakMicrovolts;
-  const flatLimit = rule.flatMicrovolts;
+  const limits = rule.limits ?? channels.map(() => ({ peakToPeak: rule.peakToPeakMicrovolts, flat: rule.flatMicrovolts }));
+  if (limits.length !== channels.length) throw new AnalysisInputError('rejection', `has ${limits.length} limits for ${channels.length} checked channels`);
 
   const out: EpochCheck[] = [];
   for (const a of assignments) {
@@ -134,9 +139,13 @@ export function checkEpochs(
     }
     let worstP2p = -1;
     let worstStd = Infinity;
-    for (const c of channels) {
+    for (let k = 0; k < channels.length; k++) {
+      const c = channels[k];
       const x = recording.data[c];
       const name = recording.channelNames[c];
+      const unit = recording.channelUnits?.[c] ?? 'µV';
+      const p2pLimit = limits[k].peakToPeak;
+      const flatLimit = limits[k].flat;
       const p2p = peakToPeak(x, start, end);
       const sd = standardDeviation(x, start, end);
       if (p2p > worstP2p) {
@@ -147,8 +156,8 @@ export function checkEpochs(
         worstStd = sd;
         check.minStdChannel = name;
       }
-      if (p2pLimit !== null && p2p > p2pLimit) check.reasons.push(`peak-to-peak ${format(p2p)} µV on ${name}`);
-      if (flatLimit !== null && sd < flatLimit) check.reasons.push(`flat on ${name} (SD ${sd.toFixed(2)} µV)`);
+      if (p2pLimit !== null && p2p > p2pLimit) check.reasons.push(`peak-to-peak ${format(p2p)} ${unit} on ${name}`);
+      if (flatLimit !== null && sd < flatLimit) check.reasons.push(`flat on ${name} (SD ${sd.toFixed(2)} ${unit})`);
     }
     check.peakToPeakMicrovolts = channels.length > 0 ? worstP2p : null;
     check.minStdMicrovolts = channels.length > 0 ? worstStd : null;

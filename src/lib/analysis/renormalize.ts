@@ -1,13 +1,13 @@
 // Live re-normalization for the explorer: the same definitions as baseline.ts (analysis contract, "Baseline
 // normalization"), arranged so a moved baseline costs F×T work (average scope) or one weighted pass over the
 // stored trials (trial scope), with caller-owned output buffers.
-import { baselineStats, type BaselineMethod } from './baseline';
+import { baselineStats, zScoreAcrossTrials, type BaselineMethod, type BaselineSpread } from './baseline';
 import { log10 } from './portable-math';
 
 /**
  * Scope `average` into `out[f·nTimes + t]`: each row of trial-averaged power P (µV²) against its own baseline
- * mean B and sample SD S over grid points first … last: db 10·log10(P/B), percent 100·(P − B)/B, zscore (P − B)/S,
- * ratio P/B. Same values as `normalizeAverage`, without allocating.
+ * mean B and sample SD S over grid points first … last: decibel 10·log10(P/B), percent-change 100·(P − B)/B,
+ * z-score (P − B)/S, power-ratio P/B. Same values as `normalizeAverage`, without allocating.
  */
 export function renormalizeAverage(
   out: Float64Array,
@@ -21,21 +21,21 @@ export function renormalizeAverage(
   for (let off = 0; off < n; off += nTimes) {
     const { mean, sd } = baselineStats(power, off, first, last);
     switch (method) {
-      case 'db': {
+      case 'decibel': {
         const c = 10 * log10(mean);
         for (let j = 0; j < nTimes; j++) out[off + j] = 10 * log10(power[off + j]) - c;
         break;
       }
-      case 'percent': {
+      case 'percent-change': {
         const k = 100 / mean;
         for (let j = 0; j < nTimes; j++) out[off + j] = k * (power[off + j] - mean);
         break;
       }
-      case 'zscore': {
+      case 'z-score': {
         for (let j = 0; j < nTimes; j++) out[off + j] = (power[off + j] - mean) / sd;
         break;
       }
-      case 'ratio': {
+      case 'power-ratio': {
         for (let j = 0; j < nTimes; j++) out[off + j] = power[off + j] / mean;
         break;
       }
@@ -68,14 +68,24 @@ export function prepareTrialPower(trials: Float32Array, count: number, nFreqs: n
 /**
  * Scope `trial` into `out[f·nTimes + t]`: the mean over K trials of each trial normalized by its own B_k(f) and
  * S_k(f). Rearranged so the time loop is one multiply-add per trial:
- * db (1/K)·Σ 10·log10(P_k/B_k) = 10·mean log10 P − (10/K)·Σ log10 B_k;
- * ratio (1/K)·Σ P_k/B_k; percent 100·((1/K)·Σ P_k/B_k − 1); zscore (1/K)·Σ P_k/S_k − (1/K)·Σ B_k/S_k.
+ * decibel (1/K)·Σ 10·log10(P_k/B_k) = 10·mean log10 P − (10/K)·Σ log10 B_k;
+ * power-ratio (1/K)·Σ P_k/B_k; percent-change 100·((1/K)·Σ P_k/B_k − 1); z-score (1/K)·Σ P_k/S_k − (1/K)·Σ B_k/S_k.
  * Equal to `normalizeTrials` up to rounding.
  */
-export function renormalizeTrials(out: Float64Array, tp: TrialPower, first: number, last: number, method: BaselineMethod): void {
+export function renormalizeTrials(out: Float64Array, tp: TrialPower, first: number, last: number, method: BaselineMethod, spread: BaselineSpread = 'time'): void {
   const { trials, count: K, nFreqs: nf, nTimes: nt, meanLog10 } = tp;
   const size = nf * nt;
-  if (method === 'db') {
+  if (method === 'z-score' && spread === 'trials') {
+    // (P̄ − B̄)/S with S the SD across trials of each trial's baseline mean (zScoreAcrossTrials, from held trials).
+    const mean = new Float64Array(size);
+    for (let k = 0; k < K; k++) for (let i = 0; i < size; i++) mean[i] += trials[k * size + i];
+    for (let i = 0; i < size; i++) mean[i] /= K;
+    const bk = new Float64Array(K * nf);
+    for (let k = 0; k < K; k++) for (let f = 0; f < nf; f++) bk[k * nf + f] = baselineStats(trials, (k * nf + f) * nt, first, last).mean;
+    out.set(zScoreAcrossTrials(mean, nt, bk, K));
+    return;
+  }
+  if (method === 'decibel') {
     for (let f = 0; f < nf; f++) {
       let logB = 0;
       for (let k = 0; k < K; k++) {
@@ -93,7 +103,7 @@ export function renormalizeTrials(out: Float64Array, tp: TrialPower, first: numb
   }
   // Frequency outer, trial inner: one output row (nTimes doubles) stays in L1 cache while the trials stream past.
   out.fill(0, 0, size);
-  const zscore = method === 'zscore';
+  const zscore = method === 'z-score';
   const weights = new Float64Array(K);
   for (let f = 0; f < nf; f++) {
     const o = f * nt;
@@ -125,7 +135,7 @@ export function renormalizeTrials(out: Float64Array, tp: TrialPower, first: numb
       const wa = weights[k];
       for (let j = 0; j < nt; j++) out[o + j] += wa * trials[a + j];
     }
-    if (method === 'percent') {
+    if (method === 'percent-change') {
       for (let j = 0; j < nt; j++) out[o + j] = 100 * (out[o + j] - 1);
     } else if (zscore) {
       for (let j = 0; j < nt; j++) out[o + j] += constant;

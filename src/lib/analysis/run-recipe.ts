@@ -5,11 +5,13 @@ import { epochLength, epochTimes, selectEpochs } from './epochs';
 import { AnalysisCancelledError, AnalysisInputError } from './errors';
 
 import { frequencyGrid } from './frequency-grid';
+import { brainChannels, conditionRecording } from './condition-recording';
 import { prepareRecording } from './prepare-recording';
 import { parseRecipe, type Recipe } from './recipe';
 import type { Recording } from './recording';
 import { roundHalfUp } from './rounding';
-import { cyclesOf, edgeSecondsOf, gaussianSigmas } from './wavelet';
+import { cyclesOf, edgeSecondsOf, gaussianSigmas, resolutionOf } from './wavelet';
+import { isBrainType, shortList, type ChannelType, type ChannelUnit } from './channel-types';
 
 export { analyzeChannel, type ChannelAnalysis, type ChannelOptions, type RecipePlan } from './analyze-channel';
 
@@ -29,16 +31,26 @@ export interface ResultAperiodic extends AperiodicFit {
   channel: string;
 }
 
-/** The Result JSON of the analysis contract ("Result (output)"), plus `cycles`, `dropped`, `rejected`, `points`, `excluded`. */
+/**
+ * The Result JSON of the analysis contract ("Result (output)"), plus `cycles`, `dropped`, `rejected`, `points`,
+ * `excluded`, each frequency's resolution (`temporalFwhmSeconds`, `spectralFwhmHz`), and each channel's type and unit (`channelTypes`, `channelUnits`: power is in unit², e.g. fT²).
+ */
 export interface AnalysisResult {
   frequencies: number[];
   cycles: number[];
   edgeSeconds: number[];
+  /** Per frequency, the wavelet's temporal FWHM (s) and spectral FWHM (Hz) (`resolutionOf`). */
+  temporalFwhmSeconds: number[];
+  spectralFwhmHz: number[];
   times: number[];
   channels: string[];
+  channelTypes: ChannelType[];
+  channelUnits: ChannelUnit[];
   conditions: Record<string, ResultCondition>;
   spectrum: { frequencies: number[]; psd: number[][] };
   aperiodic: ResultAperiodic[];
+  /** With spectrum source `epochs`: per condition, each channel's fit on that condition's kept epochs alone. */
+  aperiodicByCondition?: Record<string, ResultAperiodic[]>;
   warnings: string[];
 }
 
@@ -53,30 +65,47 @@ function fmt(x: number): string {
  * grids, wavelet widths, epoch starts, baseline indices, Welch spans. Throws AnalysisInputError naming the field.
  */
 export function planRecipe(recording: Recording, recipeInput: unknown): RecipePlan {
+  return planRun(recording, recipeInput).plan;
+}
+
+/**
+ * `planRecipe` plus the recording the plan's channel indices point into: the input conditioned as the recipe asks
+ * (channel types, bad channels left out; `conditionRecording`). Runs take each channel's samples from there.
+ */
+export function planRun(input: Recording, recipeInput: unknown): { plan: RecipePlan; recording: Recording } {
   const recipe: Recipe = parseRecipe(recipeInput);
-  const fs = recording.sampleRateHz;
+  const fs = input.sampleRateHz;
   if (!(fs > 0) || !Number.isFinite(fs)) throw new AnalysisInputError('recording.sampleRateHz', `must be a positive number of Hz (got ${fs})`);
-  const total = recording.data.length > 0 ? recording.data[0].length : 0;
-  recording.data.forEach((d, i) => {
+  const total = input.data.length > 0 ? input.data[0].length : 0;
+  input.data.forEach((d, i) => {
     if (d.length !== total) throw new AnalysisInputError(`recording.data[${i}]`, `has ${d.length} samples where channel 0 has ${total}`);
   });
+  const bad = new Set(recipe.signals?.bad ?? []);
+  recipe.channels?.forEach((name, i) => {
+    if (bad.has(name)) throw new AnalysisInputError(`channels[${i}]`, `"${name}" is marked bad (signals.bad); a bad channel is left out everywhere`);
+  });
+  recipe.rejection?.channels?.forEach((name, i) => {
+    if (bad.has(name)) throw new AnalysisInputError(`rejection.channels[${i}]`, `"${name}" is marked bad (signals.bad); a bad channel is left out everywhere`);
+  });
+  const conditioned = conditionRecording(input, recipe);
+  const recording = conditioned.recording;
   const nyquist = fs / 2;
   const warnings: string[] = [];
 
-  const { tmin, tmax } = recipe.epochs;
-  if (!(tmin < tmax)) throw new AnalysisInputError('epochs.tmin', `must be less than epochs.tmax (${tmin} s ≥ ${tmax} s)`);
-  const L = epochLength(tmin, tmax, fs);
-  if (L < 2) throw new AnalysisInputError('epochs.tmax', `leaves fewer than 2 samples per epoch at ${fs} Hz`);
+  const { start: epochStart, end: epochEnd } = recipe.epochs;
+  if (!(epochStart < epochEnd)) throw new AnalysisInputError('epochs.start', `must be less than epochs.end (${epochStart} s ≥ ${epochEnd} s)`);
+  const L = epochLength(epochStart, epochEnd, fs);
+  if (L < 2) throw new AnalysisInputError('epochs.end', `leaves fewer than 2 samples per epoch at ${fs} Hz`);
 
   const { start, end, method, scope } = recipe.baseline;
   if (start > end) throw new AnalysisInputError('baseline.start', `must not be after baseline.end (${start} s > ${end} s)`);
-  if (start < tmin - EPS) throw new AnalysisInputError('baseline.start', `is before the epoch start (${start} s < epochs.tmin ${tmin} s)`);
-  if (end > tmax + EPS) throw new AnalysisInputError('baseline.end', `is after the epoch end (${end} s > epochs.tmax ${tmax} s)`);
-  const b = baselineIndices(start, end, tmin, fs);
+  if (start < epochStart - EPS) throw new AnalysisInputError('baseline.start', `is before the epoch start (${start} s < epochs.start ${epochStart} s)`);
+  if (end > epochEnd + EPS) throw new AnalysisInputError('baseline.end', `is after the epoch end (${end} s > epochs.end ${epochEnd} s)`);
+  const b = baselineIndices(start, end, epochStart, fs);
   b.first = Math.max(0, b.first);
   b.last = Math.min(L - 1, b.last);
-  if (method === 'zscore' && b.last - b.first < 1) {
-    throw new AnalysisInputError('baseline.end', `gives a single baseline point at ${fs} Hz; zscore needs at least 2 for a standard deviation`);
+  if (method === 'z-score' && b.last - b.first < 1) {
+    throw new AnalysisInputError('baseline.end', `gives a single baseline point at ${fs} Hz; z-score needs at least 2 for a standard deviation`);
   }
 
   const fr = recipe.frequencies;
@@ -112,8 +141,12 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
   let channels: string[];
   let channelIndices: number[];
   if (recipe.channels === undefined) {
-    channels = recording.channelNames.slice();
-    channelIndices = channels.map((_, i) => i);
+    // All good brain channels: eye, heart, muscle, stimulus and other channels only when named.
+    channelIndices = brainChannels(recording);
+    channels = channelIndices.map((c) => recording.channelNames[c]);
+    if (channelIndices.length === 0) {
+      throw new AnalysisInputError('channels', `may be left out only when the recording has good EEG, MEG or intracranial channels; this one has ${recording.channelNames.length === 0 ? 'none left' : `only ${shortList(recording.channelNames.map((n, c) => `${n} (${recording.channelTypes[c]})`))}`}: name the channels to analyse`);
+    }
   } else {
     channels = recipe.channels;
     channelIndices = recipe.channels.map((name, i) => {
@@ -127,6 +160,11 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
     });
   }
   if (channels.length === 0) throw new AnalysisInputError('recording', 'has no data signals');
+  warnings.push(...conditioned.warnings);
+  if (recipe.rejection !== undefined) {
+    const unchecked = [...new Set(recording.channelTypes.filter((t, c) => isBrainType(t) && recording.channelUnits[c] !== 'µV' && recipe.rejection?.byType?.[t] === undefined))];
+    for (const t of unchecked) warnings.push(`rejection: ${t} channels are not checked (no rejection.byType["${t}"] limits in their unit)`);
+  }
 
   // Conditions and rejection (recipe extensions) pick the epochs; without them the contract's label selection runs.
   const prepared = prepareRecording(recording, recipe);
@@ -142,7 +180,7 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
   const rejectedCounts: number[] = [];
   labels.forEach((label, i) => {
     if (labels.indexOf(label) !== i) throw new AnalysisInputError(`epochs.events[${i}]`, `repeats "${label}"`);
-    const sel = selectEpochs(events, label, tmin, L, fs, total, recording.gapSampleIndices ?? []);
+    const sel = selectEpochs(events, label, epochStart, L, fs, total, recording.gapSampleIndices ?? []);
     const count = prepared.counts.find((c) => c.condition === label);
     if (count === undefined) {
       if (sel.matched === 0) {
@@ -183,6 +221,12 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
     epochStarts.push(sel.starts);
   });
 
+  if (recipe.baseline.spread === 'trials') {
+    epochStarts.forEach((starts, i) => {
+      if (starts.length < 2) throw new AnalysisInputError('baseline.spread', `"trials" needs at least 2 kept epochs per condition for a standard deviation; "${labels[i]}" has ${starts.length}`);
+    });
+  }
+
   const sp = recipe.spectrum;
   const segmentSamples = roundHalfUp(sp.segment * fs);
   const overlapSamples = roundHalfUp(sp.overlap * segmentSamples);
@@ -191,6 +235,7 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
   const [rLo, rHi] = sp.range;
   if (!(rLo >= 0 && rLo <= rHi && rHi <= nyquist)) throw new AnalysisInputError('spectrum.range', `must satisfy 0 ≤ low ≤ high ≤ Nyquist (${fmt(nyquist)} Hz); got [${rLo}, ${rHi}]`);
   const spanList: number[] = [];
+  let conditionSpans: Int32Array[] | null = null;
   if (sp.source === 'recording') {
     const gaps = (recording.gapSampleIndices ?? []).filter((g) => g > 0 && g < total).sort((x, y) => x - y);
     let s0 = 0;
@@ -205,6 +250,7 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
   } else {
     if (segmentSamples > L) throw new AnalysisInputError('spectrum.segment', `(${sp.segment} s) is longer than an epoch (${fmt(epochSeconds)} s) with spectrum.source "epochs"`);
     for (const starts of epochStarts) for (const s of starts) spanList.push(s, s + L);
+    conditionSpans = epochStarts.map((starts) => Int32Array.from(Array.from(starts).flatMap((s) => [s, s + L])));
   }
 
   const ap = recipe.aperiodic;
@@ -212,28 +258,31 @@ export function planRecipe(recording: Recording, recipeInput: unknown): RecipePl
   if (!(aLo > 0 && aLo < aHi && aHi <= nyquist)) throw new AnalysisInputError('aperiodic.range', `must satisfy 0 < low < high ≤ Nyquist (${fmt(nyquist)} Hz); got [${aLo}, ${aHi}]`);
   const binHz = fs / segmentSamples;
   const bins = Math.floor(aHi / binHz + EPS) - Math.ceil(aLo / binHz - EPS) + 1;
-  const needed = ap.mode === 'fixed' ? 3 : 4;
-  if (bins < needed) throw new AnalysisInputError('aperiodic.range', `holds ${bins} spectrum bins of ${fmt(binHz)} Hz; the ${ap.mode} fit needs at least ${needed} (widen the range or lengthen spectrum.segment)`);
+  const needed = ap.model === 'power-law' ? 3 : 4;
+  if (bins < needed) throw new AnalysisInputError('aperiodic.range', `holds ${bins} spectrum bins of ${fmt(binHz)} Hz; the ${ap.model} fit needs at least ${needed} (widen the range or lengthen spectrum.segment)`);
 
-  return {
+  const plan: RecipePlan = {
     sampleRateHz: fs,
     channels,
     channelIndices,
+    channelTypes: channelIndices.map((c) => recording.channelTypes[c]),
+    channelUnits: channelIndices.map((c) => recording.channelUnits[c]),
     labels,
     epochStarts,
     dropped: droppedCounts,
     rejected: rejectedCounts,
     epochSamples: L,
-    tminSeconds: tmin,
-    times: epochTimes(tmin, tmax, fs),
+    epochStartSeconds: epochStart,
+    times: epochTimes(epochStart, epochEnd, fs),
     frequencies,
     sigmas,
     edgeSeconds,
-    baseline: { first: b.first, last: b.last, method, scope },
-    spectrum: { segmentSamples, overlapSamples, range: [rLo, rHi], spans: Int32Array.from(spanList) },
-    aperiodic: { range: [aLo, aHi], mode: ap.mode },
+    baseline: { first: b.first, last: b.last, method, scope, spread: recipe.baseline.spread ?? 'time' },
+    spectrum: { segmentSamples, overlapSamples, range: [rLo, rHi], spans: Int32Array.from(spanList), conditionSpans },
+    aperiodic: { range: [aLo, aHi], model: ap.model },
     warnings,
   };
+  return { plan, recording };
 }
 
 function rows(flat: Float64Array, nf: number, nt: number): number[][] {
@@ -256,18 +305,26 @@ export function assembleResult(plan: RecipePlan, channels: ChannelAnalysis[]): A
       normalized: channels.map((ch) => rows(ch.normalized[c], nf, nt)),
     };
   });
+  const resolution = resolutionOf(plan.sigmas);
   return {
     frequencies: Array.from(plan.frequencies),
     cycles: Array.from(cyclesOf(plan.frequencies, plan.sigmas)),
     edgeSeconds: Array.from(plan.edgeSeconds),
+    temporalFwhmSeconds: Array.from(resolution.temporalFwhmSeconds),
+    spectralFwhmHz: Array.from(resolution.spectralFwhmHz),
     times: Array.from(plan.times),
     channels: plan.channels.slice(),
+    channelTypes: plan.channelTypes.slice(),
+    channelUnits: plan.channelUnits.slice(),
     conditions,
     spectrum: {
       frequencies: channels.length > 0 ? Array.from(channels[0].spectrumFrequencies) : [],
       psd: channels.map((ch) => Array.from(ch.psd)),
     },
     aperiodic: channels.map((ch, i) => ({ channel: plan.channels[i], ...ch.aperiodic })),
+    ...(plan.spectrum.conditionSpans !== null
+      ? { aperiodicByCondition: Object.fromEntries(plan.labels.map((label, c) => [label, channels.map((ch, i) => ({ channel: plan.channels[i], ...ch.aperiodicByCondition![c] }))])) }
+      : {}),
     warnings: plan.warnings.slice(),
   };
 }
@@ -281,14 +338,14 @@ export interface RunOptions {
 
 /** Runs a recipe on a recording in this thread and returns the contract's Result. */
 export function runRecipe(recording: Recording, recipe: unknown, options: RunOptions = {}): AnalysisResult {
-  const plan = planRecipe(recording, recipe);
+  const { plan, recording: conditioned } = planRun(recording, recipe);
   const { onProgress, shouldCancel } = options;
   const n = plan.channels.length;
   const out: ChannelAnalysis[] = [];
   for (let i = 0; i < n; i++) {
     if (shouldCancel !== undefined && shouldCancel()) throw new AnalysisCancelledError();
     out.push(
-      analyzeChannel(plan, recording.data[plan.channelIndices[i]], {
+      analyzeChannel(plan, conditioned.data[plan.channelIndices[i]], {
         shouldCancel,
         onProgress: onProgress === undefined ? undefined : (f) => onProgress((i + f) / n),
       }),

@@ -42,6 +42,21 @@ export function edgeSecondsOf(sigmas: Float64Array): Float64Array {
   return out;
 }
 
+/**
+ * Time-frequency resolution of each wavelet: temporal FWHM `√(8 ln 2)·σ` seconds of the Gaussian envelope and
+ * spectral FWHM `√(8 ln 2)/(2πσ)` Hz of its spectrum (the spectral SD is `1/(2πσ)` = f/n; Cohen, 2019, NeuroImage
+ * 199:81–86), beside the edge zone `3σ`.
+ */
+export function resolutionOf(sigmas: Float64Array): { temporalFwhmSeconds: Float64Array; spectralFwhmHz: Float64Array } {
+  const temporalFwhmSeconds = new Float64Array(sigmas.length);
+  const spectralFwhmHz = new Float64Array(sigmas.length);
+  for (let i = 0; i < sigmas.length; i++) {
+    temporalFwhmSeconds[i] = FWHM_PER_SIGMA * sigmas[i];
+    spectralFwhmHz[i] = FWHM_PER_SIGMA / (2 * Math.PI * sigmas[i]);
+  }
+  return { temporalFwhmSeconds, spectralFwhmHz };
+}
+
 export interface MorletWavelet {
   /** Samples run from −halfWidth to +halfWidth; index k + halfWidth holds t = k/fs. */
   halfWidth: number;

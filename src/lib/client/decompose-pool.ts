@@ -1,7 +1,7 @@
 import * as Comlink from 'comlink';
 import { AnalysisCancelledError } from '../analysis/errors';
 import type { Recording } from '../analysis/recording';
-import { assembleResult, planRecipe, type AnalysisResult, type ChannelAnalysis } from '../analysis/run-recipe';
+import { assembleResult, planRun, type AnalysisResult, type ChannelAnalysis } from '../analysis/run-recipe';
 import type { DecomposeApi } from '../../../workers/decompose-api';
 
 /** A worker as the pool sees it: a comlink endpoint and a way to stop it. */
@@ -138,9 +138,10 @@ export class DecomposePool {
    * Runs a recipe; rejects with AnalysisInputError for a bad recipe, AnalysisCancelledError after cancel() and
    * PoolWorkerError when a worker fails. Never settles by hanging on a dead worker.
    */
-  async run(recording: Recording, recipe: unknown, options: PoolRunOptions = {}): Promise<PoolResult> {
+  async run(input: Recording, recipe: unknown, options: PoolRunOptions = {}): Promise<PoolResult> {
     if (this.current !== null) throw new Error('DecomposePool: a run is already in progress; cancel() it first');
-    const plan = planRecipe(recording, recipe);
+    // The recording as the recipe conditions it (types, bad channels, reference, filters), once, on this thread.
+    const { plan, recording } = planRun(input, recipe);
     let fail: (error: Error) => void = () => undefined;
     const ended = new Promise<never>((_, reject) => (fail = reject));
     ended.catch(() => undefined);

@@ -19,10 +19,10 @@ export type ProgressListener = (phase: IntakePhase, fraction: number) => void;
 export type RecordingKind = ({ kind: 'edf' } & EdfReading) | ({ kind: 'csv' } & CsvRequest);
 
 /** Reads a recording file in the worker; the File is passed by reference and read there through Blob.slice. */
-export function openRecordingFile(file: Blob, kind: RecordingKind, onProgress: ProgressListener): Promise<IntakeResult> {
+export function openRecordingFile(file: Blob, kind: RecordingKind, onProgress: ProgressListener, edfEvents: Blob | null = null): Promise<IntakeResult> {
   const remote = intakeWorker();
   const progress = Comlink.proxy(onProgress);
-  if (kind.kind === 'edf') return remote.openEdf(file, { unitFactors: kind.unitFactors, exclude: kind.exclude }, progress);
+  if (kind.kind === 'edf') return remote.openEdf(file, { unitFactors: kind.unitFactors, exclude: kind.exclude }, progress, edfEvents);
   return remote.openCsv(file, { sampleRateHz: kind.sampleRateHz, delimiter: kind.delimiter, events: kind.events }, progress);
 }
 

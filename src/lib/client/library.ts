@@ -21,6 +21,8 @@ export interface LibraryEntry {
   csv: { sampleRateHz: number; delimiter: ',' | '\t'; eventsFileName: string | null } | null;
   /** EDF: the reading choices it was opened with (unit factors, signals left out), applied again on reopening. */
   edf?: { unitFactors?: Record<string, number>; exclude?: string[] } | null;
+  /** EDF: the BIDS events file opened with it, if any (its bytes are kept beside the recording's). */
+  edfEventsFileName?: string | null;
 }
 
 interface StoredEntry extends LibraryEntry {

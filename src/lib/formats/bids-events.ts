@@ -11,9 +11,13 @@ export interface BidsEvent extends RecordingEvent {
   row: number;
   /** False when the duration cell was `n/a` (durationSeconds is then 0). */
   durationKnown: boolean;
+  /** Every cell of the row by column name, trimmed, as written (`n/a` included). */
+  columns: Record<string, string>;
 }
 
 export interface BidsEventsResult {
+  /** The header's column names, in file order. */
+  header: string[];
   events: BidsEvent[];
   /** Events whose onset lies before 0 or at/after the recording's end; never placed on the sample axis. */
   outside: BidsEvent[];
@@ -80,6 +84,7 @@ export function parseBidsEvents(text: string, options: BidsEventsOptions = {}): 
       label,
       row,
       durationKnown,
+      columns: Object.fromEntries(header.map((h, c) => [h, cells[c].trim()])),
     };
     if (end !== undefined && (event.onsetSeconds < 0 || event.onsetSeconds >= end)) outside.push(event);
     else events.push(event);
@@ -90,5 +95,5 @@ export function parseBidsEvents(text: string, options: BidsEventsOptions = {}): 
   // Events in onset order (a stable sort keeps file order among equal onsets), so every reader of the same file
   // numbers them alike: event keys in a recipe count from this order.
   events.sort((a, b) => a.onsetSeconds - b.onsetSeconds);
-  return { events, outside, warnings };
+  return { header, events, outside, warnings };
 }

@@ -19,7 +19,8 @@ import {
 } from './edf-header';
 import { Sha256 } from './fingerprint';
 import { FormatError } from './format-error';
-import { microvoltFactor } from './units';
+import { inferChannelType, type ChannelUnit } from '../analysis/channel-types';
+import { signalUnit } from './units';
 
 /** 2^30 samples (4 GiB of Float32) per channel: beyond that a typed array cannot be relied on in every browser. */
 const MAX_SAMPLES_PER_CHANNEL = 2 ** 30;
@@ -43,8 +44,10 @@ export interface EdfChannel {
   label: string;
   sampleRateHz: number;
   physicalDimension: string;
-  /** Factor applied after the EDF scaling to reach µV. */
+  /** Factor applied after the EDF scaling to reach `unit` (µV, or fT / fT/cm for MEG). */
   microvoltFactor: number;
+  /** The unit the samples are kept in. */
+  unit: ChannelUnit;
   /** µV, one value per sample, records concatenated (gaps removed, see `gaps`). */
   samples: Float32Array;
 }
@@ -190,7 +193,7 @@ export async function openEdf(source: ByteSource, options: OpenEdfOptions = {}):
       ignored.push({ signalIndex: s.index, label: s.label, sampleRateHz: s.sampleRateHz, reason: 'sample-rate' });
       continue;
     }
-    const factor = microvoltFactor(s.physicalDimension, s.label, s.dimensionByteOffset, options.unitFactors);
+    const { unit, factor } = signalUnit(s.physicalDimension, s.label, s.dimensionByteOffset, options.unitFactors);
     const gain = (s.physicalMax - s.physicalMin) / (s.digitalMax - s.digitalMin);
     gains.push(gain * factor);
     offsets.push((s.physicalMin - s.digitalMin * gain) * factor);
@@ -200,6 +203,7 @@ export async function openEdf(source: ByteSource, options: OpenEdfOptions = {}):
       sampleRateHz: s.sampleRateHz,
       physicalDimension: s.physicalDimension,
       microvoltFactor: factor,
+      unit,
       samples: new Float32Array(recordCount * s.samplesPerRecord),
     });
   }
@@ -371,7 +375,7 @@ export function channelNamesFromLabels(labels: readonly string[]): string[] {
   return new Set(stripped).size === stripped.length ? stripped : [...labels];
 }
 
-/** The analysis core's Recording: µV channels at the analysed rate, events on the sample axis, gaps. */
+/** The analysis core's Recording: µV (or MEG fT, fT/cm) channels at the analysed rate, types, events, gaps. */
 export function toRecording(edf: EdfFile): Recording {
   if (edf.channels.length === 0 || edf.sampleRateHz === null) {
     throw new FormatError('signals', 'the file holds no data signals to analyse (only annotations or excluded signals)', {
@@ -383,7 +387,10 @@ export function toRecording(edf: EdfFile): Recording {
     channelNames: channelNamesFromLabels(edf.channels.map((c) => c.label)),
     data: edf.channels.map((c) => c.samples),
     events: edf.events.map((e) => ({ ...e })),
+    // The type word is dropped from the names, so types are inferred here from the full label and the unit.
+    channelTypes: edf.channels.map((c) => inferChannelType(c.label, c.unit)),
   };
+  if (edf.channels.some((c) => c.unit !== 'µV')) recording.channelUnits = edf.channels.map((c) => c.unit);
   if (edf.gaps.length > 0) recording.gapSampleIndices = edf.gaps.map((g) => g.sampleIndex);
   return recording;
 }

@@ -1,3 +1,4 @@
+import type { ChannelUnit } from '../analysis/channel-types';
 import { FormatError } from './format-error';
 
 /** Physical dimensions we convert without asking; factor to microvolts. "µ" arrives as Latin-1 0xB5 or UTF-8. */
@@ -38,4 +39,27 @@ export function microvoltFactor(
     signal,
     byteOffset,
   });
+}
+
+// MEG keeps its own units (an extension of the contract's µV wording, DEVELOPERS.md "Channel types"): magnetic
+// field in femtotesla, field gradient in femtotesla per centimetre (SI prefixes: 1 T = 1e15 fT; 1 T/m = 1e13 fT/cm).
+const FIELD_FACTORS: Record<string, number> = { T: 1e15, mT: 1e12, uT: 1e9, 'µT': 1e9, nT: 1e6, pT: 1e3, fT: 1 };
+const GRADIENT_FACTORS: Record<string, number> = { 'T/m': 1e13, 'T/cm': 1e15, 'pT/m': 10, 'pT/cm': 1e3, 'fT/m': 0.01, 'fT/cm': 1, 'fT/mm': 10 };
+
+/**
+ * The unit a signal is kept in and the factor from its physical dimension: electrode units to µV
+ * (`microvoltFactor`), magnetic field to fT, field gradient to fT/cm. A `mapping` entry reads the signal as µV × factor.
+ */
+export function signalUnit(
+  dimension: string,
+  signal: string,
+  byteOffset: number | null,
+  mapping: Readonly<Record<string, number>> = {},
+): { unit: ChannelUnit; factor: number } {
+  const key = dimension.trim();
+  if (mapping[key] === undefined) {
+    if (FIELD_FACTORS[key] !== undefined) return { unit: 'fT', factor: FIELD_FACTORS[key] };
+    if (GRADIENT_FACTORS[key] !== undefined) return { unit: 'fT/cm', factor: GRADIENT_FACTORS[key] };
+  }
+  return { unit: 'µV', factor: microvoltFactor(dimension, signal, byteOffset, mapping) };
 }

@@ -25,13 +25,13 @@ export function colourPosition(scale: ColourScale, value: number): number {
 }
 
 /** The method's neutral value: no change from baseline. 0 for dB, percent and z-score, 1 for a ratio. */
-export function neutralValue(method: 'db' | 'percent' | 'zscore' | 'ratio'): number {
-  return method === 'ratio' ? 1 : 0;
+export function neutralValue(method: 'decibel' | 'percent-change' | 'z-score' | 'power-ratio'): number {
+  return method === 'power-ratio' ? 1 : 0;
 }
 
 /** The unit shown on colour bars and readouts. */
-export function methodUnit(method: 'db' | 'percent' | 'zscore' | 'ratio'): string {
-  return method === 'db' ? 'dB' : method === 'percent' ? '%' : method === 'zscore' ? 'z' : '×';
+export function methodUnit(method: 'decibel' | 'percent-change' | 'z-score' | 'power-ratio'): string {
+  return method === 'decibel' ? 'dB' : method === 'percent-change' ? '%' : method === 'z-score' ? 'z' : '×';
 }
 
 /**
@@ -67,4 +67,22 @@ export function extentLimits(values: ArrayLike<number>, kind: 'linear' | 'log', 
   if (!(hi >= lo)) return kind === 'log' ? [1, 10] : [0, 1];
   if (hi === lo) return kind === 'log' ? [lo / 2, hi * 2] : [lo - 1, hi + 1];
   return [lo, hi];
+}
+
+/**
+ * Limits of a power-ratio map on a log scale centred on 1: [1/m, m] with m the largest of v and 1/v over positive
+ * finite unmasked values, so a halving sits as far below the centre as a doubling sits above it. Empty or all-1
+ * data give [1/2, 2].
+ */
+export function ratioLimits(values: ArrayLike<number>, mask: ArrayLike<number> | null = null): [number, number] {
+  let m = 1;
+  for (let i = 0; i < values.length; i++) {
+    if (mask !== null && mask[i] !== 0) continue;
+    const v = values[i];
+    if (!(v > 0) || v === Infinity) continue;
+    const r = v >= 1 ? v : 1 / v;
+    if (r > m) m = r;
+  }
+  if (!(m > 1)) m = 2;
+  return [1 / m, m];
 }

@@ -38,13 +38,14 @@ const seconds = 40;
 const dir = mkdtempSync(join(tmpdir(), 'tidemark-cli-'));
 const file = (name: string) => join(dir, name);
 const recipe = {
-  epochs: { events: ['go', 'stop'], tmin: -0.5, tmax: 1.0 },
+  format: 2,
+  epochs: { events: ['go', 'stop'], start: -0.5, end: 1.0 },
   channels: ['C3', 'C4'],
   frequencies: { min: 4, max: 30, count: 5, spacing: 'log' },
   cycles: { min: 3, max: 6 },
-  baseline: { start: -0.4, end: -0.1, method: 'db', scope: 'average' },
+  baseline: { start: -0.4, end: -0.1, method: 'decibel', scope: 'average' },
   spectrum: { segment: 2, overlap: 0.5, range: [1, 40], source: 'recording' },
-  aperiodic: { range: [2, 40], mode: 'fixed' },
+  aperiodic: { range: [2, 40], model: 'power-law' },
 };
 
 beforeAll(() => {
@@ -61,14 +62,30 @@ beforeAll(() => {
   let events = 'onset\tduration\ttrial_type\n';
   for (let k = 0; k < 14; k++) events += `${2 + 2.5 * k}\tn/a\t${k % 2 === 0 ? 'go' : 'stop'}\n`;
   writeFileSync(file('events.tsv'), events);
+  // the same cues with a response time each (0.3 … 0.69 s) and a "correct" column, for eventTable
+  let withRt = 'onset\tduration\ttrial_type\tresponse_time\tcorrect\n';
+  for (let k = 0; k < 14; k++) withRt += `${2 + 2.5 * k}\tn/a\t${k % 2 === 0 ? 'go' : 'stop'}\t${(0.3 + 0.03 * k).toFixed(2)}\t${k % 3 === 0 ? 'no' : 'yes'}\n`;
+  writeFileSync(file('events-rt.tsv'), withRt);
   writeFileSync(file('recipe.json'), JSON.stringify(recipe));
   const put = (name: string, change: object) => writeFileSync(file(name), JSON.stringify({ ...recipe, ...change }));
-  put('tmin.json', { epochs: { ...recipe.epochs, tmin: 1.0 } });
+  // the same recipe as format 1 wrote it (no "format"; tmin/tmax, "db", mode "fixed")
+  writeFileSync(
+    file('format1.json'),
+    JSON.stringify({ ...recipe, format: undefined, epochs: { events: recipe.epochs.events, tmin: -0.5, tmax: 1.0 }, baseline: { ...recipe.baseline, method: 'db' }, aperiodic: { range: [2, 40], mode: 'fixed' } }),
+  );
+  put('start-after-end.json', { epochs: { ...recipe.epochs, start: 1.0 } });
   put('baseline.json', { baseline: { ...recipe.baseline, start: -0.9 } });
   put('nyquist.json', { frequencies: { ...recipe.frequencies, max: 50 } });
   put('cycles.json', { cycles: { fixed: 9 } });
   put('channel.json', { channels: ['C3', 'Cz'] });
   put('label.json', { epochs: { ...recipe.epochs, events: ['go', 'wait'] } });
+  put('type.json', { signals: { types: { C4: 'scalp' } } });
+  put('bad-channel.json', { signals: { bad: ['C4'] } });
+  put('highpass.json', { filters: { highPass: { cutoffHz: 50 } } });
+  put('notch.json', { filters: { notch: { harmonics: 2 } } });
+  put('locked.json', { eventTable: { where: ['correct == yes'], shiftBy: 'response_time' } });
+  put('reference.json', { reference: { kind: 'mean-of-channels', channels: ['A1'] } });
+  put('bad-reference.json', { channels: ['C3'], signals: { bad: ['C4'] }, reference: { kind: 'mean-of-channels', channels: ['C4'] } });
   writeFileSync(file('broken.json'), '{"epochs": ');
   writeFileSync(file('ragged.csv'), 'C3,C4\n1,2\n3\n');
   // the same samples as EDF+ with the cues as annotations
@@ -114,6 +131,43 @@ describe('analyze command line', () => {
     // 12 Hz rhythm on C4 only: its spectrum peaks there
     const k = result.spectrum.frequencies.indexOf(12);
     expect(result.spectrum.psd[1][k]).toBeGreaterThan(10 * result.spectrum.psd[0][k]);
+  });
+
+  it('reads a format-1 recipe with a one-line notice on stderr and gives the same output as format 2', async () => {
+    // Analysis contract, "Recipe (input), format 2": format 1 is read and upgraded, never silently.
+    const two = await analyze([file('rec.edf'), '--recipe', file('recipe.json')]);
+    const one = await analyze([file('rec.edf'), '--recipe', file('format1.json')]);
+    expect(one.code).toBe(0);
+    const lines = one.stderr.split('\n').filter((l) => l !== '');
+    expect(lines).toHaveLength(1);
+    expect(lines[0]).toMatch(/^analyze: .*format1\.json: recipe format 1 \(no "format" field\) read and upgraded to format 2: epochs\.tmin\/tmax → epochs\.start\/end/);
+    expect(one.stdout).toBe(two.stdout);
+  });
+
+  it('honours the recipe reference: the same numbers as the core in process, and not those without it', async () => {
+    writeFileSync(file('average.json'), JSON.stringify({ ...recipe, reference: { kind: 'common-average' } }));
+    const out = await analyze([file('rec.edf'), '--recipe', file('average.json')]);
+    expect(out.code).toBe(0);
+    const edf = toRecording(await openEdf(bytesSource(readFileSync(file('rec.edf')))));
+    expect(out.stdout).toBe(JSON.stringify(runRecipe(edf, { ...recipe, reference: { kind: 'common-average' } })) + '\n');
+    // With two channels the common average leaves C3 = −C4 = (C3 − C4)/2: their powers become equal.
+    const r = JSON.parse(out.stdout);
+    expect(r.conditions.go.power[0]).toEqual(r.conditions.go.power[1]);
+  });
+
+  it('selects events by a column and locks epochs to the response with the recipe eventTable', async () => {
+    const out = await analyze([file('rec.csv'), '--recipe', file('locked.json'), '--events', file('events-rt.tsv'), '--rate', '100']);
+    expect(out.code).toBe(0);
+    const r = JSON.parse(out.stdout);
+    // k = 0 … 13 with k mod 3 ≠ 0 are correct: go at k = 2, 4, 8, 10 and stop at k = 1, 5, 7, 11, 13 (by hand)
+    expect([r.conditions.go.trials, r.conditions.stop.trials]).toEqual([4, 5]);
+    expect(r.warnings).toContain('eventTable.where: 9 of 14 events selected');
+    // the same as the core on events moved by hand to onset + response_time
+    const recording = parseCsvSamples(readFileSync(file('rec.csv'), 'utf8'), { sampleRateHz: fs });
+    recording.events = [];
+    for (let k = 0; k < 14; k++) if (k % 3 !== 0) recording.events.push({ onsetSeconds: 2 + 2.5 * k + Number((0.3 + 0.03 * k).toFixed(2)), durationSeconds: 0, label: k % 2 === 0 ? 'go' : 'stop' });
+    const local = JSON.parse(JSON.stringify(runRecipe(recording, JSON.parse(readFileSync(file('locked.json'), 'utf8')))));
+    expect(r.conditions).toEqual(local.conditions);
   });
 
   it('honours conditions, rejection rules and manual overrides like the core in process, and checks the fingerprint', async () => {
@@ -170,10 +224,18 @@ describe('analyze command line', () => {
     ['a ragged CSV row', ['ragged.csv', '--recipe', 'recipe.json', '--rate', '100'], /ragged\.csv: .*\brow 3\b/],
     ['an unknown channel', ['rec.csv', '--recipe', 'channel.json', '--events', 'events.tsv', '--rate', '100'], /channel\.json: channels\[1\] names no signal in the recording \("Cz"/],
     ['no events of a label', ['rec.csv', '--recipe', 'label.json', '--events', 'events.tsv', '--rate', '100'], /label\.json: epochs\.events\[1\] has no events labelled "wait"/],
-    ['tmin ≥ tmax', ['rec.csv', '--recipe', 'tmin.json', '--events', 'events.tsv', '--rate', '100'], /tmin\.json: epochs\.tmin must be less than epochs\.tmax/],
+    ['start ≥ end', ['rec.csv', '--recipe', 'start-after-end.json', '--events', 'events.tsv', '--rate', '100'], /start-after-end\.json: epochs\.start must be less than epochs\.end/],
     ['a baseline outside the epoch', ['rec.csv', '--recipe', 'baseline.json', '--events', 'events.tsv', '--rate', '100'], /baseline\.json: baseline\.start is before the epoch start/],
     ['a max frequency at Nyquist', ['rec.csv', '--recipe', 'nyquist.json', '--events', 'events.tsv', '--rate', '100'], /nyquist\.json: frequencies\.max must be below the Nyquist frequency \(50 Hz/],
     ['too few cycles for the epoch length', ['rec.csv', '--recipe', 'cycles.json', '--events', 'events.tsv', '--rate', '100'], /cycles\.json: cycles is too many for the epoch length/],
+    ['an unknown channel type', ['rec.csv', '--recipe', 'type.json', '--events', 'events.tsv', '--rate', '100'], /type\.json: signals\.types\.C4 must be a channel type: "eeg", "eog"/],
+    ['a channel marked bad and still named', ['rec.csv', '--recipe', 'bad-channel.json', '--events', 'events.tsv', '--rate', '100'], /bad-channel\.json: channels\[1\] "C4" is marked bad \(signals\.bad\)/],
+    ['a reference channel the recording lacks', ['rec.csv', '--recipe', 'reference.json', '--events', 'events.tsv', '--rate', '100'], /reference\.json: reference\.channels\[0\] names no signal in the recording \("A1"/],
+    ['a reference channel marked bad', ['rec.csv', '--recipe', 'bad-reference.json', '--events', 'events.tsv', '--rate', '100'], /bad-reference\.json: reference\.channels\[0\] "C4" is marked bad/],
+    ['a high-pass at Nyquist', ['rec.csv', '--recipe', 'highpass.json', '--events', 'events.tsv', '--rate', '100'], /highpass\.json: filters\.highPass\.cutoffHz must be above 0 and below the Nyquist frequency \(50 Hz/],
+    ['a notch without a line frequency', ['rec.csv', '--recipe', 'notch.json', '--events', 'events.tsv', '--rate', '100'], /notch\.json: filters\.notch\.lineHz is required for a notch/],
+    ['an eventTable without an events file', ['rec.csv', '--recipe', 'locked.json', '--rate', '100'], /--events: is required: the recipe's eventTable selects rows of a BIDS events file/],
+    ['an eventTable naming a column the events file lacks', ['rec.csv', '--recipe', 'locked.json', '--events', 'events.tsv', '--rate', '100'], /locked\.json: eventTable\.where\[0\] names column "correct", which the events file lacks/],
     ['an unknown option', ['rec.csv', '--recipe', 'recipe.json', '--colour', 'red'], /--colour: is not an option/],
   ];
   it.each(bad)('exits 2 with one line on stderr for %s', async (_what, args, message) => {

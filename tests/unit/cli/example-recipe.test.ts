@@ -5,14 +5,16 @@ import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { parseRecipe } from '../../../src/lib/analysis/recipe';
+import { readRecipe } from '../../../src/lib/analysis/recipe';
 import { describeCohort, writeSubjectEdf } from '../../../src/lib/demo';
 
 const recipePath = path.resolve('public/recipes/harbour-lights.json');
 
 describe('public/recipes/harbour-lights.json', () => {
-  it('parses with the recipe schema', () => {
-    const recipe = parseRecipe(JSON.parse(readFileSync(recipePath, 'utf8')));
+  it('parses with the recipe schema as format 2, with no upgrade notice', () => {
+    const { recipe, notice } = readRecipe(JSON.parse(readFileSync(recipePath, 'utf8')));
+    expect(notice).toBeNull();
+    expect(recipe.format).toBe(2);
     expect(recipe.channels).toEqual(['Fz', 'Cz', 'Pz']);
   });
 

@@ -31,12 +31,13 @@ const seconds = 30;
 const dir = mkdtempSync(join(tmpdir(), 'tidemark-units-'));
 const file = (name: string) => join(dir, name);
 const recipe = {
-  epochs: { events: ['stroke'], tmin: -0.5, tmax: 1.0 },
+  format: 2,
+  epochs: { events: ['stroke'], start: -0.5, end: 1.0 },
   frequencies: { min: 4, max: 30, count: 4, spacing: 'log' },
   cycles: { min: 3, max: 6 },
-  baseline: { start: -0.4, end: -0.1, method: 'db', scope: 'average' },
+  baseline: { start: -0.4, end: -0.1, method: 'decibel', scope: 'average' },
   spectrum: { segment: 2, overlap: 0.5, range: [1, 40], source: 'recording' },
-  aperiodic: { range: [2, 40], mode: 'fixed' },
+  aperiodic: { range: [2, 40], model: 'power-law' },
 };
 const put = (name: string, value: object) => writeFileSync(file(name), JSON.stringify(value));
 
@@ -79,8 +80,9 @@ beforeAll(() => {
   writeFileSync(file('drill.edf'), edfBytes);
   put('plain.json', recipe);
   put('exclude.json', { ...recipe, recording: { exclude: ['Resp', 'Belt'] } });
-  put('factor1.json', { ...recipe, recording: { units: { arb: 1 } } });
-  put('factor3.json', { ...recipe, recording: { units: { arb: 3 } } });
+  // "Resp" is typed "other" (an EDF+ signal-type word), so it is decomposed only when named: name all three.
+  put('factor1.json', { ...recipe, channels: ['C3', 'C4', 'Resp'], recording: { units: { arb: 1 } } });
+  put('factor3.json', { ...recipe, channels: ['C3', 'C4', 'Resp'], recording: { units: { arb: 3 } } });
   put('zero.json', { ...recipe, recording: { units: { arb: 0 } } });
 });
 

@@ -11,7 +11,7 @@ const baseline = useViewStore.getState().baseline;
 
 describe('first-time defaults', () => {
   it('epochs −1 … 2 s, baseline −0.5 … −0.2 s, frequencies covering the default bands', () => {
-    expect(window).toEqual({ tmin: -1, tmax: 2 });
+    expect(window).toEqual({ start: -1, end: 2 });
     expect(baseline).toEqual({ start: -0.5, end: -0.2 });
     expect(DEFAULT_DRAFT.frequencies.min).toBeLessThanOrEqual(Math.min(...DEFAULT_BANDS.map((b) => b.lowHz)));
     expect(DEFAULT_DRAFT.frequencies.max).toBeGreaterThanOrEqual(Math.max(...DEFAULT_BANDS.map((b) => b.highHz)));
@@ -22,11 +22,11 @@ describe('first-time defaults', () => {
     const edges = edgeSecondsOf(gaussianSigmas(f, { min: DEFAULT_DRAFT.cyclesMin, max: DEFAULT_DRAFT.cyclesMax }));
     // By hand at 3 Hz with 3 cycles: σ = 3 / (2π·3) = 0.159 s, 3σ = 0.477 s < −0.5 − (−1) = 0.5 s.
     expect(edges[0]).toBeCloseTo(3 * 3 / (2 * Math.PI * 3), 12);
-    expect(baseline.start - window.tmin).toBeGreaterThan(edges[0]);
+    expect(baseline.start - window.start).toBeGreaterThan(edges[0]);
     // And the core agrees: the default recipe earns no baseline warning on a 500 Hz recording.
     const n = 500 * 20;
     const rec = { sampleRateHz: 500, channelNames: ['Cz'], data: [Float32Array.from({ length: n }, (_, i) => Math.sin(i / 7))], events: [{ onsetSeconds: 5, durationSeconds: 0, label: 'cue' }] };
-    const recipe = toRecipe(DEFAULT_DRAFT, { conditions: [{ name: 'cue', labels: ['cue'] }], ...window, rejection: defaultRejection, fingerprint: null }, { ...baseline, method: 'db', scope: 'average' }, [2, 40]);
+    const recipe = toRecipe(DEFAULT_DRAFT, { conditions: [{ name: 'cue', labels: ['cue'] }], epochStart: window.start, epochEnd: window.end, rejection: defaultRejection, fingerprint: null }, { ...baseline, method: 'decibel', scope: 'average' }, [2, 40]);
     expect(planRecipe(rec, recipe).warnings.filter((w) => w.startsWith('baseline'))).toEqual([]);
   });
 

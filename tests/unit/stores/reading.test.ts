@@ -5,8 +5,8 @@ import { DEFAULT_DRAFT, toRecipe } from '../../../src/stores/recipe';
 import { defaultRejection } from '../../../src/stores/source';
 
 // Scenario of our own: one EEG channel plus a pulse sensor read as µV × 2.5, a breathing belt left out.
-const source = { conditions: [{ name: 'bell', labels: ['bell'] }], tmin: -1, tmax: 2, rejection: defaultRejection };
-const baseline = { start: -0.5, end: -0.2, method: 'db' as const, scope: 'average' as const };
+const source = { conditions: [{ name: 'bell', labels: ['bell'] }], epochStart: -1, epochEnd: 2, rejection: defaultRejection };
+const baseline = { start: -0.5, end: -0.2, method: 'decibel' as const, scope: 'average' as const };
 const fingerprint = 'b'.repeat(64);
 const recording = {
   sampleRateHz: 100,
@@ -36,5 +36,25 @@ describe('reading choices in the recipe', () => {
       'This recipe reads the file with "%" × 2.5 µV; "Resp" left out; the open recording was read with "%" × 1 µV; "Resp" left out. Open the file again with the recipe\'s choices to get its numbers.',
     ]);
     expect(describeReading(null)).toBe('the built-in units only');
+  });
+});
+
+describe('recipe formats in the browser', () => {
+  it('exports format 2 and loads it back with no notice', () => {
+    const recipe = toRecipe(DEFAULT_DRAFT, { ...source, fingerprint }, baseline, [2, 40]);
+    expect(recipe.format).toBe(2);
+    expect(recipe.epochs).toMatchObject({ start: -1, end: 2 });
+    expect(recipe.aperiodic).toEqual({ range: [2, 40], model: 'power-law' });
+    expect(applyRecipe(recipe, recording, fingerprint)).toEqual({ ok: true, notices: [] });
+  });
+
+  it('loads a format-1 recipe with a visible note that it was upgraded (analysis contract), and the same settings', () => {
+    const two = toRecipe(DEFAULT_DRAFT, { ...source, fingerprint }, { ...baseline, method: 'z-score' }, [2, 40]);
+    const { format: _f, ...rest } = two;
+    const one = { ...rest, epochs: { events: two.epochs.events, tmin: -1, tmax: 2 }, baseline: { ...two.baseline, method: 'zscore' }, aperiodic: { range: [2, 40], mode: 'fixed' } };
+    const outcome = applyRecipe(one, recording, fingerprint);
+    expect(outcome.ok).toBe(true);
+    expect(outcome.ok && outcome.notices).toEqual([expect.stringMatching(/^This recipe is in format 1 .*upgraded .*Export recipe JSON writes it in format 2\.$/)]);
+    expect(parseRecipe(one)).toEqual(parseRecipe(two));
   });
 });

@@ -8,14 +8,14 @@ import { runRecipe } from '../../../../src/lib/analysis/run-recipe';
 import type { Recording } from '../../../../src/lib/analysis/recording';
 import { assertClose } from '../../../helpers/assert-close';
 
-describe('epoch start sample = round(o·fs) + round(tmin·fs), halves up', () => {
+describe('epoch start sample = round(o·fs) + round(start·fs), halves up', () => {
   it('rounds both terms separately, halves up', () => {
-    // o·fs = 1.001 × 500 = 500.5 → 501; tmin·fs = −0.501 × 500 = −250.5 → −250; start = 251 (by hand).
+    // o·fs = 1.001 × 500 = 500.5 → 501; start·fs = −0.501 × 500 = −250.5 → −250; start = 251 (by hand).
     const sel = selectEpochs([{ onsetSeconds: 1.001, durationSeconds: 0, label: 'a' }], 'a', -0.501, 10, 500, 10_000);
     expect([...sel.starts]).toEqual([251]);
   });
   it('keeps exact sample positions deep into a long recording', () => {
-    // 7,200 s at 1,000 Hz: o·fs = 7,200,000.4 → 7,200,000; tmin = −1 s → −1,000.
+    // 7,200 s at 1,000 Hz: o·fs = 7,200,000.4 → 7,200,000; start = −1 s → −1,000.
     const sel = selectEpochs([{ onsetSeconds: 7200.0004, durationSeconds: 0, label: 'a' }], 'a', -1, 3, 1000, 8_000_000);
     expect([...sel.starts]).toEqual([7_199_000]);
   });
@@ -60,7 +60,7 @@ describe('aperiodic r² and RMSE are in log10 units', () => {
     const r = [d, -2 * d, 0, 2 * d, -d];
     const f = xs.map((x) => 10 ** x);
     const p = xs.map((x, i) => 10 ** (2 - 1.5 * x + r[i]));
-    const fit = fitAperiodic(f, p, [1, 10], 'fixed', { robust: false });
+    const fit = fitAperiodic(f, p, [1, 10], 'power-law', { robust: false });
     assertClose(fit.exponent, 1.5, 1e-9, 'exponent');
     assertClose(fit.offset, 2, 1e-9, 'offset');
     assertClose(fit.rmse, d * Math.SQRT2, 1e-9, 'rmse');
@@ -80,12 +80,13 @@ describe('edgeSeconds = 3σ with σ = n/(2πf)', () => {
       events: [5, 10, 15].map((o) => ({ onsetSeconds: o, durationSeconds: 0, label: 'cue' })),
     };
     const result = runRecipe(recording, {
-      epochs: { events: ['cue'], tmin: -1, tmax: 2 },
+      format: 2,
+      epochs: { events: ['cue'], start: -1, end: 2 },
       frequencies: { min: 2, max: 8, count: 3, spacing: 'log' },
       cycles: { fixed: 3 },
-      baseline: { start: -0.5, end: -0.2, method: 'db', scope: 'average' },
+      baseline: { start: -0.5, end: -0.2, method: 'decibel', scope: 'average' },
       spectrum: { segment: 2, overlap: 0.5, range: [1, 45], source: 'recording' },
-      aperiodic: { range: [2, 40], mode: 'fixed' },
+      aperiodic: { range: [2, 40], model: 'power-law' },
     });
     // The contract's own example: 2 Hz with 3 cycles gives 3 × 3/(2π × 2) = 0.716 s.
     assertClose(result.edgeSeconds[0], 0.7162, 1e-4, '2 Hz');

@@ -24,7 +24,7 @@ function recording(): Recording {
 // go@2 → 15…30 fits; stop@3 → 25…40 fits; go@4.5 → 40…55 holds the spike (200 − (−1) = 201 µV > 150);
 // stop@8 → 75…90 lies in B's flat stretch (SD 0 < 0.5 µV); go@9.5 → 90…105 runs past sample 99 (outside).
 const spec: PrepareSpec = {
-  epochs: { events: ['GO', 'STOP'], tmin: -0.5, tmax: 1.0 },
+  epochs: { events: ['GO', 'STOP'], start: -0.5, end: 1.0 },
   conditions: { GO: ['go'], STOP: ['stop'] },
   rejection: { peakToPeakMicrovolts: 150, flatMicrovolts: 0.5, scope: 'any' },
 };
@@ -32,7 +32,7 @@ const spec: PrepareSpec = {
 describe('prepareRecording', () => {
   it('leaves a recipe without conditions or rejection on the contract path, untouched', () => {
     const rec = recording();
-    const p = prepareRecording(rec, { epochs: { events: ['go'], tmin: -0.5, tmax: 1 } });
+    const p = prepareRecording(rec, { epochs: { events: ['go'], start: -0.5, end: 1 } });
     expect(p.applied).toBe(false);
     expect(p.recording).toBe(rec);
   });
@@ -83,7 +83,7 @@ describe('prepareRecording', () => {
   });
 
   it('treats a plain label in epochs.events as its own condition, and refuses one a condition already holds', () => {
-    const p = prepareRecording(recording(), { epochs: { events: ['go'], tmin: -0.5, tmax: 1 }, rejection: spec.rejection });
+    const p = prepareRecording(recording(), { epochs: { events: ['go'], start: -0.5, end: 1 }, rejection: spec.rejection });
     expect(p.counts).toEqual([{ condition: 'go', total: 3, kept: 1, rejected: 1, manualRejects: 0, manualKeeps: 0, outside: 1, gap: 0 }]);
     expect(() => prepareRecording(recording(), { ...spec, epochs: { ...spec.epochs, events: ['GO', 'stop'] } })).toThrow(/^epochs\.events\[1\] "stop" is a label of condition "STOP"/);
   });
@@ -102,11 +102,12 @@ describe('prepareRecording', () => {
 
 describe('runRecipe with conditions and rejection', () => {
   const contract = {
+    format: 2,
     frequencies: { min: 2, max: 3, count: 2, spacing: 'log' },
     cycles: { fixed: 1 },
-    baseline: { start: -0.5, end: -0.2, method: 'db', scope: 'average' },
+    baseline: { start: -0.5, end: -0.2, method: 'decibel', scope: 'average' },
     spectrum: { segment: 1, overlap: 0.5, range: [1, 4], source: 'epochs' },
-    aperiodic: { range: [1, 4], mode: 'fixed' },
+    aperiodic: { range: [1, 4], model: 'power-law' },
   };
 
   it('counts kept, rejected and dropped epochs per condition and gives the numbers of the hand-picked epochs', () => {

@@ -1,16 +1,17 @@
 import { describe, expect, it } from 'vitest';
-import { parseRecipe } from '../../../../src/lib/analysis/recipe';
+import { FORMAT_1_NOTICE, parseRecipe, readRecipe } from '../../../../src/lib/analysis/recipe';
 import { eventKey, parseEventKey } from '../../../../src/lib/analysis/event-key';
 
-// The example recipe of the analysis contract (shared/specs/analysis.md, "Recipe (input)"), verbatim.
+// The example recipe of the analysis contract (shared/specs/analysis.md, "Recipe (input), format 2"), verbatim.
 const contract = {
-  epochs: { events: ['cue/left', 'cue/right'], tmin: -1.0, tmax: 2.0 },
+  format: 2,
+  epochs: { events: ['cue/left', 'cue/right'], start: -1.0, end: 2.0 },
   channels: ['Fz', 'Cz'],
   frequencies: { min: 2, max: 40, count: 30, spacing: 'log' },
   cycles: { min: 3, max: 10 },
-  baseline: { start: -0.5, end: -0.2, method: 'db', scope: 'average' },
+  baseline: { start: -0.5, end: -0.2, method: 'decibel', scope: 'average' },
   spectrum: { segment: 2.0, overlap: 0.5, range: [1, 45], source: 'recording' },
-  aperiodic: { range: [2, 40], mode: 'fixed' },
+  aperiodic: { range: [2, 40], model: 'power-law' },
 };
 
 const extended = {
@@ -72,6 +73,52 @@ describe('parseRecipe with the recipe extensions', () => {
     const r = parseRecipe({ ...contract, recording: { units: { '%': 2.5, '': 1 }, exclude: ['Resp'] } });
     expect(r.recording).toEqual({ units: { '%': 2.5, '': 1 }, exclude: ['Resp'] });
     expect(parseRecipe({ ...extended, recording: { ...extended.recording, exclude: ['Resp'] } }).recording?.fingerprint).toHaveLength(64);
+  });
+});
+
+// Format 1, as the contract lists its names ("epochs.tmin/tmax, methods db/percent/zscore/ratio, aperiodic.mode
+// fixed/knee"): the same example written the way recipes were written before format 2.
+const format1 = {
+  epochs: { events: ['cue/left', 'cue/right'], tmin: -1.0, tmax: 2.0 },
+  channels: ['Fz', 'Cz'],
+  frequencies: { min: 2, max: 40, count: 30, spacing: 'log' },
+  cycles: { min: 3, max: 10 },
+  baseline: { start: -0.5, end: -0.2, method: 'db', scope: 'average' },
+  spectrum: { segment: 2.0, overlap: 0.5, range: [1, 45], source: 'recording' },
+  aperiodic: { range: [2, 40], mode: 'fixed' },
+};
+
+describe('recipe formats', () => {
+  it('reads format 2 without a notice', () => {
+    expect(readRecipe(contract)).toEqual({ recipe: contract, notice: null });
+  });
+
+  it('reads a recipe without "format" as format 1 and upgrades it to format 2 with a one-line notice', () => {
+    const { recipe, notice } = readRecipe(format1);
+    expect(recipe).toEqual(contract);
+    expect(notice).toBe(FORMAT_1_NOTICE);
+    expect(notice).not.toMatch(/\n/);
+    expect(readRecipe({ ...format1, format: 1 }).recipe).toEqual(contract);
+  });
+
+  it('maps every format-1 method and model name to its format-2 name', () => {
+    const pairs = [['db', 'decibel'], ['percent', 'percent-change'], ['zscore', 'z-score'], ['ratio', 'power-ratio']] as const;
+    for (const [old, now] of pairs) expect(parseRecipe({ ...format1, baseline: { ...format1.baseline, method: old } }).baseline.method).toBe(now);
+    expect(parseRecipe({ ...format1, aperiodic: { range: [2, 40], mode: 'knee' } }).aperiodic).toEqual({ range: [2, 40], model: 'power-law-knee' });
+    // the extensions come along unchanged
+    const { format: _f, ...rest } = extended;
+    const old = { ...rest, ...format1, epochs: { ...format1.epochs, events: ['left', 'right'] } };
+    expect(parseRecipe(old).rejection).toEqual(parseRecipe(extended).rejection);
+  });
+
+  it('names the field when the formats are mixed up or unknown', () => {
+    const { format: _f, ...unmarked } = contract;
+    expect(() => parseRecipe(unmarked)).toThrow(/^format is missing: .*add "format": 2/);
+    expect(() => parseRecipe({ ...contract, format: 3 })).toThrow(/^format is 3; this version reads recipe formats 1 and 2/);
+    expect(() => parseRecipe({ ...format1, format: 2 })).toThrow(/^epochs\.start /);
+    expect(() => parseRecipe({ ...format1, baseline: { ...format1.baseline, method: 'dB' } })).toThrow(/^baseline\.method must be one of "db", "percent", "zscore", "ratio" \(format 1\)/);
+    expect(() => parseRecipe({ ...contract, aperiodic: { range: [2, 40], model: 'fixed' } })).toThrow(/^aperiodic\.model must be "power-law" or "power-law-knee"/);
+    expect(() => parseRecipe([contract])).toThrow(/^recipe must be a JSON object/);
   });
 });
 

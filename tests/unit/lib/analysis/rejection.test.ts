@@ -52,7 +52,7 @@ describe('peakToPeak and standardDeviation', () => {
 });
 
 describe('checkEpochs', () => {
-  it('places the epoch at round(onset·fs) + round(tmin·fs) and rejects a spike inside it only', () => {
+  it('places the epoch at round(onset·fs) + round(start·fs) and rejects a spike inside it only', () => {
     const rec = smallRecording();
     // Event at 2.0 s, window −0.2…0.5 s at 10 Hz: start 20 − 2 = 18, length round(0.7·10) + 1 = 8 → samples 18…25.
     rec.data[0][25] = 200; // last sample of the first epoch → A's peak-to-peak 200 − (−1) = 201 µV > 150
@@ -63,7 +63,7 @@ describe('checkEpochs', () => {
         { eventIndex: 0, condition: 'c', onsetSeconds: 2 },
         { eventIndex: 1, condition: 'c', onsetSeconds: 6 },
       ],
-      { tmin: -0.2, tmax: 0.5 },
+      { start: -0.2, end: 0.5 },
       allChannels,
     );
     expect(checks[0].startSample).toBe(18);
@@ -82,17 +82,17 @@ describe('checkEpochs', () => {
   it('rejects a threshold-crossing epoch only when the amplitude exceeds it strictly', () => {
     const rec = smallRecording();
     rec.data[1][20] = 147; // B: 147 − (−3) = 150 µV, equal to the threshold → kept
-    const kept = checkEpochs(rec, [{ eventIndex: 0, condition: 'c', onsetSeconds: 2 }], { tmin: -0.2, tmax: 0.5 }, allChannels);
+    const kept = checkEpochs(rec, [{ eventIndex: 0, condition: 'c', onsetSeconds: 2 }], { start: -0.2, end: 0.5 }, allChannels);
     expect(kept[0].peakToPeakMicrovolts).toBe(150);
     expect(kept[0].rejectedByRules).toBe(false);
-    const stricter = checkEpochs(rec, [{ eventIndex: 0, condition: 'c', onsetSeconds: 2 }], { tmin: -0.2, tmax: 0.5 }, { ...allChannels, peakToPeakMicrovolts: 149.9 });
+    const stricter = checkEpochs(rec, [{ eventIndex: 0, condition: 'c', onsetSeconds: 2 }], { start: -0.2, end: 0.5 }, { ...allChannels, peakToPeakMicrovolts: 149.9 });
     expect(stricter[0].rejectedByRules).toBe(true);
   });
 
   it('finds a flat channel, and checks only the chosen channels when asked', () => {
     const rec = smallRecording();
     rec.data[1].fill(7, 10, 40); // B held at 7 µV over samples 10…39; the epoch 18…25 lies inside → SD 0
-    const window = { tmin: -0.2, tmax: 0.5 };
+    const window = { start: -0.2, end: 0.5 };
     const one = [{ eventIndex: 0, condition: 'c', onsetSeconds: 2 }];
     const all = checkEpochs(rec, one, window, allChannels);
     expect(all[0].reasons).toEqual(['flat on B (SD 0.00 µV)']);
@@ -106,7 +106,7 @@ describe('checkEpochs', () => {
   it('counts epochs outside the recording and across a gap, as selectEpochs does', () => {
     const rec: Recording = { ...smallRecording(), gapSampleIndices: [50] };
     const events = [0.1, 5.0, 5.2, 9.5, 3.0].map((onsetSeconds) => ({ onsetSeconds, durationSeconds: 0, label: 'x' }));
-    const window = { tmin: -0.2, tmax: 0.5 };
+    const window = { start: -0.2, end: 0.5 };
     const checks = checkEpochs(rec, events.map((e, i) => ({ eventIndex: i, condition: 'c', onsetSeconds: e.onsetSeconds })), window, allChannels);
     // By hand (length 8): 0.1 s → start −1 (before the start); 5.0 s → 48…55 holds the block start 50 (gap);
     // 5.2 s → 50…57 begins at the block start (fits); 9.5 s → 93…100 runs past sample 99 (outside); 3.0 s fits.
@@ -116,15 +116,15 @@ describe('checkEpochs', () => {
     const tally = tallyByCondition(checks.map((c) => ({ condition: c.condition, rejected: c.rejectedByRules, fit: c.fit })));
     expect(tally).toEqual([{ condition: 'c', total: 5, kept: 2, rejected: 3, outside: 2, gap: 1 }]);
     // The analysis core's own epoch selection drops the same ones.
-    const selection = selectEpochs(events, 'x', window.tmin, 8, 10, 100, [50]);
+    const selection = selectEpochs(events, 'x', window.start, 8, 10, 100, [50]);
     expect([selection.droppedOutside, selection.droppedGap, selection.starts.length]).toEqual([2, 1, 2]);
   });
 
   it('names the bad setting', () => {
     const rec = smallRecording();
-    expect(() => checkEpochs(rec, [], { tmin: 0.5, tmax: 0.5 }, allChannels)).toThrow(/epochWindow\.tmax .*must be after tmin/);
-    expect(() => checkEpochs(rec, [], { tmin: 0, tmax: 1 }, { ...allChannels, peakToPeakMicrovolts: -1 })).toThrow(/peakToPeakMicrovolts must be a positive/);
-    expect(() => checkEpochs(rec, [], { tmin: 0, tmax: 1 }, { ...allChannels, channelIndices: [2] })).toThrow(/rejection\.channels index 2/);
+    expect(() => checkEpochs(rec, [], { start: 0.5, end: 0.5 }, allChannels)).toThrow(/epochs\.end .*must be after epochs\.start/);
+    expect(() => checkEpochs(rec, [], { start: 0, end: 1 }, { ...allChannels, peakToPeakMicrovolts: -1 })).toThrow(/peakToPeakMicrovolts must be a positive/);
+    expect(() => checkEpochs(rec, [], { start: 0, end: 1 }, { ...allChannels, channelIndices: [2] })).toThrow(/rejection\.channels index 2/);
   });
 });
 
@@ -138,7 +138,7 @@ describe('applyOverride', () => {
       { eventIndex: 1, condition: 'c', onsetSeconds: 6 },
       { eventIndex: 2, condition: 'c', onsetSeconds: 9.9 },
     ],
-    { tmin: -0.2, tmax: 0.5 },
+    { start: -0.2, end: 0.5 },
     allChannels,
   );
 

@@ -10,13 +10,13 @@ function literal(method: BaselineMethod, p: number, row: number[], first: number
   const base = row.slice(first, last + 1);
   const b = base.reduce((a, x) => a + x, 0) / base.length;
   const s = Math.sqrt(base.reduce((a, x) => a + (x - b) ** 2, 0) / (base.length - 1));
-  if (method === 'db') return 10 * Math.log10(p / b);
-  if (method === 'percent') return (100 * (p - b)) / b;
-  if (method === 'zscore') return (p - b) / s;
+  if (method === 'decibel') return 10 * Math.log10(p / b);
+  if (method === 'percent-change') return (100 * (p - b)) / b;
+  if (method === 'z-score') return (p - b) / s;
   return p / b;
 }
 
-const methods: BaselineMethod[] = ['db', 'percent', 'zscore', 'ratio'];
+const methods: BaselineMethod[] = ['decibel', 'percent-change', 'z-score', 'power-ratio'];
 const power = fc.double({ min: 0.01, max: 1000, noNaN: true });
 
 describe('renormalizeAverage', () => {
@@ -38,7 +38,7 @@ describe('renormalizeAverage', () => {
   });
   it('a worked example: baseline [1, 3] (B = 2, S = √2), P = 4 gives 3.0103 dB, 100 %, 1.4142 z, 2 ×', () => {
     const row = [1, 3, 4];
-    const expected = { db: 10 * Math.log10(2), percent: 100, zscore: 2 / Math.SQRT2, ratio: 2 };
+    const expected = { decibel: 10 * Math.log10(2), 'percent-change': 100, 'z-score': 2 / Math.SQRT2, 'power-ratio': 2 };
     for (const m of methods) {
       const out = new Float64Array(3);
       renormalizeAverage(out, row, 3, 0, 1, m);

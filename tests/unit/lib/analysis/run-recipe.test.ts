@@ -1,6 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { analyzeChannel, assembleResult, planRecipe, runRecipe } from '../../../../src/lib/analysis/run-recipe';
 import type { Recording } from '../../../../src/lib/analysis/recording';
+import { fitAperiodic } from '../../../../src/lib/analysis/aperiodic';
+import { welchPsd } from '../../../../src/lib/analysis/welch';
 import { assertClose } from '../../../helpers/assert-close';
 import { seededNormal } from '../../../helpers/seeded-random';
 
@@ -24,12 +26,13 @@ function makeRecording(): Recording {
 }
 
 const recipe = {
-  epochs: { events: ['tone/high', 'tone/low'], tmin: -0.5, tmax: 1.5 },
+  format: 2,
+  epochs: { events: ['tone/high', 'tone/low'], start: -0.5, end: 1.5 },
   frequencies: { min: 4, max: 30, count: 8, spacing: 'log' },
   cycles: { min: 3, max: 7 },
-  baseline: { start: -0.4, end: -0.1, method: 'db', scope: 'average' },
+  baseline: { start: -0.4, end: -0.1, method: 'decibel', scope: 'average' },
   spectrum: { segment: 2, overlap: 0.5, range: [1, 45], source: 'recording' },
-  aperiodic: { range: [2, 40], mode: 'fixed' },
+  aperiodic: { range: [2, 40], model: 'power-law' },
 };
 
 describe('runRecipe', () => {
@@ -64,7 +67,7 @@ describe('runRecipe', () => {
   it('gives bit-identical numbers run whole or split channel by channel', () => {
     // The worker pool runs analyzeChannel per channel; its assembly must match a single-thread run exactly.
     for (const scope of ['average', 'trial'] as const) {
-      const r = { ...recipe, baseline: { ...recipe.baseline, method: 'zscore', scope } };
+      const r = { ...recipe, baseline: { ...recipe.baseline, method: 'z-score', scope } };
       const whole = runRecipe(recording, r);
       const plan = planRecipe(recording, r);
       const reversed = [2, 1, 0].map((i) => analyzeChannel(plan, recording.data[plan.channelIndices[i]].slice()));
@@ -73,6 +76,44 @@ describe('runRecipe', () => {
       const oneChannel = runRecipe(recording, { ...r, channels: ['Pz'] });
       expect(oneChannel.conditions['tone/low'].normalized[0]).toEqual(whole.conditions['tone/low'].normalized[2]);
     }
+  });
+
+  it('gives the same bits for a format-1 recipe as for its format-2 spelling', () => {
+    // Analysis contract: format 1 is still read and upgraded; the numbers must not depend on the spelling.
+    const pairs = [['db', 'decibel'], ['percent', 'percent-change'], ['zscore', 'z-score'], ['ratio', 'power-ratio']] as const;
+    for (const [old, now] of pairs) {
+      const two = { ...recipe, baseline: { ...recipe.baseline, method: now, scope: 'trial' }, aperiodic: { range: [2, 40], model: 'power-law-knee' } };
+      const one = {
+        epochs: { events: recipe.epochs.events, tmin: recipe.epochs.start, tmax: recipe.epochs.end },
+        frequencies: recipe.frequencies,
+        cycles: recipe.cycles,
+        baseline: { ...recipe.baseline, method: old, scope: 'trial' },
+        spectrum: recipe.spectrum,
+        aperiodic: { range: [2, 40], mode: 'knee' },
+        channels: ['Cz'],
+      };
+      expect(JSON.stringify(runRecipe(recording, one))).toBe(JSON.stringify(runRecipe(recording, { ...two, channels: ['Cz'] })));
+    }
+  });
+
+  it('fits the aperiodic line per condition on that condition’s kept epochs when the spectrum comes from epochs', () => {
+    const r = { ...recipe, spectrum: { segment: 1, overlap: 0.5, range: [1, 45], source: 'epochs' } };
+    const result = runRecipe(recording, r);
+    const plan = planRecipe(recording, r);
+    expect(Object.keys(result.aperiodicByCondition!)).toEqual(['tone/high', 'tone/low']);
+    plan.labels.forEach((label, c) => {
+      // Welch over this condition's epochs only, spans written out here from the plan's epoch starts
+      const spans = Int32Array.from(Array.from(plan.epochStarts[c]).flatMap((s) => [s, s + plan.epochSamples]));
+      const w = welchPsd(recording.data[1], plan.sampleRateHz, plan.spectrum.segmentSamples, plan.spectrum.overlapSamples, spans);
+      const { channel, ...fit } = result.aperiodicByCondition![label][1];
+      expect(channel).toBe('Cz');
+      expect(fit).toEqual(fitAperiodic(w.frequencies, w.psd, [2, 40], 'power-law'));
+    });
+    // the 8 Hz burst after "tone/high" on Cz shows as a peak above that condition's line only
+    const near8 = (label: string) => result.aperiodicByCondition![label][1].peaks.some((p) => Math.abs(p.centreHz - 8) < 1.5);
+    expect(near8('tone/high')).toBe(true);
+    expect(near8('tone/low')).toBe(false);
+    expect(runRecipe(recording, recipe).aperiodicByCondition).toBeUndefined();
   });
 
   it('reports progress and honours cancellation', () => {
@@ -92,17 +133,17 @@ describe('runRecipe', () => {
   });
 
   const bad: [string, object, RegExp][] = [
-    ['tmin ≥ tmax', { epochs: { ...recipe.epochs, tmin: 1.5 } }, /^epochs\.tmin must be less than epochs\.tmax/],
+    ['start ≥ end', { epochs: { ...recipe.epochs, start: 1.5 } }, /^epochs\.start must be less than epochs\.end/],
     ['baseline before the epoch', { baseline: { ...recipe.baseline, start: -0.8 } }, /^baseline\.start is before the epoch start/],
     ['baseline after the epoch', { baseline: { ...recipe.baseline, end: 1.6 } }, /^baseline\.end is after the epoch end/],
     ['max frequency at Nyquist', { frequencies: { ...recipe.frequencies, max: 64 } }, /^frequencies\.max must be below the Nyquist frequency \(64 Hz/],
     ['too few cycles of the lowest frequency in the epoch', { cycles: { fixed: 12 } }, /^cycles is too many for the epoch length: at 4 Hz/],
     ['unknown channel', { channels: ['Fz', 'Oz'] }, /^channels\[1\] names no signal in the recording \("Oz"/],
     ['no events of a label', { epochs: { ...recipe.epochs, events: ['tone/high', 'tone/mid'] } }, /^epochs\.events\[1\] has no events labelled "tone\/mid"/],
-    ['bad method', { baseline: { ...recipe.baseline, method: 'decibel' } }, /^baseline\.method /],
+    ['format-1 method name in a format-2 recipe', { baseline: { ...recipe.baseline, method: 'db' } }, /^baseline\.method must be one of "decibel", "percent-change", "z-score", "power-ratio"/],
     ['cycles of the wrong shape', { cycles: { n: 3 } }, /^cycles must be/],
     ['unknown recipe field', { colour: 'blue' }, /^recipe .*colour/],
-    ['aperiodic range with too few bins', { aperiodic: { range: [10, 10.5], mode: 'knee' } }, /^aperiodic\.range holds 2 spectrum bins/],
+    ['aperiodic range with too few bins', { aperiodic: { range: [10, 10.5], model: 'power-law-knee' } }, /^aperiodic\.range holds 2 spectrum bins/],
     ['segment longer than the recording', { spectrum: { ...recipe.spectrum, segment: 100 } }, /^spectrum\.segment/],
   ];
   for (const [what, change, message] of bad) {

@@ -16,14 +16,15 @@ function recording(): Recording {
 describe('single trials kept or not', () => {
   it('gives the same trial-averaged power and normalized maps to the last bit, and rows that average to it', () => {
     const rec = recording();
-    for (const method of ['db', 'zscore'] as const) {
+    for (const method of ['decibel', 'z-score'] as const) {
       const plan = planRecipe(rec, {
-        epochs: { events: ['chime'], tmin: -0.5, tmax: 1.0 },
+        format: 2,
+        epochs: { events: ['chime'], start: -0.5, end: 1.0 },
         frequencies: { min: 4, max: 60, count: 9, spacing: 'log' },
         cycles: { min: 3, max: 9 },
         baseline: { start: -0.4, end: -0.1, method, scope: 'average' },
         spectrum: { segment: 1, overlap: 0.5, range: [1, 80], source: 'recording' },
-        aperiodic: { range: [2, 60], mode: 'fixed' },
+        aperiodic: { range: [2, 60], model: 'power-law' },
       });
       const without = analyzeChannel(plan, rec.data[0]);
       const kept = analyzeChannel(plan, rec.data[0], { singleTrials: true });

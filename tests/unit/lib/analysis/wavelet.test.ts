@@ -2,11 +2,11 @@ import { describe, expect, it } from 'vitest';
 import { normalizeAverage, normalizeTrials } from '../../../../src/lib/analysis/baseline';
 import { decomposeChannel } from '../../../../src/lib/analysis/decompose';
 import { getRealDft } from '../../../../src/lib/analysis/fft';
-import { gaussianSigmas, getWaveletBank, morletWavelet } from '../../../../src/lib/analysis/wavelet';
+import { gaussianSigmas, getWaveletBank, morletWavelet, resolutionOf } from '../../../../src/lib/analysis/wavelet';
 import { assertClose } from '../../../helpers/assert-close';
 import { seededNormal } from '../../../helpers/seeded-random';
 
-const baseline = { first: 0, last: 1, method: 'db' as const, scope: 'average' as const };
+const baseline = { first: 0, last: 1, method: 'decibel' as const, scope: 'average' as const };
 
 function powerOf(samples: Float32Array, fs: number, freqs: number[], sigmas: Float64Array, starts: number[], L: number, singleTrials = true) {
   return decomposeChannel({
@@ -90,6 +90,16 @@ describe('Morlet wavelet', () => {
     assertClose(measure(12, sigma), 0.3, 1e-4, 'fwhm 0.3 s');
   });
 
+  it('reports the temporal and spectral FWHM of each wavelet (Cohen, 2019), worked by hand at 10 Hz with 7 cycles', () => {
+    // σ = 7/(2π·10) = 0.1114085 s; temporal FWHM = √(8 ln 2)·σ = 2.354820 × 0.1114085 = 0.262347 s; spectral SD =
+    // f/n = 1.428571 Hz, so spectral FWHM = 2.354820 × 1.428571 = 3.364029 Hz (by hand, 7 digits).
+    const r = resolutionOf(gaussianSigmas(Float64Array.of(10, 4), { fixed: 7 }));
+    assertClose(r.temporalFwhmSeconds[0], 0.262347, 1e-6);
+    assertClose(r.spectralFwhmHz[0], 3.364029, 1e-6);
+    // time × frequency FWHM is the same for every Gaussian: 8 ln 2 / (2π) = 0.882542 (the uncertainty product)
+    for (let i = 0; i < 2; i++) assertClose(r.temporalFwhmSeconds[i] * r.spectralFwhmHz[i], (8 * Math.LN2) / (2 * Math.PI), 1e-12);
+  });
+
   it('spreads cycles geometrically from min to max over the frequency index', () => {
     // contract: n_i = min·(max/min)^(i/(count−1)); σ = n/(2πf)
     const freqs = Float64Array.of(2, 4, 8);
@@ -100,10 +110,12 @@ describe('Morlet wavelet', () => {
 
 describe('decomposeChannel', () => {
   // Independent reference: the linear convolution y[j] = Σ_k x[j−k]·w[k] written out in the time domain, with the
-  // epoch zero outside its own samples.
+  // epoch zero outside its own samples and its own mean removed first (analysis contract, "Epoch means").
   function directPower(x: Float32Array, start: number, L: number, f: number, sigma: number, fs: number, halfWidth?: number) {
     const w = morletWavelet(f, sigma, fs, halfWidth);
     const h = w.halfWidth;
+    let mean = 0;
+    for (let i = 0; i < L; i++) mean += x[start + i] / L;
     const out = new Float64Array(L);
     for (let j = 0; j < L; j++) {
       let re = 0;
@@ -111,8 +123,8 @@ describe('decomposeChannel', () => {
       for (let k = -h; k <= h; k++) {
         const i = j - k;
         if (i < 0 || i >= L) continue;
-        re += x[start + i] * w.re[k + h];
-        im += x[start + i] * w.im[k + h];
+        re += (x[start + i] - mean) * w.re[k + h];
+        im += (x[start + i] - mean) * w.im[k + h];
       }
       out[j] = re * re + im * im;
     }
@@ -201,7 +213,7 @@ describe('decomposeChannel', () => {
     const freqs = Float64Array.of(6, 12, 30);
     const sigmas = gaussianSigmas(freqs, { fixed: 5 });
     const starts = Int32Array.of(100, 600, 1200, 2000);
-    for (const method of ['db', 'percent', 'zscore', 'ratio'] as const) {
+    for (const method of ['decibel', 'percent-change', 'z-score', 'power-ratio'] as const) {
       for (const scope of ['average', 'trial'] as const) {
         const job = { samples: x, epochStarts: [starts], epochSamples: L, sampleRateHz: fs, frequencies: freqs, sigmas, baseline: { first: 60, last: 90, method, scope } };
         const out = decomposeChannel({ ...job, singleTrials: true });
@@ -209,7 +221,7 @@ describe('decomposeChannel', () => {
         const trials = [0, 1, 2, 3].map((e) => Float64Array.from(out.singleTrials![0].subarray(e * size, (e + 1) * size)));
         const expected = scope === 'trial' ? normalizeTrials(trials, L, job.baseline, method) : normalizeAverage(out.power[0], L, job.baseline, method);
         // single trials are stored in Float32 (relative rounding ~6e-8)
-        const tolerance = { db: 1e-5, percent: 1e-3, zscore: 1e-4, ratio: 1e-5 }[method];
+        const tolerance = { decibel: 1e-5, 'percent-change': 1e-3, 'z-score': 1e-4, 'power-ratio': 1e-5 }[method];
         assertClose(out.normalized[0], expected, tolerance, `${method}/${scope}`);
         // the trial-average path (no single trials) gives the same normalized maps
         assertClose(decomposeChannel(job).normalized[0], out.normalized[0], tolerance, `${method}/${scope} average path`);

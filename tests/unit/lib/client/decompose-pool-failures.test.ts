@@ -23,12 +23,13 @@ function makeRecording(): Recording {
 }
 
 const recipe = {
-  epochs: { events: ['knock'], tmin: -0.4, tmax: 1.0 },
+  format: 2,
+  epochs: { events: ['knock'], start: -0.4, end: 1.0 },
   frequencies: { min: 6, max: 30, count: 5, spacing: 'log' },
   cycles: { fixed: 4 },
-  baseline: { start: -0.3, end: -0.1, method: 'db', scope: 'average' },
+  baseline: { start: -0.3, end: -0.1, method: 'decibel', scope: 'average' },
   spectrum: { segment: 1, overlap: 0.5, range: [1, 50], source: 'recording' },
-  aperiodic: { range: [2, 40], mode: 'fixed' },
+  aperiodic: { range: [2, 40], model: 'power-law' },
 };
 
 type Behaviour = 'works' | { throwOn: string } | { neverLoads: string } | 'stalls';

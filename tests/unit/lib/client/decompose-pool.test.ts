@@ -20,12 +20,13 @@ function makeRecording(): Recording {
 }
 
 const recipe = {
-  epochs: { events: ['flash'], tmin: -0.3, tmax: 1.0 },
+  format: 2,
+  epochs: { events: ['flash'], start: -0.3, end: 1.0 },
   frequencies: { min: 5, max: 40, count: 6, spacing: 'linear' },
   cycles: { fixed: 4 },
-  baseline: { start: -0.25, end: -0.05, method: 'percent', scope: 'trial' },
+  baseline: { start: -0.25, end: -0.05, method: 'percent-change', scope: 'trial' },
   spectrum: { segment: 1, overlap: 0.5, range: [1, 60], source: 'epochs' },
-  aperiodic: { range: [2, 50], mode: 'knee' },
+  aperiodic: { range: [2, 50], model: 'power-law-knee' },
 };
 
 describe('DecomposePool on worker threads', () => {

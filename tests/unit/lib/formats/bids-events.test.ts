@@ -12,12 +12,14 @@ describe('parseBidsEvents', () => {
     '7.25\t0\tn/a\t1.2\toar.png',
   ].join('\n');
 
-  it('reads onset, duration and trial_type, ignoring extra columns and honouring n/a', () => {
-    const { events, outside, warnings } = parseBidsEvents(tsv);
+  it('reads onset, duration and trial_type, keeps the other columns as written, and honours n/a', () => {
+    const { header, events, outside, warnings } = parseBidsEvents(tsv);
+    expect(header).toEqual(['onset', 'duration', 'trial_type', 'response_time', 'stim_file']);
+    const cells = (o: string, d: string, t: string, rt: string, f: string) => ({ onset: o, duration: d, trial_type: t, response_time: rt, stim_file: f });
     expect(events).toEqual([
-      { onsetSeconds: 1.5, durationSeconds: 0.5, label: 'lamp-watch', row: 2, durationKnown: true },
-      { onsetSeconds: 4, durationSeconds: 0, label: 'oar-pull', row: 3, durationKnown: false },
-      { onsetSeconds: 7.25, durationSeconds: 0, label: 'n/a', row: 4, durationKnown: true },
+      { onsetSeconds: 1.5, durationSeconds: 0.5, label: 'lamp-watch', row: 2, durationKnown: true, columns: cells('1.5', '0.5', 'lamp-watch', '0.43', 'lamp.png') },
+      { onsetSeconds: 4, durationSeconds: 0, label: 'oar-pull', row: 3, durationKnown: false, columns: cells('4.0', 'n/a', 'oar-pull', 'n/a', 'n/a') },
+      { onsetSeconds: 7.25, durationSeconds: 0, label: 'n/a', row: 4, durationKnown: true, columns: cells('7.25', '0', 'n/a', '1.2', 'oar.png') },
     ]);
     expect(outside).toEqual([]);
     expect(warnings).toEqual([]);
