@@ -35,6 +35,8 @@ export interface Decomposition {
   power: Float64Array[][];
   spectrum: { frequencies: Float64Array; psd: Float64Array[] };
   aperiodic: (AperiodicFit & { channel: string })[];
+  /** Per condition (label → one fit per channel) when the recipe spectrum comes from the kept epochs; else null. */
+  aperiodicByCondition: Record<string, (AperiodicFit & { channel: string })[]> | null;
   warnings: string[];
   epochStarts: Int32Array[];
   epochSamples: number;
@@ -155,6 +157,7 @@ export async function runDecomposition(recording: Recording, recordingId: string
       power: result.channels.map((_, c) => labels.map((l) => flatten(result.conditions[l].power[c]))),
       spectrum: { frequencies: Float64Array.from(result.spectrum.frequencies), psd: result.spectrum.psd.map((p) => Float64Array.from(p)) },
       aperiodic: result.aperiodic,
+      aperiodicByCondition: result.aperiodicByCondition ?? null,
       warnings: result.warnings,
       epochStarts: plan.epochStarts,
       epochSamples: plan.epochSamples,

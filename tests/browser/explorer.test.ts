@@ -319,6 +319,18 @@ describe('the spectrum and band screens', () => {
     expect(csv[0]).toBe('channel,exponent,offset,knee,knee_hz,r2,rmse,r2_kept,points,excluded,peaks,fit_low_hz,fit_high_hz,model,trials');
     expect(csv).toHaveLength(1 + DEMO.channels.length);
     expect(Number(csv.find((l) => l.startsWith('Fz,'))!.split(',')[1])).toBeCloseTo(after, 9);
+
+    // Fits per condition, from the run: each equals the fit of Welch over that condition's kept epochs alone, computed
+    // here from the plan's spans (the same core functions, called independently of the worker pool).
+    const byCondition = nodeResult(recipe).aperiodicByCondition!;
+    expect(Object.keys(byCondition).sort()).toEqual([...plan.labels].sort());
+    for (const [c, label] of plan.labels.entries()) {
+      const own = welchPsd(recording.data[recording.channelNames.indexOf('Fz')], 500, plan.spectrum.segmentSamples, plan.spectrum.overlapSamples, plan.spectrum.conditionSpans![c]);
+      const expected = fitAperiodic(own.frequencies, own.psd, [2, 40], 'power-law').exponent;
+      expect(byCondition[label].find((f) => f.channel === 'Fz')!.exponent).toBe(expected);
+      const shown = await page.getByTestId(`condition-fit-Fz-${label}`).getAttribute('data-exponent');
+      expect(Number(shown)).toBe(expected);
+    }
     await page.screenshot({ path: path.join(artifactsDir, 'explorer-spectrum.png'), fullPage: true });
   });
 

@@ -15,6 +15,7 @@ import { useViewStore, type SpectrumAxes } from '../../stores/view';
 import CanvasPlot from '../explorer/CanvasPlot';
 import Choice from '../explorer/Choice';
 import FitTable, { describePeaks, type FitRow } from '../explorer/FitTable';
+import ConditionFits from '../explorer/ConditionFits';
 import NumberField from '../explorer/NumberField';
 import ScalpMap from '../explorer/ScalpMap';
 import { downloadBlob } from '../explorer/download';
@@ -200,6 +201,11 @@ export default function SpectrumScreen(_props: WorkspaceProps) {
               <ScalpMap title="Aperiodic exponent" unit="χ" values={rows.map((r) => ({ channel: r.channel, value: r.exponent }))} testId="scalp-exponent" />
             </div>
           </div>
+          {d !== null && (
+            <div className="card p-2">
+              <ConditionFits byCondition={d.aperiodicByCondition} labels={d.labels} selected={ch} onSelect={(c) => setView({ channel: c })} />
+            </div>
+          )}
         </>
       )}
     </div>
