@@ -3,7 +3,8 @@
  * [--out <result.json>]`, the analysis contract's command line: exit 0 with the Result JSON, exit 2 with one line
  * on stderr for bad input (never a stack trace), exit 1 for anything unexpected.
  */
-import { readFile, writeFile } from 'node:fs/promises';
+import { readFile } from 'node:fs/promises';
+import { oneLine, writeJsonOutput } from './io';
 import { pathToFileURL } from 'node:url';
 import { AnalysisInputError } from '../lib/analysis/errors';
 import { parseRecipe, readRecipe as checkRecipe, RecipeSchema } from '../lib/analysis/recipe';
@@ -74,9 +75,6 @@ export function readerOptionsOf(recipe: unknown): Pick<LoadOptions, 'unitFactors
   return { unitFactors: recording?.units, exclude: recording?.exclude, fingerprint: recording?.fingerprint !== undefined };
 }
 
-function oneLine(s: string): string {
-  return s.replace(/\s*\n\s*/g, ' ');
-}
 
 /** Runs the command; resolves with the exit code. */
 export async function main(argv: string[]): Promise<number> {
@@ -97,15 +95,7 @@ export async function main(argv: string[]): Promise<number> {
     const result = runRecipe(recording, recipe);
     result.warnings.unshift(...warnings);
     const text = JSON.stringify(result);
-    if (args.out !== undefined) {
-      try {
-        await writeFile(args.out, text + '\n');
-      } catch (e) {
-        throw new CliInputError(args.out, `cannot be written (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
-      }
-    } else {
-      await new Promise<void>((resolve, reject) => process.stdout.write(text + '\n', (err) => (err ? reject(err) : resolve())));
-    }
+    await writeJsonOutput(text, args.out);
     return 0;
   } catch (e) {
     if (e instanceof CliInputError) {

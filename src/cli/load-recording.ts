@@ -7,12 +7,9 @@ import type { Recording } from '../lib/analysis/recording';
 import { FormatError, openEdf, parseBidsEvents, parseCsvSamples, toRecording, type ByteSource } from '../lib/formats';
 
 /** A command-line input problem: `where` is the file or option, printed before the message. */
-export class CliInputError extends Error {
-  constructor(readonly where: string, message: string) {
-    super(message);
-    this.name = 'CliInputError';
-  }
-}
+import { CliInputError } from './io';
+
+export { CliInputError };
 
 export interface LoadOptions {
   eventsPath?: string;

@@ -3,7 +3,8 @@
  * statistics contract's command line: exit 0 with the result JSON, exit 2 with one line on stderr naming the file
  * and the line, column or field for bad input (never a stack trace), exit 1 for anything unexpected.
  */
-import { readFile, writeFile } from 'node:fs/promises';
+import { readFile } from 'node:fs/promises';
+import { CliInputError, oneLine, writeJsonOutput } from './io';
 import { pathToFileURL } from 'node:url';
 import { DesignSchema, parseWith, runDesign } from '../lib/statistics/design';
 import { StatisticsInputError } from '../lib/statistics/errors';
@@ -14,15 +15,6 @@ import { parseTidyValues } from '../lib/statistics/tidy-values';
 const USAGE = 'usage: stats <values.csv> --design <design.json> [--maps <maps.json>] [--out <result.json>]';
 const OPTIONS = ['design', 'maps', 'out'];
 
-/** Bad input outside the statistics core: `where` is a file or an option. */
-class CliInputError extends Error {
-  constructor(
-    readonly where: string,
-    message: string,
-  ) {
-    super(message);
-  }
-}
 
 interface Args {
   values: string;
@@ -69,7 +61,6 @@ async function readJson(path: string): Promise<unknown> {
   }
 }
 
-const oneLine = (s: string) => s.replace(/\s*\n\s*/g, ' ');
 
 /** Runs the command; resolves with the exit code. */
 export async function main(argv: string[]): Promise<number> {
@@ -91,15 +82,7 @@ export async function main(argv: string[]): Promise<number> {
     }
     result.warnings = warnings;
     const json = JSON.stringify(result);
-    if (args.out !== undefined) {
-      try {
-        await writeFile(args.out, json + '\n');
-      } catch (e) {
-        throw new CliInputError(args.out, `cannot be written (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
-      }
-    } else {
-      await new Promise<void>((resolve, reject) => process.stdout.write(json + '\n', (err) => (err ? reject(err) : resolve())));
-    }
+    await writeJsonOutput(json, args.out);
     return 0;
   } catch (e) {
     if (e instanceof CliInputError) {
