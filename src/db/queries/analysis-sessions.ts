@@ -2,6 +2,7 @@ import { asc, eq } from 'drizzle-orm';
 import { db } from '../client';
 import { analysisSessions, users, type AnalysisSession } from '../schema';
 import { recordAudit } from './audit';
+import { ensureSubject } from './review';
 
 export async function listAnalysisSessions(studyId: string) {
   return db
@@ -12,6 +13,7 @@ export async function listAnalysisSessions(studyId: string) {
     .orderBy(asc(analysisSessions.subjectCode));
 }
 
+/** A new draft session for a subject of the study (the subject is created on first use of its code). */
 export async function createAnalysisSession(
   studyId: string,
   teamId: string,
@@ -19,13 +21,14 @@ export async function createAnalysisSession(
   input: { subjectCode: string; fingerprint: string | null },
 ): Promise<AnalysisSession> {
   return db.transaction(async (tx) => {
+    const subject = await ensureSubject(tx, studyId, teamId, ownerId, input.subjectCode);
     const [row] = await tx
       .insert(analysisSessions)
-      .values({ studyId, ownerId, subjectCode: input.subjectCode, fingerprint: input.fingerprint })
+      .values({ studyId, ownerId, subjectId: subject.id, subjectCode: subject.code, fingerprint: input.fingerprint })
       .returning();
     await recordAudit(tx, {
       actorId: ownerId, action: 'analysisSession.create', targetTable: 'analysis_sessions', targetId: row.id, teamId,
-      detail: { subjectCode: input.subjectCode },
+      detail: { studyId, subjectCode: input.subjectCode, fingerprint: input.fingerprint },
     });
     return row;
   });

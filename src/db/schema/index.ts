@@ -2,3 +2,4 @@ export * from './auth';
 export * from './teams';
 export * from './analysis';
 export * from './system';
+export * from './review';

@@ -13,7 +13,11 @@ export const mailMessages = pgTable('mail_messages', {
 });
 export type MailMessage = typeof mailMessages.$inferSelect;
 
-/** Who did what, when, to which row. Append-only. */
+/**
+ * Who did what, when, to which row. Append-only (the app's role may only SELECT and INSERT). Each event holds the
+ * SHA-256 of the previous event of the same team (`prevHash`; site events without a team form their own chain) and
+ * its own (`hash`), computed by recordAudit (src/db/queries/audit.ts) and checked by `npm run audit:verify`.
+ */
 export const auditEvents = pgTable(
   'audit_events',
   {
@@ -25,7 +29,15 @@ export const auditEvents = pgTable(
     teamId: uuid('team_id'),
     detail: jsonb('detail').$type<Record<string, unknown>>().notNull().default({}),
     at: timestamp('at', { withTimezone: true }).notNull().defaultNow(),
+    /** The previous event's `hash` in this team's chain; 64 zeros for a chain's first event; null before the chain. */
+    prevHash: text('prev_hash'),
+    /** SHA-256 (hex) over the RFC 8785 form of this event (src/lib/server/audit-chain.ts); null before the chain. */
+    hash: text('hash'),
   },
-  (t) => [index('audit_events_target_idx').on(t.targetTable, t.targetId), index('audit_events_at_idx').on(t.at)],
+  (t) => [
+    index('audit_events_target_idx').on(t.targetTable, t.targetId),
+    index('audit_events_at_idx').on(t.at),
+    index('audit_events_team_id_idx').on(t.teamId, t.id),
+  ],
 );
 export type AuditEvent = typeof auditEvents.$inferSelect;

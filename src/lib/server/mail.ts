@@ -15,9 +15,10 @@ export function mailFakeActive(): boolean {
   return import.meta.env.TIDEMARK_DEMO === true && process.env.TIDEMARK_MAIL_FAKE === '1';
 }
 
-export async function sendMail(to: string, subject: string, text: string): Promise<void> {
+/** Sends one message: a plain-text part, and an HTML alternative when `html` is given. */
+export async function sendMail(to: string, subject: string, text: string, html?: string): Promise<void> {
   // base64 keeps long links intact for anyone reading the raw message.
-  await transport.sendMail({ from, to, subject, text, textEncoding: 'base64' });
+  await transport.sendMail({ from, to, subject, text, ...(html ? { html } : {}), textEncoding: 'base64' });
 }
 
 /** The public origin used in mailed links: TIDEMARK_ORIGIN when set, else the origin of the request. */

@@ -14,6 +14,8 @@ export const limits = {
   invitationToken: { bucket: 'invitation:token', max: 5, windowMinutes: 60, lockMinutes: 60 },
   invitationAddress: { bucket: 'invitation:address', max: 30, windowMinutes: 60, lockMinutes: 60 },
   passwordChangeAccount: { bucket: 'password-change:account', max: 5, windowMinutes: 15, lockMinutes: 15 },
+  /** Wrong passwords when signing a review (return, sign off, reviewed), per account: NIST SP 800-63B §5.2.2. */
+  signingAccount: { bucket: 'signing:account', max: 5, windowMinutes: 15, lockMinutes: 15 },
 } as const satisfies Record<string, ThrottleRule>;
 
 /** "Wait 14 minutes" / "Wait 40 seconds": how long, in words, for a refusal. */

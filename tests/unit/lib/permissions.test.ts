@@ -20,7 +20,11 @@ const expected: Record<Action, Record<Role, boolean>> = {
   'analysisSession:submit':  { lead: N, analyst: Y, reviewer: N },
   'analysisSession:signOff': { lead: Y, analyst: N, reviewer: N },
   'analysisSession:return':  { lead: Y, analyst: N, reviewer: N },
+  // Team review (issue 11): leads sign ("reviewed"), return and sign off; everyone reads, writes and resolves notes.
+  'analysisSession:sign':    { lead: Y, analyst: N, reviewer: N },
+  'note:view':               { lead: Y, analyst: Y, reviewer: Y },
   'note:create':             { lead: Y, analyst: Y, reviewer: Y },
+  'note:resolve':            { lead: Y, analyst: Y, reviewer: Y },
   'audit:view':              { lead: Y, analyst: N, reviewer: N },
 };
 

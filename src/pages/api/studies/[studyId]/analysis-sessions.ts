@@ -1,7 +1,9 @@
 import type { APIRoute } from 'astro';
 import { json, notFound, parseJson, requirePermission, requireUser, route } from '../../../../lib/server/http';
 import { getStudyForMember } from '../../../../db/queries/teams';
-import { createAnalysisSession, listAnalysisSessions } from '../../../../db/queries/analysis-sessions';
+import { createAnalysisSession } from '../../../../db/queries/analysis-sessions';
+import { listSessionsWithManifest } from '../../../../db/queries/review';
+import { signatureJson } from '../../../../lib/server/review-api';
 import { AnalysisSessionInput } from '../../../../lib/schemas/studies';
 
 export const GET: APIRoute = (ctx) =>
@@ -9,8 +11,8 @@ export const GET: APIRoute = (ctx) =>
     const user = requireUser(locals);
     const found = (await getStudyForMember(params.studyId!, user.id)) ?? notFound('The study');
     requirePermission(found.role, 'study:view');
-    const rows = await listAnalysisSessions(found.study.id);
-    return json({ analysisSessions: rows.map((r) => ({ ...r.session, ownerName: r.ownerName })) });
+    const rows = await listSessionsWithManifest(found.study.id);
+    return json({ analysisSessions: rows.map((r) => ({ ...r.session, ownerName: r.ownerName, signatures: r.signatures.map(signatureJson) })) });
   });
 
 export const POST: APIRoute = (ctx) =>

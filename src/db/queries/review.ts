@@ -1,0 +1,398 @@
+/**
+ * Team review queries (issue 11): member-scoped loads (another team's rows read as none), recipe versions with
+ * optimistic concurrency, summaries, status changes in order, signatures, notes. Each change and its audit event are
+ * one transaction; changes to one analysis session are serialized by locking its row (SELECT … FOR UPDATE).
+ */
+import { and, asc, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
+import { db } from '../client';
+import {
+  analysisSessions,
+  auditEvents,
+  mailMutes,
+  memberships,
+  notes,
+  recipeVersions,
+  signatures,
+  studies,
+  subjects,
+  summaries,
+  teams,
+  users,
+  type AnalysisSession,
+  type Note,
+  type RecipeVersion,
+  type Signature,
+  type Study,
+  type Team,
+} from '../schema';
+import type { Role } from '../../lib/permissions';
+import type { MailKind, NoteAnchorT } from '../../lib/schemas/review';
+import { jsonHash, signedContentHash } from '../../lib/server/review-hash';
+import { recordAudit } from './audit';
+import { isUuid } from './teams';
+
+type Tx = Parameters<Parameters<typeof db.transaction>[0]>[0];
+
+export interface SessionWithRole {
+  session: AnalysisSession;
+  study: Study;
+  team: Team;
+  role: Role;
+}
+
+/** The analysis session when the user belongs to its team, else null (callers answer 404). */
+export async function getSessionForMember(sessionId: string, userId: string): Promise<SessionWithRole | null> {
+  if (!isUuid(sessionId)) return null;
+  const rows = await db
+    .select({ session: analysisSessions, study: studies, team: teams, role: memberships.role })
+    .from(analysisSessions)
+    .innerJoin(studies, eq(studies.id, analysisSessions.studyId))
+    .innerJoin(teams, eq(teams.id, studies.teamId))
+    .innerJoin(memberships, and(eq(memberships.teamId, studies.teamId), eq(memberships.userId, userId)))
+    .where(eq(analysisSessions.id, sessionId))
+    .limit(1);
+  return rows[0] ?? null;
+}
+
+export interface NoteWithRole extends SessionWithRole {
+  note: Note;
+}
+
+export async function getNoteForMember(noteId: string, userId: string): Promise<NoteWithRole | null> {
+  if (!isUuid(noteId)) return null;
+  const rows = await db
+    .select({ note: notes, session: analysisSessions, study: studies, team: teams, role: memberships.role })
+    .from(notes)
+    .innerJoin(analysisSessions, eq(analysisSessions.id, notes.analysisSessionId))
+    .innerJoin(studies, eq(studies.id, analysisSessions.studyId))
+    .innerJoin(teams, eq(teams.id, studies.teamId))
+    .innerJoin(memberships, and(eq(memberships.teamId, studies.teamId), eq(memberships.userId, userId)))
+    .where(eq(notes.id, noteId))
+    .limit(1);
+  return rows[0] ?? null;
+}
+
+// ---------------------------------------------------------------- subjects and sessions
+
+export async function listSubjects(studyId: string) {
+  return db.select({ id: subjects.id, code: subjects.code, createdAt: subjects.createdAt }).from(subjects).where(eq(subjects.studyId, studyId)).orderBy(asc(subjects.code));
+}
+
+/** The study's subject with this code, created (and audited) when it is new. */
+export async function ensureSubject(tx: Tx, studyId: string, teamId: string, actorId: string, code: string): Promise<{ id: string; code: string; created: boolean }> {
+  const inserted = await tx.insert(subjects).values({ studyId, code, createdBy: actorId }).onConflictDoNothing().returning({ id: subjects.id, code: subjects.code });
+  if (inserted[0]) {
+    await recordAudit(tx, { actorId, action: 'subject.create', targetTable: 'subjects', targetId: inserted[0].id, teamId, detail: { studyId, code } });
+    return { ...inserted[0], created: true };
+  }
+  const [existing] = await tx.select({ id: subjects.id, code: subjects.code }).from(subjects).where(and(eq(subjects.studyId, studyId), eq(subjects.code, code)));
+  return { ...existing, created: false };
+}
+
+export async function createSubject(studyId: string, teamId: string, actorId: string, code: string) {
+  return db.transaction((tx) => ensureSubject(tx, studyId, teamId, actorId, code));
+}
+
+/** The study's sessions with owner, current version and its signatures (the manifest), for the study page and the list route. */
+export async function listSessionsWithManifest(studyId: string) {
+  const rows = await db
+    .select({ session: analysisSessions, ownerName: users.displayName })
+    .from(analysisSessions)
+    .innerJoin(users, eq(users.id, analysisSessions.ownerId))
+    .where(eq(analysisSessions.studyId, studyId))
+    .orderBy(asc(analysisSessions.subjectCode), asc(analysisSessions.createdAt));
+  const ids = rows.map((r) => r.session.id);
+  const sigs = ids.length ? await db.select().from(signatures).where(inArray(signatures.analysisSessionId, ids)).orderBy(asc(signatures.signedAt)) : [];
+  return rows.map((r) => ({ ...r, signatures: sigs.filter((s) => s.analysisSessionId === r.session.id) }));
+}
+
+// ---------------------------------------------------------------- recipe versions and summaries
+
+export type SaveVersionResult =
+  | { ok: true; version: RecipeVersion; statusBefore: AnalysisSession['status']; statusAfter: AnalysisSession['status'] }
+  | { ok: false; reason: 'stale'; current: RecipeVersion | null }
+  | { ok: false; reason: 'in review' };
+
+async function lockSession(tx: Tx, sessionId: string): Promise<AnalysisSession> {
+  const [row] = await tx.select().from(analysisSessions).where(eq(analysisSessions.id, sessionId)).for('update');
+  return row;
+}
+
+async function versionByNumber(tx: Tx | typeof db, sessionId: string, number: number | null): Promise<RecipeVersion | null> {
+  if (number === null) return null;
+  const [row] = await tx.select().from(recipeVersions).where(and(eq(recipeVersions.analysisSessionId, sessionId), eq(recipeVersions.number, number)));
+  return row ?? null;
+}
+
+/**
+ * Saves the next recipe version when `baseVersion` is still the current one; else reports the current version
+ * (the route answers 409 with it). A session in review cannot change; a signed-off session goes back to draft with
+ * its new, unsigned version, and its signatures stay bound to the versions they name.
+ */
+export async function saveRecipeVersion(ctx: SessionWithRole, actorId: string, baseVersion: number | null, recipe: Record<string, unknown>): Promise<SaveVersionResult> {
+  return db.transaction(async (tx) => {
+    const session = await lockSession(tx, ctx.session.id);
+    if (session.currentVersion !== baseVersion) return { ok: false, reason: 'stale', current: await versionByNumber(tx, session.id, session.currentVersion) };
+    if (session.status === 'in review') return { ok: false, reason: 'in review' };
+    const number = (session.currentVersion ?? 0) + 1;
+    const [version] = await tx.insert(recipeVersions).values({ analysisSessionId: session.id, number, recipe, recipeHash: jsonHash(recipe), createdBy: actorId }).returning();
+    const statusAfter = session.status === 'signed off' ? 'draft' : session.status;
+    await tx.update(analysisSessions).set({ currentVersion: number, status: statusAfter, updatedAt: sql`now()` }).where(eq(analysisSessions.id, session.id));
+    await recordAudit(tx, {
+      actorId, action: 'recipeVersion.save', targetTable: 'recipe_versions', targetId: version.id, teamId: ctx.team.id,
+      detail: { analysisSessionId: session.id, studyId: ctx.study.id, number, recipeHash: version.recipeHash, ...(statusAfter !== session.status ? { status: { from: session.status, to: statusAfter } } : {}) },
+    });
+    return { ok: true, version, statusBefore: session.status, statusAfter };
+  });
+}
+
+export async function listRecipeVersions(sessionId: string) {
+  return db
+    .select({ number: recipeVersions.number, recipeHash: recipeVersions.recipeHash, createdAt: recipeVersions.createdAt, createdBy: recipeVersions.createdBy, summaryHash: summaries.summaryHash })
+    .from(recipeVersions)
+    .leftJoin(summaries, eq(summaries.recipeVersionId, recipeVersions.id))
+    .where(eq(recipeVersions.analysisSessionId, sessionId))
+    .orderBy(asc(recipeVersions.number));
+}
+
+export async function getRecipeVersion(sessionId: string, number: number) {
+  return versionByNumber(db, sessionId, number);
+}
+
+export async function getSummary(recipeVersionId: string) {
+  const [row] = await db.select().from(summaries).where(eq(summaries.recipeVersionId, recipeVersionId));
+  return row ?? null;
+}
+
+export type UploadSummaryResult = { ok: true; summaryHash: string } | { ok: false; reason: 'exists'; summaryHash: string } | { ok: false; reason: 'in review' };
+
+/** Stores the summary of a recipe version, once: a version's numbers never change after upload (a signature may cover them). */
+export async function uploadSummary(ctx: SessionWithRole, version: RecipeVersion, actorId: string, summary: Record<string, unknown>, bytes: number): Promise<UploadSummaryResult> {
+  return db.transaction(async (tx) => {
+    const session = await lockSession(tx, ctx.session.id);
+    const [existing] = await tx.select({ summaryHash: summaries.summaryHash }).from(summaries).where(eq(summaries.recipeVersionId, version.id));
+    if (existing) return { ok: false, reason: 'exists', summaryHash: existing.summaryHash };
+    if (session.status === 'in review' && session.currentVersion === version.number) return { ok: false, reason: 'in review' };
+    const summaryHash = jsonHash(summary);
+    await tx.insert(summaries).values({ recipeVersionId: version.id, summary, summaryHash, bytes, uploadedBy: actorId });
+    await recordAudit(tx, {
+      actorId, action: 'summary.upload', targetTable: 'summaries', targetId: version.id, teamId: ctx.team.id,
+      detail: { analysisSessionId: session.id, studyId: ctx.study.id, recipeVersion: version.number, summaryHash, bytes },
+    });
+    return { ok: true, summaryHash };
+  });
+}
+
+// ---------------------------------------------------------------- status changes and signatures
+
+export type Meaning = Signature['meaning'];
+
+export type StatusResult =
+  | { ok: true; session: AnalysisSession; signature: Signature | null }
+  | { ok: false; code: 'stale_version'; currentVersion: number | null }
+  | { ok: false; code: 'out_of_order'; status: AnalysisSession['status'] };
+
+/** Which status each change starts from and leads to: draft → in review → returned | signed off; returned → in review. */
+export const transitions = {
+  submit: { from: ['draft', 'returned'], to: 'in review' },
+  return: { from: ['in review'], to: 'returned' },
+  signOff: { from: ['in review'], to: 'signed off' },
+  reviewed: { from: ['in review'], to: null },
+} as const satisfies Record<string, { from: readonly AnalysisSession['status'][]; to: AnalysisSession['status'] | null }>;
+
+const meaningOf = { return: 'returned', signOff: 'approved', reviewed: 'reviewed' } as const;
+
+/**
+ * Applies a status change (and, for return / sign-off / reviewed, writes the signature) when the session is in a
+ * status it may change from and `recipeVersion` is still the current version. The signature records the signer's
+ * printed name as the account shows it, the time (the database clock), the meaning, and the SHA-256 over the signed
+ * content (src/lib/server/review-hash.ts).
+ */
+export async function applyStatusChange(
+  ctx: SessionWithRole,
+  signer: { id: string; displayName: string },
+  change: keyof typeof transitions,
+  recipeVersion: number,
+  reason: string | null,
+): Promise<StatusResult> {
+  return db.transaction(async (tx) => {
+    const session = await lockSession(tx, ctx.session.id);
+    if (session.currentVersion !== recipeVersion) return { ok: false, code: 'stale_version', currentVersion: session.currentVersion };
+    const rule = transitions[change];
+    if (!(rule.from as readonly string[]).includes(session.status)) return { ok: false, code: 'out_of_order', status: session.status };
+    let signature: Signature | null = null;
+    if (change !== 'submit') {
+      const version = (await versionByNumber(tx, session.id, recipeVersion))!;
+      const [summary] = await tx.select({ summary: summaries.summary }).from(summaries).where(eq(summaries.recipeVersionId, version.id));
+      const contentHash = signedContentHash({ analysisSessionId: session.id, fingerprint: session.fingerprint, recipeVersion, recipe: version.recipe, summary: summary?.summary ?? null });
+      [signature] = await tx
+        .insert(signatures)
+        .values({ analysisSessionId: session.id, recipeVersionId: version.id, recipeVersionNumber: recipeVersion, signerId: signer.id, printedName: signer.displayName, meaning: meaningOf[change], reason, contentHash })
+        .returning();
+      await recordAudit(tx, {
+        actorId: signer.id, action: 'signature.create', targetTable: 'signatures', targetId: signature.id, teamId: ctx.team.id,
+        detail: { analysisSessionId: session.id, studyId: ctx.study.id, meaning: signature.meaning, recipeVersion, contentHash, printedName: signer.displayName },
+      });
+    }
+    let updated = session;
+    if (rule.to !== null) {
+      [updated] = await tx
+        .update(analysisSessions)
+        .set({ status: rule.to, returnReason: change === 'return' ? reason : null, updatedAt: sql`now()` })
+        .where(eq(analysisSessions.id, session.id))
+        .returning();
+      await recordAudit(tx, {
+        actorId: signer.id, action: `analysisSession.${change}`, targetTable: 'analysis_sessions', targetId: session.id, teamId: ctx.team.id,
+        detail: { studyId: ctx.study.id, from: session.status, to: rule.to, recipeVersion, ...(reason ? { reason } : {}) },
+      });
+    }
+    return { ok: true, session: updated, signature };
+  });
+}
+
+/** A refused signing attempt (wrong password or throttled), audited in a transaction of its own so the refusal stays on record. */
+export async function auditSigningRefused(ctx: SessionWithRole, userId: string, detail: Record<string, unknown>) {
+  await recordAudit(db, { actorId: userId, action: 'signature.refused', targetTable: 'analysis_sessions', targetId: ctx.session.id, teamId: ctx.team.id, detail: { studyId: ctx.study.id, ...detail } });
+}
+
+export async function listSignatures(sessionId: string) {
+  return db.select().from(signatures).where(eq(signatures.analysisSessionId, sessionId)).orderBy(asc(signatures.signedAt), asc(signatures.id));
+}
+
+// ---------------------------------------------------------------- notes
+
+export async function listNotes(sessionId: string) {
+  return db
+    .select({ note: notes, authorName: users.displayName, recipeVersion: recipeVersions.number })
+    .from(notes)
+    .innerJoin(users, eq(users.id, notes.authorId))
+    .leftJoin(recipeVersions, eq(recipeVersions.id, notes.recipeVersionId))
+    .where(eq(notes.analysisSessionId, sessionId))
+    .orderBy(asc(notes.createdAt), asc(notes.id));
+}
+
+/** Those of `ids` who are members of the team (mentions of anyone else are refused by the route). */
+export async function membersAmong(teamId: string, ids: string[]) {
+  if (ids.length === 0) return [];
+  return db
+    .select({ id: users.id, email: users.email, displayName: users.displayName })
+    .from(memberships)
+    .innerJoin(users, eq(users.id, memberships.userId))
+    .where(and(eq(memberships.teamId, teamId), inArray(memberships.userId, ids)));
+}
+
+export async function createNote(
+  ctx: SessionWithRole,
+  authorId: string,
+  input: { body: string; recipeVersionId: string | null; anchor: NoteAnchorT | null; mentions: string[]; parentId: string | null },
+): Promise<Note> {
+  return db.transaction(async (tx) => {
+    const [note] = await tx
+      .insert(notes)
+      .values({ analysisSessionId: ctx.session.id, parentId: input.parentId, recipeVersionId: input.recipeVersionId, anchor: input.anchor as Record<string, unknown> | null, authorId, body: input.body, mentions: input.mentions })
+      .returning();
+    await recordAudit(tx, {
+      actorId: authorId, action: input.parentId ? 'note.reply' : 'note.create', targetTable: 'notes', targetId: note.id, teamId: ctx.team.id,
+      detail: { analysisSessionId: ctx.session.id, studyId: ctx.study.id, ...(input.parentId ? { parentId: input.parentId } : {}), mentions: input.mentions },
+    });
+    return note;
+  });
+}
+
+export type NoteChangeResult = { ok: true; note: Note } | { ok: false; current: Note };
+
+/** Edits a note when `revision` is still its revision; else returns the current note (409). */
+export async function editNote(ctx: NoteWithRole, actorId: string, revision: number, body: string, mentions: string[]): Promise<NoteChangeResult> {
+  return db.transaction(async (tx) => {
+    const [updated] = await tx
+      .update(notes)
+      .set({ body, mentions, revision: sql`${notes.revision} + 1`, updatedAt: sql`now()` })
+      .where(and(eq(notes.id, ctx.note.id), eq(notes.revision, revision)))
+      .returning();
+    if (!updated) {
+      const [current] = await tx.select().from(notes).where(eq(notes.id, ctx.note.id));
+      return { ok: false, current };
+    }
+    await recordAudit(tx, {
+      actorId, action: 'note.edit', targetTable: 'notes', targetId: updated.id, teamId: ctx.team.id,
+      detail: { analysisSessionId: ctx.session.id, studyId: ctx.study.id, revision: updated.revision },
+    });
+    return { ok: true, note: updated };
+  });
+}
+
+export async function setNoteResolved(ctx: NoteWithRole, actorId: string, resolved: boolean): Promise<Note> {
+  return db.transaction(async (tx) => {
+    const [updated] = await tx
+      .update(notes)
+      .set(resolved ? { resolvedAt: sql`coalesce(${notes.resolvedAt}, now())`, resolvedBy: sql`coalesce(${notes.resolvedBy}, ${actorId})`, revision: sql`${notes.revision} + 1` } : { resolvedAt: null, resolvedBy: null, revision: sql`${notes.revision} + 1` })
+      .where(eq(notes.id, ctx.note.id))
+      .returning();
+    await recordAudit(tx, {
+      actorId, action: resolved ? 'note.resolve' : 'note.reopen', targetTable: 'notes', targetId: updated.id, teamId: ctx.team.id,
+      detail: { analysisSessionId: ctx.session.id, studyId: ctx.study.id },
+    });
+    return updated;
+  });
+}
+
+// ---------------------------------------------------------------- people and mail
+
+/** A team's members for mentions: id, name and role (no e-mail addresses). */
+export async function listMentionableMembers(teamId: string) {
+  return db
+    .select({ id: users.id, displayName: users.displayName, role: memberships.role })
+    .from(memberships)
+    .innerJoin(users, eq(users.id, memberships.userId))
+    .where(and(eq(memberships.teamId, teamId), isNull(users.disabledAt)))
+    .orderBy(asc(users.displayName));
+}
+
+/** The addresses of `userIds` who have not muted `kind` (and whose accounts are not suspended). */
+export async function mailRecipients(userIds: string[], kind: MailKind) {
+  if (userIds.length === 0) return [];
+  return db
+    .select({ id: users.id, email: users.email, displayName: users.displayName })
+    .from(users)
+    .leftJoin(mailMutes, and(eq(mailMutes.userId, users.id), eq(mailMutes.kind, kind)))
+    .where(and(inArray(users.id, userIds), isNull(mailMutes.userId), isNull(users.disabledAt)));
+}
+
+export async function teamLeadIds(teamId: string): Promise<string[]> {
+  const rows = await db.select({ id: memberships.userId }).from(memberships).where(and(eq(memberships.teamId, teamId), eq(memberships.role, 'lead')));
+  return rows.map((r) => r.id);
+}
+
+export async function listMutes(userId: string): Promise<MailKind[]> {
+  const rows = await db.select({ kind: mailMutes.kind }).from(mailMutes).where(eq(mailMutes.userId, userId));
+  return rows.map((r) => r.kind);
+}
+
+/** Replaces the person's mutes with `muted` (one audit event naming what changed). */
+export async function setMutes(userId: string, muted: MailKind[]): Promise<void> {
+  await db.transaction(async (tx) => {
+    const before = (await tx.select({ kind: mailMutes.kind }).from(mailMutes).where(eq(mailMutes.userId, userId))).map((r) => r.kind).sort();
+    await tx.delete(mailMutes).where(eq(mailMutes.userId, userId));
+    if (muted.length) await tx.insert(mailMutes).values(muted.map((kind) => ({ userId, kind })));
+    await recordAudit(tx, { actorId: userId, action: 'mail.mutes', targetTable: 'users', targetId: userId, detail: { before, after: [...muted].sort() } });
+  });
+}
+
+// ---------------------------------------------------------------- activity (read from the audit chain)
+
+/** The latest events of a team that concern one study (detail.studyId, or the study row itself), newest first. */
+export async function listStudyActivity(teamId: string, studyId: string, limit = 50) {
+  return db
+    .select({ id: auditEvents.id, action: auditEvents.action, at: auditEvents.at, actorName: users.displayName, detail: auditEvents.detail, hash: auditEvents.hash })
+    .from(auditEvents)
+    .leftJoin(users, eq(users.id, auditEvents.actorId))
+    .where(and(eq(auditEvents.teamId, teamId), sql`(${auditEvents.detail}->>'studyId' = ${studyId} OR (${auditEvents.targetTable} = 'studies' AND ${auditEvents.targetId} = ${studyId}))`))
+    .orderBy(desc(auditEvents.id))
+    .limit(limit);
+}
+
+/** The newest hash of a team's chain (shown so it can be copied elsewhere). */
+export async function chainHead(teamId: string) {
+  const [row] = await db.select({ id: auditEvents.id, hash: auditEvents.hash }).from(auditEvents).where(eq(auditEvents.teamId, teamId)).orderBy(desc(auditEvents.id)).limit(1);
+  return row ?? null;
+}

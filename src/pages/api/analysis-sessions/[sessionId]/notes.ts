@@ -1,0 +1,34 @@
+// Notes of a session: list them (threads: replies carry parentId), or post a new one — on a recipe version with an
+// optional anchor (channel or channel group, condition, time and frequency range), or on the session as a whole.
+// Mentions must name members of the team; each mentioned person gets a mail unless muted.
+import type { APIRoute } from 'astro';
+import { HttpError, json, parseJson, requirePermission, route } from '../../../../lib/server/http';
+import { checkMentions, loadSession, noteJson } from '../../../../lib/server/review-api';
+import { createNote, getRecipeVersion, listNotes } from '../../../../db/queries/review';
+import { NOTE_CAPS, NoteInput } from '../../../../lib/schemas/review';
+import { mailMentioned } from '../../../../lib/server/review-mail';
+
+export const GET: APIRoute = (ctx) =>
+  route(ctx, async () => {
+    const found = await loadSession(ctx);
+    requirePermission(found.role, 'note:view');
+    const rows = await listNotes(found.session.id);
+    return json({ notes: rows.map((r) => noteJson(r.note, { authorName: r.authorName, recipeVersion: r.recipeVersion })) });
+  });
+
+export const POST: APIRoute = (ctx) =>
+  route(ctx, async ({ request, url }) => {
+    const found = await loadSession(ctx);
+    requirePermission(found.role, 'note:create');
+    const input = await parseJson(request, NoteInput, { maxBytes: NOTE_CAPS.bodyBytes });
+    let recipeVersionId: string | null = null;
+    if (input.recipeVersion !== null) {
+      const version = await getRecipeVersion(found.session.id, input.recipeVersion);
+      if (!version) throw new HttpError(400, 'invalid', `recipeVersion: this session has no version ${input.recipeVersion}`, [{ path: 'recipeVersion', message: `this session has no version ${input.recipeVersion}` }]);
+      recipeVersionId = version.id;
+    }
+    const mentions = await checkMentions(found.team.id, input.mentions);
+    const note = await createNote(found, found.user.id, { body: input.body, recipeVersionId, anchor: input.anchor, mentions, parentId: null });
+    await mailMentioned({ url, team: found.team, study: found.study, session: found.session }, found.user, note.id, note.body, mentions);
+    return json({ note: noteJson(note, { authorName: found.user.displayName, recipeVersion: input.recipeVersion }) }, 201);
+  });
