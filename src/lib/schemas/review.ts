@@ -229,3 +229,8 @@ export const MAIL_KIND_WORDS: Record<MailKind, string> = {
   'review-outcome': 'My session was returned or signed off',
   'note-mention': 'Someone mentioned me in a note',
 };
+
+/** The notifications form: a ticked box sends "on"; an unticked one sends nothing (read as empty). */
+export const MailPreferencesInput = z.object(
+  Object.fromEntries(MAIL_KINDS.map((k) => [k, z.enum(['', 'on'], { error: 'must be ticked or not' })])) as Record<MailKind, z.ZodEnum<{ '': ''; on: 'on' }>>,
+);

@@ -1,0 +1,54 @@
+// `npm run --silent audit:verify`: walks every audit hash chain (one per team, one for site events) in id order and
+// checks each event's prev_hash against the previous event's hash and its hash against its contents
+// (src/lib/server/audit-chain.ts). Exit 0 and one summary line when every chain holds; exit 2 and one line naming
+// the first broken link (chain, event id, what differs) when one does not. Events written before the chain existed
+// (id ≤ audit_chain_start.last_unchained_id) are counted, not checked. Needs DATABASE_URL (the app's role can read
+// the audit; no write is made). Exit 1 when the database cannot be read.
+import { asc, gt } from 'drizzle-orm';
+import { db, pool } from '../src/db/client';
+import { auditChainStart, auditEvents } from '../src/db/schema';
+import { firstBreak, type ChainBreak } from '../src/lib/server/audit-chain';
+
+type Row = typeof auditEvents.$inferSelect;
+
+async function main(): Promise<number> {
+  const [start] = await db.select().from(auditChainStart).limit(1);
+  const lastUnchained = start?.lastUnchainedId ?? 0;
+  const chains = new Map<string, Row[]>();
+  let checked = 0;
+  // Read in pages so a long audit does not have to fit in one result.
+  let after = lastUnchained;
+  for (;;) {
+    const page = await db.select().from(auditEvents).where(gt(auditEvents.id, after)).orderBy(asc(auditEvents.id)).limit(5000);
+    if (page.length === 0) break;
+    for (const row of page) {
+      const key = row.teamId ?? 'site';
+      const list = chains.get(key) ?? [];
+      list.push(row);
+      chains.set(key, list);
+    }
+    checked += page.length;
+    after = page[page.length - 1].id;
+  }
+  let first: (ChainBreak & { chain: string }) | null = null;
+  for (const [chain, rows] of chains) {
+    const broken = firstBreak(rows);
+    if (broken && (!first || broken.eventId < first.eventId)) first = { ...broken, chain };
+  }
+  if (first) {
+    const chainName = first.chain === 'site' ? 'site events (no team)' : `team ${first.chain}`;
+    process.stdout.write(`audit:verify: broken link in ${chainName} at event ${first.eventId}: ${first.problem}\n`);
+    return 2;
+  }
+  process.stdout.write(`audit:verify: ${chains.size} chain${chains.size === 1 ? '' : 's'} hold, ${checked} event${checked === 1 ? '' : 's'} checked, ${lastUnchained} written before the chain started (not checked)\n`);
+  return 0;
+}
+
+try {
+  process.exitCode = await main();
+} catch (error) {
+  process.stderr.write(`audit:verify: cannot read the audit: ${(error as Error).message.split('\n')[0]}\n`);
+  process.exitCode = 1;
+} finally {
+  await pool.end();
+}
