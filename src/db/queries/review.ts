@@ -140,7 +140,7 @@ export async function saveRecipeVersion(ctx: SessionWithRole, actorId: string, b
     await tx.update(analysisSessions).set({ currentVersion: number, status: statusAfter, updatedAt: sql`now()` }).where(eq(analysisSessions.id, session.id));
     await recordAudit(tx, {
       actorId, action: 'recipeVersion.save', targetTable: 'recipe_versions', targetId: version.id, teamId: ctx.team.id,
-      detail: { analysisSessionId: session.id, studyId: ctx.study.id, number, recipeHash: version.recipeHash, ...(statusAfter !== session.status ? { status: { from: session.status, to: statusAfter } } : {}) },
+      detail: { analysisSessionId: session.id, studyId: ctx.study.id, subjectCode: session.subjectCode, number, recipeHash: version.recipeHash, ...(statusAfter !== session.status ? { status: { from: session.status, to: statusAfter } } : {}) },
     });
     return { ok: true, version, statusBefore: session.status, statusAfter };
   });
@@ -177,7 +177,7 @@ export async function uploadSummary(ctx: SessionWithRole, version: RecipeVersion
     await tx.insert(summaries).values({ recipeVersionId: version.id, summary, summaryHash, bytes, uploadedBy: actorId });
     await recordAudit(tx, {
       actorId, action: 'summary.upload', targetTable: 'summaries', targetId: version.id, teamId: ctx.team.id,
-      detail: { analysisSessionId: session.id, studyId: ctx.study.id, recipeVersion: version.number, summaryHash, bytes },
+      detail: { analysisSessionId: session.id, studyId: ctx.study.id, subjectCode: session.subjectCode, recipeVersion: version.number, summaryHash, bytes },
     });
     return { ok: true, summaryHash };
   });
@@ -231,7 +231,7 @@ export async function applyStatusChange(
         .returning();
       await recordAudit(tx, {
         actorId: signer.id, action: 'signature.create', targetTable: 'signatures', targetId: signature.id, teamId: ctx.team.id,
-        detail: { analysisSessionId: session.id, studyId: ctx.study.id, meaning: signature.meaning, recipeVersion, contentHash, printedName: signer.displayName },
+        detail: { analysisSessionId: session.id, studyId: ctx.study.id, subjectCode: session.subjectCode, meaning: signature.meaning, recipeVersion, contentHash, printedName: signer.displayName },
       });
     }
     let updated = session;
@@ -243,7 +243,7 @@ export async function applyStatusChange(
         .returning();
       await recordAudit(tx, {
         actorId: signer.id, action: `analysisSession.${change}`, targetTable: 'analysis_sessions', targetId: session.id, teamId: ctx.team.id,
-        detail: { studyId: ctx.study.id, from: session.status, to: rule.to, recipeVersion, ...(reason ? { reason } : {}) },
+        detail: { studyId: ctx.study.id, subjectCode: session.subjectCode, from: session.status, to: rule.to, recipeVersion, ...(reason ? { reason } : {}) },
       });
     }
     return { ok: true, session: updated, signature };
@@ -252,7 +252,7 @@ export async function applyStatusChange(
 
 /** A refused signing attempt (wrong password or throttled), audited in a transaction of its own so the refusal stays on record. */
 export async function auditSigningRefused(ctx: SessionWithRole, userId: string, detail: Record<string, unknown>) {
-  await recordAudit(db, { actorId: userId, action: 'signature.refused', targetTable: 'analysis_sessions', targetId: ctx.session.id, teamId: ctx.team.id, detail: { studyId: ctx.study.id, ...detail } });
+  await recordAudit(db, { actorId: userId, action: 'signature.refused', targetTable: 'analysis_sessions', targetId: ctx.session.id, teamId: ctx.team.id, detail: { studyId: ctx.study.id, subjectCode: ctx.session.subjectCode, ...detail } });
 }
 
 export async function listSignatures(sessionId: string) {
