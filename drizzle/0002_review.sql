@@ -32,6 +32,7 @@ CREATE TABLE "notes" (
 	"body" text NOT NULL,
 	"mentions" text[] DEFAULT '{}'::text[] NOT NULL,
 	"revision" integer DEFAULT 1 NOT NULL,
+	"client_key" uuid,
 	"resolved_at" timestamp with time zone,
 	"resolved_by" text,
 	"created_at" timestamp with time zone DEFAULT now() NOT NULL,
@@ -99,6 +100,7 @@ ALTER TABLE "summaries" ADD CONSTRAINT "summaries_uploaded_by_users_id_fk" FOREI
 CREATE UNIQUE INDEX "subjects_study_code_idx" ON "subjects" USING btree ("study_id","code");--> statement-breakpoint
 CREATE INDEX "notes_session_idx" ON "notes" USING btree ("analysis_session_id");--> statement-breakpoint
 CREATE INDEX "notes_parent_idx" ON "notes" USING btree ("parent_id");--> statement-breakpoint
+CREATE UNIQUE INDEX "notes_author_client_key_idx" ON "notes" USING btree ("author_id","client_key");--> statement-breakpoint
 CREATE UNIQUE INDEX "recipe_versions_session_number_idx" ON "recipe_versions" USING btree ("analysis_session_id","number");--> statement-breakpoint
 CREATE INDEX "signatures_session_idx" ON "signatures" USING btree ("analysis_session_id");--> statement-breakpoint
 ALTER TABLE "analysis_sessions" ADD CONSTRAINT "analysis_sessions_subject_id_subjects_id_fk" FOREIGN KEY ("subject_id") REFERENCES "public"."subjects"("id") ON DELETE restrict ON UPDATE no action;--> statement-breakpoint

@@ -213,11 +213,11 @@ describe('notes: threads, edits, resolve', () => {
     const byReviewer = listed.find((n: { body: string }) => n.body === 'note by reviewer');
     expect(byReviewer).toMatchObject({ recipeVersion: 1, anchor, revision: 1, parentId: null });
 
-    await expectStatuses({ outsider: 404, anonymous: 401, owner: 201, lead: 201 }, (c, who) =>
+    await expectStatuses({ outsider: 404, anonymous: 401, owner: 201, lead: 201, reviewer: 201 }, (c, who) =>
       c.request(`/api/notes/${byReviewer.id}/replies`, { method: 'POST', json: { body: `reply by ${who}` } }),
     );
     const thread = (await (await clients.owner.request(`/api/analysis-sessions/${id}/notes`)).json()).notes.filter((n: { parentId: string }) => n.parentId === byReviewer.id);
-    expect(thread.map((n: { body: string }) => n.body).sort()).toEqual(['reply by lead', 'reply by owner']);
+    expect(thread.map((n: { body: string }) => n.body).sort()).toEqual(['reply by lead', 'reply by owner', 'reply by reviewer']);
     // A reply to a reply joins the same thread.
     const deeper = await clients.reviewer.request(`/api/notes/${thread[0].id}/replies`, { method: 'POST', json: { body: 'and me' } });
     expect((await deeper.json()).note.parentId).toBe(byReviewer.id);
@@ -231,16 +231,48 @@ describe('notes: threads, edits, resolve', () => {
     expect(staleBody.error.code).toBe('stale_note');
     expect(staleBody.current).toMatchObject({ body: 'edited once', revision: 2 });
 
+    await expectStatuses({ lead: 200, owner: 200, reviewer: 200, outsider: 404, anonymous: 401 }, (c) => c.request(`/api/notes/${byReviewer.id}`));
     await expectStatuses({ outsider: 404, anonymous: 401, owner: 200 }, (c) => c.request(`/api/notes/${byReviewer.id}/resolution`, { method: 'PUT', json: { resolved: true } }));
     const resolved = (await (await clients.lead.request(`/api/notes/${byReviewer.id}`)).json()).note;
     expect(resolved.resolvedBy).toBe(people.owner.user.id);
     expect(resolved.resolvedAt).not.toBeNull();
     const reply = await clients.lead.request(`/api/notes/${thread[0].id}/resolution`, { method: 'PUT', json: { resolved: true } });
     expect(reply.status).toBe(400);
+    await expectStatuses({ lead: 200, reviewer: 200 }, (c) => c.request(`/api/notes/${byReviewer.id}/resolution`, { method: 'PUT', json: { resolved: true } }));
     const reopened = await clients.reviewer.request(`/api/notes/${byReviewer.id}/resolution`, { method: 'PUT', json: { resolved: false } });
     expect((await reopened.json()).note.resolvedAt).toBeNull();
     const { rows } = await pool.query("SELECT action FROM audit_events WHERE target_id = $1 ORDER BY id", [byReviewer.id]);
-    expect(rows.map((r) => r.action)).toEqual(['note.create', 'note.edit', 'note.resolve', 'note.reopen']);
+    expect(rows.map((r) => r.action)).toEqual(['note.create', 'note.edit', 'note.resolve', 'note.resolve', 'note.resolve', 'note.reopen']);
+  });
+});
+
+describe('notes sent again', () => {
+  it('stores one note for a post sent twice with the same clientKey (also at once), and refuses the key for another post', async () => {
+    const id = await newSession();
+    const clientKey = crypto.randomUUID();
+    const post = () => clients.reviewer.request(`/api/analysis-sessions/${id}/notes`, { method: 'POST', json: { body: 'Check the 20 Hz drop at C3.', clientKey } });
+    const first = await post();
+    expect(first.status).toBe(201);
+    const again = await post();
+    expect(again.status).toBe(200);
+    expect((await again.json()).note.id).toBe((await first.json()).note.id);
+    const other = await clients.reviewer.request(`/api/analysis-sessions/${id}/notes`, { method: 'POST', json: { body: 'Something else.', clientKey } });
+    expect(other.status).toBe(409);
+    expect((await other.json()).error.code).toBe('client_key_reused');
+    const key2 = crypto.randomUUID();
+    const together = await Promise.all([0, 1, 2].map(() => clients.lead.request(`/api/analysis-sessions/${id}/notes`, { method: 'POST', json: { body: 'Once.', clientKey: key2 } })));
+    expect(together.map((r) => r.status).sort()).toEqual([200, 200, 201]);
+    const elsewhere = await newSession();
+    const reused = await clients.reviewer.request(`/api/analysis-sessions/${elsewhere}/notes`, { method: 'POST', json: { body: 'x', clientKey } });
+    expect(reused.status).toBe(409);
+    expect((await reused.json()).error.code).toBe('client_key_reused');
+    const { rows } = await pool.query('SELECT body FROM notes WHERE analysis_session_id = $1 ORDER BY created_at', [id]);
+    expect(rows.map((r) => r.body)).toEqual(['Check the 20 Hz drop at C3.', 'Once.']);
+    const { rows: audit } = await pool.query("SELECT count(*)::int AS n FROM audit_events WHERE action = 'note.create' AND detail->>'analysisSessionId' = $1", [id]);
+    expect(audit[0].n).toBe(2);
+    const bad = await clients.reviewer.request(`/api/analysis-sessions/${id}/notes`, { method: 'POST', json: { body: 'x', clientKey: 'not-a-uuid' } });
+    expect(bad.status).toBe(400);
+    expect((await bad.json()).error.issues[0].path).toBe('clientKey');
   });
 });
 

@@ -281,21 +281,34 @@ export async function membersAmong(teamId: string, ids: string[]) {
     .where(and(eq(memberships.teamId, teamId), inArray(memberships.userId, ids)));
 }
 
+export type CreateNoteResult = { ok: true; note: Note; replayed: boolean } | { ok: false; reason: 'key_reused' };
+
+/**
+ * Stores a note or a reply with its audit event. With a `clientKey` the author already used, nothing new is stored:
+ * the same post (same session, thread and text) returns the stored note (`replayed`), so a client that resends after a
+ * lost answer gets exactly one note; a different post under that key is refused.
+ */
 export async function createNote(
   ctx: SessionWithRole,
   authorId: string,
-  input: { body: string; recipeVersionId: string | null; anchor: NoteAnchorT | null; mentions: string[]; parentId: string | null },
-): Promise<Note> {
+  input: { body: string; recipeVersionId: string | null; anchor: NoteAnchorT | null; mentions: string[]; parentId: string | null; clientKey?: string },
+): Promise<CreateNoteResult> {
   return db.transaction(async (tx) => {
     const [note] = await tx
       .insert(notes)
-      .values({ analysisSessionId: ctx.session.id, parentId: input.parentId, recipeVersionId: input.recipeVersionId, anchor: input.anchor as Record<string, unknown> | null, authorId, body: input.body, mentions: input.mentions })
+      .values({ analysisSessionId: ctx.session.id, parentId: input.parentId, recipeVersionId: input.recipeVersionId, anchor: input.anchor as Record<string, unknown> | null, authorId, body: input.body, mentions: input.mentions, clientKey: input.clientKey ?? null })
+      .onConflictDoNothing()
       .returning();
+    if (!note) {
+      const [earlier] = await tx.select().from(notes).where(and(eq(notes.authorId, authorId), eq(notes.clientKey, input.clientKey!)));
+      if (earlier.analysisSessionId !== ctx.session.id || earlier.parentId !== input.parentId || earlier.body !== input.body) return { ok: false, reason: 'key_reused' };
+      return { ok: true, note: earlier, replayed: true };
+    }
     await recordAudit(tx, {
       actorId: authorId, action: input.parentId ? 'note.reply' : 'note.create', targetTable: 'notes', targetId: note.id, teamId: ctx.team.id,
-      detail: { analysisSessionId: ctx.session.id, studyId: ctx.study.id, ...(input.parentId ? { parentId: input.parentId } : {}), mentions: input.mentions },
+      detail: { analysisSessionId: ctx.session.id, studyId: ctx.study.id, subjectCode: ctx.session.subjectCode, ...(input.parentId ? { parentId: input.parentId } : {}), mentions: input.mentions },
     });
-    return note;
+    return { ok: true, note, replayed: false };
   });
 }
 

@@ -69,12 +69,18 @@ export const notes = pgTable(
     body: text('body').notNull(),
     mentions: text('mentions').array().notNull().default(sql`'{}'::text[]`),
     revision: integer('revision').notNull().default(1),
+    /** A key the client chose for this post (a UUID), so a post sent again after a lost answer stores one note. */
+    clientKey: uuid('client_key'),
     resolvedAt: timestamp('resolved_at', { withTimezone: true }),
     resolvedBy: text('resolved_by').references(() => users.id, { onDelete: 'set null' }),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
     updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
   },
-  (t) => [index('notes_session_idx').on(t.analysisSessionId), index('notes_parent_idx').on(t.parentId)],
+  (t) => [
+    index('notes_session_idx').on(t.analysisSessionId),
+    index('notes_parent_idx').on(t.parentId),
+    uniqueIndex('notes_author_client_key_idx').on(t.authorId, t.clientKey),
+  ],
 );
 export type Note = typeof notes.$inferSelect;
 

@@ -193,6 +193,8 @@ export const ReviewedSignatureInput = z.object({ meaning: z.literal('reviewed', 
 const UserId = z.string().min(1).max(64).regex(/^[A-Za-z0-9_-]+$/, 'is not a user id');
 const NoteBody = z.string().trim().min(1, 'write something').max(NOTE_CAPS.bodyChars, `must be at most ${NOTE_CAPS.bodyChars} characters`);
 const Mentions = z.array(UserId).max(NOTE_CAPS.mentions, `mention at most ${NOTE_CAPS.mentions} people`).default([]);
+/** A key the client picks for one post (a UUID): sending the same post again returns the stored note, not a second one. */
+const ClientKey = z.uuid('must be a UUID the client chose for this post').optional();
 const Range = z.tuple([finite, finite], { error: 'must be a pair [from, to]' }).refine(([a, b]) => b > a, 'the second value must be above the first');
 
 /** Where a note points on a recipe version's maps: a channel or a channel group, a condition, a time and a frequency range. */
@@ -210,11 +212,11 @@ export type NoteAnchorT = z.infer<typeof NoteAnchor>;
 
 /** A new note: on a recipe version (with an optional anchor) or, with recipeVersion null, on the session as a whole. */
 export const NoteInput = z
-  .object({ body: NoteBody, recipeVersion: VersionNumber.nullable().default(null), anchor: NoteAnchor.nullable().default(null), mentions: Mentions })
+  .object({ body: NoteBody, recipeVersion: VersionNumber.nullable().default(null), anchor: NoteAnchor.nullable().default(null), mentions: Mentions, clientKey: ClientKey })
   .strict()
   .refine((n) => n.anchor === null || n.recipeVersion !== null, { message: 'an anchor needs the recipe version it points into', path: ['anchor'] });
 
-export const NoteReplyInput = z.object({ body: NoteBody, mentions: Mentions }).strict();
+export const NoteReplyInput = z.object({ body: NoteBody, mentions: Mentions, clientKey: ClientKey }).strict();
 
 /** An edit of one's own note: `revision` is the one the edit started from; a stale one answers 409 with the current note. */
 export const NoteEditInput = z.object({ revision: z.number().int().min(1), body: NoteBody, mentions: Mentions }).strict();

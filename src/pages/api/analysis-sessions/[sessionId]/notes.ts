@@ -28,7 +28,11 @@ export const POST: APIRoute = (ctx) =>
       recipeVersionId = version.id;
     }
     const mentions = await checkMentions(found.team.id, input.mentions);
-    const note = await createNote(found, found.user.id, { body: input.body, recipeVersionId, anchor: input.anchor, mentions, parentId: null });
-    await mailMentioned({ url, team: found.team, study: found.study, session: found.session }, found.user, note.id, note.body, mentions);
-    return json({ note: noteJson(note, { authorName: found.user.displayName, recipeVersion: input.recipeVersion }) }, 201);
+    const result = await createNote(found, found.user.id, { body: input.body, recipeVersionId, anchor: input.anchor, mentions, parentId: null, clientKey: input.clientKey });
+    if (!result.ok) throw new HttpError(409, 'client_key_reused', 'clientKey: you used this key for another post. Nothing was stored.');
+    const body = { note: noteJson(result.note, { authorName: found.user.displayName, recipeVersion: input.recipeVersion }) };
+    // A post sent again (same clientKey) answers 200 with the stored note; it was audited and mailed the first time.
+    if (result.replayed) return json(body, 200);
+    await mailMentioned({ url, team: found.team, study: found.study, session: found.session }, found.user, result.note.id, result.note.body, mentions);
+    return json(body, 201);
   });

@@ -1,7 +1,7 @@
 // A reply in a note's thread. Replies hang off the top-level note (a reply to a reply joins the same thread) and
 // carry no anchor of their own.
 import type { APIRoute } from 'astro';
-import { json, parseJson, requirePermission, route } from '../../../../lib/server/http';
+import { HttpError, json, parseJson, requirePermission, route } from '../../../../lib/server/http';
 import { checkMentions, loadNote, noteJson } from '../../../../lib/server/review-api';
 import { createNote } from '../../../../db/queries/review';
 import { NOTE_CAPS, NoteReplyInput } from '../../../../lib/schemas/review';
@@ -14,7 +14,10 @@ export const POST: APIRoute = (ctx) =>
     const input = await parseJson(request, NoteReplyInput, { maxBytes: NOTE_CAPS.bodyBytes });
     const mentions = await checkMentions(found.team.id, input.mentions);
     const parentId = found.note.parentId ?? found.note.id;
-    const reply = await createNote(found, found.user.id, { body: input.body, recipeVersionId: null, anchor: null, mentions, parentId });
-    await mailMentioned({ url, team: found.team, study: found.study, session: found.session }, found.user, reply.id, reply.body, mentions);
-    return json({ note: noteJson(reply, { authorName: found.user.displayName }) }, 201);
+    const result = await createNote(found, found.user.id, { body: input.body, recipeVersionId: null, anchor: null, mentions, parentId, clientKey: input.clientKey });
+    if (!result.ok) throw new HttpError(409, 'client_key_reused', 'clientKey: you used this key for another post. Nothing was stored.');
+    const body = { note: noteJson(result.note, { authorName: found.user.displayName }) };
+    if (result.replayed) return json(body, 200);
+    await mailMentioned({ url, team: found.team, study: found.study, session: found.session }, found.user, result.note.id, result.note.body, mentions);
+    return json(body, 201);
   });
