@@ -137,7 +137,7 @@ describe('review e-mail', () => {
     const form = await c.analyst.request('/account/notifications');
     expect(form.status).toBe(200);
     // Untick "my session was returned or signed off"; keep the other two.
-    const saved = await c.analyst.post('/account/notifications', { 'review-requested': 'on', 'note-mention': 'on' });
+    const saved = await c.analyst.post('/account/notifications', { form: 'mail-preferences', 'review-requested': 'on', 'note-mention': 'on' });
     expect(saved.status).toBe(200);
     expect(await saved.text()).toContain('data-testid="mutes-saved"');
     const { rows: mutes } = await pool.query('SELECT kind FROM mail_mutes WHERE user_id = $1', [analyst.user.id]);
@@ -155,9 +155,14 @@ describe('review e-mail', () => {
     expect(rows.map((r) => r.subject)).toEqual([mention.subject]);
 
     // Unmuting brings it back.
-    await c.analyst.post('/account/notifications', { 'review-requested': 'on', 'review-outcome': 'on', 'note-mention': 'on' });
+    await c.analyst.post('/account/notifications', { form: 'mail-preferences', 'review-requested': 'on', 'review-outcome': 'on', 'note-mention': 'on' });
     const { rows: after } = await pool.query('SELECT count(*)::int AS n FROM mail_mutes WHERE user_id = $1', [analyst.user.id]);
     expect(after[0].n).toBe(0);
+    // An empty post (no form marker) changes nothing.
+    const empty = await c.analyst.post('/account/notifications', {});
+    expect(empty.status).toBe(400);
+    const { rows: still } = await pool.query('SELECT count(*)::int AS n FROM mail_mutes WHERE user_id = $1', [analyst.user.id]);
+    expect(still[0].n).toBe(0);
     const signedOut = await new Client().request('/account/notifications');
     expect(signedOut.status).toBe(302);
   });

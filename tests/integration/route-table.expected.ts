@@ -87,6 +87,30 @@ export const routeTable: Record<string, Expected> = {
   'GET /api/teams/[teamId]/studies':             row(404, 200, 200, 200, 401, 404),
   'POST /api/teams/[teamId]/studies':            row(404, 400, 403, 403, 401, 404),
 
+  // Team review (issue 11). {sessionId}: a session the fixture analyst owns, with version {number} = 1, its summary,
+  // and {noteId}, a note the reviewer wrote. The empty `{}` body reaches validation (400) only for a role that may act.
+  'GET /api/studies/[studyId]/subjects':         row(404, 200, 200, 200, 401, 404),
+  'POST /api/studies/[studyId]/subjects':        row(404, 403, 400, 403, 401, 404),
+  'GET /api/analysis-sessions/[sessionId]':      row(404, 200, 200, 200, 401, 404),
+  'GET /api/analysis-sessions/[sessionId]/recipe-versions':  row(404, 200, 200, 200, 401, 404),
+  'POST /api/analysis-sessions/[sessionId]/recipe-versions': row(404, 403, 400, 403, 401, 404),
+  'GET /api/analysis-sessions/[sessionId]/recipe-versions/[number]':         row(404, 200, 200, 200, 401, 404),
+  'GET /api/analysis-sessions/[sessionId]/recipe-versions/[number]/summary': row(404, 200, 200, 200, 401, 404),
+  'PUT /api/analysis-sessions/[sessionId]/recipe-versions/[number]/summary': row(404, 403, 400, 403, 401, 404),
+  'POST /api/analysis-sessions/[sessionId]/status':      row(404, 400, 400, 403, 401, 404),
+  'GET /api/analysis-sessions/[sessionId]/signatures':   row(404, 200, 200, 200, 401, 404),
+  'POST /api/analysis-sessions/[sessionId]/signatures':  row(404, 400, 403, 403, 401, 404),
+  'GET /api/analysis-sessions/[sessionId]/notes':        row(404, 200, 200, 200, 401, 404),
+  'POST /api/analysis-sessions/[sessionId]/notes':       row(404, 400, 400, 400, 401, 404),
+  'GET /api/notes/[noteId]':                     row(404, 200, 200, 200, 401, 404),
+  'PATCH /api/notes/[noteId]':                   row(404, 403, 403, 400, 401, 404),
+  'POST /api/notes/[noteId]/replies':            row(404, 400, 400, 400, 401, 404),
+  'PUT /api/notes/[noteId]/resolution':          row(404, 400, 400, 400, 401, 404),
+  'GET /api/teams/[teamId]/members':             row(404, 200, 200, 200, 401, 404),
+  // Anyone signed in chooses their own review mail; an empty post (no form marker) is refused and changes nothing.
+  'GET /account/notifications':                  row(200, 200, 200, 200, signIn('/account/notifications'), 200),
+  'POST /account/notifications':                 row(400, 400, 400, 400, signIn('/account/notifications'), 400),
+
   // Demo build only (astro.config.mjs injects these from src/demo-routes; the production build has neither). The
   // mailbox answers loopback clients while the mail fake runs, signed in or not (the test client is on loopback).
   'GET /dev/mailbox':                            all(200),

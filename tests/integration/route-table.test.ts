@@ -9,6 +9,7 @@ import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Client, pool, unique } from '../helpers/app';
 import { createMember, createOperator, createTeam } from '../helpers/fixtures';
+import { demoRecipe, smallSummary } from '../helpers/review';
 import { createInvitation } from '../../src/db/queries/invitations';
 import { createPasswordReset } from '../../src/db/queries/password-resets';
 import { pool as appDbPool } from '../../src/db/client';
@@ -187,12 +188,20 @@ beforeAll(async () => {
   const { token: invitationToken } = await createInvitation(team.id, lead.user.id, { email: `${unique('route-table')}@fixture.example`, role: 'reviewer' });
   const resetPerson = await createMember(other.team.id, 'reviewer');
   const resetToken = await createPasswordReset(resetPerson.user.id);
+  // Team review rows: a session of the analyst with version 1 and its summary, and a note by the reviewer.
+  const sessionId = (await (await clients.analyst.request(`/api/studies/${study.id}/analysis-sessions`, { method: 'POST', json: { subjectCode: 'TM-RT01' } })).json()).analysisSession.id;
+  await clients.analyst.request(`/api/analysis-sessions/${sessionId}/recipe-versions`, { method: 'POST', json: { baseVersion: null, recipe: demoRecipe() } });
+  await clients.analyst.request(`/api/analysis-sessions/${sessionId}/recipe-versions/1/summary`, { method: 'PUT', json: smallSummary() });
+  const noteId = (await (await clients.reviewer.request(`/api/analysis-sessions/${sessionId}/notes`, { method: 'POST', json: { body: 'route table' } })).json()).note.id;
   fx = {
     clients,
     credentials,
     params: {
       teamId: team.id,
       studyId: study.id,
+      sessionId,
+      number: '1',
+      noteId,
       otherTeamId: other.team.id,
       file: 'cohort.json',
       // One {token} per route that takes one; the pattern decides which.

@@ -4,7 +4,7 @@
  * patient field or a file name is refused by name), every array and string has a cap, labels are short codes, and
  * the only free text is a note's body and a return reason. No module here touches the DOM or node:*.
  */
-import { z } from 'zod';
+import { z } from '../analysis/zod';
 import { RecipeSchema } from '../analysis/recipe';
 import { AnalysisSessionInput } from './studies';
 
@@ -232,7 +232,11 @@ export const MAIL_KIND_WORDS: Record<MailKind, string> = {
   'note-mention': 'Someone mentioned me in a note',
 };
 
-/** The notifications form: a ticked box sends "on"; an unticked one sends nothing (read as empty). */
-export const MailPreferencesInput = z.object(
-  Object.fromEntries(MAIL_KINDS.map((k) => [k, z.enum(['', 'on'], { error: 'must be ticked or not' })])) as Record<MailKind, z.ZodEnum<{ '': ''; on: 'on' }>>,
-);
+/**
+ * The notifications form: a ticked box sends "on", an unticked one sends nothing (read as empty). The hidden `form`
+ * field tells a real submission from an empty post, which must not mute everything.
+ */
+export const MailPreferencesInput = z.object({
+  form: z.literal('mail-preferences', { error: 'The form could not be read. Nothing was changed.' }),
+  ...(Object.fromEntries(MAIL_KINDS.map((k) => [k, z.enum(['', 'on'], { error: 'must be ticked or not' })])) as Record<MailKind, z.ZodEnum<{ '': ''; on: 'on' }>>),
+});
