@@ -137,6 +137,9 @@ describe('optimistic concurrency', () => {
 
   it('refuses a bad recipe with the field named, and saves nothing', async () => {
     const id = await newSession();
+    const otherRecording = await saveVersion(id, null, { ...demoRecipe(), recording: { fingerprint: 'd'.repeat(64) } });
+    expect(otherRecording.status).toBe(400);
+    expect((await otherRecording.json()).error.issues[0].path).toBe('recipe.recording.fingerprint');
     const bad = { ...demoRecipe(), frequencies: { min: 4, max: 40, count: 0 } };
     const r = await saveVersion(id, null, bad as Record<string, unknown>);
     expect(r.status).toBe(400);

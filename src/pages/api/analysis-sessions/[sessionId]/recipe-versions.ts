@@ -19,6 +19,12 @@ export const POST: APIRoute = (ctx) =>
     requirePermission(found.role, 'analysisSession:editOwn');
     if (found.session.ownerId !== found.user.id) throw new HttpError(403, 'forbidden', 'Only the analyst who owns this session may change its recipe.');
     const input = await parseJson(request, RecipeVersionInput, { maxBytes: RECIPE_BODY_BYTES });
+    // A recipe that names its recording must name this session's recording.
+    const named = input.recipe.recording?.fingerprint;
+    if (named && found.session.fingerprint && named !== found.session.fingerprint) {
+      const message = `is the fingerprint of another recording than this session's (${found.session.fingerprint.slice(0, 12)}…)`;
+      throw new HttpError(400, 'invalid', `recipe.recording.fingerprint: ${message}. Nothing was saved.`, [{ path: 'recipe.recording.fingerprint', message }]);
+    }
     const result = await saveRecipeVersion(found, found.user.id, input.baseVersion, input.recipe as Record<string, unknown>);
     if (!result.ok && result.reason === 'stale') {
       return json({
