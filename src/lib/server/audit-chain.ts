@@ -1,5 +1,6 @@
 /**
- * The audit hash chain: each audit event stores the SHA-256 (FIPS 180-4) of the previous event of the same team and
+ * The audit hash chain (its intent: 21 CFR Part 11 §11.10(e), secure, computer-generated, time-stamped audit trails
+ * whose changes do not obscure what was recorded; not a claim of compliance): each audit event stores the SHA-256 (FIPS 180-4) of the previous event of the same team and
  * its own, so changing, removing or reordering a stored event breaks every later link of that team's chain. Site
  * events (no team) form one more chain. The hashed form is the RFC 8785 JSON Canonicalization Scheme (JCS, via the
  * `canonicalize` package by the RFC's author) of the fields below, so the verifier (`npm run audit:verify`,
