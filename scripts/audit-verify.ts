@@ -3,15 +3,30 @@
 // (src/lib/server/audit-chain.ts). Exit 0 and one summary line when every chain holds; exit 2 and one line naming
 // the first broken link (chain, event id, what differs) when one does not. Events written before the chain existed
 // (id ≤ audit_chain_start.last_unchained_id) are counted, not checked. Needs DATABASE_URL (the app's role can read
-// the audit; no write is made). Exit 1 when the database cannot be read.
-import { asc, gt } from 'drizzle-orm';
+// the audit; no write is made). Exit 1 when the database cannot be read or the arguments are wrong.
+// `-- --team <team id>` (or `-- --team site`) checks that one chain only.
+import { parseArgs } from 'node:util';
+import { and, asc, eq, gt, isNull, type SQL } from 'drizzle-orm';
 import { db, pool } from '../src/db/client';
 import { auditChainStart, auditEvents } from '../src/db/schema';
 import { firstBreak, type ChainBreak } from '../src/lib/server/audit-chain';
 
 type Row = typeof auditEvents.$inferSelect;
 
+function chainFilter(): SQL | undefined {
+  const { values } = parseArgs({ options: { team: { type: 'string' } }, strict: true });
+  if (values.team === undefined) return undefined;
+  if (values.team === 'site') return isNull(auditEvents.teamId);
+  if (!/^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i.test(values.team)) {
+    throw new UsageError(`--team "${values.team}" is neither a team id (UUID) nor "site"`);
+  }
+  return eq(auditEvents.teamId, values.team);
+}
+
+class UsageError extends Error {}
+
 async function main(): Promise<number> {
+  const only = chainFilter();
   const [start] = await db.select().from(auditChainStart).limit(1);
   const lastUnchained = start?.lastUnchainedId ?? 0;
   const chains = new Map<string, Row[]>();
@@ -19,7 +34,7 @@ async function main(): Promise<number> {
   // Read in pages so a long audit does not have to fit in one result.
   let after = lastUnchained;
   for (;;) {
-    const page = await db.select().from(auditEvents).where(gt(auditEvents.id, after)).orderBy(asc(auditEvents.id)).limit(5000);
+    const page = await db.select().from(auditEvents).where(and(gt(auditEvents.id, after), only)).orderBy(asc(auditEvents.id)).limit(5000);
     if (page.length === 0) break;
     for (const row of page) {
       const key = row.teamId ?? 'site';
@@ -40,14 +55,15 @@ async function main(): Promise<number> {
     process.stdout.write(`audit:verify: broken link in ${chainName} at event ${first.eventId}: ${first.problem}\n`);
     return 2;
   }
-  process.stdout.write(`audit:verify: ${chains.size} chain${chains.size === 1 ? '' : 's'} hold, ${checked} event${checked === 1 ? '' : 's'} checked, ${lastUnchained} written before the chain started (not checked)\n`);
+  process.stdout.write(`audit:verify: ${chains.size} chain${chains.size === 1 ? ' holds' : 's hold'}, ${checked} event${checked === 1 ? '' : 's'} checked, ${lastUnchained} written before the chain started (not checked)\n`);
   return 0;
 }
 
 try {
   process.exitCode = await main();
 } catch (error) {
-  process.stderr.write(`audit:verify: cannot read the audit: ${(error as Error).message.split('\n')[0]}\n`);
+  const usage = error instanceof UsageError || (error as { code?: string }).code?.startsWith('ERR_PARSE_ARGS');
+  process.stderr.write(usage ? `audit:verify: ${(error as Error).message}; usage: npm run --silent audit:verify [-- --team <team id> | --team site]\n` : `audit:verify: cannot read the audit: ${(error as Error).message.split('\n')[0]}\n`);
   process.exitCode = 1;
 } finally {
   await pool.end();

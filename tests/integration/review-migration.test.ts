@@ -80,7 +80,7 @@ describe('0002 review', () => {
     expect(chained[1].prev_hash).toBe(chained[0].hash);
     const after = await verify();
     expect(after.code).toBe(0);
-    expect(after.out).toContain('1 chain hold, 2 events checked');
+    expect(after.out).toContain('1 chain holds, 2 events checked');
 
     // A hash blanked by hand is a break, not a way back to "before the chain".
     await client.query('UPDATE audit_events SET hash = NULL, prev_hash = NULL WHERE id = $1', [chained[1].id]);
