@@ -108,6 +108,8 @@ describe('review routes × roles', () => {
       c.request(`/api/analysis-sessions/${id}/recipe-versions/1/summary`, { method: 'PUT', json: smallSummary() }),
     );
     await expectStatuses({ lead: 200, reviewer: 200, outsider: 404, anonymous: 401 }, (c) => c.request(`/api/analysis-sessions/${id}/recipe-versions/1/summary`));
+    const { rows: stored } = await pool.query('SELECT s.bytes, s.summary_hash FROM summaries s JOIN recipe_versions v ON v.id = s.recipe_version_id WHERE v.analysis_session_id = $1', [id]);
+    expect(stored[0].bytes).toBe(Buffer.byteLength(JSON.stringify(smallSummary())));
     const twice = await clients.owner.request(`/api/analysis-sessions/${id}/recipe-versions/1/summary`, { method: 'PUT', json: smallSummary() });
     expect(twice.status).toBe(409);
     expect((await twice.json()).error.code).toBe('summary_exists');

@@ -21,8 +21,9 @@ export const PUT: APIRoute = (ctx) =>
     requirePermission(found.role, 'analysisSession:editOwn');
     if (found.session.ownerId !== found.user.id) throw new HttpError(403, 'forbidden', 'Only the analyst who owns this session may upload its summaries.');
     const version = await loadVersion(found, params.number);
-    const bytes = Number(request.headers.get('content-length') ?? 0);
     const summary = await parseJson(request, SummaryInput, { maxBytes: SUMMARY_CAPS.bodyBytes });
+    // The size of what is stored (the validated summary as JSON), whatever the request's framing.
+    const bytes = Buffer.byteLength(JSON.stringify(summary), 'utf8');
     const result = await uploadSummary(found, version, found.user.id, summary as unknown as Record<string, unknown>, bytes);
     if (!result.ok && result.reason === 'exists') {
       return json({ error: { code: 'summary_exists', message: `Recipe version ${version.number} already has its summary; a version's numbers never change. Save a new version to upload new numbers.` }, summaryHash: result.summaryHash }, 409);
