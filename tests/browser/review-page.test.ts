@@ -76,9 +76,10 @@ describe('study page review section', () => {
     await page.screenshot({ path: path.join(artifactsDir, 'review-study-returned.png') });
     expect(await page.locator(`#session-${ids[0]}`).textContent()).toContain('on version 1 (earlier version)');
 
-    await page.goto(`${appUrl}/account/notifications`);
+    await page.goto(`${appUrl}/account`);
     await page.getByLabel('My session was returned or signed off').uncheck();
-    await page.getByRole('button', { name: 'Save' }).click();
+    await page.getByRole('button', { name: 'Save mail choices' }).click();
+    await page.waitForURL(/\/account\/notifications$/);
     await page.getByTestId('mutes-saved').waitFor();
     expect(await page.getByLabel('My session was returned or signed off').isChecked()).toBe(false);
     expect(await page.getByLabel('Someone mentioned me in a note').isChecked()).toBe(true);

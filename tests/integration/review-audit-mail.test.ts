@@ -140,6 +140,10 @@ describe('review e-mail', () => {
   it('sends nothing of a kind the person muted on the notifications page, and still sends the others', async () => {
     const form = await c.analyst.request('/account/notifications');
     expect(form.status).toBe(200);
+    // The account page carries the same boxes, posting here.
+    const account = await (await c.analyst.request('/account')).text();
+    expect(account).toContain('action="/account/notifications"');
+    expect(account).toContain('name="note-mention" checked');
     // Untick "my session was returned or signed off"; keep the other two.
     const saved = await c.analyst.post('/account/notifications', { form: 'mail-preferences', 'review-requested': 'on', 'note-mention': 'on' });
     expect(saved.status).toBe(200);
