@@ -119,20 +119,23 @@ export async function parseJson<T extends z.ZodType>(request: Request, schema: T
  * (PostgreSQL docs, "Character Types"), so such input is refused as input, not left to fail as a server error.
  */
 export function nulPath(value: unknown, path: string): string | null {
-  if (typeof value === 'string') return value.includes('\u0000') ? path : null;
-  if (Array.isArray(value)) {
-    for (let i = 0; i < value.length; i++) {
-      const found = nulPath(value[i], path ? `${path}.${i}` : String(i));
-      if (found !== null) return found;
-    }
-    return null;
-  }
-  if (value && typeof value === 'object') {
-    for (const [k, v] of Object.entries(value)) {
-      const here = path ? `${path}.${k}` : k;
-      if (k.includes('\u0000')) return here;
-      const found = nulPath(v, here);
-      if (found !== null) return found;
+  // Walked with an explicit stack, not recursion, and paths are built only for the hit: a body of 10,000 nested
+  // arrays fits in a 64 KiB cap and would otherwise overflow the call stack (a 500) or build megabytes of paths.
+  // Entries are pushed in reverse so the first NUL in document order (a key before its value) is the one named.
+  const nodes: { parent: number; key: string }[] = [{ parent: -1, key: path }];
+  const pathOf = (node: number): string => {
+    const keys: string[] = [];
+    for (let n = node; n >= 0; n = nodes[n].parent) if (nodes[n].key !== '') keys.push(nodes[n].key);
+    return keys.reverse().join('.');
+  };
+  const stack: { value: unknown; node: number; badKey: boolean }[] = [{ value, node: 0, badKey: false }];
+  while (stack.length > 0) {
+    const { value: v, node, badKey } = stack.pop()!;
+    if (badKey || (typeof v === 'string' && v.includes('\u0000'))) return pathOf(node);
+    const entries: [string, unknown][] = Array.isArray(v) ? v.map((x, i) => [String(i), x]) : v && typeof v === 'object' ? Object.entries(v) : [];
+    for (let i = entries.length - 1; i >= 0; i--) {
+      nodes.push({ parent: node, key: entries[i][0] });
+      stack.push({ value: entries[i][1], node: nodes.length - 1, badKey: !Array.isArray(v) && entries[i][0].includes('\u0000') });
     }
   }
   return null;
