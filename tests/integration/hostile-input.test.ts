@@ -8,6 +8,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Client, pool } from '../helpers/app';
 import { createMember, createTeam } from '../helpers/fixtures';
 import { apiEndpoints } from '../helpers/routes';
+import { demoRecipe } from '../helpers/review';
 
 const WRITES = ['POST', 'PUT', 'PATCH', 'DELETE'];
 /** Endpoints that read no body at all (any body is ignored, so nothing in it can be refused). */
@@ -31,7 +32,11 @@ beforeAll(async () => {
     expect((await client.signIn(person.email, person.password)).status).toBe(302);
     clients.push(client);
   }
-  params = { teamId, studyId };
+  // Team review routes: a session of the analyst with recipe version 1 and a note by the lead, so their bodies are read.
+  const sessionId = (await (await clients[1].request(`/api/studies/${studyId}/analysis-sessions`, { method: 'POST', json: { subjectCode: 'TM-H01' } })).json()).analysisSession.id;
+  expect((await clients[1].request(`/api/analysis-sessions/${sessionId}/recipe-versions`, { method: 'POST', json: { baseVersion: null, recipe: demoRecipe() } })).status).toBe(201);
+  const noteId = (await (await clients[0].request(`/api/analysis-sessions/${sessionId}/notes`, { method: 'POST', json: { body: 'hostile fixture' } })).json()).note.id;
+  params = { teamId, studyId, sessionId, number: '1', noteId };
 });
 afterAll(() => pool.end());
 
