@@ -12,7 +12,7 @@ export function demoRecipe(): Record<string, unknown> {
 export function smallSummary() {
   return {
     format: 'tidemark-summary-1',
-    normalizedUnit: 'db',
+    normalizedUnit: 'decibel',
     bands: [{ label: 'theta', lowHz: 4, highHz: 8 }],
     windows: [{ label: 'early', startS: 0.1, endS: 0.5 }],
     conditions: ['lamp'],

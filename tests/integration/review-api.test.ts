@@ -120,7 +120,7 @@ describe('optimistic concurrency', () => {
   it('answers a stale base version with 409 and the current version, and keeps what was saved', async () => {
     const id = await newSession();
     expect((await saveVersion(id, null)).status).toBe(201);
-    const changed = { ...demoRecipe(), baseline: { start: -0.4, end: -0.1, method: 'percent', scope: 'average' } };
+    const changed = { ...demoRecipe(), baseline: { ...(demoRecipe().baseline as object), start: -0.4, end: -0.1, method: 'percent-change' } };
     const second = await saveVersion(id, 1, changed);
     expect(second.status).toBe(201);
     expect((await second.json()).version.number).toBe(2);
@@ -130,7 +130,7 @@ describe('optimistic concurrency', () => {
     const body = await stale.json();
     expect(body.error.code).toBe('stale_version');
     expect(body.current.number).toBe(2);
-    expect(body.current.recipe.baseline.method).toBe('percent');
+    expect(body.current.recipe.baseline.method).toBe('percent-change');
     const fromNothing = await saveVersion(id, null);
     expect(fromNothing.status).toBe(409);
     const { rows } = await pool.query('SELECT number FROM recipe_versions WHERE analysis_session_id = $1 ORDER BY number', [id]);

@@ -5,7 +5,7 @@
  * the only free text is a note's body and a return reason. No module here touches the DOM or node:*.
  */
 import { z } from '../analysis/zod';
-import { RecipeSchema } from '../analysis/recipe';
+import { BASELINE_METHODS, RecipeSchema } from '../analysis/recipe';
 import { AnalysisSessionInput } from './studies';
 
 /** Caps on a summary, in one place so the routes, the docs and the tests agree. */
@@ -101,7 +101,8 @@ const ReducedMap = z
 export const SummaryInput = z
   .object({
     format: z.literal('tidemark-summary-1', { error: 'must be "tidemark-summary-1"' }),
-    normalizedUnit: z.enum(['db', 'percent', 'zscore', 'ratio']),
+    /** The recipe's baseline method (format 2 names), which the normalized values are in. */
+    normalizedUnit: z.enum(BASELINE_METHODS),
     bands: capped(Band, SUMMARY_CAPS.bands, 'bands'),
     windows: capped(Window, SUMMARY_CAPS.windows, 'windows'),
     conditions: capped(ConditionName, SUMMARY_CAPS.conditions, 'conditions'),
@@ -162,7 +163,10 @@ export const SummaryInput = z
   });
 export type SummaryInputT = z.infer<typeof SummaryInput>;
 
-/** Save a recipe version: `baseVersion` is the version the edit started from (null when there is none yet). */
+/**
+ * Save a recipe version: `baseVersion` is the version the edit started from (null when there is none yet). The
+ * recipe is format 2 (RecipeSchema); a format-1 recipe is upgraded by the client (`readRecipe`) before it is sent.
+ */
 export const RecipeVersionInput = z
   .object({
     baseVersion: z.number().int('must be a whole number').min(1, 'must be at least 1').nullable(),
