@@ -4,7 +4,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
-import { artifactsDir, launchBrowser } from '../helpers/browser';
+import { artifactsDir, launchBrowser, downloadFrom } from '../helpers/browser';
 import { seededNormal } from '../helpers/seeded-random';
 import { openWorkspace, dropFile, readMapCell } from '../helpers/workspace';
 import { writeEdf } from '../../src/lib/formats';
@@ -22,12 +22,7 @@ let page: Page;
 let bytes: Uint8Array;
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'tidemark-channels-'));
 
-async function download(testId: string): Promise<Buffer> {
-  const [dl] = await Promise.all([page.waitForEvent('download'), page.getByTestId(testId).click()]);
-  const file = path.join(dir, dl.suggestedFilename());
-  await dl.saveAs(file);
-  return fs.readFileSync(file);
-}
+const download = async (testId: string): Promise<Buffer> => (await downloadFrom(page, testId, dir)).bytes;
 
 const row = (name: string) => page.locator(`[data-testid="channel-row"][data-channel="${name}"]`);
 

@@ -4,7 +4,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
-import { artifactsDir, launchBrowser } from '../helpers/browser';
+import { artifactsDir, launchBrowser, downloadFrom } from '../helpers/browser';
 import { runRecipe, type AnalysisResult } from '../../src/lib/analysis/run-recipe';
 import { loadDemo } from '../../src/components/explorer/test-hooks';
 import { useSourceStore } from '../../src/stores/source';
@@ -28,12 +28,7 @@ async function exportedRecipe() {
   return recipe;
 }
 
-async function download(testId: string): Promise<{ name: string; bytes: Buffer }> {
-  const [dl] = await Promise.all([page.waitForEvent('download'), page.getByTestId(testId).click()]);
-  const file = path.join(artifactsDir, dl.suggestedFilename());
-  await dl.saveAs(file);
-  return { name: dl.suggestedFilename(), bytes: fs.readFileSync(file) };
-}
+const download = (testId: string) => downloadFrom(page, testId, artifactsDir);
 
 /** The core's result for a recipe in Node, on the same demo recording and the same epoch decisions. */
 function nodeResult(recipe: unknown): AnalysisResult {

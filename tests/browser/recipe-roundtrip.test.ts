@@ -5,7 +5,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
-import { artifactsDir, launchBrowser } from '../helpers/browser';
+import { artifactsDir, launchBrowser, downloadFrom } from '../helpers/browser';
 import { describeCohort, writeSubjectEdf, type SubjectParameters } from '../../src/lib/demo/cohort';
 import type { AnalysisResult } from '../../src/lib/analysis/run-recipe';
 import { openWorkspace, dropFile, readMapCell } from '../helpers/workspace';
@@ -21,12 +21,7 @@ let subject: SubjectParameters;
 let bytes: Uint8Array;
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'tidemark-roundtrip-'));
 
-async function download(testId: string): Promise<Buffer> {
-  const [dl] = await Promise.all([page.waitForEvent('download'), page.getByTestId(testId).click()]);
-  const file = path.join(dir, dl.suggestedFilename());
-  await dl.saveAs(file);
-  return fs.readFileSync(file);
-}
+const download = async (testId: string): Promise<Buffer> => (await downloadFrom(page, testId, dir)).bytes;
 
 
 const nearest = (xs: number[], v: number) => xs.reduce((best, x, i) => (Math.abs(x - v) < Math.abs(xs[best] - v) ? i : best), 0);

@@ -4,7 +4,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
-import { artifactsDir, launchBrowser } from '../helpers/browser';
+import { artifactsDir, launchBrowser, downloadFrom } from '../helpers/browser';
 import { seededNormal } from '../helpers/seeded-random';
 import { openWorkspace, dropFile } from '../helpers/workspace';
 import { writeEdf } from '../../src/lib/formats';
@@ -28,12 +28,7 @@ function dimensionOffset(signalIndex: number): number {
   return 256 + (16 + 80) * ns + 8 * signalIndex;
 }
 
-async function download(testId: string): Promise<Buffer> {
-  const [dl] = await Promise.all([page.waitForEvent('download'), page.getByTestId(testId).click()]);
-  const file = path.join(dir, dl.suggestedFilename());
-  await dl.saveAs(file);
-  return fs.readFileSync(file);
-}
+const download = async (testId: string): Promise<Buffer> => (await downloadFrom(page, testId, dir)).bytes;
 
 beforeAll(async () => {
   const normal = seededNormal(33);

@@ -21,3 +21,12 @@ export async function launchBrowser(): Promise<{ browser: Browser; close: () => 
     close: () => browser.close(),
   };
 }
+
+/** Clicks the control `testId` on `page`, saves the download it starts into `dir`, and returns its name and bytes. */
+export async function downloadFrom(page: import('playwright-core').Page, testId: string, dir: string): Promise<{ name: string; bytes: Buffer }> {
+  const [dl] = await Promise.all([page.waitForEvent('download'), page.getByTestId(testId).click()]);
+  const file = path.join(dir, dl.suggestedFilename());
+  await dl.saveAs(file);
+  const { readFileSync } = await import('node:fs');
+  return { name: dl.suggestedFilename(), bytes: readFileSync(file) };
+}
