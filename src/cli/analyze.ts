@@ -4,7 +4,7 @@
  * on stderr for bad input (never a stack trace), exit 1 for anything unexpected.
  */
 import { readFile } from 'node:fs/promises';
-import { oneLine, writeJsonOutput } from './io';
+import { oneLine, splitArgs, writeJsonOutput } from './io';
 import { pathToFileURL } from 'node:url';
 import { AnalysisInputError } from '../lib/analysis/errors';
 import { parseRecipe, readRecipe as checkRecipe, RecipeSchema } from '../lib/analysis/recipe';
@@ -23,21 +23,7 @@ interface Args {
 }
 
 function parseArgs(argv: string[]): Args {
-  const positional: string[] = [];
-  const named: Record<string, string> = {};
-  for (let i = 0; i < argv.length; i++) {
-    const a = argv[i];
-    if (a.startsWith('--')) {
-      const [key, inline] = a.slice(2).split('=', 2);
-      if (!['recipe', 'events', 'rate', 'out'].includes(key)) throw new CliInputError(`--${key}`, `is not an option (${USAGE})`);
-      const value = inline ?? argv[++i];
-      if (value === undefined || value.startsWith('--')) throw new CliInputError(`--${key}`, 'needs a value');
-      if (key in named) throw new CliInputError(`--${key}`, 'is given twice');
-      named[key] = value;
-    } else {
-      positional.push(a);
-    }
-  }
+  const { positional, named } = splitArgs(argv, ['recipe', 'events', 'rate', 'out'], USAGE);
   if (positional.length !== 1) throw new CliInputError('arguments', `expected one recording file, got ${positional.length} (${USAGE})`);
   if (named.recipe === undefined) throw new CliInputError('--recipe', `is required (${USAGE})`);
   let rate: number | undefined;

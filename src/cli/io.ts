@@ -29,3 +29,26 @@ export async function writeJsonOutput(json: string, out: string | undefined): Pr
   }
   await new Promise<void>((resolve, reject) => process.stdout.write(json + '\n', (err) => (err ? reject(err) : resolve())));
 }
+
+/**
+ * Splits `argv` into positional arguments and `--name value` / `--name=value` options, refusing an unknown option,
+ * one without its value (`needs`: what the message says it needs) and one given twice.
+ */
+export function splitArgs(argv: string[], options: readonly string[], usage: string, needs = 'a value'): { positional: string[]; named: Record<string, string> } {
+  const positional: string[] = [];
+  const named: Record<string, string> = {};
+  for (let i = 0; i < argv.length; i++) {
+    const a = argv[i];
+    if (!a.startsWith('--')) {
+      positional.push(a);
+      continue;
+    }
+    const [key, inline] = a.slice(2).split('=', 2);
+    if (!options.includes(key)) throw new CliInputError(`--${key}`, `is not an option (${usage})`);
+    const value = inline ?? argv[++i];
+    if (value === undefined || value.startsWith('--')) throw new CliInputError(`--${key}`, `needs ${needs}`);
+    if (key in named) throw new CliInputError(`--${key}`, 'is given twice');
+    named[key] = value;
+  }
+  return { positional, named };
+}

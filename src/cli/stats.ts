@@ -4,7 +4,7 @@
  * and the line, column or field for bad input (never a stack trace), exit 1 for anything unexpected.
  */
 import { readFile } from 'node:fs/promises';
-import { CliInputError, oneLine, writeJsonOutput } from './io';
+import { CliInputError, oneLine, splitArgs, writeJsonOutput } from './io';
 import { pathToFileURL } from 'node:url';
 import { DesignSchema, parseWith, runDesign } from '../lib/statistics/design';
 import { StatisticsInputError } from '../lib/statistics/errors';
@@ -24,21 +24,7 @@ interface Args {
 }
 
 function parseArgs(argv: string[]): Args {
-  const positional: string[] = [];
-  const named: Record<string, string> = {};
-  for (let i = 0; i < argv.length; i++) {
-    const a = argv[i];
-    if (a.startsWith('--')) {
-      const [key, inline] = a.slice(2).split('=', 2);
-      if (!OPTIONS.includes(key)) throw new CliInputError(`--${key}`, `is not an option (${USAGE})`);
-      const value = inline ?? argv[++i];
-      if (value === undefined || value.startsWith('--')) throw new CliInputError(`--${key}`, 'needs a file name');
-      if (key in named) throw new CliInputError(`--${key}`, 'is given twice');
-      named[key] = value;
-    } else {
-      positional.push(a);
-    }
-  }
+  const { positional, named } = splitArgs(argv, OPTIONS, USAGE, 'a file name');
   if (positional.length !== 1) throw new CliInputError('arguments', `expected one values CSV file, got ${positional.length} (${USAGE})`);
   if (named.design === undefined) throw new CliInputError('--design', `is required (${USAGE})`);
   return { values: positional[0], design: named.design, maps: named.maps, out: named.out };
