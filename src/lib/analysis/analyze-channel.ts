@@ -34,6 +34,8 @@ export interface RecipePlan {
   /** `conditionSpans` (source `epochs` only): each condition's epoch spans, for one aperiodic fit per condition. */
   spectrum: { segmentSamples: number; overlapSamples: number; range: [number, number]; spans: Int32Array; conditionSpans: Int32Array[] | null };
   aperiodic: { range: [number, number]; model: AperiodicModel };
+  /** Inter-trial phase consistency per condition beside power (recipe `"itpc": true`). */
+  itpc: boolean;
   warnings: string[];
 }
 
@@ -42,6 +44,8 @@ export interface ChannelAnalysis {
   power: Float64Array[];
   normalized: Float64Array[];
   singleTrials: Float32Array[] | null;
+  /** Per condition, inter-trial phase consistency `[f·L + t]` (0 … 1), when the plan asks for it; else null. */
+  itpc: Float64Array[] | null;
   /** Welch density over the bins inside `spectrum.range`, µV²/Hz. */
   psd: Float64Array;
   spectrumFrequencies: Float64Array;
@@ -69,6 +73,7 @@ export function analyzeChannel(plan: RecipePlan, samples: Float32Array, options:
       sigmas: plan.sigmas,
       baseline: plan.baseline,
       singleTrials: options.singleTrials === true,
+      itpc: plan.itpc === true,
     },
     options,
   );
@@ -91,6 +96,7 @@ export function analyzeChannel(plan: RecipePlan, samples: Float32Array, options:
     power: tf.power,
     normalized: tf.normalized,
     singleTrials: tf.singleTrials,
+    itpc: tf.itpc,
     psd: welch.psd.slice(k0, k1),
     spectrumFrequencies: welch.frequencies.slice(k0, k1),
     aperiodic,

@@ -24,6 +24,8 @@ export interface DecomposeJob {
   baseline: { first: number; last: number; method: BaselineMethod; scope: BaselineScope; spread?: BaselineSpread };
   /** Keep every trial's power (only for the one channel the explorer shows trial by trial). */
   singleTrials?: boolean;
+  /** Also sum each trial's unit phasor for inter-trial phase consistency (analysis contract, recipe `"itpc": true`). */
+  itpc?: boolean;
 }
 
 export interface DecomposeOutput {
@@ -33,6 +35,8 @@ export interface DecomposeOutput {
   normalized: Float64Array[];
   /** Per condition, `[(trial·F + f)·L + t]` power, µV², when the job asked for it. */
   singleTrials: Float32Array[] | null;
+  /** Per condition, inter-trial phase consistency `[f·L + t]`, 0 … 1, when the job asked for it. */
+  itpc: Float64Array[] | null;
 }
 
 export interface DecomposeOptions {
@@ -86,6 +90,7 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
   const power: Float64Array[] = [];
   const normalized: Float64Array[] = [];
   const singleTrials: Float32Array[] | null = job.singleTrials ? [] : null;
+  const itpc: Float64Array[] | null = job.itpc === true ? [] : null;
 
   for (let c = 0; c < epochStarts.length; c++) {
     const starts = epochStarts[c];
@@ -93,6 +98,9 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
     const sum = new Float64Array(nf * L);
     const normSum = trialScope ? new Float64Array(nf * L) : null;
     const single = singleTrials !== null ? new Float32Array(trials * nf * L) : null;
+    // Σ_k y_k/|y_k| as interleaved (re, im) per (frequency, time); power's own sums are left untouched, so asking
+    // for phase consistency never changes a power bit.
+    const phasors = itpc !== null ? new Float64Array(2 * nf * L) : null;
     // B_k(f), each trial's baseline mean, for across-trials z-scores.
     const trialBaselines = spreadTrials ? new Float64Array(trials * nf) : null;
     const decimated: (Float64Array | null)[] = [];
@@ -113,6 +121,9 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
         forward.completeSpectrum(spectra[b]);
       }
       for (let f = 0; f < nf; f++) {
+        if (phasors !== null) {
+          for (let b = 0; b < nb; b++) bandPhase(phasors, 2 * f * L, L, spectra[b], bank.bins[f], bank.weights[f], bank.sizes[f] / bank.bandSizes[f], band, work, out);
+        }
         const acc = decimated[f];
         if (acc !== null) {
           const bins = bank.averageBins[f] as Int32Array;
@@ -159,9 +170,69 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
       normalized.push(normalizeAverage(sum, L, baseline, method));
     }
     if (singleTrials !== null && single !== null) singleTrials.push(single);
+    if (itpc !== null && phasors !== null) itpc.push(phaseConsistency(phasors, nf * L, trials));
   }
   if (onProgress !== undefined && totalEpochs === 0) onProgress(1);
-  return { power, normalized, singleTrials };
+  return { power, normalized, singleTrials, itpc };
+}
+
+// |Σ_k y_k/|y_k|| / N per (frequency, time) from the interleaved phasor sums (analysis contract, "Inter-trial phase
+// consistency"; the phase-locking value of Tallon-Baudry et al., 1996, J Neurosci 16:4240, and Lachaux et al., 1999,
+// Hum Brain Mapp 8:194). A trial with |y| = 0 adds nothing, so a point where every |y_k| is 0 reads 0.
+function phaseConsistency(phasors: Float64Array, points: number, trials: number): Float64Array {
+  const out = new Float64Array(points);
+  if (trials === 0) return out;
+  for (let i = 0; i < points; i++) {
+    const re = phasors[2 * i];
+    const im = phasors[2 * i + 1];
+    out[i] = Math.sqrt(re * re + im * im) / trials;
+  }
+  return out;
+}
+
+// The same transforms as bandPower, keeping the phase: out holds conj(y) times a factor of modulus 1 that depends
+// on the time point and the wavelet's band only, never on the trial, so |Σ_k out_k/|out_k|| = |Σ_k y_k/|y_k||.
+function bandPhase(
+  phasors: Float64Array,
+  off: number,
+  length: number,
+  spectrum: Float64Array,
+  bins: Int32Array,
+  weights: Float64Array,
+  residues: number,
+  band: Float64Array,
+  work: Float64Array,
+  out: Float64Array,
+): void {
+  const m = bins.length;
+  const fft = getFft(m);
+  for (let q = 0; q < m; q++) {
+    const idx = bins[q];
+    band[2 * q] = spectrum[idx];
+    band[2 * q + 1] = -spectrum[idx + 1];
+  }
+  for (let r = 0; r < residues; r++) {
+    const base = 2 * r * m;
+    for (let q = 0; q < m; q++) {
+      const xr = band[2 * q];
+      const xi = band[2 * q + 1];
+      const vr = weights[base + 2 * q];
+      const vi = weights[base + 2 * q + 1];
+      work[2 * q] = xr * vr - xi * vi;
+      work[2 * q + 1] = xr * vi + xi * vr;
+    }
+    fft.transform(out, work);
+    const count = Math.min(m, Math.ceil((length - r) / residues));
+    for (let q = 0, j = r; q < count; q++, j += residues) {
+      const re = out[2 * q];
+      const im = out[2 * q + 1];
+      const mag = Math.sqrt(re * re + im * im);
+      if (mag > 0) {
+        phasors[off + 2 * j] += re / mag;
+        phasors[off + 2 * j + 1] += im / mag;
+      }
+    }
+  }
 }
 
 // Power of one epoch at one frequency (see WaveletBank): gather conj(X) over the band, then for each output

@@ -84,6 +84,8 @@ const filters = z
 // Fields both formats share: the contract's and our extensions (DEVELOPERS.md, "Recipe extensions"; all optional,
 // so a contract recipe parses as is).
 const shared = {
+  // Analysis contract, "Inter-trial phase consistency": each condition also gets `itpc` beside `power`.
+  itpc: z.boolean({ error: 'must be true or false' }).optional(),
   channels: z.array(z.string().min(1, 'must not be empty')).min(1, 'must name at least one channel (or be left out for all)').optional(),
   frequencies: z
     .object({

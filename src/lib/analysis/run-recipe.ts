@@ -25,6 +25,8 @@ export interface ResultCondition {
   power: number[][][];
   /** [channel][frequency][time] in the baseline method's unit; undefined values are null in JSON. */
   normalized: number[][][];
+  /** [channel][frequency][time], 0 … 1, with recipe `"itpc": true` (analysis contract, "Inter-trial phase consistency"). */
+  itpc?: number[][][];
 }
 
 export interface ResultAperiodic extends AperiodicFit {
@@ -280,6 +282,7 @@ export function planRun(input: Recording, recipeInput: unknown): { plan: RecipeP
     baseline: { first: b.first, last: b.last, method, scope, spread: recipe.baseline.spread ?? 'time' },
     spectrum: { segmentSamples, overlapSamples, range: [rLo, rHi], spans: Int32Array.from(spanList), conditionSpans },
     aperiodic: { range: [aLo, aHi], model: ap.model },
+    itpc: recipe.itpc === true,
     warnings,
   };
   return { plan, recording };
@@ -303,6 +306,7 @@ export function assembleResult(plan: RecipePlan, channels: ChannelAnalysis[]): A
       rejected: plan.rejected[c],
       power: channels.map((ch) => rows(ch.power[c], nf, nt)),
       normalized: channels.map((ch) => rows(ch.normalized[c], nf, nt)),
+      ...(plan.itpc ? { itpc: channels.map((ch) => rows(ch.itpc![c], nf, nt)) } : {}),
     };
   });
   const resolution = resolutionOf(plan.sigmas);

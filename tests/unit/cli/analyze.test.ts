@@ -73,6 +73,8 @@ beforeAll(() => {
     file('format1.json'),
     JSON.stringify({ ...recipe, format: undefined, epochs: { events: recipe.epochs.events, tmin: -0.5, tmax: 1.0 }, baseline: { ...recipe.baseline, method: 'db' }, aperiodic: { range: [2, 40], mode: 'fixed' } }),
   );
+  put('itpc.json', { itpc: true });
+  put('itpc-bad.json', { itpc: 1 });
   put('start-after-end.json', { epochs: { ...recipe.epochs, start: 1.0 } });
   put('baseline.json', { baseline: { ...recipe.baseline, start: -0.9 } });
   put('nyquist.json', { frequencies: { ...recipe.frequencies, max: 50 } });
@@ -119,6 +121,27 @@ describe('analyze command line', () => {
     const local = JSON.parse(JSON.stringify(runRecipe(recording, recipe)));
     expect(result.conditions).toEqual(local.conditions);
     expect(result.aperiodic).toEqual(local.aperiodic);
+  });
+
+  it('adds inter-trial phase consistency beside power with "itpc": true (analysis contract)', async () => {
+    const plain = JSON.parse((await analyze([file('rec.edf'), '--recipe', file('recipe.json')])).stdout);
+    const out = await analyze([file('rec.edf'), '--recipe', file('itpc.json')]);
+    expect(out.stderr).toBe('');
+    expect(out.code).toBe(0);
+    const result = JSON.parse(out.stdout);
+    for (const label of ['go', 'stop']) {
+      expect(plain.conditions[label].itpc).toBeUndefined();
+      const itpc = result.conditions[label].itpc as number[][][];
+      expect(itpc.length).toBe(2);
+      expect(itpc[0].length).toBe(5);
+      expect(itpc[0][0].length).toBe(151);
+      for (const v of itpc.flat(2)) expect(v >= 0 && v <= 1 + 1e-12).toBe(true);
+      expect(result.conditions[label].power).toEqual(plain.conditions[label].power);
+    }
+    const bad = await analyze([file('rec.edf'), '--recipe', file('itpc-bad.json')]);
+    expect(bad.code).toBe(2);
+    expect(bad.stderr.trim().split('\n')).toHaveLength(1);
+    expect(bad.stderr).toMatch(/itpc/);
   });
 
   it('reads EDF+ with annotations as events and prints to standard output', async () => {
