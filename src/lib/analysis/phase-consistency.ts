@@ -3,6 +3,7 @@
  * `r` of `n` unit phasors larger than phases spread evenly would give? Used to mark regions of a phase-consistency
  * map (analysis contract, "Inter-trial phase consistency"; the map itself comes from `decomposeChannel`).
  */
+import { exp } from './portable-math';
 
 /** Rayleigh's Z = n·r² (Zar, Biostatistical Analysis, 4th ed., 1999, §27.1, eq. 27.2; from memory). */
 export function rayleighZ(n: number, r: number): number {
@@ -17,6 +18,6 @@ export function rayleighZ(n: number, r: number): number {
 export function rayleighP(n: number, r: number): number {
   if (!(n >= 1) || !Number.isFinite(r)) return Number.NaN;
   const R = n * Math.min(Math.max(r, 0), 1);
-  const p = Math.exp(Math.sqrt(1 + 4 * n + 4 * (n * n - R * R)) - (1 + 2 * n));
+  const p = exp(Math.sqrt(1 + 4 * n + 4 * (n * n - R * R)) - (1 + 2 * n));
   return Math.min(1, Math.max(0, p));
 }
