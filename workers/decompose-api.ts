@@ -12,7 +12,7 @@ export interface ChannelJob {
 }
 
 function buffersOf(out: ChannelAnalysis): ArrayBuffer[] {
-  const arrays: ArrayBufferView[] = [...out.power, ...out.normalized, ...(out.itpc ?? []), out.psd, out.spectrumFrequencies, ...(out.singleTrials ?? [])];
+  const arrays: ArrayBufferView[] = [...out.power, ...out.normalized, ...(out.itpc ?? []), ...(out.evoked ?? []), out.psd, out.spectrumFrequencies, ...(out.singleTrials ?? [])];
   return [...new Set(arrays.map((a) => a.buffer as ArrayBuffer))];
 }
 

@@ -36,6 +36,8 @@ export interface RecipePlan {
   aperiodic: { range: [number, number]; model: AperiodicModel };
   /** Inter-trial phase consistency per condition beside power (recipe `"itpc": true`). */
   itpc: boolean;
+  /** Induced power: each condition's evoked response is subtracted from its epochs first (recipe `trialPower`). */
+  induced: boolean;
   warnings: string[];
 }
 
@@ -46,6 +48,8 @@ export interface ChannelAnalysis {
   singleTrials: Float32Array[] | null;
   /** Per condition, inter-trial phase consistency `[f·L + t]` (0 … 1), when the plan asks for it; else null. */
   itpc: Float64Array[] | null;
+  /** Per condition, the evoked response (µV per time point) with induced power; else null. */
+  evoked: Float64Array[] | null;
   /** Welch density over the bins inside `spectrum.range`, µV²/Hz. */
   psd: Float64Array;
   spectrumFrequencies: Float64Array;
@@ -74,6 +78,7 @@ export function analyzeChannel(plan: RecipePlan, samples: Float32Array, options:
       baseline: plan.baseline,
       singleTrials: options.singleTrials === true,
       itpc: plan.itpc === true,
+      induced: plan.induced === true,
     },
     options,
   );
@@ -97,6 +102,7 @@ export function analyzeChannel(plan: RecipePlan, samples: Float32Array, options:
     normalized: tf.normalized,
     singleTrials: tf.singleTrials,
     itpc: tf.itpc,
+    evoked: tf.evoked,
     psd: welch.psd.slice(k0, k1),
     spectrumFrequencies: welch.frequencies.slice(k0, k1),
     aperiodic,

@@ -26,6 +26,8 @@ export interface DecomposeJob {
   singleTrials?: boolean;
   /** Also sum each trial's unit phasor for inter-trial phase consistency (analysis contract, recipe `"itpc": true`). */
   itpc?: boolean;
+  /** Induced power: subtract the condition's evoked response (mean of its demeaned epochs) from each epoch first. */
+  induced?: boolean;
 }
 
 export interface DecomposeOutput {
@@ -37,6 +39,8 @@ export interface DecomposeOutput {
   singleTrials: Float32Array[] | null;
   /** Per condition, inter-trial phase consistency `[f·L + t]`, 0 … 1, when the job asked for it. */
   itpc: Float64Array[] | null;
+  /** Per condition, the evoked response (mean of the demeaned epochs, µV, length L), when the job asked for induced power. */
+  evoked: Float64Array[] | null;
 }
 
 export interface DecomposeOptions {
@@ -91,6 +95,11 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
   const normalized: Float64Array[] = [];
   const singleTrials: Float32Array[] | null = job.singleTrials ? [] : null;
   const itpc: Float64Array[] | null = job.itpc === true ? [] : null;
+  const evokedOut: Float64Array[] | null = job.induced === true ? [] : null;
+  // With induced power the phases for phase consistency still come from the whole demeaned epoch (the contract's
+  // y_k): by linearity its spectrum is the residual's plus the evoked response's, added back per epoch.
+  const evokedSpectrum = evokedOut !== null && itpc !== null ? new Float64Array(2 * fftSize) : null;
+  const totalSpectrum = evokedSpectrum !== null ? new Float64Array(2 * fftSize) : null;
 
   for (let c = 0; c < epochStarts.length; c++) {
     const starts = epochStarts[c];
@@ -101,6 +110,15 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
     // Σ_k y_k/|y_k| as interleaved (re, im) per (frequency, time); power's own sums are left untouched, so asking
     // for phase consistency never changes a power bit.
     const phasors = itpc !== null ? new Float64Array(2 * nf * L) : null;
+    // Induced power (e.g. Tallon-Baudry & Bertrand, 1999, Trends Cogn Sci 3:151): the condition's evoked response,
+    // the mean of its demeaned epochs summed in epoch order, is taken out of every epoch before the transform.
+    const evoked = evokedOut !== null ? evokedResponse(samples, starts, L) : null;
+    if (evoked !== null && evokedSpectrum !== null) {
+      epoch.set(evoked);
+      forward.realTransform(evokedSpectrum, epoch);
+      forward.completeSpectrum(evokedSpectrum);
+      epoch.fill(0);
+    }
     // B_k(f), each trial's baseline mean, for across-trials z-scores.
     const trialBaselines = spreadTrials ? new Float64Array(trials * nf) : null;
     const decimated: (Float64Array | null)[] = [];
@@ -116,13 +134,21 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
         let total = 0;
         for (let j = 0; j < L; j++) total += samples[s0 + j];
         const mean = total / L;
-        for (let j = 0; j < L; j++) epoch[j] = samples[s0 + j] - mean;
+        if (evoked === null) for (let j = 0; j < L; j++) epoch[j] = samples[s0 + j] - mean;
+        else for (let j = 0; j < L; j++) epoch[j] = samples[s0 + j] - mean - evoked[j];
         forward.realTransform(spectra[b], epoch);
         forward.completeSpectrum(spectra[b]);
       }
       for (let f = 0; f < nf; f++) {
         if (phasors !== null) {
-          for (let b = 0; b < nb; b++) bandPhase(phasors, 2 * f * L, L, spectra[b], bank.bins[f], bank.weights[f], bank.sizes[f] / bank.bandSizes[f], band, work, out);
+          for (let b = 0; b < nb; b++) {
+            let spectrum = spectra[b];
+            if (evokedSpectrum !== null && totalSpectrum !== null) {
+              for (let i = 0; i < spectrum.length; i++) totalSpectrum[i] = spectrum[i] + evokedSpectrum[i];
+              spectrum = totalSpectrum;
+            }
+            bandPhase(phasors, 2 * f * L, L, spectrum, bank.bins[f], bank.weights[f], bank.sizes[f] / bank.bandSizes[f], band, work, out);
+          }
         }
         const acc = decimated[f];
         if (acc !== null) {
@@ -171,9 +197,24 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
     }
     if (singleTrials !== null && single !== null) singleTrials.push(single);
     if (itpc !== null && phasors !== null) itpc.push(phaseConsistency(phasors, nf * L, trials));
+    if (evokedOut !== null && evoked !== null) evokedOut.push(evoked);
   }
   if (onProgress !== undefined && totalEpochs === 0) onProgress(1);
-  return { power, normalized, singleTrials, itpc };
+  return { power, normalized, singleTrials, itpc, evoked: evokedOut };
+}
+
+// Mean over a condition's epochs of each epoch with its own mean removed, µV, summed in Float64 in epoch order.
+function evokedResponse(samples: Float32Array, starts: Int32Array, length: number): Float64Array {
+  const sum = new Float64Array(length);
+  for (let e = 0; e < starts.length; e++) {
+    const s0 = starts[e];
+    let total = 0;
+    for (let j = 0; j < length; j++) total += samples[s0 + j];
+    const mean = total / length;
+    for (let j = 0; j < length; j++) sum[j] += samples[s0 + j] - mean;
+  }
+  if (starts.length > 0) for (let j = 0; j < length; j++) sum[j] /= starts.length;
+  return sum;
 }
 
 // |Σ_k y_k/|y_k|| / N per (frequency, time) from the interleaved phasor sums (analysis contract, "Inter-trial phase

@@ -86,6 +86,9 @@ const filters = z
 const shared = {
   // Analysis contract, "Inter-trial phase consistency": each condition also gets `itpc` beside `power`.
   itpc: z.boolean({ error: 'must be true or false' }).optional(),
+  // Extension (DEVELOPERS.md, "Recipe extensions"): "induced" takes each condition's evoked response out of every
+  // epoch before the transform; absent means "total".
+  trialPower: z.enum(['total', 'induced'], { error: 'must be "total" or "induced"' }).optional(),
   channels: z.array(z.string().min(1, 'must not be empty')).min(1, 'must name at least one channel (or be left out for all)').optional(),
   frequencies: z
     .object({

@@ -27,6 +27,8 @@ export interface ResultCondition {
   normalized: number[][][];
   /** [channel][frequency][time], 0 … 1, with recipe `"itpc": true` (analysis contract, "Inter-trial phase consistency"). */
   itpc?: number[][][];
+  /** [channel][time], µV: the evoked response taken out of each epoch, with recipe `"trialPower": "induced"`. */
+  evoked?: number[][];
 }
 
 export interface ResultAperiodic extends AperiodicFit {
@@ -229,6 +231,12 @@ export function planRun(input: Recording, recipeInput: unknown): { plan: RecipeP
     });
   }
 
+  if (recipe.trialPower === 'induced') {
+    epochStarts.forEach((starts, i) => {
+      if (starts.length < 2) throw new AnalysisInputError('trialPower', `"induced" needs at least 2 kept epochs per condition (one epoch minus its own average is zero); "${labels[i]}" has ${starts.length}`);
+    });
+  }
+
   const sp = recipe.spectrum;
   const segmentSamples = roundHalfUp(sp.segment * fs);
   const overlapSamples = roundHalfUp(sp.overlap * segmentSamples);
@@ -283,6 +291,7 @@ export function planRun(input: Recording, recipeInput: unknown): { plan: RecipeP
     spectrum: { segmentSamples, overlapSamples, range: [rLo, rHi], spans: Int32Array.from(spanList), conditionSpans },
     aperiodic: { range: [aLo, aHi], model: ap.model },
     itpc: recipe.itpc === true,
+    induced: recipe.trialPower === 'induced',
     warnings,
   };
   return { plan, recording };
@@ -307,6 +316,7 @@ export function assembleResult(plan: RecipePlan, channels: ChannelAnalysis[]): A
       power: channels.map((ch) => rows(ch.power[c], nf, nt)),
       normalized: channels.map((ch) => rows(ch.normalized[c], nf, nt)),
       ...(plan.itpc ? { itpc: channels.map((ch) => rows(ch.itpc![c], nf, nt)) } : {}),
+      ...(plan.induced ? { evoked: channels.map((ch) => Array.from(ch.evoked![c])) } : {}),
     };
   });
   const resolution = resolutionOf(plan.sigmas);

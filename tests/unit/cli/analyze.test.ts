@@ -75,6 +75,7 @@ beforeAll(() => {
   );
   put('itpc.json', { itpc: true });
   put('itpc-bad.json', { itpc: 1 });
+  put('induced.json', { trialPower: 'induced', itpc: true });
   put('start-after-end.json', { epochs: { ...recipe.epochs, start: 1.0 } });
   put('baseline.json', { baseline: { ...recipe.baseline, start: -0.9 } });
   put('nyquist.json', { frequencies: { ...recipe.frequencies, max: 50 } });
@@ -142,6 +143,23 @@ describe('analyze command line', () => {
     expect(bad.code).toBe(2);
     expect(bad.stderr.trim().split('\n')).toHaveLength(1);
     expect(bad.stderr).toMatch(/itpc/);
+  });
+
+  it('takes the evoked response out with "trialPower": "induced" and reports it per condition', async () => {
+    const plain = JSON.parse((await analyze([file('rec.edf'), '--recipe', file('itpc.json')])).stdout);
+    const out = await analyze([file('rec.edf'), '--recipe', file('induced.json')]);
+    expect(out.stderr).toBe('');
+    expect(out.code).toBe(0);
+    const result = JSON.parse(out.stdout);
+    const evoked = result.conditions.go.evoked as number[][];
+    expect(evoked).toHaveLength(2);
+    expect(evoked[0]).toHaveLength(151);
+    // induced power is total power less the evoked part, so never above it by more than rounding, and phase
+    // consistency still describes the whole epochs
+    const t = plain.conditions.go.power[1].flat();
+    const i = result.conditions.go.power[1].flat();
+    t.forEach((v: number, k: number) => expect(i[k]).toBeLessThanOrEqual(v * (1 + 1e-9)));
+    expect(result.conditions.go.itpc[1][2][75]).toBeCloseTo(plain.conditions.go.itpc[1][2][75], 9);
   });
 
   it('reads EDF+ with annotations as events and prints to standard output', async () => {
