@@ -31,7 +31,61 @@ export function welchPsd(
   overlapSamples: number,
   spans: ArrayLike<number> = [0, samples.length],
 ): WelchSpectrum {
-  const n = segmentSamples;
+  const bins = Math.floor(segmentSamples / 2) + 1;
+  const sum = new Float64Array(bins);
+  const { segments, scale } = eachSegment(samples, sampleRateHz, segmentSamples, overlapSamples, spans, (power) => {
+    for (let k = 0; k < bins; k++) sum[k] += power[k];
+  });
+  const frequencies = binFrequencies(bins, sampleRateHz, segmentSamples);
+  const psd = new Float64Array(bins);
+  for (let k = 0; k < bins; k++) psd[k] = segments > 0 ? (scale[k] * sum[k]) / segments : NaN;
+  return { frequencies, psd, segments };
+}
+
+/** Each Welch segment's own periodogram, for resampling segments (e.g. a bootstrap over segments). */
+export interface WelchSegments {
+  frequencies: Float64Array;
+  /** `[segment·bins + k]`: |FFT(x·w)|² of each segment, before the density scale. */
+  powers: Float64Array;
+  /** Per bin, the density factor: 1/(fs·Σw²), doubled except at 0 Hz and Nyquist. */
+  scale: Float64Array;
+  segments: number;
+}
+
+/**
+ * The segments `welchPsd` averages, kept apart: `welchPsd` equals `scale[k]·mean over segments of powers[·, k]`
+ * (the same sums in the same order when all segments are taken once).
+ */
+export function welchSegments(
+  samples: ArrayLike<number>,
+  sampleRateHz: number,
+  segmentSamples: number,
+  overlapSamples: number,
+  spans: ArrayLike<number> = [0, samples.length],
+): WelchSegments {
+  const bins = Math.floor(segmentSamples / 2) + 1;
+  const rows: Float64Array[] = [];
+  const { segments, scale } = eachSegment(samples, sampleRateHz, segmentSamples, overlapSamples, spans, (power) => rows.push(power.slice(0, bins)));
+  const powers = new Float64Array(segments * bins);
+  rows.forEach((r, i) => powers.set(r, i * bins));
+  return { frequencies: binFrequencies(bins, sampleRateHz, segmentSamples), powers, scale, segments };
+}
+
+function binFrequencies(bins: number, sampleRateHz: number, n: number): Float64Array {
+  const frequencies = new Float64Array(bins);
+  for (let k = 0; k < bins; k++) frequencies[k] = (k * sampleRateHz) / n;
+  return frequencies;
+}
+
+// The one walk over Welch segments: demean, window, transform, hand |X_k|² (k = 0 … ⌊N/2⌋) to `visit`.
+function eachSegment(
+  samples: ArrayLike<number>,
+  sampleRateHz: number,
+  n: number,
+  overlapSamples: number,
+  spans: ArrayLike<number>,
+  visit: (power: Float64Array) => void,
+): { segments: number; scale: Float64Array } {
   if (!Number.isInteger(n) || n < 2) throw new AnalysisInputError('spectrum.segment', `must span at least 2 samples (got ${n})`);
   const step = n - overlapSamples;
   if (!(step >= 1)) throw new AnalysisInputError('spectrum.overlap', `leaves no step between segments of ${n} samples`);
@@ -40,7 +94,7 @@ export function welchPsd(
   for (let k = 0; k < n; k++) windowPower += window[k] * window[k];
   const dft = getRealDft(n);
   const bins = Math.floor(n / 2) + 1;
-  const sum = new Float64Array(bins);
+  const power = new Float64Array(bins);
   const segment = new Float64Array(n);
   const spectrum = new Float64Array(2 * n);
   let segments = 0;
@@ -52,17 +106,13 @@ export function welchPsd(
       mean /= n;
       for (let k = 0; k < n; k++) segment[k] = (samples[start + k] - mean) * window[k];
       dft.forward(spectrum, segment);
-      for (let k = 0; k < bins; k++) sum[k] += spectrum[2 * k] * spectrum[2 * k] + spectrum[2 * k + 1] * spectrum[2 * k + 1];
+      for (let k = 0; k < bins; k++) power[k] = spectrum[2 * k] * spectrum[2 * k] + spectrum[2 * k + 1] * spectrum[2 * k + 1];
+      visit(power);
       segments++;
     }
   }
-  const frequencies = new Float64Array(bins);
-  const psd = new Float64Array(bins);
-  const scale = 1 / (sampleRateHz * windowPower);
-  for (let k = 0; k < bins; k++) {
-    frequencies[k] = (k * sampleRateHz) / n;
-    const oneSided = k === 0 || 2 * k === n ? 1 : 2;
-    psd[k] = segments > 0 ? (oneSided * scale * sum[k]) / segments : NaN;
-  }
-  return { frequencies, psd, segments };
+  const scale = new Float64Array(bins);
+  const base = 1 / (sampleRateHz * windowPower);
+  for (let k = 0; k < bins; k++) scale[k] = (k === 0 || 2 * k === n ? 1 : 2) * base;
+  return { segments, scale };
 }

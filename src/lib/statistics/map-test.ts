@@ -11,6 +11,7 @@
 // exactly −S. Only +, −, ×, ÷ and √ touch the map, so the masses are the same bits in every engine.
 import { MapTestCancelledError, StatisticsInputError } from './errors';
 import { studentTQuantile } from './distributions';
+import { mulberry32 } from '../analysis/random';
 
 /** Above this many subjects the null distribution comes from random flips (statistics contract). */
 export const EXACT_MAX_SUBJECTS = 12;
@@ -83,20 +84,8 @@ export interface MapTestResult {
   nullDistribution: Float64Array;
 }
 
-/**
- * mulberry32 (Tommy Ettinger, public domain), a small seeded 32-bit generator: uniform in [0, 1). Used for the
- * random flips so a seed reproduces them on every engine.
- */
-export function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** The seeded generator of the random flips (it lives with the core's other seeded code). */
+export { mulberry32 };
 
 /**
  * Stacks per-subject maps into MapTestInput.values: `first[s][p] − neutral` (one-sample), or `first[s][p] −
