@@ -1,18 +1,28 @@
 /**
  * `npm run --silent analyze -- <recording> --recipe <recipe.json> [--events <events.tsv>] [--rate <Hz>]
- * [--out <result.json>]`, the analysis contract's command line: exit 0 with the Result JSON, exit 2 with one line
- * on stderr for bad input (never a stack trace), exit 1 for anything unexpected.
+ * [--out <result.json>] [--summary <summary.json> --subject <code> [--summary-spec <spec.json>]]`, the analysis
+ * contract's command line: exit 0 with the Result JSON, exit 2 with one line on stderr for bad input (never a stack
+ * trace), exit 1 for anything unexpected. `--summary` also writes the review summary of the same run (format
+ * "tidemark-summary-1", src/lib/analysis/summary.ts) with the recipe, the recording's SHA-256 and the subject code:
+ * the file the study page's batch import reads. It holds no header field, no file name and no sample.
  */
 import { readFile } from 'node:fs/promises';
 import { oneLine, splitArgs, writeJsonOutput } from './io';
 import { pathToFileURL } from 'node:url';
 import { AnalysisInputError } from '../lib/analysis/errors';
 import { parseRecipe, readRecipe as checkRecipe, RecipeSchema } from '../lib/analysis/recipe';
-import { runRecipe } from '../lib/analysis/run-recipe';
+import { analyzeChannel, assembleResult, planRun, runRecipe, type ChannelAnalysis } from '../lib/analysis/run-recipe';
+import { combineSummary, resolveSummarySpec, summarizeChannel, type ChannelSummary, type SummarySpec } from '../lib/analysis/summary';
+import { z } from '../lib/analysis/zod';
+import { Label, SubjectCode, SUMMARY_CAPS, SummaryInput } from '../lib/schemas/review';
 import { FormatError } from '../lib/formats';
 import { CliInputError, loadRecording, type LoadOptions } from './load-recording';
 
-const USAGE = 'usage: analyze <recording.edf|.csv|.tsv> --recipe <recipe.json> [--events <events.tsv>] [--rate <Hz>] [--out <result.json>]';
+const USAGE =
+  'usage: analyze <recording.edf|.csv|.tsv> --recipe <recipe.json> [--events <events.tsv>] [--rate <Hz>] [--out <result.json>] [--summary <summary.json> --subject <code> [--summary-spec <spec.json>]]';
+
+/** The file `--summary` writes: what one subject's upload holds (the study page's batch import reads it). */
+export const CLI_SUMMARY_FORMAT = 'tidemark-cli-summary-1';
 
 interface Args {
   recording: string;
@@ -20,10 +30,25 @@ interface Args {
   events?: string;
   rate?: number;
   out?: string;
+  summary?: string;
+  subject?: string;
+  summarySpec?: string;
 }
 
+/** `--summary-spec`: bands, windows and channel groups of the summary (src/lib/analysis/summary.ts `SummarySpec`). */
+const finite = z.number().refine(Number.isFinite, 'must be a finite number');
+const SummarySpecSchema = z
+  .object({
+    bands: z.array(z.object({ label: Label, lowHz: finite, highHz: finite }).strict()).optional(),
+    windows: z.array(z.object({ label: Label, startS: finite, endS: finite }).strict()).optional(),
+    channelGroups: z.array(z.object({ label: Label, channels: z.array(Label) }).strict()).optional(),
+    mapGroup: Label.optional(),
+    trialChannels: z.array(Label).optional(),
+  })
+  .strict();
+
 function parseArgs(argv: string[]): Args {
-  const { positional, named } = splitArgs(argv, ['recipe', 'events', 'rate', 'out'], USAGE);
+  const { positional, named } = splitArgs(argv, ['recipe', 'events', 'rate', 'out', 'summary', 'subject', 'summary-spec'], USAGE);
   if (positional.length !== 1) throw new CliInputError('arguments', `expected one recording file, got ${positional.length} (${USAGE})`);
   if (named.recipe === undefined) throw new CliInputError('--recipe', `is required (${USAGE})`);
   let rate: number | undefined;
@@ -31,7 +56,26 @@ function parseArgs(argv: string[]): Args {
     rate = Number(named.rate);
     if (!(rate > 0) || !Number.isFinite(rate)) throw new CliInputError('--rate', `must be a positive number of Hz (got "${named.rate}")`);
   }
-  return { recording: positional[0], recipe: named.recipe, events: named.events, rate, out: named.out };
+  if (named.summary === undefined) {
+    for (const o of ['subject', 'summary-spec']) if (named[o] !== undefined) throw new CliInputError(`--${o}`, 'is used only with --summary');
+  } else {
+    if (named.subject === undefined) throw new CliInputError('--subject', "is required with --summary: the team's code for the subject (a code, never a name)");
+    const code = SubjectCode.safeParse(named.subject);
+    if (!code.success) throw new CliInputError('--subject', `"${named.subject}": ${code.error.issues[0].message}`);
+  }
+  return { recording: positional[0], recipe: named.recipe, events: named.events, rate, out: named.out, summary: named.summary, subject: named.subject?.trim(), summarySpec: named['summary-spec'] };
+}
+
+function issueText(issue: { path: PropertyKey[]; message: string }, prefix: string): string {
+  const path = issue.path.reduce<string>((s, k) => (typeof k === 'number' ? `${s}[${k}]` : `${s}.${String(k)}`), prefix);
+  return `${path}: ${issue.message}`;
+}
+
+async function readSpecFile(path: string): Promise<SummarySpec> {
+  const json = await readRecipeFile(path);
+  const parsed = SummarySpecSchema.safeParse(json);
+  if (!parsed.success) throw new CliInputError(path, issueText(parsed.error.issues[0], 'summary'));
+  return parsed.data;
 }
 
 async function readRecipeFile(path: string): Promise<unknown> {
@@ -65,23 +109,63 @@ export function readerOptionsOf(recipe: unknown): Pick<LoadOptions, 'unitFactors
 /** Runs the command; resolves with the exit code. */
 export async function main(argv: string[]): Promise<number> {
   let recipePath = 'recipe';
+  let specPath = '--summary';
   try {
     const args = parseArgs(argv);
     recipePath = args.recipe;
+    specPath = args.summarySpec ?? '--summary';
     const json = await readRecipeFile(args.recipe);
     // A format-1 recipe is upgraded to format 2 with a one-line notice on stderr (analysis contract), never silently.
     const { recipe, notice } = checkRecipe(json);
     if (notice !== null) process.stderr.write(`analyze: ${args.recipe}: ${notice}\n`);
+    const spec = args.summarySpec === undefined ? {} : await readSpecFile(args.summarySpec);
+    const readerOptions = readerOptionsOf(recipe);
     const { recording, warnings } = await loadRecording(args.recording, {
       eventsPath: args.events,
       rateHz: args.rate,
-      ...readerOptionsOf(recipe),
+      ...readerOptions,
+      // the summary names its recording by SHA-256, as the browser does
+      fingerprint: readerOptions.fingerprint === true || args.summary !== undefined,
       eventTable: recipe.eventTable,
     });
-    const result = runRecipe(recording, recipe);
+    if (args.summary === undefined) {
+      const result = runRecipe(recording, recipe);
+      result.warnings.unshift(...warnings);
+      await writeJsonOutput(JSON.stringify(result), args.out);
+      return 0;
+    }
+    // With --summary: the same run channel by channel, each channel's single trials summarized and then dropped
+    // (they are large), so memory stays one channel's trials; the Result is the same bits (single-trials-same-bits test).
+    const { plan, recording: conditioned } = planRun(recording, recipe);
+    const resolved = resolveSummarySpec(plan, spec);
+    const channels: ChannelAnalysis[] = [];
+    const parts: ChannelSummary[] = [];
+    plan.channels.forEach((name, i) => {
+      const analysis = analyzeChannel(plan, conditioned.data[plan.channelIndices[i]], { singleTrials: resolved.trialChannels.has(name) });
+      parts.push(summarizeChannel(plan, i, analysis, resolved));
+      channels.push({ ...analysis, singleTrials: null });
+    });
+    const result = assembleResult(plan, channels);
     result.warnings.unshift(...warnings);
-    const text = JSON.stringify(result);
-    await writeJsonOutput(text, args.out);
+    const summary = combineSummary(plan, parts, resolved);
+    const checked = SummaryInput.safeParse(summary);
+    if (!checked.success) throw new CliInputError(args.summary, `cannot be written: ${issueText(checked.error.issues[0], 'summary')}`);
+    const fingerprint = recording.fingerprint!;
+    const file = {
+      format: CLI_SUMMARY_FORMAT,
+      subjectCode: args.subject!,
+      fingerprint,
+      recipe: { ...recipe, recording: { ...recipe.recording, fingerprint } },
+      summary,
+    };
+    const text = JSON.stringify(file);
+    const bytes = Buffer.byteLength(JSON.stringify(summary));
+    if (bytes > SUMMARY_CAPS.bodyBytes) {
+      throw new CliInputError(args.summary, `cannot be written: the summary holds ${bytes} bytes; the server keeps at most ${SUMMARY_CAPS.bodyBytes} (use --summary-spec to name fewer bands, windows or trial channels)`);
+    }
+    for (const notice of resolved.notices) process.stderr.write(`analyze: ${notice}\n`);
+    await writeJsonOutput(JSON.stringify(result), args.out);
+    await writeJsonOutput(text, args.summary);
     return 0;
   } catch (e) {
     if (e instanceof CliInputError) {
@@ -89,7 +173,7 @@ export async function main(argv: string[]): Promise<number> {
       return 2;
     }
     if (e instanceof AnalysisInputError) {
-      process.stderr.write(`analyze: ${oneLine(`${recipePath}: ${e.message}`)}\n`);
+      process.stderr.write(`analyze: ${oneLine(`${e.field.startsWith('summary') ? specPath : recipePath}: ${e.message}`)}\n`);
       return 2;
     }
     if (e instanceof FormatError) {
