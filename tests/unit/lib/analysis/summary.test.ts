@@ -289,5 +289,5 @@ describe('analyze --summary', () => {
     expect(out.code).toBe(2);
     expect(out.stderr).toBe(`analyze: ${join(dir, 'bad-spec.json')}: summary.channelGroups[0].channels[1] "P9" is not an analysed channel (Fz, Cz, Pz, Oz)\n`);
     expect(out.stderr.split('\n').length).toBe(2);
-  });
+  }, 120_000); // four command-line runs: each starts tsx, slow on a loaded machine
 });
