@@ -89,6 +89,12 @@ const shared = {
   // Extension (DEVELOPERS.md, "Recipe extensions"): "induced" takes each condition's evoked response out of every
   // epoch before the transform; absent means "total".
   trialPower: z.enum(['total', 'induced'], { error: 'must be "total" or "induced"' }).optional(),
+  // Extension: named channel groups (regions) whose maps are averaged (src/lib/analysis/channel-groups.ts).
+  channelGroups: z
+    .record(z.string().min(1, 'must not be empty').max(40, 'must be at most 40 characters'), z.array(z.string().min(1, 'must not be empty')).min(1, 'must list at least one channel'), {
+      error: 'must map each group name to a list of channel names',
+    })
+    .optional(),
   channels: z.array(z.string().min(1, 'must not be empty')).min(1, 'must name at least one channel (or be left out for all)').optional(),
   frequencies: z
     .object({

@@ -5,6 +5,7 @@ import { epochLength, epochTimes, selectEpochs } from './epochs';
 import { AnalysisCancelledError, AnalysisInputError } from './errors';
 
 import { frequencyGrid } from './frequency-grid';
+import { groupIndices } from './channel-groups';
 import { brainChannels, conditionRecording } from './condition-recording';
 import { prepareRecording } from './prepare-recording';
 import { parseRecipe, type Recipe } from './recipe';
@@ -230,6 +231,8 @@ export function planRun(input: Recording, recipeInput: unknown): { plan: RecipeP
       if (starts.length < 2) throw new AnalysisInputError('baseline.spread', `"trials" needs at least 2 kept epochs per condition for a standard deviation; "${labels[i]}" has ${starts.length}`);
     });
   }
+
+  for (const [groupName, members] of Object.entries(recipe.channelGroups ?? {})) groupIndices({ name: groupName, channels: members }, channels);
 
   if (recipe.trialPower === 'induced') {
     epochStarts.forEach((starts, i) => {
