@@ -1,6 +1,6 @@
 // `npm run --silent audit:verify`: walks every audit hash chain (one per team, one for site events) in id order and
 // checks each event's prev_hash against the previous event's hash and its hash against its contents
-// (src/lib/server/audit-chain.ts). Exit 0 and one summary line when every chain holds; exit 2 and one line naming
+// (src/lib/crypto/audit-chain.ts). Exit 0 and one summary line when every chain holds; exit 2 and one line naming
 // the first broken link (chain, event id, what differs) when one does not. Events written before the chain existed
 // (id ≤ audit_chain_start.last_unchained_id) are counted, not checked. Needs DATABASE_URL (the app's role can read
 // the audit; no write is made). Exit 1 when the database cannot be read or the arguments are wrong.
@@ -9,7 +9,7 @@ import { parseArgs } from 'node:util';
 import { and, asc, eq, gt, isNull, type SQL } from 'drizzle-orm';
 import { db, pool } from '../src/db/client';
 import { auditChainStart, auditEvents } from '../src/db/schema';
-import { firstBreak, type ChainBreak } from '../src/lib/server/audit-chain';
+import { firstBreak, type ChainBreak } from '../src/lib/crypto/audit-chain';
 
 type Row = typeof auditEvents.$inferSelect;
 

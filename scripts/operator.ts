@@ -7,8 +7,8 @@ import { eq, sql } from 'drizzle-orm';
 import { db, pool } from '../src/db/client';
 import { passwordResetTokens, users } from '../src/db/schema';
 import { recordAudit } from '../src/db/queries/audit';
-import { newToken } from '../src/lib/server/tokens';
-import { newUserId } from '../src/lib/server/auth';
+import { newToken } from '../src/lib/crypto/tokens';
+import { newUserId } from '../src/lib/crypto/ids';
 
 const FIRST_LINK_HOURS = 24;
 

@@ -5,8 +5,8 @@ import { and, eq, sql } from 'drizzle-orm';
 import type { Db } from './client';
 import { memberships, studies, teams, users } from './schema';
 import type { Role } from '../lib/permissions';
-import { hashPassword } from '../lib/server/password';
-import { newUserId } from '../lib/server/auth';
+import { hashPassword } from '../lib/crypto/password';
+import { newUserId } from '../lib/crypto/ids';
 
 export const DEMO_TEAM = { name: 'Saltmarsh Rhythms Lab', slug: 'saltmarsh' };
 

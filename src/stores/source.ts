@@ -1,5 +1,6 @@
 import { create } from 'zustand';
 import type { Recording } from '../lib/analysis/recording';
+import type { EdfReading, IntakeLocal } from '../lib/formats/intake';
 import { eventKey } from '../lib/analysis/event-key';
 import type { ChannelType } from '../lib/analysis/channel-types';
 import { selectEventRows, type EventRow, type EventTableSpec } from '../lib/analysis/event-table';
@@ -15,20 +16,13 @@ import { prepareRecording, type EpochDecision, type PrepareSpec } from '../lib/a
  * it): read `recording`, `conditions`, `epochWindow`, `rejection`, and call `analysisRecording()` for the recording
  * to analyse — its events are relabelled with condition names and hold only the kept epochs.
  */
-export interface LocalRecordingInfo {
+export interface LocalRecordingInfo extends Omit<IntakeLocal, 'excludedSignals' | 'mappedSignals' | 'eventTable'> {
   fileName: string;
-  sizeBytes: number;
-  format: 'edf' | 'edf+c' | 'edf+d' | 'csv' | 'tsv';
-  /** Header patient / recording identification (EDF), shown locally with a "stays on this device" marker. */
-  identifying: { patient: string; recording: string } | null;
-  startDateTime: string | null;
-  ignoredSignals: string[];
-  warnings: string[];
   /** EDF signals the person chose to leave out, and analysed signals read through a unit factor they gave. */
-  excludedSignals?: string[];
-  mappedSignals?: { signal: string; dimension: string; factor: number }[];
+  excludedSignals?: IntakeLocal['excludedSignals'];
+  mappedSignals?: IntakeLocal['mappedSignals'];
   /** The reading choices the file was opened with; they go into the recipe's `recording.units` / `exclude`. */
-  reading?: { unitFactors?: Record<string, number>; exclude?: string[] };
+  reading?: EdfReading;
   /** A paired BIDS events file's rows; its events follow the first `annotationCount` events of the recording. */
   eventTable?: { header: string[]; rows: EventRow[]; annotationCount: number };
 }

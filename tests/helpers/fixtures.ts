@@ -2,8 +2,8 @@
 // the app's own query modules and real PostgreSQL.
 import { db } from '../../src/db/client';
 import { memberships, studies, teams, users } from '../../src/db/schema';
-import { hashPassword } from '../../src/lib/server/password';
-import { newUserId } from '../../src/lib/server/auth';
+import { hashPassword } from '../../src/lib/crypto/password';
+import { newUserId } from '../../src/lib/crypto/ids';
 import type { Role } from '../../src/lib/permissions';
 import { unique } from './app';
 

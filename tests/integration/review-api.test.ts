@@ -6,7 +6,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Client, pool } from '../helpers/app';
 import { createMember, createTeam } from '../helpers/fixtures';
 import { demoRecipe, signedIn, smallSummary } from '../helpers/review';
-import { signedContentHash } from '../../src/lib/server/review-hash';
+import { signedContentHash } from '../../src/lib/crypto/review-hash';
 import { SUMMARY_CAPS } from '../../src/lib/schemas/review';
 
 afterAll(() => pool.end());

@@ -2,7 +2,7 @@ import { desc, eq, isNull, sql } from 'drizzle-orm';
 import { PgTransaction } from 'drizzle-orm/pg-core';
 import type { Db } from '../client';
 import { auditEvents } from '../schema';
-import { asJsonValue, CHAIN_GENESIS, eventHash } from '../../lib/server/audit-chain';
+import { asJsonValue, CHAIN_GENESIS, eventHash } from '../../lib/crypto/audit-chain';
 
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
 
@@ -16,7 +16,7 @@ export interface AuditInput {
 }
 
 /**
- * Appends one audit event to its team's hash chain (src/lib/server/audit-chain.ts). Inside the caller's transaction
+ * Appends one audit event to its team's hash chain (src/lib/crypto/audit-chain.ts). Inside the caller's transaction
  * when given one (the event commits or rolls back with the change it records), else in a transaction of its own.
  * Appends to one chain are serialized by a transaction-scoped advisory lock on the team, held until commit, so two
  * concurrent changes cannot both link to the same previous event.

@@ -2,10 +2,10 @@ import { and, eq, gt, isNull, sql } from 'drizzle-orm';
 import { db } from '../client';
 import { invitations, memberships, teams, users, type Invitation } from '../schema';
 import type { Role } from '../../lib/permissions';
-import { hashToken, newToken } from '../../lib/server/tokens';
-import { hashPassword, verifyPassword } from '../../lib/server/password';
+import { hashToken, newToken } from '../../lib/crypto/tokens';
+import { hashPassword, verifyPassword } from '../../lib/crypto/password';
 import { TransactionRollbackError } from 'drizzle-orm';
-import { newUserId } from '../../lib/server/auth';
+import { newUserId } from '../../lib/crypto/ids';
 import { recordAudit } from './audit';
 
 export const INVITATION_LIFETIME_DAYS = 7;

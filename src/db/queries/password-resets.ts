@@ -1,8 +1,8 @@
 import { and, eq, gt, isNull } from 'drizzle-orm';
 import { db } from '../client';
 import { passwordResetTokens, sessions, users } from '../schema';
-import { hashToken, newToken } from '../../lib/server/tokens';
-import { hashPassword } from '../../lib/server/password';
+import { hashToken, newToken } from '../../lib/crypto/tokens';
+import { hashPassword } from '../../lib/crypto/password';
 import { recordAudit } from './audit';
 
 export const RESET_LIFETIME_MINUTES = 60;

@@ -27,7 +27,7 @@ import {
 } from '../schema';
 import type { Role } from '../../lib/permissions';
 import type { MailKind, NoteAnchorT } from '../../lib/schemas/review';
-import { jsonHash, signedContentHash } from '../../lib/server/review-hash';
+import { jsonHash, signedContentHash } from '../../lib/crypto/review-hash';
 import { recordAudit } from './audit';
 import { isUuid } from './teams';
 
@@ -206,7 +206,7 @@ const meaningOf = { return: 'returned', signOff: 'approved', reviewed: 'reviewed
  * Applies a status change (and, for return / sign-off / reviewed, writes the signature) when the session is in a
  * status it may change from and `recipeVersion` is still the current version. The signature records the signer's
  * printed name as the account shows it, the time (the database clock), the meaning, and the SHA-256 over the signed
- * content (src/lib/server/review-hash.ts).
+ * content (src/lib/crypto/review-hash.ts).
  */
 export async function applyStatusChange(
   ctx: SessionWithRole,

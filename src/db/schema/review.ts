@@ -109,7 +109,7 @@ export const signatures = pgTable(
     printedName: text('printed_name').notNull(),
     meaning: signatureMeaningEnum('meaning').notNull(),
     reason: text('reason'),
-    /** SHA-256 (hex) over the JCS form of { recipe, recipeVersion, summary } — src/lib/server/review-hash.ts. */
+    /** SHA-256 (hex) over the JCS form of { recipe, recipeVersion, summary } — src/lib/crypto/review-hash.ts. */
     contentHash: text('content_hash').notNull(),
     signedAt: timestamp('signed_at', { withTimezone: true }).notNull().defaultNow(),
   },

@@ -31,7 +31,7 @@ export const auditEvents = pgTable(
     at: timestamp('at', { withTimezone: true }).notNull().defaultNow(),
     /** The previous event's `hash` in this team's chain; 64 zeros for a chain's first event; null before the chain. */
     prevHash: text('prev_hash'),
-    /** SHA-256 (hex) over the RFC 8785 form of this event (src/lib/server/audit-chain.ts); null before the chain. */
+    /** SHA-256 (hex) over the RFC 8785 form of this event (src/lib/crypto/audit-chain.ts); null before the chain. */
     hash: text('hash'),
   },
   (t) => [

@@ -3,17 +3,9 @@ import { AnalysisCancelledError } from '../analysis/errors';
 import type { Recording } from '../analysis/recording';
 import { assembleResult, planRun, type AnalysisResult, type ChannelAnalysis } from '../analysis/run-recipe';
 import type { DecomposeApi } from '../../../workers/decompose-api';
+import type { PoolWorker } from '../../../workers/pool-worker';
 
-/** A worker as the pool sees it: a comlink endpoint and a way to stop it. */
-export interface PoolWorker {
-  endpoint: Comlink.Endpoint;
-  terminate(): void;
-  /**
-   * Registers a listener for a failure outside any call's answer: the script did not load, an error escaped, or
-   * the worker stopped by itself. Without it a worker that never loads would leave a run waiting forever.
-   */
-  onFailure?(listener: (problem: string) => void): void;
-}
+export type { PoolWorker };
 
 export type WorkerFactory = () => PoolWorker;
 

@@ -1,7 +1,8 @@
 import * as Comlink from 'comlink';
-import type { CsvRequest, EdfReading, IntakePhase, IntakeResult, IntakeWorker } from '../../../workers/intake.worker';
+import type { CsvRequest, EdfReading, IntakePhase, IntakeResult } from '../formats/intake';
+import type { IntakeWorker } from '../../../workers/intake.worker';
 
-export type { CsvRequest, EdfReading, IntakePhase, IntakeProblem, IntakeResult, IntakeLocal } from '../../../workers/intake.worker';
+export type { CsvRequest, EdfReading, IntakePhase, IntakeProblem, IntakeResult, IntakeLocal } from '../formats/intake';
 
 let worker: Comlink.Remote<IntakeWorker> | null = null;
 

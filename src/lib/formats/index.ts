@@ -33,3 +33,4 @@ export { formatEdfNumber, writeEdf, type EdfWriteAnnotation, type EdfWriteInput,
 export { parseCsvSamples, type CsvSamplesOptions } from './csv-samples';
 export { parseBidsEvents, type BidsEvent, type BidsEventsOptions, type BidsEventsResult } from './bids-events';
 export { fingerprintSource, Sha256, sha256Hex } from './fingerprint';
+export { openCsvBlob, openEdfBlob, type CsvRequest, type EdfReading, type IntakeLocal, type IntakePhase, type IntakeProblem, type IntakeProgress, type IntakeResult } from './intake';

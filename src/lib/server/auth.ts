@@ -1,4 +1,3 @@
-import { randomBytes } from 'node:crypto';
 import type { AstroCookies } from 'astro';
 import { cookieIsSecure } from './cookies';
 import { createSession, type ActiveSession } from './sessions';
@@ -30,22 +29,4 @@ export async function startSession(
   const { token, session } = await createSession(userId, meta);
   writeSessionCookie(cookies, url, token);
   return session;
-}
-
-/** A new user id: 16 lowercase base32 characters (80 random bits). */
-export function newUserId(): string {
-  const bytes = randomBytes(10);
-  const alphabet = 'abcdefghijklmnopqrstuvwxyz234567';
-  let bits = 0;
-  let value = 0;
-  let out = '';
-  for (const byte of bytes) {
-    value = (value << 8) | byte;
-    bits += 8;
-    while (bits >= 5) {
-      out += alphabet[(value >>> (bits - 5)) & 31];
-      bits -= 5;
-    }
-  }
-  return out;
 }

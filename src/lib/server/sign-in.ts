@@ -10,7 +10,7 @@ import { throttleClear, throttleHit, throttleWait } from '../../db/queries/throt
 import { getUserByEmail } from '../../db/queries/users';
 import { startSession } from './auth';
 import { clientAddress } from './client-address';
-import { burnPasswordCheck, verifyPassword } from './password';
+import { burnPasswordCheck, verifyPassword } from '../crypto/password';
 import { limits, waitWords } from './rate-limit';
 import { invalidateSession, type ActiveSession, type SessionUser } from './sessions';
 

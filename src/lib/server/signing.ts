@@ -9,7 +9,7 @@ import { getUserById } from '../../db/queries/users';
 import { auditSigningRefused, type SessionWithRole } from '../../db/queries/review';
 import { throttleClear, throttleHit, throttleWait } from '../../db/queries/throttles';
 import { HttpError } from './http';
-import { verifyPassword } from './password';
+import { verifyPassword } from '../crypto/password';
 import { limits, waitWords } from './rate-limit';
 
 export async function confirmSigner(ctx: SessionWithRole, userId: string, password: string, meaning: string): Promise<{ id: string; displayName: string }> {

@@ -6,7 +6,7 @@ import { loadSession, signatureJson } from '../../../../lib/server/review-api';
 import { applyStatusChange, listSignatures } from '../../../../db/queries/review';
 import { ReviewedSignatureInput } from '../../../../lib/schemas/review';
 import { confirmSigner } from '../../../../lib/server/signing';
-import { CANONICALIZATION, SIGNED_CONTENT_FORMAT } from '../../../../lib/server/review-hash';
+import { CANONICALIZATION, SIGNED_CONTENT_FORMAT } from '../../../../lib/crypto/review-hash';
 
 export const GET: APIRoute = (ctx) =>
   route(ctx, async () => {

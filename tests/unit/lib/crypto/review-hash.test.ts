@@ -1,7 +1,7 @@
 import { createHash } from 'node:crypto';
 import { describe, expect, it } from 'vitest';
-import { canonicalJson, CHAIN_GENESIS, eventHash, firstBreak } from '../../../../src/lib/server/audit-chain';
-import { signedContentHash } from '../../../../src/lib/server/review-hash';
+import { canonicalJson, CHAIN_GENESIS, eventHash, firstBreak } from '../../../../src/lib/crypto/audit-chain';
+import { signedContentHash } from '../../../../src/lib/crypto/review-hash';
 
 describe('canonical JSON (RFC 8785, JSON Canonicalization Scheme)', () => {
   it('matches the RFC\'s own example (RFC 8785 §3.2.3, "Sorting of Object Properties" input and §3.2.4 output)', () => {
