@@ -4,7 +4,7 @@ import { createReadStream } from 'node:fs';
 import { open, readFile } from 'node:fs/promises';
 import { extname } from 'node:path';
 import type { Recording } from '../lib/analysis/recording';
-import { FormatError, openEdf, parseBidsEvents, parseCsvSamples, toRecording, type ByteSource } from '../lib/formats';
+import { FormatError, openEdf, parseBidsEvents, parseCsvSamples, recordingWarnings, toRecording, type BidsEventsResult, type ByteSource, type EdfFile } from '../lib/formats';
 
 /** A command-line input problem: `where` is the file or option, printed before the message. */
 import { CliInputError } from './io';
@@ -75,8 +75,10 @@ export async function fingerprintFile(path: string): Promise<string> {
  */
 export async function loadRecording(path: string, options: LoadOptions): Promise<LoadedRecording> {
   const ext = extname(path).toLowerCase();
-  const warnings: string[] = [];
   let recording: Recording;
+  let edf: EdfFile | null = null;
+  let events: BidsEventsResult | null = null;
+  let selectionWarnings: string[] = [];
   if (EDF_EXTENSIONS.has(ext)) {
     if (options.rateHz !== undefined) throw new CliInputError('--rate', 'applies only to CSV/TSV recordings; an EDF states its own rates');
     let file;
@@ -86,11 +88,7 @@ export async function loadRecording(path: string, options: LoadOptions): Promise
       throw new CliInputError(path, `cannot be read (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
     }
     try {
-      const edf = await openEdf(file.source, { unitFactors: options.unitFactors, exclude: options.exclude });
-      warnings.push(...edf.warnings);
-      for (const label of options.exclude ?? []) {
-        if (!edf.ignored.some((i) => i.reason === 'excluded' && i.label === label)) warnings.push(`recording.exclude: the file has no signal labelled "${label}"`);
-      }
+      edf = await openEdf(file.source, { unitFactors: options.unitFactors, exclude: options.exclude });
       recording = toRecording(edf);
     } catch (e) {
       throw e instanceof FormatError ? new CliInputError(path, e.message) : e;
@@ -99,9 +97,6 @@ export async function loadRecording(path: string, options: LoadOptions): Promise
     }
   } else if (TABLE_EXTENSIONS.has(ext)) {
     if (options.rateHz === undefined) throw new CliInputError('--rate', `is required for a CSV/TSV recording (samples per second of ${path})`);
-    if (Object.keys(options.unitFactors ?? {}).length > 0 || (options.exclude ?? []).length > 0) {
-      warnings.push('recording.units and recording.exclude apply to EDF files only; a table is read as it is');
-    }
     const text = await readText(path);
     try {
       recording = parseCsvSamples(text, { sampleRateHz: options.rateHz });
@@ -120,14 +115,15 @@ export async function loadRecording(path: string, options: LoadOptions): Promise
     } catch (e) {
       throw e instanceof FormatError ? new CliInputError(options.eventsPath, e.message) : e;
     }
-    warnings.push(...parsed.warnings.map((w) => `${options.eventsPath}: ${w}`));
-    if (parsed.outside.length > 0) warnings.push(`${options.eventsPath}: ${parsed.outside.length} events lie outside the recording and were ignored`);
+    events = parsed;
     const chosen = options.eventTable === undefined ? { events: parsed.events, warnings: [] } : selectEventRows(parsed.events, parsed.header, options.eventTable, total / recording.sampleRateHz);
-    warnings.push(...chosen.warnings);
+    selectionWarnings = chosen.warnings;
     recording.events = [...recording.events, ...chosen.events.map((e) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, label: e.label }))];
   } else if (options.eventTable !== undefined) {
     throw new CliInputError('--events', "is required: the recipe's eventTable selects rows of a BIDS events file");
   }
+  // The same lines as the browser's intake for the same file and reading, then the recipe's eventTable selection.
+  const warnings = [...recordingWarnings({ edf, reading: { unitFactors: options.unitFactors, exclude: options.exclude }, events }), ...selectionWarnings];
   // The browser fingerprints the recording file alone (not a separate events file), so the CLI does the same.
   if (options.fingerprint) recording.fingerprint = await fingerprintFile(path);
   return { recording, warnings };

@@ -25,6 +25,19 @@ export interface LocalRecordingInfo extends Omit<IntakeLocal, 'excludedSignals' 
   reading?: EdfReading;
   /** A paired BIDS events file's rows; its events follow the first `annotationCount` events of the recording. */
   eventTable?: { header: string[]; rows: EventRow[]; annotationCount: number };
+  /**
+   * The eventTable selection's lines (`selectEventRows`), shown after `warnings`: together the same lines the
+   * command line prints for this file, events file and recipe, before the run's own.
+   */
+  selectionWarnings?: string[];
+}
+
+/**
+ * What opening the file said, in the command line's order: the intake's lines (`recordingWarnings`, one function
+ * for both), then the eventTable selection's. A Result carries these before the run's own, as on the command line.
+ */
+export function openedWarnings(local: LocalRecordingInfo | null): string[] {
+  return local === null ? [] : [...local.warnings, ...(local.selectionWarnings ?? [])];
 }
 
 export interface Condition {
@@ -234,7 +247,7 @@ export const useSourceStore = create<SourceState>((set, get) => ({
     const conditions = [...kept, ...added];
     // Event keys count positions in the event list, which a new selection changes: manual decisions start afresh.
     const rejection = { ...get().rejection, overrides: {} };
-    set({ recording: next, eventSelection: spec, conditions, rejection, ...decideEpochs({ ...get(), recording: next, conditions, rejection }) });
+    set({ recording: next, local: { ...local, selectionWarnings: chosen.warnings }, eventSelection: spec, conditions, rejection, ...decideEpochs({ ...get(), recording: next, conditions, rejection }) });
     return null;
   },
   setConditioning: (patch) => {

@@ -45,7 +45,12 @@ function parityEdf(): { bytes: Uint8Array; events: number } {
       samplesPerRecord: subject.sampleRateHz,
       samples: data[subject.channels.indexOf(name)],
     })),
-    annotations: subject.events.map((e) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, texts: [e.label] })),
+    // One annotation after the last sample (the harbour closing at 75 s of a 60 s file): the reader leaves it out,
+    // and both sides must say so in the same words (src/lib/formats/recording-warnings.ts).
+    annotations: [
+      ...subject.events.map((e) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, texts: [e.label] })),
+      { onsetSeconds: 75, durationSeconds: 0, texts: ['harbour-closed'] },
+    ],
   });
   return { bytes, events: subject.events.length };
 }
@@ -113,6 +118,7 @@ afterAll(async () => {
 });
 
 describe('browser worker pool and command line on the same EDF+ bytes', () => {
+  // Warnings too: the file's (one function, recordingWarnings, in both), then the run's.
   let cliFirst: AnalysisResult;
   let recipe: Record<string, unknown> & { epochs: { events: string[] } };
 
@@ -136,6 +142,7 @@ describe('browser worker pool and command line on the same EDF+ bytes', () => {
     const shown = JSON.parse(
       await page.evaluate(() => {
         const s = window.__tidemark!.stores.results.getState();
+        const s0 = window.__tidemark!.stores.source.getState();
         const d = s.cache[s.activeKey!];
         return JSON.stringify({
           recipe: d.recipe,
@@ -149,7 +156,8 @@ describe('browser worker pool and command line on the same EDF+ bytes', () => {
           power: d.power.map((perCondition) => perCondition.map((p) => Array.from(p, (v) => (Number.isNaN(v) ? 'NaN' : v)))),
           spectrum: { frequencies: Array.from(d.spectrum.frequencies), psd: d.spectrum.psd.map((p) => Array.from(p)) },
           aperiodic: d.aperiodic,
-          warnings: d.warnings,
+          // What the Source screen shows for the file, then the run's own: the command line's order.
+          warnings: [...s0.local!.warnings, ...(s0.local!.selectionWarnings ?? []), ...d.warnings],
         });
       }),
     );
@@ -175,6 +183,10 @@ describe('browser worker pool and command line on the same EDF+ bytes', () => {
     expect(firstDifference(shown.spectrum, result.spectrum)).toBeNull();
     expect(firstDifference(shown.aperiodic, result.aperiodic)).toBeNull();
     expect(firstDifference(shown.warnings, result.warnings)).toBeNull();
+    // Not vacuous: the annotation after the end is reported, on the page as in the CLI's Result.
+    const outside = '1 annotations fall outside the recorded samples and are left out (first: "harbour-closed" at 75 s, after end)';
+    expect(result.warnings).toContain(outside);
+    await expect.poll(() => page.getByTestId('intake-warning').allTextContents()).toContain(outside);
     // Not a vacuous comparison: real, varied numbers (positive power, a fitted 1/f exponent between 0.5 and 3).
     expect(new Set(flat(result.conditions['lamp-watch'].power[0])).size).toBeGreaterThan(1000);
     for (const fit of result.aperiodic) expect(fit.exponent).toBeGreaterThan(0.5);

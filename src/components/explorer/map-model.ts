@@ -1,12 +1,11 @@
-import { baselineIndices, type BaselineMethod } from '../../lib/analysis/baseline';
+import { baselinePointsIn, type BaselineMethod } from '../../lib/analysis/baseline';
+import { baselineEdgeOverlap } from '../../lib/analysis/edge-zone';
 import { renormalizeAverage } from '../../lib/analysis/renormalize';
 import type { Decomposition } from '../../stores/results';
 
 /** Baseline grid indices clamped to the epoch, as the core plans them (analysis contract). */
 export function baselinePoints(d: Decomposition, baseline: { start: number; end: number }): { first: number; last: number } {
-  const b = baselineIndices(baseline.start, baseline.end, d.epochStart, d.sampleRateHz);
-  const nt = d.times.length;
-  return { first: Math.max(0, Math.min(nt - 1, b.first)), last: Math.max(0, Math.min(nt - 1, b.last)) };
+  return baselinePointsIn(baseline.start, baseline.end, d.epochStart, d.sampleRateHz, d.times.length);
 }
 
 /** Snaps seconds to the epoch's sample grid t_j = start + j/fs, inside the epoch. */
@@ -20,16 +19,8 @@ export function snapToGrid(d: Decomposition, seconds: number): number {
 export function baselineWarnings(d: Decomposition, points: { first: number; last: number }, end: number, method: BaselineMethod): string[] {
   const out: string[] = [];
   const nt = d.times.length;
-  let hit = 0;
-  let lo = -1;
-  let hi = -1;
-  for (let f = 0; f < d.frequencies.length; f++) {
-    if (points.first < d.edges.left[f] || points.last >= nt - d.edges.right[f]) {
-      hit++;
-      if (lo < 0) lo = f;
-      hi = f;
-    }
-  }
+  const hits = baselineEdgeOverlap(d.edges, nt, points.first, points.last);
+  const [hit, lo, hi] = [hits.length, hits[0], hits[hits.length - 1]];
   if (hit > 0) {
     const fmt = (x: number) => Number(x.toPrecision(3));
     out.push(`Baseline overlaps the edge zone at ${hit} of ${d.frequencies.length} frequencies (${fmt(d.frequencies[lo])}–${fmt(d.frequencies[hi])} Hz).`);

@@ -2,11 +2,12 @@
 // decomposition pool (module Web Workers from the bundled decompose.worker.ts) on the recording open in the Source
 // store, so a browser test can compare the complete Result with the command line's. Nothing is sent anywhere.
 import { DecomposePool } from '../../lib/client/decompose-pool';
-import { useSourceStore } from '../../stores/source';
+import { openedWarnings, useSourceStore } from '../../stores/source';
 
 /**
  * The pool's Result for `recipe` on the open recording, as the JSON text the CLI writes. Like the Recipe screen it
  * passes the whole recording: the recipe's conditions and rejection pick the epochs, as on the command line.
+ * The opened file's warnings come first in `warnings`, as the command line writes them.
  */
 export async function runPoolOnOpenRecording(recipe: unknown): Promise<string> {
   const recording = useSourceStore.getState().recording;
@@ -14,6 +15,8 @@ export async function runPoolOnOpenRecording(recipe: unknown): Promise<string> {
   const pool = new DecomposePool();
   try {
     const { result } = await pool.run(recording, recipe);
+    // The file's own warnings first, as the command line writes them (src/cli/analyze.ts).
+    result.warnings.unshift(...openedWarnings(useSourceStore.getState().local));
     return JSON.stringify(result);
   } finally {
     pool.terminate();

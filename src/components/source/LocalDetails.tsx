@@ -1,5 +1,5 @@
 import type { Recording } from '../../lib/analysis/recording';
-import type { LocalRecordingInfo } from '../../stores/source';
+import { openedWarnings, type LocalRecordingInfo } from '../../stores/source';
 import { formatBytes, formatSeconds } from './format';
 
 /** The marker on everything that identifies a recording: it is shown here and never sent. */
@@ -63,7 +63,7 @@ export default function LocalDetails({ recording, local, fingerprint, origin }: 
       {local.ignoredSignals.length > 0 && (
         <p className="notice text-sm">Listed but not analysed (another sample rate): {local.ignoredSignals.join(', ')}</p>
       )}
-      {local.warnings.map((w) => (
+      {openedWarnings(local).map((w) => (
         <p key={w} className="notice notice-warn text-sm" data-testid="intake-warning">
           {w}
         </p>

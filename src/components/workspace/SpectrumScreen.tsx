@@ -4,7 +4,7 @@ import { parseRecipe } from '../../lib/analysis/recipe';
 import { useEffect, useMemo, useRef, useState, type PointerEvent, type KeyboardEvent } from 'react';
 import Papa from 'papaparse';
 import type { WorkspaceProps } from './types';
-import { fitAperiodic, type AperiodicFit } from '../../lib/analysis/aperiodic';
+import { aperiodicLine as fitLine, fitAperiodic, type AperiodicFit } from '../../lib/analysis/aperiodic';
 import type { EpochSpectra } from '../../lib/analysis/epoch-spectra';
 import { explorerWorker } from '../../lib/client/explorer-worker';
 import { axisScale, drawLineAxes, drawSeries, type LineLayout, type Series } from '../../lib/plot/line-plot';
@@ -91,10 +91,6 @@ function useRecipeSpectra(d: Decomposition | null, visible: boolean): RecipeSpec
 }
 
 type Fit = { fit: AperiodicFit; error: null } | { fit: null; error: string };
-
-function fitLine(fit: AperiodicFit, f: number): number {
-  return fit.knee === null ? fit.offset - fit.exponent * Math.log10(f) : fit.offset - Math.log10(fit.knee + Math.pow(f, fit.exponent));
-}
 
 /** Welch spectra per trial and averaged, the aperiodic fit with its draggable range, the spectrum above the fit. */
 export default function SpectrumScreen(_props: WorkspaceProps) {

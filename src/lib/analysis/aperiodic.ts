@@ -191,6 +191,15 @@ export function peaksAboveLine(f: Float64Array, residuals: Float64Array, keep: U
 }
 
 /** params = [offset, exponent, knee?] */
+/**
+ * A fit's aperiodic line at frequency f, in log10 power: `offset − exponent·log10 f`, or with a knee
+ * `offset − log10(knee + f^exponent)` (the models of Donoghue et al., 2020, Nat Neurosci 23:1655–1665), in the
+ * engine's portable maths, so the line drawn is the line fitted.
+ */
+export function aperiodicLine(fit: Pick<AperiodicFit, 'offset' | 'exponent' | 'knee'>, f: number): number {
+  return fit.knee === null ? predict('power-law', [fit.offset, fit.exponent], f) : predict('power-law-knee', [fit.offset, fit.exponent, fit.knee], f);
+}
+
 function predict(model: AperiodicModel, params: readonly number[], f: number): number {
   return model === 'power-law' ? params[0] - params[1] * log10(f) : params[0] - log10(params[2] + pow(f, params[1]));
 }

@@ -22,6 +22,17 @@ export function baselineIndices(startSeconds: number, endSeconds: number, epochS
   };
 }
 
+/**
+ * Baseline grid indices clamped to an `nTimes`-point epoch: `baselineIndices`, then each index kept inside
+ * 0 … nTimes − 1. A checked recipe's baseline lies inside the epoch to 1e-9 s, so this only absorbs rounding at the
+ * ends; the Maps screen's dragged band uses the same rule.
+ */
+export function baselinePointsIn(startSeconds: number, endSeconds: number, epochStartSeconds: number, sampleRateHz: number, nTimes: number): BaselineIndices {
+  const b = baselineIndices(startSeconds, endSeconds, epochStartSeconds, sampleRateHz);
+  const clamp = (j: number) => Math.max(0, Math.min(nTimes - 1, j));
+  return { first: clamp(b.first), last: clamp(b.last) };
+}
+
 export interface BaselineStats {
   /** B, mean power over the baseline points (µV²). */
   mean: number;

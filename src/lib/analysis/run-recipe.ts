@@ -1,6 +1,7 @@
 import { analyzeChannel, type ChannelAnalysis, type RecipePlan } from './analyze-channel';
 import type { AperiodicFit } from './aperiodic';
-import { baselineIndices } from './baseline';
+import { baselinePointsIn } from './baseline';
+import { baselineEdgeOverlap, edgeZones } from './edge-zone';
 import { epochLength, epochTimes, selectEpochs } from './epochs';
 import { AnalysisCancelledError, AnalysisInputError } from './errors';
 
@@ -106,9 +107,7 @@ export function planRun(input: Recording, recipeInput: unknown): { plan: RecipeP
   if (start > end) throw new AnalysisInputError('baseline.start', `must not be after baseline.end (${start} s > ${end} s)`);
   if (start < epochStart - EPS) throw new AnalysisInputError('baseline.start', `is before the epoch start (${start} s < epochs.start ${epochStart} s)`);
   if (end > epochEnd + EPS) throw new AnalysisInputError('baseline.end', `is after the epoch end (${end} s > epochs.end ${epochEnd} s)`);
-  const b = baselineIndices(start, end, epochStart, fs);
-  b.first = Math.max(0, b.first);
-  b.last = Math.min(L - 1, b.last);
+  const b = baselinePointsIn(start, end, epochStart, fs, L);
   if (method === 'z-score' && b.last - b.first < 1) {
     throw new AnalysisInputError('baseline.end', `gives a single baseline point at ${fs} Hz; z-score needs at least 2 for a standard deviation`);
   }
@@ -130,11 +129,7 @@ export function planRun(input: Recording, recipeInput: unknown): { plan: RecipeP
       );
     }
   }
-  const edgeHit: number[] = [];
-  for (let i = 0; i < frequencies.length; i++) {
-    const edgePoints = edgeSeconds[i] * fs;
-    if (b.first < edgePoints - EPS || L - 1 - b.last < edgePoints - EPS) edgeHit.push(i);
-  }
+  const edgeHit = baselineEdgeOverlap(edgeZones(edgeSeconds, fs, L), L, b.first, b.last);
   if (edgeHit.length > 0) {
     const lo = edgeHit[0];
     const hi = edgeHit[edgeHit.length - 1];

@@ -24,6 +24,7 @@
  * Every value is rounded to 7 significant digits (`toPrecision`, exactly specified by ECMAScript, so every engine
  * writes the same text; the samples themselves are float32, about 7 digits). NaN and ±Infinity become null.
  */
+import { edgeMask, edgeZones } from './edge-zone';
 import type { ChannelAnalysis, RecipePlan } from './analyze-channel';
 import type { AperiodicFit } from './aperiodic';
 import { baselineStats, normalizeValue, type BaselineMethod } from './baseline';
@@ -157,20 +158,6 @@ export function summaryValue(x: number): number | null {
   return Number.isFinite(x) ? Number(x.toPrecision(7)) : null;
 }
 
-/** Edge zones (analysis contract, "Edge zones"): time points closer than `edgeSeconds[f]` to either epoch edge. */
-function edgeMaskOf(times: ArrayLike<number>, edgeSeconds: ArrayLike<number>): Uint8Array {
-  const nt = times.length;
-  const nf = edgeSeconds.length;
-  const mask = new Uint8Array(nf * nt);
-  if (nt === 0) return mask;
-  const t0 = times[0];
-  const t1 = times[nt - 1];
-  for (let f = 0; f < nf; f++) {
-    for (let t = 0; t < nt; t++) if (times[t] - t0 < edgeSeconds[f] || t1 - times[t] < edgeSeconds[f]) mask[f * nt + t] = 1;
-  }
-  return mask;
-}
-
 function indicesWithin(grid: ArrayLike<number>, lo: number, hi: number): number[] {
   const out: number[] = [];
   for (let i = 0; i < grid.length; i++) if (grid[i] >= lo - EPS && grid[i] <= hi + EPS) out.push(i);
@@ -251,7 +238,7 @@ export function resolveSummarySpec(plan: RecipePlan, spec: SummarySpec = {}): Re
   if (plan.spectrum.conditionSpans === null && plan.labels.length > 1) {
     notices.push('summary: spectrum.source is "recording", so every condition carries the whole recording\'s aperiodic fit');
   }
-  return { bands, windows, channelGroups, mapGroup, trialChannels, bandRows, windowCols, edge: edgeMaskOf(times, plan.edgeSeconds), notices };
+  return { bands, windows, channelGroups, mapGroup, trialChannels, bandRows, windowCols, edge: edgeMask(edgeZones(plan.edgeSeconds, plan.sampleRateHz, times.length), times.length), notices };
 }
 
 /** Mean of `values[f·T + t]` over rows × cols outside the edge zones, finite values only; NaN when none. */

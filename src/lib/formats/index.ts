@@ -34,3 +34,4 @@ export { parseCsvSamples, type CsvSamplesOptions } from './csv-samples';
 export { parseBidsEvents, type BidsEvent, type BidsEventsOptions, type BidsEventsResult } from './bids-events';
 export { fingerprintSource, Sha256, sha256Hex } from './fingerprint';
 export { openCsvBlob, openEdfBlob, type CsvRequest, type EdfReading, type IntakeLocal, type IntakePhase, type IntakeProblem, type IntakeProgress, type IntakeResult } from './intake';
+export { EVENTS_FILE_PREFIX, recordingWarnings, type RecordingWarningSources } from './recording-warnings';

@@ -6,7 +6,8 @@ import type { Recording } from '../analysis/recording';
 import { FormatError } from './format-error';
 import { blobSource } from './byte-source';
 import { openEdf, readEdfHeader, toRecording } from './edf-reader';
-import { parseBidsEvents } from './bids-events';
+import { parseBidsEvents, type BidsEventsResult } from './bids-events';
+import { recordingWarnings } from './recording-warnings';
 import { parseCsvSamples } from './csv-samples';
 import { Sha256, sha256Hex } from './fingerprint';
 
@@ -130,13 +131,7 @@ export async function openEdfBlob(file: Blob, reading: EdfReading, onProgress: I
     });
     const recording = toRecording(edf);
     const s = edf.identifying.start;
-    const warnings = [...edf.warnings];
-    if (edf.eventsOutside.length > 0) {
-      const first = edf.eventsOutside[0];
-      warnings.push(
-        `${edf.eventsOutside.length} annotations fall outside the recorded samples and are left out (first: "${first.annotation.label}" at ${first.annotation.onsetSeconds} s, ${first.reason.replace('-', ' ')})`,
-      );
-    }
+    let parsedEvents: BidsEventsResult | null = null;
     if (events !== null) {
       // A paired BIDS events file: its events follow the EDF+ annotations, in the order the CLI's --events gives.
       stage = 'events';
@@ -145,9 +140,10 @@ export async function openEdfBlob(file: Blob, reading: EdfReading, onProgress: I
       const parsed = parseBidsEvents(await events.text(), { recordingSeconds: seconds });
       eventTable = { header: parsed.header, rows: parsed.events.map(rowOf), annotationCount: recording.events.length };
       recording.events = [...recording.events, ...parsed.events.map((e) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, label: e.label }))];
-      warnings.push(...parsed.warnings);
+      parsedEvents = parsed;
       onProgress('events', 1);
     }
+    const warnings = recordingWarnings({ edf, reading, events: parsedEvents });
     const local: IntakeLocal = {
       sizeBytes: file.size,
       format: edf.header.variant === 'EDF+C' ? 'edf+c' : edf.header.variant === 'EDF+D' ? 'edf+d' : 'edf',
@@ -184,7 +180,7 @@ export async function openCsvBlob(file: Blob, request: CsvRequest, onProgress: I
     const text = await readText(file, hash, (f) => onProgress('reading', f));
     const fingerprint = small ? await sha256Hex(await file.arrayBuffer()) : hash!.hex();
     const recording = parseCsvSamples(text, { sampleRateHz: request.sampleRateHz, delimiter: request.delimiter });
-    const warnings: string[] = [];
+    let parsedEvents: BidsEventsResult | null = null;
     if (request.events !== null) {
       stage = 'events';
       onProgress('events', 0);
@@ -192,9 +188,10 @@ export async function openCsvBlob(file: Blob, request: CsvRequest, onProgress: I
       const parsed = parseBidsEvents(await request.events.text(), { recordingSeconds: seconds });
       eventTable = { header: parsed.header, rows: parsed.events.map(rowOf), annotationCount: 0 };
       recording.events = parsed.events.map((e) => ({ onsetSeconds: e.onsetSeconds, durationSeconds: e.durationSeconds, label: e.label }));
-      warnings.push(...parsed.warnings);
+      parsedEvents = parsed;
       onProgress('events', 1);
     }
+    const warnings = recordingWarnings({ edf: null, reading: null, events: parsedEvents });
     const local: IntakeLocal = {
       sizeBytes: file.size,
       format: request.delimiter === '\t' ? 'tsv' : 'csv',

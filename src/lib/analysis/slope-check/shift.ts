@@ -1,7 +1,7 @@
 import { AnalysisInputError } from '../errors';
-import { fitAperiodic, type AperiodicFit, type AperiodicModel } from '../aperiodic';
+import { aperiodicLine, fitAperiodic, type AperiodicFit, type AperiodicModel } from '../aperiodic';
 import type { BaselineMethod } from '../baseline';
-import { log10, pow } from '../portable-math';
+import { pow } from '../portable-math';
 import { welchPsd } from '../welch';
 
 /**
@@ -27,7 +27,7 @@ export function windowFit(
 
 /** log10 power of a fit at f (the contract's two models). */
 export function aperiodicLog10(fit: Pick<AperiodicFit, 'offset' | 'exponent' | 'knee'>, f: number): number {
-  return fit.knee === null ? fit.offset - fit.exponent * log10(f) : fit.offset - log10(fit.knee + pow(f, fit.exponent));
+  return aperiodicLine(fit, f);
 }
 
 /**

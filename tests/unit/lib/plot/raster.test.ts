@@ -71,9 +71,8 @@ describe('rasterizeMap colours cells from the colormap', () => {
 });
 
 describe('edge zones are hatched, not hidden', () => {
-  // 1 frequency, 10 times at 0.1 s, edge 0.25 s: t − t0 < 0.25 holds for t = 0, 0.1, 0.2 → 3 points each end.
-  const times = Float64Array.from({ length: 10 }, (_, j) => j / 10);
-  const zones = edgeZones(times, [0.25]);
+  // 1 frequency, 10 times at 0.1 s (10 Hz), edge 0.25 s: t − t0 < 0.25 holds for t = 0, 0.1, 0.2 → 3 points each end.
+  const zones = edgeZones([0.25], 10, 10);
   it('counts the points closer than edgeSeconds to either edge', () => {
     expect(Array.from(zones.left)).toEqual([3]);
     expect(Array.from(zones.right)).toEqual([3]);
