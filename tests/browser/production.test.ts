@@ -75,6 +75,31 @@ describe('the production flavour', () => {
     for (const m of markers) expect(production.includes(m), `production build contains ${m}`).toBe(false);
   });
 
+  it('splits the workspace into client chunks, none of which carries the test hooks or the demo generator', () => {
+    // Client chunks of both flavours (this file's production build and the demo build npm test made). Markers are
+    // string literals, which survive minification: the hooks' global and URL flag, the demo generator's task text.
+    const chunksOf = (out: string) => {
+      const dir = path.join(repoRoot, out, 'client', '_astro');
+      return fs.readdirSync(dir).filter((f) => f.endsWith('.js')).map((f) => ({ name: f, text: fs.readFileSync(path.join(dir, f), 'utf8') }));
+    };
+    const markers = ['__tidemark', 'testhooks', 'a lighthouse lamp blinks a pattern'];
+    const demo = chunksOf(process.env.TIDEMARK_OUT_DIR ?? 'dist');
+    for (const m of markers) expect(demo.some((c) => c.text.includes(m)), `a demo-build chunk contains ${m}`).toBe(true);
+    const production = chunksOf(productionOut);
+    for (const c of production) for (const m of markers) expect(c.text.includes(m), `${c.name} contains ${m}`).toBe(false);
+    // The plot-heavy screens are chunks of their own (React.lazy in Workspace.tsx): the island's chunks do not hold
+    // the Maps or Spectrum screen (their plots' test ids), another chunk does.
+    const island = production.filter((c) => c.name.startsWith('Workspace.'));
+    expect(island.length).toBeGreaterThan(0);
+    for (const id of ['map-normalized', 'above-line-plot']) {
+      for (const c of island) expect(c.text.includes(id), `${c.name} holds ${id}`).toBe(false);
+      expect(production.some((c) => !island.includes(c) && c.text.includes(id)), `no chunk holds ${id}`).toBe(true);
+    }
+    const sizes = production.map((c) => `${c.name} ${(Buffer.byteLength(c.text) / 1000).toFixed(1)} kB`).sort();
+    fs.mkdirSync(path.join(repoRoot, 'test-artifacts'), { recursive: true });
+    fs.writeFileSync(path.join(repoRoot, 'test-artifacts', `production-chunks${slot}.txt`), sizes.join('\n') + '\n');
+  });
+
   it('answers 404 for the dev mailbox and demo files, and sends HSTS with the other headers', async () => {
     for (const p of ['/dev/mailbox', '/demo/cohort.json']) {
       const r = await fetch(server.url + p, { redirect: 'manual' });

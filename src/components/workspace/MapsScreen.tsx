@@ -15,9 +15,6 @@ import Choice from '../explorer/Choice';
 import { averageNormalized, baselinePoints, baselineWarnings, difference, snapToGrid } from '../explorer/map-model';
 import { renderMapsPng } from '../explorer/export-maps';
 import { downloadBlob, fileSafe } from '../explorer/download';
-// Demo and test builds only: the constant is false in a production build, so the hooks and the demo generator they
-// load are not in its bundle at all.
-if (import.meta.env.TIDEMARK_DEMO) void import('../explorer/test-hooks').then((m) => m.installTestHooks());
 
 const METHODS: { value: BaselineMethod; label: string }[] = [
   { value: 'decibel', label: 'dB' },

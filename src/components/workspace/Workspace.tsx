@@ -1,12 +1,19 @@
-import { useRef, useState, type ComponentType, type KeyboardEvent } from 'react';
+import { lazy, Suspense, useRef, useState, type ComponentType, type KeyboardEvent } from 'react';
 import { screens, type ScreenName, type WorkspaceProps } from './types';
 import SourceScreen from './SourceScreen';
 import RecipeScreen from './RecipeScreen';
-import MapsScreen from './MapsScreen';
-import SpectrumScreen from './SpectrumScreen';
-import BandsScreen from './BandsScreen';
 import OutboundScreen from './OutboundScreen';
 import SignInWatch from './SignInWatch';
+
+// The plot-heavy screens are chunks of their own, fetched after the island starts: the Source screen is usable
+// before the plotting code has arrived.
+const MapsScreen = lazy(() => import('./MapsScreen'));
+const SpectrumScreen = lazy(() => import('./SpectrumScreen'));
+const BandsScreen = lazy(() => import('./BandsScreen'));
+
+// Browser test hooks (?testhooks) exist only in the demo/test build: behind this constant the production bundler
+// drops the import and with it the hooks and the demo generator (tests/browser/production.test.ts checks the chunks).
+if (import.meta.env.TIDEMARK_DEMO) void import('../explorer/test-hooks').then((m) => m.installTestHooks());
 
 const components: Record<ScreenName, ComponentType<WorkspaceProps>> = {
   Source: SourceScreen,
@@ -63,7 +70,9 @@ export default function Workspace(props: WorkspaceProps) {
         // Screens stay mounted so switching tabs keeps their state and any running work.
         return (
           <section key={name} role="tabpanel" id={`panel-${name}`} aria-labelledby={`tab-${name}`} hidden={active !== name} className="py-6">
-            <Screen {...props} />
+            <Suspense fallback={<p className="text-sm text-ink-soft" data-testid="screen-loading">Loading the {name} screen…</p>}>
+              <Screen {...props} />
+            </Suspense>
           </section>
         );
       })}
