@@ -4,9 +4,13 @@ import { execFileSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
-import { describe, expect, it } from 'vitest';
+import { describe, expect, it, vi } from 'vitest';
 import { readRecipe } from '../../../src/lib/analysis/recipe';
 import { describeCohort, writeSubjectEdf } from '../../../src/lib/demo';
+
+// These tests start the command line in a child process (tsx), several runs per test: on a loaded two-core
+// machine one run alone has taken 15 s, so they get more than the suite's 30 s.
+vi.setConfig({ testTimeout: 120_000 });
 
 const recipePath = path.resolve('public/recipes/harbour-lights.json');
 

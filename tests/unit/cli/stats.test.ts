@@ -12,6 +12,10 @@ import { benjaminiHochberg } from '../../../src/lib/statistics/fdr';
 import { linearRegression } from '../../../src/lib/statistics/regression';
 import { oneSampleTest, pairedTest } from '../../../src/lib/statistics/t-tests';
 
+// These tests start the command line in a child process (tsx), several runs per test: on a loaded two-core
+// machine one run alone has taken 15 s, so they get more than the suite's 30 s.
+vi.setConfig({ testTimeout: 120_000 });
+
 const run = promisify(execFile);
 const root = fileURLToPath(new URL('../../..', import.meta.url));
 const dir = mkdtempSync(join(tmpdir(), 'tidemark-stats-'));

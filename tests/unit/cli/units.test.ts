@@ -4,12 +4,16 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { promisify } from 'node:util';
-import { beforeAll, describe, expect, it } from 'vitest';
+import { beforeAll, describe, expect, it, vi } from 'vitest';
 import { readerOptionsOf } from '../../../src/cli/analyze';
 import { loadRecording } from '../../../src/cli/load-recording';
 import { writeEdf } from '../../../src/lib/formats';
 import { assertClose } from '../../helpers/assert-close';
 import { seededNormal } from '../../helpers/seeded-random';
+
+// These tests start the command line in a child process (tsx), several runs per test: on a loaded two-core
+// machine one run alone has taken 15 s, so they get more than the suite's 30 s.
+vi.setConfig({ testTimeout: 120_000 });
 
 const run = promisify(execFile);
 const root = fileURLToPath(new URL('../../..', import.meta.url));

@@ -10,7 +10,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { promisify } from 'node:util';
-import { beforeAll, describe, expect, it } from 'vitest';
+import { beforeAll, describe, expect, it, vi } from 'vitest';
 import { analyzeChannel, assembleResult, planRun } from '../../../../src/lib/analysis/run-recipe';
 import type { Recording } from '../../../../src/lib/analysis/recording';
 import { buildSummary, DEFAULT_SUMMARY_BANDS, resolveSummarySpec, summaryValue } from '../../../../src/lib/analysis/summary';
@@ -18,6 +18,10 @@ import { AnalysisInputError } from '../../../../src/lib/analysis/errors';
 import { writeEdf } from '../../../../src/lib/formats';
 import { SummaryInput } from '../../../../src/lib/schemas/review';
 import { seededNormal } from '../../../helpers/seeded-random';
+
+// These tests start the command line in a child process (tsx), several runs per test: on a loaded two-core
+// machine one run alone has taken 15 s, so they get more than the suite's 30 s.
+vi.setConfig({ testTimeout: 120_000 });
 
 // Scenario of our own: a "kite-string" task, 4 channels at 100 Hz, 80 s, "tug" and "slack" cues every 2 s;
 // a 10 Hz rhythm on Pz that grows after each tug.
