@@ -15,6 +15,9 @@ const host = process.env.HOST ?? '127.0.0.1';
 const port = Number(process.env.PORT ?? 4321);
 /** The largest body any route accepts (routes cap lower: forms 16 KiB, JSON 64 KiB unless they say otherwise). */
 export const MAX_BODY_BYTES = Number(process.env.TIDEMARK_MAX_BODY_BYTES ?? 1_048_576);
+/** The study page's batch import of summaries (many files of up to 1 MB each) has its own cap (IMPORT_CAPS). */
+const IMPORT_BODY_BYTES = 16 * 1_048_576;
+const IMPORT_PATH = /^\/api\/studies\/[^/?#]+\/summary-imports(?:[?#]|$)/;
 
 let trusted;
 try {
@@ -47,8 +50,9 @@ const server = http.createServer((req, res) => {
   // Astro reads the first X-Forwarded-For value for its own clientAddress: make it agree with ours.
   req.headers['x-forwarded-for'] = client;
   const declared = req.headers['content-length'];
-  if (declared !== undefined && !(Number(declared) <= MAX_BODY_BYTES)) {
-    refuse(res, 413, `The request body is larger than ${MAX_BODY_BYTES} bytes.`);
+  const cap = req.method === 'POST' && IMPORT_PATH.test(req.url ?? '') ? Math.max(MAX_BODY_BYTES, IMPORT_BODY_BYTES) : MAX_BODY_BYTES;
+  if (declared !== undefined && !(Number(declared) <= cap)) {
+    refuse(res, 413, `The request body is larger than ${cap} bytes.`);
     req.resume();
     return;
   }

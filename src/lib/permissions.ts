@@ -25,6 +25,7 @@ export const actions = [
   'note:view',
   'note:create',
   'note:resolve',
+  'summary:import',
   'audit:view',
 ] as const;
 export type Action = (typeof actions)[number];
@@ -35,12 +36,12 @@ const matrix: Record<Role, ReadonlySet<Action>> = {
   lead: new Set<Action>([
     'team:view', 'study:view', 'study:create', 'study:edit', 'member:view', 'member:invite', 'member:manage',
     'analysisSession:signOff', 'analysisSession:return', 'analysisSession:sign', 'note:view', 'note:create', 'note:resolve',
-    'audit:view',
+    'summary:import', 'audit:view',
   ]),
   // Creates and edits own analysis sessions and submits them for review.
   analyst: new Set<Action>([
     'team:view', 'study:view', 'member:view', 'analysisSession:create', 'analysisSession:editOwn',
-    'analysisSession:submit', 'note:view', 'note:create', 'note:resolve',
+    'analysisSession:submit', 'note:view', 'note:create', 'note:resolve', 'summary:import',
   ]),
   // Reads sessions and leaves notes; signs nothing.
   reviewer: new Set<Action>(['team:view', 'study:view', 'member:view', 'note:view', 'note:create', 'note:resolve']),

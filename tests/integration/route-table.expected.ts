@@ -91,6 +91,7 @@ export const routeTable: Record<string, Expected> = {
   // and {noteId}, a note the reviewer wrote. The empty `{}` body reaches validation (400) only for a role that may act.
   'GET /api/studies/[studyId]/subjects':         row(404, 200, 200, 200, 401, 404),
   'POST /api/studies/[studyId]/subjects':        row(404, 403, 400, 403, 401, 404),
+  'POST /api/studies/[studyId]/summary-imports': row(404, 415, 415, 403, 401, 404),
   'GET /api/analysis-sessions/[sessionId]':      row(404, 200, 200, 200, 401, 404),
   'GET /api/analysis-sessions/[sessionId]/recipe-versions':  row(404, 200, 200, 200, 401, 404),
   'POST /api/analysis-sessions/[sessionId]/recipe-versions': row(404, 403, 400, 403, 401, 404),

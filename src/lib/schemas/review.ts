@@ -244,3 +244,28 @@ export const MailPreferencesInput = z.object({
   form: z.literal('mail-preferences', { error: 'The form could not be read. Nothing was changed.' }),
   ...(Object.fromEntries(MAIL_KINDS.map((k) => [k, z.enum(['', 'on'], { error: 'must be ticked or not' })])) as Record<MailKind, z.ZodEnum<{ '': ''; on: 'on' }>>),
 });
+
+/** The SHA-256 of a recording's bytes, 64 lowercase hex digits. */
+export const Fingerprint = z.string().regex(/^[0-9a-f]{64}$/, 'must be the SHA-256 of the recording: 64 lowercase hex digits');
+
+/**
+ * One file written by `analyze … --summary` (src/cli/analyze.ts): a subject's code, the recording's fingerprint, the
+ * recipe (format 2) and the summary of that run. The study page's batch import reads many of these at once.
+ */
+export const CliSummaryFile = z
+  .object({
+    format: z.literal('tidemark-cli-summary-1', { error: 'must be "tidemark-cli-summary-1" (a file written by analyze --summary)' }),
+    subjectCode: SubjectCode,
+    fingerprint: Fingerprint,
+    recipe: RecipeSchema,
+    summary: SummaryInput,
+  })
+  .strict()
+  .refine((f) => f.recipe.recording?.fingerprint === undefined || f.recipe.recording.fingerprint === f.fingerprint, {
+    message: 'names another recording than the file\'s fingerprint',
+    path: ['recipe', 'recording', 'fingerprint'],
+  });
+export type CliSummaryFileT = z.infer<typeof CliSummaryFile>;
+
+/** Batch import caps: files per batch and bytes of the whole multipart body (each file's summary keeps its own cap). */
+export const IMPORT_CAPS = { files: 50, bodyBytes: 16 * 1_048_576, fileBytes: SUMMARY_CAPS.bodyBytes + RECIPE_BODY_BYTES + 1_024 } as const;

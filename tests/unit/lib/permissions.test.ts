@@ -25,6 +25,9 @@ const expected: Record<Action, Record<Role, boolean>> = {
   'note:view':               { lead: Y, analyst: Y, reviewer: Y },
   'note:create':             { lead: Y, analyst: Y, reviewer: Y },
   'note:resolve':            { lead: Y, analyst: Y, reviewer: Y },
+  // Batch import of command-line summaries (issue 11 item 10): the methods person, lead or analyst; each imported
+  // session is owned by whoever imported it.
+  'summary:import':          { lead: Y, analyst: Y, reviewer: N },
   'audit:view':              { lead: Y, analyst: N, reviewer: N },
 };
 
