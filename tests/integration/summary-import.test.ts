@@ -174,6 +174,15 @@ describe('batch import of command-line summaries', () => {
     expect(status).toBe(400);
     expect(body.error.message).toMatch(/^Nothing was imported: 3 of 3 files have problems\. KT-01\.json: subjectCode: Subject KT-01 already has an analysis session for this recording \(draft, Fixture analyst, recipe version 1\)/);
     expect(await counts()).toEqual(before);
+    // and a session made by hand for the same subject and recording
+    const byHand = await analyst.request(`/api/studies/${studyId}/analysis-sessions`, { method: 'POST', json: { subjectCode: 'KT-02', fingerprint: files[1].fingerprint } });
+    expect(byHand.status).toBe(409);
+    const refusal = await byHand.json();
+    expect(refusal.error.code).toBe('session_exists');
+    expect(refusal.error.message).toMatch(/^Subject KT-02 already has an analysis session for this recording \(draft, Fixture analyst, recipe version 1\)\. Open that session and save a new recipe version there instead of starting a second one\. Nothing was created\.$/);
+    expect(await counts()).toEqual(before);
+    // another recording of the same subject is a new session
+    expect((await analyst.request(`/api/studies/${studyId}/analysis-sessions`, { method: 'POST', json: { subjectCode: 'KT-02', fingerprint: 'e'.repeat(64) } })).status).toBe(201);
     // and the same file twice in one batch
     const twice = await post(lead, batch('preview', [files[0], { ...files[0], name: 'again.json' }]));
     expect(twice.body.files[1].problems.map((p: { message: string }) => p.message)).toContain("subject KT-01's recording is also in KT-01.json; import it once");

@@ -3,6 +3,7 @@ import { db } from '../client';
 import { analysisSessions, users, type AnalysisSession } from '../schema';
 import { recordAudit } from './audit';
 import { ensureSubject } from './review';
+import { lockStudySessions, sessionFor, type ExistingSession } from './review-import';
 
 export async function listAnalysisSessions(studyId: string) {
   return db
@@ -13,14 +14,23 @@ export async function listAnalysisSessions(studyId: string) {
     .orderBy(asc(analysisSessions.subjectCode));
 }
 
-/** A new draft session for a subject of the study (the subject is created on first use of its code). */
+/**
+ * A new draft session for a subject of the study (the subject is created on first use of its code). A study keeps
+ * one session per subject and recording: when one exists for this code and fingerprint, nothing is written and
+ * `existing` names it (new work goes into it as a new recipe version).
+ */
 export async function createAnalysisSession(
   studyId: string,
   teamId: string,
   ownerId: string,
   input: { subjectCode: string; fingerprint: string | null },
-): Promise<AnalysisSession> {
+): Promise<{ ok: true; session: AnalysisSession } | { ok: false; existing: ExistingSession }> {
   return db.transaction(async (tx) => {
+    await lockStudySessions(tx, studyId);
+    if (input.fingerprint !== null) {
+      const existing = await sessionFor(tx, studyId, input.subjectCode, input.fingerprint);
+      if (existing) return { ok: false, existing };
+    }
     const subject = await ensureSubject(tx, studyId, teamId, ownerId, input.subjectCode);
     const [row] = await tx
       .insert(analysisSessions)
@@ -30,6 +40,6 @@ export async function createAnalysisSession(
       actorId: ownerId, action: 'analysisSession.create', targetTable: 'analysis_sessions', targetId: row.id, teamId,
       detail: { studyId, subjectCode: input.subjectCode, fingerprint: input.fingerprint },
     });
-    return row;
+    return { ok: true, session: row };
   });
 }
