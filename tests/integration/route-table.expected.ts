@@ -69,6 +69,8 @@ export const routeTable: Record<string, Expected> = {
   'POST /teams/[teamId]/studies/[studyId]':      row(404, 200, 200, 200, signIn('/teams/{teamId}/studies/{studyId}'), 404),
   'GET /teams/[teamId]/studies/[studyId]/workspace':  row(404, 200, 200, 200, signIn('/teams/{teamId}/studies/{studyId}/workspace'), 404),
   'POST /teams/[teamId]/studies/[studyId]/workspace': row(404, 200, 200, 200, signIn('/teams/{teamId}/studies/{studyId}/workspace'), 404),
+  'GET /teams/[teamId]/studies/[studyId]/sessions/[sessionId]':  row(404, 200, 200, 200, signIn('/teams/{teamId}/studies/{studyId}/sessions/{sessionId}'), 404),
+  'POST /teams/[teamId]/studies/[studyId]/sessions/[sessionId]': row(404, 200, 200, 200, signIn('/teams/{teamId}/studies/{studyId}/sessions/{sessionId}'), 404),
 
   // One's own account (password, sessions): any signed-in person; the empty form names no action (400).
   'GET /account':                                row(200, 200, 200, 200, signIn('/account'), 200),

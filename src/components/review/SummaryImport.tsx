@@ -94,7 +94,9 @@ function SummaryImportForm({ studyId, teamId }: Props) {
           {preview.status === 200 && (
             <p className={preview.ready ? 'text-sm' : 'notice notice-warn'} data-testid="import-verdict">
               {preview.ready
-                ? `All ${preview.files.length} files are fine.`
+                ? preview.files.length === 1
+                  ? 'The file is fine.'
+                  : `All ${preview.files.length} files are fine.`
                 : `${badFiles.length} of ${preview.files.length} files ${badFiles.length === 1 ? 'has a problem' : 'have problems'}: nothing can be brought in until ${badFiles.length === 1 ? 'it is' : 'they are'} fixed or left out.`}
             </p>
           )}
