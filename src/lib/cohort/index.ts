@@ -1,0 +1,4 @@
+export * from './distribution';
+export * from './group-map';
+export * from './pooling';
+export * from './values';
