@@ -26,6 +26,9 @@ const expected: Record<Action, Record<Role, boolean>> = {
   'note:create':             { lead: Y, analyst: Y, reviewer: Y },
   'note:resolve':            { lead: Y, analyst: Y, reviewer: Y },
   'audit:view':              { lead: Y, analyst: N, reviewer: N },
+  'cohort:covariates':       { lead: Y, analyst: Y, reviewer: N },
+  'cohort:design':           { lead: Y, analyst: N, reviewer: N },
+  'cohort:includeUnsigned':  { lead: Y, analyst: N, reviewer: N },
 };
 
 describe('permission matrix', () => {
