@@ -23,7 +23,7 @@ afterAll(() => pool.end());
 describe('the demo cohort', () => {
   it('has the 12 demo subjects signed off by the demo lead, each signature the hash of its version and summary', async () => {
     const body = await (await lead.request(`/api/studies/${studyId}/cohort`)).json();
-    const demo = body.sessions.filter((s: { subject: string }) => /^TM-S(0[1-9]|1[0-2])$/.test(s.subject) && s.signatures.length > 0);
+    const demo = body.sessions.filter((s: { subject: string; signatures: unknown[] }) => /^TM-S(0[1-9]|1[0-2])$/.test(s.subject) && s.signatures.length > 0);
     expect(demo).toHaveLength(12);
     const { rows } = await pool.query(
       `SELECT a.id, a.fingerprint, v.number, v.recipe, s.summary, g.content_hash, g.printed_name, g.meaning

@@ -5,7 +5,7 @@
  */
 import { and, asc, eq, inArray, sql } from 'drizzle-orm';
 import { db, pool } from '../client';
-import { analysisSessions, cohortDesigns, recipeVersions, signatures, subjectCovariates, subjects, summaries, users, type CohortDesign } from '../schema';
+import { analysisSessions, cohortDesigns, recipeVersions, signatures, subjectCovariates, subjects, summaries, summaryDigests, users, type CohortDesign } from '../schema';
 import type { CohortDesignT, CovariatesInputT } from '../../lib/schemas/cohort';
 import { recordAudit } from './audit';
 
@@ -50,35 +50,20 @@ export async function getCohortOverview(studyId: string): Promise<CohortOverview
       versionId: recipeVersions.id,
       recipe: recipeVersions.recipe,
       recipeHash: recipeVersions.recipeHash,
+      // Only the hash: the summary itself (hundreds of kB each) is not read for the first paint.
       summaryHash: summaries.summaryHash,
-      outline: sql<CohortSessionRow['outline']>`case when ${summaries.summary} is null then null else jsonb_build_object(
-        'normalizedUnit', ${summaries.summary}->'normalizedUnit', 'bands', ${summaries.summary}->'bands', 'windows', ${summaries.summary}->'windows',
-        'conditions', ${summaries.summary}->'conditions', 'channels', ${summaries.summary}->'channels', 'channelGroups', ${summaries.summary}->'channelGroups') end`,
+      outline: summaryDigests.outline,
+      digest: summaryDigests.digest,
     })
     .from(analysisSessions)
     .innerJoin(users, eq(users.id, analysisSessions.ownerId))
     .leftJoin(recipeVersions, and(eq(recipeVersions.analysisSessionId, analysisSessions.id), eq(recipeVersions.number, analysisSessions.currentVersion)))
     .leftJoin(summaries, eq(summaries.recipeVersionId, recipeVersions.id))
+    .leftJoin(summaryDigests, eq(summaryDigests.recipeVersionId, recipeVersions.id))
     .where(eq(analysisSessions.studyId, studyId))
     .orderBy(asc(analysisSessions.subjectCode), asc(analysisSessions.createdAt));
-  const versionIds = rows.flatMap((r) => (r.versionId !== null && r.summaryHash !== null ? [r.versionId] : []));
-  // Averaged inside PostgreSQL, so the page never reads the band values themselves.
-  const digestRows = versionIds.length === 0 ? [] : (
-    await pool.query<{ id: string; band: string; window: string; condition: string; normalized: number | null }>(
-      `select s.recipe_version_id as id, bv->>'band' as band, bv->>'window' as window, bv->>'condition' as condition,
-              avg((bv->>'normalized')::float8) as normalized
-         from summaries s cross join lateral jsonb_array_elements(s.summary->'bandValues') bv
-        where s.recipe_version_id = any($1::uuid[])
-        group by 1, 2, 3, 4`,
-      [versionIds],
-    )
-  ).rows;
-  const digests = new Map<string, CohortSessionRow['digest']>();
-  for (const d of digestRows) {
-    const byBand = digests.get(d.id) ?? {};
-    digests.set(d.id, byBand);
-    ((byBand[d.band] ??= {})[d.window] ??= {})[d.condition] = d.normalized === null ? null : Number(d.normalized);
-  }
+  const missing = rows.flatMap((r) => (r.versionId !== null && r.summaryHash !== null && r.digest === null ? [r.versionId] : []));
+  const made = await storeDigests(missing);
   const ids = rows.map((r) => r.session.id);
   const sigs = ids.length === 0 ? [] : await db.select().from(signatures).where(inArray(signatures.analysisSessionId, ids)).orderBy(asc(signatures.signedAt), asc(signatures.id));
   const covariates = await listCovariates(studyId);
@@ -95,8 +80,8 @@ export async function getCohortOverview(studyId: string): Promise<CohortOverview
       recipeHash: r.recipeHash,
       recipe: r.recipe,
       summaryHash: r.summaryHash,
-      outline: r.outline,
-      digest: (r.versionId && digests.get(r.versionId)) || {},
+      outline: (r.outline ?? (r.versionId ? made.get(r.versionId)?.outline : null) ?? null) as CohortSessionRow['outline'],
+      digest: (r.digest ?? (r.versionId ? made.get(r.versionId)?.digest : null) ?? {}) as CohortSessionRow['digest'],
       signatures: sigs
         .filter((s) => s.analysisSessionId === r.session.id)
         .map((s) => ({ printedName: s.printedName, meaning: s.meaning, signedAt: s.signedAt.toISOString(), recipeVersionNumber: s.recipeVersionNumber, contentHash: s.contentHash, reason: s.reason })),
@@ -105,6 +90,44 @@ export async function getCohortOverview(studyId: string): Promise<CohortOverview
     subjects: subjectRows.map((s) => s.code),
     design: await getCohortDesign(studyId),
   };
+}
+
+/**
+ * Computes and stores the outline and digest of each recipe version in `versionIds` (each has a summary and no
+ * digest yet): the averaging runs inside PostgreSQL, and a digest written by a concurrent view is kept.
+ */
+async function storeDigests(versionIds: string[]): Promise<Map<string, { outline: CohortSessionRow['outline']; digest: CohortSessionRow['digest'] }>> {
+  const out = new Map<string, { outline: CohortSessionRow['outline']; digest: CohortSessionRow['digest'] }>();
+  if (versionIds.length === 0) return out;
+  const { rows } = await pool.query<{ id: string; outline: CohortSessionRow['outline']; digest: CohortSessionRow['digest'] }>(
+    `with cells as (
+       select s.recipe_version_id as id, bv->>'band' as band, bv->>'window' as win, bv->>'condition' as cond,
+              avg((bv->>'normalized')::float8) as v
+         from summaries s cross join lateral jsonb_array_elements(s.summary->'bandValues') bv
+        where s.recipe_version_id = any($1::uuid[])
+        group by 1, 2, 3, 4),
+     by_window as (select id, band, win, jsonb_object_agg(cond, v) as c from cells group by 1, 2, 3),
+     by_band as (select id, band, jsonb_object_agg(win, c) as w from by_window group by 1, 2),
+     digests as (select id, jsonb_object_agg(band, w) as digest from by_band group by 1)
+     insert into summary_digests (recipe_version_id, outline, digest)
+     select s.recipe_version_id,
+            jsonb_build_object('normalizedUnit', s.summary->'normalizedUnit', 'bands', s.summary->'bands', 'windows', s.summary->'windows',
+                               'conditions', s.summary->'conditions', 'channels', s.summary->'channels', 'channelGroups', s.summary->'channelGroups'),
+            coalesce(d.digest, '{}'::jsonb)
+       from summaries s left join digests d on d.id = s.recipe_version_id
+      where s.recipe_version_id = any($1::uuid[])
+     on conflict (recipe_version_id) do nothing
+     returning recipe_version_id as id, outline, digest`,
+    [versionIds],
+  );
+  for (const r of rows) out.set(r.id, { outline: r.outline, digest: r.digest });
+  const lost = versionIds.filter((id) => !out.has(id));
+  if (lost.length > 0) {
+    for (const r of await db.select().from(summaryDigests).where(inArray(summaryDigests.recipeVersionId, lost))) {
+      out.set(r.recipeVersionId, { outline: r.outline as unknown as CohortSessionRow['outline'], digest: r.digest as unknown as CohortSessionRow['digest'] });
+    }
+  }
+  return out;
 }
 
 /**

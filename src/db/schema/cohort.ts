@@ -1,5 +1,6 @@
 import { doublePrecision, integer, jsonb, pgTable, primaryKey, text, timestamp, uuid } from 'drizzle-orm/pg-core';
 import { users } from './auth';
+import { recipeVersions } from './review';
 import { subjects } from './analysis';
 import { studies } from './teams';
 
@@ -34,3 +35,18 @@ export const cohortDesigns = pgTable('cohort_designs', {
   updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
 });
 export type CohortDesign = typeof cohortDesigns.$inferSelect;
+
+/**
+ * What the Cohort screen paints first, per recipe version with a summary: the summary's outline (unit, bands,
+ * windows, conditions, channels, channel groups) and the per-band digest (band → window → condition → normalized
+ * value averaged over channels). Derived from the write-once summary, so written once, on the first Cohort view
+ * that needs it; reading these instead of the summaries keeps the first paint small.
+ */
+export const summaryDigests = pgTable('summary_digests', {
+  recipeVersionId: uuid('recipe_version_id')
+    .primaryKey()
+    .references(() => recipeVersions.id, { onDelete: 'cascade' }),
+  outline: jsonb('outline').$type<Record<string, unknown>>().notNull(),
+  digest: jsonb('digest').$type<Record<string, unknown>>().notNull(),
+  createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+});
