@@ -218,7 +218,7 @@ export default function CohortScreen({ study, team, overview, may }: Props) {
       <section className="card mt-6" aria-labelledby="map-h" data-testid="group-map">
         <h2 id="map-h" className="text-xl font-semibold">Group map and cluster test</h2>
         {unsignedBanner}
-        <p className="text-sm text-ink-soft">The mean of the subjects' reduced maps; the cluster-based permutation test (Maris &amp; Oostenveld, 2007) outlines clusters, solid when p &lt; 0.05.</p>
+        <p className="text-sm text-ink-soft">The mean of the subjects' reduced maps; the cluster-based permutation test (Maris &amp; Oostenveld, 2007) outlines the clusters with p &lt; 0.05; the table lists every cluster.</p>
         <div className="mt-2 flex flex-wrap items-end gap-4">
           <label className="field"><span className="text-sm">Channel group</span>
             <select value={mapGroup} onChange={(e) => setMapGroup(e.target.value)}>{outline?.channelGroups.map((g) => <option key={g.label}>{g.label}</option>)}</select>

@@ -176,8 +176,7 @@ const rgbOf = (() => {
 
 /**
  * The group map: one rect per frequency × time cell on the diverging PuOr map, symmetric around the neutral value,
- * frequency upwards; clusters of the map test outlined in ink (significant, p < 0.05) or dashed (not), each with
- * its p value. `labels[f·T + t]` is the cluster of each cell (0: none).
+ * frequency upwards; clusters of the map test with p < 0.05 outlined in ink, each with its sign and p value. `labels[f·T + t]` is the cluster of each cell (0: none).
  */
 export function GroupMapPlot({ title, frequenciesHz, timesS, values, neutral, unit, labels, clusters, width = 560, height = 300 }: {
   title: string; frequenciesHz: number[]; timesS: number[]; values: ArrayLike<number>; neutral: number; unit: string; labels?: ArrayLike<number> | null; clusters?: MapCluster[]; width?: number; height?: number;
@@ -199,7 +198,8 @@ export function GroupMapPlot({ title, frequenciesHz, timesS, values, neutral, un
     cells.push(<rect key={`${f}:${t}`} x={cx(t)} y={cy(f)} width={cw + 0.3} height={ch + 0.3} fill={rgbOf(colourPosition(scale, values[f * nT + t]))} />);
   }
   const outlines: ReactNode[] = [];
-  for (const c of clusters ?? []) {
+  // Only clusters under p 0.05 are drawn: the many one-cell clusters of noise would hide the map (the table lists all).
+  for (const c of (clusters ?? []).filter((k) => k.p < 0.05)) {
     let d = '';
     const at = (f: number, t: number) => (f >= 0 && f < nF && t >= 0 && t < nT ? labels![f * nT + t] : 0);
     for (let f = 0; f < nF; f++) for (let t = 0; t < nT; t++) {
@@ -210,12 +210,11 @@ export function GroupMapPlot({ title, frequenciesHz, timesS, values, neutral, un
       if (at(f, t - 1) !== c.label) d += `M${x0} ${y0}V${y1}`;
       if (at(f, t + 1) !== c.label) d += `M${x1} ${y0}V${y1}`;
     }
-    const significant = c.p < 0.05;
     const lx = cx(c.timeRange[0]) + 2;
     const ly = cy(c.frequencyRange[1]) - 2;
     outlines.push(
       <g key={c.label} data-cluster={c.label} data-p={c.p}>
-        <path d={d} stroke={INK} strokeWidth={significant ? 2 : 1} strokeDasharray={significant ? undefined : '3 2'} fill="none" />
+        <path d={d} stroke={INK} strokeWidth={2} fill="none" />
         <text x={lx} y={Math.max(top + 9, ly)} fontSize={10} fill={INK} stroke="#fffdf8" strokeWidth={2.5} paintOrder="stroke">{`${c.sign > 0 ? '+' : '−'} p=${c.p < 0.001 ? c.p.toExponential(1) : c.p.toFixed(3)}`}</text>
       </g>,
     );
