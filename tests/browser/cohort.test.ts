@@ -127,6 +127,24 @@ describe('the Cohort screen', () => {
     expect(errors).toEqual([]);
   }, 180_000);
 
+  it('imports covariates from a CSV: a bad file is named by row and column and changes nothing; a good one is saved', async () => {
+    const page = await signInPage(c.leadPerson.email, c.leadPerson.password);
+    await page.goto(`${appUrl}/teams/${c.teamId}/studies/${c.studyId}/cohort`);
+    await page.locator('[data-testid="cohort-screen"][data-ready="yes"]').waitFor();
+    const input = page.getByTestId('covariate-csv');
+    await input.setInputFiles({ name: 'ages.csv', mimeType: 'text/csv', buffer: Buffer.from('subject,age\nTP-01,31\nTP-02,thirty-two\n') });
+    await expect.poll(() => page.getByTestId('covariates-message').textContent()).toBe('ages.csv: row 3, column "age": "thirty-two" is not a number (code a group as numbers, e.g. 0 and 1). Nothing was changed.');
+    expect(await page.getByTestId('covariates-table').count()).toBe(0);
+    const good = ['subject,age,group', ...c.sessions.map((s, i) => `${s.subject},${30 + i},${i % 2}`)].join('\n');
+    await input.setInputFiles({ name: 'ages.csv', mimeType: 'text/csv', buffer: Buffer.from(good) });
+    await page.getByTestId('save-covariates').click();
+    await expect.poll(() => page.getByTestId('covariates-message').textContent()).toBe('Saved 24 values.');
+    const { rows } = await pool.query(`SELECT count(*)::int AS n, sum(value)::float AS total FROM subject_covariates v JOIN subjects s ON s.id = v.subject_id WHERE s.study_id = $1 AND v.name = 'age'`, [c.studyId]);
+    expect(rows[0]).toEqual({ n: 12, total: Array.from({ length: 12 }, (_, i) => 30 + i).reduce((a, b) => a + b, 0) });
+    await page.getByTestId('covariates-panel').scrollIntoViewIfNeeded();
+    await page.screenshot({ path: path.join(artifactsDir, 'cohort-covariates.png') });
+  }, 120_000);
+
   it('refuses to pool mixed recipes and names the field on screen', async () => {
     const mixed = await createCohort({ signed: 2, unsigned: 1, recipeEdit: (r) => { r.filters = { notch: { lineHz: 50 } }; } });
     const page = await signInPage(mixed.leadPerson.email, mixed.leadPerson.password);
