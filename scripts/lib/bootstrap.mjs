@@ -314,6 +314,8 @@ export function migrate(databaseUrl) {
 }
 
 export function seed(databaseUrl) {
+  // The demo study's cohort is seeded from summaries of the demo files, so the files come first (a quick check when present).
+  generateDemoData();
   const result = run(process.execPath, ['--import', 'tsx', path.join(root, 'scripts', 'seed.ts')], {
     cwd: root,
     env: { ...process.env, DATABASE_URL: databaseUrl },

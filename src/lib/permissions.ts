@@ -27,6 +27,9 @@ export const actions = [
   'note:resolve',
   'summary:import',
   'audit:view',
+  'cohort:covariates',
+  'cohort:design',
+  'cohort:includeUnsigned',
 ] as const;
 export type Action = (typeof actions)[number];
 
@@ -36,12 +39,12 @@ const matrix: Record<Role, ReadonlySet<Action>> = {
   lead: new Set<Action>([
     'team:view', 'study:view', 'study:create', 'study:edit', 'member:view', 'member:invite', 'member:manage',
     'analysisSession:signOff', 'analysisSession:return', 'analysisSession:sign', 'note:view', 'note:create', 'note:resolve',
-    'summary:import', 'audit:view',
+    'summary:import', 'audit:view', 'cohort:covariates', 'cohort:design', 'cohort:includeUnsigned',
   ]),
   // Creates and edits own analysis sessions and submits them for review.
   analyst: new Set<Action>([
     'team:view', 'study:view', 'member:view', 'analysisSession:create', 'analysisSession:editOwn',
-    'analysisSession:submit', 'note:view', 'note:create', 'note:resolve', 'summary:import',
+    'analysisSession:submit', 'note:view', 'note:create', 'note:resolve', 'summary:import', 'cohort:covariates',
   ]),
   // Reads sessions and leaves notes; signs nothing.
   reviewer: new Set<Action>(['team:view', 'study:view', 'member:view', 'note:view', 'note:create', 'note:resolve']),

@@ -71,6 +71,10 @@ export const routeTable: Record<string, Expected> = {
   'POST /teams/[teamId]/studies/[studyId]/workspace': row(404, 200, 200, 200, signIn('/teams/{teamId}/studies/{studyId}/workspace'), 404),
   'GET /teams/[teamId]/studies/[studyId]/sessions/[sessionId]':  row(404, 200, 200, 200, signIn('/teams/{teamId}/studies/{studyId}/sessions/{sessionId}'), 404),
   'POST /teams/[teamId]/studies/[studyId]/sessions/[sessionId]': row(404, 200, 200, 200, signIn('/teams/{teamId}/studies/{studyId}/sessions/{sessionId}'), 404),
+  'GET /teams/[teamId]/studies/[studyId]/cohort':  row(404, 200, 200, 200, signIn('/teams/{teamId}/studies/{studyId}/cohort'), 404),
+  'POST /teams/[teamId]/studies/[studyId]/cohort': row(404, 200, 200, 200, signIn('/teams/{teamId}/studies/{studyId}/cohort'), 404),
+  'GET /teams/[teamId]/studies/[studyId]/cohort/report':  row(404, 200, 200, 200, signIn('/teams/{teamId}/studies/{studyId}/cohort/report'), 404),
+  'POST /teams/[teamId]/studies/[studyId]/cohort/report': row(404, 200, 200, 200, signIn('/teams/{teamId}/studies/{studyId}/cohort/report'), 404),
 
   // One's own account (password, sessions): any signed-in person; the empty form names no action (400).
   'GET /account':                                row(200, 200, 200, 200, signIn('/account'), 200),
@@ -94,6 +98,12 @@ export const routeTable: Record<string, Expected> = {
   'GET /api/studies/[studyId]/subjects':         row(404, 200, 200, 200, 401, 404),
   'POST /api/studies/[studyId]/subjects':        row(404, 403, 400, 403, 401, 404),
   'POST /api/studies/[studyId]/summary-imports': row(404, 415, 415, 403, 401, 404),
+  'GET /api/studies/[studyId]/cohort':            row(404, 200, 200, 200, 401, 404),
+  'GET /api/studies/[studyId]/cohort/summaries':  row(404, 200, 200, 200, 401, 404),
+  'GET /api/studies/[studyId]/cohort/covariates': row(404, 200, 200, 200, 401, 404),
+  'PUT /api/studies/[studyId]/cohort/covariates': row(404, 400, 400, 403, 401, 404),
+  'GET /api/studies/[studyId]/cohort/design':     row(404, 200, 200, 200, 401, 404),
+  'PUT /api/studies/[studyId]/cohort/design':     row(404, 400, 403, 403, 401, 404),
   'GET /api/analysis-sessions/[sessionId]':      row(404, 200, 200, 200, 401, 404),
   'GET /api/analysis-sessions/[sessionId]/recipe-versions':  row(404, 200, 200, 200, 401, 404),
   'POST /api/analysis-sessions/[sessionId]/recipe-versions': row(404, 403, 400, 403, 401, 404),

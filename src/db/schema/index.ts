@@ -3,3 +3,4 @@ export * from './teams';
 export * from './analysis';
 export * from './system';
 export * from './review';
+export * from './cohort';

@@ -59,3 +59,8 @@ export function chiSquareUpperP(x: number, df: number): number {
 export function normalCdf(z: number): number {
   return jStat.normal.cdf(z, 0, 1);
 }
+
+/** Standard normal quantile Φ⁻¹(p), 0 < p < 1 (jstat's rational approximation); for Q–Q plots. */
+export function normalQuantile(p: number): number {
+  return jStat.normal.inv(p, 0, 1);
+}

@@ -3,13 +3,16 @@
  * channel with `subject,condition,band,window,channel,value` and any further columns, each a numeric per-subject
  * covariate. Pure (papaparse on a string), so a page can read the same file the command line reads.
  *
- * TODO: the study page's export (issue 12, item 6) is to add a recipe hash and the sign-off state per row; read
- * as further columns they are non-numeric covariates and refused. The contract must name such columns first.
+ * Extension (DEVELOPERS.md, "How we read and extend the statistics contract"): the columns `recipe_hash` and
+ * `sign_off`, which the Cohort screen's export adds to every row, say where a row came from; they are read as text
+ * and never taken as covariates.
  */
 import Papa from 'papaparse';
 import { StatisticsInputError } from './errors';
 
 export const KEY_COLUMNS = ['subject', 'condition', 'band', 'window', 'channel'] as const;
+/** Per-row provenance the tidy export adds: not covariates (see the file's header). */
+export const ANNOTATION_COLUMNS = ['recipe_hash', 'sign_off'] as const;
 export type KeyColumn = (typeof KEY_COLUMNS)[number];
 
 export interface TidyRow {
@@ -81,7 +84,7 @@ export function parseTidyValues(text: string): TidyValues {
           for (const k of [...KEY_COLUMNS, 'value']) {
             if (!(k in index)) fail(`line ${line}`, `has no column "${k}" (the header needs subject,condition,band,window,channel,value)`);
           }
-          covariateColumns = header.filter((h) => !(KEY_COLUMNS as readonly string[]).includes(h) && h !== 'value');
+          covariateColumns = header.filter((h) => !(KEY_COLUMNS as readonly string[]).includes(h) && h !== 'value' && !(ANNOTATION_COLUMNS as readonly string[]).includes(h));
           for (const c of covariateColumns) {
             covariates.set(c, new Map());
             covariateLine.set(c, new Map());

@@ -29,6 +29,9 @@ const expected: Record<Action, Record<Role, boolean>> = {
   // session is owned by whoever imported it.
   'summary:import':          { lead: Y, analyst: Y, reviewer: N },
   'audit:view':              { lead: Y, analyst: N, reviewer: N },
+  'cohort:covariates':       { lead: Y, analyst: Y, reviewer: N },
+  'cohort:design':           { lead: Y, analyst: N, reviewer: N },
+  'cohort:includeUnsigned':  { lead: Y, analyst: N, reviewer: N },
 };
 
 describe('permission matrix', () => {
