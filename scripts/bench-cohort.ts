@@ -12,8 +12,8 @@ import { eq } from 'drizzle-orm';
 import { db, pool } from '../src/db/client';
 import { analysisSessions, recipeVersions, studies, subjects, summaries, teams, users } from '../src/db/schema';
 import { getCohortOverview } from '../src/db/queries/cohort';
-import { jsonHash } from '../src/lib/server/review-hash';
-import { newUserId } from '../src/lib/server/auth';
+import { jsonHash } from '../src/lib/crypto/review-hash';
+import { newUserId } from '../src/lib/crypto/ids';
 
 // React's production build, as the served app uses it (the development build adds checks that cost several times more).
 process.env.NODE_ENV = 'production';

@@ -2,7 +2,7 @@
 // from the demo files' summaries (computed once by the core and cached in demo-data/summaries.json).
 import { db, pool } from '../src/db/client';
 import { DEMO_PEOPLE, DEMO_TEAM, seedDemo } from '../src/db/seed';
-import { seedDemoCohort } from '../src/db/seed-cohort';
+import { seedDemoCohort } from './seed-cohort';
 import { demoSummaries } from '../src/cli/demo-summaries';
 
 const { created } = await seedDemo(db);

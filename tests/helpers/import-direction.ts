@@ -38,6 +38,8 @@ export const SCREEN_ANALYSIS_HELPERS: readonly { module: string; names: readonly
   { module: 'src/lib/analysis/channel-types', names: ['CHANNEL_TYPES', 'isBrainType'] },
   { module: 'src/lib/analysis/rounding', names: ['roundHalfUp'] },
   { module: 'src/lib/analysis/errors', names: ['AnalysisInputError'] },
+  // zod set up without generated code (the page's CSP forbids eval); forms validate with the same instance.
+  { module: 'src/lib/analysis/zod', names: ['z'] },
 ];
 
 /**

@@ -6,7 +6,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { pool } from '../helpers/app';
 import { signedIn } from '../helpers/review';
 import { DEMO_STUDY, demoPerson } from '../helpers/workspace';
-import { signedContentHash } from '../../src/lib/server/review-hash';
+import { signedContentHash } from '../../src/lib/crypto/review-hash';
 import { groupCells, type PooledSession } from '../../src/lib/cohort/values';
 import { oneSampleTest } from '../../src/lib/statistics/t-tests';
 import type { Client } from '../helpers/app';

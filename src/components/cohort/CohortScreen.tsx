@@ -1,5 +1,5 @@
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
-import type { CohortOverview } from '../../db/queries/cohort';
+import type { CohortOverview } from '../../lib/cohort/overview';
 import { averageChannels, groupCells, tidyCsv, toTidyValues, type Covariates, type PooledSession } from '../../lib/cohort/values';
 import { checkPooling, enteringSessions, neutralOf, pooledSessions, subjectMapsOf, unitWord, type StoredSummary } from '../../lib/cohort/model';
 import { buildGroupMap } from '../../lib/cohort/group-map';

@@ -1,5 +1,5 @@
 import { useState, type ReactNode } from 'react';
-import type { CohortOverview } from '../../db/queries/cohort';
+import type { CohortOverview } from '../../lib/cohort/overview';
 import type { CohortDesignT } from '../../lib/schemas/cohort';
 import type { DesignResult } from '../../lib/statistics/design';
 import { fmt } from './plots';

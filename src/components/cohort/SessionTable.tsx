@@ -1,6 +1,6 @@
 import { useMemo, useState } from 'react';
 import { createColumnHelper, flexRender, getCoreRowModel, getFilteredRowModel, getSortedRowModel, useReactTable, type SortingState } from '@tanstack/react-table';
-import type { CohortSessionRow } from '../../db/queries/cohort';
+import type { CohortSessionRow } from '../../lib/cohort/overview';
 import { mayEnter } from '../../lib/cohort/model';
 import { fmt } from './plots';
 

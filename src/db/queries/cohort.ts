@@ -8,38 +8,9 @@ import { db, pool } from '../client';
 import { analysisSessions, cohortDesigns, recipeVersions, signatures, subjectCovariates, subjects, summaries, summaryDigests, users, type CohortDesign } from '../schema';
 import type { CohortDesignT, CovariatesInputT } from '../../lib/schemas/cohort';
 import { recordAudit } from './audit';
+import type { CohortOverview, CohortSessionRow } from '../../lib/cohort/overview';
 
-export interface CohortSessionRow {
-  analysisSessionId: string;
-  subject: string;
-  subjectId: string;
-  ownerName: string;
-  status: 'draft' | 'in review' | 'returned' | 'signed off';
-  fingerprint: string | null;
-  recipeVersion: number | null;
-  recipeHash: string | null;
-  recipe: Record<string, unknown> | null;
-  summaryHash: string | null;
-  /** The summary's outline (no values): unit, bands, windows, conditions, channels, channel groups. */
-  outline: {
-    normalizedUnit: string;
-    bands: { label: string; lowHz: number; highHz: number }[];
-    windows: { label: string; startS: number; endS: number }[];
-    conditions: string[];
-    channels: string[];
-    channelGroups: { label: string; channels: string[] }[];
-  } | null;
-  /** Band → window → condition → mean over channels of the normalized value (null: no value). */
-  digest: Record<string, Record<string, Record<string, number | null>>>;
-  signatures: { printedName: string; meaning: 'reviewed' | 'approved' | 'returned'; signedAt: string; recipeVersionNumber: number; contentHash: string; reason: string | null }[];
-}
-
-export interface CohortOverview {
-  sessions: CohortSessionRow[];
-  covariates: { names: string[]; bySubject: Record<string, Record<string, number>> };
-  subjects: string[];
-  design: { revision: number; cohort: CohortDesignT; updatedAt: string } | null;
-}
+export type { CohortOverview, CohortSessionRow } from '../../lib/cohort/overview';
 
 /** Everything the Cohort screen paints first, in four queries whatever the number of sessions. */
 export async function getCohortOverview(studyId: string): Promise<CohortOverview> {

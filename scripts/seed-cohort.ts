@@ -3,12 +3,12 @@
 // demo lead through the product's own path (recipe version, summary, submit, sign-off with the signed-content hash
 // and the audit chain). Idempotent: a subject that already has a session in the study is left alone.
 import { and, eq, sql } from 'drizzle-orm';
-import { db } from './client';
-import { analysisSessions, memberships, studies, teams, users } from './schema';
-import { createAnalysisSession } from './queries/analysis-sessions';
-import { applyStatusChange, saveRecipeVersion, uploadSummary } from './queries/review';
-import { DEMO_PEOPLE, DEMO_STUDIES, DEMO_TEAM } from './seed';
-import type { DemoSubjectSummary } from '../cli/demo-summaries';
+import { db } from '../src/db/client';
+import { analysisSessions, memberships, studies, teams, users } from '../src/db/schema';
+import { createAnalysisSession } from '../src/db/queries/analysis-sessions';
+import { applyStatusChange, saveRecipeVersion, uploadSummary } from '../src/db/queries/review';
+import { DEMO_PEOPLE, DEMO_STUDIES, DEMO_TEAM } from '../src/db/seed';
+import type { DemoSubjectSummary } from '../src/cli/demo-summaries';
 
 export async function seedDemoCohort(subjects: DemoSubjectSummary[]): Promise<{ created: number }> {
   const [team] = await db.select().from(teams).where(eq(teams.slug, DEMO_TEAM.slug)).limit(1);
@@ -22,7 +22,9 @@ export async function seedDemoCohort(subjects: DemoSubjectSummary[]): Promise<{ 
   let created = 0;
   for (const s of subjects) {
     if (existing.has(s.code)) continue;
-    const session = await createAnalysisSession(study.id, team.id, analyst.id, { subjectCode: s.code, fingerprint: s.fingerprint });
+    const made = await createAnalysisSession(study.id, team.id, analyst.id, { subjectCode: s.code, fingerprint: s.fingerprint });
+    if (!made.ok) continue; // a session for this subject and recording already exists
+    const session = made.session;
     const ctx = { session, study, team, role: 'analyst' as const };
     const saved = await saveRecipeVersion(ctx, analyst.id, null, s.recipe);
     if (!saved.ok) throw new Error(`demo cohort: ${s.code}: the recipe version was not saved (${saved.reason})`);
