@@ -112,6 +112,7 @@ describe('PostgreSQL stopped and started under the app', () => {
       for (let i = 0; i < perStream; i++) {
         const body = `restart stream ${run} ${s}/${i}`;
         const key = randomUUID();
+        const first = Date.now();
         for (let tries = 1; ; tries++) {
           let status: number;
           try {
@@ -126,7 +127,8 @@ describe('PostgreSQL stopped and started under the app', () => {
           }
           expect([503, -1], `post ${s}/${i} answered ${status}`).toContain(status);
           if (phase === 'down') refusedWhileDown++;
-          expect(tries, `post ${s}/${i} is still refused`).toBeLessThan(400);
+          // A bound in time, not in tries: on a loaded machine the restart and the pool's recovery take a while.
+          expect(Date.now() - first, `post ${s}/${i} still refused after ${tries} tries (last answer ${status}, database ${phase})`).toBeLessThan(75_000);
           await new Promise((r) => setTimeout(r, 50));
         }
       }
@@ -154,5 +156,5 @@ describe('PostgreSQL stopped and started under the app', () => {
     const { rows: audit } = await owner.query("SELECT count(*)::int AS n FROM audit_events WHERE action = 'note.create' AND detail->>'analysisSessionId' = $1", [sessionId]);
     expect(audit[0].n).toBe(streams * perStream);
     expect(app.child.exitCode).toBeNull();
-  }, 120_000);
+  }, 180_000);
 });
