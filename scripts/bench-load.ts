@@ -103,8 +103,8 @@ async function seedPeople(ownerUrl: string): Promise<{ teamId: string; studyId: 
   process.env.DATABASE_URL = ownerUrl;
   const { db, pool } = await import('../src/db/client');
   const { memberships, studies, teams, users } = await import('../src/db/schema');
-  const { hashPassword } = await import('../src/lib/server/password');
-  const { newUserId } = await import('../src/lib/server/auth');
+  const { hashPassword } = await import('../src/lib/crypto/password');
+  const { newUserId } = await import('../src/lib/crypto/ids');
   try {
     const passwordHash = await hashPassword(PASSWORD);
     const [team] = await db.insert(teams).values({ name: 'Tideline Load Bench', slug: 'tideline-load-bench' }).returning();
