@@ -1,13 +1,15 @@
 // Serves the built app (dist/ or TIDEMARK_OUT_DIR) over Node's http module. Used by `npm start`, `npm test` and
 // `npm run serve`. Before Astro sees a request this wrapper: resolves the client address (server/forwarded.mjs) and
 // hands it to the app in one header; strips forwarded headers a client sent itself; refuses a body whose declared
-// Content-Length is over the cap (413, before reading it). On SIGTERM/SIGINT it stops accepting, lets requests in
-// flight finish (up to 10 s) and exits.
+// Content-Length is over the cap (413, before reading it). It runs the mail outbox sender (server/mail-sender.mjs).
+// On SIGTERM/SIGINT it stops accepting and stops the sender (the message being sent finishes; queued mail stays in
+// the outbox for the next start), lets requests in flight finish (up to 10 s), closes the pool and exits.
 import http from 'node:http';
 import path from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { CLIENT_HEADER, FORWARDED_HEADERS, normalizeAddress, parseTrustedProxies, resolveClientAddress } from './forwarded.mjs';
 import { contentSecurityPolicy, FIXED_SECURITY_HEADERS } from '../src/lib/server/security-policy.mjs';
+import { startMailSender } from './mail-sender.mjs';
 
 const root = path.resolve(path.dirname(new URL(import.meta.url).pathname), '..');
 const outDir = path.resolve(root, process.env.TIDEMARK_OUT_DIR ?? 'dist');
@@ -66,6 +68,10 @@ server.listen(port, host, () => {
   process.stdout.write(`tidemark: Server listening on http://${host}:${port}\n`);
 });
 
+// Mail queued before this start (a stop, a crash) goes out now; routes wake the sender after they queue more.
+const mailSender = startMailSender();
+globalThis.__tidemarkWakeMailSender = () => mailSender.wake();
+
 let closing = false;
 function shutdown(signal) {
   if (closing) return;
@@ -73,7 +79,11 @@ function shutdown(signal) {
   process.stdout.write(`tidemark: ${signal}: finishing requests in flight, then stopping\n`);
   const force = setTimeout(() => process.exit(0), 10_000);
   force.unref();
+  const senderStopped = mailSender.stop().then((waiting) => {
+    process.stdout.write(`tidemark: mail outbox sender stopped${waiting === null ? '' : `; ${waiting} message(s) wait in the outbox for the next start`}\n`);
+  });
   server.close(async () => {
+    await senderStopped;
     // Then the database pool (src/db/client.ts registers how to close it), so PostgreSQL sees a clean goodbye.
     await globalThis.__closeTidemarkDatabasePool?.().catch(() => {});
     process.exit(0);

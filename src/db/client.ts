@@ -26,6 +26,8 @@ pool.on('error', (error) => {
 });
 export const db = drizzle(pool, { schema });
 export type Db = typeof db;
+/** A transaction handed to a `db.transaction` callback. */
+export type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
 // server/main.mjs closes the pool after the last request in flight on SIGTERM.
 (globalThis as { __closeTidemarkDatabasePool?: () => Promise<void> }).__closeTidemarkDatabasePool = () => pool.end();
 

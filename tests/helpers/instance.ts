@@ -58,7 +58,8 @@ export async function startInstance(
     output: () => out,
     stop: () =>
       new Promise((resolve) => {
-        if (child.exitCode !== null) return resolve();
+        // A child ended by a signal (a test's SIGKILL) has signalCode set and exitCode still null.
+        if (child.exitCode !== null || child.signalCode !== null) return resolve();
         child.once('exit', () => resolve());
         child.kill('SIGTERM');
       }),

@@ -1,11 +1,15 @@
-// `npm run db:backup` / `npm run db:restore`: a quiet scratch database (migrated, seeded, with audit rows) is backed
-// up, restored into a fresh one, and compared table by table: row counts and an md5 over every row's text equal.
+// `npm run db:backup` / `npm run db:restore`: a quiet scratch database (migrated, seeded, with a team's and the site's audit chains) is backed
+// up, restored into a fresh one, and compared table by table: row counts and an md5 over every row's text equal;
+// `npm run audit:verify` passes on the restored database.
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import pg from 'pg';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { drizzle } from 'drizzle-orm/node-postgres';
 import { runToEnd } from '../helpers/instance';
+import * as schema from '../../src/db/schema';
+import { recordAudit } from '../../src/db/queries/audit';
 
 const ownerUrl = process.env.TIDEMARK_OWNER_DATABASE_URL!;
 const names = { from: `tidemark_backup_from_${process.pid}`, into: `tidemark_backup_into_${process.pid}` };
@@ -26,6 +30,18 @@ beforeAll(async () => {
   }
   expect((await runToEnd('scripts/migrate.mjs', { ...base, TIDEMARK_OWNER_DATABASE_URL: urlOf(names.from) })).code).toBe(0);
   expect((await runToEnd('scripts/seed.ts', { ...base, DATABASE_URL: urlOf(names.from) })).code).toBe(0);
+  // Audit chains to carry across: a team's and the site's, written by the app's one audit writer.
+  const source = new pg.Pool({ connectionString: urlOf(names.from), max: 1 });
+  try {
+    const scratch = drizzle(source, { schema });
+    const { rows } = await source.query('SELECT t.id AS team, u.id AS actor FROM teams t, users u ORDER BY t.created_at, u.created_at LIMIT 1');
+    for (let n = 1; n <= 5; n++) {
+      await recordAudit(scratch, { actorId: rows[0].actor, action: 'backup.fixture', targetTable: 'teams', targetId: rows[0].team, teamId: rows[0].team, detail: { n } });
+      await recordAudit(scratch, { actorId: rows[0].actor, action: 'backup.fixture', targetTable: 'users', targetId: rows[0].actor, detail: { n } });
+    }
+  } finally {
+    await source.end();
+  }
 }, 60_000);
 afterAll(async () => {
   for (const db of Object.values(names)) await admin.query(`DROP DATABASE IF EXISTS ${db} WITH (FORCE)`);
@@ -63,6 +79,12 @@ describe('backup and restore', () => {
     expect(Object.keys(before)).toContain('"public"."users"');
     expect(before['"public"."users"'].rows).toBeGreaterThan(0);
     expect(await fingerprint(names.into)).toEqual(before);
+    // The restored audit chains verify with the app's own checker: every event of the source, hashes and links intact.
+    const events = before['"public"."audit_events"'].rows;
+    expect(events).toBeGreaterThan(0);
+    const verified = await runToEnd('scripts/audit-verify.ts', { ...base, DATABASE_URL: urlOf(names.into) });
+    expect(verified.output.trim()).toMatch(new RegExp(`^audit:verify: \\d+ chains? holds?, ${events} events checked, 0 written before the chain started \\(not checked\\)$`));
+    expect(verified.code).toBe(0);
 
     const again = await runToEnd('scripts/db-backup.mjs', { ...base, TIDEMARK_OWNER_DATABASE_URL: urlOf(names.into) }, ['restore', file]);
     expect(again.code).toBe(2);

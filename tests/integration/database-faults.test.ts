@@ -1,6 +1,8 @@
 // The app against a PostgreSQL cluster of its own that the test stops and starts (a real server restart, not a
 // simulated socket error): API routes answer 503 with Retry-After, pages say the local work is safe, the process
-// never exits, and it recovers by itself. Acknowledged writes made around a restart are stored exactly once.
+// never exits, and it recovers by itself. Acknowledged writes made around a restart are stored exactly once: new
+// analysis sessions, and a stream of note posts whose client resends a refused post with the same clientKey.
+import { randomUUID } from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import pg from 'pg';
 import { Client } from '../helpers/app';
@@ -91,4 +93,68 @@ describe('PostgreSQL stopped and started under the app', () => {
     expect(rows.every((r) => r.n === 1)).toBe(true);
     expect(app.child.exitCode).toBeNull();
   }, 90_000);
+  it('stores every note post exactly once when PostgreSQL restarts under four streams of posts that resend on refusal', async () => {
+    const { client, studyId } = await signedInAnalyst();
+    const made = await client.request(`/api/studies/${studyId}/analysis-sessions`, { method: 'POST', json: { subjectCode: `NOTE-${slot}-${Date.now().toString(36)}` } });
+    expect(made.status).toBe(201);
+    const sessionId = (await made.json()).analysisSession.id;
+    const run = randomUUID().slice(0, 8);
+    const streams = 4;
+    const perStream = 10;
+    const acknowledged = new Map<string, string>();
+    const answers: number[] = [];
+    let phase: 'before' | 'down' | 'after' = 'before';
+    let refusedWhileDown = 0;
+
+    // Each stream posts its notes one after another; a refused post (503, or a connection that failed) is sent again
+    // with the same clientKey after a short wait, as the workspace's outbound queue does, until it is stored.
+    const stream = async (s: number) => {
+      for (let i = 0; i < perStream; i++) {
+        const body = `restart stream ${run} ${s}/${i}`;
+        const key = randomUUID();
+        const first = Date.now();
+        for (let tries = 1; ; tries++) {
+          let status: number;
+          try {
+            status = (await client.request(`/api/analysis-sessions/${sessionId}/notes`, { method: 'POST', json: { body, clientKey: key } })).status;
+          } catch {
+            status = -1;
+          }
+          answers.push(status);
+          if (status === 201 || status === 200) {
+            acknowledged.set(body, key);
+            break;
+          }
+          expect([503, -1], `post ${s}/${i} answered ${status}`).toContain(status);
+          if (phase === 'down') refusedWhileDown++;
+          // A bound in time, not in tries: on a loaded machine the restart and the pool's recovery take a while.
+          expect(Date.now() - first, `post ${s}/${i} still refused after ${tries} tries (last answer ${status}, database ${phase})`).toBeLessThan(75_000);
+          await new Promise((r) => setTimeout(r, 50));
+        }
+      }
+    };
+    // The restart: once a quarter of the posts are stored, stop PostgreSQL with posts in flight; start it again after
+    // the streams have met the stopped database a few times.
+    const restart = (async () => {
+      while (acknowledged.size < (streams * perStream) / 4) await new Promise((r) => setTimeout(r, 20));
+      cluster.stop();
+      phase = 'down';
+      while (refusedWhileDown < 8) await new Promise((r) => setTimeout(r, 20));
+      cluster = await start();
+      phase = 'after';
+    })();
+    await Promise.all([restart, ...Array.from({ length: streams }, (_, s) => stream(s))]);
+
+    expect(phase).toBe('after');
+    expect(answers.filter((a) => a === 503).length).toBeGreaterThanOrEqual(8);
+    expect(acknowledged.size).toBe(streams * perStream);
+    const { rows } = await owner.query('SELECT body, client_key FROM notes WHERE analysis_session_id = $1 AND body LIKE $2', [sessionId, `restart stream ${run} %`]);
+    expect(rows.length).toBe(streams * perStream);
+    expect(new Set(rows.map((r) => r.body)).size).toBe(rows.length);
+    for (const row of rows) expect(row.client_key).toBe(acknowledged.get(row.body));
+    // One audit event per note too: a resent post that was already stored answers 200 and writes nothing more.
+    const { rows: audit } = await owner.query("SELECT count(*)::int AS n FROM audit_events WHERE action = 'note.create' AND detail->>'analysisSessionId' = $1", [sessionId]);
+    expect(audit[0].n).toBe(streams * perStream);
+    expect(app.child.exitCode).toBeNull();
+  }, 180_000);
 });

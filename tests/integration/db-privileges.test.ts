@@ -38,17 +38,39 @@ describe('the app connects as a least-privilege role', () => {
   });
 
   it('may INSERT and SELECT audit events but never UPDATE, DELETE or TRUNCATE them', async () => {
-    const marker = `privilege-check-${Date.now()}`;
-    const inserted = await app.query(
-      "INSERT INTO audit_events (actor_id, action, target_table, target_id) VALUES (NULL, 'test.privileges', 'audit_events', $1) RETURNING id",
-      [marker],
-    );
-    const id = inserted.rows[0].id;
-    expect((await app.query('SELECT target_id FROM audit_events WHERE id = $1', [id])).rows).toEqual([{ target_id: marker }]);
-    expect(await sqlState("UPDATE audit_events SET action = 'test.rewritten' WHERE id = $1", [id])).toBe('42501');
-    expect(await sqlState('DELETE FROM audit_events WHERE id = $1', [id])).toBe('42501');
-    expect(await sqlState('TRUNCATE audit_events')).toBe('42501');
-    expect((await app.query('SELECT action FROM audit_events WHERE id = $1', [id])).rows).toEqual([{ action: 'test.privileges' }]);
+    // Inside a transaction that is rolled back: the probe row proves the INSERT right and then vanishes, so the test
+    // database's site chain stays whole (every real audit write goes through recordAudit; `audit:verify` checks it).
+    const client = await app.connect();
+    const refused = async (statement: string, params: unknown[] = []) => {
+      await client.query('SAVEPOINT probe');
+      try {
+        await client.query(statement, params);
+        return null;
+      } catch (error) {
+        return (error as { code?: string }).code ?? 'unknown';
+      } finally {
+        await client.query('ROLLBACK TO SAVEPOINT probe');
+      }
+    };
+    try {
+      await client.query('BEGIN');
+      const marker = `privilege-check-${Date.now()}`;
+      const inserted = await client.query(
+        "INSERT INTO audit_events (actor_id, action, target_table, target_id) VALUES (NULL, 'test.privileges', 'audit_events', $1) RETURNING id",
+        [marker],
+      );
+      const id = inserted.rows[0].id;
+      expect((await client.query('SELECT target_id FROM audit_events WHERE id = $1', [id])).rows).toEqual([{ target_id: marker }]);
+      expect(await refused("UPDATE audit_events SET action = 'test.rewritten' WHERE id = $1", [id])).toBe('42501');
+      expect(await refused('DELETE FROM audit_events WHERE id = $1', [id])).toBe('42501');
+      expect(await refused('TRUNCATE audit_events')).toBe('42501');
+      expect((await client.query('SELECT action FROM audit_events WHERE id = $1', [id])).rows).toEqual([{ action: 'test.privileges' }]);
+      await client.query('ROLLBACK');
+      expect((await app.query('SELECT count(*)::int AS n FROM audit_events WHERE target_id = $1', [marker])).rows[0].n).toBe(0);
+    } finally {
+      await client.query('ROLLBACK').catch(() => {});
+      client.release();
+    }
   });
 });
 

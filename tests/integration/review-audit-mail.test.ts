@@ -227,6 +227,11 @@ describe('tamper-evident audit', () => {
     }
     expect((await auditVerify()).code).toBe(0);
   });
+
+  it('holds on the whole test database, the site chain included: every test writes audit rows through recordAudit', async () => {
+    const whole = await run('npm', ['run', '--silent', 'audit:verify'], { env: process.env }).catch((e: { code: number; stdout: string; stderr: string }) => ({ stdout: `exit ${e.code}: ${e.stdout}${e.stderr}` }));
+    expect(whole.stdout).toMatch(/^audit:verify: \d+ chains? holds?, \d+ events checked/);
+  });
 });
 
 describe('the study page', () => {

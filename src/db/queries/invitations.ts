@@ -10,16 +10,24 @@ import { recordAudit } from './audit';
 
 export const INVITATION_LIFETIME_DAYS = 7;
 
-/** Creates an invitation and returns the token to mail (only its hash is stored). */
+type Tx = Parameters<Parameters<typeof db.transaction>[0]>[0];
+
+/**
+ * Creates an invitation and returns the token to mail (only its hash is stored). `mail` queues the invitation's
+ * message in the same transaction (src/lib/server/mail.ts): both are stored, or neither.
+ */
 export async function createInvitation(
   teamId: string,
   invitedBy: string,
   input: { email: string; role: Role },
+  mail?: (tx: Tx, token: string) => Promise<void>,
 ): Promise<{ invitation: Invitation; token: string }> {
-  return db.transaction((tx) => insertInvitation(tx, teamId, invitedBy, input));
+  return db.transaction(async (tx) => {
+    const made = await insertInvitation(tx, teamId, invitedBy, input);
+    await mail?.(tx, made.token);
+    return made;
+  });
 }
-
-type Tx = Parameters<Parameters<typeof db.transaction>[0]>[0];
 
 /** The invitation and its audit event inside the caller's transaction (a lead's invite, or a new team's first lead). */
 export async function insertInvitation(

@@ -7,13 +7,15 @@ import { recordAudit } from './audit';
 
 export const RESET_LIFETIME_MINUTES = 60;
 
-export async function createPasswordReset(userId: string): Promise<string> {
+export async function createPasswordReset(userId: string, mail?: (tx: Parameters<Parameters<typeof db.transaction>[0]>[0], token: string) => Promise<void>): Promise<string> {
   const { token, tokenHash } = newToken();
   await db.transaction(async (tx) => {
     // One live reset link per person: asking again invalidates the previous one.
     await tx.delete(passwordResetTokens).where(eq(passwordResetTokens.userId, userId));
     await tx.insert(passwordResetTokens).values({ tokenHash, userId, expiresAt: new Date(Date.now() + RESET_LIFETIME_MINUTES * 60_000) });
     await recordAudit(tx, { actorId: userId, action: 'password.resetRequested', targetTable: 'users', targetId: userId });
+    // The link's message is queued with the token it carries (src/lib/server/mail.ts).
+    await mail?.(tx, token);
   });
   return token;
 }

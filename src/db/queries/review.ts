@@ -33,6 +33,12 @@ import { isUuid } from './teams';
 
 type Tx = Parameters<Parameters<typeof db.transaction>[0]>[0];
 
+/**
+ * Work a route adds to a change's own transaction (queueing the mail the change causes, src/lib/server/review-mail.ts),
+ * run only when the change is made: it commits, or rolls back, with it.
+ */
+export type InTransaction<T> = (tx: Tx, made: T) => Promise<void>;
+
 export interface SessionWithRole {
   session: AnalysisSession;
   study: Study;
@@ -214,6 +220,7 @@ export async function applyStatusChange(
   change: keyof typeof transitions,
   recipeVersion: number,
   reason: string | null,
+  then?: InTransaction<AnalysisSession>,
 ): Promise<StatusResult> {
   return db.transaction(async (tx) => {
     const session = await lockSession(tx, ctx.session.id);
@@ -245,6 +252,7 @@ export async function applyStatusChange(
         actorId: signer.id, action: `analysisSession.${change}`, targetTable: 'analysis_sessions', targetId: session.id, teamId: ctx.team.id,
         detail: { studyId: ctx.study.id, subjectCode: session.subjectCode, from: session.status, to: rule.to, recipeVersion, ...(reason ? { reason } : {}) },
       });
+      await then?.(tx, updated);
     }
     return { ok: true, session: updated, signature };
   });
@@ -292,6 +300,7 @@ export async function createNote(
   ctx: SessionWithRole,
   authorId: string,
   input: { body: string; recipeVersionId: string | null; anchor: NoteAnchorT | null; mentions: string[]; parentId: string | null; clientKey?: string },
+  then?: InTransaction<Note>,
 ): Promise<CreateNoteResult> {
   return db.transaction(async (tx) => {
     const [note] = await tx
@@ -308,6 +317,7 @@ export async function createNote(
       actorId: authorId, action: input.parentId ? 'note.reply' : 'note.create', targetTable: 'notes', targetId: note.id, teamId: ctx.team.id,
       detail: { analysisSessionId: ctx.session.id, studyId: ctx.study.id, subjectCode: ctx.session.subjectCode, ...(input.parentId ? { parentId: input.parentId } : {}), mentions: input.mentions },
     });
+    await then?.(tx, note);
     return { ok: true, note, replayed: false };
   });
 }
@@ -315,7 +325,7 @@ export async function createNote(
 export type NoteChangeResult = { ok: true; note: Note } | { ok: false; current: Note };
 
 /** Edits a note when `revision` is still its revision; else returns the current note (409). */
-export async function editNote(ctx: NoteWithRole, actorId: string, revision: number, body: string, mentions: string[]): Promise<NoteChangeResult> {
+export async function editNote(ctx: NoteWithRole, actorId: string, revision: number, body: string, mentions: string[], then?: InTransaction<Note>): Promise<NoteChangeResult> {
   return db.transaction(async (tx) => {
     const [updated] = await tx
       .update(notes)
@@ -330,6 +340,7 @@ export async function editNote(ctx: NoteWithRole, actorId: string, revision: num
       actorId, action: 'note.edit', targetTable: 'notes', targetId: updated.id, teamId: ctx.team.id,
       detail: { analysisSessionId: ctx.session.id, studyId: ctx.study.id, revision: updated.revision },
     });
+    await then?.(tx, updated);
     return { ok: true, note: updated };
   });
 }
@@ -361,18 +372,18 @@ export async function listMentionableMembers(teamId: string) {
     .orderBy(asc(users.displayName));
 }
 
-/** The addresses of `userIds` who have not muted `kind` (and whose accounts are not suspended). */
-export async function mailRecipients(userIds: string[], kind: MailKind) {
+/** The addresses of `userIds` who have not muted `kind` (and whose accounts are not suspended), read in `tx`. */
+export async function mailRecipients(tx: Tx, userIds: string[], kind: MailKind) {
   if (userIds.length === 0) return [];
-  return db
+  return tx
     .select({ id: users.id, email: users.email, displayName: users.displayName })
     .from(users)
     .leftJoin(mailMutes, and(eq(mailMutes.userId, users.id), eq(mailMutes.kind, kind)))
     .where(and(inArray(users.id, userIds), isNull(mailMutes.userId), isNull(users.disabledAt)));
 }
 
-export async function teamLeadIds(teamId: string): Promise<string[]> {
-  const rows = await db.select({ id: memberships.userId }).from(memberships).where(and(eq(memberships.teamId, teamId), eq(memberships.role, 'lead')));
+export async function teamLeadIds(tx: Tx, teamId: string): Promise<string[]> {
+  const rows = await tx.select({ id: memberships.userId }).from(memberships).where(and(eq(memberships.teamId, teamId), eq(memberships.role, 'lead')));
   return rows.map((r) => r.id);
 }
 

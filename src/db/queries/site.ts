@@ -191,11 +191,12 @@ export function slugOf(name: string): string {
 
 /**
  * Creates a team and invites its first lead, in one transaction with both audit events. The invitation is the
- * same kind a lead sends from the Members page (only its hash stored); the caller mails the returned token.
+ * same kind a lead sends from the Members page (only its hash stored); `mail` queues its message in the same transaction.
  */
 export async function createTeamWithLead(
   actorId: string,
   input: { name: string; leadEmail: string },
+  mail?: (tx: Tx, team: Team, token: string) => Promise<void>,
 ): Promise<{ ok: true; team: Team; token: string } | { ok: false; problem: string }> {
   return db.transaction(async (tx: Tx) => {
     const [sameName] = await tx.select({ id: teams.id }).from(teams).where(sql`lower(${teams.name}) = lower(${input.name})`).limit(1);
@@ -209,6 +210,7 @@ export async function createTeamWithLead(
     const [team] = await tx.insert(teams).values({ name: input.name, slug }).returning();
     await recordAudit(tx, { actorId, action: 'site.createTeam', targetTable: 'teams', targetId: team.id, teamId: team.id, detail: { name: team.name, slug } });
     const { token } = await insertInvitation(tx, team.id, actorId, { email: input.leadEmail, role: 'lead' });
+    await mail?.(tx, team, token);
     return { ok: true as const, team, token };
   });
 }

@@ -1,4 +1,5 @@
-import { bigserial, index, jsonb, pgTable, text, timestamp, uuid } from 'drizzle-orm/pg-core';
+import { sql } from 'drizzle-orm';
+import { bigserial, index, integer, jsonb, pgTable, text, timestamp, uuid } from 'drizzle-orm/pg-core';
 import { users } from './auth';
 
 /** What the local mail fake captured, listed by the dev mailbox page. */
@@ -12,6 +13,39 @@ export const mailMessages = pgTable('mail_messages', {
   receivedAt: timestamp('received_at', { withTimezone: true }).notNull().defaultNow(),
 });
 export type MailMessage = typeof mailMessages.$inferSelect;
+
+/**
+ * Mail waiting to be sent, and what became of it. A route writes the message here in the same transaction as the
+ * change that causes it (src/lib/server/mail.ts, queueMail); the outbox sender (server/mail-sender.mjs) delivers it
+ * with retries and marks it sent. The bodies are cleared once the relay has accepted the message (they may carry an
+ * invitation or reset link); kind, recipient, subject and times stay as the record of what was sent.
+ */
+export const mailOutbox = pgTable(
+  'mail_outbox',
+  {
+    id: bigserial('id', { mode: 'number' }).primaryKey(),
+    /** invitation, team-invitation, password-reset, review-requested, review-outcome, note-mention. */
+    kind: text('kind').notNull(),
+    toAddress: text('to_address').notNull(),
+    recipientId: text('recipient_id').references(() => users.id, { onDelete: 'set null' }),
+    subject: text('subject').notNull(),
+    textBody: text('text_body'),
+    htmlBody: text('html_body'),
+    /** The Message-ID header every attempt carries, so a receiver can recognise a repeat after a crash mid-send. */
+    messageId: text('message_id').notNull().unique(),
+    queuedAt: timestamp('queued_at', { withTimezone: true }).notNull().defaultNow(),
+    attempts: integer('attempts').notNull().default(0),
+    nextAttemptAt: timestamp('next_attempt_at', { withTimezone: true }).notNull().defaultNow(),
+    /** Set while a sender holds the message; another sender takes it only after this time (a sender that died). */
+    claimedUntil: timestamp('claimed_until', { withTimezone: true }),
+    lastError: text('last_error'),
+    sentAt: timestamp('sent_at', { withTimezone: true }),
+    /** The relay refused the message for good (an SMTP 5xx answer): not retried. */
+    failedAt: timestamp('failed_at', { withTimezone: true }),
+  },
+  (t) => [index('mail_outbox_due_idx').on(t.nextAttemptAt).where(sql`sent_at IS NULL AND failed_at IS NULL`)],
+);
+export type MailOutboxRow = typeof mailOutbox.$inferSelect;
 
 /**
  * Who did what, when, to which row. Append-only (the app's role may only SELECT and INSERT). Each event holds the

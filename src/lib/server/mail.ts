@@ -1,27 +1,53 @@
-import nodemailer from 'nodemailer';
-
-const host = process.env.SMTP_HOST ?? '127.0.0.1';
-const port = Number(process.env.SMTP_PORT ?? 2525);
-const from = process.env.MAIL_FROM ?? 'Tidemark <no-reply@tidemark.invalid>';
-
-// A deployment names its relay in TIDEMARK_SMTP_URL (smtp:// or smtps://, checked by `npm run serve`); the local demo
-// talks to the mail fake on loopback.
-const transport = process.env.TIDEMARK_SMTP_URL
-  ? nodemailer.createTransport(process.env.TIDEMARK_SMTP_URL)
-  : nodemailer.createTransport({ host, port, secure: false, ignoreTLS: true });
+/**
+ * Mail leaves through the outbox (issue 17): a route writes each message into `mail_outbox` in the same transaction
+ * as the change that causes it, so the message exists exactly when the change does, and a crash or a stop never loses
+ * it. The outbox sender in the server process (server/mail-sender.mjs) delivers it, retries with a growing wait while
+ * the relay cannot be reached, and marks it sent. Nothing here talks SMTP.
+ */
+import { randomUUID } from 'node:crypto';
+import type { Db, Tx } from '../../db/client';
+import { mailOutbox } from '../../db/schema';
 
 /** true when mail goes to the local fake (the dev mailbox page is shown only then). */
 export function mailFakeActive(): boolean {
   return import.meta.env.TIDEMARK_DEMO === true && process.env.TIDEMARK_MAIL_FAKE === '1';
 }
 
-/** Sends one message: a plain-text part, and an HTML alternative when `html` is given. */
-export async function sendMail(to: string, subject: string, text: string, html?: string): Promise<void> {
-  // base64 keeps long links intact for anyone reading the raw message.
-  await transport.sendMail({ from, to, subject, text, ...(html ? { html } : {}), textEncoding: 'base64' });
-}
-
 /** The public origin used in mailed links: TIDEMARK_ORIGIN when set, else the origin of the request. */
 export function publicOrigin(url: URL): string {
   return process.env.TIDEMARK_ORIGIN ?? url.origin;
+}
+
+export type OutboxKind = 'invitation' | 'team-invitation' | 'password-reset' | 'review-requested' | 'review-outcome' | 'note-mention';
+
+export interface OutgoingMail {
+  kind: OutboxKind;
+  to: string;
+  /** The account the message is for, when there is one (null for an invitation to a new address). */
+  recipientId?: string | null;
+  subject: string;
+  /** The plain-text part; `html` adds an HTML alternative. */
+  text: string;
+  html?: string;
+}
+
+/**
+ * Queues one message in the caller's transaction (it is stored, or not, with the change that causes it). Call
+ * `wakeMailSender()` after the transaction commits so it goes out at once rather than at the sender's next look.
+ */
+export async function queueMail(tx: Tx | Db, mail: OutgoingMail): Promise<void> {
+  await tx.insert(mailOutbox).values({
+    kind: mail.kind,
+    toAddress: mail.to,
+    recipientId: mail.recipientId ?? null,
+    subject: mail.subject,
+    textBody: mail.text,
+    htmlBody: mail.html ?? null,
+    messageId: `<${randomUUID()}@outbox.tidemark.invalid>`,
+  });
+}
+
+/** Tells the outbox sender of this process (when it runs one) that new mail is waiting. */
+export function wakeMailSender(): void {
+  (globalThis as { __tidemarkWakeMailSender?: () => void }).__tidemarkWakeMailSender?.();
 }

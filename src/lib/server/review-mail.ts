@@ -2,11 +2,14 @@
  * Review e-mail (issue 11): review requested (to the team's leads), returned or signed off (to the session's owner),
  * mentioned in a note (to each person mentioned). Plain text and an HTML alternative, each with a link to the exact
  * place on the study page (`#session-<id>`, `#note-<id>`). Each person can mute each kind (/account/notifications).
- * Mail is sent after the change has committed; a mail failure is logged and never undoes or fails the change.
+ * Each message is queued in the outbox inside the transaction of the change that causes it (src/lib/server/mail.ts):
+ * recipients and mutes are read in that transaction, and the outbox sender delivers after the commit. A relay that
+ * cannot be reached delays the mail; it never undoes or fails the change.
  */
+import type { Tx } from '../../db/client';
 import { mailRecipients, teamLeadIds } from '../../db/queries/review';
 import type { MailKind } from '../schemas/review';
-import { publicOrigin, sendMail } from './mail';
+import { publicOrigin, queueMail } from './mail';
 
 export function escapeHtml(text: string): string {
   return text.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
@@ -23,8 +26,8 @@ interface Letter {
   linkWords: string;
 }
 
-async function deliver(kind: MailKind, userIds: string[], letter: Letter, exceptUserId: string): Promise<void> {
-  const people = await mailRecipients(userIds.filter((id) => id !== exceptUserId), kind);
+async function deliver(tx: Tx, kind: MailKind, userIds: string[], letter: Letter, exceptUserId: string): Promise<void> {
+  const people = await mailRecipients(tx, userIds.filter((id) => id !== exceptUserId), kind);
   const footer = 'You get this because of your role in a Tidemark team. Mute this kind of message on your account\'s notifications page. Tidemark is a research tool, not a medical device.';
   for (const person of people) {
     const text = [`Hello ${person.displayName},`, '', ...letter.lines, '', `${letter.linkWords}: ${letter.link}`, '', footer].join('\n');
@@ -34,11 +37,7 @@ async function deliver(kind: MailKind, userIds: string[], letter: Letter, except
       `<p><a href="${escapeHtml(letter.link)}">${escapeHtml(letter.linkWords)}</a></p>`,
       `<p style="color:#566">${escapeHtml(footer)}</p>`,
     ].join('\n');
-    try {
-      await sendMail(person.email, letter.subject, text, html);
-    } catch (error) {
-      console.error(`[tidemark] mail (${kind}) to user ${person.id} failed:`, error);
-    }
+    await queueMail(tx, { kind, to: person.email, recipientId: person.id, subject: letter.subject, text, html });
   }
 }
 
@@ -49,8 +48,8 @@ export interface ReviewPlace {
   session: { id: string; subjectCode: string; ownerId: string };
 }
 
-export async function mailReviewRequested(p: ReviewPlace, actor: { id: string; displayName: string }, recipeVersion: number) {
-  await deliver('review-requested', await teamLeadIds(p.team.id), {
+export async function mailReviewRequested(tx: Tx, p: ReviewPlace, actor: { id: string; displayName: string }, recipeVersion: number) {
+  await deliver(tx, 'review-requested', await teamLeadIds(tx, p.team.id), {
     subject: `Review requested: ${p.session.subjectCode} in ${p.study.name}`,
     lines: [`${actor.displayName} asks for a review of subject ${p.session.subjectCode}, recipe version ${recipeVersion}, in the study "${p.study.name}" (${p.team.name}).`],
     link: studyLink(p.url, p.team.id, p.study.id, `session-${p.session.id}`),
@@ -58,8 +57,8 @@ export async function mailReviewRequested(p: ReviewPlace, actor: { id: string; d
   }, actor.id);
 }
 
-export async function mailReviewOutcome(p: ReviewPlace, actor: { id: string; displayName: string }, outcome: 'returned' | 'signed off', recipeVersion: number, reason: string | null) {
-  await deliver('review-outcome', [p.session.ownerId], {
+export async function mailReviewOutcome(tx: Tx, p: ReviewPlace, actor: { id: string; displayName: string }, outcome: 'returned' | 'signed off', recipeVersion: number, reason: string | null) {
+  await deliver(tx, 'review-outcome', [p.session.ownerId], {
     subject: outcome === 'returned' ? `Returned: ${p.session.subjectCode} in ${p.study.name}` : `Signed off: ${p.session.subjectCode} in ${p.study.name}`,
     lines: [
       `${actor.displayName} ${outcome === 'returned' ? 'returned' : 'signed off'} subject ${p.session.subjectCode}, recipe version ${recipeVersion}, in the study "${p.study.name}".`,
@@ -70,9 +69,10 @@ export async function mailReviewOutcome(p: ReviewPlace, actor: { id: string; dis
   }, actor.id);
 }
 
-export async function mailMentioned(p: ReviewPlace, actor: { id: string; displayName: string }, noteId: string, body: string, mentioned: string[]) {
+export async function mailMentioned(tx: Tx, p: ReviewPlace, actor: { id: string; displayName: string }, noteId: string, body: string, mentioned: string[]) {
   const excerpt = body.length > 300 ? `${body.slice(0, 300)}…` : body;
-  await deliver('note-mention', mentioned, {
+  if (mentioned.length === 0) return;
+  await deliver(tx, 'note-mention', mentioned, {
     subject: `${actor.displayName} mentioned you: ${p.session.subjectCode} in ${p.study.name}`,
     lines: [`${actor.displayName} mentioned you in a note on subject ${p.session.subjectCode} in the study "${p.study.name}":`, `“${excerpt}”`],
     link: studyLink(p.url, p.team.id, p.study.id, `note-${noteId}`),

@@ -6,6 +6,7 @@ import { checkMentions, loadNote, noteJson } from '../../../lib/server/review-ap
 import { editNote } from '../../../db/queries/review';
 import { NOTE_CAPS, NoteEditInput } from '../../../lib/schemas/review';
 import { mailMentioned } from '../../../lib/server/review-mail';
+import { wakeMailSender } from '../../../lib/server/mail';
 
 export const GET: APIRoute = (ctx) =>
   route(ctx, async () => {
@@ -21,11 +22,12 @@ export const PATCH: APIRoute = (ctx) =>
     if (found.note.authorId !== found.user.id) throw new HttpError(403, 'forbidden', 'Only the author may edit a note; reply to it instead.');
     const input = await parseJson(request, NoteEditInput, { maxBytes: NOTE_CAPS.bodyBytes });
     const mentions = await checkMentions(found.team.id, input.mentions);
-    const result = await editNote(found, found.user.id, input.revision, input.body, mentions);
+    const added = mentions.filter((m) => !found.note.mentions.includes(m));
+    const place = { url, team: found.team, study: found.study, session: found.session };
+    const result = await editNote(found, found.user.id, input.revision, input.body, mentions, (tx, note) => mailMentioned(tx, place, found.user, note.id, note.body, added));
     if (!result.ok) {
       return json({ error: { code: 'stale_note', message: `The note changed since revision ${input.revision} (it is at revision ${result.current.revision}). Nothing was saved: merge your text into the current note or reload it.` }, current: noteJson(result.current) }, 409);
     }
-    const added = mentions.filter((m) => !found.note.mentions.includes(m));
-    await mailMentioned({ url, team: found.team, study: found.study, session: found.session }, found.user, result.note.id, result.note.body, added);
+    if (added.length) wakeMailSender();
     return json({ note: noteJson(result.note) });
   });

@@ -7,6 +7,7 @@ import { checkMentions, loadSession, noteJson } from '../../../../lib/server/rev
 import { createNote, getRecipeVersion, listNotes } from '../../../../db/queries/review';
 import { NOTE_CAPS, NoteInput } from '../../../../lib/schemas/review';
 import { mailMentioned } from '../../../../lib/server/review-mail';
+import { wakeMailSender } from '../../../../lib/server/mail';
 
 export const GET: APIRoute = (ctx) =>
   route(ctx, async () => {
@@ -28,11 +29,14 @@ export const POST: APIRoute = (ctx) =>
       recipeVersionId = version.id;
     }
     const mentions = await checkMentions(found.team.id, input.mentions);
-    const result = await createNote(found, found.user.id, { body: input.body, recipeVersionId, anchor: input.anchor, mentions, parentId: null, clientKey: input.clientKey });
+    const place = { url, team: found.team, study: found.study, session: found.session };
+    // The mention mail is queued in the note's own transaction: stored with the note, or not at all.
+    const result = await createNote(found, found.user.id, { body: input.body, recipeVersionId, anchor: input.anchor, mentions, parentId: null, clientKey: input.clientKey },
+      (tx, note) => mailMentioned(tx, place, found.user, note.id, note.body, mentions));
     if (!result.ok) throw new HttpError(409, 'client_key_reused', 'clientKey: you used this key for another post. Nothing was stored.');
     const body = { note: noteJson(result.note, { authorName: found.user.displayName, recipeVersion: input.recipeVersion }) };
     // A post sent again (same clientKey) answers 200 with the stored note; it was audited and mailed the first time.
     if (result.replayed) return json(body, 200);
-    await mailMentioned({ url, team: found.team, study: found.study, session: found.session }, found.user, result.note.id, result.note.body, mentions);
+    if (mentions.length) wakeMailSender();
     return json(body, 201);
   });

@@ -10,6 +10,7 @@ import { applyStatusChange, transitions } from '../../../../db/queries/review';
 import { StatusChangeInput } from '../../../../lib/schemas/review';
 import { confirmSigner } from '../../../../lib/server/signing';
 import { mailReviewOutcome, mailReviewRequested, type ReviewPlace } from '../../../../lib/server/review-mail';
+import { wakeMailSender } from '../../../../lib/server/mail';
 
 const actionOf = { submit: 'analysisSession:submit', return: 'analysisSession:return', signOff: 'analysisSession:signOff' } as const;
 
@@ -30,13 +31,17 @@ export const POST: APIRoute = (ctx) =>
     const signer = input.change === 'submit'
       ? { id: found.user.id, displayName: found.user.displayName }
       : await confirmSigner(found, found.user.id, input.password, input.change === 'return' ? 'returned' : 'approved');
-    const result = await applyStatusChange(found, signer, input.change, input.recipeVersion, input.change === 'return' ? input.reason : null);
+    const place: ReviewPlace = { url, team: found.team, study: found.study, session: found.session };
+    const reason = input.change === 'return' ? input.reason : null;
+    // The mail is queued in the status change's own transaction.
+    const result = await applyStatusChange(found, signer, input.change, input.recipeVersion, reason, (tx) =>
+      input.change === 'submit'
+        ? mailReviewRequested(tx, place, signer, input.recipeVersion)
+        : mailReviewOutcome(tx, place, signer, input.change === 'return' ? 'returned' : 'signed off', input.recipeVersion, reason));
     if (!result.ok && result.code === 'stale_version') {
       return json({ error: { code: 'stale_version', message: `Recipe version ${input.recipeVersion} is not the current one (it is ${result.currentVersion ?? 'none'}). Nothing was changed.` }, currentVersion: result.currentVersion }, 409);
     }
     if (!result.ok) throw new HttpError(409, 'out_of_order', `The session is "${result.status}"; "${input.change}" does not apply to it now.`);
-    const place: ReviewPlace = { url, team: found.team, study: found.study, session: found.session };
-    if (input.change === 'submit') await mailReviewRequested(place, signer, input.recipeVersion);
-    else await mailReviewOutcome(place, signer, input.change === 'return' ? 'returned' : 'signed off', input.recipeVersion, input.change === 'return' ? input.reason : null);
+    wakeMailSender();
     return json({ status: result.session.status, returnReason: result.session.returnReason, signature: result.signature ? signatureJson(result.signature) : null });
   });

@@ -6,6 +6,7 @@ import { checkMentions, loadNote, noteJson } from '../../../../lib/server/review
 import { createNote } from '../../../../db/queries/review';
 import { NOTE_CAPS, NoteReplyInput } from '../../../../lib/schemas/review';
 import { mailMentioned } from '../../../../lib/server/review-mail';
+import { wakeMailSender } from '../../../../lib/server/mail';
 
 export const POST: APIRoute = (ctx) =>
   route(ctx, async ({ request, url }) => {
@@ -14,10 +15,12 @@ export const POST: APIRoute = (ctx) =>
     const input = await parseJson(request, NoteReplyInput, { maxBytes: NOTE_CAPS.bodyBytes });
     const mentions = await checkMentions(found.team.id, input.mentions);
     const parentId = found.note.parentId ?? found.note.id;
-    const result = await createNote(found, found.user.id, { body: input.body, recipeVersionId: null, anchor: null, mentions, parentId, clientKey: input.clientKey });
+    const place = { url, team: found.team, study: found.study, session: found.session };
+    const result = await createNote(found, found.user.id, { body: input.body, recipeVersionId: null, anchor: null, mentions, parentId, clientKey: input.clientKey },
+      (tx, note) => mailMentioned(tx, place, found.user, note.id, note.body, mentions));
     if (!result.ok) throw new HttpError(409, 'client_key_reused', 'clientKey: you used this key for another post. Nothing was stored.');
     const body = { note: noteJson(result.note, { authorName: found.user.displayName }) };
     if (result.replayed) return json(body, 200);
-    await mailMentioned({ url, team: found.team, study: found.study, session: found.session }, found.user, result.note.id, result.note.body, mentions);
+    if (mentions.length) wakeMailSender();
     return json(body, 201);
   });
