@@ -51,6 +51,7 @@ export async function openRecordingFile(file: Blob, kind: RecordingKind, onProgr
       if (readingDone) onProgress('fingerprint', fraction);
     }),
   );
+  hashing.catch(() => undefined); // a failure is read below, once the decoding is done
   const result = await remote.openEdf(
     file,
     reading,
@@ -63,7 +64,6 @@ export async function openRecordingFile(file: Blob, kind: RecordingKind, onProgr
   readingDone = true;
   if (!result.ok) {
     // Nothing to fingerprint: stop the hashing worker rather than let it read the whole file for nothing.
-    hashing.catch(() => undefined);
     hasher?.worker.terminate();
     hasher = null;
     return result;
