@@ -74,14 +74,28 @@ async function singlePhase(recording: Recording): Promise<PhaseReport> {
   const tf = (performance.now() - t) / 1000;
   const cpu = process.cpuUsage(cpu0);
   const tfCpu = (cpu.user + cpu.system) / 1e6;
+  // The same decomposition in trial scope (per-trial rows, each normalized by its own baseline, then averaged).
+  const trialPlan = planRecipe(recording, { ...recipe, baseline: { ...recipe.baseline, scope: 'trial' } });
   t = performance.now();
+  const cpuTrial0 = process.cpuUsage();
+  for (let c = 0; c < CHANNELS; c++) decomposeChannel({ ...job(c), baseline: trialPlan.baseline });
+  const tfTrial = (performance.now() - t) / 1000;
+  const cpuTrial = process.cpuUsage(cpuTrial0);
+  const tfTrialCpu = (cpuTrial.user + cpuTrial.system) / 1e6;
+  t = performance.now();
+  const cpuWhole0 = process.cpuUsage();
   runRecipe(recording, recipe);
   const whole = (performance.now() - t) / 1000;
+  const cpuWhole = process.cpuUsage(cpuWhole0);
+  const wholeCpu = (cpuWhole.user + cpuWhole.system) / 1e6;
   const rss = maxRssMb();
   t = performance.now();
+  const cpuTrialScope0 = process.cpuUsage();
   runRecipe(recording, { ...recipe, baseline: { ...recipe.baseline, scope: 'trial' } });
   const trialScope = (performance.now() - t) / 1000;
-  return { phase: 'single', seconds: { tf, tfCpu, whole, trialScope }, maxRssMb: rss };
+  const cpuTrialScope = process.cpuUsage(cpuTrialScope0);
+  const trialScopeCpu = (cpuTrialScope.user + cpuTrialScope.system) / 1e6;
+  return { phase: 'single', seconds: { tf, tfCpu, tfTrial, tfTrialCpu, whole, wholeCpu, trialScope, trialScopeCpu }, maxRssMb: rss };
 }
 
 async function poolPhase(recording: Recording, size: number): Promise<PhaseReport> {
@@ -120,6 +134,13 @@ async function main() {
   line('runRecipe, 1 thread (+ Welch, aperiodic, JSON)', single.seconds.whole);
   console.log(`  peak RSS ${single.maxRssMb.toFixed(0)} MB`);
   line('runRecipe, 1 thread, scope trial (per-trial rows)', single.seconds.trialScope);
+  line('wavelet power + dB, 1 thread, scope trial', single.seconds.tfTrial);
+  // Trial scope against average scope, like for like (CPU time is the fairer figure on a shared machine).
+  const s = single.seconds;
+  console.log(
+    `trial / average scope: runRecipe ${(s.trialScope / s.whole).toFixed(2)}× wall, ${(s.trialScopeCpu / s.wholeCpu).toFixed(2)}× CPU; ` +
+      `wavelet power + dB ${(s.tfTrial / s.tf).toFixed(2)}× wall, ${(s.tfTrialCpu / s.tfCpu).toFixed(2)}× CPU (target ≤ 2×)`,
+  );
   for (const size of [...new Set([Math.max(1, cores - 1), cores])]) {
     const pool = runPhase(['--phase', 'pool', String(size)]);
     line(`worker pool, ${size} worker${size > 1 ? 's' : ''} (whole recipe)`, pool.seconds.whole);

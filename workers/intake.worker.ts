@@ -2,6 +2,8 @@
 // transferred, never copied, on their way to the page.
 import * as Comlink from 'comlink';
 import { openCsvBlob, openEdfBlob, type CsvRequest, type EdfReading, type IntakeProgress, type IntakeResult } from '../src/lib/formats/intake';
+import { blobSource } from '../src/lib/formats/byte-source';
+import { fingerprintSource } from '../src/lib/formats/fingerprint';
 
 function transferred(result: IntakeResult): IntakeResult {
   // A recording of hundreds of MB must not be copied on its way to the page.
@@ -9,8 +11,13 @@ function transferred(result: IntakeResult): IntakeResult {
 }
 
 const api = {
-  async openEdf(file: Blob, reading: EdfReading, onProgress: IntakeProgress, events: Blob | null = null): Promise<IntakeResult> {
-    return transferred(await openEdfBlob(file, reading, onProgress, events));
+  /** `fingerprintAt: 'elsewhere'`: the caller hashes the file in another worker meanwhile (src/lib/client/intake.ts). */
+  async openEdf(file: Blob, reading: EdfReading, onProgress: IntakeProgress, events: Blob | null = null, fingerprintAt: 'here' | 'elsewhere' = 'here'): Promise<IntakeResult> {
+    return transferred(await openEdfBlob(file, reading, onProgress, events, fingerprintAt));
+  },
+  /** SHA-256 of a whole file, read slice by slice (never held whole), with progress in [0, 1]. */
+  async fingerprint(file: Blob, onProgress: (fraction: number) => void): Promise<string> {
+    return fingerprintSource(blobSource(file), { chunkBytes: 4 * 1024 * 1024, onProgress });
   },
   async openCsv(file: Blob, request: CsvRequest, onProgress: IntakeProgress): Promise<IntakeResult> {
     return transferred(await openCsvBlob(file, request, onProgress));

@@ -4,10 +4,35 @@
 import { baselineStats, zScoreAcrossTrials, type BaselineMethod, type BaselineSpread } from './baseline';
 import { log10 } from './portable-math';
 
+// 10·log10 P of each power array given to renormalizeAverage, kept per array (weakly, so it goes with the array):
+// the explorer re-normalizes the same trial averages at every baseline move, and these logarithms do not depend
+// on the baseline. Power arrays are results and never change in place; a few sampled points are still compared on
+// every use, so an array written after all is noticed (and its logarithms taken again) in practice.
+const decibelCache = new WeakMap<object, Float64Array>();
+const CHECKED_POINTS = 16;
+
+function decibelsOf(power: ArrayLike<number>): Float64Array {
+  const n = power.length;
+  const cached = decibelCache.get(power);
+  if (cached !== undefined && cached.length === n) {
+    let same = true;
+    for (let k = 0; k < CHECKED_POINTS && same; k++) {
+      const i = Math.floor((k * (n - 1)) / (CHECKED_POINTS - 1));
+      if (n > 0 && !Object.is(cached[i], 10 * log10(power[i]))) same = false;
+    }
+    if (same) return cached;
+  }
+  const db = new Float64Array(n);
+  for (let i = 0; i < n; i++) db[i] = 10 * log10(power[i]);
+  decibelCache.set(power, db);
+  return db;
+}
+
 /**
  * Scope `average` into `out[f·nTimes + t]`: each row of trial-averaged power P (µV²) against its own baseline
  * mean B and sample SD S over grid points first … last: decibel 10·log10(P/B), percent-change 100·(P − B)/B,
- * z-score (P − B)/S, power-ratio P/B. Same values as `normalizeAverage`, without allocating.
+ * z-score (P − B)/S, power-ratio P/B. Same values as `normalizeAverage`, without allocating (decibels reuse
+ * 10·log10 P from the first call on the same array: the same bits, one subtraction per point).
  */
 export function renormalizeAverage(
   out: Float64Array,
@@ -18,12 +43,14 @@ export function renormalizeAverage(
   method: BaselineMethod,
 ): void {
   const n = out.length;
+  const db = method === 'decibel' ? decibelsOf(power) : null;
   for (let off = 0; off < n; off += nTimes) {
     const { mean, sd } = baselineStats(power, off, first, last);
     switch (method) {
       case 'decibel': {
         const c = 10 * log10(mean);
-        for (let j = 0; j < nTimes; j++) out[off + j] = 10 * log10(power[off + j]) - c;
+        const logs = db as Float64Array;
+        for (let j = 0; j < nTimes; j++) out[off + j] = logs[off + j] - c;
         break;
       }
       case 'percent-change': {

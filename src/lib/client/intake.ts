@@ -5,14 +5,30 @@ import type { IntakeWorker } from '../../../workers/intake.worker';
 export type { CsvRequest, EdfReading, IntakePhase, IntakeProblem, IntakeResult, IntakeLocal } from '../formats/intake';
 
 let worker: Comlink.Remote<IntakeWorker> | null = null;
+let hasher: { remote: Comlink.Remote<IntakeWorker>; worker: Worker } | null = null;
+
+const startIntakeWorker = () => new Worker(new URL('../../../workers/intake.worker.ts', import.meta.url), { type: 'module' });
 
 /** The intake worker, started on first use and kept for the tab's lifetime (reading is rare and short). */
 function intakeWorker(): Comlink.Remote<IntakeWorker> {
-  if (worker === null) {
-    worker = Comlink.wrap<IntakeWorker>(new Worker(new URL('../../../workers/intake.worker.ts', import.meta.url), { type: 'module' }));
-  }
+  if (worker === null) worker = Comlink.wrap<IntakeWorker>(startIntakeWorker());
   return worker;
 }
+
+/** A second instance of the intake worker that only hashes, so a large file is decoded and hashed at once. */
+function hashWorker(): Comlink.Remote<IntakeWorker> {
+  if (hasher === null) {
+    const w = startIntakeWorker();
+    hasher = { remote: Comlink.wrap<IntakeWorker>(w), worker: w };
+  }
+  return hasher.remote;
+}
+
+/**
+ * EDF files above this size are hashed in a second worker while the first decodes them (both read the File slice
+ * by slice, so neither holds it whole). Below it the intake worker hashes in one Web Crypto call first.
+ */
+export const PARALLEL_FINGERPRINT_BYTES = 64 * 1024 * 1024;
 
 export type ProgressListener = (phase: IntakePhase, fraction: number) => void;
 
@@ -20,11 +36,44 @@ export type ProgressListener = (phase: IntakePhase, fraction: number) => void;
 export type RecordingKind = ({ kind: 'edf' } & EdfReading) | ({ kind: 'csv' } & CsvRequest);
 
 /** Reads a recording file in the worker; the File is passed by reference and read there through Blob.slice. */
-export function openRecordingFile(file: Blob, kind: RecordingKind, onProgress: ProgressListener, edfEvents: Blob | null = null): Promise<IntakeResult> {
+export async function openRecordingFile(file: Blob, kind: RecordingKind, onProgress: ProgressListener, edfEvents: Blob | null = null): Promise<IntakeResult> {
   const remote = intakeWorker();
-  const progress = Comlink.proxy(onProgress);
-  if (kind.kind === 'edf') return remote.openEdf(file, { unitFactors: kind.unitFactors, exclude: kind.exclude }, progress, edfEvents);
-  return remote.openCsv(file, { sampleRateHz: kind.sampleRateHz, delimiter: kind.delimiter, events: kind.events }, progress);
+  if (kind.kind !== 'edf') {
+    return remote.openCsv(file, { sampleRateHz: kind.sampleRateHz, delimiter: kind.delimiter, events: kind.events }, Comlink.proxy(onProgress));
+  }
+  const reading = { unitFactors: kind.unitFactors, exclude: kind.exclude };
+  if (file.size <= PARALLEL_FINGERPRINT_BYTES) return remote.openEdf(file, reading, Comlink.proxy(onProgress), edfEvents);
+  // Large file: decode and hash side by side. Progress shows the reading, then whatever hashing is left.
+  let readingDone = false;
+  const hashing = hashWorker().fingerprint(
+    file,
+    Comlink.proxy((fraction: number) => {
+      if (readingDone) onProgress('fingerprint', fraction);
+    }),
+  );
+  hashing.catch(() => undefined); // a failure is read below, once the decoding is done
+  const result = await remote.openEdf(
+    file,
+    reading,
+    Comlink.proxy((phase: IntakePhase, fraction: number) => {
+      if (!readingDone) onProgress(phase, fraction);
+    }),
+    edfEvents,
+    'elsewhere',
+  );
+  readingDone = true;
+  if (!result.ok) {
+    // Nothing to fingerprint: stop the hashing worker rather than let it read the whole file for nothing.
+    hasher?.worker.terminate();
+    hasher = null;
+    return result;
+  }
+  try {
+    return { ...result, fingerprint: await hashing, fingerprintMethod: 'incremental' };
+  } catch (error) {
+    const message = `the SHA-256 fingerprint could not be computed: ${error instanceof Error ? error.message : String(error)}`;
+    return { ok: false, error: { file: 'recording', message, field: null, problem: message, byteOffset: null, signal: null, row: null, column: null, dimension: null } };
+  }
 }
 
 /** What a file name says about its kind: EDF by extension, CSV/TSV sample matrices, BIDS events by their suffix. */

@@ -1,8 +1,9 @@
 /**
  * Incremental EDF/EDF+ reader (Kemp et al., 1992, Electroencephalogr Clin Neurophysiol 82:391–393; Kemp &
  * Olivan, 2003, Clin Neurophysiol 114:1755–1761). The header is read and every declared size is checked against
- * the real file size before anything is allocated; data records are then read in chunks and written straight into
- * one preallocated Float32Array (µV) per analysed channel.
+ * the real file size before anything is allocated; data records are then streamed in fixed-size chunks (a record
+ * that straddles two chunks is carried over in one record-sized buffer) and written straight into one preallocated
+ * Float32Array (µV) per analysed channel, so memory is the output plus one chunk whatever the record size.
  */
 import type { Recording, RecordingEvent } from '../analysis/recording';
 import { readExactly, type ByteSource } from './byte-source';
@@ -30,7 +31,7 @@ export interface OpenEdfOptions {
   unitFactors?: Readonly<Record<string, number>>;
   /** Signal labels to leave out of the analysis (listed as ignored, never decoded). */
   exclude?: readonly string[];
-  /** Bytes per read; at least one whole data record is read at a time. Default 8 MiB. */
+  /** Bytes per read (any size ≥ 1; records may straddle reads). Default 8 MiB. */
   chunkBytes?: number;
   onProgress?: (fraction: number) => void;
   /** Checked between chunks; reading stops with the signal's reason. */
@@ -219,23 +220,22 @@ export async function openEdf(source: ByteSource, options: OpenEdfOptions = {}):
   const hash = options.fingerprint ? new Sha256().update(checked.headerBytes) : null;
 
   const recordBytes = header.recordBytes;
-  const recordsPerChunk = Math.max(1, Math.floor((options.chunkBytes ?? 8 * 1024 * 1024) / recordBytes));
+  const dataStart = header.headerBytes;
+  const dataEnd = dataStart + recordCount * recordBytes;
+  const chunkBytes = Math.max(1, Math.floor(options.chunkBytes ?? 8 * 1024 * 1024));
   const channelSignals = channels.map((c) => header.signals[c.signalIndex]);
-  for (let r0 = 0; r0 < recordCount; r0 += recordsPerChunk) {
-    options.abortSignal?.throwIfAborted();
-    const n = Math.min(recordsPerChunk, recordCount - r0);
-    const chunkOffset = header.headerBytes + r0 * recordBytes;
-    const chunk = await readExactly(source, chunkOffset, n * recordBytes, 'data records');
-    hash?.update(chunk);
-    const view = new DataView(chunk.buffer, chunk.byteOffset, chunk.byteLength);
+
+  // Decodes records r0 … r0+n−1, which start at `at` in `bytes`.
+  const decode = (bytes: Uint8Array, at: number, n: number, r0: number) => {
+    const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
     for (let c = 0; c < channels.length; c++) {
       const spr = channelSignals[c].samplesPerRecord;
-      const at = channelSignals[c].recordByteOffset;
+      const within = channelSignals[c].recordByteOffset;
       const out = channels[c].samples;
       const g = gains[c];
       const b = offsets[c];
       for (let r = 0; r < n; r++) {
-        const base = r * recordBytes + at;
+        const base = at + r * recordBytes + within;
         const o = (r0 + r) * spr;
         for (let j = 0; j < spr; j++) out[o + j] = view.getInt16(base + 2 * j, true) * g + b;
       }
@@ -243,8 +243,9 @@ export async function openEdf(source: ByteSource, options: OpenEdfOptions = {}):
     for (let a = 0; a < annotationSignals.length; a++) {
       const s = annotationSignals[a];
       for (let r = 0; r < n; r++) {
-        const base = r * recordBytes + s.recordByteOffset;
-        const block = parseTalBlock(chunk.subarray(base, base + 2 * s.samplesPerRecord), chunkOffset + base, r0 + r, s.label);
+        const base = at + r * recordBytes + s.recordByteOffset;
+        const fileOffset = dataStart + (r0 + r) * recordBytes + s.recordByteOffset;
+        const block = parseTalBlock(bytes.subarray(base, base + 2 * s.samplesPerRecord), fileOffset, r0 + r, s.label);
         if (a === 0 && block.recordStartSeconds !== null) {
           recordStarts[r0 + r] = block.recordStartSeconds;
           found[r0 + r] = 1;
@@ -252,7 +253,37 @@ export async function openEdf(source: ByteSource, options: OpenEdfOptions = {}):
         for (const ann of block.annotations) annotations.push(ann);
       }
     }
-    options.onProgress?.((chunkOffset + chunk.length) / source.size);
+  };
+
+  const carry = new Uint8Array(recordBytes);
+  let carried = 0;
+  let record = 0;
+  for (let offset = dataStart; offset < dataEnd; offset += chunkBytes) {
+    options.abortSignal?.throwIfAborted();
+    const chunk = await readExactly(source, offset, Math.min(chunkBytes, dataEnd - offset), 'data records');
+    hash?.update(chunk);
+    let p = 0;
+    if (carried > 0) {
+      // The rest of a record begun in the previous chunk.
+      const take = Math.min(recordBytes - carried, chunk.length);
+      carry.set(chunk.subarray(0, take), carried);
+      carried += take;
+      p = take;
+      if (carried === recordBytes) {
+        decode(carry, 0, 1, record);
+        record++;
+        carried = 0;
+      }
+    }
+    const whole = Math.floor((chunk.length - p) / recordBytes);
+    decode(chunk, p, whole, record);
+    record += whole;
+    p += whole * recordBytes;
+    if (p < chunk.length) {
+      carry.set(chunk.subarray(p), 0);
+      carried = chunk.length - p;
+    }
+    options.onProgress?.((offset + chunk.length) / source.size);
   }
   if (recordCount === 0) options.onProgress?.(1);
 

@@ -112,11 +112,19 @@ const rowOf = (e: { onsetSeconds: number; durationSeconds: number; columns: Reco
  * Opens an EDF/EDF+ Blob through the incremental reader (annotations become events), with an optional paired BIDS
  * events file whose events follow the annotations, and fingerprints the file (SHA-256). Errors come back as values.
  */
-export async function openEdfBlob(file: Blob, reading: EdfReading, onProgress: IntakeProgress, events: Blob | null = null): Promise<IntakeResult> {
+export async function openEdfBlob(
+  file: Blob,
+  reading: EdfReading,
+  onProgress: IntakeProgress,
+  events: Blob | null = null,
+  /** 'elsewhere': the caller hashes the file meanwhile (large files); `fingerprint` is then '' here. */
+  fingerprintAt: 'here' | 'elsewhere' = 'here',
+): Promise<IntakeResult> {
   let stage: IntakeProblem['file'] = 'recording';
   let eventTable: IntakeLocal['eventTable'];
   try {
-    const small = file.size <= WEB_CRYPTO_BYTES;
+    const elsewhere = fingerprintAt === 'elsewhere';
+    const small = !elsewhere && file.size <= WEB_CRYPTO_BYTES;
     let fingerprint: string | null = null;
     if (small) {
       onProgress('fingerprint', 0);
@@ -124,7 +132,7 @@ export async function openEdfBlob(file: Blob, reading: EdfReading, onProgress: I
       onProgress('fingerprint', 1);
     }
     const edf = await openEdf(blobSource(file), {
-      fingerprint: !small,
+      fingerprint: !small && !elsewhere,
       unitFactors: reading.unitFactors,
       exclude: reading.exclude,
       onProgress: (f) => onProgress('reading', f),
@@ -157,7 +165,7 @@ export async function openEdfBlob(file: Blob, reading: EdfReading, onProgress: I
         .map((c) => ({ signal: c.label, dimension: c.physicalDimension.trim(), factor: c.microvoltFactor })),
       ...(eventTable ? { eventTable } : {}),
     };
-    return done(recording, local, fingerprint ?? edf.fingerprint!, small ? 'web-crypto' : 'incremental');
+    return done(recording, local, elsewhere ? '' : (fingerprint ?? edf.fingerprint!), small ? 'web-crypto' : 'incremental');
   } catch (error) {
     const problem = problemOf(error, stage);
     if (problem.field === 'physical dimension' && problem.signal !== null) {

@@ -97,14 +97,20 @@ export function rasterizeMap(image: ImageBuffer, grid: MapGrid, options: RasterO
     if (l <= 0 && r >= nt) continue;
     const a = hatch.alpha;
     const [hr, hg, hb] = hatch.rgb;
-    for (let x = 0; x < width; x++) {
-      const t = colCell[x];
-      if (t >= l && t < r) continue;
-      if ((x + y) % hatch.spacing >= hatch.width) continue;
-      const p = 4 * (pixOff + x);
-      data[p] = data[p] + (hr - data[p]) * a;
-      data[p + 1] = data[p + 1] + (hg - data[p + 1]) * a;
-      data[p + 2] = data[p + 2] + (hb - data[p + 2]) * a;
+    // colCell rises with x, so the edge zones are the columns before xl and from xr on: visit only those.
+    let xl = 0;
+    while (xl < width && colCell[xl] < l) xl++;
+    let xr = width;
+    while (xr > xl && colCell[xr - 1] >= r) xr--;
+    for (let zone = 0; zone < 2; zone++) {
+      const x1 = zone === 0 ? xl : width;
+      for (let x = zone === 0 ? 0 : xr; x < x1; x++) {
+        if ((x + y) % hatch.spacing >= hatch.width) continue;
+        const p = 4 * (pixOff + x);
+        data[p] = data[p] + (hr - data[p]) * a;
+        data[p + 1] = data[p + 1] + (hg - data[p + 1]) * a;
+        data[p + 2] = data[p + 2] + (hb - data[p + 2]) * a;
+      }
     }
   }
 }

@@ -45,6 +45,27 @@ describe('renormalizeAverage', () => {
       assertClose(out[2], expected[m], 1e-12, m);
     }
   });
+  it('moving the baseline over the same power array keeps matching the contract formula, and a changed array is noticed', () => {
+    // The decibel path keeps 10·log10 P per array between calls; every baseline must still give the literal values.
+    const nf = 3;
+    const nt = 40;
+    const values = Float64Array.from({ length: nf * nt }, (_, i) => 1 + ((i * 7919) % 97) / 7);
+    const out = new Float64Array(nf * nt);
+    const check = () => {
+      for (const [first, last] of [[0, 4], [3, 9], [10, 10], [20, 39]]) {
+        renormalizeAverage(out, values, nt, first, last, 'decibel');
+        for (let f = 0; f < nf; f++) {
+          const row = Array.from(values.slice(f * nt, (f + 1) * nt));
+          for (let t = 0; t < nt; t++) assertClose(out[f * nt + t], literal('decibel', row[t], row, first, last), 1e-9, `f ${f}, t ${t}, baseline ${first}…${last}`);
+        }
+      }
+    };
+    check();
+    // Written in place at a point the cache samples (the first and the last are always among them).
+    values[0] = 50;
+    values[nf * nt - 1] = 0.5;
+    check();
+  });
 });
 
 describe('renormalizeTrials', () => {

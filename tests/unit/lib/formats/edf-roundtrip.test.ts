@@ -106,6 +106,62 @@ describe('writeEdf → openEdf round trip', () => {
     expect(fromBlob.fingerprint).toBe(digest);
   });
 
+  it('streams a multi-chunk EDF+ through a Blob with records straddling every chunk boundary: same samples, events and SHA-256 as one read', async () => {
+    // Three signals with different record widths (two at 64 Hz, one at 32 Hz) plus the annotation signal, 60 one-second
+    // records; chunk sizes that are not whole records (a few bytes, just under and over a record, 2.5 records) put record
+    // boundaries inside chunks and chunk boundaries inside records, inside samples and inside annotation TALs.
+    const records = 60;
+    const wave = (n: number, k: number) => Float64Array.from({ length: n }, (_, i) => 40 * Math.sin((i * k) / 5) + ((i * 7919) % 23) - 11);
+    const annotations = Array.from({ length: 25 }, (_, i) => ({ onsetSeconds: 1 + i * 2.25, durationSeconds: i % 3 === 0 ? 0.5 : null, texts: [i % 2 === 0 ? 'lamp-watch' : 'oar-pull'] }));
+    const bytes = writeEdf({
+      start,
+      recordDurationSeconds: 1,
+      signals: [
+        { label: 'EEG Fz', physicalDimension: 'uV', physicalMin: -200, physicalMax: 200, samplesPerRecord: 64, samples: wave(records * 64, 1) },
+        { label: 'EEG Cz', physicalDimension: 'mV', physicalMin: -0.2, physicalMax: 0.2, samplesPerRecord: 64, samples: wave(records * 64, 3).map((v) => v / 1000) },
+        { label: 'Resp', physicalDimension: 'uV', physicalMin: -100, physicalMax: 100, samplesPerRecord: 32, samples: wave(records * 32, 2) },
+      ],
+      annotations,
+    });
+    const whole = await openEdf(bytesSource(bytes), { chunkBytes: bytes.length, fingerprint: true });
+    const recordBytes = whole.header.recordBytes;
+    expect(whole.recordCount).toBe(records);
+    expect(whole.events.length).toBe(25);
+    const digest = Buffer.from(await crypto.subtle.digest('SHA-256', bytes)).toString('hex');
+    expect(whole.fingerprint).toBe(digest);
+    for (const chunkBytes of [13, 509, recordBytes - 1, recordBytes + 1, Math.floor(2.5 * recordBytes), 4093]) {
+      expect(chunkBytes % recordBytes, `chunk ${chunkBytes} is not a whole number of records`).not.toBe(0);
+      const progress: number[] = [];
+      const streamed = await openEdf(blobSource(new Blob([bytes])), { chunkBytes, fingerprint: true, onProgress: (f) => progress.push(f) });
+      expect(streamed.channels.map((c) => c.label)).toEqual(whole.channels.map((c) => c.label));
+      for (let c = 0; c < whole.channels.length; c++) {
+        // Byte-for-byte equality of the Float32 samples (toEqual would also pass for −0 against +0).
+        expect(Buffer.from(streamed.channels[c].samples.buffer).equals(Buffer.from(whole.channels[c].samples.buffer)), `${whole.channels[c].label} with ${chunkBytes}-byte chunks`).toBe(true);
+      }
+      expect(streamed.annotations).toEqual(whole.annotations);
+      expect(streamed.events).toEqual(whole.events);
+      expect(Array.from(streamed.recordStartSeconds)).toEqual(Array.from(whole.recordStartSeconds));
+      expect(streamed.fingerprint).toBe(digest);
+      expect(progress.every((f, i) => i === 0 || f >= progress[i - 1])).toBe(true);
+      expect(progress[progress.length - 1]).toBe(1);
+    }
+  });
+
+  it('names the record a truncated stream ends in, wherever the chunk boundary falls', async () => {
+    const samples = Float32Array.from({ length: 1000 }, (_, i) => Math.sin(i / 9) * 30);
+    const bytes = writeEdf({
+      start,
+      recordDurationSeconds: 1,
+      signals: [{ label: 'EEG Pz', physicalDimension: 'uV', physicalMin: -100, physicalMax: 100, samplesPerRecord: 100, samples }],
+    });
+    // A source that claims the full size but whose bytes stop in the middle of record 7 (of 10).
+    const cut = bytes.length - 3 * 200 - 77;
+    const source = { size: bytes.length, read: async (offset: number, length: number) => bytes.subarray(offset, Math.min(cut, offset + length)) };
+    for (const chunkBytes of [333, 200, 4096]) {
+      await expect(openEdf(source, { chunkBytes })).rejects.toMatchObject({ field: 'data records', byteOffset: cut });
+    }
+  });
+
   it('refuses annotation text with reserved bytes and numbers that do not fit 8 characters', () => {
     expect(() => formatEdfNumber(123456789)).toThrow(FormatError);
     expect(formatEdfNumber(-3276.8)).toBe('-3276.8');
