@@ -11,7 +11,7 @@ import { outputPaths, RECORD_FORMAT, writeAtomic, type BatchPlan, type BatchReco
 const entry = new URL('../../workers/batch.node-worker.ts', import.meta.url).href;
 
 export async function runPool(
-  plan: Pick<BatchPlan, 'recipe' | 'tasks'>,
+  plan: Pick<BatchPlan, 'recipe' | 'summarySpec' | 'tasks'>,
   out: string,
   workers: number,
   onOutcome: (task: BatchTask, outcome: TaskOutcome) => void,
@@ -45,6 +45,7 @@ export async function runPool(
               status: 'failed',
               reason: `${task.path}: the worker thread stopped (${why})`,
               recipeHash: plan.recipe.hash,
+              summarySpecHash: plan.summarySpec.hash,
               fingerprint: null,
               sidecars: { events: null, channels: null },
               warnings: 0,
@@ -59,7 +60,7 @@ export async function runPool(
           current.on('message', onMessage);
           current.on('error', onError);
           current.on('exit', onExit);
-          current.postMessage({ id: index, plan: { recipe: plan.recipe }, task, out });
+          current.postMessage({ id: index, plan: { recipe: plan.recipe, summarySpec: plan.summarySpec }, task, out });
         });
         outcomes[index] = outcome;
         onOutcome(task, outcome);

@@ -9,9 +9,9 @@ import { mkdir, readFile, rename, writeFile } from 'node:fs/promises';
 import { dirname, join } from 'node:path';
 import { AnalysisInputError } from '../lib/analysis/errors';
 import type { Recipe } from '../lib/analysis/recipe';
-import { runRecipe } from '../lib/analysis/run-recipe';
+import type { SummarySpec } from '../lib/analysis/summary';
 import { FormatError } from '../lib/formats';
-import { readerOptionsOf } from './analyze';
+import { readerOptionsOf, runWithSummary } from './analyze';
 import { CliInputError, oneLine } from './io';
 import { fingerprintFile, loadRecording, withBadChannels } from './load-recording';
 import type { Datatype } from './bids-dataset';
@@ -36,6 +36,8 @@ export interface BatchPlan {
   format: typeof PLAN_FORMAT;
   dataset: { root: string; name: string | null };
   recipe: { path: string; hash: string; value: Recipe };
+  /** Bands, windows and channel groups of the summaries (`--summary-spec`; {} for the defaults) and its hash. */
+  summarySpec: { path: string | null; hash: string; value: SummarySpec };
   filters: Record<string, string>;
   tasks: BatchTask[];
 }
@@ -54,6 +56,7 @@ export interface BatchRecord {
   /** The one-line reason of a failure. */
   reason?: string;
   recipeHash: string;
+  summarySpecHash: string;
   /** SHA-256 of the recording file (the browser's fingerprint of it) and of each sidecar; null when absent or unread. */
   fingerprint: string | null;
   sidecars: { events: string | null; channels: string | null };
@@ -119,16 +122,11 @@ function reasonOf(e: unknown, task: BatchTask, recipePath: string): string {
  * Runs one task of `plan` with outputs under `out`; never throws for bad input (the record says why it failed).
  * `summarize` turns the result into the review summary (null when no summary is written).
  */
-export async function runTask(
-  plan: Pick<BatchPlan, 'recipe'>,
-  task: BatchTask,
-  out: string,
-  summarize: SummaryBuilder | null,
-): Promise<TaskOutcome> {
+export async function runTask(plan: Pick<BatchPlan, 'recipe' | 'summarySpec'>, task: BatchTask, out: string): Promise<TaskOutcome> {
   const started = performance.now();
   const paths = outputPaths(task.stem);
   const recipeHash = plan.recipe.hash;
-  const base = { format: RECORD_FORMAT, stem: task.stem, recipeHash } as const;
+  const base = { format: RECORD_FORMAT, stem: task.stem, recipeHash, summarySpecHash: plan.summarySpec.hash } as const;
   let fingerprint: string | null = null;
   let sidecars: BatchRecord['sidecars'] = { events: null, channels: null };
   const finish = async (record: Omit<BatchRecord, 'seconds' | 'finishedAt' | keyof typeof base>): Promise<TaskOutcome> => {
@@ -149,11 +147,12 @@ export async function runTask(
       previous !== null &&
       previous.status === 'done' &&
       previous.recipeHash === recipeHash &&
+      previous.summarySpecHash === plan.summarySpec.hash &&
       previous.fingerprint === fingerprint &&
       previous.sidecars?.events === sidecars.events &&
       previous.sidecars?.channels === sidecars.channels &&
       (await fileMatches(out, previous.result)) &&
-      (previous.summary === undefined ? summarize === null : await fileMatches(out, previous.summary))
+      (await fileMatches(out, previous.summary))
     ) {
       return { record: previous, reused: true };
     }
@@ -165,22 +164,17 @@ export async function runTask(
       eventTable: recipe.eventTable,
     });
     const effective = withBadChannels(recipe, bad, task.channels ?? 'channels');
-    const result = runRecipe(recording, effective.recipe);
+    recording.fingerprint = fingerprint;
+    // The subject's BIDS label is the subject code the summary is filed under (a code, never a name).
+    const { result, text: summaryText } = runWithSummary(recording, effective.recipe, plan.summarySpec.value, task.entities.sub, join(out, paths.summary));
     result.warnings.unshift(...warnings, ...effective.warnings);
-    // The very text `analyze --out` writes, so the two can be compared byte for byte.
+    // The very texts `analyze --out … --summary …` writes, so the two can be compared byte for byte.
     const text = JSON.stringify(result) + '\n';
     await writeAtomic(join(out, paths.result), text);
-    let summary: OutputFile | undefined;
-    if (summarize !== null) {
-      const summaryText = JSON.stringify(summarize(result, effective.recipe)) + '\n';
-      await writeAtomic(join(out, paths.summary), summaryText);
-      summary = { path: paths.summary, sha256: sha256(summaryText) };
-    }
+    await writeAtomic(join(out, paths.summary), summaryText + '\n');
+    const summary: OutputFile = { path: paths.summary, sha256: sha256(summaryText + '\n') };
     return await finish({ status: 'done', fingerprint, sidecars, result: { path: paths.result, sha256: sha256(text) }, summary, warnings: result.warnings.length });
   } catch (e) {
     return await finish({ status: 'failed', reason: reasonOf(e, task, plan.recipe.path), fingerprint, sidecars, warnings: 0 });
   }
 }
-
-/** Builds the review summary of one result (the study page's batch import reads these files). */
-export type SummaryBuilder = (result: ReturnType<typeof runRecipe>, recipe: Recipe) => unknown;

@@ -17,13 +17,13 @@ import { MANIFEST_FILE, PLAN_FILE, writeManifest, type Manifest, type Runner } f
 import { runPool } from './batch-pool';
 import { PLAN_FORMAT, readJsonFile, runTask, writeAtomic, type BatchPlan, type BatchTask, type TaskOutcome } from './batch-run';
 import { queued, submit, taskStates, type SlurmOptions } from './batch-slurm';
-import { summarize } from './batch-summary';
 import { CliInputError, oneLine, splitArgs } from './io';
+import { readSpecFile } from './analyze';
 
 const USAGE =
-  'usage: batch <bids-root> --recipe <recipe.json> --out <folder> [--subject L[,L…]] [--session …] [--task …] [--run …] ' +
+  'usage: batch <bids-root> --recipe <recipe.json> --out <folder> [--summary-spec <spec.json>] [--subject L[,L…]] [--session …] [--task …] [--run …] ' +
   '[--workers N | --slurm [--partition P] [--time T] [--mem M] [--cpus-per-task C] [--concurrent N] [--no-wait]] | batch --collect <folder>';
-const OPTIONS = ['recipe', 'out', ...Object.keys(FILTERS), 'workers', 'partition', 'time', 'mem', 'cpus-per-task', 'concurrent', 'collect', 'array-task'];
+const OPTIONS = ['recipe', 'out', 'summary-spec', ...Object.keys(FILTERS), 'workers', 'partition', 'time', 'mem', 'cpus-per-task', 'concurrent', 'collect', 'array-task'];
 const FLAGS = ['slurm', 'no-wait'];
 const SLURM_ONLY = ['partition', 'time', 'mem', 'cpus-per-task', 'concurrent', 'no-wait'];
 
@@ -34,6 +34,7 @@ type Args =
       mode: 'run';
       root: string;
       recipe: string;
+      summarySpec: string | null;
       out: string;
       filters: Partial<Record<FilterOption, string>>;
       workers: number;
@@ -88,7 +89,7 @@ function parseArgs(argv: string[]): Args {
   }
   const filters: Partial<Record<FilterOption, string>> = {};
   for (const o of Object.keys(FILTERS) as FilterOption[]) if (named[o] !== undefined) filters[o] = named[o];
-  return { mode: 'run', root: resolve(positional[0]), recipe: resolve(named.recipe), out: resolve(named.out), filters, workers, slurm };
+  return { mode: 'run', root: resolve(positional[0]), recipe: resolve(named.recipe), summarySpec: named['summary-spec'] === undefined ? null : resolve(named['summary-spec']), out: resolve(named.out), filters, workers, slurm };
 }
 
 async function readRecipeFile(path: string) {
@@ -208,6 +209,7 @@ const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 async function run(args: Extract<Args, { mode: 'run' }>): Promise<number> {
   // Everything that can be refused is checked before the first file is written.
   const recipe = await readRecipeFile(args.recipe);
+  const spec = args.summarySpec === null ? {} : await readSpecFile(args.summarySpec);
   const dataset = await readDataset(args.root);
   const chosen = filterRecordings(dataset.recordings, args.filters);
   const tasks: BatchTask[] = chosen.map((r) => ({ stem: r.stem, datatype: r.datatype, entities: r.entities, path: r.path, events: r.events, channels: r.channels, relativePath: r.relativePath, unreadable: r.unreadable }));
@@ -215,6 +217,7 @@ async function run(args: Extract<Args, { mode: 'run' }>): Promise<number> {
     format: PLAN_FORMAT,
     dataset: { root: dataset.root, name: dataset.name },
     recipe: { path: args.recipe, hash: jsonHash(recipe), value: recipe },
+    summarySpec: { path: args.summarySpec, hash: jsonHash(spec), value: spec },
     filters: Object.fromEntries(Object.entries(args.filters)) as Record<string, string>,
     tasks,
   };
@@ -270,7 +273,7 @@ export async function main(argv: string[]): Promise<number> {
       const plan = await readPlan(args.out);
       const task = plan.tasks[args.index];
       if (task === undefined) throw new CliInputError('--array-task', `is ${args.index}; the plan has tasks 0 to ${plan.tasks.length - 1}`);
-      const { record } = await runTask(plan, task, args.out, summarize);
+      const { record } = await runTask(plan, task, args.out);
       if (record.status === 'failed') process.stderr.write(`batch: ${record.reason}\n`);
       return record.status === 'done' ? 0 : 3;
     }

@@ -74,7 +74,7 @@ beforeAll(async () => {
   writeTidepoolDataset(dataset);
   writeFileSync(recipe, JSON.stringify(tidepoolRecipe));
   first = await batch([dataset, '--recipe', recipe, '--out', out, '--workers', '2']);
-}, 120_000);
+}, 240_000);
 
 describe('batch on a workstation', () => {
   it('writes 11 results and a manifest naming the corrupt recording with its one-line reason', () => {
@@ -83,6 +83,7 @@ describe('batch on a workstation', () => {
     const results = readdirSync(join(out, 'results')).sort();
     expect(results).toHaveLength(11);
     expect(results).not.toContain(`${corruptStem}.json`);
+    expect(readdirSync(join(out, 'summaries')).sort()).toEqual(results);
     const manifest = JSON.parse(readFileSync(join(out, 'batch-manifest.json'), 'utf8'));
     expect(manifest.format).toBe('tidemark-batch-manifest-1');
     expect(manifest.counts).toEqual({ recordings: 12, done: 11, failed: 1, reused: 0 });
@@ -102,25 +103,34 @@ describe('batch on a workstation', () => {
     expect(first.stderr).toContain(`batch: failed: ${join(dataset, `sub-${TIDEPOOL.corrupt.sub}`, 'eeg', `${corruptStem}.edf`)}: data record count`);
   });
 
-  it('gives the single-file command line’s result byte for byte, channels file and events file included', async () => {
+  it('gives the single-file command line’s result and summary byte for byte, channels and events files included', async () => {
     const picks = [stemOf(TIDEPOOL.bad.sub, TIDEPOOL.bad.run), stemOf('01', '1'), stemOf('06', '2')];
     const outs = await Promise.all(
       picks.map(async (stem) => {
         const base = join(dataset, `sub-${stem.slice(4, 6)}`, 'eeg', stem.replace(/_eeg$/, ''));
         const target = join(dir, `${stem}.analyze.json`);
-        const o = await analyze([`${base}_eeg.edf`, '--recipe', recipe, '--events', `${base}_events.tsv`, '--channels', `${base}_channels.tsv`, '--out', target]);
+        const summary = join(dir, `${stem}.summary.json`);
+        const o = await analyze([`${base}_eeg.edf`, '--recipe', recipe, '--events', `${base}_events.tsv`, '--channels', `${base}_channels.tsv`, '--out', target, '--summary', summary, '--subject', stem.slice(4, 6)]);
         expect(o.code).toBe(0);
+        expect(readFileSync(join(out, 'summaries', `${stem}.json`), 'utf8')).toBe(readFileSync(summary, 'utf8'));
         return readFileSync(target, 'utf8');
       }),
     );
     picks.forEach((stem, i) => expect(readFileSync(join(out, 'results', `${stem}.json`), 'utf8')).toBe(outs[i]));
+    // the summary is the study page's upload: subject code from the BIDS label, the file's SHA-256, no file name
+    const manifest = JSON.parse(readFileSync(join(out, 'batch-manifest.json'), 'utf8'));
+    const entry = manifest.recordings.find((r: { stem: string }) => r.stem === picks[0]);
+    const summary = JSON.parse(readFileSync(join(out, entry.summary.path), 'utf8'));
+    expect(summary).toMatchObject({ format: 'tidemark-cli-summary-1', subjectCode: TIDEPOOL.bad.sub, fingerprint: entry.fingerprint });
+    expect(summary.summary.channels).toEqual(['C3', 'Pz']);
+    expect(JSON.stringify(summary)).not.toMatch(/\.edf|tidepool_run/);
     // the channels file's status = bad left C4 out; its HEOG type kept the eye channel off the default brain list
     const bad = JSON.parse(outs[0]);
     expect(bad.channels).toEqual(['C3', 'Pz']);
     expect(bad.warnings[0]).toContain('C4 marked bad (status = bad) and left out');
     expect(JSON.parse(outs[1]).channels).toEqual(['C3', 'C4', 'Pz']);
     expect(JSON.parse(outs[1]).conditions.gull.trials).toBe(5);
-  }, 60_000);
+  }, 180_000);
 
   it('skips all 11 on a rerun, leaving their files untouched, and tries the bad one again', async () => {
     const stamp = (stem: string) => statSync(join(out, 'results', `${stem}.json`)).mtimeMs;
@@ -136,7 +146,7 @@ describe('batch on a workstation', () => {
     expect(collected.code).toBe(3);
     const rebuilt = JSON.parse(readFileSync(join(out, 'batch-manifest.json'), 'utf8'));
     expect(rebuilt.recordings.map((r: { stem: string; status: string }) => [r.stem, r.status])).toEqual(manifest.recordings.map((r: { stem: string; status: string }) => [r.stem, r.status]));
-  }, 120_000);
+  }, 240_000);
 
   it('analyses again only the recording whose events file changed, and only the filtered ones', async () => {
     const stem = stemOf('06', '1');
@@ -151,7 +161,7 @@ describe('batch on a workstation', () => {
       [stem, false],
     ]);
     expect(JSON.parse(readFileSync(join(out, 'results', `${stem}.json`), 'utf8')).conditions.gull.trials).toBe(6);
-  }, 120_000);
+  }, 240_000);
 });
 
 describe('batch refuses bad input with one line and writes nothing', () => {
@@ -199,5 +209,5 @@ describe('batch refuses bad input with one line and writes nothing', () => {
       expectOneLine(await refused([dataset, '--recipe', recipe, '--out', target, '--slurm'], { PATH: '/nonexistent' }), /^batch: --slurm: sbatch is not on PATH/);
     }
     expect(existsSync(join(target, 'results'))).toBe(false);
-  }, 60_000);
+  }, 180_000);
 });
