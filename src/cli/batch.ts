@@ -187,12 +187,24 @@ async function readPlan(out: string): Promise<BatchPlan> {
 
 async function readRunner(out: string): Promise<Runner> {
   const job = await readJsonFile<{ jobId: string; script: string }>(join(out, 'slurm', 'job.json'));
-  return job === null ? { kind: 'local', workers: 0 } : { kind: 'slurm', jobId: job.jobId, script: job.script };
+  if (job !== null) return { kind: 'slurm', jobId: job.jobId, script: job.script };
+  // A local run's manifest says how many threads it used.
+  const before = await readJsonFile<Manifest>(join(out, MANIFEST_FILE));
+  return before?.runner ?? { kind: 'local', workers: 1 };
 }
 
 async function collect(out: string, plan: BatchPlan, runner: Runner): Promise<Manifest> {
   let states = new Map<number, string>();
-  if (runner.kind === 'slurm') states = taskStates(runner.jobId);
+  if (runner.kind === 'slurm') {
+    states = taskStates(runner.jobId);
+    let left: number | null = null;
+    try {
+      left = queued(runner.jobId);
+    } catch {
+      // the scheduler cannot be asked; collect what is there
+    }
+    if (left !== null) process.stderr.write(`batch: Slurm job ${runner.jobId} still has ${left} array task${left > 1 ? 's' : ''} pending or running; collect again when it has ended\n`);
+  }
   const indexOf = new Map(plan.tasks.map((t, i) => [t.stem, i]));
   return writeManifest(out, plan, runner, {
     missing: (stem) => {
@@ -240,7 +252,13 @@ async function run(args: Extract<Args, { mode: 'run' }>): Promise<number> {
     const pollMs = Number(process.env.TIDEMARK_BATCH_POLL_MS ?? 2000);
     let last = -1;
     for (;;) {
-      const left = queued(jobId);
+      let left: number | null;
+      try {
+        left = queued(jobId);
+      } catch (e) {
+        if (!(e instanceof CliInputError)) throw e;
+        throw new CliInputError(e.where, `${e.message}; job ${jobId} may still run: npm run --silent batch -- --collect ${args.out} when it has ended`);
+      }
       if (left === null) break;
       if (left !== last) {
         process.stderr.write(`batch: Slurm job ${jobId}: ${left} of ${tasks.length} array tasks pending or running\n`);
