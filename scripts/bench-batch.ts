@@ -26,15 +26,20 @@ function option(name: string, fallback: number): number {
   return v;
 }
 
-function timed(args: string[]): number {
+/** Wall time and CPU time (user + system of the child and its threads, from bash's `times`) of one command. */
+function timed(args: string[]): { wall: number; cpu: number } {
+  const quoted = [process.execPath, '--import', 'tsx', ...args].map((a) => `'${a.replace(/'/g, `'\\''`)}'`).join(' ');
   const t0 = performance.now();
-  const r = spawnSync(process.execPath, ['--import', 'tsx', ...args], { cwd: root, encoding: 'utf8' });
-  const ms = performance.now() - t0;
+  const r = spawnSync('bash', ['-c', `${quoted} >/dev/null 2>&1; code=$?; times; exit $code`], { cwd: root, encoding: 'utf8' });
+  const wall = (performance.now() - t0) / 1000;
   if (r.status !== 0 && r.status !== 3) {
-    process.stderr.write(`bench:batch: ${args.slice(0, 2).join(' ')} failed (${r.status}): ${(r.stderr || '').trim().split('\n').pop()}\n`);
+    process.stderr.write(`bench:batch: ${args.slice(0, 2).join(' ')} failed (exit ${r.status})\n`);
     process.exit(1);
   }
-  return ms / 1000;
+  // `times` prints the shell's own user/system times, then its children's: "0m1.234s 0m0.123s".
+  const children = r.stdout.trim().split('\n').pop() ?? '';
+  const cpu = [...children.matchAll(/(\d+)m([\d.]+)s/g)].reduce((sum, m) => sum + Number(m[1]) * 60 + Number(m[2]), 0);
+  return { wall, cpu };
 }
 
 const workers = option('workers', Math.max(1, availableParallelism() - 1));
@@ -58,20 +63,23 @@ files.forEach((f, i) => {
 
 console.log(`batch benchmark: 12 demo recordings (32 channels, 500 Hz, 300 s), recipe ${recipe}`);
 console.log(`machine: ${cpus().length} cores, load average ${loadavg().map((l) => l.toFixed(2)).join(' ')}; ${workers} worker thread${workers > 1 ? 's' : ''}`);
-const singleTimes: number[] = [];
+const singleRuns: { wall: number; cpu: number }[] = [];
 for (let i = 0; i < singles; i++) {
-  const f = join(dataset, `sub-${String(i + 1).padStart(2, '0')}`, 'eeg', `sub-${String(i + 1).padStart(2, '0')}_task-harbourlights_eeg.edf`);
-  singleTimes.push(timed(['src/cli/analyze.ts', f, '--recipe', recipe, '--out', join(dir, `single-${i}.json`), '--summary', join(dir, `single-${i}.summary.json`), '--subject', String(i + 1).padStart(2, '0')]));
+  const sub = String(i + 1).padStart(2, '0');
+  const f = join(dataset, `sub-${sub}`, 'eeg', `sub-${sub}_task-harbourlights_eeg.edf`);
+  singleRuns.push(timed(['src/cli/analyze.ts', f, '--recipe', recipe, '--out', join(dir, `single-${i}.json`), '--summary', join(dir, `single-${i}.summary.json`), '--subject', sub]));
 }
-const single = singleTimes.reduce((a, b) => a + b, 0) / singleTimes.length;
-const expected = (single * 12) / workers;
+const mean = (xs: number[]) => xs.reduce((a, b) => a + b, 0) / xs.length;
+const single = { wall: mean(singleRuns.map((r) => r.wall)), cpu: mean(singleRuns.map((r) => r.cpu)) };
+const expected = (single.wall * 12) / workers;
 const out = join(dir, 'out');
 const batch = timed(['src/cli/batch.ts', dataset, '--recipe', recipe, '--out', out, '--workers', String(workers)]);
 const rerun = timed(['src/cli/batch.ts', dataset, '--recipe', recipe, '--out', out, '--workers', String(workers)]);
-const pct = ((batch - expected) / expected) * 100;
-console.log(`single-file analyze (mean of ${singles}):       ${single.toFixed(2).padStart(7)} s per recording (${singleTimes.map((t) => t.toFixed(2)).join(', ')})`);
-console.log(`single-file time × 12 / ${workers}:              ${expected.toFixed(2).padStart(7)} s`);
-console.log(`batch, ${workers} worker thread${workers > 1 ? 's' : ' '}:                ${batch.toFixed(2).padStart(7)} s (${(12 / batch * 60).toFixed(1)} recordings/min; ${pct >= 0 ? '+' : ''}${pct.toFixed(1)} % vs single × 12 / workers; target within 15 %)`);
-console.log(`rerun, all 12 reused:                 ${rerun.toFixed(2).padStart(7)} s`);
+const pct = ((batch.wall - expected) / expected) * 100;
+const f = (x: number) => x.toFixed(2).padStart(7);
+console.log(`single-file analyze (mean of ${singles}):     ${f(single.wall)} s wall ${f(single.cpu)} s CPU per recording (${singleRuns.map((r) => r.wall.toFixed(2)).join(', ')} s wall)`);
+console.log(`single-file × 12 / ${workers} worker${workers > 1 ? 's' : ' '}:          ${f(expected)} s wall ${f(single.cpu * 12)} s CPU (× 12)`);
+console.log(`batch, ${workers} worker thread${workers > 1 ? 's' : ' '}:              ${f(batch.wall)} s wall ${f(batch.cpu)} s CPU (${((12 / batch.wall) * 60).toFixed(1)} recordings/min; ${pct >= 0 ? '+' : ''}${pct.toFixed(1)} % vs single × 12 / workers; target within 15 %)`);
+console.log(`rerun, all 12 reused:               ${f(rerun.wall)} s wall ${f(rerun.cpu)} s CPU`);
 console.log(`load average after: ${loadavg().map((l) => l.toFixed(2)).join(' ')}`);
 rmSync(dir, { recursive: true, force: true });

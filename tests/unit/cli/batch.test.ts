@@ -9,6 +9,8 @@ import { fileURLToPath } from 'node:url';
 import { promisify } from 'node:util';
 import { beforeAll, describe, expect, it, vi } from 'vitest';
 import { main } from '../../../src/cli/batch';
+import { RecipeSchema } from '../../../src/lib/analysis/recipe';
+import { SubjectCode, SummaryInput } from '../../../src/lib/schemas/review';
 import { slurmUnavailable } from '../../helpers/slurm-cluster';
 import { stemOf, TIDEPOOL, tidepoolRecipe, writeTidepoolDataset } from '../../helpers/bids-dataset';
 
@@ -123,6 +125,11 @@ describe('batch on a workstation', () => {
     const summary = JSON.parse(readFileSync(join(out, entry.summary.path), 'utf8'));
     expect(summary).toMatchObject({ format: 'tidemark-cli-summary-1', subjectCode: TIDEPOOL.bad.sub, fingerprint: entry.fingerprint });
     expect(summary.summary.channels).toEqual(['C3', 'Pz']);
+    // what the server accepts (src/lib/schemas/review.ts): the summary, the subject code, the format-2 recipe
+    expect(SummaryInput.safeParse(summary.summary).success).toBe(true);
+    expect(SubjectCode.safeParse(summary.subjectCode).success).toBe(true);
+    expect(RecipeSchema.safeParse(summary.recipe).success).toBe(true);
+    expect(summary.recipe.recording.fingerprint).toBe(entry.fingerprint);
     expect(JSON.stringify(summary)).not.toMatch(/\.edf|tidepool_run/);
     // the channels file's status = bad left C4 out; its HEOG type kept the eye channel off the default brain list
     const bad = JSON.parse(outs[0]);
