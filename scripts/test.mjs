@@ -5,7 +5,7 @@ import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
 import {
-  assertPortFree, claimRunLock, ensureNodeModules, log, migrate, onSignals, requireChromium, root, runMain, seed, serveApp,
+  assertPortFree, claimRunLock, ensureNodeModules, ensureSlurm, log, migrate, onSignals, requireChromium, root, runMain, seed, serveApp,
   startCluster, stopAll,
 } from './lib/bootstrap.mjs';
 
@@ -26,6 +26,9 @@ await runMain(async () => {
   claimRunLock(SLOT ? `npm-test-${SLOT}` : 'npm-test');
   ensureNodeModules();
   const chromium = requireChromium();
+  // The Slurm batch test starts its own cluster; without the binaries it skips and prints why.
+  const slurmMissing = ensureSlurm();
+  if (slurmMissing !== null) log(`the Slurm batch test will be skipped: ${slurmMissing}`);
   await assertPortFree(APP_PORT, 'the test app');
   await assertPortFree(SMTP_PORT, 'the test mail fake');
   const cluster = await startCluster({ name: SLOT ? `pg-test-${SLOT}` : 'pg-test', port: PG_PORT, fastAndLoose: true });

@@ -118,6 +118,21 @@ export function requireChromium() {
   return '/usr/bin/chromium';
 }
 
+/**
+ * Debian's slurm-wlm and munge, which the batch test needs for its private single-node Slurm cluster on loopback
+ * (tests/helpers/slurm-cluster.ts), installed when root and missing. Never fatal: returns null when they are there,
+ * else the reason the Slurm test will print when it skips.
+ */
+export function ensureSlurm() {
+  const binaries = ['/usr/sbin/slurmctld', '/usr/sbin/slurmd', '/usr/bin/sbatch', '/usr/bin/squeue', '/usr/sbin/munged'];
+  const present = () => binaries.every((b) => fs.existsSync(b));
+  if (present()) return null;
+  if (!aptInstall(['slurm-wlm', 'munge'], 'the batch test runs a private Slurm cluster')) {
+    return isRoot ? '`apt-get install -y slurm-wlm munge` failed' : 'slurm-wlm and munge are missing and this is not root';
+  }
+  return present() ? null : 'slurm-wlm and munge were installed but their daemons are not in /usr/sbin';
+}
+
 // ---------------------------------------------------------------- one run at a time
 
 /**

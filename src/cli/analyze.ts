@@ -1,6 +1,6 @@
 /**
- * `npm run --silent analyze -- <recording> --recipe <recipe.json> [--events <events.tsv>] [--rate <Hz>]
- * [--out <result.json>] [--summary <summary.json> --subject <code> [--summary-spec <spec.json>]]`, the analysis
+ * `npm run --silent analyze -- <recording> --recipe <recipe.json> [--events <events.tsv>]
+ * [--channels <channels.tsv>] [--rate <Hz>] [--out <result.json>] [--summary <summary.json> --subject <code> [--summary-spec <spec.json>]]`, the analysis
  * contract's command line: exit 0 with the Result JSON, exit 2 with one line on stderr for bad input (never a stack
  * trace), exit 1 for anything unexpected. `--summary` also writes the review summary of the same run (format
  * "tidemark-summary-1", src/lib/analysis/summary.ts) with the recipe, the recording's SHA-256 and the subject code:
@@ -16,10 +16,13 @@ import { combineSummary, resolveSummarySpec, summarizeChannel, type ChannelSumma
 import { z } from '../lib/analysis/zod';
 import { Label, SubjectCode, SUMMARY_CAPS, SummaryInput } from '../lib/schemas/review';
 import { FormatError } from '../lib/formats';
-import { CliInputError, loadRecording, type LoadOptions } from './load-recording';
+import { CliInputError, loadRecording, withBadChannels, type LoadOptions } from './load-recording';
+import type { Recipe } from '../lib/analysis/recipe';
+import type { Recording } from '../lib/analysis/recording';
+import type { AnalysisResult } from '../lib/analysis/run-recipe';
 
 const USAGE =
-  'usage: analyze <recording.edf|.csv|.tsv> --recipe <recipe.json> [--events <events.tsv>] [--rate <Hz>] [--out <result.json>] [--summary <summary.json> --subject <code> [--summary-spec <spec.json>]]';
+  'usage: analyze <recording.edf|.csv|.tsv> --recipe <recipe.json> [--events <events.tsv>] [--channels <channels.tsv>] [--rate <Hz>] [--out <result.json>] [--summary <summary.json> --subject <code> [--summary-spec <spec.json>]]';
 
 /** The file `--summary` writes: what one subject's upload holds (the study page's batch import reads it). */
 export const CLI_SUMMARY_FORMAT = 'tidemark-cli-summary-1';
@@ -28,6 +31,7 @@ interface Args {
   recording: string;
   recipe: string;
   events?: string;
+  channels?: string;
   rate?: number;
   out?: string;
   summary?: string;
@@ -48,7 +52,7 @@ const SummarySpecSchema = z
   .strict();
 
 function parseArgs(argv: string[]): Args {
-  const { positional, named } = splitArgs(argv, ['recipe', 'events', 'rate', 'out', 'summary', 'subject', 'summary-spec'], USAGE);
+  const { positional, named } = splitArgs(argv, ['recipe', 'events', 'channels', 'rate', 'out', 'summary', 'subject', 'summary-spec'], USAGE);
   if (positional.length !== 1) throw new CliInputError('arguments', `expected one recording file, got ${positional.length} (${USAGE})`);
   if (named.recipe === undefined) throw new CliInputError('--recipe', `is required (${USAGE})`);
   let rate: number | undefined;
@@ -63,7 +67,7 @@ function parseArgs(argv: string[]): Args {
     const code = SubjectCode.safeParse(named.subject);
     if (!code.success) throw new CliInputError('--subject', `"${named.subject}": ${code.error.issues[0].message}`);
   }
-  return { recording: positional[0], recipe: named.recipe, events: named.events, rate, out: named.out, summary: named.summary, subject: named.subject?.trim(), summarySpec: named['summary-spec'] };
+  return { recording: positional[0], recipe: named.recipe, events: named.events, channels: named.channels, rate, out: named.out, summary: named.summary, subject: named.subject?.trim(), summarySpec: named['summary-spec'] };
 }
 
 function issueText(issue: { path: PropertyKey[]; message: string }, prefix: string): string {
@@ -71,7 +75,7 @@ function issueText(issue: { path: PropertyKey[]; message: string }, prefix: stri
   return `${path}: ${issue.message}`;
 }
 
-async function readSpecFile(path: string): Promise<SummarySpec> {
+export async function readSpecFile(path: string): Promise<SummarySpec> {
   const json = await readRecipeFile(path);
   const parsed = SummarySpecSchema.safeParse(json);
   if (!parsed.success) throw new CliInputError(path, issueText(parsed.error.issues[0], 'summary'));
@@ -106,6 +110,41 @@ export function readerOptionsOf(recipe: unknown): Pick<LoadOptions, 'unitFactors
 }
 
 
+/**
+ * One run of `recipe` with its review summary, as `--summary` writes it and `batch` writes it per recording: the
+ * run goes channel by channel, each channel's single trials summarized and then dropped (they are large), so memory
+ * stays one channel's trials; the Result is the same bits as `runRecipe`'s (single-trials-same-bits test). The
+ * recording must carry its fingerprint. Throws CliInputError at `where` when the summary breaks the server's rules.
+ */
+export function runWithSummary(recording: Recording, recipe: Recipe, spec: SummarySpec, subjectCode: string, where: string): { result: AnalysisResult; text: string; notices: string[] } {
+  const { plan, recording: conditioned } = planRun(recording, recipe);
+  const resolved = resolveSummarySpec(plan, spec);
+  const channels: ChannelAnalysis[] = [];
+  const parts: ChannelSummary[] = [];
+  plan.channels.forEach((name, i) => {
+    const analysis = analyzeChannel(plan, conditioned.data[plan.channelIndices[i]], { singleTrials: resolved.trialChannels.has(name) });
+    parts.push(summarizeChannel(plan, i, analysis, resolved));
+    channels.push({ ...analysis, singleTrials: null });
+  });
+  const result = assembleResult(plan, channels);
+  const summary = combineSummary(plan, parts, resolved);
+  const checked = SummaryInput.safeParse(summary);
+  if (!checked.success) throw new CliInputError(where, `cannot be written: ${issueText(checked.error.issues[0], 'summary')}`);
+  const fingerprint = recording.fingerprint!;
+  const file = {
+    format: CLI_SUMMARY_FORMAT,
+    subjectCode,
+    fingerprint,
+    recipe: { ...recipe, recording: { ...recipe.recording, fingerprint } },
+    summary,
+  };
+  const bytes = Buffer.byteLength(JSON.stringify(summary));
+  if (bytes > SUMMARY_CAPS.bodyBytes) {
+    throw new CliInputError(where, `cannot be written: the summary holds ${bytes} bytes; the server keeps at most ${SUMMARY_CAPS.bodyBytes} (use --summary-spec to name fewer bands, windows or trial channels)`);
+  }
+  return { result, text: JSON.stringify(file), notices: resolved.notices };
+}
+
 /** Runs the command; resolves with the exit code. */
 export async function main(argv: string[]): Promise<number> {
   let recipePath = 'recipe';
@@ -120,50 +159,27 @@ export async function main(argv: string[]): Promise<number> {
     if (notice !== null) process.stderr.write(`analyze: ${args.recipe}: ${notice}\n`);
     const spec = args.summarySpec === undefined ? {} : await readSpecFile(args.summarySpec);
     const readerOptions = readerOptionsOf(recipe);
-    const { recording, warnings } = await loadRecording(args.recording, {
+    const { recording, warnings: readWarnings, bad } = await loadRecording(args.recording, {
       eventsPath: args.events,
+      channelsPath: args.channels,
       rateHz: args.rate,
       ...readerOptions,
       // the summary names its recording by SHA-256, as the browser does
       fingerprint: readerOptions.fingerprint === true || args.summary !== undefined,
       eventTable: recipe.eventTable,
     });
+    // Channels a BIDS channels file marks bad join the recipe's signals.bad (and leave its channel lists).
+    const effective = withBadChannels(recipe, bad, args.channels ?? '--channels');
+    const warnings = [...readWarnings, ...effective.warnings];
     if (args.summary === undefined) {
-      const result = runRecipe(recording, recipe);
+      const result = runRecipe(recording, effective.recipe);
       result.warnings.unshift(...warnings);
       await writeJsonOutput(JSON.stringify(result), args.out);
       return 0;
     }
-    // With --summary: the same run channel by channel, each channel's single trials summarized and then dropped
-    // (they are large), so memory stays one channel's trials; the Result is the same bits (single-trials-same-bits test).
-    const { plan, recording: conditioned } = planRun(recording, recipe);
-    const resolved = resolveSummarySpec(plan, spec);
-    const channels: ChannelAnalysis[] = [];
-    const parts: ChannelSummary[] = [];
-    plan.channels.forEach((name, i) => {
-      const analysis = analyzeChannel(plan, conditioned.data[plan.channelIndices[i]], { singleTrials: resolved.trialChannels.has(name) });
-      parts.push(summarizeChannel(plan, i, analysis, resolved));
-      channels.push({ ...analysis, singleTrials: null });
-    });
-    const result = assembleResult(plan, channels);
+    const { result, text, notices } = runWithSummary(recording, effective.recipe, spec, args.subject!, args.summary);
     result.warnings.unshift(...warnings);
-    const summary = combineSummary(plan, parts, resolved);
-    const checked = SummaryInput.safeParse(summary);
-    if (!checked.success) throw new CliInputError(args.summary, `cannot be written: ${issueText(checked.error.issues[0], 'summary')}`);
-    const fingerprint = recording.fingerprint!;
-    const file = {
-      format: CLI_SUMMARY_FORMAT,
-      subjectCode: args.subject!,
-      fingerprint,
-      recipe: { ...recipe, recording: { ...recipe.recording, fingerprint } },
-      summary,
-    };
-    const text = JSON.stringify(file);
-    const bytes = Buffer.byteLength(JSON.stringify(summary));
-    if (bytes > SUMMARY_CAPS.bodyBytes) {
-      throw new CliInputError(args.summary, `cannot be written: the summary holds ${bytes} bytes; the server keeps at most ${SUMMARY_CAPS.bodyBytes} (use --summary-spec to name fewer bands, windows or trial channels)`);
-    }
-    for (const notice of resolved.notices) process.stderr.write(`analyze: ${notice}\n`);
+    for (const notice of notices) process.stderr.write(`analyze: ${notice}\n`);
     await writeJsonOutput(JSON.stringify(result), args.out);
     await writeJsonOutput(text, args.summary);
     return 0;

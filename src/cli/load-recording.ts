@@ -4,7 +4,9 @@ import { createReadStream } from 'node:fs';
 import { open, readFile } from 'node:fs/promises';
 import { extname } from 'node:path';
 import type { Recording } from '../lib/analysis/recording';
-import { FormatError, openEdf, parseBidsEvents, parseCsvSamples, recordingWarnings, toRecording, type BidsEventsResult, type ByteSource, type EdfFile } from '../lib/formats';
+import { FormatError, openEdf, parseBidsChannels, parseBidsEvents, parseCsvSamples, recordingWarnings, toRecording, type BidsEventsResult, type ByteSource, type EdfFile } from '../lib/formats';
+import { inferChannelType, unitOf } from '../lib/analysis/channel-types';
+import type { Recipe } from '../lib/analysis/recipe';
 
 /** A command-line input problem: `where` is the file or option, printed before the message. */
 import { CliInputError } from './io';
@@ -22,11 +24,15 @@ export interface LoadOptions {
   fingerprint?: boolean;
   /** The recipe's `eventTable`: which rows of the events file become events, and onset shifts. */
   eventTable?: EventTableSpec;
+  /** A BIDS `*_channels.tsv`: its types replace the inferred ones, its `status` = bad channels are returned in `bad`. */
+  channelsPath?: string;
 }
 
 export interface LoadedRecording {
   recording: Recording;
   warnings: string[];
+  /** Channels the channels file marks bad (recording names); `withBadChannels` puts them into the recipe. */
+  bad: string[];
 }
 
 const EDF_EXTENSIONS = new Set(['.edf']);
@@ -124,7 +130,72 @@ export async function loadRecording(path: string, options: LoadOptions): Promise
   }
   // The same lines as the browser's intake for the same file and reading, then the recipe's eventTable selection.
   const warnings = [...recordingWarnings({ edf, reading: { unitFactors: options.unitFactors, exclude: options.exclude }, events }), ...selectionWarnings];
+  const bad: string[] = [];
+  if (options.channelsPath !== undefined) applyChannelsFile(recording, await readText(options.channelsPath), options.channelsPath, options.exclude ?? [], bad, warnings);
   // The browser fingerprints the recording file alone (not a separate events file), so the CLI does the same.
   if (options.fingerprint) recording.fingerprint = await fingerprintFile(path);
-  return { recording, warnings };
+  return { recording, warnings, bad };
+}
+
+/** "EEG Fz" → "Fz": a channels file may name a signal by its full EDF+ label or by the name the reader gives it. */
+function withoutTypeWord(label: string): string {
+  const m = /^[A-Za-z0-9]+\s+(\S.*)$/.exec(label.trim());
+  return m === null ? label.trim() : m[1];
+}
+
+/**
+ * Sets each channel's type from a BIDS channels file and collects the channels it marks bad. A recording channel the
+ * file does not list keeps the type read from the file; a listed name the recording lacks is a warning.
+ */
+function applyChannelsFile(recording: Recording, text: string, path: string, exclude: readonly string[], bad: string[], warnings: string[]): void {
+  let parsed;
+  try {
+    parsed = parseBidsChannels(text);
+  } catch (e) {
+    throw e instanceof FormatError ? new CliInputError(path, e.message) : e;
+  }
+  warnings.push(...parsed.warnings.map((w) => `${path}: ${w}`));
+  const names = recording.channelNames;
+  const types = names.map((name, c) => recording.channelTypes?.[c] ?? inferChannelType(name, unitOf(recording, c)));
+  const listed = new Set<number>();
+  const missing: string[] = [];
+  for (const ch of parsed.channels) {
+    let c = names.indexOf(ch.name);
+    if (c < 0) c = names.indexOf(withoutTypeWord(ch.name));
+    if (c < 0) {
+      if (!exclude.includes(ch.name)) missing.push(ch.name);
+      continue;
+    }
+    listed.add(c);
+    types[c] = ch.type;
+    if (ch.bad) bad.push(names[c]);
+  }
+  recording.channelTypes = types;
+  if (missing.length > 0) warnings.push(`${path}: ${missing.length} listed channel${missing.length > 1 ? 's are' : ' is'} not in the recording (${missing.slice(0, 8).join(', ')}${missing.length > 8 ? ', …' : ''})`);
+  const unlisted = names.filter((_, c) => !listed.has(c));
+  if (unlisted.length > 0) warnings.push(`${path}: does not list ${unlisted.slice(0, 8).join(', ')}${unlisted.length > 8 ? ', …' : ''}; their types are read from the recording`);
+}
+
+/**
+ * The recipe with the channels a channels file marks bad added to `signals.bad`, and left out of the recipe's own
+ * `channels` and `rejection.channels` (a bad channel is left out everywhere). Returns the recipe unchanged when
+ * nothing is bad. A recipe whose every named channel is bad throws CliInputError.
+ */
+export function withBadChannels(recipe: Recipe, bad: readonly string[], where: string): { recipe: Recipe; warnings: string[] } {
+  if (bad.length === 0) return { recipe, warnings: [] };
+  const isBad = new Set(bad);
+  const warnings = [`${where}: ${bad.join(', ')} marked bad (status = bad) and left out`];
+  const allBad = [...new Set([...(recipe.signals?.bad ?? []), ...bad])];
+  const out: Recipe = { ...recipe, signals: { ...recipe.signals, bad: allBad } };
+  if (recipe.channels !== undefined) {
+    const kept = recipe.channels.filter((c) => !isBad.has(c));
+    if (kept.length === 0) throw new CliInputError(where, `marks every channel the recipe names bad (${recipe.channels.join(', ')})`);
+    out.channels = kept;
+  }
+  if (recipe.rejection?.channels !== undefined) {
+    const kept = recipe.rejection.channels.filter((c) => !isBad.has(c));
+    if (kept.length === 0) throw new CliInputError(where, `marks every channel of the recipe's rejection.channels bad (${recipe.rejection.channels.join(', ')})`);
+    out.rejection = { ...recipe.rejection, channels: kept };
+  }
+  return { recipe: out, warnings };
 }

@@ -32,6 +32,7 @@ export {
 export { formatEdfNumber, writeEdf, type EdfWriteAnnotation, type EdfWriteInput, type EdfWriteSignal } from './edf-writer';
 export { parseCsvSamples, type CsvSamplesOptions } from './csv-samples';
 export { parseBidsEvents, type BidsEvent, type BidsEventsOptions, type BidsEventsResult } from './bids-events';
+export { parseBidsChannels, type BidsChannel, type BidsChannelsResult } from './bids-channels';
 export { fingerprintSource, Sha256, sha256Hex } from './fingerprint';
 export { openCsvBlob, openEdfBlob, type CsvRequest, type EdfReading, type IntakeLocal, type IntakePhase, type IntakeProblem, type IntakeProgress, type IntakeResult } from './intake';
 export { EVENTS_FILE_PREFIX, recordingWarnings, type RecordingWarningSources } from './recording-warnings';
