@@ -4,12 +4,13 @@ import type { WorkspaceProps } from './types';
 import { bandWindowMean } from '../../lib/analysis/band-summary';
 import { renormalizeAverage } from '../../lib/analysis/renormalize';
 import { methodUnit, neutralValue } from '../../lib/plot/colour-scale';
-import { selectActive, useResultsStore, type Decomposition } from '../../stores/results';
-import { DEFAULT_BANDS, DEFAULT_WINDOWS, useViewStore, type Band, type TimeWindow } from '../../stores/view';
+import { selectActive, useResultsStore, type Decomposition } from '../../lib/client/workspace/results';
+import { DEFAULT_BANDS, DEFAULT_WINDOWS, type Band, type TimeWindow } from '../../lib/client/workspace/view';
 import { baselinePoints } from '../explorer/map-model';
 import { downloadBlob } from '../explorer/download';
 import { usePanelVisible } from '../explorer/usePanelVisible';
 import NumberField from '../explorer/NumberField';
+import { useWorkspace } from '../../lib/client/workspace/store';
 
 export interface BandRow {
   band: Band;
@@ -59,14 +60,14 @@ const BAR_COLOURS = ['#0072B2', '#E69F00', '#009E73', '#CC79A7', '#56B4E9', '#D5
 /** Band × window comparison of the normalized maps: the comparison raw power cannot make across frequencies. */
 export default function BandsScreen(_props: WorkspaceProps) {
   const d = useResultsStore(selectActive);
-  const bands = useViewStore((s) => s.bands);
-  const windows = useViewStore((s) => s.windows);
-  const method = useViewStore((s) => s.method);
-  const scope = useViewStore((s) => s.scope);
-  const channel = useViewStore((s) => s.channel);
-  const setView = useViewStore((s) => s.set);
+  const bands = useWorkspace((s) => s.bands);
+  const windows = useWorkspace((s) => s.windows);
+  const method = useWorkspace((s) => s.method);
+  const scope = useWorkspace((s) => s.scope);
+  const channel = useWorkspace((s) => s.channel);
+  const setView = useWorkspace((s) => s.set);
   // Deferred, so a baseline drag on the Maps screen repaints the maps first.
-  const baseline = useDeferredValue(useViewStore((s) => s.baseline));
+  const baseline = useDeferredValue(useWorkspace((s) => s.baseline));
   const visible = usePanelVisible('Bands');
 
   const problems = d === null ? [] : [...bands.map((b) => bandProblem(b, d)), ...windows.map((w) => windowProblem(w, d))].filter((p): p is string => p !== null);

@@ -6,15 +6,14 @@ import { divergingColormap, sequentialColormap } from '../../lib/plot/colormap';
 import { extentLimits, methodUnit, neutralValue, ratioLimits, symmetricLimits, type ColourScale } from '../../lib/plot/colour-scale';
 import type { PanelSpec } from '../../lib/plot/panel';
 import { explorerWorker } from '../../lib/client/explorer-worker';
-import { useResultsStore, selectActive, ensureTrials } from '../../stores/results';
-import { useViewStore } from '../../stores/view';
-import { useSourceStore } from '../../stores/source';
+import { useResultsStore, selectActive, ensureTrials } from '../../lib/client/workspace/results';
 import MapPanel, { type Cell } from '../explorer/MapPanel';
 import NumberField from '../explorer/NumberField';
 import Choice from '../explorer/Choice';
 import { averageNormalized, baselinePoints, baselineWarnings, difference, snapToGrid } from '../explorer/map-model';
 import { renderMapsPng } from '../explorer/export-maps';
 import { downloadBlob, fileSafe } from '../explorer/download';
+import { useWorkspace } from '../../lib/client/workspace/store';
 
 const METHODS: { value: BaselineMethod; label: string }[] = [
   { value: 'decibel', label: 'dB' },
@@ -42,20 +41,20 @@ function fmtValue(v: number): string {
 export default function MapsScreen(_props: WorkspaceProps) {
   const d = useResultsStore(selectActive);
   const trialHold = useResultsStore((s) => s.trialHold);
-  const channel = useViewStore((s) => s.channel);
-  const condition = useViewStore((s) => s.condition);
-  const compareTo = useViewStore((s) => s.compareTo);
-  const baseline = useViewStore((s) => s.baseline);
-  const method = useViewStore((s) => s.method);
-  const scope = useViewStore((s) => s.scope);
-  const spread = useViewStore((s) => s.spread);
+  const channel = useWorkspace((s) => s.channel);
+  const condition = useWorkspace((s) => s.condition);
+  const compareTo = useWorkspace((s) => s.compareTo);
+  const baseline = useWorkspace((s) => s.baseline);
+  const method = useWorkspace((s) => s.method);
+  const scope = useWorkspace((s) => s.scope);
+  const spread = useWorkspace((s) => s.spread);
   // Across-trials z-scores need every trial's baseline: they come from the held trials, like single-trial scope.
   const spreadTrials = method === 'z-score' && spread === 'trials';
   const useTrials = scope === 'trial' || spreadTrials;
-  const rawScale = useViewStore((s) => s.rawScale);
-  const heldLimits = useViewStore((s) => s.heldLimits);
-  const setView = useViewStore((s) => s.set);
-  const setBaseline = useViewStore((s) => s.setBaseline);
+  const rawScale = useWorkspace((s) => s.rawScale);
+  const heldLimits = useWorkspace((s) => s.heldLimits);
+  const setView = useWorkspace((s) => s.set);
+  const setBaseline = useWorkspace((s) => s.setBaseline);
   const [cursor, setCursor] = useState<Cell | null>(null);
   const [trialMaps, setTrialMaps] = useState<TrialMaps | null>(null);
   const buffers = useRef<{ a: Float64Array; b: Float64Array; diff: Float64Array; rawDiff: Float64Array } | null>(null);
@@ -82,7 +81,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
   useEffect(() => {
     if (d === null || ch === null || !useTrials) return;
     // The whole recording: the decomposition's recipe carries the conditions and rejection the core applies.
-    const recording = useSourceStore.getState().recording;
+    const recording = useWorkspace.getState().recording;
     if (recording !== null) void ensureTrials(d, ch, recording);
   }, [d, ch, useTrials]);
   const pending = useRef<{ busy: boolean; next: { key: string; first: number; last: number; method: BaselineMethod; spread: BaselineSpread } | null }>({ busy: false, next: null });
@@ -203,7 +202,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
   };
   const exportRecipe = () => {
     // The run's recipe with the live baseline and fit range: everything `npm run analyze` needs to give these numbers.
-    const { fitRange } = useViewStore.getState();
+    const { fitRange } = useWorkspace.getState();
     const recipe = { ...d.recipe, baseline: { start: baseline.start, end: baseline.end, method, scope, ...(spreadTrials ? { spread: 'trials' } : {}) }, aperiodic: { ...d.recipe.aperiodic, range: [fitRange[0], fitRange[1]] } };
     downloadBlob(new Blob([JSON.stringify(recipe, null, 2) + '\n'], { type: 'application/json' }), 'recipe.json');
   };

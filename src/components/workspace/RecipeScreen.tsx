@@ -3,16 +3,14 @@ import ResolutionTable from './ResolutionTable';
 import { isBrainType } from '../../lib/analysis/channel-types';
 import { conditionRecording } from '../../lib/analysis/condition-recording';
 import type { WorkspaceProps } from './types';
-import { AnalysisInputError } from '../../lib/analysis/errors';
-import { planRecipe } from '../../lib/analysis/run-recipe';
-import { decompositionKey, toRecipe, useRecipeStore, type CyclesMode } from '../../stores/recipe';
-import { cancelDecomposition, recordingIdOf, runDecomposition, useResultsStore } from '../../stores/results';
-import { conditioningSpec, useSourceStore } from '../../stores/source';
-import { useViewStore } from '../../stores/view';
-import { applyRecipe } from '../../stores/apply-recipe';
+import { decompositionKey, toRecipe, type CyclesMode } from '../../lib/client/workspace/recipe';
+import { cancelDecomposition, checkRecipe, recordingIdOf, runDecomposition, useResultsStore } from '../../lib/client/workspace/results';
+import { conditioningSpec } from '../../lib/client/workspace/source-rules';
+import { applyRecipe } from '../../lib/client/workspace/apply-recipe';
 import NumberField from '../explorer/NumberField';
 import { usePanelVisible } from '../explorer/usePanelVisible';
 import Choice from '../explorer/Choice';
+import { useWorkspace } from '../../lib/client/workspace/store';
 
 /** Which input shows a core error for `field` (a dotted recipe path). */
 function fieldGroup(field: string): string {
@@ -25,35 +23,35 @@ function fieldGroup(field: string): string {
 
 /** The Recipe screen: the decomposition's parameters, validated against the open recording, and its run. */
 export default function RecipeScreen(_props: WorkspaceProps) {
-  const draft = useRecipeStore((s) => s.draft);
-  const run = useRecipeStore((s) => s.run);
-  const setDraft = useRecipeStore((s) => s.setDraft);
-  const recording = useSourceStore((s) => s.recording);
-  const fingerprint = useSourceStore((s) => s.fingerprint);
-  const reading = useSourceStore((s) => s.local?.reading ?? null);
-  const conditions = useSourceStore((s) => s.conditions);
-  const epochWindow = useSourceStore((s) => s.epochWindow);
-  const decisions = useSourceStore((s) => s.decisions);
-  const rejection = useSourceStore((s) => s.rejection);
-  const conditioning = useSourceStore((s) => s.conditioning);
-  const eventSelection = useSourceStore((s) => s.eventSelection);
-  const fitRange = useViewStore((s) => s.fitRange);
-  const setView = useViewStore((s) => s.set);
+  const draft = useWorkspace((s) => s.draft);
+  const run = useWorkspace((s) => s.run);
+  const setDraft = useWorkspace((s) => s.setDraft);
+  const recording = useWorkspace((s) => s.recording);
+  const fingerprint = useWorkspace((s) => s.fingerprint);
+  const reading = useWorkspace((s) => s.local?.reading ?? null);
+  const conditions = useWorkspace((s) => s.conditions);
+  const epochWindow = useWorkspace((s) => s.epochWindow);
+  const decisions = useWorkspace((s) => s.decisions);
+  const rejection = useWorkspace((s) => s.rejection);
+  const conditioning = useWorkspace((s) => s.conditioning);
+  const eventSelection = useWorkspace((s) => s.eventSelection);
+  const fitRange = useWorkspace((s) => s.fitRange);
+  const setView = useWorkspace((s) => s.set);
   const fileInput = useRef<HTMLInputElement>(null);
   const [loaded, setLoaded] = useState<{ ok: boolean; text: string } | null>(null);
-  const settingsError = useSourceStore((s) => s.settingsError);
-  const baseline = useViewStore((s) => s.baseline);
-  const method = useViewStore((s) => s.method);
-  const scope = useViewStore((s) => s.scope);
-  const spread = useViewStore((s) => s.spread);
-  const viewChannel = useViewStore((s) => s.channel);
+  const settingsError = useWorkspace((s) => s.settingsError);
+  const baseline = useWorkspace((s) => s.baseline);
+  const method = useWorkspace((s) => s.method);
+  const scope = useWorkspace((s) => s.scope);
+  const spread = useWorkspace((s) => s.spread);
+  const viewChannel = useWorkspace((s) => s.channel);
   const cache = useResultsStore((s) => s.cache);
   const activeKey = useResultsStore((s) => s.activeKey);
   // Hidden, the screen skips validation: the baseline it reads changes on every drag of the Maps screen.
   const visible = usePanelVisible('Recipe');
 
   const conditionNames = conditions.map((c) => c.name);
-  const recipe = toRecipe(draft, { conditions, epochStart: epochWindow.start, epochEnd: epochWindow.end, rejection, conditioning, eventSelection, fingerprint, reading }, { ...baseline, method, scope, spread }, fitRange);
+  const recipe = toRecipe({ draft, conditions, epochWindow, rejection, conditioning, eventSelection, fingerprint, local: { reading: reading ?? undefined }, baseline, method, scope, spread, fitRange });
   // The whole recording goes to the core with the full recipe: prepareRecording applies conditions and rejection there.
   const analysis = recording;
   const recordingId = recording === null ? null : recordingIdOf(recording, fingerprint);
@@ -62,13 +60,8 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const check = useMemo((): { field: string; problem: string; message: string } | null => {
     if (analysis === null || !visible) return null;
     if (recipe.epochs.events.length === 0) return { field: 'conditions', problem: 'choose at least one condition (define them on the Source screen)', message: '' };
-    try {
-      planRecipe(analysis, recipe);
-      return null;
-    } catch (error) {
-      if (error instanceof AnalysisInputError) return { field: fieldGroup(error.field), problem: error.problem, message: error.message };
-      throw error;
-    }
+    const problem = checkRecipe(analysis, recordingId!, recipe);
+    return problem === null ? null : { field: fieldGroup(problem.field), problem: problem.problem, message: problem.message };
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [analysis, visible, decisions, JSON.stringify(recipe)]);
   const errorFor = (group: string) => (check !== null && check.field === group ? check.problem : null);
@@ -178,8 +171,8 @@ export default function RecipeScreen(_props: WorkspaceProps) {
         <legend className="px-1 text-sm font-semibold">Epochs and conditions</legend>
         <div className="flex flex-wrap items-end gap-4">
           {/* The epoch window belongs to the Source screen (its rejection rules run on it); edited here through its store. */}
-          <NumberField label="Epoch from" unit="s" value={epochWindow.start} step={0.1} testId="recipe-epoch-start" error={errorFor('epochs.start')} onValue={(v) => useSourceStore.getState().setEpochWindow({ start: v, end: epochWindow.end })} />
-          <NumberField label="Epoch to" unit="s" value={epochWindow.end} step={0.1} testId="recipe-epoch-end" error={errorFor('epochs.end')} onValue={(v) => useSourceStore.getState().setEpochWindow({ start: epochWindow.start, end: v })} />
+          <NumberField label="Epoch from" unit="s" value={epochWindow.start} step={0.1} testId="recipe-epoch-start" error={errorFor('epochs.start')} onValue={(v) => useWorkspace.getState().setEpochWindow({ start: v, end: epochWindow.end })} />
+          <NumberField label="Epoch to" unit="s" value={epochWindow.end} step={0.1} testId="recipe-epoch-end" error={errorFor('epochs.end')} onValue={(v) => useWorkspace.getState().setEpochWindow({ start: epochWindow.start, end: v })} />
           <p className="text-sm text-ink-soft">around each event; only epochs kept on the Source screen are used.</p>
         </div>
         {settingsError !== null && (

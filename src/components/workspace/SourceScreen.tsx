@@ -1,6 +1,6 @@
 import { useCallback, useRef, useState } from 'react';
 import type { WorkspaceProps } from './types';
-import { conditionsPerLabel, useSourceStore } from '../../stores/source';
+import { conditionsPerLabel } from '../../lib/client/workspace/source-rules';
 import { openRecordingFile, type IntakePhase, type IntakeProblem, type RecordingKind } from '../../lib/client/intake';
 import { libraryFor, LibraryFullError, type LibraryEntry } from '../../lib/client/library';
 import { errorMessageOf, guardAgainst, send } from '../../lib/client/outbound';
@@ -16,6 +16,7 @@ import RejectionPanel from '../source/RejectionPanel';
 import SessionPanel from '../source/SessionPanel';
 import UnitChoice, { type UnitDecision } from '../source/UnitChoice';
 import { formatBytes } from '../source/format';
+import { useWorkspace } from '../../lib/client/workspace/store';
 
 type Origin = 'your file' | 'demo cohort' | 'this browser’s library';
 
@@ -90,18 +91,18 @@ function readingOf(kind: RecordingKind & { kind: 'edf' }): { unitFactors?: Recor
 }
 
 export default function SourceScreen(props: WorkspaceProps) {
-  const recording = useSourceStore((s) => s.recording);
-  const local = useSourceStore((s) => s.local);
-  const fingerprint = useSourceStore((s) => s.fingerprint);
-  const conditions = useSourceStore((s) => s.conditions);
-  const epochWindow = useSourceStore((s) => s.epochWindow);
-  const rejection = useSourceStore((s) => s.rejection);
-  const conditioning = useSourceStore((s) => s.conditioning);
-  const eventSelection = useSourceStore((s) => s.eventSelection);
-  const decisions = useSourceStore((s) => s.decisions);
-  const settingsError = useSourceStore((s) => s.settingsError);
-  const subjectCode = useSourceStore((s) => s.subjectCode);
-  const store = useSourceStore.getState;
+  const recording = useWorkspace((s) => s.recording);
+  const local = useWorkspace((s) => s.local);
+  const fingerprint = useWorkspace((s) => s.fingerprint);
+  const conditions = useWorkspace((s) => s.conditions);
+  const epochWindow = useWorkspace((s) => s.epochWindow);
+  const rejection = useWorkspace((s) => s.rejection);
+  const conditioning = useWorkspace((s) => s.conditioning);
+  const eventSelection = useWorkspace((s) => s.eventSelection);
+  const decisions = useWorkspace((s) => s.decisions);
+  const settingsError = useWorkspace((s) => s.settingsError);
+  const subjectCode = useWorkspace((s) => s.subjectCode);
+  const store = useWorkspace.getState;
   const library = libraryFor(props.userId);
 
   const [busy, setBusy] = useState<Busy | null>(null);

@@ -9,9 +9,8 @@ import type { EpochSpectra } from '../../lib/analysis/epoch-spectra';
 import { explorerWorker } from '../../lib/client/explorer-worker';
 import { axisScale, drawLineAxes, drawSeries, type LineLayout, type Series } from '../../lib/plot/line-plot';
 import { CORAL, INK } from '../../lib/plot/figure';
-import { selectActive, useResultsStore, type Decomposition } from '../../stores/results';
-import { useSourceStore } from '../../stores/source';
-import { useViewStore, type SpectrumAxes } from '../../stores/view';
+import { selectActive, useResultsStore, type Decomposition } from '../../lib/client/workspace/results';
+import { type SpectrumAxes } from '../../lib/client/workspace/view';
 import CanvasPlot from '../explorer/CanvasPlot';
 import Choice from '../explorer/Choice';
 import FitTable, { describePeaks, type FitRow } from '../explorer/FitTable';
@@ -20,6 +19,7 @@ import NumberField from '../explorer/NumberField';
 import ScalpMap from '../explorer/ScalpMap';
 import { downloadBlob } from '../explorer/download';
 import { usePanelVisible } from '../explorer/usePanelVisible';
+import { useWorkspace } from '../../lib/client/workspace/store';
 
 /**
  * A result the explorer worker computes once per decomposition from copies of its channels' samples (transferred,
@@ -40,7 +40,7 @@ function useChannelWork<T>(
       return;
     }
     setValue(null);
-    const recording = useSourceStore.getState().recording;
+    const recording = useWorkspace.getState().recording;
     if (recording === null) return;
     let live = true;
     // The recording as the run saw it: channel types, bad channels, reference and filters (cached in the core).
@@ -95,10 +95,10 @@ type Fit = { fit: AperiodicFit; error: null } | { fit: null; error: string };
 /** Welch spectra per trial and averaged, the aperiodic fit with its draggable range, the spectrum above the fit. */
 export default function SpectrumScreen(_props: WorkspaceProps) {
   const d = useResultsStore(selectActive);
-  const channel = useViewStore((s) => s.channel);
-  const axes = useViewStore((s) => s.spectrumAxes);
-  const fitRange = useViewStore((s) => s.fitRange);
-  const setView = useViewStore((s) => s.set);
+  const channel = useWorkspace((s) => s.channel);
+  const axes = useWorkspace((s) => s.spectrumAxes);
+  const fitRange = useWorkspace((s) => s.fitRange);
+  const setView = useWorkspace((s) => s.set);
   const visible = usePanelVisible('Spectrum');
   const spectra = useEpochSpectra(d, visible);
   const recipeSpectra = useRecipeSpectra(d, visible);
