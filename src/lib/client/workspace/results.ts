@@ -103,6 +103,8 @@ export interface ResultsConfig {
   budgetBytes: number;
   /** Plans a recipe on a recording (default `planRun` from the core); counted by tests. */
   plan: typeof planRun;
+  /** Hands one channel's single-trial power to the explorer worker (default: the explorer's one worker). */
+  holdTrials: (key: string, trials: Float32Array[], counts: number[], frequencies: number, times: number) => Promise<unknown>;
 }
 
 const defaults: ResultsConfig = {
@@ -110,6 +112,8 @@ const defaults: ResultsConfig = {
   // 512 MiB: a 64-channel, 4-condition, 30 × 1536 map decomposition is about 100 MB.
   budgetBytes: 512 * 1024 * 1024,
   plan: planRun,
+  // The worker keeps these; the main thread does not, so they move rather than being copied (tens of MB).
+  holdTrials: (key, trials, counts, frequencies, times) => explorerWorker().holdTrials(key, Comlink.transfer(trials, trials.map((t) => t.buffer)), counts, frequencies, times),
 };
 let config: ResultsConfig = defaults;
 let pool: Pick<DecomposePool, 'run' | 'cancel'> | null = null;
@@ -271,9 +275,7 @@ export function cancelDecomposition(): void {
 
 async function holdTrials(d: Decomposition, channel: string, singleTrials: Float32Array[]): Promise<void> {
   const key = `${d.key}|${channel}`;
-  // The worker keeps these; the main thread does not, so they move rather than being copied (tens of MB).
-  const moved = Comlink.transfer(singleTrials, singleTrials.map((t) => t.buffer));
-  await explorerWorker().holdTrials(key, moved, d.trials, d.frequencies.length, d.times.length);
+  await config.holdTrials(key, singleTrials, d.trials, d.frequencies.length, d.times.length);
   useResultsStore.setState({ trialHold: { key, status: 'ready', message: null } });
 }
 

@@ -46,6 +46,8 @@ export interface WorkspaceData extends ViewSettings {
   /** The Recipe screen's fields as entered. */
   draft: RecipeDraft;
   run: RunState;
+  /** Counts recordings opened (`load`): the controller starts a new history and looks up a saved workspace. */
+  openCount: number;
 }
 
 export interface WorkspaceActions {
@@ -88,6 +90,7 @@ export const INITIAL_WORKSPACE: WorkspaceData = {
   settingsError: null,
   draft: DEFAULT_DRAFT,
   run: { status: 'idle', progress: [], message: null },
+  openCount: 0,
 };
 
 export const useWorkspace = create<WorkspaceState>((set, get) => ({
@@ -107,7 +110,7 @@ export const useWorkspace = create<WorkspaceState>((set, get) => ({
     const has = (n: string) => recording.channelNames.includes(n);
     const previous = get().conditioning;
     const conditioning = { ...previous, types: Object.fromEntries(Object.entries(previous.types).filter(([n]) => has(n))), bad: previous.bad.filter(has) };
-    set({ recording, local, fingerprint, conditions, rejection, conditioning, eventSelection: null, ...decideEpochs({ ...get(), recording, conditions, rejection, conditioning }) });
+    set({ openCount: get().openCount + 1, recording, local, fingerprint, conditions, rejection, conditioning, eventSelection: null, ...decideEpochs({ ...get(), recording, conditions, rejection, conditioning }) });
   },
   setConditions: (conditions) => set({ conditions, ...decideEpochs({ ...get(), conditions }) }),
   setEpochWindow: (epochWindow) => set({ epochWindow, ...decideEpochs({ ...get(), epochWindow }) }),
