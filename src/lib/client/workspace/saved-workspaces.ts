@@ -35,14 +35,17 @@ function shortLivedStore(dbName: string, storeName: string): UseStore {
         let out: unknown;
         try {
           const tx = db.transaction(storeName, txMode);
-          tx.oncomplete = () => {
+          // Listeners, not on… properties: idb-keyval's own promisifyRequest(transaction) sets those.
+          tx.addEventListener('complete', () => {
             db.close();
             resolve(out as never);
-          };
-          tx.onerror = tx.onabort = () => {
+          });
+          const failed = () => {
             db.close();
             reject(tx.error ?? new Error('the browser refused the change'));
           };
+          tx.addEventListener('error', failed);
+          tx.addEventListener('abort', failed);
           Promise.resolve(callback(tx.objectStore(storeName))).then((v) => (out = v), reject);
         } catch (error) {
           db.close();
