@@ -33,10 +33,10 @@ export default function MemoryBar() {
   if (!open) return null;
   return (
     <div className="mt-3 flex flex-wrap items-center gap-3 text-sm" data-testid="memory-bar">
-      <button type="button" className="btn btn-quiet" disabled={!canUndo} onClick={() => undo()} aria-keyshortcuts="Control+Z Meta+Z" data-testid="undo">
+      <button type="button" className="btn btn-quiet disabled:opacity-50" disabled={!canUndo} onClick={() => undo()} aria-keyshortcuts="Control+Z Meta+Z" data-testid="undo">
         ↶ Undo
       </button>
-      <button type="button" className="btn btn-quiet" disabled={!canRedo} onClick={() => redo()} aria-keyshortcuts="Control+Shift+Z Meta+Shift+Z Control+Y" data-testid="redo">
+      <button type="button" className="btn btn-quiet disabled:opacity-50" disabled={!canRedo} onClick={() => redo()} aria-keyshortcuts="Control+Shift+Z Meta+Shift+Z Control+Y" data-testid="redo">
         ↷ Redo
       </button>
       {restoredFrom !== null && (
