@@ -1,12 +1,9 @@
-import * as Comlink from 'comlink';
-import { conditionRecording } from '../../lib/analysis/condition-recording';
-import { parseRecipe } from '../../lib/analysis/recipe';
 import { useEffect, useMemo, useRef, useState, type PointerEvent, type KeyboardEvent } from 'react';
 import Papa from 'papaparse';
 import type { WorkspaceProps } from './types';
-import { aperiodicLine as fitLine, fitAperiodic, type AperiodicFit } from '../../lib/analysis/aperiodic';
+import { aperiodicLine as fitLine, type AperiodicFit, type AperiodicOutcome } from '../../lib/analysis/aperiodic';
 import type { EpochSpectra } from '../../lib/analysis/epoch-spectra';
-import { explorerWorker } from '../../lib/client/explorer-worker';
+import { spectrumWork, type RecipeSpectrum } from '../../lib/client/workspace/spectra';
 import { axisScale, drawLineAxes, drawSeries, type LineLayout, type Series } from '../../lib/plot/line-plot';
 import { CORAL, INK } from '../../lib/plot/figure';
 import { selectActive, useResultsStore, type Decomposition } from '../../lib/client/workspace/results';
@@ -21,76 +18,26 @@ import { downloadBlob } from '../explorer/download';
 import { usePanelVisible } from '../explorer/usePanelVisible';
 import { useWorkspace } from '../../lib/client/workspace/store';
 
-/**
- * A result the explorer worker computes once per decomposition from copies of its channels' samples (transferred,
- * not cloned a second time), cached by decomposition key and fetched only while the panel is visible.
- */
-function useChannelWork<T>(
-  d: Decomposition | null,
-  visible: boolean,
-  cache: Map<string, T>,
-  compute: (d: Decomposition, samples: Float32Array[]) => Promise<T>,
-): T | null {
-  const [value, setValue] = useState<T | null>(null);
+/** The value of `work` for `d` once the controller has it (computed in a worker, cached there); null meanwhile. */
+function useWork<T>(d: Decomposition | null, ready: boolean, work: (d: Decomposition) => Promise<T> | null, deps: unknown[]): T | null {
+  const [value, setValue] = useState<{ key: unknown[]; value: T } | null>(null);
   useEffect(() => {
-    if (d === null || !visible) return;
-    const cached = cache.get(d.key);
-    if (cached !== undefined) {
-      setValue(cached);
-      return;
-    }
-    setValue(null);
-    const recording = useWorkspace.getState().recording;
-    if (recording === null) return;
+    if (d === null || !ready) return;
+    const p = work(d);
+    if (p === null) return;
     let live = true;
-    // The recording as the run saw it: channel types, bad channels, reference and filters (cached in the core).
-    const conditioned = conditionRecording(recording, parseRecipe(d.recipe)).recording;
-    const samples = d.channels.map((c) => conditioned.data[conditioned.channelNames.indexOf(c)].slice());
-    void compute(d, Comlink.transfer(samples, samples.map((x) => x.buffer))).then((out) => {
-      cache.set(d.key, out);
-      if (live) setValue(out);
-    });
+    // A request overtaken by a newer one (a fit range dragged on) is dropped by the controller: nothing to show.
+    p.then((v) => live && setValue({ key: [d, ...deps], value: v }), () => undefined);
     return () => {
       live = false;
     };
-  }, [d, visible]);
-  return value;
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [d, ready, ...deps]);
+  // A value made for other inputs is not shown (the previous fit while a new one is computed is, for a smooth drag).
+  return value !== null && value.key[0] === d ? value.value : null;
 }
 
-const spectraCache = new Map<string, EpochSpectra[]>();
-
-/** Per-epoch Welch spectra of every channel of the decomposition, computed once in the explorer worker. */
-function useEpochSpectra(d: Decomposition | null, visible: boolean): EpochSpectra[] | null {
-  return useChannelWork(d, visible, spectraCache, (d, samples) => {
-    const starts = new Int32Array(d.epochStarts.reduce((n, s) => n + s.length, 0));
-    let o = 0;
-    for (const s of d.epochStarts) {
-      starts.set(s, o);
-      o += s.length;
-    }
-    const range = d.recipe.spectrum.range as [number, number];
-    return explorerWorker().spectra(samples, d.sampleRateHz, starts, d.epochSamples, d.spectrumSegmentSamples, d.spectrumOverlapSamples, range);
-  });
-}
-
-interface RecipeSpectrum {
-  frequencies: Float64Array;
-  psd: Float64Array;
-}
-
-const recipeSpectraCache = new Map<string, RecipeSpectrum[]>();
-
-/**
- * The recipe's own spectrum of every channel: Welch over `spectrum.source` (whole recording or kept epochs) with the
- * recipe's segment and overlap, the same `welchPsd` call `analyzeChannel` makes, so its fit equals the CLI's.
- */
-function useRecipeSpectra(d: Decomposition | null, visible: boolean): RecipeSpectrum[] | null {
-  return useChannelWork(d, visible, recipeSpectraCache, (d, samples) =>
-    explorerWorker().recipeSpectra(samples, d.sampleRateHz, d.spectrumSegmentSamples, d.spectrumOverlapSamples, d.spectrumSpans.slice()),
-  );
-}
-
-type Fit = { fit: AperiodicFit; error: null } | { fit: null; error: string };
+type Fit = AperiodicOutcome;
 
 /** Welch spectra per trial and averaged, the aperiodic fit with its draggable range, the spectrum above the fit. */
 export default function SpectrumScreen(_props: WorkspaceProps) {
@@ -100,21 +47,13 @@ export default function SpectrumScreen(_props: WorkspaceProps) {
   const fitRange = useWorkspace((s) => s.fitRange);
   const setView = useWorkspace((s) => s.set);
   const visible = usePanelVisible('Spectrum');
-  const spectra = useEpochSpectra(d, visible);
-  const recipeSpectra = useRecipeSpectra(d, visible);
+  const recording = useWorkspace((s) => s.recording);
+  const spectra = useWork(d, visible && recording !== null, (d) => spectrumWork.epochSpectra(d, recording!), []);
+  const recipeSpectra = useWork(d, visible && recording !== null, (d) => spectrumWork.recipeSpectra(d, recording!), []);
   const model = d?.recipe.aperiodic.model ?? 'power-law';
-
-  // Fitted as analyzeChannel fits: the recipe's spectrum over all its bins, the live fit range, the recipe's model.
-  const fits = useMemo((): Fit[] | null => {
-    if (recipeSpectra === null) return null;
-    return recipeSpectra.map((s) => {
-      try {
-        return { fit: fitAperiodic(s.frequencies, s.psd, fitRange, model), error: null };
-      } catch (error) {
-        return { fit: null, error: error instanceof Error ? error.message : String(error) };
-      }
-    });
-  }, [recipeSpectra, fitRange, model]);
+  // Fitted as analyzeChannel fits (the recipe's spectrum over all its bins, the live fit range, the recipe's
+  // model), in the explorer worker: a drag of the fit range never refits on this thread.
+  const fits = useWork(d, recipeSpectra !== null, (d) => spectrumWork.fits(d, recipeSpectra!, fitRange, model), [recipeSpectra, fitRange[0], fitRange[1], model]);
 
   if (d === null) {
     return (
