@@ -1,11 +1,10 @@
 import { useEffect, useLayoutEffect, useMemo, useRef, useState } from 'react';
-import { flushSync } from 'react-dom';
 import type { WorkspaceProps } from './types';
 import type { BaselineMethod, BaselineSpread } from '../../lib/analysis/baseline';
 import { divergingColormap, sequentialColormap } from '../../lib/plot/colormap';
 import { extentLimits, methodUnit, neutralValue, ratioLimits, symmetricLimits, type ColourScale } from '../../lib/plot/colour-scale';
 import type { PanelSpec } from '../../lib/plot/panel';
-import { explorerWorker } from '../../lib/client/explorer-worker';
+import { requestTrialMaps, useTrialMaps } from '../../lib/client/workspace/trial-maps';
 import { useResultsStore, selectActive, ensureTrials } from '../../lib/client/workspace/results';
 import MapPanel, { type Cell } from '../explorer/MapPanel';
 import NumberField from '../explorer/NumberField';
@@ -21,15 +20,6 @@ const METHODS: { value: BaselineMethod; label: string }[] = [
   { value: 'z-score', label: 'z-score' },
   { value: 'power-ratio', label: 'power ratio' },
 ];
-
-interface TrialMaps {
-  key: string;
-  first: number;
-  last: number;
-  method: BaselineMethod;
-  spread: BaselineSpread;
-  maps: Float64Array[];
-}
 
 function fmtValue(v: number): string {
   if (!Number.isFinite(v)) return String(v);
@@ -56,7 +46,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
   const setView = useWorkspace((s) => s.set);
   const setBaseline = useWorkspace((s) => s.setBaseline);
   const [cursor, setCursor] = useState<Cell | null>(null);
-  const [trialMaps, setTrialMaps] = useState<TrialMaps | null>(null);
+  const trialMaps = useTrialMaps((s) => s.latest);
   const buffers = useRef<{ a: Float64Array; b: Float64Array; diff: Float64Array; rawDiff: Float64Array } | null>(null);
 
   const ci = d === null ? -1 : Math.max(0, channel === null ? 0 : d.channels.indexOf(channel));
@@ -84,23 +74,9 @@ export default function MapsScreen(_props: WorkspaceProps) {
     const recording = useWorkspace.getState().recording;
     if (recording !== null) void ensureTrials(d, ch, recording);
   }, [d, ch, useTrials]);
-  const pending = useRef<{ busy: boolean; next: { key: string; first: number; last: number; method: BaselineMethod; spread: BaselineSpread } | null }>({ busy: false, next: null });
   useEffect(() => {
     if (!useTrials || holdKey === null || trialHold?.key !== holdKey || trialHold.status !== 'ready') return;
-    pending.current.next = { key: holdKey, first: points.first, last: points.last, method, spread: spreadTrials ? 'trials' : 'time' };
-    if (pending.current.busy) return;
-    const pump = async () => {
-      pending.current.busy = true;
-      while (pending.current.next !== null) {
-        const job = pending.current.next;
-        pending.current.next = null;
-        const maps = await explorerWorker().renormalize(job.key, job.first, job.last, job.method, job.spread);
-        // Paint in this task, not a later one: the measure runs from the input to the painted canvas.
-        if (maps !== null) flushSync(() => setTrialMaps({ ...job, maps }));
-      }
-      pending.current.busy = false;
-    };
-    void pump();
+    requestTrialMaps({ key: holdKey, first: points.first, last: points.last, method, spread: spreadTrials ? 'trials' : 'time' });
   }, [useTrials, spreadTrials, holdKey, trialHold, points.first, points.last, method]);
 
   const nf = d === null ? 0 : d.frequencies.length;
