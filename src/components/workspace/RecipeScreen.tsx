@@ -10,6 +10,8 @@ import { applyRecipe } from '../../lib/client/workspace/apply-recipe';
 import NumberField from '../explorer/NumberField';
 import { usePanelVisible } from '../explorer/usePanelVisible';
 import Choice from '../explorer/Choice';
+import RunProgress, { ComputedList } from '../explorer/RunProgress';
+import RecipeChannels from '../explorer/RecipeChannels';
 import { useWorkspace } from '../../lib/client/workspace/store';
 
 /** Which input shows a core error for `field` (a dotted recipe path). */
@@ -84,7 +86,6 @@ export default function RecipeScreen(_props: WorkspaceProps) {
     { value: 'fixed', label: 'fixed cycles' },
     { value: 'fwhm', label: 'FWHM (s)' },
   ];
-  const allChannels = draft.channels.length === 0;
   // The channels a recipe can name: the recording as conditioned (bad ones out, bipolar pairs in), brain ones first.
   const conditioned = (() => {
     try {
@@ -207,39 +208,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
           </p>
         )}
       </fieldset>
-      <fieldset className="card flex flex-col gap-2 p-3">
-        <legend className="px-1 text-sm font-semibold">Channels</legend>
-        <label className="flex items-center gap-1 text-sm">
-          <input type="checkbox" checked={allChannels} onChange={() => setDraft({ channels: allChannels ? brain.slice(0, 1) : [] })} data-testid="recipe-all-channels" />
-          all {brain.length} brain channels (EEG, MEG, intracranial; types and bad channels on the Source screen)
-        </label>
-        <div className="flex flex-wrap gap-x-3 gap-y-1">
-          {candidates.map((name) => {
-            const on = allChannels ? brain.includes(name) : draft.channels.includes(name);
-            return (
-              <label key={name} className="flex items-center gap-1 font-mono text-sm">
-                <input
-                  type="checkbox"
-                  checked={on}
-                  data-testid={`recipe-channel-${name}`}
-                  onChange={() => {
-                    const current = allChannels ? brain : draft.channels;
-                    const next = on ? current.filter((n) => n !== name) : candidates.filter((n) => n === name || current.includes(n));
-                    setDraft({ channels: next.length === brain.length && next.every((n) => brain.includes(n)) ? [] : next });
-                  }}
-                />
-                {name}
-              </label>
-            );
-          })}
-        </div>
-        {!allChannels && draft.channels.length === 0 && <p className="text-sm text-coral-deep">Choose at least one channel.</p>}
-        {errorFor('channels') && (
-          <p className="text-sm text-coral-deep" role="alert">
-            channels {errorFor('channels')}
-          </p>
-        )}
-      </fieldset>
+      <RecipeChannels chosen={draft.channels} candidates={candidates} brain={brain} error={errorFor('channels')} onChoose={(channels) => setDraft({ channels })} />
       <fieldset className="card flex flex-wrap items-end gap-4 p-3">
         <legend className="px-1 text-sm font-semibold">Spectrum and aperiodic fit</legend>
         <NumberField label="Welch segment" unit="s" value={draft.spectrum.segment} step={0.25} error={errorFor('spectrum.segment')} onValue={(v) => setDraft({ spectrum: { ...draft.spectrum, segment: v } })} />
@@ -275,34 +244,8 @@ export default function RecipeScreen(_props: WorkspaceProps) {
           {fs} Hz · {recording.channelNames.length} channels · the samples stay on this device
         </span>
       </div>
-      {run.progress.length > 0 && (
-        <ul className="card grid grid-cols-[repeat(auto-fill,minmax(11rem,1fr))] gap-x-4 gap-y-1 p-3" data-testid="recipe-progress">
-          {run.progress.map((p) => (
-            <li key={p.channel} className="flex items-center gap-2 font-mono text-xs">
-              <span className="w-12">{p.channel}</span>
-              <div role="progressbar" aria-label={`${p.channel} progress`} aria-valuemin={0} aria-valuemax={100} aria-valuenow={Math.round(p.fraction * 100)} data-fraction={p.fraction} className="h-2 flex-1 overflow-hidden rounded-sm bg-sand-deep">
-                <div className="h-full bg-kelp" style={{ width: `${p.fraction * 100}%` }} />
-              </div>
-              <span className="w-10 text-right">{Math.round(p.fraction * 100)} %</span>
-            </li>
-          ))}
-        </ul>
-      )}
-      {Object.values(cache).length > 0 && (
-        <section className="card p-3">
-          <h3 className="text-sm font-semibold">Computed this session (kept in memory; switching back is instant)</h3>
-          <ul className="mt-1 text-sm">
-            {Object.values(cache).map((d) => (
-              <li key={d.key} className="flex items-center gap-2">
-                <button type="button" className="text-kelp-deep underline" onClick={() => useResultsStore.getState().set({ activeKey: d.key })}>
-                  {d.channels.length} ch · {d.frequencies.length} freqs {d.recipe.frequencies.min}–{d.recipe.frequencies.max} Hz ({d.spacing}) · {d.labels.join(', ')}
-                </button>
-                {d.key === activeKey && <span className="text-xs text-ink-soft">(shown)</span>}
-              </li>
-            ))}
-          </ul>
-        </section>
-      )}
+      <RunProgress progress={run.progress} />
+      <ComputedList cache={cache} activeKey={activeKey} />
     </form>
   );
 }

@@ -126,6 +126,11 @@ export function configureResults(patch: Partial<ResultsConfig> | null): void {
   trialPool = null;
 }
 
+/** Shows a kept decomposition on the screens (and marks it the most recently used). */
+export function showDecomposition(key: string): void {
+  if (useResultsStore.getState().cache[key] !== undefined) touch(key);
+}
+
 /** Forgets every decomposition (a new recording, or starting clean). */
 export function clearResults(): void {
   useResultsStore.setState({ cache: {}, order: [], activeKey: null, trialHold: null, fieldError: null });
