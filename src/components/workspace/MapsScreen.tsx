@@ -7,6 +7,7 @@ import type { PanelSpec } from '../../lib/plot/panel';
 import { requestTrialMaps, useTrialMaps } from '../../lib/client/workspace/trial-maps';
 import { useResultsStore, selectActive, ensureTrials } from '../../lib/client/workspace/results';
 import MapPanel, { type Cell } from '../explorer/MapPanel';
+import MapSelection, { MapReadout } from '../explorer/MapSelection';
 import NumberField from '../explorer/NumberField';
 import Choice from '../explorer/Choice';
 import { averageNormalized, baselinePoints, baselineWarnings, difference, snapToGrid } from '../explorer/map-model';
@@ -20,12 +21,6 @@ const METHODS: { value: BaselineMethod; label: string }[] = [
   { value: 'z-score', label: 'z-score' },
   { value: 'power-ratio', label: 'power ratio' },
 ];
-
-function fmtValue(v: number): string {
-  if (!Number.isFinite(v)) return String(v);
-  const a = Math.abs(v);
-  return a !== 0 && (a >= 1e5 || a < 1e-3) ? v.toExponential(3) : Number(v.toPrecision(4)).toString();
-}
 
 /** Raw and normalized time-frequency maps side by side, with the live baseline window. */
 export default function MapsScreen(_props: WorkspaceProps) {
@@ -186,37 +181,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
   return (
     <div className="flex flex-col gap-4" data-testid="maps-screen">
       <div className="card flex flex-wrap items-end gap-4 p-3">
-        <label className="flex flex-col gap-0.5 text-xs text-ink-soft">
-          Channel
-          <select className="rounded-sm border border-shell bg-foam px-2 py-1 text-sm text-ink" value={ch ?? ''} onChange={(e) => setView({ channel: e.target.value })} data-testid="maps-channel">
-            {d.channels.map((c) => (
-              <option key={c}>{c}</option>
-            ))}
-          </select>
-        </label>
-        <label className="flex flex-col gap-0.5 text-xs text-ink-soft">
-          Condition (A)
-          <select className="rounded-sm border border-shell bg-foam px-2 py-1 text-sm text-ink" value={d.labels[a]} onChange={(e) => setView({ condition: e.target.value })} data-testid="maps-condition">
-            {d.labels.map((l, i) => (
-              <option key={l} value={l}>
-                {l} ({d.trials[i]} trials)
-              </option>
-            ))}
-          </select>
-        </label>
-        <label className="flex flex-col gap-0.5 text-xs text-ink-soft">
-          Difference (A − B)
-          <select className="rounded-sm border border-shell bg-foam px-2 py-1 text-sm text-ink" value={b >= 0 ? d.labels[b] : ''} onChange={(e) => setView({ compareTo: e.target.value === '' ? null : e.target.value })} data-testid="maps-compare">
-            <option value="">none: A alone</option>
-            {d.labels.map((l, i) =>
-              i === a ? null : (
-                <option key={l} value={l}>
-                  minus {l}
-                </option>
-              ),
-            )}
-          </select>
-        </label>
+        <MapSelection d={d} channel={ch ?? ''} a={a} b={b} onView={setView} />
         <Choice legend="Method" value={method} options={METHODS} onChange={(m) => setView({ method: m })} />
         {method === 'z-score' && (
           <Choice legend="z-score spread" value={spread} options={[{ value: 'time', label: 'over baseline time' }, { value: 'trials', label: 'across trials' }]} onChange={(s) => setView({ spread: s })} />
@@ -259,19 +224,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
         </div>
       </div>
       </div>
-      <output
-        className="card block p-2 font-mono text-sm"
-        data-testid="map-readout"
-        data-time={readout?.t}
-        data-frequency={readout?.f}
-        data-raw={readout?.raw}
-        data-normalized={readout?.norm}
-        data-fresh={normFresh ? 'yes' : 'no'}
-      >
-        {readout === null
-          ? 'Point at a map (or focus it and use the arrow keys) to read time, frequency and value.'
-          : `t ${Number(readout.t.toFixed(4))} s · f ${Number(readout.f.toPrecision(4))} Hz · raw ${fmtValue(readout.raw)} µV² · normalized ${fmtValue(readout.norm)} ${methodUnit(method)}`}
-      </output>
+      <MapReadout readout={readout} fresh={normFresh} unit={methodUnit(method)} />
       {runWarnings.length > 0 && (
         <ul className="text-sm text-coral-deep">
           {runWarnings.map((w) => (
