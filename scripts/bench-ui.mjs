@@ -134,10 +134,10 @@ await runMain(async () => {
     const loaded = await page.evaluate(() => {
       const hooks = window.__tidemark;
       const info = hooks.loadDemo({ seconds: 250, channels: ['Fz'], epochStart: -1, epochEnd: 2.07, pooled: true });
-      hooks.stores.source.getState().setRejection({ peakToPeakMicrovolts: null, flatMicrovolts: null });
-      hooks.stores.recipe.getState().setDraft({ frequencies: { min: 3, max: 40, count: 40, spacing: 'log' } });
-      hooks.stores.view.getState().set({ baseline: { start: -0.6, end: -0.3 } });
-      return { ...info, kept: hooks.stores.source.getState().decisions.filter((d) => !d.rejected).length };
+      hooks.stores.workspace.getState().setRejection({ peakToPeakMicrovolts: null, flatMicrovolts: null });
+      hooks.stores.workspace.getState().setDraft({ frequencies: { min: 3, max: 40, count: 40, spacing: 'log' } });
+      hooks.stores.workspace.getState().set({ baseline: { start: -0.6, end: -0.3 } });
+      return { ...info, kept: hooks.stores.workspace.getState().decisions.filter((d) => !d.rejected).length };
     });
     log(`bench recording: ${loaded.channels.join(', ')}, ${loaded.kept} kept trials`);
     await page.getByRole('tab', { name: 'Recipe' }).click();
@@ -177,7 +177,7 @@ await runMain(async () => {
       { scope: 'trial', method: 'percent-change', target: 12 },
     ];
     for (const run of runs) {
-      await page.evaluate(({ scope, method }) => window.__tidemark.stores.view.getState().set({ scope, method }), run);
+      await page.evaluate(({ scope, method }) => window.__tidemark.stores.workspace.getState().set({ scope, method }), run);
       if (run.scope === 'trial') {
         await page.waitForFunction(() => document.querySelector('[data-testid="map-readout"]')?.getAttribute('data-fresh') === 'yes' && !document.body.textContent.includes('Preparing single-trial maps'), undefined, { timeout: 300_000 });
       }

@@ -5,6 +5,7 @@ import type { BaselineMethod, BaselineSpread } from '../src/lib/analysis/baselin
 import { epochSpectra, type EpochSpectra } from '../src/lib/analysis/epoch-spectra';
 import { prepareTrialPower, renormalizeTrials, type TrialPower } from '../src/lib/analysis/renormalize';
 import { welchPsd } from '../src/lib/analysis/welch';
+import { fitAperiodicEach, type AperiodicModel } from '../src/lib/analysis/aperiodic';
 
 let held: { key: string; conditions: TrialPower[] } | null = null;
 
@@ -37,6 +38,10 @@ const api = {
   ): EpochSpectra[] {
     const out = channels.map((x) => epochSpectra(x, sampleRateHz, epochStarts, epochSamples, segmentSamples, overlapSamples, rangeHz));
     return Comlink.transfer(out, out.flatMap((s) => [s.frequencies.buffer, s.perTrial.buffer, s.mean.buffer]) as ArrayBuffer[]);
+  },
+  /** The aperiodic fit of each spectrum over `rangeHz` with `model` (the core's one model), or why it failed. */
+  fitEach(spectra: { frequencies: Float64Array; psd: Float64Array }[], rangeHz: [number, number], model: AperiodicModel) {
+    return fitAperiodicEach(spectra, rangeHz, model);
   },
   /** The recipe's Welch spectrum of each channel over `spans` (whole recording or epochs), as `analyzeChannel` computes it. */
   recipeSpectra(channels: Float32Array[], sampleRateHz: number, segmentSamples: number, overlapSamples: number, spans: Int32Array): { frequencies: Float64Array; psd: Float64Array }[] {

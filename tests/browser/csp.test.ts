@@ -379,7 +379,7 @@ describe('Content-Security-Policy: nothing leaves for another origin', () => {
     expectAllBlocked(seen);
     expect(new Set((await violations(page)).map((v) => v.directive))).toEqual(new Set(REQUIRED_DIRECTIVES));
     // The open recording is still open: the attempts changed nothing.
-    expect(await page.evaluate(() => window.__tidemark!.stores.source.getState().recording !== null)).toBe(true);
+    expect(await page.evaluate(() => window.__tidemark!.stores.workspace.getState().recording !== null)).toBe(true);
     await context.close();
   });
 });

@@ -7,8 +7,8 @@ import type { Browser, Page } from 'playwright-core';
 import { artifactsDir, launchBrowser, downloadFrom } from '../helpers/browser';
 import { runRecipe, type AnalysisResult } from '../../src/lib/analysis/run-recipe';
 import { loadDemo } from '../../src/components/explorer/test-hooks';
-import { useSourceStore } from '../../src/stores/source';
 import { openWorkspace, readMapCell, recordProgress, progressSeen } from '../helpers/workspace';
+import { useWorkspace } from '../../src/lib/client/workspace/store';
 
 // The demo recording: 60 s of the invented Harbour Lights scenario, three channels, generated from its seed in the
 // page (through the ?testhooks hook) and here in Node, so both sides analyse the same samples.
@@ -33,7 +33,7 @@ const download = (testId: string) => downloadFrom(page, testId, artifactsDir);
 /** The core's result for a recipe in Node, on the same demo recording and the same epoch decisions. */
 function nodeResult(recipe: unknown): AnalysisResult {
   loadDemo(DEMO);
-  const recording = useSourceStore.getState().analysisRecording()!;
+  const recording = useWorkspace.getState().analysisRecording()!;
   return runRecipe(recording, recipe);
 }
 
@@ -130,7 +130,7 @@ describe('the explorer on a demo recording', () => {
     // The same kept epochs as the page: the Source store's analysis recording, written as a CSV of samples and a
     // BIDS events TSV (onset, duration, trial_type), then `npm run analyze` on them with the exported recipe.
     loadDemo(DEMO);
-    const rec = useSourceStore.getState().analysisRecording()!;
+    const rec = useWorkspace.getState().analysisRecording()!;
     const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'tidemark-cli-'));
     const lines = [rec.channelNames.join(',')];
     for (let i = 0; i < rec.data[0].length; i++) lines.push(rec.data.map((x) => String(x[i])).join(','));
@@ -277,7 +277,7 @@ describe('the spectrum and band screens', () => {
     await page.getByTestId('fit-readout').waitFor({ timeout: 30_000 });
     const recipe = await exportedRecipe();
     loadDemo(DEMO);
-    const recording = useSourceStore.getState().analysisRecording()!;
+    const recording = useWorkspace.getState().analysisRecording()!;
     const plan = planRecipe(recording, recipe);
     // spectrum.source "epochs" (the browser's default): Welch over the kept epochs, as analyzeChannel computes it for the CLI.
     const fz = welchPsd(recording.data[recording.channelNames.indexOf('Fz')], 500, plan.spectrum.segmentSamples, plan.spectrum.overlapSamples, plan.spectrum.spans);

@@ -135,14 +135,14 @@ describe('browser worker pool and command line on the same EDF+ bytes', () => {
 
     await page.getByRole('tab', { name: 'Recipe' }).click();
     await page.getByTestId('recipe-fcount').fill('12');
-    await expect.poll(() => page.evaluate(() => window.__tidemark!.stores.recipe.getState().draft.frequencies.count)).toBe(12);
+    await expect.poll(() => page.evaluate(() => window.__tidemark!.stores.workspace.getState().draft.frequencies.count)).toBe(12);
     await page.getByTestId('recipe-run').click();
     await page.waitForFunction(() => document.querySelector('[data-testid="recipe-status"]')?.getAttribute('data-status') === 'done', undefined, { timeout: 45_000 });
 
     const shown = JSON.parse(
       await page.evaluate(() => {
         const s = window.__tidemark!.stores.results.getState();
-        const s0 = window.__tidemark!.stores.source.getState();
+        const s0 = window.__tidemark!.stores.workspace.getState();
         const d = s.cache[s.activeKey!];
         return JSON.stringify({
           recipe: d.recipe,

@@ -32,7 +32,7 @@ async function sessionId(): Promise<string> {
 function memory() {
   return page.evaluate(() => {
     const t = window.__tidemark!;
-    const source = t.stores.source.getState();
+    const source = t.stores.workspace.getState();
     const results = t.stores.results.getState();
     return {
       fingerprint: source.fingerprint,

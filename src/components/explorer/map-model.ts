@@ -1,7 +1,7 @@
 import { baselinePointsIn, type BaselineMethod } from '../../lib/analysis/baseline';
 import { baselineEdgeOverlap } from '../../lib/analysis/edge-zone';
 import { renormalizeAverage } from '../../lib/analysis/renormalize';
-import type { Decomposition } from '../../stores/results';
+import type { Decomposition } from '../../lib/client/workspace/results';
 
 /** Baseline grid indices clamped to the epoch, as the core plans them (analysis contract). */
 export function baselinePoints(d: Decomposition, baseline: { start: number; end: number }): { first: number; last: number } {

@@ -2,7 +2,8 @@
 // decomposition pool (module Web Workers from the bundled decompose.worker.ts) on the recording open in the Source
 // store, so a browser test can compare the complete Result with the command line's. Nothing is sent anywhere.
 import { DecomposePool } from '../../lib/client/decompose-pool';
-import { openedWarnings, useSourceStore } from '../../stores/source';
+import { useWorkspace } from '../../lib/client/workspace/store';
+import { openedWarnings } from '../../lib/client/workspace/source-rules';
 
 /**
  * The pool's Result for `recipe` on the open recording, as the JSON text the CLI writes. Like the Recipe screen it
@@ -10,13 +11,13 @@ import { openedWarnings, useSourceStore } from '../../stores/source';
  * The opened file's warnings come first in `warnings`, as the command line writes them.
  */
 export async function runPoolOnOpenRecording(recipe: unknown): Promise<string> {
-  const recording = useSourceStore.getState().recording;
+  const recording = useWorkspace.getState().recording;
   if (recording === null) throw new Error('no recording is open on the Source screen');
   const pool = new DecomposePool();
   try {
     const { result } = await pool.run(recording, recipe);
     // The file's own warnings first, as the command line writes them (src/cli/analyze.ts).
-    result.warnings.unshift(...openedWarnings(useSourceStore.getState().local));
+    result.warnings.unshift(...openedWarnings(useWorkspace.getState().local));
     return JSON.stringify(result);
   } finally {
     pool.terminate();

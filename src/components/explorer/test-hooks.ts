@@ -2,11 +2,9 @@
 // a synthetic demo recording (the invented Harbour Lights scenario, generated in this tab) and expose the stores.
 // Nothing here reads or sends a real recording.
 import { describeCohort, synthesizeSubject } from '../../lib/demo/cohort';
-import { useSourceStore } from '../../stores/source';
-import { useRecipeStore } from '../../stores/recipe';
-import { useViewStore } from '../../stores/view';
-import { useResultsStore } from '../../stores/results';
+import { useResultsStore } from '../../lib/client/workspace/results';
 import { runPoolOnOpenRecording } from './pool-test-hook';
+import { useWorkspace } from '../../lib/client/workspace/store';
 
 export interface DemoLoadOptions {
   seconds?: number;
@@ -36,8 +34,8 @@ export function demoRecording(options: DemoLoadOptions = {}) {
 /** Loads the demo into the Source store through its own actions, as the Source screen would. */
 export function loadDemo(options: DemoLoadOptions = {}) {
   const { parameters, recording } = demoRecording(options);
-  const source = useSourceStore.getState();
-  source.load({
+  const workspace = useWorkspace.getState();
+  workspace.load({
     recording,
     local: {
       fileName: parameters.fileName,
@@ -50,11 +48,11 @@ export function loadDemo(options: DemoLoadOptions = {}) {
     },
     fingerprint: `demo-${parameters.seed}-${parameters.seconds}-${recording.channelNames.join('.')}`,
   });
-  useSourceStore.getState().setEpochWindow({ start: options.epochStart ?? -0.5, end: options.epochEnd ?? 1.5 });
-  useSourceStore
+  useWorkspace.getState().setEpochWindow({ start: options.epochStart ?? -0.5, end: options.epochEnd ?? 1.5 });
+  useWorkspace
     .getState()
     .setConditions(options.pooled ? [{ name: 'all', labels: ['lamp-watch', 'oar-pull'] }] : [{ name: 'lamp-watch', labels: ['lamp-watch'] }, { name: 'oar-pull', labels: ['oar-pull'] }]);
-  const s = useSourceStore.getState();
+  const s = useWorkspace.getState();
   return { channels: recording.channelNames, decisions: s.decisions.length, kept: s.decisions.filter((d) => !d.rejected).length, settingsError: s.settingsError };
 }
 
@@ -63,7 +61,7 @@ declare global {
     __tidemark?: {
       loadDemo: typeof loadDemo;
       runPool: typeof runPoolOnOpenRecording;
-      stores: { source: typeof useSourceStore; recipe: typeof useRecipeStore; view: typeof useViewStore; results: typeof useResultsStore };
+      stores: { workspace: typeof useWorkspace; results: typeof useResultsStore };
     };
   }
 }
@@ -71,5 +69,5 @@ declare global {
 export function installTestHooks(): void {
   if (typeof window === 'undefined' || window.__tidemark !== undefined) return;
   if (!new URLSearchParams(window.location.search).has('testhooks')) return;
-  window.__tidemark = { loadDemo, runPool: runPoolOnOpenRecording, stores: { source: useSourceStore, recipe: useRecipeStore, view: useViewStore, results: useResultsStore } };
+  window.__tidemark = { loadDemo, runPool: runPoolOnOpenRecording, stores: { workspace: useWorkspace, results: useResultsStore } };
 }

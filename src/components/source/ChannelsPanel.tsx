@@ -1,7 +1,7 @@
 import { useMemo } from 'react';
 import { CHANNEL_TYPES, isBrainType, resolveChannels, type ChannelType } from '../../lib/analysis/channel-types';
 import type { Recording } from '../../lib/analysis/recording';
-import type { ConditioningSettings } from '../../stores/source';
+import type { ConditioningSettings } from '../../lib/client/workspace/source-rules';
 import FiltersPanel from './FiltersPanel';
 import ReferencePanel from './ReferencePanel';
 

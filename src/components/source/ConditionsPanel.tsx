@@ -1,7 +1,7 @@
 import { useEffect, useId, useMemo, useState } from 'react';
 import { countLabels } from '../../lib/analysis/conditions';
 import type { Recording } from '../../lib/analysis/recording';
-import type { Condition } from '../../stores/source';
+import type { Condition } from '../../lib/client/workspace/source-rules';
 
 interface Props {
   recording: Recording;

@@ -8,7 +8,7 @@ import {
   useReactTable,
   type SortingState,
 } from '@tanstack/react-table';
-import type { EpochDecision } from '../../stores/source';
+import type { EpochDecision } from '../../lib/client/workspace/source-rules';
 
 interface Props {
   decisions: EpochDecision[];

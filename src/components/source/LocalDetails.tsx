@@ -1,5 +1,5 @@
 import type { Recording } from '../../lib/analysis/recording';
-import { openedWarnings, type LocalRecordingInfo } from '../../stores/source';
+import { openedWarnings, type LocalRecordingInfo } from '../../lib/client/workspace/source-rules';
 import { formatBytes, formatSeconds } from './format';
 
 /** The marker on everything that identifies a recording: it is shown here and never sent. */

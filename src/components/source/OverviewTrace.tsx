@@ -2,7 +2,7 @@ import { useEffect, useId, useMemo, useRef, useState } from 'react';
 import { epochLength } from '../../lib/analysis/epochs';
 import type { Recording } from '../../lib/analysis/recording';
 import { roundHalfUp } from '../../lib/analysis/rounding';
-import type { EpochDecision } from '../../stores/source';
+import type { EpochDecision } from '../../lib/client/workspace/source-rules';
 import { drawOverview, envelope, type OverviewSpan } from './overview-draw';
 
 interface Props {

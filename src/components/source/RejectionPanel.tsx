@@ -2,7 +2,7 @@ import { useEffect, useId, useState } from 'react';
 import { tallyByCondition } from '../../lib/analysis/rejection';
 import type { Recording } from '../../lib/analysis/recording';
 import { isBrainType, resolveChannels, type ChannelType, type ChannelUnit } from '../../lib/analysis/channel-types';
-import type { ConditioningSettings, EpochDecision, RejectionSettings } from '../../stores/source';
+import type { ConditioningSettings, EpochDecision, RejectionSettings } from '../../lib/client/workspace/source-rules';
 import EpochTable from './EpochTable';
 
 interface Props {

@@ -1,6 +1,15 @@
+import type { RecordingKind } from '../../lib/client/intake';
 import { useId, useState } from 'react';
 
 export type UnitDecision = { kind: 'leave-out'; signal: string } | { kind: 'factor'; dimension: string; factor: number };
+
+/** The attempt's reading choices plus one more decision about an unknown unit. */
+export function withDecision(kind: RecordingKind & { kind: 'edf' }, decision: UnitDecision): RecordingKind {
+  const exclude = kind.exclude ?? [];
+  if (decision.kind === 'leave-out') return { ...kind, exclude: exclude.includes(decision.signal) ? exclude : [...exclude, decision.signal] };
+  return { ...kind, unitFactors: { ...kind.unitFactors, [decision.dimension]: decision.factor } };
+}
+
 
 interface Props {
   signal: string;

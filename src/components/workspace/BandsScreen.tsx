@@ -1,57 +1,15 @@
 import { useDeferredValue, useMemo } from 'react';
 import Papa from 'papaparse';
 import type { WorkspaceProps } from './types';
-import { bandWindowMean } from '../../lib/analysis/band-summary';
-import { renormalizeAverage } from '../../lib/analysis/renormalize';
+import { bandSummary, bandSummaryProblems, type BandRow } from '../../lib/client/workspace/band-summary';
 import { methodUnit, neutralValue } from '../../lib/plot/colour-scale';
-import { selectActive, useResultsStore, type Decomposition } from '../../stores/results';
-import { DEFAULT_BANDS, DEFAULT_WINDOWS, useViewStore, type Band, type TimeWindow } from '../../stores/view';
+import { selectActive, useResultsStore } from '../../lib/client/workspace/results';
+import { DEFAULT_BANDS, DEFAULT_WINDOWS, type Band, type TimeWindow } from '../../lib/client/workspace/view';
 import { baselinePoints } from '../explorer/map-model';
 import { downloadBlob } from '../explorer/download';
 import { usePanelVisible } from '../explorer/usePanelVisible';
 import NumberField from '../explorer/NumberField';
-
-export interface BandRow {
-  band: Band;
-  window: TimeWindow;
-  channel: string;
-  condition: string;
-  value: number;
-  cells: number;
-}
-
-/** Every band × window × channel × condition mean of the trial-averaged normalized map (average scope). */
-function summarize(d: Decomposition, bands: Band[], windows: TimeWindow[], baseline: { start: number; end: number }, method: 'decibel' | 'percent-change' | 'z-score' | 'power-ratio'): BandRow[] {
-  const points = baselinePoints(d, baseline);
-  const nt = d.times.length;
-  const buf = new Float64Array(d.frequencies.length * nt);
-  const rows: BandRow[] = [];
-  d.channels.forEach((channel, c) => {
-    d.labels.forEach((condition, k) => {
-      renormalizeAverage(buf, d.power[c][k], nt, points.first, points.last, method);
-      for (const band of bands) {
-        for (const window of windows) {
-          const { mean, cells } = bandWindowMean(buf, d.frequencies, d.times, d.mask, band.lowHz, band.highHz, window.startSeconds, window.endSeconds);
-          rows.push({ band, window, channel, condition, value: mean, cells });
-        }
-      }
-    });
-  });
-  return rows;
-}
-
-function bandProblem(b: Band, d: Decomposition): string | null {
-  if (!(b.lowHz < b.highHz)) return `${b.name}: the low edge (${b.lowHz} Hz) must be below the high edge (${b.highHz} Hz)`;
-  const inside = Array.from(d.frequencies).some((f) => f >= b.lowHz - 1e-9 && f <= b.highHz + 1e-9);
-  if (!inside) return `${b.name}: ${b.lowHz}–${b.highHz} Hz holds no frequency of the grid (${d.frequencies[0].toFixed(1)}–${d.frequencies[d.frequencies.length - 1].toFixed(1)} Hz)`;
-  return null;
-}
-
-function windowProblem(w: TimeWindow, d: Decomposition): string | null {
-  if (!(w.startSeconds <= w.endSeconds)) return `${w.name}: the start (${w.startSeconds} s) must not be after the end (${w.endSeconds} s)`;
-  if (w.endSeconds < d.times[0] || w.startSeconds > d.times[d.times.length - 1]) return `${w.name}: lies outside the epoch (${d.times[0]} to ${d.times[d.times.length - 1].toFixed(3)} s)`;
-  return null;
-}
+import { useWorkspace } from '../../lib/client/workspace/store';
 
 // Okabe–Ito colours, distinguishable with the common colour-vision deficiencies (Okabe & Ito, 2008, "Color Universal Design").
 const BAR_COLOURS = ['#0072B2', '#E69F00', '#009E73', '#CC79A7', '#56B4E9', '#D55E00'];
@@ -59,18 +17,18 @@ const BAR_COLOURS = ['#0072B2', '#E69F00', '#009E73', '#CC79A7', '#56B4E9', '#D5
 /** Band × window comparison of the normalized maps: the comparison raw power cannot make across frequencies. */
 export default function BandsScreen(_props: WorkspaceProps) {
   const d = useResultsStore(selectActive);
-  const bands = useViewStore((s) => s.bands);
-  const windows = useViewStore((s) => s.windows);
-  const method = useViewStore((s) => s.method);
-  const scope = useViewStore((s) => s.scope);
-  const channel = useViewStore((s) => s.channel);
-  const setView = useViewStore((s) => s.set);
+  const bands = useWorkspace((s) => s.bands);
+  const windows = useWorkspace((s) => s.windows);
+  const method = useWorkspace((s) => s.method);
+  const scope = useWorkspace((s) => s.scope);
+  const channel = useWorkspace((s) => s.channel);
+  const setView = useWorkspace((s) => s.set);
   // Deferred, so a baseline drag on the Maps screen repaints the maps first.
-  const baseline = useDeferredValue(useViewStore((s) => s.baseline));
+  const baseline = useDeferredValue(useWorkspace((s) => s.baseline));
   const visible = usePanelVisible('Bands');
 
-  const problems = d === null ? [] : [...bands.map((b) => bandProblem(b, d)), ...windows.map((w) => windowProblem(w, d))].filter((p): p is string => p !== null);
-  const rows = useMemo(() => (d === null || !visible || problems.length > 0 ? null : summarize(d, bands, windows, baseline, method)), [d, visible, bands, windows, baseline, method, problems.length]);
+  const problems = d === null ? [] : bandSummaryProblems(d, bands, windows);
+  const rows = useMemo(() => (d === null || !visible || problems.length > 0 ? null : bandSummary(d, bands, windows, baselinePoints(d, baseline), method)), [d, visible, bands, windows, baseline, method, problems.length]);
 
   if (d === null) {
     return (

@@ -1,20 +1,19 @@
 import { useEffect, useLayoutEffect, useMemo, useRef, useState } from 'react';
-import { flushSync } from 'react-dom';
 import type { WorkspaceProps } from './types';
 import type { BaselineMethod, BaselineSpread } from '../../lib/analysis/baseline';
 import { divergingColormap, sequentialColormap } from '../../lib/plot/colormap';
 import { extentLimits, methodUnit, neutralValue, ratioLimits, symmetricLimits, type ColourScale } from '../../lib/plot/colour-scale';
 import type { PanelSpec } from '../../lib/plot/panel';
-import { explorerWorker } from '../../lib/client/explorer-worker';
-import { useResultsStore, selectActive, ensureTrials } from '../../stores/results';
-import { useViewStore } from '../../stores/view';
-import { useSourceStore } from '../../stores/source';
+import { requestTrialMaps, useTrialMaps } from '../../lib/client/workspace/trial-maps';
+import { useResultsStore, selectActive, ensureTrials } from '../../lib/client/workspace/results';
 import MapPanel, { type Cell } from '../explorer/MapPanel';
+import MapSelection, { MapReadout } from '../explorer/MapSelection';
 import NumberField from '../explorer/NumberField';
 import Choice from '../explorer/Choice';
 import { averageNormalized, baselinePoints, baselineWarnings, difference, snapToGrid } from '../explorer/map-model';
 import { renderMapsPng } from '../explorer/export-maps';
 import { downloadBlob, fileSafe } from '../explorer/download';
+import { useWorkspace } from '../../lib/client/workspace/store';
 
 const METHODS: { value: BaselineMethod; label: string }[] = [
   { value: 'decibel', label: 'dB' },
@@ -23,41 +22,26 @@ const METHODS: { value: BaselineMethod; label: string }[] = [
   { value: 'power-ratio', label: 'power ratio' },
 ];
 
-interface TrialMaps {
-  key: string;
-  first: number;
-  last: number;
-  method: BaselineMethod;
-  spread: BaselineSpread;
-  maps: Float64Array[];
-}
-
-function fmtValue(v: number): string {
-  if (!Number.isFinite(v)) return String(v);
-  const a = Math.abs(v);
-  return a !== 0 && (a >= 1e5 || a < 1e-3) ? v.toExponential(3) : Number(v.toPrecision(4)).toString();
-}
-
 /** Raw and normalized time-frequency maps side by side, with the live baseline window. */
 export default function MapsScreen(_props: WorkspaceProps) {
   const d = useResultsStore(selectActive);
   const trialHold = useResultsStore((s) => s.trialHold);
-  const channel = useViewStore((s) => s.channel);
-  const condition = useViewStore((s) => s.condition);
-  const compareTo = useViewStore((s) => s.compareTo);
-  const baseline = useViewStore((s) => s.baseline);
-  const method = useViewStore((s) => s.method);
-  const scope = useViewStore((s) => s.scope);
-  const spread = useViewStore((s) => s.spread);
+  const channel = useWorkspace((s) => s.channel);
+  const condition = useWorkspace((s) => s.condition);
+  const compareTo = useWorkspace((s) => s.compareTo);
+  const baseline = useWorkspace((s) => s.baseline);
+  const method = useWorkspace((s) => s.method);
+  const scope = useWorkspace((s) => s.scope);
+  const spread = useWorkspace((s) => s.spread);
   // Across-trials z-scores need every trial's baseline: they come from the held trials, like single-trial scope.
   const spreadTrials = method === 'z-score' && spread === 'trials';
   const useTrials = scope === 'trial' || spreadTrials;
-  const rawScale = useViewStore((s) => s.rawScale);
-  const heldLimits = useViewStore((s) => s.heldLimits);
-  const setView = useViewStore((s) => s.set);
-  const setBaseline = useViewStore((s) => s.setBaseline);
+  const rawScale = useWorkspace((s) => s.rawScale);
+  const heldLimits = useWorkspace((s) => s.heldLimits);
+  const setView = useWorkspace((s) => s.set);
+  const setBaseline = useWorkspace((s) => s.setBaseline);
   const [cursor, setCursor] = useState<Cell | null>(null);
-  const [trialMaps, setTrialMaps] = useState<TrialMaps | null>(null);
+  const trialMaps = useTrialMaps((s) => s.latest);
   const buffers = useRef<{ a: Float64Array; b: Float64Array; diff: Float64Array; rawDiff: Float64Array } | null>(null);
 
   const ci = d === null ? -1 : Math.max(0, channel === null ? 0 : d.channels.indexOf(channel));
@@ -82,26 +66,12 @@ export default function MapsScreen(_props: WorkspaceProps) {
   useEffect(() => {
     if (d === null || ch === null || !useTrials) return;
     // The whole recording: the decomposition's recipe carries the conditions and rejection the core applies.
-    const recording = useSourceStore.getState().recording;
+    const recording = useWorkspace.getState().recording;
     if (recording !== null) void ensureTrials(d, ch, recording);
   }, [d, ch, useTrials]);
-  const pending = useRef<{ busy: boolean; next: { key: string; first: number; last: number; method: BaselineMethod; spread: BaselineSpread } | null }>({ busy: false, next: null });
   useEffect(() => {
     if (!useTrials || holdKey === null || trialHold?.key !== holdKey || trialHold.status !== 'ready') return;
-    pending.current.next = { key: holdKey, first: points.first, last: points.last, method, spread: spreadTrials ? 'trials' : 'time' };
-    if (pending.current.busy) return;
-    const pump = async () => {
-      pending.current.busy = true;
-      while (pending.current.next !== null) {
-        const job = pending.current.next;
-        pending.current.next = null;
-        const maps = await explorerWorker().renormalize(job.key, job.first, job.last, job.method, job.spread);
-        // Paint in this task, not a later one: the measure runs from the input to the painted canvas.
-        if (maps !== null) flushSync(() => setTrialMaps({ ...job, maps }));
-      }
-      pending.current.busy = false;
-    };
-    void pump();
+    requestTrialMaps({ key: holdKey, first: points.first, last: points.last, method, spread: spreadTrials ? 'trials' : 'time' });
   }, [useTrials, spreadTrials, holdKey, trialHold, points.first, points.last, method]);
 
   const nf = d === null ? 0 : d.frequencies.length;
@@ -203,7 +173,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
   };
   const exportRecipe = () => {
     // The run's recipe with the live baseline and fit range: everything `npm run analyze` needs to give these numbers.
-    const { fitRange } = useViewStore.getState();
+    const { fitRange } = useWorkspace.getState();
     const recipe = { ...d.recipe, baseline: { start: baseline.start, end: baseline.end, method, scope, ...(spreadTrials ? { spread: 'trials' } : {}) }, aperiodic: { ...d.recipe.aperiodic, range: [fitRange[0], fitRange[1]] } };
     downloadBlob(new Blob([JSON.stringify(recipe, null, 2) + '\n'], { type: 'application/json' }), 'recipe.json');
   };
@@ -211,37 +181,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
   return (
     <div className="flex flex-col gap-4" data-testid="maps-screen">
       <div className="card flex flex-wrap items-end gap-4 p-3">
-        <label className="flex flex-col gap-0.5 text-xs text-ink-soft">
-          Channel
-          <select className="rounded-sm border border-shell bg-foam px-2 py-1 text-sm text-ink" value={ch ?? ''} onChange={(e) => setView({ channel: e.target.value })} data-testid="maps-channel">
-            {d.channels.map((c) => (
-              <option key={c}>{c}</option>
-            ))}
-          </select>
-        </label>
-        <label className="flex flex-col gap-0.5 text-xs text-ink-soft">
-          Condition (A)
-          <select className="rounded-sm border border-shell bg-foam px-2 py-1 text-sm text-ink" value={d.labels[a]} onChange={(e) => setView({ condition: e.target.value })} data-testid="maps-condition">
-            {d.labels.map((l, i) => (
-              <option key={l} value={l}>
-                {l} ({d.trials[i]} trials)
-              </option>
-            ))}
-          </select>
-        </label>
-        <label className="flex flex-col gap-0.5 text-xs text-ink-soft">
-          Difference (A − B)
-          <select className="rounded-sm border border-shell bg-foam px-2 py-1 text-sm text-ink" value={b >= 0 ? d.labels[b] : ''} onChange={(e) => setView({ compareTo: e.target.value === '' ? null : e.target.value })} data-testid="maps-compare">
-            <option value="">none: A alone</option>
-            {d.labels.map((l, i) =>
-              i === a ? null : (
-                <option key={l} value={l}>
-                  minus {l}
-                </option>
-              ),
-            )}
-          </select>
-        </label>
+        <MapSelection d={d} channel={ch ?? ''} a={a} b={b} onView={setView} />
         <Choice legend="Method" value={method} options={METHODS} onChange={(m) => setView({ method: m })} />
         {method === 'z-score' && (
           <Choice legend="z-score spread" value={spread} options={[{ value: 'time', label: 'over baseline time' }, { value: 'trials', label: 'across trials' }]} onChange={(s) => setView({ spread: s })} />
@@ -284,19 +224,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
         </div>
       </div>
       </div>
-      <output
-        className="card block p-2 font-mono text-sm"
-        data-testid="map-readout"
-        data-time={readout?.t}
-        data-frequency={readout?.f}
-        data-raw={readout?.raw}
-        data-normalized={readout?.norm}
-        data-fresh={normFresh ? 'yes' : 'no'}
-      >
-        {readout === null
-          ? 'Point at a map (or focus it and use the arrow keys) to read time, frequency and value.'
-          : `t ${Number(readout.t.toFixed(4))} s · f ${Number(readout.f.toPrecision(4))} Hz · raw ${fmtValue(readout.raw)} µV² · normalized ${fmtValue(readout.norm)} ${methodUnit(method)}`}
-      </output>
+      <MapReadout readout={readout} fresh={normFresh} unit={methodUnit(method)} />
       {runWarnings.length > 0 && (
         <ul className="text-sm text-coral-deep">
           {runWarnings.map((w) => (

@@ -3,16 +3,16 @@ import ResolutionTable from './ResolutionTable';
 import { isBrainType } from '../../lib/analysis/channel-types';
 import { conditionRecording } from '../../lib/analysis/condition-recording';
 import type { WorkspaceProps } from './types';
-import { AnalysisInputError } from '../../lib/analysis/errors';
-import { planRecipe } from '../../lib/analysis/run-recipe';
-import { decompositionKey, toRecipe, useRecipeStore, type CyclesMode } from '../../stores/recipe';
-import { cancelDecomposition, recordingIdOf, runDecomposition, useResultsStore } from '../../stores/results';
-import { conditioningSpec, useSourceStore } from '../../stores/source';
-import { useViewStore } from '../../stores/view';
-import { applyRecipe } from '../../stores/apply-recipe';
+import { decompositionKey, toRecipe, type CyclesMode } from '../../lib/client/workspace/recipe';
+import { cancelDecomposition, checkRecipe, recordingIdOf, runDecomposition, useResultsStore } from '../../lib/client/workspace/results';
+import { conditioningSpec } from '../../lib/client/workspace/source-rules';
+import { applyRecipe } from '../../lib/client/workspace/apply-recipe';
 import NumberField from '../explorer/NumberField';
 import { usePanelVisible } from '../explorer/usePanelVisible';
 import Choice from '../explorer/Choice';
+import RunProgress, { ComputedList } from '../explorer/RunProgress';
+import RecipeChannels from '../explorer/RecipeChannels';
+import { useWorkspace } from '../../lib/client/workspace/store';
 
 /** Which input shows a core error for `field` (a dotted recipe path). */
 function fieldGroup(field: string): string {
@@ -25,35 +25,35 @@ function fieldGroup(field: string): string {
 
 /** The Recipe screen: the decomposition's parameters, validated against the open recording, and its run. */
 export default function RecipeScreen(_props: WorkspaceProps) {
-  const draft = useRecipeStore((s) => s.draft);
-  const run = useRecipeStore((s) => s.run);
-  const setDraft = useRecipeStore((s) => s.setDraft);
-  const recording = useSourceStore((s) => s.recording);
-  const fingerprint = useSourceStore((s) => s.fingerprint);
-  const reading = useSourceStore((s) => s.local?.reading ?? null);
-  const conditions = useSourceStore((s) => s.conditions);
-  const epochWindow = useSourceStore((s) => s.epochWindow);
-  const decisions = useSourceStore((s) => s.decisions);
-  const rejection = useSourceStore((s) => s.rejection);
-  const conditioning = useSourceStore((s) => s.conditioning);
-  const eventSelection = useSourceStore((s) => s.eventSelection);
-  const fitRange = useViewStore((s) => s.fitRange);
-  const setView = useViewStore((s) => s.set);
+  const draft = useWorkspace((s) => s.draft);
+  const run = useWorkspace((s) => s.run);
+  const setDraft = useWorkspace((s) => s.setDraft);
+  const recording = useWorkspace((s) => s.recording);
+  const fingerprint = useWorkspace((s) => s.fingerprint);
+  const reading = useWorkspace((s) => s.local?.reading ?? null);
+  const conditions = useWorkspace((s) => s.conditions);
+  const epochWindow = useWorkspace((s) => s.epochWindow);
+  const decisions = useWorkspace((s) => s.decisions);
+  const rejection = useWorkspace((s) => s.rejection);
+  const conditioning = useWorkspace((s) => s.conditioning);
+  const eventSelection = useWorkspace((s) => s.eventSelection);
+  const fitRange = useWorkspace((s) => s.fitRange);
+  const setView = useWorkspace((s) => s.set);
   const fileInput = useRef<HTMLInputElement>(null);
   const [loaded, setLoaded] = useState<{ ok: boolean; text: string } | null>(null);
-  const settingsError = useSourceStore((s) => s.settingsError);
-  const baseline = useViewStore((s) => s.baseline);
-  const method = useViewStore((s) => s.method);
-  const scope = useViewStore((s) => s.scope);
-  const spread = useViewStore((s) => s.spread);
-  const viewChannel = useViewStore((s) => s.channel);
+  const settingsError = useWorkspace((s) => s.settingsError);
+  const baseline = useWorkspace((s) => s.baseline);
+  const method = useWorkspace((s) => s.method);
+  const scope = useWorkspace((s) => s.scope);
+  const spread = useWorkspace((s) => s.spread);
+  const viewChannel = useWorkspace((s) => s.channel);
   const cache = useResultsStore((s) => s.cache);
   const activeKey = useResultsStore((s) => s.activeKey);
   // Hidden, the screen skips validation: the baseline it reads changes on every drag of the Maps screen.
   const visible = usePanelVisible('Recipe');
 
   const conditionNames = conditions.map((c) => c.name);
-  const recipe = toRecipe(draft, { conditions, epochStart: epochWindow.start, epochEnd: epochWindow.end, rejection, conditioning, eventSelection, fingerprint, reading }, { ...baseline, method, scope, spread }, fitRange);
+  const recipe = toRecipe({ draft, conditions, epochWindow, rejection, conditioning, eventSelection, fingerprint, local: { reading: reading ?? undefined }, baseline, method, scope, spread, fitRange });
   // The whole recording goes to the core with the full recipe: prepareRecording applies conditions and rejection there.
   const analysis = recording;
   const recordingId = recording === null ? null : recordingIdOf(recording, fingerprint);
@@ -62,13 +62,8 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const check = useMemo((): { field: string; problem: string; message: string } | null => {
     if (analysis === null || !visible) return null;
     if (recipe.epochs.events.length === 0) return { field: 'conditions', problem: 'choose at least one condition (define them on the Source screen)', message: '' };
-    try {
-      planRecipe(analysis, recipe);
-      return null;
-    } catch (error) {
-      if (error instanceof AnalysisInputError) return { field: fieldGroup(error.field), problem: error.problem, message: error.message };
-      throw error;
-    }
+    const problem = checkRecipe(analysis, recordingId!, recipe);
+    return problem === null ? null : { field: fieldGroup(problem.field), problem: problem.problem, message: problem.message };
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [analysis, visible, decisions, JSON.stringify(recipe)]);
   const errorFor = (group: string) => (check !== null && check.field === group ? check.problem : null);
@@ -91,7 +86,6 @@ export default function RecipeScreen(_props: WorkspaceProps) {
     { value: 'fixed', label: 'fixed cycles' },
     { value: 'fwhm', label: 'FWHM (s)' },
   ];
-  const allChannels = draft.channels.length === 0;
   // The channels a recipe can name: the recording as conditioned (bad ones out, bipolar pairs in), brain ones first.
   const conditioned = (() => {
     try {
@@ -178,8 +172,8 @@ export default function RecipeScreen(_props: WorkspaceProps) {
         <legend className="px-1 text-sm font-semibold">Epochs and conditions</legend>
         <div className="flex flex-wrap items-end gap-4">
           {/* The epoch window belongs to the Source screen (its rejection rules run on it); edited here through its store. */}
-          <NumberField label="Epoch from" unit="s" value={epochWindow.start} step={0.1} testId="recipe-epoch-start" error={errorFor('epochs.start')} onValue={(v) => useSourceStore.getState().setEpochWindow({ start: v, end: epochWindow.end })} />
-          <NumberField label="Epoch to" unit="s" value={epochWindow.end} step={0.1} testId="recipe-epoch-end" error={errorFor('epochs.end')} onValue={(v) => useSourceStore.getState().setEpochWindow({ start: epochWindow.start, end: v })} />
+          <NumberField label="Epoch from" unit="s" value={epochWindow.start} step={0.1} testId="recipe-epoch-start" error={errorFor('epochs.start')} onValue={(v) => useWorkspace.getState().setEpochWindow({ start: v, end: epochWindow.end })} />
+          <NumberField label="Epoch to" unit="s" value={epochWindow.end} step={0.1} testId="recipe-epoch-end" error={errorFor('epochs.end')} onValue={(v) => useWorkspace.getState().setEpochWindow({ start: epochWindow.start, end: v })} />
           <p className="text-sm text-ink-soft">around each event; only epochs kept on the Source screen are used.</p>
         </div>
         {settingsError !== null && (
@@ -214,39 +208,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
           </p>
         )}
       </fieldset>
-      <fieldset className="card flex flex-col gap-2 p-3">
-        <legend className="px-1 text-sm font-semibold">Channels</legend>
-        <label className="flex items-center gap-1 text-sm">
-          <input type="checkbox" checked={allChannels} onChange={() => setDraft({ channels: allChannels ? brain.slice(0, 1) : [] })} data-testid="recipe-all-channels" />
-          all {brain.length} brain channels (EEG, MEG, intracranial; types and bad channels on the Source screen)
-        </label>
-        <div className="flex flex-wrap gap-x-3 gap-y-1">
-          {candidates.map((name) => {
-            const on = allChannels ? brain.includes(name) : draft.channels.includes(name);
-            return (
-              <label key={name} className="flex items-center gap-1 font-mono text-sm">
-                <input
-                  type="checkbox"
-                  checked={on}
-                  data-testid={`recipe-channel-${name}`}
-                  onChange={() => {
-                    const current = allChannels ? brain : draft.channels;
-                    const next = on ? current.filter((n) => n !== name) : candidates.filter((n) => n === name || current.includes(n));
-                    setDraft({ channels: next.length === brain.length && next.every((n) => brain.includes(n)) ? [] : next });
-                  }}
-                />
-                {name}
-              </label>
-            );
-          })}
-        </div>
-        {!allChannels && draft.channels.length === 0 && <p className="text-sm text-coral-deep">Choose at least one channel.</p>}
-        {errorFor('channels') && (
-          <p className="text-sm text-coral-deep" role="alert">
-            channels {errorFor('channels')}
-          </p>
-        )}
-      </fieldset>
+      <RecipeChannels chosen={draft.channels} candidates={candidates} brain={brain} error={errorFor('channels')} onChoose={(channels) => setDraft({ channels })} />
       <fieldset className="card flex flex-wrap items-end gap-4 p-3">
         <legend className="px-1 text-sm font-semibold">Spectrum and aperiodic fit</legend>
         <NumberField label="Welch segment" unit="s" value={draft.spectrum.segment} step={0.25} error={errorFor('spectrum.segment')} onValue={(v) => setDraft({ spectrum: { ...draft.spectrum, segment: v } })} />
@@ -282,34 +244,8 @@ export default function RecipeScreen(_props: WorkspaceProps) {
           {fs} Hz · {recording.channelNames.length} channels · the samples stay on this device
         </span>
       </div>
-      {run.progress.length > 0 && (
-        <ul className="card grid grid-cols-[repeat(auto-fill,minmax(11rem,1fr))] gap-x-4 gap-y-1 p-3" data-testid="recipe-progress">
-          {run.progress.map((p) => (
-            <li key={p.channel} className="flex items-center gap-2 font-mono text-xs">
-              <span className="w-12">{p.channel}</span>
-              <div role="progressbar" aria-label={`${p.channel} progress`} aria-valuemin={0} aria-valuemax={100} aria-valuenow={Math.round(p.fraction * 100)} data-fraction={p.fraction} className="h-2 flex-1 overflow-hidden rounded-sm bg-sand-deep">
-                <div className="h-full bg-kelp" style={{ width: `${p.fraction * 100}%` }} />
-              </div>
-              <span className="w-10 text-right">{Math.round(p.fraction * 100)} %</span>
-            </li>
-          ))}
-        </ul>
-      )}
-      {Object.values(cache).length > 0 && (
-        <section className="card p-3">
-          <h3 className="text-sm font-semibold">Computed this session (kept in memory; switching back is instant)</h3>
-          <ul className="mt-1 text-sm">
-            {Object.values(cache).map((d) => (
-              <li key={d.key} className="flex items-center gap-2">
-                <button type="button" className="text-kelp-deep underline" onClick={() => useResultsStore.getState().set({ activeKey: d.key })}>
-                  {d.channels.length} ch · {d.frequencies.length} freqs {d.recipe.frequencies.min}–{d.recipe.frequencies.max} Hz ({d.spacing}) · {d.labels.join(', ')}
-                </button>
-                {d.key === activeKey && <span className="text-xs text-ink-soft">(shown)</span>}
-              </li>
-            ))}
-          </ul>
-        </section>
-      )}
+      <RunProgress progress={run.progress} />
+      <ComputedList cache={cache} activeKey={activeKey} />
     </form>
   );
 }

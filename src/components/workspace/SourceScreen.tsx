@@ -1,9 +1,9 @@
 import { useCallback, useRef, useState } from 'react';
 import type { WorkspaceProps } from './types';
-import { conditionsPerLabel, useSourceStore } from '../../stores/source';
-import { openRecordingFile, type IntakePhase, type IntakeProblem, type RecordingKind } from '../../lib/client/intake';
-import { libraryFor, LibraryFullError, type LibraryEntry } from '../../lib/client/library';
-import { errorMessageOf, guardAgainst, send } from '../../lib/client/outbound';
+import type { IntakeProblem, RecordingKind } from '../../lib/client/intake';
+import { libraryFor, type LibraryEntry } from '../../lib/client/library';
+import { errorMessageOf, send } from '../../lib/client/outbound';
+import { openRecording, type Origin } from '../../lib/client/workspace/open-recording';
 import OpenPanel, { type CsvChoice } from '../source/OpenPanel';
 import DemoPicker, { type DemoSubject } from '../source/DemoPicker';
 import LibraryPanel from '../source/LibraryPanel';
@@ -14,23 +14,11 @@ import EventTablePanel from '../source/EventTablePanel';
 import OverviewTrace from '../source/OverviewTrace';
 import RejectionPanel from '../source/RejectionPanel';
 import SessionPanel from '../source/SessionPanel';
-import UnitChoice, { type UnitDecision } from '../source/UnitChoice';
+import UnitChoice, { withDecision, type UnitDecision } from '../source/UnitChoice';
+import IntakeProgress, { type Busy } from '../source/IntakeProgress';
+import IntakeProblemNotice from '../source/IntakeProblemNotice';
 import { formatBytes } from '../source/format';
-
-type Origin = 'your file' | 'demo cohort' | 'this browser’s library';
-
-interface Busy {
-  fileName: string;
-  phase: IntakePhase | 'download';
-  fraction: number;
-}
-
-const PHASES: Record<Busy['phase'], string> = {
-  download: 'Fetching the demo file from the app',
-  fingerprint: 'Computing the SHA-256 fingerprint',
-  reading: 'Reading the samples',
-  events: 'Reading the events',
-};
+import { useWorkspace } from '../../lib/client/workspace/store';
 
 /** The last open attempt, so a reading choice can open the same file again. */
 interface Attempt {
@@ -42,66 +30,19 @@ interface Attempt {
   demoCode?: string;
 }
 
-/** The attempt's reading choices plus one more decision about an unknown unit. */
-function withDecision(kind: RecordingKind & { kind: 'edf' }, decision: UnitDecision): RecordingKind {
-  const exclude = kind.exclude ?? [];
-  if (decision.kind === 'leave-out') return { ...kind, exclude: exclude.includes(decision.signal) ? exclude : [...exclude, decision.signal] };
-  return { ...kind, unitFactors: { ...kind.unitFactors, [decision.dimension]: decision.factor } };
-}
-
-function Problem({ fileName, error, onDismiss, children }: { fileName: string; error: IntakeProblem; onDismiss: () => void; children?: React.ReactNode }) {
-  const where: [string, string][] = [];
-  if (error.field) where.push(['Field', error.field]);
-  if (error.signal) where.push(['Signal', error.signal]);
-  if (error.byteOffset !== null) where.push(['Byte offset', String(error.byteOffset)]);
-  if (error.row !== null) where.push(['Row', String(error.row)]);
-  if (error.column) where.push(['Column', error.column]);
-  return (
-    <div className="notice notice-warn grid gap-2" role="alert" data-testid="intake-problem">
-      <p className="font-semibold">
-        {fileName}
-        {error.file === 'events' ? ' (events file)' : ''} could not be opened: {error.message}
-      </p>
-      {where.length > 0 && (
-        <dl className="grid grid-cols-[max-content_1fr] gap-x-3 text-sm">
-          {where.map(([k, v]) => (
-            <div key={k} className="contents">
-              <dt>{k}</dt>
-              <dd className="font-mono break-all">{v}</dd>
-            </div>
-          ))}
-        </dl>
-      )}
-      <p className="text-sm">Nothing else changed: the recording you had open and the library are as they were.</p>
-      {children}
-      <button type="button" className="btn btn-quiet justify-self-start" onClick={onDismiss}>
-        Dismiss
-      </button>
-    </div>
-  );
-}
-
-/** The EDF reading choices worth keeping: only the ones that were made. */
-function readingOf(kind: RecordingKind & { kind: 'edf' }): { unitFactors?: Record<string, number>; exclude?: string[] } | null {
-  const unitFactors = kind.unitFactors && Object.keys(kind.unitFactors).length > 0 ? { ...kind.unitFactors } : undefined;
-  const exclude = kind.exclude && kind.exclude.length > 0 ? kind.exclude.slice() : undefined;
-  if (!unitFactors && !exclude) return null;
-  return { ...(unitFactors ? { unitFactors } : {}), ...(exclude ? { exclude } : {}) };
-}
-
 export default function SourceScreen(props: WorkspaceProps) {
-  const recording = useSourceStore((s) => s.recording);
-  const local = useSourceStore((s) => s.local);
-  const fingerprint = useSourceStore((s) => s.fingerprint);
-  const conditions = useSourceStore((s) => s.conditions);
-  const epochWindow = useSourceStore((s) => s.epochWindow);
-  const rejection = useSourceStore((s) => s.rejection);
-  const conditioning = useSourceStore((s) => s.conditioning);
-  const eventSelection = useSourceStore((s) => s.eventSelection);
-  const decisions = useSourceStore((s) => s.decisions);
-  const settingsError = useSourceStore((s) => s.settingsError);
-  const subjectCode = useSourceStore((s) => s.subjectCode);
-  const store = useSourceStore.getState;
+  const recording = useWorkspace((s) => s.recording);
+  const local = useWorkspace((s) => s.local);
+  const fingerprint = useWorkspace((s) => s.fingerprint);
+  const conditions = useWorkspace((s) => s.conditions);
+  const epochWindow = useWorkspace((s) => s.epochWindow);
+  const rejection = useWorkspace((s) => s.rejection);
+  const conditioning = useWorkspace((s) => s.conditioning);
+  const eventSelection = useWorkspace((s) => s.eventSelection);
+  const decisions = useWorkspace((s) => s.decisions);
+  const settingsError = useWorkspace((s) => s.settingsError);
+  const subjectCode = useWorkspace((s) => s.subjectCode);
+  const store = useWorkspace.getState;
   const library = libraryFor(props.userId);
 
   const [busy, setBusy] = useState<Busy | null>(null);
@@ -125,55 +66,19 @@ export default function SourceScreen(props: WorkspaceProps) {
       // Progress arrives on its own message port, so a late report can follow the result: ignore it then.
       let finished = false;
       try {
-        const result = await openRecordingFile(
-          blob,
-          kind.kind === 'csv' ? { ...kind, events: events?.blob ?? null } : kind,
-          (phase, fraction) => {
-            if (!finished) setBusy({ fileName, phase, fraction });
-          },
-          kind.kind === 'edf' ? (events?.blob ?? null) : null,
-        );
+        const outcome = await openRecording({ blob, fileName, kind, from, events, demoCode, library }, (phase, fraction) => {
+          if (!finished) setBusy({ fileName, phase, fraction });
+        });
         finished = true;
-        if (!result.ok) {
-          setProblem({ fileName: result.error.file === 'events' && events ? events.name : fileName, error: result.error });
+        if (!outcome.ok) {
+          setProblem({ fileName: outcome.fileName, error: outcome.error });
           return;
         }
         setProblem(null);
-        // Only a file fetched from the demo cohort is known to be demo data; a local file with a demo-like name is not.
-        const isDemo = from === 'demo cohort';
-        // The file name and header identification must never leave the device; the outbound wrapper refuses them.
-        guardAgainst('source-recording', [
-          ...(isDemo ? [] : [fileName]),
-          ...(events && !isDemo ? [events.name] : []),
-          ...(result.local.identifying ? [result.local.identifying.patient, result.local.identifying.recording] : []),
-        ]);
-        const reading = kind.kind === 'edf' ? readingOf(kind) : null;
-        store().load({ recording: result.recording, local: { ...result.local, fileName, ...(reading ? { reading } : {}) }, fingerprint: result.fingerprint });
-        if (demoCode && store().subjectCode.trim() === '') store().set({ subjectCode: demoCode });
-        if (events?.pairing) {
-          // Paired with the open EDF: the events file's labels become conditions beside the ones already chosen.
-          const claimed = new Set(store().conditions.flatMap((c) => c.labels));
-          const added = conditionsPerLabel(result.recording.events.filter((e) => !claimed.has(e.label)));
-          if (added.length > 0) store().setConditions([...store().conditions, ...added.filter((c) => !store().conditions.some((k) => k.name === c.name))]);
-        }
         setOrigin(from);
-        setOverviewChannel(result.recording.channelNames[0] ?? '');
+        setOverviewChannel(outcome.channels[0] ?? '');
         setSelectedEvent(null);
-        const entry: LibraryEntry = {
-          fingerprint: result.fingerprint,
-          fileName,
-          sizeBytes: blob.size,
-          openedAt: new Date().toISOString(),
-          kind: kind.kind,
-          csv: kind.kind === 'csv' ? { sampleRateHz: kind.sampleRateHz, delimiter: kind.delimiter, eventsFileName: events?.name ?? null } : null,
-          edf: reading,
-          ...(kind.kind === 'edf' ? { edfEventsFileName: events?.name ?? null } : {}),
-        };
-        try {
-          await library.keep(entry, blob, events?.blob ?? null);
-        } catch (error) {
-          setLibraryNotice(error instanceof LibraryFullError ? error.message : `The recording is open but could not be kept in the library: ${String(error)}`);
-        }
+        setLibraryNotice(outcome.libraryNotice);
         setLibraryVersion((v) => v + 1);
       } catch (error) {
         refuse(fileName, `reading stopped unexpectedly: ${error instanceof Error ? error.message : String(error)}`);
@@ -243,18 +148,11 @@ export default function SourceScreen(props: WorkspaceProps) {
           <OpenPanel busy={busy !== null} onOpenEdf={openEdf} onOpenCsv={openCsv} onEvents={pairEvents} onRefuse={(m) => refuse('That file', m)} />
           <hr className="tide-rule" />
           {import.meta.env.TIDEMARK_DEMO && <DemoPicker busy={busy !== null} onPick={(s) => void openDemo(s)} />}
-          {busy && (
-            <div className="grid gap-1" role="status" data-testid="intake-progress">
-              <label htmlFor="intake-progress-bar" className="text-sm">
-                {PHASES[busy.phase]} of {busy.fileName}… {busy.phase === 'download' ? '' : `${Math.round(busy.fraction * 100)} %`}
-              </label>
-              <progress id="intake-progress-bar" max={1} value={busy.phase === 'download' ? undefined : busy.fraction} className="h-2 w-full" />
-            </div>
-          )}
+          {busy && <IntakeProgress busy={busy} />}
           {problem && (
-            <Problem fileName={problem.fileName} error={problem.error} onDismiss={() => setProblem(null)}>
+            <IntakeProblemNotice fileName={problem.fileName} error={problem.error} onDismiss={() => setProblem(null)}>
               {unknownUnit && <UnitChoice key={`${unknownUnit.signal}|${unknownUnit.dimension}`} {...unknownUnit} busy={busy !== null} onChoose={decideUnit} />}
-            </Problem>
+            </IntakeProblemNotice>
           )}
         </section>
         <section className="card grid min-w-0 content-start gap-3" aria-labelledby="source-library">

@@ -1,9 +1,11 @@
-import { lazy, Suspense, useRef, useState, type ComponentType, type KeyboardEvent } from 'react';
+import { lazy, Suspense, useEffect, useRef, useState, type ComponentType, type KeyboardEvent } from 'react';
 import { screens, type ScreenName, type WorkspaceProps } from './types';
 import SourceScreen from './SourceScreen';
 import RecipeScreen from './RecipeScreen';
 import OutboundScreen from './OutboundScreen';
 import SignInWatch from './SignInWatch';
+import MemoryBar from './MemoryBar';
+import { bindAccount } from '../../lib/client/workspace';
 
 // The plot-heavy screens are chunks of their own, fetched after the island starts: the Source screen is usable
 // before the plotting code has arrived.
@@ -24,10 +26,12 @@ const components: Record<ScreenName, ComponentType<WorkspaceProps>> = {
   Outbound: OutboundScreen,
 };
 
-/** The analysis workspace: one island, one tab per screen. Screens share state through the zustand stores. */
+/** The analysis workspace: one island, one tab per screen. Screens read the workspace controller's state and paint. */
 export default function Workspace(props: WorkspaceProps) {
   const [active, setActive] = useState<ScreenName>('Source');
   const tabs = useRef<Record<string, HTMLButtonElement | null>>({});
+  // The account's own saved workspaces (IndexedDB per account), looked up whenever a recording is opened.
+  useEffect(() => bindAccount(props.userId), [props.userId]);
   // WAI-ARIA Authoring Practices, tabs pattern: arrows move between tabs, Home/End go to the first/last.
   const onKeyDown = (event: KeyboardEvent<HTMLDivElement>) => {
     const i = screens.indexOf(active);
@@ -45,6 +49,7 @@ export default function Workspace(props: WorkspaceProps) {
   return (
     <div className="mt-4">
       <SignInWatch />
+      <MemoryBar />
       <div role="tablist" aria-label="Workspace screens" className="flex flex-wrap gap-1 border-b border-shell" onKeyDown={onKeyDown}>
         {screens.map((name) => (
           <button

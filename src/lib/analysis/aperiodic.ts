@@ -304,3 +304,17 @@ function fitLine(f: Float64Array, y: Float64Array, keep: Uint8Array): number[] {
   const slope = sxx > 0 ? sxy / sxx : 0;
   return [my - slope * mx, -slope];
 }
+
+/** One spectrum's fit, or the reason it could not be made (the message of the error `fitAperiodic` threw). */
+export type AperiodicOutcome = { fit: AperiodicFit; error: null } | { fit: null; error: string };
+
+/** `fitAperiodic` of each spectrum over one range and model (the Spectrum screen's refit of every channel). */
+export function fitAperiodicEach(spectra: readonly { frequencies: Float64Array; psd: Float64Array }[], rangeHz: readonly [number, number], model: AperiodicModel): AperiodicOutcome[] {
+  return spectra.map((s) => {
+    try {
+      return { fit: fitAperiodic(s.frequencies, s.psd, rangeHz, model), error: null };
+    } catch (error) {
+      return { fit: null, error: error instanceof Error ? error.message : String(error) };
+    }
+  });
+}

@@ -2,6 +2,7 @@ import * as Comlink from 'comlink';
 import { AnalysisCancelledError } from '../analysis/errors';
 import type { Recording } from '../analysis/recording';
 import { assembleResult, planRun, type AnalysisResult, type ChannelAnalysis } from '../analysis/run-recipe';
+import type { RecipePlan } from '../analysis/analyze-channel';
 import type { DecomposeApi } from '../../../workers/decompose-api';
 import type { PoolWorker } from '../../../workers/pool-worker';
 
@@ -21,6 +22,11 @@ export interface PoolRunOptions {
   onProgress?: (overall: number, perChannel: readonly number[]) => void;
   /** Keep single-trial power for this one channel (the explorer's trial view). */
   singleTrialChannel?: string;
+  /**
+   * The plan `planRun(input, recipe)` already made for exactly this input and recipe (the workspace controller
+   * plans once per recipe); the pool then does not plan again.
+   */
+  planned?: { plan: RecipePlan; recording: Recording };
 }
 
 export interface PoolResult {
@@ -133,7 +139,7 @@ export class DecomposePool {
   async run(input: Recording, recipe: unknown, options: PoolRunOptions = {}): Promise<PoolResult> {
     if (this.current !== null) throw new Error('DecomposePool: a run is already in progress; cancel() it first');
     // The recording as the recipe conditions it (types, bad channels, reference, filters), once, on this thread.
-    const { plan, recording } = planRun(input, recipe);
+    const { plan, recording } = options.planned ?? planRun(input, recipe);
     let fail: (error: Error) => void = () => undefined;
     const ended = new Promise<never>((_, reject) => (fail = reject));
     ended.catch(() => undefined);

@@ -1,6 +1,7 @@
 /**
  * The header's sign-out form: when "also remove the recordings kept in this browser" is ticked, this account's
- * library database is deleted before the form posts. Loaded as a bundled module file (no inline script: the CSP
+ * library database and its saved workspaces (workspace/saved-workspaces.ts: settings and decisions per recording)
+ * are deleted before the form posts. Loaded as a bundled module file (no inline script: the CSP
  * allows scripts from this origin only).
  *
  * deleteDatabase waits until every connection to the database has closed; the library closes its own on
@@ -8,6 +9,7 @@
  * deletion does not finish in time, the form is not posted and the person is told why.
  */
 import { libraryDatabaseName } from './library-names';
+import { workspaceDatabaseName } from './workspace/saved-names';
 
 const WAIT_MS = 5000;
 
@@ -38,7 +40,7 @@ function wire(form: HTMLFormElement): void {
     const button = form.querySelector<HTMLButtonElement>('button[type="submit"]');
     if (button) button.disabled = true;
     if (status) status.textContent = 'Removing the recordings kept in this browser…';
-    deleteDatabase(libraryDatabaseName(owner)).then(
+    Promise.all([deleteDatabase(libraryDatabaseName(owner)), deleteDatabase(workspaceDatabaseName(owner))]).then(
       () => {
         removed = true;
         form.dataset.libraryRemoved = 'yes';

@@ -1,10 +1,9 @@
-import { readRecipe, type Recipe } from '../lib/analysis/recipe';
-import type { Recording } from '../lib/analysis/recording';
-import { planRecipe } from '../lib/analysis/run-recipe';
-import { selectEventRows } from '../lib/analysis/event-table';
-import { DEFAULT_DRAFT, useRecipeStore, type RecipeDraft } from './recipe';
-import { defaultRejection, useSourceStore, type Condition, type ConditioningSettings, type RejectionSettings } from './source';
-import { useViewStore } from './view';
+import { readRecipe, type Recipe } from '../../analysis/recipe';
+import type { Recording } from '../../analysis/recording';
+import { planRecipe } from '../../analysis/run-recipe';
+import type { RecipeDraft } from './recipe';
+import { decideEpochs, defaultRejection, eventsWithSelection, type Condition, type ConditioningSettings, type RejectionSettings } from './source-rules';
+import { useWorkspace } from './store';
 
 export type ApplyOutcome = { ok: true; notices: string[] } | { ok: false; field: string; message: string };
 
@@ -24,11 +23,6 @@ function draftOf(recipe: Recipe, conditionNames: string[], current: RecipeDraft)
   };
 }
 
-/**
- * Puts a loaded recipe JSON into the Source, Recipe and View stores, after checking it with the recipe schema and
- * against the open recording (`planRecipe`, the same check a run makes). On any problem nothing changes and the
- * outcome names the field.
- */
 /** The reading choices in words, for comparing a recipe's with the open recording's: `"%" × 2.5 µV; "Resp" left out`. */
 export function describeReading(reading: { unitFactors?: Record<string, number>; exclude?: readonly string[] } | null | undefined): string {
   const units = Object.entries(reading?.unitFactors ?? {})
@@ -38,6 +32,11 @@ export function describeReading(reading: { unitFactors?: Record<string, number>;
   return [...units, ...out].join('; ') || 'the built-in units only';
 }
 
+/**
+ * Puts a loaded recipe JSON into the workspace store in one change (one undo step), after checking it with the
+ * recipe schema and against the open recording (`planRecipe`, the same check a run makes). On any problem nothing
+ * changes and the outcome names the field.
+ */
 export function applyRecipe(
   input: unknown,
   recording: Recording,
@@ -47,21 +46,19 @@ export function applyRecipe(
   let recipe: Recipe;
   let upgraded: string | null;
   let selected: Recording = recording;
-  const table = useSourceStore.getState().local?.eventTable;
+  const table = useWorkspace.getState().local?.eventTable;
   try {
     ({ recipe, notice: upgraded } = readRecipe(input));
     // The recipe's eventTable picks the events of the paired events file first; the recipe is checked on those.
     if (recipe.eventTable !== undefined || table !== undefined) {
       if (table === undefined) return { ok: false, field: 'eventTable', message: 'eventTable selects rows of a BIDS events file: open the recording with its events file first; nothing was changed' };
-      const chosen = selectEventRows(table.rows, table.header, recipe.eventTable ?? {}, recording.data[0].length / recording.sampleRateHz);
-      selected = { ...recording, events: [...recording.events.slice(0, table.annotationCount), ...chosen.events] };
+      selected = eventsWithSelection(recording, table, recipe.eventTable ?? null);
     }
     planRecipe(selected, recipe);
   } catch (error) {
     const e = error as { field?: string; message?: string };
     return { ok: false, field: e.field ?? 'recipe', message: e.message ?? String(error) };
   }
-  if (table !== undefined) useSourceStore.getState().setEventSelection(recipe.eventTable ?? null);
   // Without `conditions`, each listed label is its own condition (the contract's reading of epochs.events).
   const conditions: Condition[] =
     recipe.conditions !== undefined
@@ -75,12 +72,23 @@ export function applyRecipe(
       ? { ...defaultRejection, peakToPeakMicrovolts: null, flatMicrovolts: null, overrides: {} }
       : { peakToPeakMicrovolts: r.peakToPeakMicrovolts, flatMicrovolts: r.flatMicrovolts, scope: r.scope, channels: r.channels?.slice(), overrides: { ...r.overrides }, ...(r.byType ? { byType: { ...r.byType } } : {}) };
   const conditioning: ConditioningSettings = { types: { ...(recipe.signals?.types ?? {}) }, bad: (recipe.signals?.bad ?? []).slice(), reference: recipe.reference ?? null, filters: recipe.filters ?? null };
-  const source = useSourceStore.getState();
-  source.set({ conditions, epochWindow: { start: recipe.epochs.start, end: recipe.epochs.end }, rejection, conditioning });
-  source.recompute();
-  useRecipeStore.setState((s) => ({ draft: draftOf(recipe, conditions.map((c) => c.name), s.draft ?? DEFAULT_DRAFT) }));
-  useViewStore.getState().set({ method: recipe.baseline.method, scope: recipe.baseline.scope, spread: recipe.baseline.spread ?? 'time', fitRange: [recipe.aperiodic.range[0], recipe.aperiodic.range[1]] });
-  useViewStore.getState().setBaseline({ start: recipe.baseline.start, end: recipe.baseline.end });
+  const state = useWorkspace.getState();
+  const epochWindow = { start: recipe.epochs.start, end: recipe.epochs.end };
+  const eventSelection = table !== undefined ? (recipe.eventTable ?? null) : state.eventSelection;
+  const settings = { recording: table !== undefined ? selected : state.recording, conditions, epochWindow, rejection, conditioning };
+  if (typeof performance !== 'undefined') performance.mark('tidemark:baseline-input');
+  // One change of the one store: the history sees one step, the screens one repaint.
+  useWorkspace.setState({
+    ...settings,
+    eventSelection,
+    ...decideEpochs(settings),
+    draft: draftOf(recipe, conditions.map((c) => c.name), state.draft),
+    method: recipe.baseline.method,
+    scope: recipe.baseline.scope,
+    spread: recipe.baseline.spread ?? 'time',
+    fitRange: [recipe.aperiodic.range[0], recipe.aperiodic.range[1]],
+    baseline: { start: recipe.baseline.start, end: recipe.baseline.end },
+  });
   const notices: string[] = [];
   // Format 1 is upgraded in place; say so (analysis contract: never silently). The next export writes format 2.
   if (upgraded !== null) notices.push('This recipe is in format 1 (written before format 2): it was read with its old names upgraded (epochs.tmin/tmax → start/end, method "db" → "decibel" and so on); Export recipe JSON writes it in format 2.');

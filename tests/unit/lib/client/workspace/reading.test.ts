@@ -1,12 +1,12 @@
 import { describe, expect, it } from 'vitest';
-import { parseRecipe } from '../../../src/lib/analysis/recipe';
-import { applyRecipe, describeReading } from '../../../src/stores/apply-recipe';
-import { DEFAULT_DRAFT, toRecipe } from '../../../src/stores/recipe';
-import { defaultRejection } from '../../../src/stores/source';
+import { parseRecipe } from '../../../../../src/lib/analysis/recipe';
+import { applyRecipe, describeReading } from '../../../../../src/lib/client/workspace/apply-recipe';
+import { DEFAULT_DRAFT, toRecipe } from '../../../../../src/lib/client/workspace/recipe';
+import { defaultRejection } from '../../../../../src/lib/client/workspace/source-rules';
 
 // Scenario of our own: one EEG channel plus a pulse sensor read as µV × 2.5, a breathing belt left out.
-const source = { conditions: [{ name: 'bell', labels: ['bell'] }], epochStart: -1, epochEnd: 2, rejection: defaultRejection };
-const baseline = { start: -0.5, end: -0.2, method: 'decibel' as const, scope: 'average' as const };
+const source = { draft: DEFAULT_DRAFT, conditions: [{ name: 'bell', labels: ['bell'] }], epochWindow: { start: -1, end: 2 }, rejection: defaultRejection, fitRange: [2, 40] as const };
+const baseline = { baseline: { start: -0.5, end: -0.2 }, method: 'decibel' as const, scope: 'average' as const };
 const fingerprint = 'b'.repeat(64);
 const recording = {
   sampleRateHz: 100,
@@ -17,18 +17,18 @@ const recording = {
 
 describe('reading choices in the recipe', () => {
   it('toRecipe writes recording.units and recording.exclude beside the fingerprint, and the schema takes them back', () => {
-    const recipe = toRecipe(DEFAULT_DRAFT, { ...source, fingerprint, reading: { unitFactors: { '%': 2.5 }, exclude: ['Resp'] } }, baseline, [2, 40]);
+    const recipe = toRecipe({ ...source, ...baseline, fingerprint, local: { reading: { unitFactors: { '%': 2.5 }, exclude: ['Resp'] } } });
     expect(recipe.recording).toEqual({ fingerprint, units: { '%': 2.5 }, exclude: ['Resp'] });
     expect(parseRecipe(recipe).recording).toEqual({ fingerprint, units: { '%': 2.5 }, exclude: ['Resp'] });
   });
 
   it('toRecipe leaves recording out when there is neither a fingerprint nor a choice, and writes no empty fields', () => {
-    expect('recording' in toRecipe(DEFAULT_DRAFT, { ...source, fingerprint: null, reading: { unitFactors: {}, exclude: [] } }, baseline, [2, 40])).toBe(false);
-    expect(toRecipe(DEFAULT_DRAFT, { ...source, fingerprint: null, reading: { exclude: ['Resp'] } }, baseline, [2, 40]).recording).toEqual({ exclude: ['Resp'] });
+    expect('recording' in toRecipe({ ...source, ...baseline, fingerprint: null, local: { reading: { unitFactors: {}, exclude: [] } } })).toBe(false);
+    expect(toRecipe({ ...source, ...baseline, fingerprint: null, local: { reading: { exclude: ['Resp'] } } }).recording).toEqual({ exclude: ['Resp'] });
   });
 
   it('loading a recipe that reads the file differently says so, and the same choices say nothing', () => {
-    const recipe = toRecipe(DEFAULT_DRAFT, { ...source, fingerprint, reading: { unitFactors: { '%': 2.5 }, exclude: ['Resp'] } }, baseline, [2, 40]);
+    const recipe = toRecipe({ ...source, ...baseline, fingerprint, local: { reading: { unitFactors: { '%': 2.5 }, exclude: ['Resp'] } } });
     const same = applyRecipe(recipe, recording, fingerprint, { exclude: ['Resp'], unitFactors: { '%': 2.5 } });
     expect(same).toEqual({ ok: true, notices: [] });
     const other = applyRecipe(recipe, recording, fingerprint, { exclude: ['Resp'], unitFactors: { '%': 1 } });
@@ -41,7 +41,7 @@ describe('reading choices in the recipe', () => {
 
 describe('recipe formats in the browser', () => {
   it('exports format 2 and loads it back with no notice', () => {
-    const recipe = toRecipe(DEFAULT_DRAFT, { ...source, fingerprint }, baseline, [2, 40]);
+    const recipe = toRecipe({ ...source, ...baseline, fingerprint });
     expect(recipe.format).toBe(2);
     expect(recipe.epochs).toMatchObject({ start: -1, end: 2 });
     expect(recipe.aperiodic).toEqual({ range: [2, 40], model: 'power-law' });
@@ -49,7 +49,7 @@ describe('recipe formats in the browser', () => {
   });
 
   it('loads a format-1 recipe with a visible note that it was upgraded (analysis contract), and the same settings', () => {
-    const two = toRecipe(DEFAULT_DRAFT, { ...source, fingerprint }, { ...baseline, method: 'z-score' }, [2, 40]);
+    const two = toRecipe({ ...source, ...baseline, fingerprint, method: 'z-score' });
     const { format: _f, ...rest } = two;
     const one = { ...rest, epochs: { events: two.epochs.events, tmin: -1, tmax: 2 }, baseline: { ...two.baseline, method: 'zscore' }, aperiodic: { range: [2, 40], mode: 'fixed' } };
     const outcome = applyRecipe(one, recording, fingerprint);

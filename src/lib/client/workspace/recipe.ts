@@ -1,9 +1,8 @@
-import { create } from 'zustand';
-import type { AperiodicModel } from '../lib/analysis/aperiodic';
-import type { BaselineMethod } from '../lib/analysis/baseline';
-import type { EventTableSpec } from '../lib/analysis/event-table';
-import type { RecipeInput } from '../lib/analysis/recipe';
-import { conditioningSpec, sourceSpec, type Condition, type ConditioningSettings, type RejectionSettings } from './source';
+import type { AperiodicModel } from '../../analysis/aperiodic';
+import type { BaselineMethod, BaselineScope, BaselineSpread } from '../../analysis/baseline';
+import type { EventTableSpec } from '../../analysis/event-table';
+import type { RecipeInput } from '../../analysis/recipe';
+import { conditioningSpec, sourceSpec, type Condition, type ConditioningSettings, type LocalRecordingInfo, type RejectionSettings } from './source-rules';
 
 export type CyclesMode = 'fixed' | 'range' | 'fwhm';
 
@@ -20,7 +19,7 @@ export interface RecipeDraft {
   /** Condition names to epoch; empty means every condition of the Source screen. */
   conditions: string[];
   spectrum: { segment: number; overlap: number; range: [number, number]; source: 'recording' | 'epochs' };
-  /** The fit range is live view state (`useViewStore().fitRange`, dragged on the Spectrum screen), like the baseline. */
+  /** The fit range is the workspace's `fitRange` (dragged on the Spectrum screen), like the baseline. */
   aperiodic: { model: AperiodicModel };
 }
 
@@ -51,26 +50,16 @@ export interface RunState {
   message: string | null;
 }
 
-export interface RecipeState {
+/**
+ * Everything a recipe is made of, as the workspace store holds it (store.ts): the Recipe screen's draft, the Source
+ * screen's conditions, window, rejection, conditioning and event selection, the live baseline and fit range, and
+ * what identifies and reads the open file.
+ */
+export interface RecipeParts {
   draft: RecipeDraft;
-  run: RunState;
-  setDraft: (patch: Partial<RecipeDraft>) => void;
-  setRun: (patch: Partial<RunState>) => void;
-}
-
-export const useRecipeStore = create<RecipeState>((set, get) => ({
-  draft: DEFAULT_DRAFT,
-  run: { status: 'idle', progress: [], message: null },
-  setDraft: (patch) => set({ draft: { ...get().draft, ...patch } }),
-  setRun: (patch) => set({ run: { ...get().run, ...patch } }),
-}));
-
-/** What the Source screen contributes to a recipe. */
-export interface RecipeSource {
   conditions: Condition[];
   /** The epoch window, `epochs.start`/`end` in seconds from the event. */
-  epochStart: number;
-  epochEnd: number;
+  epochWindow: { start: number; end: number };
   rejection: RejectionSettings;
   /** Channel types changed by hand, bad channels, reference and filters (recipe `signals`, `reference`, `filters`). */
   conditioning?: ConditioningSettings;
@@ -79,44 +68,46 @@ export interface RecipeSource {
   /** SHA-256 of the open file; written into the recipe only when it is one (64 hex digits). */
   fingerprint: string | null;
   /** How the file was read beyond the built-in units (LocalRecordingInfo.reading); written when not empty. */
-  reading?: { unitFactors?: Record<string, number>; exclude?: string[] } | null;
+  local?: Pick<LocalRecordingInfo, 'reading'> | null;
+  baseline: { start: number; end: number };
+  method: BaselineMethod;
+  scope: BaselineScope;
+  spread?: BaselineSpread;
+  fitRange: readonly [number, number];
 }
 
 /**
  * The full recipe (analysis.md, "Recipe (input)", plus our `conditions`, `rejection` and `recording` extensions)
- * for the draft, the Source screen's conditions, window and rejection, a baseline and the aperiodic fit range.
- * Exported as is, so `npm run analyze -- <file> --recipe <it>` reproduces the numbers.
+ * of the workspace: one argument, the one owner's state. Exported as is, so `npm run analyze -- <file> --recipe <it>`
+ * reproduces the numbers.
  */
-export function toRecipe(
-  draft: RecipeDraft,
-  source: RecipeSource,
-  baseline: { start: number; end: number; method: BaselineMethod; scope: 'average' | 'trial'; spread?: 'time' | 'trials' },
-  fitRange: readonly [number, number],
-): RecipeInput {
+export function toRecipe(parts: RecipeParts): RecipeInput {
+  const { draft, baseline, fitRange } = parts;
   const cycles =
     draft.cyclesMode === 'fixed'
       ? { fixed: draft.cyclesFixed }
       : draft.cyclesMode === 'fwhm'
         ? { fwhm: draft.fwhmSeconds }
         : { min: draft.cyclesMin, max: draft.cyclesMax };
-  const conditionNames = source.conditions.map((c) => c.name);
+  const conditionNames = parts.conditions.map((c) => c.name);
   const events = draft.conditions.length > 0 ? draft.conditions.filter((c) => conditionNames.includes(c)) : conditionNames;
-  const spec = sourceSpec({ conditions: source.conditions, epochWindow: { start: source.epochStart, end: source.epochEnd }, rejection: source.rejection });
+  const spec = sourceSpec(parts);
+  const { start, end } = parts.epochWindow;
   return {
     format: 2,
-    epochs: { events, start: source.epochStart, end: source.epochEnd },
+    epochs: { events, start, end },
     ...(draft.channels.length > 0 ? { channels: draft.channels } : {}),
     frequencies: { ...draft.frequencies },
     cycles,
     // `spread` is written only where it means something: an across-trials z-score.
-    baseline: { start: baseline.start, end: baseline.end, method: baseline.method, scope: baseline.scope, ...(baseline.method === 'z-score' && baseline.spread === 'trials' ? { spread: 'trials' as const } : {}) },
+    baseline: { start: baseline.start, end: baseline.end, method: parts.method, scope: parts.scope, ...(parts.method === 'z-score' && parts.spread === 'trials' ? { spread: 'trials' as const } : {}) },
     spectrum: { ...draft.spectrum, range: [...draft.spectrum.range] as [number, number] },
     aperiodic: { range: [fitRange[0], fitRange[1]], model: draft.aperiodic.model },
     conditions: spec.conditions as Record<string, string[]>,
     rejection: spec.rejection as NonNullable<RecipeInput['rejection']>,
-    ...((source.conditioning !== undefined ? conditioningSpec(source.conditioning) : {}) as Pick<RecipeInput, 'signals' | 'reference' | 'filters'>),
-    ...(source.eventSelection ? { eventTable: eventTableOf(source.eventSelection) } : {}),
-    ...recordingSection(source),
+    ...((parts.conditioning !== undefined ? conditioningSpec(parts.conditioning) : {}) as Pick<RecipeInput, 'signals' | 'reference' | 'filters'>),
+    ...(parts.eventSelection ? { eventTable: eventTableOf(parts.eventSelection) } : {}),
+    ...recordingSection(parts),
   };
 }
 
@@ -130,12 +121,12 @@ function eventTableOf(spec: EventTableSpec): NonNullable<RecipeInput['eventTable
 }
 
 /** The recipe's `recording` extension: the file's fingerprint and how it was read (`units`, `exclude`), when known. */
-function recordingSection(source: RecipeSource): Pick<RecipeInput, 'recording'> {
+function recordingSection(source: RecipeParts): Pick<RecipeInput, 'recording'> {
   const recording: NonNullable<RecipeInput['recording']> = {};
   if (source.fingerprint !== null && /^[0-9a-f]{64}$/.test(source.fingerprint)) recording.fingerprint = source.fingerprint;
-  const units = source.reading?.unitFactors ?? {};
+  const units = source.local?.reading?.unitFactors ?? {};
   if (Object.keys(units).length > 0) recording.units = { ...units };
-  const exclude = source.reading?.exclude ?? [];
+  const exclude = source.local?.reading?.exclude ?? [];
   if (exclude.length > 0) recording.exclude = exclude.slice();
   return Object.keys(recording).length > 0 ? { recording } : {};
 }

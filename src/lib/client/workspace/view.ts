@@ -1,5 +1,4 @@
-import { create } from 'zustand';
-import type { BaselineMethod, BaselineScope, BaselineSpread } from '../lib/analysis/baseline';
+import type { BaselineMethod, BaselineScope, BaselineSpread } from '../../analysis/baseline';
 
 export interface Band {
   name: string;
@@ -31,8 +30,9 @@ export type SpectrumAxes = 'linear' | 'log-power' | 'log-log';
 /**
  * What the explorer shows and how: the selection (channel, condition, comparison), the live baseline and the
  * display choices. Changing anything here re-normalizes and repaints; nothing here re-runs the decomposition.
+ * The workspace store (store.ts) holds these fields beside the recipe's.
  */
-export interface ViewState {
+export interface ViewSettings {
   channel: string | null;
   condition: string | null;
   /** Condition B of the difference map A − B; null shows condition A alone. */
@@ -53,12 +53,9 @@ export interface ViewState {
    * what they were taken for (method, difference or not, raw scale), and they apply only while that matches.
    */
   heldLimits: { key: string; raw: [number, number]; normalized: [number, number] } | null;
-  set: (patch: Partial<Omit<ViewState, 'set' | 'setBaseline'>>) => void;
-  /** Marks the User Timing start of a baseline change, then applies it. */
-  setBaseline: (baseline: { start: number; end: number }) => void;
 }
 
-export const useViewStore = create<ViewState>((set) => ({
+export const DEFAULT_VIEW: ViewSettings = {
   channel: null,
   condition: null,
   compareTo: null,
@@ -72,9 +69,4 @@ export const useViewStore = create<ViewState>((set) => ({
   bands: DEFAULT_BANDS,
   windows: DEFAULT_WINDOWS,
   heldLimits: null,
-  set: (patch) => set(patch),
-  setBaseline: (baseline) => {
-    performance.mark('tidemark:baseline-input');
-    set({ baseline });
-  },
-}));
+};

@@ -1,13 +1,14 @@
 import { describe, expect, it } from 'vitest';
-import { frequencyGrid } from '../../../src/lib/analysis/frequency-grid';
-import { planRecipe } from '../../../src/lib/analysis/run-recipe';
-import { edgeSecondsOf, gaussianSigmas } from '../../../src/lib/analysis/wavelet';
-import { DEFAULT_DRAFT, toRecipe } from '../../../src/stores/recipe';
-import { conditionsPerLabel, defaultRejection, useSourceStore } from '../../../src/stores/source';
-import { DEFAULT_BANDS, useViewStore } from '../../../src/stores/view';
+import { frequencyGrid } from '../../../../../src/lib/analysis/frequency-grid';
+import { planRecipe } from '../../../../../src/lib/analysis/run-recipe';
+import { edgeSecondsOf, gaussianSigmas } from '../../../../../src/lib/analysis/wavelet';
+import { DEFAULT_DRAFT, toRecipe } from '../../../../../src/lib/client/workspace/recipe';
+import { conditionsPerLabel, defaultRejection } from '../../../../../src/lib/client/workspace/source-rules';
+import { DEFAULT_BANDS } from '../../../../../src/lib/client/workspace/view';
+import { useWorkspace } from '../../../../../src/lib/client/workspace/store';
 
-const window = useSourceStore.getState().epochWindow;
-const baseline = useViewStore.getState().baseline;
+const window = useWorkspace.getState().epochWindow;
+const baseline = useWorkspace.getState().baseline;
 
 describe('first-time defaults', () => {
   it('epochs −1 … 2 s, baseline −0.5 … −0.2 s, frequencies covering the default bands', () => {
@@ -26,7 +27,7 @@ describe('first-time defaults', () => {
     // And the core agrees: the default recipe earns no baseline warning on a 500 Hz recording.
     const n = 500 * 20;
     const rec = { sampleRateHz: 500, channelNames: ['Cz'], data: [Float32Array.from({ length: n }, (_, i) => Math.sin(i / 7))], events: [{ onsetSeconds: 5, durationSeconds: 0, label: 'cue' }] };
-    const recipe = toRecipe(DEFAULT_DRAFT, { conditions: [{ name: 'cue', labels: ['cue'] }], epochStart: window.start, epochEnd: window.end, rejection: defaultRejection, fingerprint: null }, { ...baseline, method: 'decibel', scope: 'average' }, [2, 40]);
+    const recipe = toRecipe({ draft: DEFAULT_DRAFT, conditions: [{ name: 'cue', labels: ['cue'] }], epochWindow: window, rejection: defaultRejection, fingerprint: null, baseline, method: 'decibel', scope: 'average', fitRange: [2, 40] });
     expect(planRecipe(rec, recipe).warnings.filter((w) => w.startsWith('baseline'))).toEqual([]);
   });
 
@@ -42,10 +43,10 @@ describe('first-time defaults', () => {
   it('a recording opened with no conditions yet gets them; one with conditions keeps them', () => {
     const local = { fileName: 'x', sizeBytes: 0, format: 'csv' as const, identifying: null, startDateTime: null, ignoredSignals: [], warnings: [] };
     const rec = { sampleRateHz: 100, channelNames: ['Fz'], data: [new Float32Array(1000)], events: [{ onsetSeconds: 3, durationSeconds: 0, label: 'bell' }] };
-    useSourceStore.getState().load({ recording: rec, local, fingerprint: 'f' });
-    expect(useSourceStore.getState().conditions).toEqual([{ name: 'bell', labels: ['bell'] }]);
-    useSourceStore.getState().setConditions([{ name: 'bell cue', labels: ['bell'] }]);
-    useSourceStore.getState().load({ recording: rec, local, fingerprint: 'f' });
-    expect(useSourceStore.getState().conditions).toEqual([{ name: 'bell cue', labels: ['bell'] }]);
+    useWorkspace.getState().load({ recording: rec, local, fingerprint: 'f' });
+    expect(useWorkspace.getState().conditions).toEqual([{ name: 'bell', labels: ['bell'] }]);
+    useWorkspace.getState().setConditions([{ name: 'bell cue', labels: ['bell'] }]);
+    useWorkspace.getState().load({ recording: rec, local, fingerprint: 'f' });
+    expect(useWorkspace.getState().conditions).toEqual([{ name: 'bell cue', labels: ['bell'] }]);
   });
 });

@@ -1,14 +1,16 @@
 import * as Comlink from 'comlink';
 import { create } from 'zustand';
-import { AnalysisCancelledError, AnalysisInputError } from '../lib/analysis/errors';
-import type { AperiodicFit } from '../lib/analysis/aperiodic';
-import type { Recording } from '../lib/analysis/recording';
-import type { RecipeInput } from '../lib/analysis/recipe';
-import { planRecipe } from '../lib/analysis/run-recipe';
-import { DecomposePool } from '../lib/client/decompose-pool';
-import { explorerWorker } from '../lib/client/explorer-worker';
-import { edgeMask, edgeZones, type EdgeZones } from '../lib/plot/edge-zone';
-import { decompositionKey, useRecipeStore } from './recipe';
+import { AnalysisCancelledError, AnalysisInputError } from '../../analysis/errors';
+import type { AperiodicFit } from '../../analysis/aperiodic';
+import type { Recording } from '../../analysis/recording';
+import type { RecipeInput } from '../../analysis/recipe';
+import { planRun, type RecipePlan } from '../../analysis/run-recipe';
+import { DecomposePool } from '../decompose-pool';
+import { explorerWorker } from '../explorer-worker';
+import { edgeMask, edgeZones, type EdgeZones } from '../../plot/edge-zone';
+import { decompositionKey } from './recipe';
+import { useWorkspace } from './store';
+import { fitBudget, sizeOfDecomposition } from './cache-budget';
 
 /**
  * A finished decomposition kept in memory: trial-averaged power per channel and condition (`[f·T + t]`, µV²), so
@@ -57,6 +59,8 @@ export interface TrialHold {
 
 export interface ResultsState {
   cache: Record<string, Decomposition>;
+  /** Cache keys, least recently used first; the budget evicts from the front. */
+  order: string[];
   activeKey: string | null;
   trialHold: TrialHold | null;
   /** A field-level problem from the last attempted run (AnalysisInputError), shown beside the field. */
@@ -66,6 +70,7 @@ export interface ResultsState {
 
 export const useResultsStore = create<ResultsState>((set) => ({
   cache: {},
+  order: [],
   activeKey: null,
   trialHold: null,
   fieldError: null,
@@ -90,8 +95,92 @@ export function recordingIdOf(recording: Recording, fingerprint: string | null):
   return id;
 }
 
-let pool: DecomposePool | null = null;
-let trialPool: DecomposePool | null = null;
+/** How the results layer gets its workers and how much it may keep (tests inject fake workers and small budgets). */
+export interface ResultsConfig {
+  /** Makes the pool that decomposes every channel (default: DecomposePool over Web Workers). */
+  createPool: (size?: number) => Pick<DecomposePool, 'run' | 'cancel'>;
+  /** Bytes of decompositions kept in memory; the least recently shown are dropped beyond it. */
+  budgetBytes: number;
+  /** Plans a recipe on a recording (default `planRun` from the core); counted by tests. */
+  plan: typeof planRun;
+  /** Hands one channel's single-trial power to the explorer worker (default: the explorer's one worker). */
+  holdTrials: (key: string, trials: Float32Array[], counts: number[], frequencies: number, times: number) => Promise<unknown>;
+}
+
+const defaults: ResultsConfig = {
+  createPool: (size) => new DecomposePool(size === undefined ? {} : { size }),
+  // 512 MiB: a 64-channel, 4-condition, 30 × 1536 map decomposition is about 100 MB.
+  budgetBytes: 512 * 1024 * 1024,
+  plan: planRun,
+  // The worker keeps these; the main thread does not, so they move rather than being copied (tens of MB).
+  holdTrials: (key, trials, counts, frequencies, times) => explorerWorker().holdTrials(key, Comlink.transfer(trials, trials.map((t) => t.buffer)), counts, frequencies, times),
+};
+let config: ResultsConfig = defaults;
+let pool: Pick<DecomposePool, 'run' | 'cancel'> | null = null;
+let trialPool: Pick<DecomposePool, 'run' | 'cancel'> | null = null;
+
+/** Replaces parts of the configuration (and drops pools made with the old one); `null` restores the defaults. */
+export function configureResults(patch: Partial<ResultsConfig> | null): void {
+  config = patch === null ? defaults : { ...config, ...patch };
+  pool = null;
+  trialPool = null;
+}
+
+/** Shows a kept decomposition on the screens (and marks it the most recently used). */
+export function showDecomposition(key: string): void {
+  if (useResultsStore.getState().cache[key] !== undefined) touch(key);
+}
+
+/** Forgets every decomposition (a new recording, or starting clean). */
+export function clearResults(): void {
+  useResultsStore.setState({ cache: {}, order: [], activeKey: null, trialHold: null, fieldError: null });
+}
+
+/** Marks `key` the most recently used and drops what no longer fits the budget (the shown one always stays). */
+function touch(key: string, added?: Decomposition): void {
+  useResultsStore.setState((s) => {
+    const cache = added !== undefined ? { ...s.cache, [key]: added } : s.cache;
+    const order = [...s.order.filter((k) => k !== key), key];
+    const { kept, evicted } = fitBudget(order, (k) => sizes.get(k) ?? 0, config.budgetBytes, new Set([key]));
+    if (evicted.length === 0) return { cache, order: kept, activeKey: key };
+    const next = { ...cache };
+    for (const k of evicted) {
+      delete next[k];
+      sizes.delete(k);
+    }
+    return { cache: next, order: kept, activeKey: key };
+  });
+}
+
+const sizes = new Map<string, number>();
+
+/**
+ * The plan of the last recipe asked about: `planRun` scans every sample (conditioning, epoch decisions), so it runs
+ * once per recording and recipe, and the pool is handed the same plan.
+ */
+let lastPlan: { key: string; recording: Recording; planned: { plan: RecipePlan; recording: Recording } } | null = null;
+
+function planOnce(recording: Recording, recordingId: string, recipe: RecipeInput): { plan: RecipePlan; recording: Recording } {
+  const key = `${recordingId}|${JSON.stringify(recipe)}`;
+  if (lastPlan !== null && lastPlan.key === key && lastPlan.recording === recording) return lastPlan.planned;
+  const planned = config.plan(recording, recipe);
+  lastPlan = { key, recording, planned };
+  return planned;
+}
+
+/**
+ * Checks `recipe` against the recording the way a run will (the same plan, kept for that run): null when it fits,
+ * else the field and the problem.
+ */
+export function checkRecipe(recording: Recording, recordingId: string, recipe: RecipeInput): { field: string; problem: string; message: string } | null {
+  try {
+    planOnce(recording, recordingId, recipe);
+    return null;
+  } catch (error) {
+    if (error instanceof AnalysisInputError) return { field: error.field, problem: error.problem, message: error.message };
+    throw error;
+  }
+}
 
 function flatten(rows: number[][]): Float64Array {
   const nf = rows.length;
@@ -111,16 +200,17 @@ function flatten(rows: number[][]): Float64Array {
 export async function runDecomposition(recording: Recording, recordingId: string, recipe: RecipeInput, trialChannel: string | null): Promise<Decomposition | null> {
   const key = decompositionKey(recordingId, recipe);
   const results = useResultsStore.getState();
-  const setRun = useRecipeStore.getState().setRun;
+  const setRun = useWorkspace.getState().setRun;
   const cached = results.cache[key];
   if (cached !== undefined) {
-    useResultsStore.setState({ activeKey: key, fieldError: null });
+    touch(key);
+    useResultsStore.setState({ fieldError: null });
     setRun({ status: 'done', message: 'From the cache: this recipe was already run on this recording.', progress: cached.channels.map((channel) => ({ channel, fraction: 1 })) });
     return cached;
   }
-  let plan;
+  let planned;
   try {
-    plan = planRecipe(recording, recipe);
+    planned = planOnce(recording, recordingId, recipe);
   } catch (error) {
     if (error instanceof AnalysisInputError) {
       useResultsStore.setState({ fieldError: { field: error.field, problem: error.problem } });
@@ -130,11 +220,13 @@ export async function runDecomposition(recording: Recording, recordingId: string
     throw error;
   }
   useResultsStore.setState({ fieldError: null });
+  const plan = planned.plan;
   const channel = trialChannel !== null && plan.channels.includes(trialChannel) ? trialChannel : plan.channels[0];
   setRun({ status: 'running', message: null, progress: plan.channels.map((c) => ({ channel: c, fraction: 0 })) });
-  pool ??= new DecomposePool();
+  pool ??= config.createPool();
   try {
     const { result, singleTrials } = await pool.run(recording, recipe, {
+      planned,
       singleTrialChannel: channel,
       onProgress: (_overall, per) => setRun({ progress: plan.channels.map((c, i) => ({ channel: c, fraction: per[i] })) }),
     });
@@ -166,7 +258,8 @@ export async function runDecomposition(recording: Recording, recordingId: string
       spectrumSpans: plan.spectrum.spans,
       rejected: labels.map((l) => result.conditions[l].rejected),
     };
-    useResultsStore.setState((s) => ({ cache: { ...s.cache, [key]: decomposition }, activeKey: key }));
+    sizes.set(key, sizeOfDecomposition(decomposition));
+    touch(key, decomposition);
     setRun({ status: 'done', message: `Decomposed ${plan.channels.length} channel(s) × ${labels.length} condition(s).` });
     if (singleTrials !== null) await holdTrials(decomposition, channel, singleTrials);
     return decomposition;
@@ -187,9 +280,7 @@ export function cancelDecomposition(): void {
 
 async function holdTrials(d: Decomposition, channel: string, singleTrials: Float32Array[]): Promise<void> {
   const key = `${d.key}|${channel}`;
-  // The worker keeps these; the main thread does not, so they move rather than being copied (tens of MB).
-  const moved = Comlink.transfer(singleTrials, singleTrials.map((t) => t.buffer));
-  await explorerWorker().holdTrials(key, moved, d.trials, d.frequencies.length, d.times.length);
+  await config.holdTrials(key, singleTrials, d.trials, d.frequencies.length, d.times.length);
   useResultsStore.setState({ trialHold: { key, status: 'ready', message: null } });
 }
 
@@ -202,7 +293,7 @@ export async function ensureTrials(d: Decomposition, channel: string, recording:
   const hold = useResultsStore.getState().trialHold;
   if (hold !== null && hold.key === key && hold.status !== 'failed') return;
   useResultsStore.setState({ trialHold: { key, status: 'loading', message: `Keeping single trials of ${channel}…` } });
-  trialPool ??= new DecomposePool({ size: 1 });
+  trialPool ??= config.createPool(1);
   try {
     const { singleTrials } = await trialPool.run(recording, { ...d.recipe, channels: [channel] }, { singleTrialChannel: channel });
     if (useResultsStore.getState().trialHold?.key !== key) return;

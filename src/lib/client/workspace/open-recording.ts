@@ -1,0 +1,81 @@
+import { openRecordingFile, type IntakePhase, type IntakeProblem, type RecordingKind } from '../intake';
+import { LibraryFullError, type Library, type LibraryEntry } from '../library';
+import { guardAgainst } from '../outbound';
+import { conditionsPerLabel } from './source-rules';
+import { useWorkspace } from './store';
+
+/** Where an opened file came from, as the Source screen says it. */
+export type Origin = 'your file' | 'demo cohort' | 'this browser’s library';
+
+export interface OpenRequest {
+  blob: Blob;
+  fileName: string;
+  kind: RecordingKind;
+  from: Origin;
+  /** A BIDS events file read with it; `pairing`: an events file dropped on its own for the open EDF. */
+  events: { blob: Blob; name: string; pairing?: boolean } | null;
+  /** The demo subject's code, put in the subject code field when it is empty. */
+  demoCode?: string;
+  /** The account's local library, which keeps a copy of the file. */
+  library: Library;
+}
+
+export type OpenOutcome =
+  | { ok: true; channels: string[]; libraryNotice: string | null }
+  | { ok: false; fileName: string; error: IntakeProblem };
+
+/** The EDF reading choices worth keeping: only the ones that were made. */
+export function readingOf(kind: RecordingKind): { unitFactors?: Record<string, number>; exclude?: string[] } | null {
+  if (kind.kind !== 'edf') return null;
+  const unitFactors = kind.unitFactors && Object.keys(kind.unitFactors).length > 0 ? { ...kind.unitFactors } : undefined;
+  const exclude = kind.exclude && kind.exclude.length > 0 ? kind.exclude.slice() : undefined;
+  if (!unitFactors && !exclude) return null;
+  return { ...(unitFactors ? { unitFactors } : {}), ...(exclude ? { exclude } : {}) };
+}
+
+/**
+ * Opens a recording file for the workspace: reads it in the intake worker, tells the outbound guard what must never
+ * leave the device (file names, header identification), puts it in the workspace store (which starts its history
+ * and brings back a saved workspace), pairs an events file's labels as conditions, and keeps a copy in the
+ * account's library. On a problem nothing changes and the outcome names the file and the place.
+ */
+export async function openRecording(req: OpenRequest, onProgress: (phase: IntakePhase, fraction: number) => void): Promise<OpenOutcome> {
+  const { blob, fileName, kind, from, events } = req;
+  const result = await openRecordingFile(blob, kind.kind === 'csv' ? { ...kind, events: events?.blob ?? null } : kind, onProgress, kind.kind === 'edf' ? (events?.blob ?? null) : null);
+  if (!result.ok) return { ok: false, fileName: result.error.file === 'events' && events ? events.name : fileName, error: result.error };
+  // Only a file fetched from the demo cohort is known to be demo data; a local file with a demo-like name is not.
+  const isDemo = from === 'demo cohort';
+  // The file name and header identification must never leave the device; the outbound wrapper refuses them.
+  guardAgainst('source-recording', [
+    ...(isDemo ? [] : [fileName]),
+    ...(events && !isDemo ? [events.name] : []),
+    ...(result.local.identifying ? [result.local.identifying.patient, result.local.identifying.recording] : []),
+  ]);
+  const reading = readingOf(kind);
+  const store = useWorkspace.getState;
+  store().load({ recording: result.recording, local: { ...result.local, fileName, ...(reading ? { reading } : {}) }, fingerprint: result.fingerprint });
+  if (req.demoCode && store().subjectCode.trim() === '') store().set({ subjectCode: req.demoCode });
+  if (events?.pairing) {
+    // Paired with the open EDF: the events file's labels become conditions beside the ones already chosen.
+    const claimed = new Set(store().conditions.flatMap((c) => c.labels));
+    const added = conditionsPerLabel(result.recording.events.filter((e) => !claimed.has(e.label)));
+    if (added.length > 0) store().setConditions([...store().conditions, ...added.filter((c) => !store().conditions.some((k) => k.name === c.name))]);
+  }
+  const entry: LibraryEntry = {
+    fingerprint: result.fingerprint,
+    fileName,
+    sizeBytes: blob.size,
+    openedAt: new Date().toISOString(),
+    kind: kind.kind,
+    csv: kind.kind === 'csv' ? { sampleRateHz: kind.sampleRateHz, delimiter: kind.delimiter, eventsFileName: events?.name ?? null } : null,
+    edf: reading,
+    ...(kind.kind === 'edf' ? { edfEventsFileName: events?.name ?? null } : {}),
+  };
+  let libraryNotice: string | null = null;
+  try {
+    await req.library.keep(entry, blob, events?.blob ?? null);
+  } catch (error) {
+    libraryNotice = error instanceof LibraryFullError ? error.message : `The recording is open but could not be kept in the library: ${String(error)}`;
+  }
+  return { ok: true, channels: result.recording.channelNames, libraryNotice };
+}

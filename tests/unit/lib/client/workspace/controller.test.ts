@@ -1,0 +1,285 @@
+// The workspace controller with fake workers: in-process comlink endpoints (node:worker_threads MessageChannel)
+// running the real worker API, so the pool, the plan and the cache are the browser's own code. Checks: one plan
+// per recipe, eviction under the memory budget, cancel, and the history (undo/redo, saved and restored per
+// account and recording).
+import * as Comlink from 'comlink';
+import { MessageChannel } from 'node:worker_threads';
+import { afterEach, beforeEach, describe, expect, it } from 'vitest';
+import type { Recording } from '../../../../../src/lib/analysis/recording';
+import { planRun, runRecipe } from '../../../../../src/lib/analysis/run-recipe';
+import { DecomposePool, type PoolWorker } from '../../../../../src/lib/client/decompose-pool';
+import { WorkspaceHistory } from '../../../../../src/lib/client/workspace/controller';
+import { historyKeyOf } from '../../../../../src/lib/client/workspace/keys';
+import { checkRecipe, clearResults, configureResults, cancelDecomposition, runDecomposition, useResultsStore } from '../../../../../src/lib/client/workspace/results';
+import { memoryShelf } from '../../../../../src/lib/client/workspace/saved-workspaces';
+import { INITIAL_WORKSPACE, recipeOf, useWorkspace } from '../../../../../src/lib/client/workspace/store';
+import { BudgetCache, fitBudget } from '../../../../../src/lib/client/workspace/cache-budget';
+import { decomposeApi, type ChannelJob } from '../../../../../workers/decompose-api';
+import { seededNormal } from '../../../../helpers/seeded-random';
+
+// Scenario of our own: three channels at 128 Hz, 24 s, a "knock" cue every 2 s and a "bell" between them.
+function makeRecording(): Recording {
+  const fs = 128;
+  const normal = seededNormal(41);
+  const names = ['F3', 'Cz', 'Pz'];
+  const data = names.map(() => Float32Array.from({ length: 24 * fs }, () => 4 * normal()));
+  const events = Array.from({ length: 10 }, (_, k) => ({ onsetSeconds: 2 + 2 * k, durationSeconds: 0, label: k % 2 === 0 ? 'knock' : 'bell' }));
+  return { sampleRateHz: fs, channelNames: names, data, events };
+}
+
+const local = { fileName: 'knock.edf', sizeBytes: 0, format: 'edf+c' as const, identifying: null, startDateTime: null, ignoredSignals: [], warnings: [] };
+
+/** Workers over MessageChannel running `decomposeApi`; `stall` makes new ones never answer. */
+function fakeWorkers() {
+  const state = { stall: false, created: 0, terminated: 0 };
+  const factory = (): PoolWorker => {
+    state.created++;
+    const stall = state.stall;
+    const { port1, port2 } = new MessageChannel();
+    Comlink.expose({ run: (job: ChannelJob, onProgress?: (f: number) => void) => (stall ? new Promise(() => undefined) : decomposeApi.run(job, onProgress)) }, port2 as unknown as Comlink.Endpoint);
+    return {
+      endpoint: port1 as unknown as Comlink.Endpoint,
+      terminate: () => {
+        state.terminated++;
+        port1.close();
+        port2.close();
+      },
+    };
+  };
+  return { state, factory };
+}
+
+function open(fingerprint = 'a'.repeat(64)) {
+  useWorkspace.getState().load({ recording: makeRecording(), local, fingerprint });
+  useWorkspace.getState().setEpochWindow({ start: -0.4, end: 1.0 });
+  useWorkspace.getState().setDraft({ frequencies: { min: 6, max: 30, count: 4, spacing: 'log' }, cyclesMode: 'fixed', cyclesFixed: 4, spectrum: { segment: 1, overlap: 0.5, range: [1, 50], source: 'recording' } });
+  useWorkspace.getState().set({ baseline: { start: -0.3, end: -0.1 } });
+}
+
+describe('the controller runs each recipe through one plan and the worker pool', () => {
+  let plans = 0;
+  let workers: ReturnType<typeof fakeWorkers>;
+  beforeEach(() => {
+    useWorkspace.setState(INITIAL_WORKSPACE);
+    clearResults();
+    plans = 0;
+    workers = fakeWorkers();
+    configureResults({
+      createPool: (size) => new DecomposePool({ size: size ?? 2, createWorker: workers.factory }),
+      plan: (recording, recipe) => {
+        plans++;
+        return planRun(recording, recipe);
+      },
+      holdTrials: async () => undefined,
+    });
+    open();
+  });
+  afterEach(() => configureResults(null));
+
+  it('plans once per recipe: the check and the run share it, and the numbers are runRecipe\'s bit for bit', async () => {
+    const s = useWorkspace.getState();
+    const recording = s.recording!;
+    const recipe = recipeOf(s);
+    expect(checkRecipe(recording, 'rec', recipe)).toBeNull();
+    expect(checkRecipe(recording, 'rec', recipe)).toBeNull();
+    const d = await runDecomposition(recording, 'rec', recipe, null);
+    expect(plans).toBe(1);
+    // The single-thread core is the reference (the parity test compares it with the CLI).
+    const reference = runRecipe(recording, recipe);
+    const row = reference.conditions[d!.labels[0]].power[0][2];
+    const T = d!.times.length;
+    expect(Array.from(d!.power[0][0].subarray(2 * T, 3 * T))).toEqual(row.map((v) => (v === null ? NaN : v)));
+    // A new baseline re-normalizes live: the decomposition comes from the cache, nothing is planned again.
+    useWorkspace.getState().setBaseline({ start: -0.35, end: -0.15 });
+    await runDecomposition(recording, 'rec', recipeOf(useWorkspace.getState()), null);
+    expect(plans).toBe(1);
+    expect(useWorkspace.getState().run.message).toMatch(/^From the cache/);
+    // Another frequency grid is another recipe: one more plan.
+    useWorkspace.getState().setDraft({ frequencies: { min: 6, max: 30, count: 5, spacing: 'log' } });
+    await runDecomposition(recording, 'rec', recipeOf(useWorkspace.getState()), null);
+    expect(plans).toBe(2);
+  });
+
+  it('keeps decompositions under the memory budget, least recently shown out first, the shown one always', async () => {
+    const recording = useWorkspace.getState().recording!;
+    const first = await runDecomposition(recording, 'rec', recipeOf(useWorkspace.getState()), null);
+    expect(useResultsStore.getState().order).toEqual([first!.key]);
+    const bytes = estimate(first!);
+    expect(bytes).toBeGreaterThan(1000);
+    // Room for one and a half decompositions of this size.
+    configureResults({ budgetBytes: Math.floor(bytes * 1.5) });
+    useWorkspace.getState().setDraft({ frequencies: { min: 6, max: 30, count: 4, spacing: 'linear' } });
+    const second = await runDecomposition(recording, 'rec', recipeOf(useWorkspace.getState()), null);
+    expect(Object.keys(useResultsStore.getState().cache)).toEqual([second!.key]);
+    expect(useResultsStore.getState().order).toEqual([second!.key]);
+    expect(useResultsStore.getState().activeKey).toBe(second!.key);
+    // A budget smaller than one decomposition still keeps the shown one.
+    configureResults({ budgetBytes: 1 });
+    useWorkspace.getState().setDraft({ frequencies: { min: 6, max: 30, count: 3, spacing: 'linear' } });
+    const third = await runDecomposition(recording, 'rec', recipeOf(useWorkspace.getState()), null);
+    expect(Object.keys(useResultsStore.getState().cache)).toEqual([third!.key]);
+  });
+
+  it('cancel ends a run at once, keeps nothing from it and terminates its workers', async () => {
+    workers.state.stall = true;
+    const recording = useWorkspace.getState().recording!;
+    const running = runDecomposition(recording, 'rec', recipeOf(useWorkspace.getState()), null);
+    await new Promise((r) => setTimeout(r, 30));
+    expect(useWorkspace.getState().run.status).toBe('running');
+    cancelDecomposition();
+    expect(await running).toBeNull();
+    expect(useWorkspace.getState().run).toMatchObject({ status: 'cancelled' });
+    expect(useResultsStore.getState().cache).toEqual({});
+    expect(workers.state.terminated).toBe(workers.state.created);
+  });
+});
+
+/** Bytes of a decomposition's typed arrays, counted here independently of cache-budget.ts. */
+function estimate(d: { power: Float64Array[][]; mask: Uint8Array; times: Float64Array; frequencies: Float64Array }): number {
+  return d.power.flat().reduce((a, p) => a + p.byteLength, 0) + d.mask.byteLength + d.times.byteLength + d.frequencies.byteLength;
+}
+
+describe('byte budget', () => {
+  it('fitBudget keeps the most recent that fit, pinned ones always', () => {
+    const size = { a: 4, b: 4, c: 4, d: 10 } as Record<string, number>;
+    expect(fitBudget(['a', 'b', 'c'], (k) => size[k], 8)).toEqual({ kept: ['b', 'c'], evicted: ['a'] });
+    expect(fitBudget(['a', 'b', 'd'], (k) => size[k], 8, new Set(['d']))).toEqual({ kept: ['d'], evicted: ['a', 'b'] });
+  });
+
+  it('BudgetCache evicts the least recently used beyond its budget', () => {
+    const cache = new BudgetCache<Float64Array>(64);
+    cache.set('a', new Float64Array(4)); // 32 bytes
+    cache.set('b', new Float64Array(4));
+    cache.get('a'); // a is now the most recent
+    cache.set('c', new Float64Array(4));
+    expect([cache.has('a'), cache.has('b'), cache.has('c')]).toEqual([true, false, true]);
+    expect(cache.bytes).toBe(64);
+  });
+});
+
+describe('history and the workspace kept in this browser', () => {
+  let t = 0;
+  let history: WorkspaceHistory;
+  beforeEach(() => {
+    useWorkspace.setState(INITIAL_WORKSPACE);
+    t = 10_000;
+    history = new WorkspaceHistory({ store: useWorkspace, now: () => t, saveDelayMs: 5 });
+  });
+  afterEach(() => history.detach());
+  const tick = () => new Promise((r) => setTimeout(r, 0));
+  const settle = () => new Promise((r) => setTimeout(r, 30));
+
+  it('undo walks every edit back one step at a time and redo forward; opening is not an edit', async () => {
+    open();
+    await tick();
+    expect(history.memory.getState()).toMatchObject({ canUndo: false, canRedo: false });
+    const s = () => useWorkspace.getState();
+    s().setOverride(0, 'reject');
+    t += 5000;
+    s().setOverride(2, 'keep');
+    t += 5000;
+    s().setConditions([{ name: 'knock', labels: ['knock'] }]);
+    t += 5000;
+    expect(Object.keys(s().rejection.overrides)).toHaveLength(2);
+    const rejected = s().decisions.filter((d) => d.rejected).length;
+    expect(history.undo()).toBe(true);
+    expect(s().conditions.map((c) => c.name).sort()).toEqual(['bell', 'knock']);
+    expect(history.undo()).toBe(true);
+    expect(Object.keys(s().rejection.overrides)).toHaveLength(1);
+    expect(history.undo()).toBe(true);
+    expect(s().rejection.overrides).toEqual({});
+    expect(history.undo()).toBe(false);
+    expect(history.redo()).toBe(true);
+    expect(history.redo()).toBe(true);
+    expect(history.redo()).toBe(true);
+    expect(history.redo()).toBe(false);
+    expect(Object.keys(s().rejection.overrides)).toHaveLength(2);
+    expect(s().conditions.map((c) => c.name)).toEqual(['knock']);
+    // Decisions derive from the edits: they are back too.
+    expect(s().decisions.filter((d) => d.rejected).length).toBe(rejected);
+  });
+
+  it('a drag is one step; a new edit after undo drops the redo list', async () => {
+    open();
+    await tick();
+    const s = () => useWorkspace.getState();
+    for (let k = 1; k <= 10; k++) {
+      s().setBaseline({ start: -0.3 + k * 0.005, end: -0.1 });
+      t += 30;
+    }
+    t += 5000;
+    s().set({ method: 'z-score' });
+    history.undo();
+    history.undo();
+    expect(s().baseline).toEqual({ start: -0.3, end: -0.1 });
+    history.redo();
+    expect(s().baseline.start).toBeCloseTo(-0.25, 12);
+    s().set({ rawScale: 'linear' });
+    expect(history.memory.getState().canRedo).toBe(false);
+  });
+
+  it('saves per recording, restores on opening it again with the time, and starting clean forgets it', async () => {
+    const shelf = memoryShelf();
+    history.useShelf(shelf);
+    open('b'.repeat(64));
+    await tick();
+    useWorkspace.getState().setOverride(4, 'reject');
+    t += 5000;
+    useWorkspace.getState().set({ bands: [{ name: 'low', lowHz: 4, highHz: 8 }] });
+    await settle();
+    const saved = shelf.map.get('b'.repeat(64))!;
+    expect(saved.edits.bands).toEqual([{ name: 'low', lowHz: 4, highHz: 8 }]);
+    // Settings only: nothing of the recording's samples is in what was saved.
+    expect(JSON.stringify(saved)).not.toMatch(/"data"|Float32Array/);
+    expect('recording' in saved.edits).toBe(false);
+    // Another recording: nothing restored.
+    open('c'.repeat(64));
+    await settle();
+    expect(history.memory.getState().restoredFrom).toBeNull();
+    expect(useWorkspace.getState().rejection.overrides).toEqual({});
+    // The first one again: everything is back, and the line says from when.
+    useWorkspace.setState({ bands: INITIAL_WORKSPACE.bands });
+    open('b'.repeat(64));
+    await settle();
+    expect(history.memory.getState().restoredFrom).toBe(saved.savedAt);
+    expect(Object.values(useWorkspace.getState().rejection.overrides)).toEqual(['reject']);
+    expect(useWorkspace.getState().bands).toEqual([{ name: 'low', lowHz: 4, highHz: 8 }]);
+    expect(history.memory.getState().canUndo).toBe(false);
+    await history.startClean();
+    expect(useWorkspace.getState().rejection.overrides).toEqual({});
+    expect(shelf.map.has('b'.repeat(64))).toBe(false);
+    expect(history.memory.getState().restoredFrom).toBeNull();
+  });
+
+  it('another account\'s shelf holds none of it', async () => {
+    const mine = memoryShelf();
+    const theirs = memoryShelf();
+    history.useShelf(mine);
+    open('d'.repeat(64));
+    await tick();
+    useWorkspace.getState().setOverride(0, 'reject');
+    await settle();
+    expect(mine.map.size).toBe(1);
+    history.useShelf(theirs);
+    open('d'.repeat(64));
+    await settle();
+    expect(history.memory.getState().restoredFrom).toBeNull();
+    expect(useWorkspace.getState().rejection.overrides).toEqual({});
+    expect(theirs.map.size).toBe(0);
+  });
+});
+
+describe('history keys', () => {
+  const key = (k: string, mods: Partial<Record<'ctrlKey' | 'metaKey' | 'shiftKey' | 'altKey', boolean>> = {}) => ({ key: k, ctrlKey: false, metaKey: false, shiftKey: false, altKey: false, ...mods });
+  it('Ctrl/Cmd+Z undoes, Ctrl/Cmd+Shift+Z and Ctrl+Y redo, text fields keep their own undo (common practice)', () => {
+    const body = { tagName: 'BODY' };
+    expect(historyKeyOf(key('z', { ctrlKey: true }), body as never)).toBe('undo');
+    expect(historyKeyOf(key('z', { metaKey: true }), body as never)).toBe('undo');
+    expect(historyKeyOf(key('Z', { ctrlKey: true, shiftKey: true }), body as never)).toBe('redo');
+    expect(historyKeyOf(key('y', { ctrlKey: true }), body as never)).toBe('redo');
+    expect(historyKeyOf(key('z'), body as never)).toBeNull();
+    expect(historyKeyOf(key('z', { ctrlKey: true }), { tagName: 'INPUT', type: 'number' } as never)).toBeNull();
+    expect(historyKeyOf(key('z', { ctrlKey: true }), { tagName: 'TEXTAREA' } as never)).toBeNull();
+    expect(historyKeyOf(key('z', { ctrlKey: true }), { tagName: 'INPUT', type: 'checkbox' } as never)).toBe('undo');
+  });
+});
