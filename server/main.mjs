@@ -17,6 +17,8 @@ const host = process.env.HOST ?? '127.0.0.1';
 const port = Number(process.env.PORT ?? 4321);
 /** The largest body any route accepts (routes cap lower: forms 16 KiB, JSON 64 KiB unless they say otherwise). */
 export const MAX_BODY_BYTES = Number(process.env.TIDEMARK_MAX_BODY_BYTES ?? 1_048_576);
+/** Bodies over the cap but at most this size are read (and dropped) before the 413, so the client sees it. */
+const DRAIN_BYTES = 8 * 1024 * 1024;
 /** The study page's batch import of summaries (many files of up to 1 MB each) has its own cap (IMPORT_CAPS). */
 const IMPORT_BODY_BYTES = 16 * 1_048_576;
 const IMPORT_PATH = /^\/api\/studies\/[^/?#]+\/summary-imports(?:[?#]|$)/;
@@ -54,8 +56,23 @@ const server = http.createServer((req, res) => {
   const declared = req.headers['content-length'];
   const cap = req.method === 'POST' && IMPORT_PATH.test(req.url ?? '') ? Math.max(MAX_BODY_BYTES, IMPORT_BODY_BYTES) : MAX_BODY_BYTES;
   if (declared !== undefined && !(Number(declared) <= cap)) {
-    refuse(res, 413, `The request body is larger than ${cap} bytes.`);
-    req.resume();
+    const message = `The request body is larger than ${cap} bytes.`;
+    // A client still sending its body when the connection closes sees a reset, not the answer. A body up to a few
+    // times the cap is read and dropped first so the 413 arrives; a larger one is answered at once and cut off.
+    if (Number(declared) <= DRAIN_BYTES) {
+      let answered = false;
+      const answer = () => {
+        if (answered) return;
+        answered = true;
+        refuse(res, 413, message);
+      };
+      req.on('end', answer);
+      req.on('error', answer);
+      req.resume();
+    } else {
+      refuse(res, 413, message);
+      req.resume();
+    }
     return;
   }
   handler(req, res);

@@ -63,7 +63,7 @@ describe('a recording above 64 MiB', () => {
     // The last samples of Oz as the page holds them (the store's recording, read through the test hooks).
     const tail = await page.evaluate(() => {
       const hooks = (window as unknown as { __tidemark: { stores: { source: { getState(): { recording: { data: Float32Array[] } } } } } }).__tidemark;
-      const x = hooks.stores.source.getState().recording.data[3];
+      const x = hooks.stores.workspace.getState().recording.data[3];
       return Array.from(x.subarray(x.length - 5));
     });
     expect(tail).toEqual(firstSamples);
