@@ -87,7 +87,7 @@ server.listen(port, host, () => {
 
 // Mail queued before this start (a stop, a crash) goes out now; routes wake the sender after they queue more.
 const mailSender = startMailSender();
-globalThis.__tidemarkWakeMailSender = () => mailSender.wake();
+globalThis.tidemarkWakeMailSender = () => mailSender.wake();
 
 let closing = false;
 function shutdown(signal) {

@@ -57,7 +57,7 @@ describe('study page review section', () => {
     await a.request(`/api/analysis-sessions/${ids[2]}/status`, { method: 'POST', json: { change: 'submit', recipeVersion: 1 } });
     const since = await latestMailId();
     await l.request(`/api/analysis-sessions/${ids[2]}/status`, { method: 'POST', json: { change: 'signOff', recipeVersion: 1, password: lead.password } });
-    const mail = await waitForMail(analyst.email, since);
+    const mail = await waitForMail(analyst.email, since, 10_000, `#session-${ids[2]}`);
     const link = /https?:\/\/\S+#session-\S+/.exec(mail.text)![0];
 
     const page = await signInPage(analyst.email, analyst.password);

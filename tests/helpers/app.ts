@@ -49,12 +49,16 @@ export class Client {
 }
 
 /** Waits for the mail fake to store a message to `to` newer than `sinceId`; returns its text. */
-export async function waitForMail(to: string, sinceId = 0, timeoutMs = 10_000): Promise<{ id: number; subject: string; text: string }> {
+/**
+ * The newest mail to `to` after `sinceId` (holding `containing`, when given). Mail leaves through the outbox, so a
+ * message caused earlier may arrive after `sinceId` was read: name what the awaited one holds where that matters.
+ */
+export async function waitForMail(to: string, sinceId = 0, timeoutMs = 10_000, containing = ''): Promise<{ id: number; subject: string; text: string }> {
   const until = Date.now() + timeoutMs;
   while (Date.now() < until) {
     const { rows } = await pool.query(
-      'SELECT id, subject, text_body FROM mail_messages WHERE to_addresses ILIKE $1 AND id > $2 ORDER BY id DESC LIMIT 1',
-      [`%${to}%`, sinceId],
+      "SELECT id, subject, text_body FROM mail_messages WHERE to_addresses ILIKE $1 AND id > $2 AND position($3 in coalesce(text_body, '')) > 0 ORDER BY id DESC LIMIT 1",
+      [`%${to}%`, sinceId, containing],
     );
     if (rows[0]) return { id: Number(rows[0].id), subject: rows[0].subject, text: rows[0].text_body };
     await new Promise((r) => setTimeout(r, 100));

@@ -49,5 +49,5 @@ export async function queueMail(tx: Tx | Db, mail: OutgoingMail): Promise<void> 
 
 /** Tells the outbox sender of this process (when it runs one) that new mail is waiting. */
 export function wakeMailSender(): void {
-  (globalThis as { __tidemarkWakeMailSender?: () => void }).__tidemarkWakeMailSender?.();
+  (globalThis as { tidemarkWakeMailSender?: () => void }).tidemarkWakeMailSender?.();
 }
