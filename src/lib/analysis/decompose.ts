@@ -1,5 +1,6 @@
 import { baselineStats, normalizeAverage, zScoreAcrossTrials, type BaselineMethod, type BaselineScope, type BaselineSpread } from './baseline';
 import { AnalysisCancelledError } from './errors';
+import type FFT from 'fft.js';
 import { getFft } from './fft';
 import { getWaveletBank } from './wavelet';
 import { log10 } from './portable-math';
@@ -231,6 +232,29 @@ function phaseConsistency(phasors: Float64Array, points: number, trials: number)
   return out;
 }
 
+// conj(X) over the wavelet's band, interleaved (re, im), for the per-residue transforms below.
+function gatherConjugate(band: Float64Array, spectrum: Float64Array, bins: Int32Array): void {
+  for (let q = 0; q < bins.length; q++) {
+    const idx = bins[q];
+    band[2 * q] = spectrum[idx];
+    band[2 * q + 1] = -spectrum[idx + 1];
+  }
+}
+
+// For output residue r, one size-M transform of conj(X)·V_r into out: y[q·R + r] up to a factor of modulus 1.
+function residueTransform(out: Float64Array, band: Float64Array, weights: Float64Array, r: number, m: number, work: Float64Array, fft: FFT): void {
+  const base = 2 * r * m;
+  for (let q = 0; q < m; q++) {
+    const xr = band[2 * q];
+    const xi = band[2 * q + 1];
+    const vr = weights[base + 2 * q];
+    const vi = weights[base + 2 * q + 1];
+    work[2 * q] = xr * vr - xi * vi;
+    work[2 * q + 1] = xr * vi + xi * vr;
+  }
+  fft.transform(out, work);
+}
+
 // The same transforms as bandPower, keeping the phase: out holds conj(y) times a factor of modulus 1 that depends
 // on the time point and the wavelet's band only, never on the trial, so |Σ_k out_k/|out_k|| = |Σ_k y_k/|y_k||.
 function bandPhase(
@@ -247,22 +271,9 @@ function bandPhase(
 ): void {
   const m = bins.length;
   const fft = getFft(m);
-  for (let q = 0; q < m; q++) {
-    const idx = bins[q];
-    band[2 * q] = spectrum[idx];
-    band[2 * q + 1] = -spectrum[idx + 1];
-  }
+  gatherConjugate(band, spectrum, bins);
   for (let r = 0; r < residues; r++) {
-    const base = 2 * r * m;
-    for (let q = 0; q < m; q++) {
-      const xr = band[2 * q];
-      const xi = band[2 * q + 1];
-      const vr = weights[base + 2 * q];
-      const vi = weights[base + 2 * q + 1];
-      work[2 * q] = xr * vr - xi * vi;
-      work[2 * q + 1] = xr * vi + xi * vr;
-    }
-    fft.transform(out, work);
+    residueTransform(out, band, weights, r, m, work, fft);
     const count = Math.min(m, Math.ceil((length - r) / residues));
     for (let q = 0, j = r; q < count; q++, j += residues) {
       const re = out[2 * q];
@@ -294,22 +305,9 @@ function bandPower(
 ): void {
   const m = bins.length;
   const fft = getFft(m);
-  for (let q = 0; q < m; q++) {
-    const idx = bins[q];
-    band[2 * q] = spectrum[idx];
-    band[2 * q + 1] = -spectrum[idx + 1];
-  }
+  gatherConjugate(band, spectrum, bins);
   for (let r = 0; r < residues; r++) {
-    const base = 2 * r * m;
-    for (let q = 0; q < m; q++) {
-      const xr = band[2 * q];
-      const xi = band[2 * q + 1];
-      const vr = weights[base + 2 * q];
-      const vi = weights[base + 2 * q + 1];
-      work[2 * q] = xr * vr - xi * vi;
-      work[2 * q + 1] = xr * vi + xi * vr;
-    }
-    fft.transform(out, work);
+    residueTransform(out, band, weights, r, m, work, fft);
     const count = Math.min(m, Math.ceil((length - r) / residues));
     if (row === null) {
       for (let q = 0, j = off + r; q < count; q++, j += residues) {
