@@ -62,7 +62,7 @@ describe('a recording above 64 MiB', () => {
     expect(await page.getByTestId('recording-details').textContent()).toContain(`${CHANNELS.length} channels at ${FS} Hz`);
     // The last samples of Oz as the page holds them (the store's recording, read through the test hooks).
     const tail = await page.evaluate(() => {
-      const hooks = (window as unknown as { __tidemark: { stores: { source: { getState(): { recording: { data: Float32Array[] } } } } } }).__tidemark;
+      const hooks = (window as unknown as { __tidemark: { stores: { workspace: { getState(): { recording: { data: Float32Array[] } } } } } }).__tidemark;
       const x = hooks.stores.workspace.getState().recording.data[3];
       return Array.from(x.subarray(x.length - 5));
     });
