@@ -18,9 +18,8 @@
 // whole run is bounded (TIDEMARK_LOAD_DEADLINE_SECONDS, default 900, build included), and it stops the app and
 // PostgreSQL and drops its database on the way out, also on Ctrl-C or failure.
 //
-// Extending: a route is one entry of ROUTES (name, its share of the clients, how to build one request). There is no
-// cohort route yet, so "cohort" reads the study's session listing with every signature (the query a cohort screen
-// starts from); when the cohort route lands, point that entry at it (or add it beside) and nothing else changes.
+// Extending: a route is one entry of ROUTES (name, its share of the clients, how to build one request). The
+// "cohort overview" entry reads the Cohort screen's own route (/api/studies/<id>/cohort).
 import { spawn, type ChildProcess } from 'node:child_process';
 import { randomUUID } from 'node:crypto';
 import fs from 'node:fs';
@@ -87,11 +86,10 @@ function routes(seed: Seeded) {
       },
     },
     {
-      // COHORT ROUTE: no cohort route exists yet; the study's session listing (every subject's session with its
-      // signatures) stands in. Point this entry at the cohort route when it lands.
-      name: 'cohort query',
+      // The Cohort screen's first data: every session's current recipe, summary outline, band digests and signatures.
+      name: 'cohort overview',
       share: 0.3,
-      request: () => ({ method: 'GET' as const, path: `/api/studies/${seed.studyId}/analysis-sessions` }),
+      request: () => ({ method: 'GET' as const, path: `/api/studies/${seed.studyId}/cohort` }),
     },
   ];
 }
