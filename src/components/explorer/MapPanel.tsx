@@ -1,7 +1,7 @@
-import { useEffect, useLayoutEffect, useRef, useState, type KeyboardEvent, type PointerEvent } from 'react';
+import { useEffect, useLayoutEffect, useRef, useState, type KeyboardEvent, type PointerEvent, type ReactNode } from 'react';
 import { useElementWidth } from './useElementWidth';
 import { panelLayout, type PanelLayout } from '../../lib/plot/figure';
-import { paintPanel, panelScales, type PanelSpec } from '../../lib/plot/panel';
+import { paintPanel, panelScales, type PanelScales, type PanelSpec } from '../../lib/plot/panel';
 
 export interface Cell {
   f: number;
@@ -23,6 +23,17 @@ export interface MapPanelProps {
   cursor: Cell | null;
   onCursor: (cell: Cell | null) => void;
   warnings?: string[];
+  /**
+   * Drawn above the map in the panel's own coordinates (CSS pixels from the panel's top left), e.g. note pins:
+   * `scales.time(seconds)` and `scales.frequency(hertz)` place a point; `layout` gives the plot rectangle.
+   */
+  overlay?: (geometry: MapGeometry) => ReactNode;
+}
+
+export interface MapGeometry {
+  layout: PanelLayout;
+  scales: PanelScales;
+  spec: PanelSpec;
 }
 
 type Drag = { kind: 'body' | 'start' | 'end'; x0: number; start0: number; end0: number; pxPerSecond: number };
@@ -178,6 +189,7 @@ export default function MapPanel(props: MapPanelProps) {
         className="block"
         style={{ width: layout.width, height: layout.height }}
       />
+      {props.overlay?.({ layout, scales, spec })}
       {cursorX !== null && cursorY !== null && (
         <div aria-hidden className="pointer-events-none absolute border border-ink" style={{ left: cursorX - 4, top: cursorY - 4, width: 8, height: 8 }} />
       )}
