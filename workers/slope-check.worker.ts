@@ -3,8 +3,9 @@
 // this worker (src/lib/client/slope-check.ts terminates it) rather than sending it a message.
 import * as Comlink from 'comlink';
 import type { AperiodicModel } from '../src/lib/analysis/aperiodic';
+import { normalizeAverage, type BaselineIndices, type BaselineMethod } from '../src/lib/analysis/baseline';
 import { welchPsd } from '../src/lib/analysis/welch';
-import { bootstrapExponent, compareAperiodicModels, exponentOverRanges, runSlopeSweep, type SlopeSweepInput } from '../src/lib/analysis/slope-check';
+import { bootstrapExponent, broadbandShift, compareAperiodicModels, explainedShare, exponentOverRanges, runSlopeSweep, windowFit, type SlopeSweepInput } from '../src/lib/analysis/slope-check';
 
 const api = {
   /** The bench over the sweep's true exponents; `onProgress` gets the fraction done. */
@@ -33,6 +34,33 @@ const api = {
     const interval = bootstrapExponent(samples, sampleRateHz, segmentSamples, overlapSamples, spans, range, model, bootstrap);
     const comparison = compareAperiodicModels(w.frequencies, w.psd, range);
     return { grid, interval: { estimate: interval.estimate, lower: interval.lower, upper: interval.upper, level: interval.level, segments: interval.segments }, comparison };
+  },
+  /**
+   * The broadband-shift check of one channel and condition: aperiodic fits of the baseline and the post window
+   * (`windowFit`, sample offsets inside the epoch = the map's time indices), the map a pure aperiodic change would
+   * give (`broadbandShift`), the measured map normalized with the same baseline and method, and the share per band.
+   */
+  shift(
+    samples: Float32Array,
+    sampleRateHz: number,
+    epochStarts: Int32Array,
+    baseline: BaselineIndices,
+    post: BaselineIndices,
+    rangeHz: [number, number],
+    model: AperiodicModel,
+    frequencies: Float64Array,
+    power: Float64Array,
+    nTimes: number,
+    method: BaselineMethod,
+    neutral: number,
+    bands: { name: string; low: number; high: number }[],
+  ) {
+    const baselineFit = windowFit(samples, sampleRateHz, epochStarts, baseline.first, baseline.last, rangeHz, model);
+    const postFit = windowFit(samples, sampleRateHz, epochStarts, post.first, post.last, rangeHz, model);
+    const predicted = broadbandShift(frequencies, baselineFit, postFit, method);
+    const measured = normalizeAverage(power, nTimes, baseline, method);
+    const shares = explainedShare(frequencies, measured, nTimes, post.first, post.last, predicted, bands, neutral);
+    return Comlink.transfer({ baselineFit, postFit, predicted, measured, shares }, [predicted.buffer, measured.buffer] as ArrayBuffer[]);
   },
 };
 

@@ -6,8 +6,13 @@ import type { PoolWorker } from '../../../workers/pool-worker';
 import type { SlopeCheckWorkerApi } from '../../../workers/slope-check.worker';
 import type { SlopeSweepCell, SlopeSweepInput } from '../analysis/slope-check/sweep';
 import type { ModelComparison } from '../analysis/slope-check/sensitivity';
-import type { AperiodicModel } from '../analysis/aperiodic';
+import type { BandShare } from '../analysis/slope-check/shift';
+import type { AperiodicFit, AperiodicModel } from '../analysis/aperiodic';
+import { baselinePointsIn, type BaselineMethod } from '../analysis/baseline';
+import { conditionRecording } from '../analysis/condition-recording';
+import { parseRecipe } from '../analysis/recipe';
 import type { Recording } from '../analysis/recording';
+import type { Decomposition } from './workspace/results';
 import type { SlopeReportInputT, SlopeReportListItem } from '../schemas/slope-reports';
 import { errorMessageOf, send } from './outbound';
 
@@ -94,9 +99,6 @@ export function runSlopeBenchInWorker(input: SlopeSweepInput, options: SlopeRunO
 
 export interface SensitivityRequest {
   channel: string;
-  /** The recipe's Welch segment and overlap, in seconds and as a fraction. */
-  segmentSeconds: number;
-  overlap: number;
   rangeHz: [number, number];
   model: AperiodicModel;
   startsHz: number[];
@@ -106,28 +108,103 @@ export interface SensitivityRequest {
 
 export interface SensitivityResult {
   request: SensitivityRequest;
+  /** Exponent per start × end, `[i·ends + j]`, NaN where the range held no fit. */
   grid: Float64Array;
   interval: { estimate: number; lower: number; upper: number; level: number; segments: number };
   comparison: ModelComparison;
+  /** Welch segment and overlap of the recipe (samples), for the words beside the interval. */
+  segmentSamples: number;
+  overlapSamples: number;
+}
+
+/** One channel of the open recording as decomposition `d` saw it (types, bad channels, reference, filters). */
+function conditionedChannel(d: Decomposition, recording: Recording, channel: string): Float32Array {
+  const conditioned = conditionRecording(recording, parseRecipe(d.recipe)).recording;
+  const c = conditioned.channelNames.indexOf(channel);
+  if (c < 0 || !d.channels.includes(channel)) throw new SlopeCheckError(`channel "${channel}" is not among the decomposition's channels`, 'channel');
+  return conditioned.data[c].slice();
 }
 
 /**
- * The sensitivity of one channel's exponent on the open recording: its Welch spectrum over the whole recording
- * (every continuous stretch between gaps), the exponent over fit-range starts × ends, a bootstrap interval over its
- * segments and power law against knee by BIC. The samples are copied to the worker; they never leave the browser.
+ * The sensitivity of one channel's exponent: the recipe's spectrum of that channel (Welch over the recipe's spans,
+ * segment and overlap, as the Spectrum screen fits it), its exponent over fit-range starts × ends, a bootstrap
+ * interval over its segments and power law against knee by BIC. The samples go to the worker, never further.
  */
-export function checkSensitivityInWorker(recording: Recording, request: SensitivityRequest, options: SlopeRunOptions = {}): Promise<SensitivityResult> {
-  const c = recording.channelNames.indexOf(request.channel);
-  if (c < 0) return Promise.reject(new SlopeCheckError(`channel "${request.channel}" is not in the open recording`, 'channel'));
-  const fs = recording.sampleRateHz;
-  const n = Math.round(request.segmentSeconds * fs);
-  const samples = recording.data[c].slice();
-  const cuts = [0, ...(recording.gapSampleIndices ?? []).filter((i) => i > 0 && i < samples.length), samples.length];
-  const spans = new Int32Array((cuts.length - 1) * 2);
-  for (let i = 0; i + 1 < cuts.length; i++) spans.set([cuts[i], cuts[i + 1]], 2 * i);
+export async function checkSensitivityInWorker(d: Decomposition, recording: Recording, request: SensitivityRequest, options: SlopeRunOptions = {}): Promise<SensitivityResult> {
+  const samples = conditionedChannel(d, recording, request.channel);
   return inWorker(options, async (remote) => {
-    const out = await remote.sensitivity(Comlink.transfer(samples, [samples.buffer as ArrayBuffer]), fs, n, Math.round(request.overlap * n), spans, request.rangeHz, request.model, request.startsHz, request.endsHz, request.bootstrap);
-    return { request, ...out };
+    const out = await remote.sensitivity(
+      Comlink.transfer(samples, [samples.buffer as ArrayBuffer]),
+      d.sampleRateHz,
+      d.spectrumSegmentSamples,
+      d.spectrumOverlapSamples,
+      d.spectrumSpans.slice(),
+      request.rangeHz,
+      request.model,
+      request.startsHz,
+      request.endsHz,
+      request.bootstrap,
+    );
+    return { request, ...out, segmentSamples: d.spectrumSegmentSamples, overlapSamples: d.spectrumOverlapSamples };
+  });
+}
+
+export interface ShiftRequest {
+  channel: string;
+  condition: string;
+  baseline: { start: number; end: number };
+  post: { start: number; end: number };
+  method: BaselineMethod;
+  rangeHz: [number, number];
+  model: AperiodicModel;
+  bands: { name: string; lowHz: number; highHz: number }[];
+}
+
+export interface ShiftResult {
+  request: ShiftRequest;
+  baselineFit: AperiodicFit;
+  postFit: AperiodicFit;
+  /** Per frequency of the map, what the aperiodic change alone gives after normalization. */
+  predicted: Float64Array;
+  /** The measured normalized map `[f·T + t]` (average scope, the same baseline and method). */
+  measured: Float64Array;
+  shares: BandShare[];
+  /** Time indices of both windows on the map's grid. */
+  baselinePoints: { first: number; last: number };
+  postPoints: { first: number; last: number };
+}
+
+/**
+ * The broadband-shift check (Gyurkovics et al., 2021, NeuroImage 237:118192; Donoghue et al., 2020, Nat Neurosci
+ * 23:1655) for one channel and condition of decomposition `d`, in a worker.
+ */
+export async function checkBroadbandShiftInWorker(d: Decomposition, recording: Recording, request: ShiftRequest, options: SlopeRunOptions = {}): Promise<ShiftResult> {
+  const k = d.labels.indexOf(request.condition);
+  if (k < 0) throw new SlopeCheckError(`condition "${request.condition}" is not in the decomposition`, 'condition');
+  const nTimes = d.times.length;
+  const baselinePoints = baselinePointsIn(request.baseline.start, request.baseline.end, d.epochStart, d.sampleRateHz, nTimes);
+  const postPoints = baselinePointsIn(request.post.start, request.post.end, d.epochStart, d.sampleRateHz, nTimes);
+  if (request.post.end <= request.post.start) throw new SlopeCheckError(`the post-event window must end after it starts (${request.post.start}–${request.post.end} s)`, 'post');
+  const samples = conditionedChannel(d, recording, request.channel);
+  const power = d.power[d.channels.indexOf(request.channel)][k].slice();
+  const neutral = request.method === 'power-ratio' ? 1 : 0;
+  return inWorker(options, async (remote) => {
+    const out = await remote.shift(
+      Comlink.transfer(samples, [samples.buffer as ArrayBuffer]),
+      d.sampleRateHz,
+      d.epochStarts[k].slice(),
+      baselinePoints,
+      postPoints,
+      request.rangeHz,
+      request.model,
+      d.frequencies.slice(),
+      Comlink.transfer(power, [power.buffer as ArrayBuffer]),
+      nTimes,
+      request.method,
+      neutral,
+      request.bands.map((b) => ({ name: b.name, low: b.lowHz, high: b.highHz })),
+    );
+    return { request, ...out, baselinePoints, postPoints };
   });
 }
 

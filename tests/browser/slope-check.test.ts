@@ -1,0 +1,89 @@
+// The Slope check screen as an analyst uses it, in Debian's Chromium: run the bench with two fit settings (a short,
+// lean run), see both curves and the figures the core computes for the same settings under Node, save a report,
+// then find it on the study page as a reviewer would. Screenshots at 1440×900 in test-artifacts/.
+import fs from 'node:fs';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser } from 'playwright-core';
+import { artifactsDir, downloadFrom, launchBrowser } from '../helpers/browser';
+import { openWorkspace } from '../helpers/workspace';
+import { pool } from '../helpers/app';
+import { runSlopeSweep } from '../../src/lib/analysis/slope-check';
+
+let browser: Browser;
+let close: () => Promise<void>;
+
+beforeAll(async () => {
+  ({ browser, close } = await launchBrowser());
+  fs.mkdirSync(artifactsDir, { recursive: true });
+}, 60_000);
+afterAll(async () => {
+  await close();
+  await pool.end();
+});
+
+describe('the Slope check screen', () => {
+  it('runs the bench with two settings, shows both curves, saves a report and lists it on the study page', async () => {
+    const context = await browser.newContext({ viewport: { width: 1440, height: 900 }, acceptDownloads: true });
+    const page = await context.newPage();
+    const errors: string[] = [];
+    page.on('pageerror', (e) => errors.push(e.message));
+    await openWorkspace(page, 'analyst');
+    await page.getByRole('tab', { name: 'Slope check' }).click();
+    await page.getByTestId('slope-caution').waitFor();
+
+    // Lean: 2 true exponents × 3 repetitions of 10 s at 250 Hz, the screen's two first settings (robust and plain).
+    await page.getByTestId('bench-duration').fill('10');
+    await page.getByTestId('bench-repetitions').fill('3');
+    await page.getByTestId('bench-exponents').fill('1, 2');
+    expect(await page.getByTestId('bench-setting').count()).toBe(2);
+    await page.getByTestId('bench-run').click();
+    await page.getByTestId('bench-chart').waitFor({ timeout: 60_000 });
+
+    // Both curves, in both panels (estimate against truth, bias).
+    const curves = page.getByTestId('bench-chart').getByTestId('bench-curve');
+    expect(await curves.count()).toBe(4);
+    expect(await curves.evaluateAll((gs) => gs.map((g) => g.getAttribute('data-setting')))).toEqual(['robust 2-40 Hz', 'plain 2-40 Hz', 'robust 2-40 Hz', 'plain 2-40 Hz']);
+    expect(await curves.first().locator('polyline').getAttribute('points')).toMatch(/^[\d.]+,[\d.]+ [\d.]+,[\d.]+$/);
+
+    // The table holds what the core computes for the same truth and settings under Node (same seeds, same code).
+    const expected = runSlopeSweep({
+      truth: { offset: 1, knee: 0, peaks: [{ centreHz: 10, widthHz: 1.5, heightLog10: 0.8 }], durationSeconds: 10, sampleRateHz: 250, noiseMicrovolts: 0, seed: 1 },
+      exponents: [1, 2],
+      settings: [
+        { name: 'robust 2-40 Hz', range: [2, 40], model: 'power-law', robust: true, segmentSeconds: 2, overlap: 0.5 },
+        { name: 'plain 2-40 Hz', range: [2, 40], model: 'power-law', robust: false, segmentSeconds: 2, overlap: 0.5 },
+      ],
+      repetitions: 3,
+      coverage: null,
+    });
+    const rows = await page.getByTestId('bench-row').evaluateAll((trs) => trs.map((tr) => Array.from(tr.querySelectorAll('td'), (td) => td.textContent)));
+    expect(rows.map((r) => [r[0], r[1], r[3], r[4]])).toEqual(expected.map((c) => [c.setting, String(c.trueExponent), c.bias.toFixed(3), c.spread.toFixed(3)]));
+    await page.screenshot({ path: path.join(artifactsDir, 'slope-check-bench.png'), fullPage: true });
+
+    const svg = await downloadFrom(page, 'bench-export-svg', artifactsDir);
+    expect(svg.name).toMatch(/\.svg$/);
+    expect(svg.bytes.toString('utf8')).toMatch(/^<\?xml[^>]*>\n<svg[^>]*xmlns="http:\/\/www\.w3\.org\/2000\/svg"/);
+    const csv = await downloadFrom(page, 'bench-export-csv', artifactsDir);
+    const lines = csv.bytes.toString('utf8').trim().split('\r\n');
+    expect(lines[0].split(',').slice(0, 5)).toEqual(['title', 'setting', 'true_exponent', 'mean_estimate', 'bias']);
+    expect(lines).toHaveLength(1 + 4);
+
+    const title = `Bench check ${Date.now()}`;
+    await page.getByTestId('slope-report-title').fill(title);
+    await page.getByTestId('slope-report-save').click();
+    await page.getByTestId('slope-report-saved').waitFor();
+    await page.getByTestId('slope-report-saved').getByRole('link', { name: 'the study page' }).click();
+    await page.waitForURL(/\/studies\/[0-9a-f-]+#slope-reports$/);
+    const report = page.getByTestId('slope-report').filter({ hasText: title });
+    await report.locator('summary').click();
+    expect(await report.getByTestId('bench-curve').count()).toBe(4);
+    await report.scrollIntoViewIfNeeded();
+    await page.screenshot({ path: path.join(artifactsDir, 'slope-check-study-page.png') });
+    const { rows: stored } = await pool.query(`SELECT report FROM slope_reports WHERE title = $1`, [title]);
+    expect(stored).toHaveLength(1);
+    expect(stored[0].report.results).toHaveLength(4);
+    expect(errors).toEqual([]);
+    await context.close();
+  }, 180_000);
+});
