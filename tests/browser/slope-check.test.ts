@@ -9,6 +9,12 @@ import { artifactsDir, downloadFrom, launchBrowser } from '../helpers/browser';
 import { openWorkspace } from '../helpers/workspace';
 import { pool } from '../helpers/app';
 import { runSlopeSweep } from '../../src/lib/analysis/slope-check';
+import { runRecipe } from '../../src/lib/analysis/run-recipe';
+import { loadDemo } from '../../src/components/explorer/test-hooks';
+import { useWorkspace } from '../../src/lib/client/workspace/store';
+
+// The explorer tests' demo recording (invented Harbour Lights scenario, generated from its seed on both sides).
+const DEMO = { seconds: 60, channels: ['Fz', 'Cz', 'Pz'], epochStart: -0.5, epochEnd: 1.5 };
 
 let browser: Browser;
 let close: () => Promise<void>;
@@ -83,6 +89,53 @@ describe('the Slope check screen', () => {
     const { rows: stored } = await pool.query(`SELECT report FROM slope_reports WHERE title = $1`, [title]);
     expect(stored).toHaveLength(1);
     expect(stored[0].report.results).toHaveLength(4);
+    expect(errors).toEqual([]);
+    await context.close();
+  }, 180_000);
+
+  it('checks one channel of the open recording: the exponent over fit ranges, its interval and model, and the broadband shift', async () => {
+    const context = await browser.newContext({ viewport: { width: 1440, height: 900 } });
+    const page = await context.newPage();
+    const errors: string[] = [];
+    page.on('pageerror', (e) => errors.push(e.message));
+    await openWorkspace(page, 'analyst', '?testhooks');
+    await page.waitForFunction(() => window.__tidemark !== undefined);
+    expect((await page.evaluate((demo) => window.__tidemark!.loadDemo(demo), DEMO)).settingsError).toBeNull();
+    await page.getByRole('tab', { name: 'Recipe' }).click();
+    await page.getByTestId('recipe-fcount').fill('16');
+    await page.getByTestId('recipe-run').click();
+    await page.waitForFunction(() => document.querySelector('[data-testid="recipe-status"]')?.getAttribute('data-status') === 'done', undefined, { timeout: 60_000 });
+
+    await page.getByRole('tab', { name: 'Slope check' }).click();
+    await page.getByTestId('sensitivity-channel').selectOption('Cz');
+    await page.getByTestId('sensitivity-run').click();
+    await page.getByTestId('sensitivity-result').waitFor({ timeout: 60_000 });
+    // 6 starts × 6 ends of the screen's defaults plus none added (the live range 2–40 Hz is already on the grid).
+    expect(await page.getByTestId('sensitivity-map').locator('rect').count()).toBe(36);
+    // The estimate is the aperiodic fit the core reports for this recipe in Node (run-recipe, the CLI's path).
+    const recipe = await page.evaluate(() => {
+      const r = window.__tidemark!.stores.results.getState();
+      return r.cache[r.activeKey!].recipe;
+    });
+    loadDemo(DEMO);
+    const node = runRecipe(useWorkspace.getState().analysisRecording()!, { ...recipe, aperiodic: { ...recipe.aperiodic, range: [2, 40] } });
+    const cz = node.aperiodic.find((a: { channel: string }) => a.channel === 'Cz')!;
+    const interval = (await page.getByTestId('sensitivity-interval').textContent()) ?? '';
+    expect(interval).toContain(`exponent ${cz.exponent.toFixed(3)}, 90 % bootstrap interval`);
+    const [lower, upper] = /interval (-?[\d.]+) … (-?[\d.]+)/.exec(interval)!.slice(1).map(Number);
+    expect(lower).toBeLessThanOrEqual(cz.exponent);
+    expect(upper).toBeGreaterThanOrEqual(cz.exponent);
+    expect(await page.getByTestId('sensitivity-model').textContent()).toMatch(/Recommended model: power law( with a knee)?\./);
+
+    await page.getByTestId('shift-run').click();
+    await page.getByTestId('shift-result').waitFor({ timeout: 60_000 });
+    const bands = await page.getByTestId('shift-band').evaluateAll((trs) => trs.map((tr) => Array.from(tr.querySelectorAll('td'), (td) => td.textContent ?? '')));
+    expect(bands.map((b) => b[0])).toEqual(['theta', 'alpha', 'beta', 'gamma']);
+    for (const b of bands) expect(b[3]).toMatch(/^(—|\d{1,3} %)$/);
+    await page.getByTestId('slope-sensitivity').scrollIntoViewIfNeeded();
+    await page.screenshot({ path: path.join(artifactsDir, 'slope-check-sensitivity.png') });
+    await page.getByTestId('slope-shift').scrollIntoViewIfNeeded();
+    await page.screenshot({ path: path.join(artifactsDir, 'slope-check-shift.png') });
     expect(errors).toEqual([]);
     await context.close();
   }, 180_000);

@@ -4,7 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Client, pool } from '../helpers/app';
 import { createMember, createTeam } from '../helpers/fixtures';
 import { runSlopeSweep, type SlopeSweepInput } from '../../src/lib/analysis/slope-check';
-import { slopeReportOf } from '../../src/lib/client/slope-check';
+import { slopeReportOf } from '../../src/lib/client/slope-report';
 import { SLOPE_REPORT_CAPS, type SlopeReportInputT } from '../../src/lib/schemas/slope-reports';
 
 let teamId: string;

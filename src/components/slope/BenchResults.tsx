@@ -1,6 +1,6 @@
 import { useRef } from 'react';
 import type { SlopeReportInputT } from '../../lib/schemas/slope-reports';
-import { slopeReportCsv } from '../../lib/client/slope-check';
+import { slopeReportCsv } from '../../lib/client/slope-report';
 import BenchChart, { svgFileOf } from './BenchChart';
 import { downloadBlob, fileSafe } from '../explorer/download';
 

@@ -1,6 +1,6 @@
 import { useState } from 'react';
 import type { SlopeReportInputT } from '../../lib/schemas/slope-reports';
-import { saveSlopeReport } from '../../lib/client/slope-check';
+import { saveSlopeReport } from '../../lib/client/slope-report';
 
 export interface SaveReportProps {
   /** The report as shown (its title is replaced by the one typed here); null before the bench has run. */

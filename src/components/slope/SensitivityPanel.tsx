@@ -28,7 +28,7 @@ function RangeHeatMap({ result }: { result: SensitivityResult }) {
   const left = 64;
   const top = 30;
   const w = left + cw * endsHz.length + 10;
-  const h = top + ch * startsHz.length + 40;
+  const h = top + ch * startsHz.length + 8;
   return (
     <svg viewBox={`0 0 ${w} ${h}`} width={Math.min(w, 900)} role="img" aria-label="Exponent over fit-range start and end" data-testid="sensitivity-map">
       <text x={left} y={14} fontSize={11} fill="#3b5366">fit range end (Hz) →</text>
@@ -56,9 +56,6 @@ function RangeHeatMap({ result }: { result: SensitivityResult }) {
         </g>
       ))}
       <text transform={`translate(14 ${top + (ch * startsHz.length) / 2}) rotate(-90)`} fontSize={11} textAnchor="middle" fill="#3b5366">start (Hz)</text>
-      <text x={left} y={h - 12} fontSize={11} fill="#3b5366">
-        exponent χ from {fmt(lo, 2)} (dark) to {fmt(hi, 2)} (light); outlined: the range the interval and the model comparison use; · no fit
-      </text>
     </svg>
   );
 }
@@ -161,7 +158,14 @@ export default function SensitivityPanel({ onResult }: { onResult: (r: Sensitivi
       )}
       {result !== null && (
         <div className="mt-4 grid gap-3" data-testid="sensitivity-result">
-          <RangeHeatMap result={result} />
+          <figure>
+            <RangeHeatMap result={result} />
+            <figcaption className="text-xs text-ink-soft">
+              Exponent χ per fit range, from {fmt(Math.min(...Array.from(result.grid).filter(Number.isFinite)), 2)} (dark) to{' '}
+              {fmt(Math.max(...Array.from(result.grid).filter(Number.isFinite)), 2)} (light) on the cividis scale; outlined: the live range, which the interval and the
+              model comparison use; · no fit (too few bins).
+            </figcaption>
+          </figure>
           <p className="text-sm" data-testid="sensitivity-interval">
             {result.request.channel}, {result.request.rangeHz[0]}–{result.request.rangeHz[1]} Hz: exponent <span className="font-mono">{fmt(result.interval.estimate)}</span>,{' '}
             {Math.round(result.interval.level * 100)} % bootstrap interval{' '}

@@ -48,7 +48,8 @@ export default function ShiftPanel() {
   const method = useWorkspace((s) => s.method);
   const bands = useWorkspace((s) => s.bands);
   const fitRange = useWorkspace((s) => s.fitRange);
-  const [post, setPost] = useState({ start: 0.2, end: 0.8 });
+  // As long as the baseline by default: windows of one length give spectra of one resolution.
+  const [post, setPost] = useState(() => ({ start: 0.2, end: Number((0.2 + baseline.end - baseline.start).toFixed(3)) }));
   const [running, setRunning] = useState(false);
   const [problem, setProblem] = useState<string | null>(null);
   const [result, setResult] = useState<ShiftResult | null>(null);
@@ -109,9 +110,16 @@ export default function ShiftPanel() {
       <p className="mt-1 max-w-3xl text-sm text-ink-soft">
         Normalizing to a baseline assumes oscillations and the aperiodic (1/f) part scale together; when the aperiodic part itself tilts or shifts after the event,
         a normalized map shows band "changes" that are a broadband shift (Gyurkovics et al., 2021, NeuroImage 237:118192; Donoghue et al., 2020, Nat Neurosci 23:1655).
-        Here the aperiodic part is fitted in the baseline ({baseline.start}–{baseline.end} s) and in a post-event window of every epoch, and the change of the fitted
+        Here the aperiodic part is fitted in the baseline ({baseline.start} to {baseline.end} s) and in a post-event window of every epoch, and the change of the fitted
         line alone is put through the same normalization ({method}).
       </p>
+      {Math.abs(post.end - post.start - (baseline.end - baseline.start)) > 0.1 * (baseline.end - baseline.start) && (
+        <p className="notice notice-warn mt-2 text-sm" data-testid="shift-length-warning">
+          The windows differ in length ({Number((baseline.end - baseline.start).toFixed(3))} s baseline, {Number((post.end - post.start).toFixed(3))} s after the event): their
+          spectra resolve {Number((1 / (baseline.end - baseline.start)).toFixed(2))} and {Number((1 / (post.end - post.start)).toFixed(2))} Hz, and that difference alone
+          can move a fit. Windows of one length compare best.
+        </p>
+      )}
       <fieldset className="mt-3 flex flex-wrap items-end gap-3" disabled={running}>
         <p className="text-sm">
           Channel <span className="font-mono">{channel}</span>, condition <span className="font-mono">{condition}</span> (chosen on the Maps screen), fit range {fitRange[0]}–{fitRange[1]} Hz.
@@ -151,7 +159,8 @@ export default function ShiftPanel() {
           </div>
           <p className="text-xs text-ink-soft">
             Both maps share one colour scale, symmetric around no change ({fmt(scale.domain[0])} … {fmt(scale.domain[1])} {unit}; purple below, orange above), frequencies{' '}
-            {fmt(d.frequencies[0], 1)}–{fmt(d.frequencies[nF - 1], 1)} Hz from bottom to top, epoch time left to right. Sand: outside the post window.
+            {fmt(d.frequencies[0], 1)}–{fmt(d.frequencies[nF - 1], 1)} Hz from bottom to top, epoch time {d.epochStart} to {Number(epochEnd.toFixed(3))} s left to right (edge zones
+            not hatched here; the Maps screen shows them). Sand: outside the post window.
           </p>
           <table className="data-table" data-testid="shift-bands">
             <thead>
@@ -176,7 +185,8 @@ export default function ShiftPanel() {
           <p className="text-xs text-ink-soft">
             Share: the aperiodic change's mean over the band divided by the measured mean over the band and the post window, when both point the same way (capped at
             100 %); "—" when the measured change is about zero or the two point in opposite directions. A high share means the band's change may be a broadband
-            shift rather than an oscillation.
+            shift rather than an oscillation. Over short windows a strong oscillation inside the post window can itself lift or tilt the fitted line (its peak
+            spans few bins), so compare with the peaks the Spectrum screen lists before concluding either way.
           </p>
         </div>
       )}

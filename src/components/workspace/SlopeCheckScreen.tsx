@@ -1,7 +1,8 @@
 import { useState } from 'react';
 import type { WorkspaceProps } from './types';
 import { can } from '../../lib/permissions';
-import { slopeReportOf, type SensitivityResult } from '../../lib/client/slope-check';
+import type { SensitivityResult } from '../../lib/client/slope-check';
+import { slopeReportOf } from '../../lib/client/slope-report';
 import BenchPanel, { type BenchRun } from '../slope/BenchPanel';
 import BenchResults from '../slope/BenchResults';
 import SaveReport from '../slope/SaveReport';
