@@ -38,6 +38,23 @@ describe('the Slope check screen', () => {
     await page.getByRole('tab', { name: 'Slope check' }).click();
     await page.getByTestId('slope-caution').waitFor();
 
+    // Bad settings are named and nothing runs: an exponent that is not a number (refused at the field), a fit range
+    // past Nyquist (125 Hz at 250 Hz sampling, refused by the core and named by its field).
+    await page.getByTestId('bench-exponents').fill('1, x');
+    await page.getByTestId('bench-run').click();
+    await expect.poll(() => page.getByTestId('bench-problem').textContent()).toBe('True exponents: "x" is not an exponent between 0 and 6.');
+    await page.getByTestId('bench-exponents').fill('1');
+    await page.getByTestId('bench-setting-high').first().fill('200');
+    await page.getByTestId('bench-run').click();
+    await expect.poll(() => page.getByTestId('bench-problem').textContent()).toBe('Setting 1 ("robust 2-40 Hz"), fit range: ends at 200 Hz, above Nyquist (125 Hz); nothing was run.');
+    await page.getByTestId('bench-setting-high').first().fill('40');
+    // A long run is cancelled at once (its worker is ended) and leaves nothing behind.
+    await page.getByTestId('bench-repetitions').fill('500');
+    await page.getByTestId('bench-run').click();
+    await page.getByTestId('bench-cancel').dispatchEvent('click');
+    await expect.poll(() => page.getByTestId('bench-problem').textContent()).toBe('Cancelled; nothing was changed.');
+    expect(await page.getByTestId('bench-chart').count()).toBe(0);
+
     // Lean: 2 true exponents × 3 repetitions of 10 s at 250 Hz, the screen's two first settings (robust and plain).
     await page.getByTestId('bench-duration').fill('10');
     await page.getByTestId('bench-repetitions').fill('3');

@@ -34,6 +34,25 @@ function parseExponents(text: string): number[] | string {
   return out;
 }
 
+const FIELD_WORDS: Record<string, string> = {
+  range: 'fit range',
+  segmentSeconds: 'Welch segment',
+  overlap: 'overlap',
+  durationSeconds: 'Duration',
+  sampleRateHz: 'Sample rate',
+  exponent: 'True exponent',
+  exponents: 'True exponents',
+  repetitions: 'Repetitions',
+  knee: 'Knee',
+};
+
+/** The core's field path in the screen's words: `settings[0].range` → `Setting 1 ("robust 2-40 Hz"), fit range`. */
+function fieldWords(field: string, settings: FitSetting[]): string {
+  const m = /^settings\[(\d+)\]\.(\w+)$/.exec(field);
+  if (m) return `Setting ${Number(m[1]) + 1} ("${settings[Number(m[1])]?.name ?? ''}"), ${FIELD_WORDS[m[2]] ?? m[2]}`;
+  return FIELD_WORDS[field] ?? field;
+}
+
 /** Truth settings, the fit settings side by side, and the run with progress and cancel. */
 export default function BenchPanel({ onRun }: { onRun: (run: BenchRun | null) => void }) {
   const [offset, setOffset] = useState(1);
@@ -84,7 +103,7 @@ export default function BenchPanel({ onRun }: { onRun: (run: BenchRun | null) =>
       onRun({ input, cells });
     } catch (e) {
       if (e instanceof SlopeCheckCancelledError) setProblem('Cancelled; nothing was changed.');
-      else setProblem(e instanceof SlopeCheckError && e.field !== null ? `Setting ${e.field}: ${e.message.slice(e.field.length + 1)}` : e instanceof Error ? e.message : String(e));
+      else setProblem(e instanceof SlopeCheckError && e.field !== null ? `${fieldWords(e.field, input.settings)}: ${e.message.slice(e.field.length + 1)}; nothing was run.` : e instanceof Error ? e.message : String(e));
     } finally {
       if (abort.current === controller) abort.current = null;
       setProgress(null);

@@ -82,16 +82,20 @@ async function inWorker<T>(options: SlopeRunOptions, call: (remote: Comlink.Remo
 }
 
 /** The bench over `input`'s true exponents and settings (src/lib/analysis/slope-check/sweep.ts), in a worker. */
-export function runSlopeBenchInWorker(input: SlopeSweepInput, options: SlopeRunOptions = {}): Promise<SlopeSweepCell[]> {
-  return inWorker(options, async (remote) => {
-    let settled = false;
-    const onProgress = options.onProgress;
-    const progress = onProgress === undefined ? undefined : Comlink.proxy((f: number) => void (settled || onProgress(f)));
-    const cells = await remote.bench(input, progress);
+export async function runSlopeBenchInWorker(input: SlopeSweepInput, options: SlopeRunOptions = {}): Promise<SlopeSweepCell[]> {
+  // Progress arrives on the proxy's own port and may still be queued when the run ends (answer, failure or cancel):
+  // once settled, late reports are dropped, so a caller never sees progress after the promise settles.
+  let settled = false;
+  const onProgress = options.onProgress;
+  const progress = onProgress === undefined ? undefined : Comlink.proxy((f: number) => void (settled || onProgress(f)));
+  try {
+    const cells = await inWorker(options, (remote) => remote.bench(input, progress));
     settled = true;
     onProgress?.(1);
     return cells;
-  });
+  } finally {
+    settled = true;
+  }
 }
 
 export interface SensitivityRequest {
