@@ -4,6 +4,7 @@ import { interpolateCividis } from 'd3-scale-chromatic';
 import { useResultsStore, selectActive } from '../../lib/client/workspace/results';
 import { useWorkspace } from '../../lib/client/workspace/store';
 import { checkSensitivityInWorker, SlopeCheckCancelledError, type SensitivityResult } from '../../lib/client/slope-check';
+import { parseColour } from '../../lib/plot/colormap';
 
 /** "1, 2, 4" → numbers above 0, or the problem in words. */
 function parseHzList(text: string, what: string): number[] | string {
@@ -15,6 +16,13 @@ function parseHzList(text: string, what: string): number[] | string {
   return bad !== undefined ? `${what}: "${bad}" is not a frequency above 0 Hz` : out;
 }
 
+/** Ink on light cells, foam on dark ones: WCAG 2.1 relative luminance of the cell's sRGB colour against 0.18. */
+function textOn(css: string): string {
+  const lin = (c: number) => (c / 255 <= 0.04045 ? c / 255 / 12.92 : ((c / 255 + 0.055) / 1.055) ** 2.4);
+  const [r, g, b] = parseColour(css);
+  return 0.2126 * lin(r) + 0.7152 * lin(g) + 0.0722 * lin(b) > 0.18 ? '#10283a' : '#fffdf8';
+}
+
 const fmt = (v: number, d = 3) => (Number.isFinite(v) ? v.toFixed(d) : '—');
 
 function RangeHeatMap({ result }: { result: SensitivityResult }) {
@@ -23,8 +31,8 @@ function RangeHeatMap({ result }: { result: SensitivityResult }) {
   const lo = finite.length ? Math.min(...finite) : 0;
   const hi = finite.length ? Math.max(...finite) : 1;
   const colour = scaleSequential(interpolateCividis).domain(hi > lo ? [lo, hi] : [lo - 0.5, hi + 0.5]);
-  const cw = 58;
-  const ch = 26;
+  const cw = 66;
+  const ch = 28;
   const left = 64;
   const top = 30;
   const w = left + cw * endsHz.length + 10;
@@ -41,13 +49,13 @@ function RangeHeatMap({ result }: { result: SensitivityResult }) {
           {endsHz.map((e, j) => {
             const v = result.grid[i * endsHz.length + j];
             const chosen = s === rangeHz[0] && e === rangeHz[1];
-            const light = Number.isFinite(v) && (v - lo) / (hi - lo || 1) > 0.55;
+            const fill = Number.isFinite(v) ? colour(v) : '#e9e0cf';
             return (
               <g key={`c${j}`}>
-                <rect x={left + cw * j} y={top + ch * i} width={cw - 1} height={ch - 1} fill={Number.isFinite(v) ? colour(v) : '#e9e0cf'} stroke={chosen ? '#cf5f45' : 'none'} strokeWidth={chosen ? 2.5 : 0}>
+                <rect x={left + cw * j} y={top + ch * i} width={cw - 1} height={ch - 1} fill={fill} stroke={chosen ? '#cf5f45' : 'none'} strokeWidth={chosen ? 2.5 : 0}>
                   <title>{`${s}–${e} Hz: ${Number.isFinite(v) ? v.toFixed(3) : 'no fit'}`}</title>
                 </rect>
-                <text x={left + cw * j + cw / 2} y={top + ch * i + ch / 2 + 3} fontSize={10} textAnchor="middle" fontFamily="JetBrains Mono Variable, monospace" fill={light ? '#10283a' : '#fffdf8'}>
+                <text x={left + cw * j + cw / 2} y={top + ch * i + ch / 2 + 3} fontSize={11} textAnchor="middle" fontFamily="JetBrains Mono Variable, monospace" fill={textOn(fill)}>
                   {Number.isFinite(v) ? v.toFixed(2) : '·'}
                 </text>
               </g>
