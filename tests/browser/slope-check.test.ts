@@ -2,6 +2,7 @@
 // lean run), see both curves and the figures the core computes for the same settings under Node, save a report,
 // then find it on the study page as a reviewer would. Screenshots at 1440×900 in test-artifacts/.
 import fs from 'node:fs';
+import { createRequire } from 'node:module';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser } from 'playwright-core';
@@ -16,6 +17,7 @@ import { useWorkspace } from '../../src/lib/client/workspace/store';
 // The explorer tests' demo recording (invented Harbour Lights scenario, generated from its seed on both sides).
 const DEMO = { seconds: 60, channels: ['Fz', 'Cz', 'Pz'], epochStart: -0.5, epochEnd: 1.5 };
 
+const require = createRequire(import.meta.url);
 let browser: Browser;
 let close: () => Promise<void>;
 
@@ -30,7 +32,8 @@ afterAll(async () => {
 
 describe('the Slope check screen', () => {
   it('runs the bench with two settings, shows both curves, saves a report and lists it on the study page', async () => {
-    const context = await browser.newContext({ viewport: { width: 1440, height: 900 }, acceptDownloads: true });
+    // bypassCSP: only so the test can inject axe-core; the app's own code runs under its policy in csp.test.ts.
+    const context = await browser.newContext({ viewport: { width: 1440, height: 900 }, acceptDownloads: true, bypassCSP: true });
     const page = await context.newPage();
     const errors: string[] = [];
     page.on('pageerror', (e) => errors.push(e.message));
@@ -55,10 +58,12 @@ describe('the Slope check screen', () => {
     await expect.poll(() => page.getByTestId('bench-problem').textContent()).toBe('Cancelled; nothing was changed.');
     expect(await page.getByTestId('bench-chart').count()).toBe(0);
 
-    // Lean: 2 true exponents × 3 repetitions of 10 s at 250 Hz, the screen's two first settings (robust and plain).
+    // Lean: 2 true exponents × 3 repetitions of 10 s at 250 Hz, the screen's two first settings (robust and plain),
+    // with the coverage of 90 % bootstrap intervals (100 resamples each).
     await page.getByTestId('bench-duration').fill('10');
     await page.getByTestId('bench-repetitions').fill('3');
     await page.getByTestId('bench-exponents').fill('1, 2');
+    await page.getByTestId('bench-coverage-on').check();
     expect(await page.getByTestId('bench-setting').count()).toBe(2);
     await page.getByTestId('bench-run').click();
     await page.getByTestId('bench-chart').waitFor({ timeout: 60_000 });
@@ -78,11 +83,19 @@ describe('the Slope check screen', () => {
         { name: 'plain 2-40 Hz', range: [2, 40], model: 'power-law', robust: false, segmentSeconds: 2, overlap: 0.5 },
       ],
       repetitions: 3,
-      coverage: null,
+      coverage: { level: 0.9, resamples: 100 },
     });
     const rows = await page.getByTestId('bench-row').evaluateAll((trs) => trs.map((tr) => Array.from(tr.querySelectorAll('td'), (td) => td.textContent)));
-    expect(rows.map((r) => [r[0], r[1], r[3], r[4]])).toEqual(expected.map((c) => [c.setting, String(c.trueExponent), c.bias.toFixed(3), c.spread.toFixed(3)]));
+    expect(rows.map((r) => [r[0], r[1], r[3], r[4], r[6]])).toEqual(expected.map((c) => [c.setting, String(c.trueExponent), c.bias.toFixed(3), c.spread.toFixed(3), `${Math.round(c.coverage! * 100)} %`]));
     await page.screenshot({ path: path.join(artifactsDir, 'slope-check-bench.png'), fullPage: true });
+    // WCAG 2.1 A/AA rules of axe-core (Deque, an independent checker) over the whole screen with its results shown.
+    await page.addScriptTag({ content: fs.readFileSync(require.resolve('axe-core/axe.min.js'), 'utf8') });
+    const violations = await page.evaluate(async () => {
+      const axe = (window as unknown as { axe: { run: (el: Element, o: unknown) => Promise<{ violations: { id: string; impact: string; nodes: { target: string[] }[] }[] }> } }).axe;
+      const r = await axe.run(document.querySelector('[data-testid="slope-check-screen"]')!, { runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa'] } });
+      return r.violations.map((v) => `${v.id} (${v.impact}): ${v.nodes.map((n) => n.target.join(' ')).join(', ')}`);
+    });
+    expect(violations).toEqual([]);
 
     const svg = await downloadFrom(page, 'bench-export-svg', artifactsDir);
     expect(svg.name).toMatch(/\.svg$/);
