@@ -166,6 +166,21 @@ describe('the Slope check screen', () => {
     await page.screenshot({ path: path.join(artifactsDir, 'slope-check-sensitivity.png') });
     await page.getByTestId('slope-shift').scrollIntoViewIfNeeded();
     await page.screenshot({ path: path.join(artifactsDir, 'slope-check-shift.png') });
+
+    // A report saved now carries the sensitivity results beside a (lean) bench run.
+    await page.getByTestId('bench-duration').fill('10');
+    await page.getByTestId('bench-repetitions').fill('2');
+    await page.getByTestId('bench-exponents').fill('1.5');
+    await page.getByTestId('bench-run').click();
+    await page.getByTestId('bench-chart').waitFor({ timeout: 60_000 });
+    const title = `Sensitivity check ${Date.now()}`;
+    await page.getByTestId('slope-report-title').fill(title);
+    await page.getByTestId('slope-report-save').click();
+    await page.getByTestId('slope-report-saved').waitFor();
+    const { rows: stored } = await pool.query(`SELECT report FROM slope_reports WHERE title = $1`, [title]);
+    expect(stored[0].report.sensitivity).toMatchObject({ channel: 'Cz', rangeHz: [2, 40], startsHz: [1, 2, 3, 4, 6, 8], endsHz: [20, 25, 30, 35, 40, 45] });
+    expect(stored[0].report.sensitivity.grid).toHaveLength(36);
+    expect(stored[0].report.sensitivity.interval.estimate).toBeCloseTo(cz.exponent, 12);
     expect(errors).toEqual([]);
     await context.close();
   }, 180_000);

@@ -87,10 +87,26 @@ describe('saving a slope check report', () => {
     expect(await issues({ ...report, settings: [report.settings[0], report.settings[0]] })).toEqual(['settings.1.name', 'results.1.setting', 'results.3.setting']);
     expect(await issues({ ...report, truth: { ...report.truth, repetitions: SLOPE_REPORT_CAPS.repetitions + 1 } })).toEqual(['truth.repetitions']);
     expect(await issues({ ...report, results: [{ ...report.results[0], setting: 'unknown' }] })).toEqual(['results.0.setting']);
+    const sensitivity = {
+      channel: 'Cz',
+      fingerprint: null,
+      rangeHz: [2, 40],
+      model: 'power-law',
+      startsHz: [1, 2],
+      endsHz: [30, 40],
+      grid: [1.1, 1.2, null, 1.15],
+      interval: { estimate: 1.15, lower: 1.1, upper: 1.2, level: 0.9, segments: 40 },
+      comparison: { preferred: 'power-law', deltaBic: -2.5, reason: 'Power law: the knee model does not lower BIC by more than 6.' },
+    };
+    expect(await issues({ ...report, sensitivity: { ...sensitivity, grid: [1.1, 1.2, 1.3] } })).toEqual(['sensitivity.grid']);
+    expect(await issues({ ...report, sensitivity: { ...sensitivity, fingerprint: 'P0042_rest' } })).toEqual(['sensitivity.fingerprint']);
+    const withSensitivity = await analyst.request(path(), { method: 'POST', json: { ...report, title: 'With sensitivity', sensitivity } });
+    expect(withSensitivity.status).toBe(201);
+    expect((await withSensitivity.json()).report.report.sensitivity).toEqual(sensitivity);
     const big = await analyst.request(path(), { method: 'POST', json: { ...report, title: 'x'.repeat(SLOPE_REPORT_CAPS.bodyBytes) } });
     expect(big.status).toBe(413);
     const { rows } = await pool.query(`SELECT count(*)::int AS n FROM slope_reports WHERE study_id = $1`, [studyId]);
-    expect(rows[0].n).toBe(2);
+    expect(rows[0].n).toBe(3);
   });
 
   it('shows on the study page to a reviewer, with its settings', async () => {
@@ -100,5 +116,6 @@ describe('saving a slope check report', () => {
     expect(html).toContain('Slope check reports');
     expect(html).toContain('Bench for the harbour study');
     expect(html).toContain('robust 2-40 Hz vs plain 2-40 Hz');
+    expect(html).toContain('sensitivity on Cz');
   });
 });

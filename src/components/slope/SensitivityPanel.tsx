@@ -1,4 +1,4 @@
-import { useRef, useState } from 'react';
+import { useEffect, useRef, useState } from 'react';
 import { scaleSequential } from 'd3-scale';
 import { interpolateCividis } from 'd3-scale-chromatic';
 import { useResultsStore, selectActive } from '../../lib/client/workspace/results';
@@ -81,6 +81,15 @@ export default function SensitivityPanel({ onResult }: { onResult: (r: Sensitivi
   const [problem, setProblem] = useState<string | null>(null);
   const [result, setResult] = useState<SensitivityResult | null>(null);
   const abort = useRef<AbortController | null>(null);
+  const fingerprint = useWorkspace((s) => s.fingerprint);
+  // A result belongs to one decomposition: another recording or run clears it (and takes it out of the report).
+  const dKey = d?.key ?? null;
+  useEffect(() => {
+    abort.current?.abort();
+    setResult(null);
+    onResult(null);
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [dKey, fingerprint]);
 
   if (d === null || recording === null) {
     return (
@@ -109,7 +118,7 @@ export default function SensitivityPanel({ onResult }: { onResult: (r: Sensitivi
     setRunning(true);
     setProblem(null);
     try {
-      const r = await checkSensitivityInWorker(d, recording, { channel: ch, rangeHz: [fitRange[0], fitRange[1]], model, startsHz: s, endsHz: e, bootstrap: { repetitions: 200, level: 0.9, seed: 1 } }, { signal: controller.signal });
+      const r = await checkSensitivityInWorker(d, recording, { channel: ch, fingerprint, rangeHz: [fitRange[0], fitRange[1]], model, startsHz: s, endsHz: e, bootstrap: { repetitions: 200, level: 0.9, seed: 1 } }, { signal: controller.signal });
       setResult(r);
       onResult(r);
     } catch (err) {

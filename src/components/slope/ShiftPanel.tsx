@@ -54,6 +54,13 @@ export default function ShiftPanel() {
   const [problem, setProblem] = useState<string | null>(null);
   const [result, setResult] = useState<ShiftResult | null>(null);
   const abort = useRef<AbortController | null>(null);
+  const dKey = d?.key ?? null;
+  const fingerprint = useWorkspace((s) => s.fingerprint);
+  // A result belongs to one decomposition: another recording or run clears it.
+  useEffect(() => {
+    abort.current?.abort();
+    setResult(null);
+  }, [dKey, fingerprint]);
 
   if (d === null || recording === null) {
     return (

@@ -34,7 +34,13 @@ export default function SlopeReportsSection({ reports }: { reports: SlopeReportL
                   <BenchResults report={r.report} testId="slope-report-results" />
                   {r.report.sensitivity !== null && (
                     <p className="mt-3 text-sm" data-testid="slope-report-sensitivity">
-                      Channel {r.report.sensitivity.channel}, {r.report.sensitivity.rangeHz[0]}–{r.report.sensitivity.rangeHz[1]} Hz: exponent{' '}
+                      Channel {r.report.sensitivity.channel}
+                      {r.report.sensitivity.fingerprint !== null && (
+                        <>
+                          {' '}of recording <span className="font-mono text-xs">{r.report.sensitivity.fingerprint.slice(0, 16)}…</span>
+                        </>
+                      )}
+                      , {r.report.sensitivity.rangeHz[0]}–{r.report.sensitivity.rangeHz[1]} Hz: exponent{' '}
                       <span className="font-mono">{r.report.sensitivity.interval.estimate.toFixed(3)}</span>, {Math.round(r.report.sensitivity.interval.level * 100)} % bootstrap
                       interval <span className="font-mono">{r.report.sensitivity.interval.lower.toFixed(3)} … {r.report.sensitivity.interval.upper.toFixed(3)}</span> over{' '}
                       {r.report.sensitivity.interval.segments} Welch segments. {r.report.sensitivity.comparison.reason}

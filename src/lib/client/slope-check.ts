@@ -100,6 +100,8 @@ export async function runSlopeBenchInWorker(input: SlopeSweepInput, options: Slo
 
 export interface SensitivityRequest {
   channel: string;
+  /** The open recording's SHA-256 (kept with a report so the team knows which recording it describes). */
+  fingerprint: string | null;
   rangeHz: [number, number];
   model: AperiodicModel;
   startsHz: number[];

@@ -41,6 +41,8 @@ export function slopeReportOf(title: string, input: SlopeSweepInput, cells: Slop
         ? null
         : {
             channel: sensitivity.request.channel,
+            // Only a SHA-256 names a recording to the server (a demo made in the page has a label instead).
+            fingerprint: sensitivity.request.fingerprint !== null && /^[0-9a-f]{64}$/.test(sensitivity.request.fingerprint) ? sensitivity.request.fingerprint : null,
             rangeHz: sensitivity.request.rangeHz,
             model: sensitivity.request.model,
             startsHz: sensitivity.request.startsHz,

@@ -5,7 +5,7 @@
  * short title and the model comparison's sentence.
  */
 import { z } from '../analysis/zod';
-import { Label } from './review';
+import { Fingerprint, Label } from './review';
 
 export const SLOPE_REPORT_CAPS = {
   titleChars: 80,
@@ -80,6 +80,8 @@ const ResultRow = z
 const Sensitivity = z
   .object({
     channel: Label,
+    /** SHA-256 of the recording it ran on (what the server may know of a recording); null when unknown. */
+    fingerprint: Fingerprint.nullable(),
     rangeHz: RangeHz,
     model: Model,
     startsHz: capped(Hz, SLOPE_REPORT_CAPS.rangeSteps, 'range starts').min(1),
