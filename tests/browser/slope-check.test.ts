@@ -51,6 +51,11 @@ describe('the Slope check screen', () => {
     await page.getByTestId('bench-run').click();
     await expect.poll(() => page.getByTestId('bench-problem').textContent()).toBe('Setting 1 ("robust 2-40 Hz"), fit range: ends at 200 Hz, above Nyquist (125 Hz); nothing was run.');
     await page.getByTestId('bench-setting-high').first().fill('40');
+    // A name a saved report could not carry is refused before the run (the route's Label rule).
+    await page.getByTestId('bench-setting-name').nth(1).fill('plain, 2-40');
+    await page.getByTestId('bench-run').click();
+    await expect.poll(() => page.getByTestId('bench-problem').textContent()).toBe('Setting 2, name "plain, 2-40": may hold only letters, digits, space and . _ + - / : ( ).');
+    await page.getByTestId('bench-setting-name').nth(1).fill('plain 2-40 Hz');
     // A long run is cancelled at once (its worker is ended) and leaves nothing behind.
     await page.getByTestId('bench-repetitions').fill('500');
     await page.getByTestId('bench-run').click();

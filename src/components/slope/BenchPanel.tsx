@@ -4,6 +4,7 @@ import type { SlopeSweepCell, SlopeSweepInput } from '../../lib/analysis/slope-c
 import { runSlopeBenchInWorker, SlopeCheckCancelledError, SlopeCheckError } from '../../lib/client/slope-check';
 import NumberField from '../explorer/NumberField';
 import Choice from '../explorer/Choice';
+import { Label } from '../../lib/schemas/review';
 
 export interface BenchRun {
   input: SlopeSweepInput;
@@ -84,6 +85,12 @@ export default function BenchPanel({ onRun }: { onRun: (run: BenchRun | null) =>
     const twice = names.find((n, i) => names.indexOf(n) !== i);
     if (twice !== undefined || names.some((n) => n === '')) {
       setProblem(twice !== undefined ? `Fit settings: the name "${twice}" is used twice; each setting needs its own name.` : 'Fit settings: every setting needs a name.');
+      return;
+    }
+    // The rule a saved report's names must meet, checked before the run so a result can always be saved.
+    const badName = names.findIndex((n) => !Label.safeParse(n).success);
+    if (badName >= 0) {
+      setProblem(`Setting ${badName + 1}, name "${names[badName]}": ${Label.safeParse(names[badName]).error!.issues[0].message}.`);
       return;
     }
     const input: SlopeSweepInput = {
