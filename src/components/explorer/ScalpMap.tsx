@@ -81,7 +81,7 @@ export default function ScalpMap({ title, unit, values, scale = { kind: 'sequent
   const ticks = [lo, (lo + hi) / 2, hi];
   return (
     <figure className="flex flex-col items-center gap-1" data-testid={testId} data-low={lo} data-high={hi}>
-      <div className="relative w-full max-w-sm" style={{ aspectRatio: `${VIEW.width} / ${VIEW.height}` }}>
+      <div className="relative w-full max-w-md" style={{ aspectRatio: `${VIEW.width} / ${VIEW.height}` }}>
         <canvas
           ref={canvas}
           width={256}
@@ -139,7 +139,7 @@ export default function ScalpMap({ title, unit, values, scale = { kind: 'sequent
       <figcaption className="text-center text-xs text-ink-soft">
         {title} ({unit}); between electrodes interpolated by spherical splines (Perrin et al., 1989){geometry.unplaced.length > 0 ? ` · not a 10-20 name, not drawn: ${geometry.unplaced.join(', ')}` : ''}
       </figcaption>
-      <details className="w-full text-xs">
+      <details className="w-full max-w-md text-xs">
         <summary className="cursor-pointer text-kelp-deep">Values at the electrodes</summary>
         <div className="max-h-48 overflow-auto" tabIndex={0} role="region" aria-label={`${title}: values at the electrodes`}>
           <table id={tableId} className="w-full font-mono">

@@ -77,7 +77,8 @@ export default function BandsScreen(_props: WorkspaceProps) {
         <fieldset className="card p-3">
           <legend className="px-1 text-sm font-semibold">Bands (Hz)</legend>
           {bands.map((b, i) => (
-            <div key={i} className="flex flex-wrap items-end gap-2">
+            <fieldset key={i} className="flex flex-wrap items-end gap-2">
+              <legend className="sr-only">Band {i + 1}</legend>
               <label className="flex flex-col text-xs text-ink-soft">
                 name
                 <input className="w-24 rounded-sm border border-shell bg-foam px-2 py-1 text-sm text-ink" value={b.name} onChange={(e) => setBand(i, { name: e.target.value })} />
@@ -87,7 +88,7 @@ export default function BandsScreen(_props: WorkspaceProps) {
               <button type="button" className="mb-1 text-sm text-coral-deep underline" onClick={() => setView({ bands: bands.filter((_, j) => j !== i) })} aria-label={`Remove band ${b.name}`}>
                 remove
               </button>
-            </div>
+            </fieldset>
           ))}
           <div className="mt-2 flex gap-3 text-sm">
             <button type="button" className="text-kelp-deep underline" onClick={() => setView({ bands: [...bands, { name: `band ${bands.length + 1}`, lowHz: 1, highHz: 4 }] })}>
@@ -101,7 +102,8 @@ export default function BandsScreen(_props: WorkspaceProps) {
         <fieldset className="card p-3">
           <legend className="px-1 text-sm font-semibold">Time windows (s after the event)</legend>
           {windows.map((w, i) => (
-            <div key={i} className="flex flex-wrap items-end gap-2">
+            <fieldset key={i} className="flex flex-wrap items-end gap-2">
+              <legend className="sr-only">Window {i + 1}</legend>
               <label className="flex flex-col text-xs text-ink-soft">
                 name
                 <input className="w-24 rounded-sm border border-shell bg-foam px-2 py-1 text-sm text-ink" value={w.name} onChange={(e) => setWindow(i, { name: e.target.value })} />
@@ -111,7 +113,7 @@ export default function BandsScreen(_props: WorkspaceProps) {
               <button type="button" className="mb-1 text-sm text-coral-deep underline" onClick={() => setView({ windows: windows.filter((_, j) => j !== i) })} aria-label={`Remove window ${w.name}`}>
                 remove
               </button>
-            </div>
+            </fieldset>
           ))}
           <div className="mt-2 flex gap-3 text-sm">
             <button type="button" className="text-kelp-deep underline" onClick={() => setView({ windows: [...windows, { name: `window ${windows.length + 1}`, startSeconds: 0, endSeconds: 0.5 }] })}>

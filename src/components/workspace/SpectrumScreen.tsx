@@ -122,7 +122,7 @@ export default function SpectrumScreen(_props: WorkspaceProps) {
         </p>
       ) : (
         <>
-          <div className="grid grid-cols-1 gap-4 lg:grid-cols-[minmax(0,2fr)_minmax(0,1fr)]">
+          <div className="grid grid-cols-1 gap-4 xl:grid-cols-[minmax(0,2fr)_minmax(0,1fr)]">
             <div className="card p-2">
               <SpectrumPlot spectra={sp} recipeSpectrum={rsp} source={source} fit={fit} axes={axes} fitRange={fitRange} onFitRange={(r) => setView({ fitRange: r })} channel={ch} showEpochs={showEpochs} />
               <FitReadout fit={fit} model={model} />

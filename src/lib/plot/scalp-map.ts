@@ -9,7 +9,7 @@ import { placeLabels, type LabelBox } from './label-placement';
 export const HEAD_RADIUS = 100;
 /** Projected radius (1 = 90° from Cz) that meets the drawn head outline: 1.25 leaves room for the 9/10 positions (108°). */
 export const DISC_REACH = 1.25;
-export const LABEL_FONT_SIZE = 7;
+export const LABEL_FONT_SIZE = 8;
 /** JetBrains Mono (and common monospace faces) advance every glyph 0.6 em. */
 const MONO_ADVANCE_EM = 0.6;
 const DOT_RADIUS = 4;
