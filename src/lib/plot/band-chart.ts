@@ -21,7 +21,7 @@ export interface BandChartLayout {
 
 /**
  * Geometry of the grouped band chart, sized to `width` (its card): groups share the width, bars inside a group at
- * most 28 px wide. The value axis is symmetric about `neutral` (the method's no-change value) with nice limits, its
+ * most 28 px wide and never wider than their group. The value axis is symmetric about `neutral` (the method's no-change value) with nice limits, its
  * unit set apart as a rotated axis title left of the tick labels (never against a number). Pure: the screen's SVG and
  * an exported figure use the same numbers.
  */
@@ -36,8 +36,13 @@ export function bandChartLayout({ width, height, groups, bars, values, neutral }
   const scale = scaleLinear().domain([neutral - m, neutral + m]).range([height - bottom, top]).nice(5);
   const inner = Math.max(1, width - left - right);
   const groupWidth = inner / Math.max(1, groups);
-  const barWidth = Math.max(2, Math.min(28, (groupWidth - 16) / Math.max(1, bars) - 3));
-  const used = bars * (barWidth + 3) - 3;
+  // Each bar gets an equal slot of the group (less a margin that separates groups); the bar fills 80 % of it, at
+  // most 28 px, so the bars always fit their group however narrow the card.
+  const pad = Math.min(16, groupWidth * 0.2);
+  const slot = (groupWidth - pad) / Math.max(1, bars);
+  const barWidth = Math.min(28, slot * 0.8);
+  const gap = Math.min(slot - barWidth, 6);
+  const used = bars * (barWidth + gap) - gap;
   return {
     width,
     height,
@@ -49,7 +54,7 @@ export function bandChartLayout({ width, height, groups, bars, values, neutral }
     y: (v) => scale(v),
     groupX: (gi) => left + gi * groupWidth,
     groupWidth,
-    barX: (bi) => (groupWidth - used) / 2 + bi * (barWidth + 3),
+    barX: (bi) => (groupWidth - used) / 2 + bi * (barWidth + gap),
     barWidth,
   };
 }
