@@ -79,6 +79,16 @@ export default function ScalpMap({ title, unit, values, scale = { kind: 'sequent
   const finite = placed.filter((p) => p.value !== null && Number.isFinite(p.value));
   const describe = geometry.extent === null ? 'no values' : `${formatTick(geometry.extent[0])} to ${formatTick(geometry.extent[1])} ${unit} over ${finite.length} electrodes`;
   const ticks = [lo, (lo + hi) / 2, hi];
+  if (placed.length === 0) {
+    return (
+      <figure className="p-2 text-sm text-ink-soft" data-testid={testId}>
+        <figcaption>
+          {title}: no scalp map, as no channel has a 10-20 / 10-10 name ({geometry.unplaced.slice(0, 8).join(', ')}
+          {geometry.unplaced.length > 8 ? ', …' : ''}).
+        </figcaption>
+      </figure>
+    );
+  }
   return (
     <figure className="flex flex-col items-center gap-1" data-testid={testId} data-low={lo} data-high={hi}>
       <div className="relative w-full max-w-md" style={{ aspectRatio: `${VIEW.width} / ${VIEW.height}` }}>
