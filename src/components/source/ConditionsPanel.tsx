@@ -95,7 +95,7 @@ export default function ConditionsPanel({ recording, conditions, epochWindow, se
                     <label htmlFor={`${id}-${l.label}`}>{l.label}</label>
                   </td>
                   <td className="font-mono">{l.count}</td>
-                  <td>{owner.get(l.label) ?? <span className="text-ink-faint">—</span>}</td>
+                  <td>{owner.get(l.label) ?? <span className="text-ink-soft">—</span>}</td>
                 </tr>
               ))}
             </tbody>

@@ -42,6 +42,11 @@ const STEP_TITLES: Record<SourceStepId, string> = {
   session: 'Analysis session',
 };
 
+function defaultFolds(recording: Recording | null): ReadonlySet<SourceStepId> {
+  const types = recording?.channelTypes;
+  return new Set<SourceStepId>(types !== undefined && types.length > 0 && new Set(types).size === 1 ? ['channels'] : []);
+}
+
 /** One line per step of where it stands, for the step strip and each step's title line. */
 function sourceDigests(
   recording: Recording,
@@ -88,14 +93,20 @@ export default function SourceScreen(props: WorkspaceProps) {
   const [overviewChannel, setOverviewChannel] = useState('');
   const [selectedEvent, setSelectedEvent] = useState<number | null>(null);
   const lastAttempt = useRef<Attempt | null>(null);
-  const [folded, setFolded] = useState<ReadonlySet<SourceStepId>>(new Set());
-  const fold = (step: SourceStepId, folding: boolean) =>
-    setFolded((now) => {
-      const next = new Set(now);
-      if (folding) next.add(step);
-      else next.delete(step);
-      return next;
-    });
+  // Which steps are folded, for the recording that is open. A new recording starts from the defaults: Channels is
+  // folded when every channel has one type as read from the file (nothing to sort out), open otherwise; a problem
+  // with channels, reference or filters always opens it.
+  const [foldedBy, setFoldedBy] = useState<{ fingerprint: string | null; steps: ReadonlySet<SourceStepId> }>({ fingerprint: null, steps: new Set() });
+  const channelProblem = settingsError !== null && /^(signals|reference|filters)/.test(settingsError) ? settingsError : null;
+  const chosenFolds = foldedBy.fingerprint === fingerprint ? foldedBy.steps : defaultFolds(recording);
+  const folded: ReadonlySet<SourceStepId> = channelProblem === null ? chosenFolds : new Set([...chosenFolds].filter((s) => s !== 'channels'));
+  const setFolded = (steps: ReadonlySet<SourceStepId>) => setFoldedBy({ fingerprint, steps });
+  const fold = (step: SourceStepId, folding: boolean) => {
+    const next = new Set(folded);
+    if (folding) next.add(step);
+    else next.delete(step);
+    setFolded(next);
+  };
   const goTo = (step: SourceStepId) => {
     fold(step, false);
     requestAnimationFrame(() => document.getElementById(`step-${step}`)?.scrollIntoView({ block: 'start' }));
@@ -219,29 +230,33 @@ export default function SourceScreen(props: WorkspaceProps) {
       {recording && local && fingerprint ? (
         <>
           <SourceSteps titles={STEP_TITLES} digests={digests} folded={folded} onGo={goTo} onFoldAll={(fold) => setFolded(new Set(fold ? SOURCE_STEPS : []))} />
-          <SourceStep step="recording" title={STEP_TITLES.recording} digest={digests.recording} open={!folded.has('recording')} onToggle={(o) => fold('recording', !o)} testId="recording-details">
-            <LocalDetails recording={recording} local={local} fingerprint={fingerprint} origin={origin} />
-          </SourceStep>
-          <SourceStep step="channels" title={STEP_TITLES.channels} digest={digests.channels} open={!folded.has('channels')} onToggle={(o) => fold('channels', !o)} testId="channels-panel">
-            <ChannelsPanel
-              recording={recording}
-              conditioning={conditioning}
-              onChange={(p) => store().setConditioning(p)}
-              problem={settingsError !== null && /^(signals|reference|filters)/.test(settingsError) ? settingsError : null}
-            />
-          </SourceStep>
-          <SourceStep step="events" title={STEP_TITLES.events} digest={digests.events} open={!folded.has('events')} onToggle={(o) => fold('events', !o)}>
-            {local.eventTable && <EventTablePanel key={`${fingerprint}|${local.eventTable.header.join('\t')}`} header={local.eventTable.header} selection={eventSelection} onApply={(s) => store().setEventSelection(s)} />}
-            <ConditionsPanel
-              key={fingerprint}
-              recording={recording}
-              conditions={conditions}
-              epochWindow={epochWindow}
-              settingsError={settingsError}
-              onConditions={(c) => store().setConditions(c)}
-              onWindow={(w) => store().setEpochWindow(w)}
-            />
-          </SourceStep>
+          <div className="grid items-start gap-6 xl:grid-cols-2">
+            <div className="grid min-w-0 gap-6">
+              <SourceStep step="recording" title={STEP_TITLES.recording} digest={digests.recording} open={!folded.has('recording')} onToggle={(o) => fold('recording', !o)} testId="recording-details">
+                <LocalDetails recording={recording} local={local} fingerprint={fingerprint} origin={origin} />
+              </SourceStep>
+              <SourceStep step="channels" title={STEP_TITLES.channels} digest={digests.channels} open={!folded.has('channels')} onToggle={(o) => fold('channels', !o)} testId="channels-panel">
+                <ChannelsPanel
+                  recording={recording}
+                  conditioning={conditioning}
+                  onChange={(p) => store().setConditioning(p)}
+                  problem={channelProblem}
+                />
+              </SourceStep>
+            </div>
+            <SourceStep step="events" title={STEP_TITLES.events} digest={digests.events} open={!folded.has('events')} onToggle={(o) => fold('events', !o)}>
+              {local.eventTable && <EventTablePanel key={`${fingerprint}|${local.eventTable.header.join('\t')}`} header={local.eventTable.header} selection={eventSelection} onApply={(s) => store().setEventSelection(s)} />}
+              <ConditionsPanel
+                key={fingerprint}
+                recording={recording}
+                conditions={conditions}
+                epochWindow={epochWindow}
+                settingsError={settingsError}
+                onConditions={(c) => store().setConditions(c)}
+                onWindow={(w) => store().setEpochWindow(w)}
+              />
+            </SourceStep>
+          </div>
           <SourceStep step="epochs" title={STEP_TITLES.epochs} digest={digests.epochs} open={!folded.has('epochs')} onToggle={(o) => fold('epochs', !o)}>
             <OverviewTrace
               recording={recording}
