@@ -76,6 +76,15 @@ describe('the Source screen', () => {
       const drawn = await canvas.evaluate((c: HTMLCanvasElement) => ({ width: c.width, css: c.getBoundingClientRect().width, ratio: window.devicePixelRatio }));
       expect(Math.abs(drawn.width - Math.round(drawn.css * drawn.ratio))).toBeLessThanOrEqual(2);
 
+      // As it opens (Channels folded for a recording of one channel type): how far down the epochs start.
+      const measured = await page.evaluate(() => ({
+        pageHeight: document.documentElement.scrollHeight,
+        epochsTop: Math.round(document.querySelector('details[data-step="epochs"]')!.getBoundingClientRect().top + window.scrollY),
+      }));
+      fs.appendFileSync(path.join(artifactsDir, 'source-heights.txt'), `${width}x${height}: page ${measured.pageHeight} px, epochs step at ${measured.epochsTop} px\n`);
+      expect(await page.locator('details[data-step="channels"][open]').count()).toBe(0);
+      expect(measured.epochsTop).toBeLessThan(2_000);
+
       // Folding every step leaves the titles and digests: the whole screen fits in about one window.
       await page.getByTestId('fold-all').click();
       await expect.poll(() => page.locator('details[data-step][open]').count()).toBe(0);
@@ -103,7 +112,24 @@ describe('the Source screen', () => {
     expect(await row.isVisible()).toBe(true);
     expect(await row.getByTestId('by-hand-marker').textContent()).toBe('overridden by hand');
     expect(await page.getByText(/1 of them kept by hand and shown/).count()).toBe(1);
+    await row.scrollIntoViewIfNeeded();
     await page.screenshot({ path: path.join(artifactsDir, 'source-kept-by-hand.png') });
+    await page.context().close();
+  });
+
+  it('refuses a second draft for the same subject and recording in plain words, linking the session that exists', async () => {
+    const page = await openSource(1440, 900);
+    const code = `TM-L${Date.now().toString().slice(-6)}`;
+    await page.getByLabel('Subject code').fill(code);
+    await page.getByRole('button', { name: 'Create analysis session' }).click();
+    await page.getByTestId('session-created').waitFor();
+    await page.getByRole('button', { name: 'Create analysis session' }).click();
+    const problem = page.getByTestId('session-problem');
+    await expect.poll(() => problem.textContent()).toContain(`Subject ${code} already has an analysis session for this recording`);
+    expect(await problem.textContent()).not.toMatch(/\b[a-z]+[A-Za-z]*:[a-z][A-Za-z]*\b|409|session_exists/);
+    await page.getByTestId('existing-session-link').click();
+    await page.waitForURL(/\/teams\/[0-9a-f-]+\/studies\/[0-9a-f-]+\/sessions\/[0-9a-f-]+$/);
+    expect(await page.locator('main').textContent()).toContain(code);
     await page.context().close();
   });
 });

@@ -81,9 +81,8 @@ export default function LibraryPanel({ library, expiryDays, version, busy, curre
   return (
     <div className="grid gap-3" data-testid="library">
       <p className="text-sm text-ink-soft">
-        Recordings you opened are kept in this browser only (IndexedDB), for your account, to reopen later. Nothing here
-        is synchronised. Each is removed {formatDays(expiryDays)} after you last opened it, and at sign-out unless you
-        choose to keep it.
+        Kept in this browser only (IndexedDB), for your account, never synchronised. Each recording is removed{' '}
+        {formatDays(expiryDays)} after you last opened it, and at sign-out unless you keep it.
       </p>
       {estimate && <StorageMeter usage={estimate.usage} quota={estimate.quota} />}
       {expired.length > 0 && (

@@ -77,24 +77,26 @@ export default function SessionPanel({ teamId, studyId, fingerprint, subjectCode
         Sends exactly <span className="font-mono">{'{ subjectCode, fingerprint }'}</span> to the server; see the Outbound tab for the
         record.
       </p>
-      <div className="field max-w-xs">
-        <label htmlFor={`${id}-code`}>Subject code</label>
-        <input
-          id={`${id}-code`}
-          value={subjectCode}
-          autoComplete="off"
-          spellCheck={false}
-          onChange={(e) => onSubjectCode(e.target.value)}
-          aria-invalid={problem !== null}
-          aria-describedby={`${id}-code-hint`}
-        />
-        <p id={`${id}-code-hint`} className="text-xs text-ink-soft">
-          The team's code for this subject, like TM-S01. Never a name.
-        </p>
+      <div className="flex flex-wrap items-start gap-3">
+        <div className="field max-w-xs">
+          <label htmlFor={`${id}-code`}>Subject code</label>
+          <input
+            id={`${id}-code`}
+            value={subjectCode}
+            autoComplete="off"
+            spellCheck={false}
+            onChange={(e) => onSubjectCode(e.target.value)}
+            aria-invalid={problem !== null}
+            aria-describedby={`${id}-code-hint`}
+          />
+          <p id={`${id}-code-hint`} className="text-xs text-ink-soft">
+            The team's code for this subject, like TM-S01. Never a name.
+          </p>
+        </div>
+        <button type="submit" className="btn btn-primary mt-6" disabled={sending}>
+          Create analysis session
+        </button>
       </div>
-      <button type="submit" className="btn btn-primary justify-self-start" disabled={sending}>
-        Create analysis session
-      </button>
       {problem && (
         <p className="notice notice-warn" role="alert" data-testid="session-problem">
           {problem}
