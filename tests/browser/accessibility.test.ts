@@ -163,9 +163,8 @@ describe('axe-core finds no WCAG 2.1 A/AA violation', () => {
         await signIn(page, screen.who);
         await screen.reach(page, ids);
         const found = await axeViolations(page);
-        if (found.length > 0) {
-          await page.screenshot({ path: path.join(artifactsDir, `axe-${screen.name.replace(/[^a-z0-9]+/gi, '-')}.png`), fullPage: true });
-        }
+        // What axe looked at, to read beside its report (1440 × 900, the first screenful).
+        await page.screenshot({ path: path.join(artifactsDir, `screen-${screen.name.replace(/[^a-z0-9]+/gi, '-')}.png`) });
         expect(found, JSON.stringify(found, null, 2)).toEqual([]);
       } finally {
         await context.close();

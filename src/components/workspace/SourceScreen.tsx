@@ -230,7 +230,7 @@ export default function SourceScreen(props: WorkspaceProps) {
       {recording && local && fingerprint ? (
         <>
           <SourceSteps titles={STEP_TITLES} digests={digests} folded={folded} onGo={goTo} onFoldAll={(fold) => setFolded(new Set(fold ? SOURCE_STEPS : []))} />
-          <div className="grid items-start gap-6 xl:grid-cols-2">
+          <div className="grid items-start gap-6 lg:grid-cols-2">
             <div className="grid min-w-0 gap-6">
               <SourceStep step="recording" title={STEP_TITLES.recording} digest={digests.recording} open={!folded.has('recording')} onToggle={(o) => fold('recording', !o)} testId="recording-details">
                 <LocalDetails recording={recording} local={local} fingerprint={fingerprint} origin={origin} />
