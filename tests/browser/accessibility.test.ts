@@ -7,7 +7,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import { appUrl, artifactsDir, launchBrowser } from '../helpers/browser';
-import { pool } from '../helpers/app';
+import { Client, pool, waitForMail } from '../helpers/app';
 import { db, pool as dbPool } from '../../src/db/client';
 import { users } from '../../src/db/schema';
 import { hashPassword } from '../../src/lib/crypto/password';
@@ -82,7 +82,13 @@ export const SCREENS: Screen[] = [
   { name: 'site: people', who: 'operator', reach: goto('/admin') },
   { name: 'site: teams', who: 'operator', reach: goto('/admin/teams') },
   { name: 'site: audit', who: 'operator', reach: goto('/admin/audit') },
-  { name: 'mailbox (dev)', who: 'operator', reach: goto('/dev/mailbox') },
+  { name: 'mailbox (dev)', who: 'operator', reach: async (page, i) => {
+    // A message with a link in it, so the page shows what it lists: a reset asked for the teamless fixture account.
+    await new Client().post('/forgot-password', { email: teamless.email });
+    await waitForMail(teamless.email, 0, 20_000);
+    await goto('/dev/mailbox')(page, i);
+    await page.locator('[data-testid="mailbox"] pre a').first().waitFor();
+  } },
   { name: 'workspace: Source (recording open)', who: 'analyst', reach: openRecordingInWorkspace },
   { name: 'workspace: Source (reviewer)', who: 'reviewer', reach: openRecordingInWorkspace },
   { name: 'workspace: Recipe', who: 'analyst', reach: (page, i) => workspaceTab(page, i, 'Recipe') },
