@@ -125,7 +125,7 @@ export default function EpochTable({ decisions, onOverride, onSelect }: Props) {
           {heldByHand > 0 && `, ${heldByHand} of them ${only === 'rejected' ? 'kept' : 'rejected'} by hand and shown so you can see your decision`}
         </p>
       </div>
-      <div className="max-h-[24rem] overflow-auto rounded border border-sand-deep">
+      <div className="max-h-[20rem] overflow-auto rounded border border-sand-deep">
         <table className="data-table" data-testid="epoch-table">
           <thead className="sticky top-0 bg-foam">
             {table.getHeaderGroups().map((g) => (
