@@ -80,6 +80,8 @@ export const actionWords: Record<Action, string> = {
   'cohort:covariates': 'change the subjects’ covariates',
   'cohort:design': 'change the study’s saved tests',
   'cohort:includeUnsigned': 'pool unsigned sessions',
+  'slopeReport:view': 'read slope check reports',
+  'slopeReport:save': 'save slope check reports',
 };
 
 /** The refusal a person reads when `role` may not take `action`: plain words, never the action's code. */
