@@ -1,0 +1,154 @@
+// What the Maps screen draws, computed here (the workspace controller) so the screen only paints: a channel's or a
+// channel group's maps, the contrast of two conditions, the phase-consistency marks and the evoked trace.
+import type { BaselineMethod } from '../../analysis/baseline';
+import { defaultChannelGroups, groupIndices, groupMap, type ChannelGroup } from '../../analysis/channel-groups';
+import { contrastMap, type ContrastBaseline } from '../../analysis/contrast';
+import { rayleighP } from '../../analysis/phase-consistency';
+import { renormalizeAverage } from '../../analysis/renormalize';
+import type { RecipeInput } from '../../analysis/recipe';
+import type { Decomposition } from './results';
+
+export type { ChannelGroup, ContrastBaseline };
+
+/** The default regions (frontal midline, left/right central, parietal midline, occipital) among `channels`. */
+export function defaultGroupsFor(channels: readonly string[]): ChannelGroup[] {
+  return defaultChannelGroups(channels);
+}
+
+/** The decomposition's channel groups: the recipe's `channelGroups`, else the defaults from its channel names. */
+export function groupsOf(d: Decomposition): ChannelGroup[] {
+  const own = d.recipe.channelGroups;
+  if (own !== undefined) return Object.entries(own).map(([name, channels]) => ({ name, channels: channels.slice() }));
+  return defaultChannelGroups(d.channels);
+}
+
+/** Which channels a map averages: the group's (checked against the analysed channels) or the one channel's. */
+export function channelIndicesOf(d: Decomposition, channel: string | null, group: string | null): { indices: number[]; label: string; group: ChannelGroup | null } {
+  if (group !== null) {
+    const g = groupsOf(d).find((x) => x.name === group);
+    if (g !== undefined) return { indices: groupIndices(g, d.channels), label: `${g.name} (${g.channels.join(', ')})`, group: g };
+  }
+  const ci = Math.max(0, channel === null ? 0 : d.channels.indexOf(channel));
+  return { indices: [ci], label: d.channels[ci], group: null };
+}
+
+/** The mean over `indices` of per-channel maps (`groupMap`), or the one channel's own array. */
+export function meanOver(maps: readonly Float64Array[], indices: readonly number[]): Float64Array {
+  return indices.length === 1 ? maps[indices[0]] : groupMap(maps, indices);
+}
+
+/** Trial-averaged raw power of condition `a` over the chosen channels, µV². */
+export function rawPowerOf(d: Decomposition, indices: readonly number[], a: number): Float64Array {
+  return meanOver(
+    indices.map((c) => d.power[c][a]),
+    indices.map((_, i) => i),
+  );
+}
+
+/**
+ * Scope `average`: condition `a` of each chosen channel normalized against its own baseline (grid points
+ * first … last, the recipe's method), then the mean over channels: a region's map is the mean of its channels'
+ * normalized maps (channel-groups.ts).
+ */
+export function normalizedOf(d: Decomposition, indices: readonly number[], a: number, points: { first: number; last: number }, method: BaselineMethod): Float64Array {
+  const nt = d.times.length;
+  const maps = indices.map((c) => {
+    const out = new Float64Array(d.power[c][a].length);
+    renormalizeAverage(out, d.power[c][a], nt, points.first, points.last, method);
+    return out;
+  });
+  return meanOver(
+    maps,
+    maps.map((_, i) => i),
+  );
+}
+
+/**
+ * Condition A − B (scope `average`) of each chosen channel with `contrastMap` (own or shared baseline), then the mean
+ * over channels.
+ */
+export function contrastOf(d: Decomposition, indices: readonly number[], a: number, b: number, points: { first: number; last: number }, method: BaselineMethod, choice: ContrastBaseline): Float64Array {
+  const nt = d.times.length;
+  const maps = indices.map((c) => contrastMap(d.power[c][a], d.power[c][b], nt, points, method, choice));
+  return meanOver(
+    maps,
+    maps.map((_, i) => i),
+  );
+}
+
+/** Phase consistency of condition `a` over the chosen channels (mean of the channels' maps), or null without it. */
+export function itpcOf(d: Decomposition, indices: readonly number[], a: number): Float64Array | null {
+  if (!d.itpc) return null;
+  const itpc = d.itpc;
+  return meanOver(
+    indices.map((c) => itpc[c][a]),
+    indices.map((_, i) => i),
+  );
+}
+
+/**
+ * Cells whose phase consistency r over `n` trials passes Rayleigh's test at `alpha` (p from Zar's approximation,
+ * `rayleighP`; Zar, Biostatistical Analysis, 1999, eq. 27.4). 1 = marked. Only meaningful for one channel's r: a
+ * region's mean r is not a resultant length of n phasors.
+ */
+export function rayleighMarks(itpc: ArrayLike<number>, n: number, alpha = 0.05): Uint8Array {
+  const out = new Uint8Array(itpc.length);
+  for (let i = 0; i < itpc.length; i++) out[i] = rayleighP(n, itpc[i]) < alpha ? 1 : 0;
+  return out;
+}
+
+/** The evoked response of condition `a` (µV per time point) over the chosen channels, or null without induced power. */
+export function evokedOf(d: Decomposition, indices: readonly number[], a: number): Float64Array | null {
+  if (!d.evoked) return null;
+  const evoked = d.evoked;
+  return meanOver(
+    indices.map((c) => evoked[c][a]),
+    indices.map((_, i) => i),
+  );
+}
+
+/**
+ * Whether a run's warning is a routine count (epochs rejected by the rules or by hand) rather than a problem: shown
+ * in a neutral colour, not as a warning.
+ */
+export function isRoutineNotice(warning: string): boolean {
+  return /^rejection "[^"]*": \d+ of \d+ epochs rejected/.test(warning);
+}
+
+/**
+ * The shortest decimal within 4 ulps (4·ε relative) of `x`: undoes binary floating-point noise such as the grid time
+ * −0.5 + 16/500 = −0.46799999999999997 → −0.468, without moving a value by anything a recipe could notice (grid
+ * indices round half up with a tolerance of 8 ulps, rounding.ts); a value with real digits (1/3) keeps them.
+ */
+export function cleanNumber(x: number): number {
+  if (!Number.isFinite(x) || Number.isInteger(x)) return x;
+  for (let digits = 1; digits <= 17; digits++) {
+    const v = Number(x.toPrecision(digits));
+    if (Math.abs(v - x) <= 4 * Number.EPSILON * Math.abs(x)) return v;
+  }
+  return x;
+}
+
+function cleanDeep(value: unknown): unknown {
+  if (typeof value === 'number') return cleanNumber(value);
+  if (Array.isArray(value)) return value.map(cleanDeep);
+  if (value !== null && typeof value === 'object') return Object.fromEntries(Object.entries(value).map(([k, v]) => [k, cleanDeep(v)]));
+  return value;
+}
+
+/**
+ * The recipe the Maps screen exports: the shown decomposition's recipe with the live baseline (snapped to the sample
+ * grid, so the same grid points) and fit range, every number written as its shortest clean decimal.
+ */
+export function exportedRecipe(
+  d: Decomposition,
+  live: { baseline: { start: number; end: number }; method: BaselineMethod; scope: 'average' | 'trial'; spreadTrials: boolean; fitRange: readonly [number, number] },
+): RecipeInput {
+  const { baseline, method, scope, spreadTrials, fitRange } = live;
+  const recipe = {
+    ...d.recipe,
+    baseline: { start: baseline.start, end: baseline.end, method, scope, ...(spreadTrials ? { spread: 'trials' as const } : {}) },
+    aperiodic: { ...d.recipe.aperiodic, range: [fitRange[0], fitRange[1]] as [number, number] },
+  };
+  return cleanDeep(recipe) as RecipeInput;
+}
