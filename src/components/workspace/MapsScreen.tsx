@@ -11,7 +11,7 @@ import MapSelection, { MapReadout } from '../explorer/MapSelection';
 import NumberField from '../explorer/NumberField';
 import Choice from '../explorer/Choice';
 import { baselinePoints, baselineWarnings, difference, snapToGrid } from '../explorer/map-model';
-import { channelIndicesOf, contrastOf, evokedOf, exportedRecipe, groupsOf, isRoutineNotice, itpcOf, normalizedOf, rawPowerOf, rayleighMarks } from '../../lib/client/workspace/maps';
+import { channelIndicesOf, contrastOf, evokedOf, exportedRecipe, groupsOf, isRoutineNotice, itpcOf, normalizedOf, rawPowerOf, rayleighMarks, trialValuesCsv } from '../../lib/client/workspace/maps';
 import EvokedTrace from '../explorer/EvokedTrace';
 import { renderMapsPng } from '../explorer/export-maps';
 import { downloadBlob, fileSafe } from '../explorer/download';
@@ -51,6 +51,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
   const setView = useWorkspace((s) => s.set);
   const setBaseline = useWorkspace((s) => s.setBaseline);
   const [cursor, setCursor] = useState<Cell | null>(null);
+  const [trialExport, setTrialExport] = useState<{ busy: boolean; problem: string | null }>({ busy: false, problem: null });
   const trialMaps = useTrialMaps((s) => s.latest);
 
   const groups = useMemo(() => (d === null ? [] : groupsOf(d)), [d]);
@@ -248,6 +249,19 @@ export default function MapsScreen(_props: WorkspaceProps) {
     downloadBlob(new Blob([JSON.stringify(recipe, null, 2) + '\n'], { type: 'application/json' }), 'recipe.json');
   };
 
+  const exportTrialValues = async () => {
+    if (ch === null) return;
+    setTrialExport({ busy: true, problem: null });
+    try {
+      const { bands, windows } = useWorkspace.getState();
+      const csv = await trialValuesCsv(d, ch, bands, windows, baseline, points, method);
+      downloadBlob(new Blob([csv], { type: 'text/csv' }), `trial-values-${fileSafe(ch)}-${method}.csv`);
+      setTrialExport({ busy: false, problem: null });
+    } catch (error) {
+      setTrialExport({ busy: false, problem: `Per-trial values of ${ch} could not be made: ${error instanceof Error ? error.message : String(error)}` });
+    }
+  };
+
   return (
     <div className="flex flex-col gap-4" data-testid="maps-screen">
       <div className="card flex flex-wrap items-end gap-4 p-3">
@@ -282,7 +296,22 @@ export default function MapsScreen(_props: WorkspaceProps) {
           <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale" onClick={exportRecipe} data-testid="export-recipe">
             Export recipe JSON
           </button>
+          <button
+            type="button"
+            className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale disabled:opacity-50"
+            onClick={() => void exportTrialValues()}
+            disabled={ch === null || trialExport.busy}
+            title={ch === null ? 'Per-trial values come from one channel’s single trials: pick a channel' : 'Each trial normalized by its own baseline, averaged over each band (Bands screen) × window, one row per trial'}
+            data-testid="export-trial-values"
+          >
+            {trialExport.busy ? 'Making per-trial values…' : 'Export per-trial values (CSV)'}
+          </button>
         </div>
+        {trialExport.problem !== null && (
+          <p className="basis-full text-sm text-coral-deep" role="alert" data-testid="trial-values-problem">
+            {trialExport.problem}
+          </p>
+        )}
       </div>
       {useTrials && trialHold?.key === holdKey && trialHold.status !== 'ready' && (
         <p className={trialHold.status === 'failed' ? 'text-coral-deep' : 'text-ink-soft'} role="status">
@@ -304,7 +333,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
           The shared baseline applies to trial-average maps; in single-trial scope each trial keeps its own baseline.
         </p>
       )}
-      <div className="grid grid-cols-1 gap-3 min-[1180px]:grid-cols-2" data-testid="maps-grid">
+      <div className="grid grid-cols-1 items-start gap-3 min-[1180px]:grid-cols-2" data-testid="maps-grid">
         {rawSpec !== null && (
           <div className="card p-2">
             <MapPanel testId="map-raw" spec={rawSpec} baseline={baseline} dt={dt} snap={snap} onBaseline={setBaseline} focusable={false} cursor={cursor} onCursor={setCursor} />

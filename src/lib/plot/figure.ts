@@ -71,7 +71,7 @@ export function drawAxes(ctx: Ctx, layout: PanelLayout, spec: AxesSpec): void {
   ctx.textAlign = 'center';
   ctx.textBaseline = 'top';
   const tCount = Math.max(2, Math.floor(plotWidth / 70));
-  const tTicks = spec.timeEnds ? ticksWithEnds(spec.time, spec.timeEnds[0], spec.timeEnds[1], tCount, false, 40) : spec.time.ticks(tCount);
+  const tTicks = spec.timeEnds ? ticksWithEnds(spec.time, spec.timeEnds[0], spec.timeEnds[1], tCount, false, 50) : spec.time.ticks(tCount);
   tTicks.forEach((t, i) => {
     const x = Math.round(spec.time(t)) + 0.5;
     ctx.beginPath();
@@ -303,7 +303,7 @@ export function drawTrace(ctx: Ctx, layout: PanelLayout, time: AxisScale, times:
     ctx.setLineDash([]);
   }
   const n = times.length;
-  const tTicks = ticksWithEnds(time, times[0], times[n - 1], Math.max(2, Math.floor(plotWidth / 70)), false, 40);
+  const tTicks = ticksWithEnds(time, times[0], times[n - 1], Math.max(2, Math.floor(plotWidth / 70)), false, 50);
   ctx.textBaseline = 'top';
   tTicks.forEach((t, i) => {
     const x = Math.round(time(t)) + 0.5;

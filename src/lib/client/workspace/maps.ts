@@ -6,7 +6,10 @@ import { contrastMap, type ContrastBaseline } from '../../analysis/contrast';
 import { rayleighP } from '../../analysis/phase-consistency';
 import { renormalizeAverage } from '../../analysis/renormalize';
 import type { RecipeInput } from '../../analysis/recipe';
-import type { Decomposition } from './results';
+import { ensureTrials, useResultsStore, type Decomposition } from './results';
+import { explorerWorker } from '../explorer-worker';
+import { useWorkspace } from './store';
+import type { Band, TimeWindow } from './view';
 
 export type { ChannelGroup, ContrastBaseline };
 
@@ -151,4 +154,71 @@ export function exportedRecipe(
     aperiodic: { ...d.recipe.aperiodic, range: [fitRange[0], fitRange[1]] as [number, number] },
   };
   return cleanDeep(recipe) as RecipeInput;
+}
+
+const UNITS: Record<BaselineMethod, string> = { decibel: 'dB', 'percent-change': '%', 'z-score': 'z', 'power-ratio': 'ratio' };
+
+/** A CSV field (RFC 4180): quoted when it holds a comma, quote or line break. */
+function csvField(v: string | number): string {
+  const s = typeof v === 'number' ? (Number.isFinite(v) ? String(cleanNumber(v)) : '') : v;
+  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+}
+
+/** Waits until the explorer worker's single trials under `key` are ready, or says why they are not. */
+function heldReady(key: string): Promise<void> {
+  return new Promise((resolve, reject) => {
+    const check = (): boolean => {
+      const hold = useResultsStore.getState().trialHold;
+      if (hold === null || hold.key !== key) return (reject(new Error('another channel’s single trials were asked for meanwhile; export again')), true);
+      if (hold.status === 'ready') return (resolve(), true);
+      if (hold.status === 'failed') return (reject(new Error(hold.message ?? 'the single trials could not be kept')), true);
+      return false;
+    };
+    if (check()) return;
+    const stop = useResultsStore.subscribe(() => {
+      if (check()) stop();
+    });
+  });
+}
+
+/**
+ * Per-trial band × window values of one channel as a tidy CSV (one row per condition, trial, band and window), for
+ * within-subject statistics: each trial's power normalized by its own baseline, averaged over the band's grid
+ * frequencies and the window's grid times outside the edge zones (`trialBandValues`, computed in the explorer worker
+ * from the channel's held single trials, Float32). Bands without a grid frequency or windows without a grid time give
+ * empty values.
+ */
+export async function trialValuesCsv(
+  d: Decomposition,
+  channel: string,
+  bands: readonly Band[],
+  windows: readonly TimeWindow[],
+  baseline: { start: number; end: number },
+  points: { first: number; last: number },
+  method: BaselineMethod,
+): Promise<string> {
+  const recording = useWorkspace.getState().recording;
+  if (recording === null) throw new Error('open the recording on the Source screen first: single trials are computed from its samples');
+  const key = `${d.key}|${channel}`;
+  await ensureTrials(d, channel, recording);
+  await heldReady(key);
+  const cells = bands.flatMap((b) => windows.map((w) => ({ lowHz: b.lowHz, highHz: b.highHz, startSeconds: w.startSeconds, endSeconds: w.endSeconds })));
+  const values = await explorerWorker().trialBandValues(key, d.frequencies, d.times, d.mask, points.first, points.last, method, cells);
+  if (values === null) throw new Error('another channel’s single trials were asked for meanwhile; export again');
+  const lines = ['channel,condition,trial,event_onset_s,band,band_low_hz,band_high_hz,window,window_start_s,window_end_s,method,baseline_start_s,baseline_end_s,value,unit'];
+  d.labels.forEach((condition, c) => {
+    const starts = d.epochStarts[c];
+    for (let k = 0; k < d.trials[c]; k++) {
+      const onset = starts[k] / d.sampleRateHz - d.epochStart;
+      bands.forEach((b, bi) =>
+        windows.forEach((w, wi) => {
+          const v = values[c][bi * windows.length + wi][k];
+          lines.push(
+            [channel, condition, k + 1, onset, b.name, b.lowHz, b.highHz, w.name, w.startSeconds, w.endSeconds, method, baseline.start, baseline.end, v, UNITS[method]].map(csvField).join(','),
+          );
+        }),
+      );
+    }
+  });
+  return lines.join('\r\n') + '\r\n';
 }
