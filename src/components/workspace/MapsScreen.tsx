@@ -339,7 +339,8 @@ export default function MapsScreen(_props: WorkspaceProps) {
             <MapPanel testId="map-raw" spec={rawSpec} baseline={baseline} dt={dt} snap={snap} onBaseline={setBaseline} focusable={false} cursor={cursor} onCursor={setCursor} />
           </div>
         )}
-        <div className="card p-2">
+        {/* Two rows tall on a wide window, so the ITPC map sits straight under the raw one, beside the evoked trace. */}
+        <div className="card p-2 min-[1180px]:row-span-2">
           {normSpec !== null ? (
             <MapPanel testId="map-normalized" spec={normSpec} baseline={baseline} dt={dt} snap={snap} onBaseline={setBaseline} focusable cursor={cursor} onCursor={setCursor} warnings={warnings} />
           ) : (
