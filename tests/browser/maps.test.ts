@@ -195,8 +195,11 @@ describe('channel groups and contrasts on the Maps screen', () => {
     // A channel the run does not analyse: named with its group and place, and the run waits.
     await expect.poll(() => page.getByTestId('recipe-groups-error').allTextContents()).toContainEqual(expect.stringMatching(/midline.*Xz|Xz.*midline/));
     expect(await page.getByTestId('recipe-run').isDisabled()).toBe(true);
+    await page.getByTestId('recipe-groups').scrollIntoViewIfNeeded();
+    await page.screenshot({ path: path.join(artifactsDir, 'maps-recipe-groups-1440x900.png') });
     await page.getByTestId('recipe-group-channels').nth(2).fill('Fz, Cz, Pz');
     await expect.poll(() => page.getByTestId('recipe-groups-error').count()).toBe(0);
+    expect(await page.getByTestId('recipe-run').textContent()).toBe('Show with these channel groups');
     // Groups do not change the decomposition: the kept one is shown at once with the new groups.
     await page.getByTestId('recipe-run').click();
     await expect.poll(() => page.getByRole('tab', { name: 'Maps' }).getAttribute('aria-selected')).toBe('true');

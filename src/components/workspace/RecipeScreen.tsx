@@ -13,7 +13,7 @@ import Choice from '../explorer/Choice';
 import RunProgress, { ComputedList } from '../explorer/RunProgress';
 import RecipeChannels from '../explorer/RecipeChannels';
 import RecipeGroups, { groupProblems } from '../explorer/RecipeGroups';
-import { defaultGroupsFor } from '../../lib/client/workspace/maps';
+import { defaultGroupsFor } from '../../lib/client/workspace/channel-groups';
 import { useScreen } from '../../lib/client/workspace/navigation';
 import { useWorkspace } from '../../lib/client/workspace/store';
 
@@ -81,6 +81,8 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   }
   const running = run.status === 'running';
   const cached = key !== null && cache[key] !== undefined;
+  // Channel groups are not part of the cache key: the kept decomposition is shown again with the edited groups.
+  const groupsChanged = cached && JSON.stringify(cache[key!].recipe.channelGroups ?? null) !== JSON.stringify(recipe.channelGroups ?? null);
   const start = () => {
     if (analysis === null || recordingId === null) return;
     // A finished run goes on to the maps, unless the person has already moved to another screen.
@@ -266,7 +268,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
       )}
       <div className="flex flex-wrap items-center gap-3">
         <button type="submit" disabled={running || check !== null || localGroupProblems.length > 0} className="rounded-sm bg-kelp px-4 py-2 font-semibold text-foam hover:bg-kelp-deep disabled:opacity-50" data-testid="recipe-run">
-          {cached ? (activeKey === key ? 'Shown on Maps' : 'Show (already computed)') : 'Run decomposition'}
+          {cached ? (activeKey === key && !groupsChanged ? 'Shown on Maps' : groupsChanged ? 'Show with these channel groups' : 'Show (already computed)') : 'Run decomposition'}
         </button>
         {running && (
           <button type="button" className="rounded-sm border border-coral px-4 py-2 text-coral-deep" onClick={cancelDecomposition} data-testid="recipe-cancel">

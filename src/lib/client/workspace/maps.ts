@@ -12,11 +12,7 @@ import { useWorkspace } from './store';
 import type { Band, TimeWindow } from './view';
 
 export type { ChannelGroup, ContrastBaseline };
-
-/** The default regions (frontal midline, left/right central, parietal midline, occipital) among `channels`. */
-export function defaultGroupsFor(channels: readonly string[]): ChannelGroup[] {
-  return defaultChannelGroups(channels);
-}
+export { defaultGroupsFor } from './channel-groups';
 
 /** The decomposition's channel groups: the recipe's `channelGroups`, else the defaults from its channel names. */
 export function groupsOf(d: Decomposition): ChannelGroup[] {
