@@ -1,4 +1,4 @@
-import { useEffect, useLayoutEffect, useMemo, useState } from 'react';
+import { useEffect, useLayoutEffect, useMemo, useRef, useState } from 'react';
 import type { WorkspaceProps } from './types';
 import type { BaselineMethod } from '../../lib/analysis/baseline';
 import { consistencyColormap, divergingColormap, sequentialColormap } from '../../lib/plot/colormap';
@@ -53,6 +53,8 @@ export default function MapsScreen(_props: WorkspaceProps) {
   const [cursor, setCursor] = useState<Cell | null>(null);
   const [trialExport, setTrialExport] = useState<{ busy: boolean; problem: string | null }>({ busy: false, problem: null });
   const trialMaps = useTrialMaps((s) => s.latest);
+  // Buffers the average-scope maps are re-normalized into while the band moves (one channel: no allocation per move).
+  const buffers = useRef<{ a: Float64Array; b: Float64Array } | null>(null);
 
   const groups = useMemo(() => (d === null ? [] : groupsOf(d)), [d]);
   const group = channelGroup !== null && groups.some((g) => g.name === channelGroup) ? channelGroup : null;
@@ -132,9 +134,12 @@ export default function MapsScreen(_props: WorkspaceProps) {
   // Average scope: re-normalized here in the controller's functions on every baseline move (F × T per channel).
   const averageNorm = useMemo((): Float64Array | null => {
     if (d === null || selection === null || useTrials) return null;
-    if (b < 0) return normalizedOf(d, selection.indices, a, points, method);
+    if (buffers.current === null || buffers.current.a.length !== nf * nt) buffers.current = { a: new Float64Array(nf * nt), b: new Float64Array(nf * nt) };
+    const buf = buffers.current;
+    if (b < 0) return normalizedOf(d, selection.indices, a, points, method, buf.a);
     if (contrastBaseline === 'shared') return contrastOf(d, selection.indices, a, b, points, method, 'shared');
-    return difference(new Float64Array(nf * nt), normalizedOf(d, selection.indices, a, points, method), normalizedOf(d, selection.indices, b, points, method));
+    const na = normalizedOf(d, selection.indices, a, points, method, buf.a);
+    return difference(new Float64Array(nf * nt), na, normalizedOf(d, selection.indices, b, points, method, buf.b));
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [d, indexKey, a, b, points.first, points.last, method, contrastBaseline, useTrials, nf, nt]);
 

@@ -47,12 +47,13 @@ export function rawPowerOf(d: Decomposition, indices: readonly number[], a: numb
 /**
  * Scope `average`: condition `a` of each chosen channel normalized against its own baseline (grid points
  * first … last, the recipe's method), then the mean over channels: a region's map is the mean of its channels'
- * normalized maps (channel-groups.ts).
+ * normalized maps (channel-groups.ts). `reuse`, when given and of the right size, receives a single channel's map.
  */
-export function normalizedOf(d: Decomposition, indices: readonly number[], a: number, points: { first: number; last: number }, method: BaselineMethod): Float64Array {
+export function normalizedOf(d: Decomposition, indices: readonly number[], a: number, points: { first: number; last: number }, method: BaselineMethod, reuse: Float64Array | null = null): Float64Array {
   const nt = d.times.length;
   const maps = indices.map((c) => {
-    const out = new Float64Array(d.power[c][a].length);
+    // One channel while the baseline is dragged: the caller's buffer is written again, nothing is allocated.
+    const out = indices.length === 1 && reuse !== null && reuse.length === d.power[c][a].length ? reuse : new Float64Array(d.power[c][a].length);
     renormalizeAverage(out, d.power[c][a], nt, points.first, points.last, method);
     return out;
   });
