@@ -32,7 +32,9 @@ export default function EvokedTrace({ times, series, title, testId, height = 150
     ctx.fillStyle = FOAM;
     ctx.fillRect(0, 0, layout.width, layout.height);
     drawTrace(ctx, layout, timeScale(times, layout.left, layout.left + layout.plotWidth), times, series, 'µV', title);
-  });
+    // Repaint for a new trace or size only: the Maps screen renders on every move of the baseline.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [times, series, title, width, height]);
   return (
     <div ref={wrap} className="w-full" style={{ height }}>
       {layout !== null && (
