@@ -1,7 +1,7 @@
 // Accessibility (issue 13, item 6): axe-core (Deque's open rules engine, an independent general-purpose library)
 // run in Chromium over every server page and the workspace screens, against the WCAG 2.0/2.1 A and AA rules
 // (W3C, Web Content Accessibility Guidelines 2.1). Each screen is one entry of SCREENS: to cover another screen
-// (Maps, Spectrum, Bands), add an entry that gets the page there; the check and its report are the same for all.
+// add an entry that gets the page there; the check and its report are the same for all.
 import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -52,6 +52,20 @@ async function openRecordingInWorkspace(page: Page, i: Ids) {
   await page.getByTestId('epoch-table').waitFor({ timeout: 60_000 });
 }
 
+/** The small recording opened and decomposed (12 frequencies, phase consistency on), then the screen `tab`. */
+async function decomposedTab(page: Page, i: Ids, tab: string) {
+  await openRecordingInWorkspace(page, i);
+  await page.getByRole('tab', { name: 'Recipe' }).click();
+  await page.getByTestId('recipe-fcount').fill('12');
+  await page.getByTestId('recipe-itpc').check();
+  await page.getByTestId('recipe-run').click();
+  await page.waitForFunction(() => document.querySelector('[data-testid="recipe-status"]')?.getAttribute('data-status') === 'done', undefined, { timeout: 120_000 });
+  await page.getByRole('tab', { name: tab }).click();
+  await page.locator(`[role="tabpanel"]:not([hidden])`).first().waitFor();
+  await page.waitForLoadState('networkidle');
+  await page.waitForTimeout(500);
+}
+
 async function workspaceTab(page: Page, i: Ids, tab: string) {
   await openRecordingInWorkspace(page, i);
   await page.getByRole('tab', { name: tab }).click();
@@ -93,6 +107,16 @@ export const SCREENS: Screen[] = [
   { name: 'workspace: Source (reviewer)', who: 'reviewer', reach: openRecordingInWorkspace },
   { name: 'workspace: Recipe', who: 'analyst', reach: (page, i) => workspaceTab(page, i, 'Recipe') },
   { name: 'workspace: Outbound', who: 'analyst', reach: (page, i) => workspaceTab(page, i, 'Outbound') },
+  { name: 'workspace: Maps (decomposed)', who: 'analyst', reach: async (page, i) => {
+    await decomposedTab(page, i, 'Maps');
+    await page.getByTestId('map-normalized').waitFor({ timeout: 60_000 });
+  } },
+  { name: 'workspace: Spectrum (decomposed)', who: 'analyst', reach: async (page, i) => {
+    await decomposedTab(page, i, 'Spectrum');
+    await page.getByTestId('spectrum-plot').waitFor({ timeout: 60_000 });
+  } },
+  { name: 'workspace: Bands (decomposed)', who: 'analyst', reach: (page, i) => decomposedTab(page, i, 'Bands') },
+  { name: 'workspace: Slope check (decomposed)', who: 'analyst', reach: (page, i) => decomposedTab(page, i, 'Slope check') },
 ];
 
 interface Finding {
