@@ -201,6 +201,7 @@ export default function MapPanel(props: MapPanelProps) {
         <div aria-hidden className="pointer-events-none absolute border border-ink" style={{ left: cursorX - 4, top: cursorY - 4, width: 8, height: 8 }} />
       )}
       {showBaseline && (
+      <>
       <div
         role={focusable ? 'slider' : undefined}
         aria-hidden={focusable ? undefined : true}
@@ -219,6 +220,9 @@ export default function MapPanel(props: MapPanelProps) {
         onPointerCancel={onPointerUp}
         onKeyDown={onKey('body')}
       >
+        <span aria-hidden className="pointer-events-none absolute top-0.5 left-1 rounded-sm bg-ink/80 px-1 text-[10px] leading-tight text-foam">baseline</span>
+      </div>
+      {/* The edges are siblings of the band, not inside it: an interactive control never nests in another. */}
         {(['start', 'end'] as const).map((kind) => (
           <div
             key={kind}
@@ -231,8 +235,8 @@ export default function MapPanel(props: MapPanelProps) {
             aria-valuetext={fmt(baseline[kind])}
             tabIndex={focusable ? 0 : -1}
             data-testid={`${testId}-baseline-${kind}`}
-            className="group absolute top-0 h-full w-4 cursor-ew-resize"
-            style={kind === 'start' ? { left: -9 } : { right: -9 }}
+            className="group absolute w-4 cursor-ew-resize"
+            style={{ left: kind === 'start' ? x0 - 7 : x0 + Math.max(4, x1 - x0) - 9, top: bandTop, height: bandHeight, touchAction: 'none' }}
             onPointerDown={onPointerDown(kind)}
             onPointerMove={onPointerMove}
             onPointerUp={onPointerUp}
@@ -246,8 +250,7 @@ export default function MapPanel(props: MapPanelProps) {
             </span>
           </div>
         ))}
-        <span aria-hidden className="pointer-events-none absolute top-0.5 left-1 rounded-sm bg-ink/80 px-1 text-[10px] leading-tight text-foam">baseline</span>
-      </div>
+      </>
       )}
     </div>
       {warnings.length > 0 && (
