@@ -1,6 +1,7 @@
 import { useLayoutEffect, useRef, type ReactNode } from 'react';
 import { useElementWidth } from './useElementWidth';
 import { lineLayout, type LineLayout } from '../../lib/plot/line-plot';
+import SvgExportButton from './SvgExportButton';
 
 export interface CanvasPlotProps {
   height: number;
@@ -10,10 +11,12 @@ export interface CanvasPlotProps {
   draw: (ctx: CanvasRenderingContext2D, layout: LineLayout) => void;
   /** DOM drawn over the plot (interactive bands). */
   overlay?: (layout: LineLayout) => ReactNode;
+  /** File name (no extension) of an "Export SVG" of this plot; no button without it. */
+  exportName?: string;
 }
 
 /** A canvas that fills its container's width, repaints at the device pixel ratio, and hosts a DOM overlay. */
-export default function CanvasPlot({ height, label, testId, draw, overlay }: CanvasPlotProps) {
+export default function CanvasPlot({ height, label, testId, draw, overlay, exportName }: CanvasPlotProps) {
   const wrap = useRef<HTMLDivElement>(null);
   const canvas = useRef<HTMLCanvasElement>(null);
   const width = useElementWidth(wrap);
@@ -39,6 +42,7 @@ export default function CanvasPlot({ height, label, testId, draw, overlay }: Can
         <>
           <canvas ref={canvas} role="img" aria-label={label} data-testid={testId} data-plot-left={layout.left} data-plot-width={layout.plotWidth} className="block" style={{ width: layout.width, height: layout.height }} />
           {overlay?.(layout)}
+          {exportName !== undefined && <SvgExportButton layout={layout} draw={draw} label={label} fileName={exportName} testId={testId === undefined ? undefined : `${testId}-svg`} />}
         </>
       )}
     </div>

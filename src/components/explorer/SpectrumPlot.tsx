@@ -178,8 +178,8 @@ export default function SpectrumPlot({ spectra, recipeSpectrum, source, fit, axe
 
   return (
     <div className="flex flex-col gap-2">
-      <CanvasPlot height={340} label={`Spectra of ${channel}`} testId="spectrum-plot" draw={draw} overlay={overlay} />
-      <CanvasPlot height={180} label={`Power above the aperiodic line, ${channel}`} testId="above-line-plot" draw={drawAboveLine} />
+      <CanvasPlot height={340} label={`Spectra of ${channel}`} testId="spectrum-plot" draw={draw} overlay={overlay} exportName={`spectrum-${channel}-${axes}`} />
+      <CanvasPlot height={180} label={`Power above the aperiodic line, ${channel}`} testId="above-line-plot" draw={drawAboveLine} exportName={`above-aperiodic-${channel}`} />
     </div>
   );
 }

@@ -7,6 +7,7 @@ import { selectActive, useResultsStore } from '../../lib/client/workspace/result
 import { DEFAULT_BANDS, DEFAULT_WINDOWS, type Band, type TimeWindow } from '../../lib/client/workspace/view';
 import { baselinePoints } from '../explorer/map-model';
 import { downloadBlob } from '../explorer/download';
+import { downloadBandBarsSvg } from '../explorer/download-figure';
 import { usePanelVisible } from '../explorer/usePanelVisible';
 import NumberField from '../explorer/NumberField';
 import { useWorkspace } from '../../lib/client/workspace/store';
@@ -128,6 +129,9 @@ export default function BandsScreen(_props: WorkspaceProps) {
               </label>
               <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale" onClick={exportCsv} data-testid="export-bands">
                 Export band summary CSV
+              </button>
+              <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale" onClick={() => void downloadBandBarsSvg({ title: `Band means · ${ch} · ${unit}`, rows: rows.filter((r) => r.channel === ch), bands, windows, labels: d.labels, unit, neutral: neutralValue(method), colours: BAR_COLOURS }, `band-means-${ch}-${method}`)} data-testid="export-bands-svg">
+                Export SVG
               </button>
             </div>
             <BandBars rows={rows.filter((r) => r.channel === ch)} bands={bands} windows={windows} labels={d.labels} unit={unit} neutral={neutralValue(method)} />

@@ -13,6 +13,8 @@ import Choice from '../explorer/Choice';
 import { averageNormalized, baselinePoints, baselineWarnings, difference, snapToGrid } from '../explorer/map-model';
 import { renderMapsPng } from '../explorer/export-maps';
 import { downloadBlob, fileSafe } from '../explorer/download';
+import MapExports from '../explorer/MapExports';
+import MethodsText from '../explorer/MethodsText';
 import { useWorkspace } from '../../lib/client/workspace/store';
 
 const METHODS: { value: BaselineMethod; label: string }[] = [
@@ -165,11 +167,12 @@ export default function MapsScreen(_props: WorkspaceProps) {
       ? null
       : { t: d.times[cell.t], f: d.frequencies[cell.f], raw: rawSpec.values[cell.f * nt + cell.t], norm: normValues === null ? NaN : normValues[cell.f * nt + cell.t] };
 
+  const caption = `${ch} · baseline ${Number(baseline.start.toFixed(4))} to ${Number(baseline.end.toFixed(4))} s · ${method} · ${scope} scope · Tidemark`;
+  const stem = `maps-${fileSafe(ch ?? 'channel')}-${fileSafe(d.labels[a])}${b >= 0 ? `-minus-${fileSafe(d.labels[b])}` : ''}-${method}`;
   const exportPng = async () => {
     if (rawSpec === null || normSpec === null) return;
-    const caption = `${ch} · baseline ${Number(baseline.start.toFixed(4))} to ${Number(baseline.end.toFixed(4))} s · ${method} · ${scope} scope · Tidemark`;
     const blob = await renderMapsPng({ ...rawSpec, baseline }, { ...normSpec, baseline }, caption);
-    downloadBlob(blob, `maps-${fileSafe(ch ?? 'channel')}-${fileSafe(d.labels[a])}${b >= 0 ? `-minus-${fileSafe(d.labels[b])}` : ''}-${method}.png`);
+    downloadBlob(blob, `${stem}.png`);
   };
   const exportRecipe = () => {
     // The run's recipe with the live baseline and fit range: everything `npm run analyze` needs to give these numbers.
@@ -198,6 +201,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
           <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale" onClick={() => void exportPng()} data-testid="export-png">
             Export PNG
           </button>
+          <MapExports raw={rawSpec && { ...rawSpec, baseline }} normalized={normSpec && { ...normSpec, baseline }} caption={caption} stem={stem} maps={[...(rawSpec ? [{ key: 'raw', label: 'raw power', spec: rawSpec }] : []), ...(normSpec ? [{ key: 'normalized', label: 'normalized', spec: normSpec, notes: [caption] }] : [])]} />
           <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale" onClick={exportRecipe} data-testid="export-recipe">
             Export recipe JSON
           </button>
@@ -236,6 +240,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
         Hatched: the edge zone, where the wavelet at that frequency overlaps the epoch's edge (3σ). Dashed line: the event at 0 s. Colour limits are
         symmetric around the method's neutral value (a power ratio on a log scale centred on 1) and leave edge-zone cells out.
       </p>
+      <MethodsText />
     </div>
   );
 }

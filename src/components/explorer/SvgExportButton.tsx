@@ -1,0 +1,42 @@
+import { useState } from 'react';
+import type { LineLayout } from '../../lib/plot/line-plot';
+import { paintedSvg } from '../../lib/plot/svg/painted-svg';
+import { figureFonts } from './figure-fonts';
+import { downloadSvg } from './download-figure';
+import { fileSafe } from './download';
+
+interface Props {
+  layout: LineLayout;
+  /** The plot's own canvas painter, run again on an SVG context. */
+  draw: (ctx: CanvasRenderingContext2D, layout: LineLayout) => void;
+  label: string;
+  fileName: string;
+  testId?: string;
+}
+
+/** A small "SVG" button in a plot's top-right corner: the plot as painted, as a vector figure with fonts embedded. */
+export default function SvgExportButton({ layout, draw, label, fileName, testId }: Props) {
+  const [problem, setProblem] = useState<string | null>(null);
+  const run = async () => {
+    try {
+      setProblem(null);
+      // The painters use only the context calls SvgContext records (figure.ts Ctx plus clip).
+      const svg = await paintedSvg(layout.width, layout.height, (ctx) => draw(ctx as unknown as CanvasRenderingContext2D, layout), { fonts: await figureFonts(), title: label });
+      downloadSvg(svg, `${fileSafe(fileName)}.svg`);
+    } catch (error) {
+      setProblem(`The SVG could not be made: ${error instanceof Error ? error.message : String(error)}`);
+    }
+  };
+  return (
+    <div className="absolute top-0 right-4 flex items-center gap-2">
+      {problem !== null && (
+        <span role="alert" className="text-xs text-coral-deep">
+          {problem}
+        </span>
+      )}
+      <button type="button" className="rounded-sm border border-kelp bg-foam px-2 py-0.5 text-xs text-kelp-deep hover:bg-kelp-pale" onClick={() => void run()} aria-label={`Export SVG: ${label}`} data-testid={testId}>
+        Export SVG
+      </button>
+    </div>
+  );
+}
