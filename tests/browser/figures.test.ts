@@ -29,6 +29,76 @@ function nodeResult(r: unknown): AnalysisResult {
   return runRecipe(useWorkspace.getState().analysisRecording()!, r);
 }
 
+/**
+ * Draws a raster (PNG data URL) and an SVG onto two canvases of the raster's size in `blank` (a page with no app
+ * code) and returns the fraction of pixels whose every channel is within 8/255; writes the SVG as drawn and a diff
+ * (red: beyond the tolerance) to test-artifacts/<name>-*.png.
+ */
+async function samePicture(blank: Page, rasterSrc: string, svg: string, name: string) {
+  const c = await blank.evaluate(
+    async ({ rasterSrc, svgB64 }) => {
+      const load = async (src: string) => {
+        const img = new Image();
+        img.src = src;
+        await img.decode();
+        return img;
+      };
+      const a = await load(rasterSrc);
+      const b = await load(`data:image/svg+xml;base64,${svgB64}`);
+      // Embedded faces load asynchronously inside the SVG image: let them arrive before drawing it.
+      await new Promise((r) => setTimeout(r, 500));
+      const w = a.naturalWidth;
+      const h = a.naturalHeight;
+      const draw = (img: HTMLImageElement) => {
+        const c = document.createElement('canvas');
+        c.width = w;
+        c.height = h;
+        const ctx = c.getContext('2d')!;
+        ctx.drawImage(img, 0, 0, w, h);
+        return { c, data: ctx.getImageData(0, 0, w, h).data };
+      };
+      const pa = draw(a);
+      const pb = draw(b);
+      const diff = document.createElement('canvas');
+      diff.width = w;
+      diff.height = h;
+      const dctx = diff.getContext('2d')!;
+      const out = dctx.createImageData(w, h);
+      let same = 0;
+      for (let i = 0; i < pa.data.length; i += 4) {
+        const d = Math.max(Math.abs(pa.data[i] - pb.data[i]), Math.abs(pa.data[i + 1] - pb.data[i + 1]), Math.abs(pa.data[i + 2] - pb.data[i + 2]));
+        if (d <= 8) same++;
+        out.data[i] = d > 8 ? 255 : pa.data[i] / 3;
+        out.data[i + 1] = d > 8 ? 0 : pa.data[i + 1] / 3;
+        out.data[i + 2] = d > 8 ? 0 : pa.data[i + 2] / 3;
+        out.data[i + 3] = 255;
+      }
+      dctx.putImageData(out, 0, 0);
+      return { w, h, fraction: same / (w * h), svgShot: pb.c.toDataURL('image/png'), diffShot: diff.toDataURL('image/png') };
+    },
+    { rasterSrc, svgB64: Buffer.from(svg, 'utf8').toString('base64') },
+  );
+  fs.writeFileSync(path.join(artifactsDir, `${name}-svg.png`), Buffer.from(c.svgShot.split(',')[1], 'base64'));
+  fs.writeFileSync(path.join(artifactsDir, `${name}-diff.png`), Buffer.from(c.diffShot.split(',')[1], 'base64'));
+  console.log(`${name}: ${(100 * c.fraction).toFixed(3)} % of ${c.w} × ${c.h} pixels within 8/255 of the canvas`);
+  return c;
+}
+
+/** Chromium's DOMParser (DOM Parsing and Serialization standard, independent of our writer) on an SVG text. */
+async function parseSvg(blank: Page, text: string) {
+  return blank.evaluate((t) => {
+    const doc = new DOMParser().parseFromString(t, 'image/svg+xml');
+    return {
+      error: doc.getElementsByTagName('parsererror').length > 0 ? doc.getElementsByTagName('parsererror')[0].textContent : null,
+      root: doc.documentElement.localName,
+      ns: doc.documentElement.namespaceURI,
+      texts: Array.from(doc.getElementsByTagName('text'), (e) => e.textContent ?? ''),
+      images: Array.from(doc.getElementsByTagName('image'), (i) => (i.getAttribute('xlink:href') ?? '').slice(0, 22)),
+      fontFaces: (doc.getElementsByTagName('style')[0]?.textContent ?? '').match(/@font-face\{font-family:'[^']+'/g) ?? [],
+    };
+  }, text);
+}
+
 beforeAll(async () => {
   ({ browser, close } = await launchBrowser());
   fs.mkdirSync(artifactsDir, { recursive: true });
@@ -69,78 +139,53 @@ describe('figures and text for a paper', () => {
     // A page of its own, with no policy and no app code: Chromium's DOMParser (an XML parser independent of ours,
     // DOM Parsing and Serialization standard) reads the file; Chromium's image decoder draws both files.
     const blank = await context.newPage();
-    const parsed = await blank.evaluate((text) => {
-      const doc = new DOMParser().parseFromString(text, 'image/svg+xml');
-      return {
-        error: doc.getElementsByTagName('parsererror').length > 0 ? doc.getElementsByTagName('parsererror')[0].textContent : null,
-        root: doc.documentElement.localName,
-        ns: doc.documentElement.namespaceURI,
-        texts: Array.from(doc.getElementsByTagName('text'), (t) => t.textContent ?? ''),
-        images: Array.from(doc.getElementsByTagName('image'), (i) => (i.getAttribute('xlink:href') ?? '').slice(0, 22)),
-        fontFaces: (doc.getElementsByTagName('style')[0]?.textContent ?? '').match(/@font-face\{font-family:'[^']+'/g) ?? [],
-      };
-    }, svg);
+    const parsed = await parseSvg(blank, svg);
     expect(parsed.error).toBeNull();
     expect([parsed.root, parsed.ns]).toEqual(['svg', 'http://www.w3.org/2000/svg']);
     // Every string the canvas painted is a <text> of the SVG, as many times (tick labels, titles, units, caption).
     expect([...parsed.texts].sort()).toEqual([...canvasTexts].sort());
-    // Tick labels at "nice" 0.5 s steps over the −0.5 … 1.5 s epoch (common practice for axes), the axis titles.
-    for (const label of ['-0.5', '0', '0.5', '1', '1.5', 'time (s)', 'frequency (Hz)', 'µV²', 'dB']) expect(parsed.texts).toContain(label);
+    // Time ticks 0.2 s apart over the −0.5 … 1.5 s epoch (d3-scale's ticks(7) there: d3-array's 1-2-5 tick steps),
+    // the axis titles and the colour bars' units.
+    for (const label of ['-0.4', '-0.2', '0', '0.2', '1', '1.4', 'time (s)', 'frequency (Hz)', 'µV²', 'dB']) expect(parsed.texts).toContain(label);
     expect(parsed.images).toEqual(['data:image/png;base64,', 'data:image/png;base64,']);
     expect(parsed.fontFaces).toEqual(["@font-face{font-family:'JetBrains Mono Variable'", "@font-face{font-family:'Inter Variable'"]);
 
     // Same picture: both drawn onto canvases of the PNG's size (2560 × 752); a pixel matches when every channel is
     // within 8/255. Tolerance: at least 98 % of pixels (text antialiasing of SVG and canvas differs by a few %).
-    const comparison = await blank.evaluate(
-      async ({ pngB64, svgB64 }) => {
-        const load = async (src: string) => {
-          const img = new Image();
-          img.src = src;
-          await img.decode();
-          return img;
-        };
-        const a = await load(`data:image/png;base64,${pngB64}`);
-        const b = await load(`data:image/svg+xml;base64,${svgB64}`);
-        // Embedded faces load asynchronously inside the SVG image: let them arrive before drawing it.
-        await new Promise((r) => setTimeout(r, 500));
-        const w = a.naturalWidth;
-        const h = a.naturalHeight;
-        const draw = (img: HTMLImageElement) => {
-          const c = document.createElement('canvas');
-          c.width = w;
-          c.height = h;
-          const ctx = c.getContext('2d')!;
-          ctx.drawImage(img, 0, 0, w, h);
-          return { c, data: ctx.getImageData(0, 0, w, h).data };
-        };
-        const pa = draw(a);
-        const pb = draw(b);
-        const diff = document.createElement('canvas');
-        diff.width = w;
-        diff.height = h;
-        const dctx = diff.getContext('2d')!;
-        const out = dctx.createImageData(w, h);
-        let same = 0;
-        let worst = 0;
-        for (let i = 0; i < pa.data.length; i += 4) {
-          const d = Math.max(Math.abs(pa.data[i] - pb.data[i]), Math.abs(pa.data[i + 1] - pb.data[i + 1]), Math.abs(pa.data[i + 2] - pb.data[i + 2]));
-          if (d <= 8) same++;
-          if (d > worst) worst = d;
-          out.data[i] = d > 8 ? 255 : pa.data[i] / 3;
-          out.data[i + 1] = d > 8 ? 0 : pa.data[i + 1] / 3;
-          out.data[i + 2] = d > 8 ? 0 : pa.data[i + 2] / 3;
-          out.data[i + 3] = 255;
-        }
-        dctx.putImageData(out, 0, 0);
-        return { w, h, fraction: same / (w * h), worst, svgShot: pb.c.toDataURL('image/png'), diffShot: diff.toDataURL('image/png') };
-      },
-      { pngB64: png.bytes.toString('base64'), svgB64: Buffer.from(svg, 'utf8').toString('base64') },
-    );
-    fs.writeFileSync(path.join(artifactsDir, 'figures-svg-rendered.png'), Buffer.from(comparison.svgShot.split(',')[1], 'base64'));
-    fs.writeFileSync(path.join(artifactsDir, 'figures-svg-diff.png'), Buffer.from(comparison.diffShot.split(',')[1], 'base64'));
-    console.log(`SVG vs canvas: ${(100 * comparison.fraction).toFixed(3)} % of ${comparison.w} × ${comparison.h} pixels within 8/255 (worst ${comparison.worst})`);
+    const comparison = await samePicture(blank, `data:image/png;base64,${png.bytes.toString('base64')}`, svg, 'figures-maps');
     expect([comparison.w, comparison.h]).toEqual([2560, 752]);
     expect(comparison.fraction).toBeGreaterThanOrEqual(0.98);
+    await blank.close();
+  });
+
+  it('exports the spectrum, the band bars and the scalp map as SVG that parse, with their labels as text', async () => {
+    const blank = await context.newPage();
+    await page.getByRole('tab', { name: 'Spectrum' }).click();
+    const plot = page.getByTestId('spectrum-plot');
+    await plot.waitFor();
+    await page.getByTestId('fit-readout').waitFor();
+    const spectrum = (await download('spectrum-plot-svg')).bytes.toString('utf8');
+    const parsed = await parseSvg(blank, spectrum);
+    expect(parsed.error).toBeNull();
+    for (const label of ['frequency (Hz)', 'power (µV²/Hz)']) expect(parsed.texts).toContain(label);
+    expect(parsed.fontFaces).toHaveLength(2);
+    // The same picture as the live canvas (device pixel ratio 1 here), same 98 % / 8/255 tolerance as the maps.
+    const live = await plot.evaluate((c: HTMLCanvasElement) => c.toDataURL('image/png'));
+    const comparison = await samePicture(blank, live, spectrum, 'figures-spectrum');
+    expect(comparison.fraction).toBeGreaterThanOrEqual(0.98);
+
+    const scalp = await parseSvg(blank, (await download('scalp-exponent-svg')).bytes.toString('utf8'));
+    expect(scalp.error).toBeNull();
+    for (const label of DEMO.channels) expect(scalp.texts).toContain(label);
+
+    await page.getByRole('tab', { name: 'Bands' }).click();
+    await page.getByTestId('band-plot').waitFor();
+    const bars = await parseSvg(blank, (await download('export-bands-svg')).bytes.toString('utf8'));
+    expect(bars.error).toBeNull();
+    for (const label of ['lamp-watch', 'oar-pull', 'dB']) expect(bars.texts).toContain(label);
+    expect(bars.texts.some((t) => /Hz$/.test(t))).toBe(true);
+    await page.screenshot({ path: path.join(artifactsDir, 'figures-bands.png'), fullPage: true });
+    await page.getByRole('tab', { name: 'Maps' }).click();
     await blank.close();
   });
 

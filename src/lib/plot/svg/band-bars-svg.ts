@@ -39,14 +39,16 @@ export function bandBarsSvg(input: BandBarsInput): string {
   const { rows, bands, windows, labels, unit, neutral, colours } = input;
   const groups = windows.flatMap((w) => labels.map((l) => ({ w, l })));
   const groupWidth = bands.length * 18 + 24;
-  const width = Math.max(360, groups.length * groupWidth + 70);
+  // At least 460 px: room for the caution line at 10 px.
+  const width = Math.max(460, groups.length * groupWidth + 70);
+  const perRow = Math.max(1, Math.floor((width - 16) / 170));
   const head = 24;
   const plotHeight = 240;
   const top = head + 16;
   const bottom = head + plotHeight - 44;
   const left = 56;
   const legendY = head + plotHeight + 8;
-  const height = legendY + 22 * Math.ceil(bands.length / 4) + 24;
+  const height = legendY + 22 * Math.ceil(bands.length / perRow) + 24;
   const finite = rows.map((r) => r.value).filter(Number.isFinite);
   const m = Math.max(1e-9, ...finite.map((v) => Math.abs(v - neutral)));
   const y = (v: number) => top + ((neutral + m - v) / (2 * m)) * (bottom - top);
@@ -71,8 +73,8 @@ export function bandBarsSvg(input: BandBarsInput): string {
     out.push(`<text x="${n(cx)}" y="${n(bottom + 30)}" font-family="${escapeXml(MONO)}" font-size="10" fill="${INK_SOFT}" text-anchor="middle">${escapeXml(g.l)}</text>`);
   });
   bands.forEach((b, i) => {
-    const lx = 8 + (i % 4) * 170;
-    const ly = legendY + 22 * Math.floor(i / 4);
+    const lx = 8 + (i % perRow) * 170;
+    const ly = legendY + 22 * Math.floor(i / perRow);
     out.push(`<rect x="${lx}" y="${ly}" width="12" height="12" fill="${escapeXml(colours[i % colours.length])}"/>`);
     out.push(text(lx + 18, ly + 10, `${b.name} ${label(b.lowHz)}–${label(b.highHz)} Hz`));
   });

@@ -61,6 +61,15 @@ describe('mapPanelSvg', () => {
     for (const label of ['-3', '0', '3']) expect(t).toContain(label);
   });
 
+  it('puts canvas "top" and "middle" text on its alphabetic baseline, shifted by the em box (no dominant-baseline)', async () => {
+    const svg = await mapPanelSvg(layout, spec);
+    const bottom = layout.top + layout.plotHeight;
+    // Time ticks: textBaseline "top" at bottom + 6; JetBrains Mono's em-box ascent is 1020/1320 em (its OS/2 table).
+    const y = Number(/<text x="[\d.]+" y="([\d.]+)"[^>]*>0\.5<\/text>/.exec(svg)![1]);
+    expect(y).toBeCloseTo(bottom + 6 + (1020 / 1320) * 11, 2);
+    expect(svg).not.toContain('dominant-baseline');
+  });
+
   it('rotates the frequency title with a transform and keeps the dashed event line at 0 s', async () => {
     const svg = await mapPanelSvg(layout, spec);
     expect(svg).toMatch(/<text transform="matrix\(0 -1 1 0 12 [\d.]+\)"[^>]*>frequency \(Hz\)<\/text>/);
