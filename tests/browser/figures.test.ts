@@ -158,7 +158,7 @@ describe('figures and text for a paper', () => {
     await blank.close();
   });
 
-  it('exports the spectrum, the band bars and the scalp map as SVG that parse, with their labels as text', async () => {
+  it('exports the spectrum and the band bars as SVG that parse, with their labels as text', async () => {
     const blank = await context.newPage();
     await page.getByRole('tab', { name: 'Spectrum' }).click();
     const plot = page.getByTestId('spectrum-plot');
@@ -173,10 +173,6 @@ describe('figures and text for a paper', () => {
     const live = await plot.evaluate((c: HTMLCanvasElement) => c.toDataURL('image/png'));
     const comparison = await samePicture(blank, live, spectrum, 'figures-spectrum');
     expect(comparison.fraction).toBeGreaterThanOrEqual(0.98);
-
-    const scalp = await parseSvg(blank, (await download('scalp-exponent-svg')).bytes.toString('utf8'));
-    expect(scalp.error).toBeNull();
-    for (const label of DEMO.channels) expect(scalp.texts).toContain(label);
 
     await page.getByRole('tab', { name: 'Bands' }).click();
     await page.getByTestId('band-plot').waitFor();

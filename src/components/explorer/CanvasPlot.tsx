@@ -1,7 +1,7 @@
+import SvgExportButton from './SvgExportButton';
 import { useLayoutEffect, useRef, type ReactNode } from 'react';
 import { useElementWidth } from './useElementWidth';
 import { lineLayout, type LineLayout } from '../../lib/plot/line-plot';
-import SvgExportButton from './SvgExportButton';
 
 export interface CanvasPlotProps {
   height: number;

@@ -46,7 +46,12 @@ export default function MapExports({ raw, normalized, caption, stem, maps }: Map
   const exportCsv = () => {
     if (chosen === null) return;
     const s = chosen.spec;
-    downloadCsv(mapCsv({ quantity: s.title, unit: s.unit, times: s.times, frequencies: s.frequencies, values: s.values, notes: chosen.notes }), `${stem}-${fileSafe(chosen.key)}.csv`);
+    try {
+      setProblem(null);
+      downloadCsv(mapCsv({ quantity: s.title, unit: s.unit, times: s.times, frequencies: s.frequencies, values: s.values, notes: chosen.notes }), `${stem}-${fileSafe(chosen.key)}.csv`);
+    } catch (error) {
+      setProblem(`The CSV of the ${chosen.label} map could not be made: ${error instanceof Error ? error.message : String(error)}`);
+    }
   };
 
   return (

@@ -1,6 +1,5 @@
 import { interpolateCividis } from 'd3-scale-chromatic';
 import { scalpPosition } from '../../lib/plot/scalp-positions';
-import { downloadScalpSvg } from './download-figure';
 
 export interface ScalpMapProps {
   title: string;
@@ -62,9 +61,6 @@ export default function ScalpMap({ title, unit, values, testId }: ScalpMapProps)
       <figcaption className="text-xs text-ink-soft">
         {title} ({unit}){unplaced.length > 0 ? ` · not a 10-20 name, not drawn: ${unplaced.map((p) => p.channel).join(', ')}` : ''}
       </figcaption>
-      <button type="button" className="mt-1 rounded-sm border border-kelp px-2 py-0.5 text-xs text-kelp-deep hover:bg-kelp-pale" onClick={() => void downloadScalpSvg({ title, unit, values }, `scalp-${title}`)} data-testid={testId === undefined ? undefined : `${testId}-svg`}>
-        Export SVG
-      </button>
     </figure>
   );
 }

@@ -1,5 +1,4 @@
 import { bandBarsSvg, type BandBarsInput } from '../../lib/plot/svg/band-bars-svg';
-import { scalpMapSvg, type ScalpSvgInput } from '../../lib/plot/svg/scalp-svg';
 import { downloadBlob, fileSafe } from './download';
 import { figureFonts } from './figure-fonts';
 
@@ -16,9 +15,4 @@ export function downloadCsv(csv: string, fileName: string): void {
 /** The Bands screen's bars as an SVG download, fonts embedded. */
 export async function downloadBandBarsSvg(input: Omit<BandBarsInput, 'fonts'>, fileName: string): Promise<void> {
   downloadSvg(bandBarsSvg({ ...input, fonts: await figureFonts() }), `${fileSafe(fileName)}.svg`);
-}
-
-/** A scalp map as an SVG download, fonts embedded. */
-export async function downloadScalpSvg(input: Omit<ScalpSvgInput, 'fonts'>, fileName: string): Promise<void> {
-  downloadSvg(scalpMapSvg({ ...input, fonts: await figureFonts() }), `${fileSafe(fileName)}.svg`);
 }

@@ -1,9 +1,6 @@
-// Band bars and the scalp map as standalone SVG. A scenario of our own: a "foghorn" and a "buoy" cue, two bands,
-// one window; electrode names from the 10-20 system (common practice), one channel without a 10-20 name.
-import { interpolateCividis } from 'd3-scale-chromatic';
+// Band bars as a standalone SVG. A scenario of our own: a "foghorn" and a "buoy" cue, two bands, one window.
 import { describe, expect, it } from 'vitest';
 import { bandBarsSvg, type BandBarRow } from '../../../../../src/lib/plot/svg/band-bars-svg';
-import { scalpMapSvg } from '../../../../../src/lib/plot/svg/scalp-svg';
 
 const texts = (svg: string) => [...svg.matchAll(/<text\b[^>]*>([^<]*)<\/text>/g)].map((m) => m[1]);
 const rects = (svg: string) => [...svg.matchAll(/<rect x="([-\d.]+)" y="([-\d.]+)" width="14" height="([-\d.]+)" fill="([^"]+)"><title>([^<]*)<\/title>/g)].map((m) => ({ y: Number(m[2]), h: Number(m[3]), fill: m[4], title: m[5] }));
@@ -36,27 +33,5 @@ describe('bandBarsSvg', () => {
     const t = texts(svg);
     for (const s of ['-2', '0', '2', 'dB', 'early', 'foghorn', 'buoy', 'theta 4–8 Hz', 'alpha 8–13 Hz', 'Band means · Cz · dB']) expect(t).toContain(s);
     expect(t.some((s) => s.includes('not a medical device'))).toBe(true);
-  });
-});
-
-describe('scalpMapSvg', () => {
-  const svg = scalpMapSvg({ title: 'Aperiodic exponent', unit: 'χ', values: [{ channel: 'Cz', value: 1.5 }, { channel: 'Oz', value: 2.5 }, { channel: 'Fz', value: null }, { channel: 'EMG1', value: 3 }] });
-
-  it('places Cz at the centre and Oz straight behind it, coloured on cividis between the extremes', () => {
-    const discs = [...svg.matchAll(/<circle cx="([-\d.]+)" cy="([-\d.]+)" r="7" fill="([^"]+)"/g)].map((m) => ({ x: Number(m[1]), y: Number(m[2]), fill: m[3] }));
-    expect(discs).toHaveLength(3);
-    expect([discs[0].x, discs[0].y]).toEqual([0, 0]);
-    // Oz on the equator (polar angle 90°, common practice for the 10-20 layout) at radius 1 → 100/1.25 units, behind.
-    expect(discs[1].x).toBeCloseTo(0, 6);
-    expect(discs[1].y).toBeCloseTo(80, 6);
-    // Limits over finite values (1.5 … 3, EMG1 included though not drawn): d3-scale-chromatic's cividis at t.
-    expect(discs[0].fill).toBe(interpolateCividis(0));
-    expect(discs[1].fill).toBe(interpolateCividis((2.5 - 1.5) / 1.5));
-    expect(discs[2].fill).toBe('#e9e0cf');
-  });
-
-  it('names the electrodes, the colour-bar limits and the channels it could not place', () => {
-    const t = texts(svg);
-    for (const s of ['Cz', 'Oz', 'Fz', '1.50', '3.00', 'Aperiodic exponent (χ)', 'not a 10-20 name, not drawn: EMG1']) expect(t).toContain(s);
   });
 });
