@@ -164,6 +164,7 @@ describe('figures and text for a paper', () => {
     const plot = page.getByTestId('spectrum-plot');
     await plot.waitFor();
     await page.getByTestId('fit-readout').waitFor();
+    await page.screenshot({ path: path.join(artifactsDir, 'figures-spectrum-screen.png') });
     const spectrum = (await download('spectrum-plot-svg')).bytes.toString('utf8');
     const parsed = await parseSvg(blank, spectrum);
     expect(parsed.error).toBeNull();

@@ -60,7 +60,7 @@ export default function MapExports({ raw, normalized, caption, stem, maps }: Map
         Export SVG
       </button>
       <label className="flex flex-col gap-0.5 text-xs text-ink-soft">
-        Matrix
+        CSV of the map
         <select className="rounded-sm border border-shell bg-foam px-2 py-1 text-sm text-ink" value={chosen?.key ?? ''} onChange={(e) => setWhich(e.target.value)} data-testid="csv-map">
           {maps.map((m) => (
             <option key={m.key} value={m.key}>

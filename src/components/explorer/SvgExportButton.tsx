@@ -34,7 +34,7 @@ export default function SvgExportButton({ layout, draw, label, fileName, testId 
           {problem}
         </span>
       )}
-      <button type="button" className="rounded-sm border border-kelp bg-foam px-2 py-0.5 text-xs text-kelp-deep hover:bg-kelp-pale" onClick={() => void run()} aria-label={`Export SVG: ${label}`} data-testid={testId}>
+      <button type="button" className="rounded-sm border border-kelp bg-foam px-2 py-0 text-xs leading-4 text-kelp-deep hover:bg-kelp-pale" onClick={() => void run()} aria-label={`Export SVG: ${label}`} data-testid={testId}>
         Export SVG
       </button>
     </div>
