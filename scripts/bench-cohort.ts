@@ -1,5 +1,5 @@
 /**
- * `npm run bench:cohort` (needs DATABASE_URL of a migrated database, e.g. the one `npm start` serves): the Cohort
+ * `npm run bench:cohort` (on DATABASE_URL when set, else on a private cluster it starts and stops itself): the Cohort
  * screen's first paint for 200 subjects × 6 bands × 4 windows × 64 channels × 2 conditions (issue 12, "Numbers":
  * ≤ 1 s, server query plus render). Writes a bench-only team and study with 200 sessions and summaries, times
  * getCohortOverview (the page's query) and React's server render of the Cohort island, five times each, prints
@@ -9,11 +9,22 @@
 import { performance } from 'node:perf_hooks';
 import { loadavg } from 'node:os';
 import { eq } from 'drizzle-orm';
-import { db, pool } from '../src/db/client';
-import { analysisSessions, recipeVersions, studies, subjects, summaries, teams, users } from '../src/db/schema';
-import { getCohortOverview } from '../src/db/queries/cohort';
-import { jsonHash } from '../src/lib/crypto/review-hash';
-import { newUserId } from '../src/lib/crypto/ids';
+import { migrate, startCluster } from './lib/bootstrap.mjs';
+
+// Without DATABASE_URL, a private cluster of its own (127.0.0.1 only), a fresh database, migrated; stopped at the end.
+let cluster: Awaited<ReturnType<typeof startCluster>> | null = null;
+if (!process.env.DATABASE_URL) {
+  const port = Number(process.env.TIDEMARK_BENCH_PG_PORT ?? 54431);
+  cluster = await startCluster({ name: 'pg-bench-cohort', port });
+  cluster.ensureDatabase('tidemark_bench_cohort', { fresh: true });
+  migrate(cluster.url('tidemark_bench_cohort'));
+  process.env.DATABASE_URL = cluster.url('tidemark_bench_cohort');
+}
+const { db, pool } = await import('../src/db/client');
+const { analysisSessions, recipeVersions, studies, subjects, summaries, teams, users } = await import('../src/db/schema');
+const { getCohortOverview } = await import('../src/db/queries/cohort');
+const { jsonHash } = await import('../src/lib/crypto/review-hash');
+const { newUserId } = await import('../src/lib/crypto/ids');
 
 // React's production build, as the served app uses it (the development build adds checks that cost several times more).
 process.env.NODE_ENV = 'production';
@@ -28,7 +39,6 @@ const CHANNELS = Array.from({ length: 64 }, (_, i) => `E${i + 1}`);
 const CONDITIONS = ['gull', 'reed'];
 
 async function main() {
-  if (!process.env.DATABASE_URL) throw new Error('bench:cohort needs DATABASE_URL (a migrated database)');
   const stamp = Date.now().toString(36);
   const [user] = await db.insert(users).values({ id: newUserId(), email: `bench-${stamp}@bench.example`, displayName: 'Bench', passwordHash: 'x' }).returning();
   const [team] = await db.insert(teams).values({ name: `Bench ${stamp}`, slug: `bench-${stamp}` }).returning();
@@ -74,6 +84,7 @@ async function main() {
     await db.delete(teams).where(eq(teams.id, team.id));
     await db.delete(users).where(eq(users.id, user.id));
     await pool.end();
+    cluster?.stop();
   }
 }
 

@@ -19,6 +19,9 @@ const SMTP_PORT = 2535 + SLOT;
 const INPUTS = Number(process.env.TIDEMARK_BENCH_INPUTS ?? 200);
 const DRAG_STEPS = Number(process.env.TIDEMARK_BENCH_DRAG_STEPS ?? 200);
 const FRAME_BUDGET_MS = 1000 / 60;
+// requestAnimationFrame timestamps are coarsened by Chromium (100 µs steps here), so one on-time 60 Hz frame reads as
+// 16.6 to 16.8 ms. A frame is late only when its interval exceeds the budget by more than two such steps.
+const TIMER_STEP_MS = 0.1;
 process.env.TIDEMARK_OUT_DIR = `dist-${SLOT}`;
 // The hooks the bench drives exist only in the demo flavour (what `npm test` builds), never in production.
 process.env.TIDEMARK_BUILD = 'demo';
@@ -190,9 +193,10 @@ await runMain(async () => {
       if (run.method === 'decibel') {
         const drag = await traceDrag(browser, page, DRAG_STEPS);
         const worst = drag.frames.length === 0 ? NaN : Math.max(...drag.frames);
-        const over = drag.frames.filter((f) => f > FRAME_BUDGET_MS).length;
+        const late = drag.frames.filter((f) => f > FRAME_BUDGET_MS + 2 * TIMER_STEP_MS).length;
+        const dropped = drag.frames.filter((f) => f >= 1.5 * FRAME_BUDGET_MS).length;
         console.log(
-          `drag ${label.padEnd(47)} ${drag.moves} moves, ${drag.measures} re-normalizations, ${drag.frames.length} frames: worst frame ${worst.toFixed(2)} ms, ${over} above ${FRAME_BUDGET_MS.toFixed(1)} ms; longest main-thread task ${drag.longestTask.toFixed(2)} ms (target: no frame above ${FRAME_BUDGET_MS.toFixed(1)} ms: ${over === 0 ? 'met' : 'MISSED'})`,
+          `drag ${label.padEnd(47)} ${drag.moves} moves, ${drag.measures} re-normalizations, ${drag.frames.length} frames: worst frame ${worst.toFixed(2)} ms, ${late} later than ${FRAME_BUDGET_MS.toFixed(1)} ms (+${2 * TIMER_STEP_MS} ms timer steps), ${dropped} dropped (≥ 1.5 frames); longest main-thread task ${drag.longestTask.toFixed(2)} ms (target: no frame above ${FRAME_BUDGET_MS.toFixed(1)} ms: ${late === 0 ? 'met' : 'MISSED'})`,
         );
       }
     }

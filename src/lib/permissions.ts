@@ -30,6 +30,8 @@ export const actions = [
   'cohort:covariates',
   'cohort:design',
   'cohort:includeUnsigned',
+  'slopeReport:view',
+  'slopeReport:save',
 ] as const;
 export type Action = (typeof actions)[number];
 
@@ -39,15 +41,17 @@ const matrix: Record<Role, ReadonlySet<Action>> = {
   lead: new Set<Action>([
     'team:view', 'study:view', 'study:create', 'study:edit', 'member:view', 'member:invite', 'member:manage',
     'analysisSession:signOff', 'analysisSession:return', 'analysisSession:sign', 'note:view', 'note:create', 'note:resolve',
-    'summary:import', 'audit:view', 'cohort:covariates', 'cohort:design', 'cohort:includeUnsigned',
+    'summary:import', 'audit:view', 'cohort:covariates', 'cohort:design', 'cohort:includeUnsigned', 'slopeReport:view',
+    'slopeReport:save',
   ]),
   // Creates and edits own analysis sessions and submits them for review.
   analyst: new Set<Action>([
     'team:view', 'study:view', 'member:view', 'analysisSession:create', 'analysisSession:editOwn',
     'analysisSession:submit', 'note:view', 'note:create', 'note:resolve', 'summary:import', 'cohort:covariates',
+    'slopeReport:view', 'slopeReport:save',
   ]),
   // Reads sessions and leaves notes; signs nothing.
-  reviewer: new Set<Action>(['team:view', 'study:view', 'member:view', 'note:view', 'note:create', 'note:resolve']),
+  reviewer: new Set<Action>(['team:view', 'study:view', 'member:view', 'note:view', 'note:create', 'note:resolve', 'slopeReport:view']),
 };
 
 export function isRole(value: unknown): value is Role {

@@ -57,9 +57,6 @@ export const PENDING_SCREEN_IMPORTS: readonly { file: string; module: string }[]
   { file: 'src/components/source/RejectionPanel.tsx', module: 'src/lib/analysis/channel-types' },
   { file: 'src/components/source/ConditionsPanel.tsx', module: 'src/lib/analysis/conditions' },
   { file: 'src/components/workspace/RecipeScreen.tsx', module: 'src/lib/analysis/condition-recording' },
-  { file: 'src/components/explorer/SpectrumPlot.tsx', module: 'src/lib/analysis/aperiodic' },
-  { file: 'src/components/workspace/ResolutionTable.tsx', module: 'src/lib/analysis/frequency-grid' },
-  { file: 'src/components/workspace/ResolutionTable.tsx', module: 'src/lib/analysis/wavelet' },
 ];
 
 /** TEMPORARY: any other known upward import awaiting its fix (none today). Same staleness rule as above. */

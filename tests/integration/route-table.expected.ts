@@ -104,6 +104,9 @@ export const routeTable: Record<string, Expected> = {
   'PUT /api/studies/[studyId]/cohort/covariates': row(404, 400, 400, 403, 401, 404),
   'GET /api/studies/[studyId]/cohort/design':     row(404, 200, 200, 200, 401, 404),
   'PUT /api/studies/[studyId]/cohort/design':     row(404, 400, 403, 403, 401, 404),
+  // Slope check reports (issue 15).
+  'GET /api/studies/[studyId]/slope-reports':     row(404, 200, 200, 200, 401, 404),
+  'POST /api/studies/[studyId]/slope-reports':    row(404, 400, 400, 403, 401, 404),
   'GET /api/analysis-sessions/[sessionId]':      row(404, 200, 200, 200, 401, 404),
   'GET /api/analysis-sessions/[sessionId]/recipe-versions':  row(404, 200, 200, 200, 401, 404),
   'POST /api/analysis-sessions/[sessionId]/recipe-versions': row(404, 403, 400, 403, 401, 404),

@@ -26,7 +26,7 @@ export default function ConditionFits({ byCondition, labels, selected, onSelect 
   }
   const channels = byCondition[labels[0]]?.map((f) => f.channel) ?? [];
   return (
-    <div className="overflow-x-auto">
+    <div className="overflow-x-auto" tabIndex={0} role="region" aria-label="Aperiodic fit per condition">
       <table className="data-table text-sm" data-testid="condition-fits">
         <caption className="px-2 pb-1 text-left text-sm font-semibold">Aperiodic fit per condition (the run's fit range, kept epochs of each condition)</caption>
         <thead>

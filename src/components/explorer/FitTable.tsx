@@ -43,7 +43,7 @@ export default function FitTable({ rows, selected, onSelect }: { rows: FitRow[];
   const [sorting, setSorting] = useState<SortingState>([]);
   const table = useReactTable({ data: rows, columns, state: { sorting }, sortDescFirst: false, onSortingChange: setSorting, getCoreRowModel: getCoreRowModel(), getSortedRowModel: getSortedRowModel() });
   return (
-    <div className="overflow-x-auto">
+    <div className="overflow-x-auto" tabIndex={0} role="region" aria-label="Aperiodic fit of every channel">
       <table className="w-full font-mono text-xs" data-testid="fit-table">
         <thead>
           {table.getHeaderGroups().map((g) => (

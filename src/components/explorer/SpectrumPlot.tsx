@@ -1,10 +1,11 @@
-import { useMemo, useRef, type PointerEvent, type KeyboardEvent } from 'react';
-import { aperiodicLine as fitLine, type AperiodicFit, type AperiodicOutcome } from '../../lib/analysis/aperiodic';
+import { useId, useMemo, useRef, type PointerEvent, type KeyboardEvent } from 'react';
+import type { AperiodicOutcome } from '../../lib/analysis/aperiodic';
 import type { EpochSpectra } from '../../lib/analysis/epoch-spectra';
 import type { RecipeSpectrum } from '../../lib/client/workspace/spectra';
 import type { SpectrumAxes } from '../../lib/client/workspace/view';
-import { axisScale, drawLineAxes, drawSeries, type LineLayout, type Series } from '../../lib/plot/line-plot';
-import { CORAL, INK } from '../../lib/plot/figure';
+import type { LineLayout } from '../../lib/plot/line-plot';
+import { drawAboveLine, drawSpectrum, spectrumPlotModel, spectrumX, SPREAD_QUANTILES, type SpectrumPlotModel } from '../../lib/plot/spectrum-plot';
+import { formatTick } from '../../lib/plot/axes';
 import CanvasPlot from './CanvasPlot';
 
 type Fit = AperiodicOutcome;
@@ -55,38 +56,24 @@ interface SpectrumPlotProps {
   fitRange: [number, number];
   onFitRange: (r: [number, number]) => void;
   channel: string;
+  /** Each epoch's spectrum as a thin line (the spread band is always drawn). */
+  showEpochs: boolean;
 }
 
-export default function SpectrumPlot({ spectra, recipeSpectrum, source, fit, axes, fitRange, onFitRange, channel }: SpectrumPlotProps) {
+/** Height of the lane above the plot where the fit-range handles sit, clear of tick labels and titles. */
+const LANE = 30;
+
+export default function SpectrumPlot({ spectra, recipeSpectrum, source, fit, axes, fitRange, onFitRange, channel, showEpochs }: SpectrumPlotProps) {
   const { frequencies, perTrial, trials } = spectra;
-  // The thick line is the recipe's spectrum, kept to the per-epoch spectra's range for the drawing.
-  const [mf, mean] = useMemo(() => {
-    const lo = frequencies[0];
-    const hi = frequencies[frequencies.length - 1];
-    const idx: number[] = [];
-    recipeSpectrum.frequencies.forEach((f, i) => {
-      if (f >= lo - 1e-9 && f <= hi + 1e-9) idx.push(i);
-    });
-    return [Float64Array.from(idx, (i) => recipeSpectrum.frequencies[i]), Float64Array.from(idx, (i) => recipeSpectrum.psd[i])];
-  }, [frequencies, recipeSpectrum]);
-  const bins = frequencies.length;
-  const xLog = axes === 'log-log';
-  const yLog = axes !== 'linear';
-  const fLo = xLog ? Math.max(frequencies[0], frequencies.find((f) => f > 0) ?? 1) : frequencies[0];
-  const fHi = frequencies[bins - 1];
-  let pMin = Infinity;
-  let pMax = 0;
-  for (const values of [perTrial, mean]) {
-    for (let i = 0; i < values.length; i++) {
-      const v = values[i];
-      if (v > 0 && v < pMin) pMin = v;
-      if (v > pMax) pMax = v;
-    }
-  }
   const f = fit?.fit ?? null;
-  const fitXs = frequencies.filter((x) => x >= fitRange[0] - 1e-9 && x <= fitRange[1] + 1e-9 && x > 0);
-  const flat = Float64Array.from(mf, (x, i) => (f === null || x <= 0 ? NaN : Math.log10(mean[i]) - fitLine(f, x)));
-  const drag = useRef<{ kind: 'low' | 'high' | 'body'; x0: number; r0: [number, number]; x: ReturnType<typeof axisScale> } | null>(null);
+  const model = useMemo(
+    () => spectrumPlotModel({ frequencies, perTrial, trials, recipe: recipeSpectrum, fit: f, fitRange, axes, showEpochs }),
+    [frequencies, perTrial, trials, recipeSpectrum, f, fitRange, axes, showEpochs],
+  );
+  const bins = frequencies.length;
+  const fLo = model.xDomain[0];
+  const fHi = model.xDomain[1];
+  const drag = useRef<{ kind: 'low' | 'high' | 'body'; x0: number; r0: [number, number]; x: ReturnType<typeof spectrumX> } | null>(null);
   const binHz = bins > 1 ? frequencies[1] - frequencies[0] : 1;
   const clampRange = (r: [number, number]): [number, number] => {
     const lo = Math.max(fLo, Math.min(r[0], r[1] - 3 * binHz));
@@ -94,38 +81,15 @@ export default function SpectrumPlot({ spectra, recipeSpectrum, source, fit, axe
     return [Number(lo.toFixed(4)), Number(hi.toFixed(4))];
   };
   const snapHz = (v: number) => Math.round(v / binHz) * binHz;
+  const what = source === 'epochs' ? 'kept epochs' : 'whole recording';
+  const pct = SPREAD_QUANTILES.map((q) => `${Math.round(q * 100)}th`).join('–');
+  const title = `${channel}: ${what} (ink), ${pct} percentile of ${trials} epochs (band)${showEpochs ? ', each epoch (thin)' : ''}, aperiodic fit (coral, dashed)`;
 
-  const draw = (ctx: CanvasRenderingContext2D, layout: LineLayout) => {
-    const x = axisScale(xLog ? 'log' : 'linear', fLo, fHi, layout.left, layout.left + layout.plotWidth);
-    const y = axisScale(yLog ? 'log' : 'linear', yLog ? pMin : 0, pMax, layout.top + layout.plotHeight, layout.top);
-    const series: Series[] = [];
-    for (let k = 0; k < trials; k++) series.push({ xs: frequencies, ys: perTrial.subarray(k * bins, (k + 1) * bins), colour: '#3b5366', width: 0.75, alpha: 0.22 });
-    series.push({ xs: mf, ys: mean, colour: INK, width: 2.5 });
-    if (f !== null) series.push({ xs: fitXs, ys: fitXs.map((v) => Math.pow(10, fitLine(f, v))), colour: CORAL, width: 2, dash: [6, 3] });
-    ctx.save();
-    ctx.globalAlpha = 0.5;
-    ctx.fillStyle = '#dcebe5';
-    ctx.fillRect(x(fitRange[0]), layout.top, x(fitRange[1]) - x(fitRange[0]), layout.plotHeight);
-    ctx.restore();
-    drawSeries(ctx, layout, x, y, series);
-    drawLineAxes(ctx, layout, x, y, { xLog, yLog, xTitle: 'frequency (Hz)', yTitle: 'power (µV²/Hz)', title: `${channel}: ${trials} epochs (thin), ${source === 'epochs' ? 'kept epochs' : 'whole recording'} (thick), aperiodic fit (dashed)` });
-  };
-  const drawAboveLine = (ctx: CanvasRenderingContext2D, layout: LineLayout) => {
-    const x = axisScale(xLog ? 'log' : 'linear', fLo, fHi, layout.left, layout.left + layout.plotWidth);
-    let lo = Infinity;
-    let hi = -Infinity;
-    for (const v of flat) if (Number.isFinite(v)) (lo = Math.min(lo, v)), (hi = Math.max(hi, v));
-    if (!(hi > lo)) (lo = -1), (hi = 1);
-    const y = axisScale('linear', Math.min(lo, -0.1), Math.max(hi, 0.1), layout.top + layout.plotHeight, layout.top);
-    drawSeries(ctx, layout, x, y, [
-      { xs: [fLo, fHi], ys: [0, 0], colour: '#c9b896', width: 1, dash: [3, 3] },
-      { xs: mf, ys: flat, colour: INK, width: 2 },
-    ]);
-    drawLineAxes(ctx, layout, x, y, { xLog, yLog: false, xTitle: 'frequency (Hz)', yTitle: 'log10 P − fit', title: 'Above the aperiodic line: log10 power minus the fit' });
-  };
+  const draw = (ctx: CanvasRenderingContext2D, layout: LineLayout) => drawSpectrum(ctx, layout, model, title);
+  const drawAbove = (ctx: CanvasRenderingContext2D, layout: LineLayout) => drawAboveLine(ctx, layout, model);
 
   const overlay = (layout: LineLayout) => {
-    const x = axisScale(xLog ? 'log' : 'linear', fLo, fHi, layout.left, layout.left + layout.plotWidth);
+    const x = spectrumX(model, layout);
     const x0 = x(fitRange[0]);
     const x1 = x(fitRange[1]);
     const down = (kind: 'low' | 'high' | 'body') => (e: PointerEvent<HTMLDivElement>) => {
@@ -147,39 +111,100 @@ export default function SpectrumPlot({ spectra, recipeSpectrum, source, fit, axe
       drag.current = null;
     };
     const key = (kind: 'low' | 'high') => (e: KeyboardEvent<HTMLDivElement>) => {
-      if (e.key !== 'ArrowLeft' && e.key !== 'ArrowRight') return;
+      const steps: Record<string, number> = { ArrowLeft: -binHz, ArrowDown: -binHz, ArrowRight: binHz, ArrowUp: binHz, PageDown: -5, PageUp: 5 };
+      let step = steps[e.key];
+      if (step === undefined && e.key !== 'Home' && e.key !== 'End') return;
       e.preventDefault();
-      const step = (e.shiftKey ? 5 : binHz) * (e.key === 'ArrowLeft' ? -1 : 1);
-      onFitRange(clampRange(kind === 'low' ? [fitRange[0] + step, fitRange[1]] : [fitRange[0], fitRange[1] + step]));
+      if (e.shiftKey && step !== undefined) step = Math.sign(step) * 5;
+      const current = kind === 'low' ? fitRange[0] : fitRange[1];
+      const next = e.key === 'Home' ? fLo : e.key === 'End' ? fHi : current + step!;
+      onFitRange(clampRange(kind === 'low' ? [next, fitRange[1]] : [fitRange[0], next]));
     };
+    // The lane: from the bottom of the title to 8 px above the plot frame (the top y tick label reaches 6 px above it).
+    const laneTop = layout.top - LANE;
     return (
-      <div className="absolute cursor-grab" style={{ left: x0, width: Math.max(4, x1 - x0), top: layout.top + layout.plotHeight - 16, height: 30, touchAction: 'none' }} onPointerDown={down('body')} onPointerMove={move} onPointerUp={up} data-testid="fit-range">
-        <div className="absolute inset-x-0 top-3 h-1 bg-kelp/60" />
-        {(['low', 'high'] as const).map((kind) => (
-          <div
-            key={kind}
-            role="slider"
-            tabIndex={0}
-            aria-label={`Fit range ${kind === 'low' ? 'start' : 'end'}`}
-            aria-valuenow={kind === 'low' ? fitRange[0] : fitRange[1]}
-            aria-valuetext={`${kind === 'low' ? fitRange[0] : fitRange[1]} Hz`}
-            data-testid={`fit-range-${kind}`}
-            className="absolute top-0 h-7 w-3 cursor-ew-resize rounded-sm border border-kelp-deep bg-kelp"
-            style={kind === 'low' ? { left: -6 } : { right: -6 }}
-            onPointerDown={down(kind)}
-            onPointerMove={move}
-            onPointerUp={up}
-            onKeyDown={key(kind)}
-          />
-        ))}
+      <div className="absolute cursor-grab" style={{ left: x0, width: Math.max(4, x1 - x0), top: laneTop, height: LANE - 8, touchAction: 'none' }} onPointerDown={down('body')} onPointerMove={move} onPointerUp={up} data-testid="fit-range">
+        <div className="absolute inset-x-0 top-2 h-1 bg-kelp/60" />
+        {(['low', 'high'] as const).map((kind) => {
+          const value = kind === 'low' ? fitRange[0] : fitRange[1];
+          return (
+            <div
+              key={kind}
+              role="slider"
+              tabIndex={0}
+              aria-label={`Fit range ${kind === 'low' ? 'start' : 'end'}`}
+              aria-valuemin={kind === 'low' ? fLo : fitRange[0]}
+              aria-valuemax={kind === 'low' ? fitRange[1] : fHi}
+              aria-valuenow={value}
+              aria-valuetext={`${value} Hz`}
+              aria-orientation="horizontal"
+              data-testid={`fit-range-${kind}`}
+              className="absolute top-0 h-5 w-3 cursor-ew-resize rounded-sm border border-kelp-deep bg-kelp focus:outline-2 focus:outline-offset-1 focus:outline-ink"
+              style={kind === 'low' ? { left: -6 } : { right: -6 }}
+              onPointerDown={down(kind)}
+              onPointerMove={move}
+              onPointerUp={up}
+              onKeyDown={key(kind)}
+            />
+          );
+        })}
       </div>
     );
   };
 
   return (
     <div className="flex flex-col gap-2">
-      <CanvasPlot height={340} label={`Spectra of ${channel}`} testId="spectrum-plot" draw={draw} overlay={overlay} exportName={`spectrum-${channel}-${axes}`} />
-      <CanvasPlot height={180} label={`Power above the aperiodic line, ${channel}`} testId="above-line-plot" draw={drawAboveLine} exportName={`above-aperiodic-${channel}`} />
+      <CanvasPlot height={370} lane={LANE} label={`Spectra of ${channel}: the numbers are in the table "Numbers of this plot" below`} testId="spectrum-plot" draw={draw} overlay={overlay} exportName={`spectrum-${channel}-${axes}`} />
+      <CanvasPlot height={180} label={`Power above the aperiodic line, ${channel}: the numbers are in the table below`} testId="above-line-plot" draw={drawAbove} exportName={`above-aperiodic-${channel}`} />
+      <SpectrumNumbers model={model} channel={channel} />
     </div>
+  );
+}
+
+const num = (v: number, digits = 4) => (Number.isFinite(v) ? Number(v.toPrecision(digits)).toString() : '—');
+
+/** The plot's numbers per frequency bin: the text alternative of the two canvases, open to anyone. */
+function SpectrumNumbers({ model, channel }: { model: SpectrumPlotModel; channel: string }) {
+  const id = useId();
+  const fitAt = new Map<number, number>();
+  if (model.fitLine !== null) model.fitLine.xs.forEach((x, i) => fitAt.set(x, model.fitLine!.ys[i]));
+  const meanAt = new Map<number, [number, number]>();
+  model.mean.xs.forEach((x, i) => meanAt.set(x, [model.mean.ys[i], model.aboveLine[i]]));
+  return (
+    <details className="text-xs" data-testid="spectrum-numbers">
+      <summary className="cursor-pointer text-kelp-deep">Numbers of this plot ({channel}, per frequency bin)</summary>
+      <div className="max-h-64 overflow-auto" tabIndex={0} role="region" aria-labelledby={id}>
+        <table className="w-full font-mono">
+          <caption id={id} className="text-left text-ink-soft">
+            Spectra of {channel} in µV²/Hz; fit range {formatTick(model.fitRange[0])}–{formatTick(model.fitRange[1])} Hz
+          </caption>
+          <thead>
+            <tr>
+              <th scope="col" className="text-right">Hz</th>
+              <th scope="col" className="text-right">spectrum</th>
+              <th scope="col" className="text-right">10th pct</th>
+              <th scope="col" className="text-right">90th pct</th>
+              <th scope="col" className="text-right">aperiodic fit</th>
+              <th scope="col" className="text-right">log10 P − fit</th>
+            </tr>
+          </thead>
+          <tbody>
+            {Array.from(model.spread.xs, (x, i) => {
+              const m = meanAt.get(x);
+              return (
+                <tr key={x} data-testid="spectrum-number-row" data-hz={x} data-low={model.spread.low[i]} data-high={model.spread.high[i]}>
+                  <td className="text-right">{num(x)}</td>
+                  <td className="text-right">{m === undefined ? '—' : num(m[0])}</td>
+                  <td className="text-right">{num(model.spread.low[i])}</td>
+                  <td className="text-right">{num(model.spread.high[i])}</td>
+                  <td className="text-right">{fitAt.has(x) ? num(fitAt.get(x)!) : '—'}</td>
+                  <td className="text-right">{m === undefined ? '—' : num(m[1], 3)}</td>
+                </tr>
+              );
+            })}
+          </tbody>
+        </table>
+      </div>
+    </details>
   );
 }

@@ -1,5 +1,5 @@
-import { frequencyGrid } from '../../lib/analysis/frequency-grid';
-import { cyclesOf, edgeSecondsOf, gaussianSigmas, resolutionOf, type CyclesSpec } from '../../lib/analysis/wavelet';
+import type { CyclesSpec } from '../../lib/analysis/wavelet';
+import { resolutionRows } from '../../lib/client/workspace/resolution';
 
 interface Props {
   frequencies: { min: number; max: number; count: number; spacing: 'log' | 'linear' };
@@ -7,24 +7,12 @@ interface Props {
 }
 
 /**
- * Each frequency's time and frequency resolution for the recipe as it stands: temporal FWHM (s), spectral FWHM
- * (Hz) and edge zone (3σ, s), from the same core functions a run uses (Cohen, 2019, NeuroImage 199:81–86). The run's
- * Result carries the same numbers (`temporalFwhmSeconds`, `spectralFwhmHz`, `edgeSeconds`).
+ * Each frequency's time and frequency resolution for the recipe as it stands (`resolutionRows`: the same core
+ * functions a run uses). The run's Result carries the same numbers (`temporalFwhmSeconds`, `spectralFwhmHz`,
+ * `edgeSeconds`).
  */
 export default function ResolutionTable({ frequencies, cycles }: Props) {
-  let rows: { f: number; n: number; t: number; s: number; e: number }[] = [];
-  try {
-    if (!(frequencies.min > 0 && frequencies.max >= frequencies.min && frequencies.count >= 1 && frequencies.count <= 1000)) throw new Error('no grid');
-    const f = frequencyGrid(frequencies);
-    const sigmas = gaussianSigmas(f, cycles);
-    if (!sigmas.every((x) => x > 0 && Number.isFinite(x))) throw new Error('no widths');
-    const n = cyclesOf(f, sigmas);
-    const r = resolutionOf(sigmas);
-    const e = edgeSecondsOf(sigmas);
-    rows = Array.from(f, (fi, i) => ({ f: fi, n: n[i], t: r.temporalFwhmSeconds[i], s: r.spectralFwhmHz[i], e: e[i] }));
-  } catch {
-    rows = [];
-  }
+  const rows = resolutionRows(frequencies, cycles);
   return (
     <details className="card p-3" data-testid="resolution">
       <summary className="cursor-pointer text-sm font-semibold">Resolution at each frequency (what the wavelets can tell apart)</summary>

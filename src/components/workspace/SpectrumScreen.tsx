@@ -43,6 +43,8 @@ export default function SpectrumScreen(_props: WorkspaceProps) {
   const fitRange = useWorkspace((s) => s.fitRange);
   const setView = useWorkspace((s) => s.set);
   const visible = usePanelVisible('Spectrum');
+  // A display choice, not part of the recipe or the undo history: the spread band says what the lines would.
+  const [showEpochs, setShowEpochs] = useState(false);
   const recording = useWorkspace((s) => s.recording);
   const spectra = useWork(d, visible && recording !== null, (d) => spectrumWork.epochSpectra(d, recording!), []);
   const recipeSpectra = useWork(d, visible && recording !== null, (d) => spectrumWork.recipeSpectra(d, recording!), []);
@@ -104,6 +106,10 @@ export default function SpectrumScreen(_props: WorkspaceProps) {
           </select>
         </label>
         <Choice<SpectrumAxes> legend="Axes" value={axes} options={[{ value: 'linear', label: 'linear' }, { value: 'log-power', label: 'log power' }, { value: 'log-log', label: 'log-log' }]} onChange={(a) => setView({ spectrumAxes: a })} />
+        <label className="flex items-center gap-1.5 self-center text-sm">
+          <input type="checkbox" checked={showEpochs} onChange={(e) => setShowEpochs(e.target.checked)} data-testid="show-epochs" />
+          Show each epoch
+        </label>
         <NumberField label="Fit from" unit="Hz" value={fitRange[0]} step={0.5} testId="fit-low" onValue={(v) => setView({ fitRange: [v, fitRange[1]] })} />
         <NumberField label="Fit to" unit="Hz" value={fitRange[1]} step={0.5} testId="fit-high" onValue={(v) => setView({ fitRange: [fitRange[0], v] })} />
         <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale disabled:opacity-50" disabled={fits === null} onClick={exportFits} data-testid="export-fits">
@@ -116,21 +122,21 @@ export default function SpectrumScreen(_props: WorkspaceProps) {
         </p>
       ) : (
         <>
-          <div className="card p-2">
-            <SpectrumPlot spectra={sp} recipeSpectrum={rsp} source={source} fit={fit} axes={axes} fitRange={fitRange} onFitRange={(r) => setView({ fitRange: r })} channel={ch} />
-            <FitReadout fit={fit} model={model} />
-          </div>
-          <div className="grid grid-cols-1 gap-4 lg:grid-cols-[2fr_1fr]">
+          <div className="grid grid-cols-1 gap-4 xl:grid-cols-[minmax(0,2fr)_minmax(0,1fr)]">
             <div className="card p-2">
-              <FitTable rows={rows} selected={ch} onSelect={(c) => setView({ channel: c })} />
-              <p className="px-2 pt-1 text-xs text-ink-soft">
-                r² and RMSE over all bins of the fit range; "kept bins" leaves out the bins the robust fit set aside as peaks. Peaks: runs of
-                bins well above the line, centre by parabolic interpolation, height in log10 power above the line, width at half that height.
-              </p>
+              <SpectrumPlot spectra={sp} recipeSpectrum={rsp} source={source} fit={fit} axes={axes} fitRange={fitRange} onFitRange={(r) => setView({ fitRange: r })} channel={ch} showEpochs={showEpochs} />
+              <FitReadout fit={fit} model={model} />
             </div>
             <div className="card p-2">
               <ScalpMap title="Aperiodic exponent" unit="χ" values={rows.map((r) => ({ channel: r.channel, value: r.exponent }))} testId="scalp-exponent" />
             </div>
+          </div>
+          <div className="card p-2">
+            <FitTable rows={rows} selected={ch} onSelect={(c) => setView({ channel: c })} />
+            <p className="px-2 pt-1 text-xs text-ink-soft">
+              r² and RMSE over all bins of the fit range; "kept bins" leaves out the bins the robust fit set aside as peaks. Peaks: runs of
+              bins well above the line, centre by parabolic interpolation, height in log10 power above the line, width at half that height.
+            </p>
           </div>
           {d !== null && (
             <div className="card p-2">

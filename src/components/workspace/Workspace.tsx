@@ -12,10 +12,14 @@ import { bindAccount } from '../../lib/client/workspace';
 const MapsScreen = lazy(() => import('./MapsScreen'));
 const SpectrumScreen = lazy(() => import('./SpectrumScreen'));
 const BandsScreen = lazy(() => import('./BandsScreen'));
+const SlopeCheckScreen = lazy(() => import('./SlopeCheckScreen'));
 
 // Browser test hooks (?testhooks) exist only in the demo/test build: behind this constant the production bundler
 // drops the import and with it the hooks and the demo generator (tests/browser/production.test.ts checks the chunks).
 if (import.meta.env.TIDEMARK_DEMO) void import('../explorer/test-hooks').then((m) => m.installTestHooks());
+
+// Element ids take no spaces (aria-controls and aria-labelledby read a space as a list): "Slope check" → "Slope-check".
+const idOf = (name: ScreenName): string => name.replace(/\s+/g, '-');
 
 const components: Record<ScreenName, ComponentType<WorkspaceProps>> = {
   Source: SourceScreen,
@@ -23,6 +27,7 @@ const components: Record<ScreenName, ComponentType<WorkspaceProps>> = {
   Maps: MapsScreen,
   Spectrum: SpectrumScreen,
   Bands: BandsScreen,
+  'Slope check': SlopeCheckScreen,
   Outbound: OutboundScreen,
 };
 
@@ -56,13 +61,13 @@ export default function Workspace(props: WorkspaceProps) {
             key={name}
             type="button"
             role="tab"
-            id={`tab-${name}`}
+            id={`tab-${idOf(name)}`}
             ref={(el) => {
               tabs.current[name] = el;
             }}
             aria-selected={active === name}
             tabIndex={active === name ? 0 : -1}
-            aria-controls={`panel-${name}`}
+            aria-controls={`panel-${idOf(name)}`}
             className={`px-4 py-2 text-sm font-semibold ${active === name ? 'border-b-2 border-kelp text-ink' : 'text-ink-soft hover:text-ink'}`}
             onClick={() => setActive(name)}
           >
@@ -74,7 +79,7 @@ export default function Workspace(props: WorkspaceProps) {
         const Screen = components[name];
         // Screens stay mounted so switching tabs keeps their state and any running work.
         return (
-          <section key={name} role="tabpanel" id={`panel-${name}`} aria-labelledby={`tab-${name}`} hidden={active !== name} className="py-6">
+          <section key={name} role="tabpanel" id={`panel-${idOf(name)}`} aria-labelledby={`tab-${idOf(name)}`} hidden={active !== name} className="py-6">
             <Suspense fallback={<p className="text-sm text-ink-soft" data-testid="screen-loading">Loading the {name} screen…</p>}>
               <Screen {...props} />
             </Suspense>

@@ -12,5 +12,5 @@ export interface WorkspaceProps {
 }
 
 /** The screens of the analysis workspace, in the order a person works through them (names: GLOSSARY.md). */
-export const screens = ['Source', 'Recipe', 'Maps', 'Spectrum', 'Bands', 'Outbound'] as const;
+export const screens = ['Source', 'Recipe', 'Maps', 'Spectrum', 'Bands', 'Slope check', 'Outbound'] as const;
 export type ScreenName = (typeof screens)[number];

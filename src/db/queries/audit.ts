@@ -1,4 +1,4 @@
-import { desc, eq, isNull, sql } from 'drizzle-orm';
+import { sql } from 'drizzle-orm';
 import { PgTransaction } from 'drizzle-orm/pg-core';
 import type { Db } from '../client';
 import { auditEvents } from '../schema';
@@ -29,18 +29,18 @@ export async function recordAudit(tx: Tx | Db, input: AuditInput): Promise<void>
 async function append(tx: Tx, input: AuditInput): Promise<void> {
   const teamId = input.teamId ?? null;
   await tx.execute(sql`SELECT pg_advisory_xact_lock(hashtextextended(${`tidemark:audit:${teamId ?? 'site'}`}, 0))`);
-  const [previous] = await tx
-    .select({ hash: auditEvents.hash })
-    .from(auditEvents)
-    .where(teamId === null ? isNull(auditEvents.teamId) : eq(auditEvents.teamId, teamId))
-    .orderBy(desc(auditEvents.id))
-    .limit(1);
-  // The id and the time are fixed before the insert so the hash can cover them (the app may not UPDATE audit rows).
-  const next = await tx.execute<{ id: string; at: Date }>(
-    sql`SELECT nextval(pg_get_serial_sequence('audit_events', 'id')) AS id, date_trunc('milliseconds', now()) AS at`,
+  // After the lock (its own statement, so this one's snapshot sees every event committed before it): the chain's
+  // last hash, and the new event's id and time, fixed before the insert so the hash can cover them (the app may not
+  // UPDATE audit rows). One round trip while the chain is locked.
+  const last = teamId === null
+    ? sql`(SELECT ${auditEvents.hash} FROM ${auditEvents} WHERE ${auditEvents.teamId} IS NULL ORDER BY ${auditEvents.id} DESC LIMIT 1)`
+    : sql`(SELECT ${auditEvents.hash} FROM ${auditEvents} WHERE ${auditEvents.teamId} = ${teamId} ORDER BY ${auditEvents.id} DESC LIMIT 1)`;
+  const next = await tx.execute<{ id: string; at: Date; previous: string | null }>(
+    sql`SELECT nextval(pg_get_serial_sequence('audit_events', 'id')) AS id, date_trunc('milliseconds', now()) AS at, ${last} AS previous`,
   );
   const id = Number(next.rows[0].id);
   const at = new Date(next.rows[0].at);
+  const previous = next.rows[0].previous === null ? undefined : { hash: next.rows[0].previous };
   const detail = asJsonValue(input.detail ?? {});
   const prevHash = previous?.hash ?? CHAIN_GENESIS;
   const fields = { id, teamId, actorId: input.actorId, action: input.action, targetTable: input.targetTable, targetId: input.targetId, detail, at, prevHash };

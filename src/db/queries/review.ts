@@ -165,6 +165,12 @@ export async function getRecipeVersion(sessionId: string, number: number) {
   return versionByNumber(db, sessionId, number);
 }
 
+/** The hash of a recipe version's summary, without reading the summary itself. */
+export async function getSummaryHash(recipeVersionId: string): Promise<string | null> {
+  const [row] = await db.select({ summaryHash: summaries.summaryHash }).from(summaries).where(eq(summaries.recipeVersionId, recipeVersionId));
+  return row?.summaryHash ?? null;
+}
+
 export async function getSummary(recipeVersionId: string) {
   const [row] = await db.select().from(summaries).where(eq(summaries.recipeVersionId, recipeVersionId));
   return row ?? null;

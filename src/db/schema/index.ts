@@ -4,3 +4,4 @@ export * from './analysis';
 export * from './system';
 export * from './review';
 export * from './cohort';
+export * from './slope';

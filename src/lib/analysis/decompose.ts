@@ -107,6 +107,10 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
     const trials = starts.length;
     const sum = new Float64Array(nf * L);
     const normSum = trialScope ? new Float64Array(nf * L) : null;
+    // Trial scope in decibels: Σ_k 10·log10(P_k/B_k) = 10·log10 Π_k P_k − 10·Σ_k log10 B_k, the product kept as a
+    // mantissa and a power of two per point (see LogProduct), so a point costs one logarithm per condition, not one
+    // per trial.
+    const logProduct = normSum !== null && method === 'decibel' ? new LogProduct(nf * L, nf) : null;
     const single = singleTrials !== null ? new Float32Array(trials * nf * L) : null;
     // Σ_k y_k/|y_k| as interleaved (re, im) per (frequency, time); power's own sums are left untouched, so asking
     // for phase consistency never changes a power bit.
@@ -171,7 +175,8 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
         const residues = bank.sizes[f] / bank.bandSizes[f];
         for (let b = 0; b < nb; b++) {
           bandPower(sum, off, keepRow ? row : null, L, spectra[b], bins, weights, residues, band, work, out);
-          if (normSum !== null) accumulateNormalized(normSum, off, row, L, method, first, last);
+          if (logProduct !== null) logProduct.multiply(off, row, L, f, baselineStats(row, 0, first, last).mean);
+          else if (normSum !== null) accumulateNormalized(normSum, off, row, L, method, first, last);
           if (single !== null) single.set(row, ((e0 + b) * nf + f) * L);
           if (trialBaselines !== null) trialBaselines[(e0 + b) * nf + f] = baselineStats(row, 0, first, last).mean;
         }
@@ -191,6 +196,7 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
     if (trialBaselines !== null) {
       normalized.push(zScoreAcrossTrials(sum, L, trialBaselines, trials));
     } else if (normSum !== null) {
+      if (logProduct !== null) logProduct.decibelsInto(normSum, L);
       for (let i = 0; i < normSum.length; i++) normSum[i] /= trials;
       normalized.push(normSum);
     } else {
@@ -380,6 +386,67 @@ function interpolatePower(sum: Float64Array, off: number, length: number, acc: F
   getFft(n).transform(p, spectrum);
   for (let j = 0; j < length; j++) sum[off + j] = p[2 * j] > 0 ? p[2 * j] : 0;
 }
+
+const LOG10_2 = log10(2);
+const TWO_POW_64 = 18446744073709551616; // 2^64, exact
+
+/**
+ * Σ_k log10 x_k per point without a logarithm per term: the product Π_k x_k is kept as m·2^e, m in [1, 2) (the
+ * IEEE 754 binary64 layout: the exponent field is bits 52–62, bias 1023), renormalized after every multiply so it
+ * can neither overflow nor underflow; log10 Π = log10 m + e·log10 2 is taken once at the end. Zero, infinite and NaN
+ * terms propagate as they would through the sum of logarithms (−∞, +∞, NaN). The product's relative rounding
+ * error grows by at most 2^−53 per term (each multiply is correctly rounded), far below a logarithm's own rounding.
+ */
+class LogProduct {
+  private readonly mantissa: Float64Array;
+  private readonly words: Uint32Array;
+  private readonly exponent: Float64Array;
+  /** Σ_k log10 B_k per frequency. */
+  private readonly logBaselines: Float64Array;
+
+  constructor(points: number, frequencies: number) {
+    this.mantissa = new Float64Array(points).fill(1);
+    this.words = new Uint32Array(this.mantissa.buffer);
+    this.exponent = new Float64Array(points);
+    this.logBaselines = new Float64Array(frequencies);
+  }
+
+  multiply(off: number, row: Float64Array, length: number, f: number, baselineMean: number): void {
+    this.logBaselines[f] += log10(baselineMean);
+    const m = this.mantissa;
+    const w = this.words;
+    const e = this.exponent;
+    for (let j = 0; j < length; j++) {
+      const i = off + j;
+      let x = m[i] * row[j];
+      let shift = 0;
+      // A subnormal product (or a subnormal term) is scaled into the normal range first.
+      if (x !== 0 && Math.abs(x) < 2.2250738585072014e-308) {
+        x *= TWO_POW_64;
+        shift = -64;
+      }
+      m[i] = x;
+      const hi = w[2 * i + 1];
+      const field = (hi >>> 20) & 0x7ff;
+      if (field === 0 || field === 0x7ff) continue; // zero, infinity or NaN: kept as they are
+      w[2 * i + 1] = (hi & 0x800fffff) | (1023 << 20);
+      e[i] += field - 1023 + shift;
+    }
+  }
+
+  /** 10·(log10 Π_k P_k − Σ_k log10 B_k) into `out[f·length + t]`. */
+  decibelsInto(out: Float64Array, length: number): void {
+    const m = this.mantissa;
+    const e = this.exponent;
+    for (let i = 0; i < out.length; i++) {
+      const f = Math.floor(i / length);
+      out[i] = 10 * (log10(m[i]) + e[i] * LOG10_2 - this.logBaselines[f]);
+    }
+  }
+}
+
+// Little-endian layout is assumed by LogProduct's word view (every engine the product runs on is little-endian).
+if (new Uint8Array(new Float64Array([1]).buffer)[7] !== 0x3f) throw new Error('decompose: a big-endian engine is not supported');
 
 // One trial's row, normalized by its own baseline and added into the running sum; the method switch sits outside
 // the loop so the loop body stays monomorphic.

@@ -10,14 +10,25 @@ export interface LineLayout {
   top: number;
   plotWidth: number;
   plotHeight: number;
+  /** Height of the control lane between the title and the plot area (fit-range handles live there, clear of every label). */
+  lane: number;
 }
 
-export function lineLayout(width: number, height: number): LineLayout {
+/** Margins for tick labels (left, bottom) and a title (top), plus an optional control lane above the plot area. */
+export function lineLayout(width: number, height: number, { lane = 0 }: { lane?: number } = {}): LineLayout {
   const left = 64;
-  const top = 22;
+  const top = 22 + lane;
   const right = 16;
   const bottom = 38;
-  return { width, height, left, top, plotWidth: Math.max(10, width - left - right), plotHeight: Math.max(10, height - top - bottom) };
+  return { width, height, left, top, plotWidth: Math.max(10, width - left - right), plotHeight: Math.max(10, height - top - bottom), lane };
+}
+
+/** A label's box in CSS pixels of the plot (left, top, width, height), as drawn. */
+export interface LabelRect {
+  x: number;
+  y: number;
+  width: number;
+  height: number;
 }
 
 /** Linear or log scale over [lo, hi] onto a pixel range; a log scale needs lo > 0. */
@@ -64,9 +75,48 @@ export function drawSeries(ctx: Ctx & { clip(): void }, layout: LineLayout, x: A
   ctx.restore();
 }
 
-/** Frame, ticks and axis titles of a line plot. */
-export function drawLineAxes(ctx: Ctx, layout: LineLayout, x: AxisScale, y: AxisScale, spec: { xLog: boolean; yLog: boolean; xTitle: string; yTitle: string; title: string }): void {
+/**
+ * The area between `low` and `high` over `xs` (a spread band), filled; a point without a position on either edge
+ * (non-finite, ≤ 0 on a log axis) splits the band.
+ */
+export function drawBand(ctx: Ctx & { clip(): void }, layout: LineLayout, x: AxisScale, y: AxisScale, band: { xs: ArrayLike<number>; low: ArrayLike<number>; high: ArrayLike<number>; colour: string; alpha: number }): void {
+  ctx.save();
+  ctx.beginPath();
+  ctx.rect(layout.left, layout.top, layout.plotWidth, layout.plotHeight);
+  ctx.clip();
+  ctx.fillStyle = band.colour;
+  ctx.globalAlpha = band.alpha;
+  const n = band.xs.length;
+  let i = 0;
+  while (i < n) {
+    const ok = (k: number) => Number.isFinite(x(band.xs[k])) && Number.isFinite(y(band.low[k])) && Number.isFinite(y(band.high[k]));
+    while (i < n && !ok(i)) i++;
+    let j = i;
+    while (j < n && ok(j)) j++;
+    if (j - i >= 2) {
+      ctx.beginPath();
+      ctx.moveTo(x(band.xs[i]), y(band.high[i]));
+      for (let k = i + 1; k < j; k++) ctx.lineTo(x(band.xs[k]), y(band.high[k]));
+      for (let k = j - 1; k >= i; k--) ctx.lineTo(x(band.xs[k]), y(band.low[k]));
+      ctx.closePath();
+      ctx.fill();
+    }
+    i = j;
+  }
+  ctx.restore();
+}
+
+/** Frame, ticks and axis titles of a line plot; returns the box of every tick label and title it drew. */
+export function drawLineAxes(ctx: Ctx, layout: LineLayout, x: AxisScale, y: AxisScale, spec: { xLog: boolean; yLog: boolean; xTitle: string; yTitle: string; title: string }): LabelRect[] {
   const { left, top, plotWidth, plotHeight } = layout;
+  const boxes: LabelRect[] = [];
+  // Label boxes from the font's size (11 px mono, 12 px sans) and measured widths.
+  const box = (text: string, px: number, py: number, align: 'left' | 'center' | 'right', base: 'top' | 'middle' | 'alphabetic', size: number) => {
+    const w = ctx.measureText(text).width;
+    const x0 = align === 'left' ? px : align === 'center' ? px - w / 2 : px - w;
+    const y0 = base === 'top' ? py : base === 'middle' ? py - size / 2 : py - size * 0.8;
+    boxes.push({ x: x0, y: y0, width: w, height: size });
+  };
   const bottom = top + plotHeight;
   ctx.save();
   ctx.strokeStyle = INK;
@@ -83,8 +133,10 @@ export function drawLineAxes(ctx: Ctx, layout: LineLayout, x: AxisScale, y: Axis
     ctx.lineTo(px, bottom + 4);
     ctx.stroke();
     ctx.fillText(formatTick(v), px, bottom + 6);
+    box(formatTick(v), px, bottom + 6, 'center', 'top', 11);
   }
   ctx.fillText(spec.xTitle, left + plotWidth / 2, bottom + 21);
+  box(spec.xTitle, left + plotWidth / 2, bottom + 21, 'center', 'top', 11);
   ctx.textAlign = 'right';
   ctx.textBaseline = 'middle';
   for (const v of spec.yLog ? logTicks(y, 5) : y.ticks(Math.max(2, Math.floor(plotHeight / 40)))) {
@@ -94,6 +146,7 @@ export function drawLineAxes(ctx: Ctx, layout: LineLayout, x: AxisScale, y: Axis
     ctx.lineTo(left, py);
     ctx.stroke();
     ctx.fillText(formatTick(v), left - 6, py);
+    box(formatTick(v), left - 6, py, 'right', 'middle', 11);
   }
   ctx.save();
   ctx.translate(12, top + plotHeight / 2);
@@ -101,9 +154,13 @@ export function drawLineAxes(ctx: Ctx, layout: LineLayout, x: AxisScale, y: Axis
   ctx.textAlign = 'center';
   ctx.fillText(spec.yTitle, 0, 0);
   ctx.restore();
+  const yw = ctx.measureText(spec.yTitle).width;
+  boxes.push({ x: 12 - 5.5, y: top + plotHeight / 2 - yw / 2, width: 11, height: yw });
   ctx.font = SANS;
   ctx.textAlign = 'left';
   ctx.textBaseline = 'alphabetic';
-  ctx.fillText(spec.title, left, top - 8);
+  ctx.fillText(spec.title, left, top - layout.lane - 8);
+  box(spec.title, left, top - layout.lane - 8, 'left', 'alphabetic', 12);
   ctx.restore();
+  return boxes;
 }

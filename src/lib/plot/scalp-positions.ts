@@ -9,7 +9,7 @@
  * left ear at −x.
  */
 
-type Vec = [number, number, number];
+export type Vec = [number, number, number];
 
 const rad = (deg: number) => (deg * Math.PI) / 180;
 
@@ -56,6 +56,24 @@ const RING: Record<string, [string, number]> = { F7: ['F', 1], F8: ['F', -1], FT
 
 /** Position of a 10-20 / 10-10 name (case-insensitive; T3/T4/T5/T6 accepted), or null when it is not one. */
 export function scalpPosition(name: string): { x: number; y: number } | null {
+  const v = scalpDirection(name);
+  return v === null ? null : project(v);
+}
+
+/**
+ * The unit vector on the model head (x toward the right ear, y toward the nose, z up through Cz) at a point of the
+ * drawn disc: the inverse of the azimuthal equidistant projection above (radius 1 = 90° from Cz).
+ */
+export function directionAtDisc(x: number, y: number): Vec {
+  const r = Math.hypot(x, y);
+  if (r < 1e-12) return [0, 0, 1];
+  const polar = r * rad(90);
+  const s = Math.sin(polar);
+  return [(s * x) / r, (s * y) / r, Math.cos(polar)];
+}
+
+/** The unit vector of a 10-20 / 10-10 name on the model head (as scalpPosition), or null when it is not one. */
+export function scalpDirection(name: string): Vec | null {
   const raw = name.trim().replace(/^EEG\s+/i, '');
   const canonical = ALIASES[raw.toUpperCase()] ?? raw;
   const m = /^(Fp|AF|FT|FC|F|TP|T|CP|C|PO|P|O)(z|\d+)$/i.exec(canonical);
@@ -64,27 +82,27 @@ export function scalpPosition(name: string): { x: number; y: number } | null {
   const rowName = prefix === 'Fp' ? 'Fp' : prefix.toUpperCase();
   const suffix = m[2].toLowerCase();
   const ring = RING[`${rowName}${suffix}`];
-  if (ring !== undefined) return project(sphere(90, ring[1] * ROWS[ring[0]].ring));
+  if (ring !== undefined) return sphere(90, ring[1] * ROWS[ring[0]].ring);
   if (rowName === 'T' || rowName === 'FT' || rowName === 'TP') {
     const n = Number(suffix);
     if (n === 9 || n === 10) {
       const az = { T: 90, FT: 72, TP: 108 }[rowName];
-      return project(sphere(108, (n % 2 === 1 ? 1 : -1) * az));
+      return sphere(108, (n % 2 === 1 ? 1 : -1) * az);
     }
     return null;
   }
   const row = ROWS[rowName];
   if (row === undefined) return null;
   const mid = sphere(row.mid[0], row.mid[1]);
-  if (suffix === 'z') return project(mid);
+  if (suffix === 'z') return mid;
   const n = Number(suffix);
   const side = n % 2 === 1 ? 1 : -1;
   if ((rowName === 'PO' || rowName === 'O' || rowName === 'Fp' || rowName === 'AF') && (n === 9 || n === 10)) {
-    return project(sphere(108, side * (rowName === 'PO' ? 144 : rowName === 'O' ? 162 : rowName === 'AF' ? 36 : 18)));
+    return sphere(108, side * (rowName === 'PO' ? 144 : rowName === 'O' ? 162 : rowName === 'AF' ? 36 : 18));
   }
   const ringPoint = sphere(90, side * row.ring);
-  if (rowName === 'Fp' || rowName === 'O') return project(ringPoint);
+  if (rowName === 'Fp' || rowName === 'O') return ringPoint;
   const step = Math.ceil(n / 2); // 1,2 → 1; 3,4 → 2; 5,6 → 3; 7,8 → 4
   if (step < 1 || step > 4) return null;
-  return project(slerp(mid, ringPoint, step / 4));
+  return slerp(mid, ringPoint, step / 4);
 }

@@ -32,6 +32,8 @@ const expected: Record<Action, Record<Role, boolean>> = {
   'cohort:covariates':       { lead: Y, analyst: Y, reviewer: N },
   'cohort:design':           { lead: Y, analyst: N, reviewer: N },
   'cohort:includeUnsigned':  { lead: Y, analyst: N, reviewer: N },
+  'slopeReport:view':        { lead: Y, analyst: Y, reviewer: Y },
+  'slopeReport:save':        { lead: Y, analyst: Y, reviewer: N },
 };
 
 describe('permission matrix', () => {

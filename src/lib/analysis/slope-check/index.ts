@@ -4,3 +4,4 @@ export * from './simulate';
 export * from './bench';
 export * from './sensitivity';
 export * from './shift';
+export * from './sweep';

@@ -20,6 +20,7 @@ function draftOf(recipe: Recipe, conditionNames: string[], current: RecipeDraft)
     conditions: all ? [] : recipe.epochs.events.slice(),
     spectrum: { ...recipe.spectrum, range: [recipe.spectrum.range[0], recipe.spectrum.range[1]] },
     aperiodic: { model: recipe.aperiodic.model },
+    itpc: recipe.itpc === true,
   };
 }
 

@@ -21,6 +21,8 @@ export interface RecipeDraft {
   spectrum: { segment: number; overlap: number; range: [number, number]; source: 'recording' | 'epochs' };
   /** The fit range is the workspace's `fitRange` (dragged on the Spectrum screen), like the baseline. */
   aperiodic: { model: AperiodicModel };
+  /** Inter-trial phase consistency beside power (recipe `"itpc": true`); absent means no. */
+  itpc?: boolean;
 }
 
 // 3–45 Hz covers the default bands (theta 4–8 … gamma 30–45 Hz). At 3 Hz the 3-cycle wavelet's edge zone is
@@ -103,6 +105,7 @@ export function toRecipe(parts: RecipeParts): RecipeInput {
     baseline: { start: baseline.start, end: baseline.end, method: parts.method, scope: parts.scope, ...(parts.method === 'z-score' && parts.spread === 'trials' ? { spread: 'trials' as const } : {}) },
     spectrum: { ...draft.spectrum, range: [...draft.spectrum.range] as [number, number] },
     aperiodic: { range: [fitRange[0], fitRange[1]], model: draft.aperiodic.model },
+    ...(draft.itpc === true ? { itpc: true } : {}),
     conditions: spec.conditions as Record<string, string[]>,
     rejection: spec.rejection as NonNullable<RecipeInput['rejection']>,
     ...((parts.conditioning !== undefined ? conditioningSpec(parts.conditioning) : {}) as Pick<RecipeInput, 'signals' | 'reference' | 'filters'>),

@@ -35,6 +35,8 @@ export interface Decomposition {
   mask: Uint8Array;
   /** power[channel][condition] */
   power: Float64Array[][];
+  /** itpc[channel][condition] (`[f·T + t]`, 0 … 1) when the recipe asked for it (`"itpc": true`); else null. */
+  itpc: Float64Array[][] | null;
   spectrum: { frequencies: Float64Array; psd: Float64Array[] };
   aperiodic: (AperiodicFit & { channel: string })[];
   /** Per condition (label → one fit per channel) when the recipe spectrum comes from the kept epochs; else null. */
@@ -249,6 +251,7 @@ export async function runDecomposition(recording: Recording, recordingId: string
       edges: edgeZones(plan.edgeSeconds, plan.sampleRateHz, plan.times.length),
       mask: edgeMask(edgeZones(plan.edgeSeconds, plan.sampleRateHz, plan.times.length), plan.times.length),
       power: result.channels.map((_, c) => labels.map((l) => flatten(result.conditions[l].power[c]))),
+      itpc: labels.every((l) => result.conditions[l].itpc !== undefined) ? result.channels.map((_, c) => labels.map((l) => flatten(result.conditions[l].itpc![c]))) : null,
       spectrum: { frequencies: Float64Array.from(result.spectrum.frequencies), psd: result.spectrum.psd.map((p) => Float64Array.from(p)) },
       aperiodic: result.aperiodic,
       aperiodicByCondition: result.aperiodicByCondition ?? null,

@@ -2,13 +2,12 @@
 import type { APIRoute } from 'astro';
 import { json, requirePermission, route } from '../../../../../lib/server/http';
 import { loadSession, loadVersion, versionJson } from '../../../../../lib/server/review-api';
-import { getSummary } from '../../../../../db/queries/review';
+import { getSummaryHash } from '../../../../../db/queries/review';
 
 export const GET: APIRoute = (ctx) =>
   route(ctx, async ({ params }) => {
     const found = await loadSession(ctx);
     requirePermission(found.role, 'study:view');
     const version = await loadVersion(found, params.number);
-    const summary = await getSummary(version.id);
-    return json({ version: { ...versionJson(version), summaryHash: summary?.summaryHash ?? null } });
+    return json({ version: { ...versionJson(version), summaryHash: await getSummaryHash(version.id) } });
   });
