@@ -158,7 +158,7 @@ describe('figures and text for a paper', () => {
     await blank.close();
   });
 
-  it('exports the spectrum and the band bars as SVG that parse, with their labels as text', async () => {
+  it('exports the spectrum, the scalp map and the band bars as SVG that parse, with their labels as text', async () => {
     const blank = await context.newPage();
     await page.getByRole('tab', { name: 'Spectrum' }).click();
     const plot = page.getByTestId('spectrum-plot');
@@ -175,11 +175,17 @@ describe('figures and text for a paper', () => {
     const comparison = await samePicture(blank, live, spectrum, 'figures-spectrum');
     expect(comparison.fraction).toBeGreaterThanOrEqual(0.98);
 
+    // The scalp map: its vector layer as drawn, the interpolated disc as an embedded PNG, the electrodes named.
+    const scalp = await parseSvg(blank, (await download('scalp-exponent-svg')).bytes.toString('utf8'));
+    expect(scalp.error).toBeNull();
+    for (const label of DEMO.channels) expect(scalp.texts).toContain(label);
+    expect(scalp.images).toEqual(['data:image/png;base64,']);
+
     await page.getByRole('tab', { name: 'Bands' }).click();
     await page.getByTestId('band-plot').waitFor();
     const bars = await parseSvg(blank, (await download('export-bands-svg')).bytes.toString('utf8'));
     expect(bars.error).toBeNull();
-    for (const label of ['lamp-watch', 'oar-pull', 'dB']) expect(bars.texts).toContain(label);
+    for (const label of ['lamp-watch', 'oar-pull', 'mean (dB)', 'Fz']) expect(bars.texts).toContain(label);
     expect(bars.texts.some((t) => /Hz$/.test(t))).toBe(true);
     await page.screenshot({ path: path.join(artifactsDir, 'figures-bands.png'), fullPage: true });
     await page.getByRole('tab', { name: 'Maps' }).click();

@@ -172,7 +172,7 @@ export default function BandsScreen(_props: WorkspaceProps) {
               <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale" onClick={exportCsv} data-testid="export-bands">
                 Export band summary CSV
               </button>
-              <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale" onClick={() => void downloadBandBarsSvg({ title: `Band means · ${ch} · ${unit}`, rows: rows.filter((r) => r.channel === ch), bands, windows, labels: d.labels, unit, neutral: neutralValue(method), colours: BAR_COLOURS }, `band-means-${ch}-${method}`)} data-testid="export-bands-svg">
+              <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale" onClick={() => void downloadBandBarsSvg({ sites: chartSites ?? [ch], rows: tableRows, bands, windows, labels: d.labels, unit, neutral: neutralValue(method), colours: BAR_COLOURS }, `band-means-${(chartSites ?? [ch]).join('-')}-${method}`)} data-testid="export-bands-svg">
                 Export SVG
               </button>
             </div>
