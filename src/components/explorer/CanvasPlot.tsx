@@ -40,15 +40,22 @@ export default function CanvasPlot({ height, label, testId, draw, overlay, lane 
     // The drawn labels' boxes, for tests that check nothing covers them.
     c.dataset.labelBoxes = labels ? JSON.stringify(labels.map((b) => [b.x, b.y, b.width, b.height].map((v) => Math.round(v * 10) / 10))) : '';
   });
-  return (
+  const plot = (
     <div ref={wrap} className="relative w-full" style={{ height }}>
       {layout !== null && (
         <>
           <canvas ref={canvas} role="img" aria-label={label} data-testid={testId} data-plot-left={layout.left} data-plot-top={layout.top} data-plot-width={layout.plotWidth} data-plot-height={layout.plotHeight} className="block" style={{ width: layout.width, height: layout.height }} />
           {overlay?.(layout)}
-          {exportName !== undefined && <SvgExportButton layout={layout} draw={draw} label={label} fileName={exportName} testId={testId === undefined ? undefined : `${testId}-svg`} />}
         </>
       )}
+    </div>
+  );
+  if (exportName === undefined) return plot;
+  // The export button sits in a row of its own above the plot, so it never covers a label or a handle.
+  return (
+    <div className="flex w-full flex-col">
+      <SvgExportButton layout={layout} draw={draw} label={label} fileName={exportName} testId={testId === undefined ? undefined : `${testId}-svg`} />
+      {plot}
     </div>
   );
 }

@@ -6,7 +6,8 @@ import { downloadSvg } from './download-figure';
 import { fileSafe } from './download';
 
 interface Props {
-  layout: LineLayout;
+  /** Null until the plot has measured its width (the button waits). */
+  layout: LineLayout | null;
   /** The plot's own canvas painter, run again on an SVG context. */
   draw: (ctx: CanvasRenderingContext2D, layout: LineLayout) => void;
   label: string;
@@ -14,10 +15,11 @@ interface Props {
   testId?: string;
 }
 
-/** A small "SVG" button in a plot's top-right corner: the plot as painted, as a vector figure with fonts embedded. */
+/** A small "Export SVG" button (right-aligned row): the plot as painted, as a vector figure with fonts embedded. */
 export default function SvgExportButton({ layout, draw, label, fileName, testId }: Props) {
   const [problem, setProblem] = useState<string | null>(null);
   const run = async () => {
+    if (layout === null) return;
     try {
       setProblem(null);
       // The painters use only the context calls SvgContext records (figure.ts Ctx plus clip).
@@ -28,13 +30,13 @@ export default function SvgExportButton({ layout, draw, label, fileName, testId 
     }
   };
   return (
-    <div className="absolute top-0 right-4 flex items-center gap-2">
+    <div className="flex items-center justify-end gap-2">
       {problem !== null && (
         <span role="alert" className="text-xs text-coral-deep">
           {problem}
         </span>
       )}
-      <button type="button" className="rounded-sm border border-kelp bg-foam px-2 py-0 text-xs leading-4 text-kelp-deep hover:bg-kelp-pale" onClick={() => void run()} aria-label={`Export SVG: ${label}`} data-testid={testId}>
+      <button type="button" className="rounded-sm border border-kelp bg-foam px-2 py-0 text-xs leading-4 text-kelp-deep hover:bg-kelp-pale" onClick={() => void run()} disabled={layout === null} aria-label={`Export SVG: ${label}`} data-testid={testId}>
         Export SVG
       </button>
     </div>
