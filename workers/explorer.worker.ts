@@ -5,6 +5,7 @@ import type { BaselineMethod, BaselineSpread } from '../src/lib/analysis/baselin
 import { epochSpectra, type EpochSpectra } from '../src/lib/analysis/epoch-spectra';
 import { prepareTrialPower, renormalizeTrials, type TrialPower } from '../src/lib/analysis/renormalize';
 import { welchPsd } from '../src/lib/analysis/welch';
+import { trialBandValues, type TrialBandWindow } from '../src/lib/analysis/trial-band-values';
 import { fitAperiodicEach, type AperiodicModel } from '../src/lib/analysis/aperiodic';
 
 let held: { key: string; conditions: TrialPower[] } | null = null;
@@ -26,6 +27,11 @@ const api = {
       return o;
     });
     return Comlink.transfer(out, out.map((o) => o.buffer));
+  },
+  /** Per condition, per band × window cell, each held trial's own-baseline value (`trialBandValues`); null if another channel is held. */
+  trialBandValues(key: string, frequencies: Float64Array, times: Float64Array, mask: Uint8Array, first: number, last: number, method: BaselineMethod, cells: TrialBandWindow[]): Float64Array[][] | null {
+    if (held === null || held.key !== key) return null;
+    return held.conditions.map((tp) => trialBandValues(tp.trials, tp.count, frequencies, times, mask, first, last, method, cells));
   },
   spectra(
     channels: Float32Array[],

@@ -31,6 +31,22 @@ export const DEMO_STUDIES = [
   },
 ];
 
+/**
+ * The demo files (`demo-data/`, served at /demo/<file>) that belong to each demo study: the Harbour Lights cohort is
+ * a task recording, so only the task study offers it; the rest study has no demo recordings of its own and offers
+ * none. A study outside the demo team (one a person creates in the demo build) may try the cohort.
+ */
+export const DEMO_STUDY_DATA: Record<string, 'harbour-lights' | null> = {
+  'Harbour-bell anticipation': 'harbour-lights',
+  'Ebb and flow rest blocks': null,
+};
+
+/** Whether the workspace of this study offers the generated demo cohort. */
+export function offersDemoCohort(teamSlug: string, studyName: string): boolean {
+  if (teamSlug !== DEMO_TEAM.slug || !(studyName in DEMO_STUDY_DATA)) return true;
+  return DEMO_STUDY_DATA[studyName] === 'harbour-lights';
+}
+
 /** Creates the demo team, people and studies when missing; never changes what already exists. */
 export async function seedDemo(db: Db): Promise<{ created: number }> {
   let created = 0;

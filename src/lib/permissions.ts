@@ -54,6 +54,44 @@ const matrix: Record<Role, ReadonlySet<Action>> = {
   reviewer: new Set<Action>(['team:view', 'study:view', 'member:view', 'note:view', 'note:create', 'note:resolve', 'slopeReport:view']),
 };
 
+/**
+ * What each action is, in the words a refusal says ("Your role (reviewer) may not create analysis sessions."): a
+ * person never reads an action's code.
+ */
+export const actionWords: Record<Action, string> = {
+  'team:view': 'see this team',
+  'study:view': 'see this study',
+  'study:create': 'create studies',
+  'study:edit': 'change this study',
+  'member:view': 'see the team’s members',
+  'member:invite': 'invite people to the team',
+  'member:manage': 'change members’ roles',
+  'analysisSession:create': 'create analysis sessions',
+  'analysisSession:editOwn': 'change this analysis session',
+  'analysisSession:submit': 'ask for review',
+  'analysisSession:signOff': 'sign off analysis sessions',
+  'analysisSession:return': 'return analysis sessions',
+  'analysisSession:sign': 'sign analysis sessions',
+  'note:view': 'read notes',
+  'note:create': 'write notes',
+  'note:resolve': 'resolve notes',
+  'summary:import': 'bring in summaries',
+  'audit:view': 'read the team’s audit trail',
+  'cohort:covariates': 'change the subjects’ covariates',
+  'cohort:design': 'change the study’s saved tests',
+  'cohort:includeUnsigned': 'pool unsigned sessions',
+  'slopeReport:view': 'read slope check reports',
+  'slopeReport:save': 'save slope check reports',
+};
+
+/** The refusal a person reads when `role` may not take `action`: plain words, never the action's code. */
+export function refusalWords(role: Role | null | undefined, action: Action): string {
+  const who = role ? `Your role in this team (${role})` : 'Only members of this team';
+  const roleThatMay = roles.filter((r) => can(r, action));
+  const may = roleThatMay.length === 0 ? '' : ` ${roleThatMay.map((r) => `${r}s`).join(' and ').replace(/^./, (c) => c.toUpperCase())} may.`;
+  return role ? `${who} may not ${actionWords[action]}.${may}` : `${who} may ${actionWords[action]}.`;
+}
+
 export function isRole(value: unknown): value is Role {
   return typeof value === 'string' && (roles as readonly string[]).includes(value);
 }

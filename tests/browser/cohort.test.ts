@@ -46,6 +46,9 @@ describe('the Cohort screen', () => {
     await page.waitForURL(/\/cohort$/);
     await page.locator('[data-testid="cohort-screen"][data-ready="yes"]').waitFor();
     await expect.poll(() => page.getByTestId('entering-count').textContent()).toMatch(/^10 of 12 sessions enter\.$/);
+    // Each band column of the sessions table names its unit (the fixture's summaries are decibel change: dB).
+    const headers = (await page.getByTestId('cohort-sessions').locator('thead th').allTextContents()).map((t) => t.replace(/\s+/g, ' ').trim());
+    expect(headers).toEqual(expect.arrayContaining([expect.stringMatching(/^theta \(dB\)/), expect.stringMatching(/^alpha \(dB\)/)]));
 
     // Plots: one per band, with one dot per subject per window.
     await page.getByTestId('channel-choice').selectOption('Fz');

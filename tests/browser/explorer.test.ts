@@ -72,6 +72,9 @@ describe('the explorer on a demo recording', () => {
   });
 
   it('validates the recipe against the recording with a message naming the field, cancels a run, and recalls a cached one', async () => {
+    // A finished run moved on to the Maps screen; come back to the recipe.
+    await expect.poll(() => page.getByRole('tab', { name: 'Maps' }).getAttribute('aria-selected')).toBe('true');
+    await page.getByRole('tab', { name: 'Recipe' }).click();
     const fmax = await page.getByTestId('recipe-fmax').inputValue();
     await page.getByTestId('recipe-fmax').fill('300');
     // 500 Hz sampling: Nyquist is 250 Hz (Nyquist–Shannon), so 300 Hz must be refused before any work starts.

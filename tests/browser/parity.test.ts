@@ -223,4 +223,18 @@ describe('browser worker pool and command line on the same EDF+ bytes', () => {
     expect(result.channels).toEqual(['Pz', 'Fz']);
     expect(result.aperiodic[0].knee).not.toBeNull();
   });
+
+  it('matches too for phase consistency and induced power (every ITPC value and evoked sample to the last bit)', async () => {
+    const variant = { ...recipe, itpc: true, trialPower: 'induced' };
+    const pageText = await page.evaluate((r) => window.__tidemark!.runPool(r), variant);
+    const { text, result } = cli(variant, 'itpc-induced');
+    expect(firstDifference(JSON.parse(pageText), result)).toBeNull();
+    expect(pageText).toBe(text);
+    // Not vacuous: both fields are there, and induced power is not total power (the evoked response came out).
+    const lamp = result.conditions['lamp-watch'];
+    expect(lamp.itpc).toHaveLength(CHANNELS.length);
+    expect(lamp.evoked).toHaveLength(CHANNELS.length);
+    expect(new Set(lamp.itpc![0].flat()).size).toBeGreaterThan(100);
+    expect(firstDifference(lamp.power, cliFirst.conditions['lamp-watch'].power)).not.toBeNull();
+  });
 });

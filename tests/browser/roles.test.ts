@@ -7,6 +7,8 @@ import { DEMO_PEOPLE } from '../../src/db/seed';
 import { createMember, createTeam } from '../helpers/fixtures';
 import { pool as dbPool } from '../../src/db/client';
 import { pool as helperPool } from '../helpers/app';
+import { describeCohort, writeSubjectEdf } from '../../src/lib/demo/cohort';
+import { DEMO_STUDY, dropFile, openWorkspace, signInAs, demoPerson } from '../helpers/workspace';
 
 let browser: Browser;
 let close: () => Promise<void>;
@@ -51,6 +53,8 @@ describe('each demo role signs in, sees its navigation and signs out', () => {
         expect(await page.getByTestId('admin-users').textContent()).toContain('reviewer@saltmarsh.example');
         expect(await page.getByText('Harbour-bell anticipation').count()).toBe(0);
         expect(await page.getByTestId('caution').textContent()).toContain('not a medical device');
+        // The dev mailbox is offered to operators in the demo build (the mail fake runs under npm test).
+        expect(await nav.getByRole('link', { name: 'Mailbox (dev)' }).count()).toBe(1);
         await page.getByRole('button', { name: 'Sign out' }).click();
         await page.waitForURL(/\/sign-in\?notice=signed-out$/);
         await context.close();
@@ -61,6 +65,7 @@ describe('each demo role signs in, sees its navigation and signs out', () => {
       await expect(nav.getByRole('link', { name: 'Studies' }).isVisible()).resolves.toBe(true);
       await expect(nav.getByRole('link', { name: 'Members' }).isVisible()).resolves.toBe(true);
       expect(await nav.getByRole('link', { name: 'Site' }).count()).toBe(expectations[person.role].administration ? 1 : 0);
+      expect(await nav.getByRole('link', { name: 'Mailbox (dev)' }).count()).toBe(0);
       expect(await page.getByRole('heading', { name: 'New study' }).count()).toBe(expectations[person.role].newStudy ? 1 : 0);
       expect(await page.getByTestId('role').textContent()).toBe(person.role);
       expect(await page.getByTestId('whoami').textContent()).toContain(person.displayName);
@@ -173,6 +178,89 @@ describe('each demo role signs in, sees its navigation and signs out', () => {
     await page.getByRole('button', { name: 'Sign in' }).click();
     await page.waitForLoadState();
     expect(await page.getByTestId('form-error').textContent()).toContain('do not match an account');
+    await context.close();
+  });
+});
+
+// Words that offer to make something new; a reviewer must meet none of them as a button or link (issue 13, item 5).
+const CREATE_WORDS = /\b(create|new study|start (a|an) |bring in|invite)\b/i;
+// A permission code as the matrix spells it (`analysisSession:create`, `note:view`): never shown to a person.
+const PERMISSION_CODE = /\b[a-z]+[A-Za-z]*:[a-z][A-Za-z]*\b/;
+
+async function offeredActions(page: import('playwright-core').Page): Promise<string[]> {
+  return page.locator('main').getByRole('button').or(page.locator('main').getByRole('link')).evaluateAll((els) =>
+    els.filter((e) => (e as HTMLElement).offsetParent !== null).map((e) => (e.textContent ?? '').replace(/\s+/g, ' ').trim()),
+  );
+}
+
+describe('a role is offered only what it may do, and refusals speak plain words', () => {
+  it('a reviewer meets no create action on the team home, the study page or the workspace (Source and Recipe)', async () => {
+    const context = await browser.newContext({ viewport: { width: 1440, height: 900 } });
+    const page = await context.newPage();
+    await signInAs(page, demoPerson('reviewer'));
+    expect((await offeredActions(page)).filter((t) => CREATE_WORDS.test(t))).toEqual([]);
+    await page.getByTestId('study-list').getByRole('link', { name: DEMO_STUDY }).click();
+    await page.waitForURL(/\/studies\/[0-9a-f-]+$/);
+    expect((await offeredActions(page)).filter((t) => CREATE_WORDS.test(t))).toEqual([]);
+    // Every listed session links its own page.
+    const hrefs = await page.getByTestId('session-link').evaluateAll((as) => as.map((a) => a.getAttribute('href')));
+    for (const href of hrefs) expect(href).toMatch(/^\/teams\/[0-9a-f-]+\/studies\/[0-9a-f-]+\/sessions\/[0-9a-f-]+$/);
+
+    await page.getByRole('link', { name: 'Open the workspace' }).click();
+    await page.waitForURL(/\/workspace$/);
+    // A small recording of the invented Harbour Lights scenario (20 s), so the whole Source screen is drawn.
+    await dropFile(page, 'tm-roles-check-71.edf', writeSubjectEdf(describeCohort({ subjects: 1, seconds: 20 }).subjects[0]));
+    await page.getByTestId('recording-details').waitFor({ timeout: 30_000 });
+    await page.getByTestId('session-not-offered').waitFor();
+    expect((await offeredActions(page)).filter((t) => CREATE_WORDS.test(t))).toEqual([]);
+    await page.getByRole('tab', { name: 'Recipe' }).click();
+    expect((await offeredActions(page)).filter((t) => CREATE_WORDS.test(t))).toEqual([]);
+    await context.close();
+  });
+
+  it('refusals a person can meet name no permission code: an API answer, a form post and a guarded page', async () => {
+    const context = await browser.newContext();
+    const page = await context.newPage();
+    await openWorkspace(page, 'reviewer');
+    const [, teamId, studyId] = /\/teams\/([0-9a-f-]+)\/studies\/([0-9a-f-]+)\/workspace/.exec(page.url())!;
+    const refused = await page.evaluate(
+      async ({ teamId, studyId }) => {
+        const api = await fetch(`/api/studies/${studyId}/analysis-sessions`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ subjectCode: 'TM-S71', fingerprint: 'e'.repeat(64) }) });
+        const design = await fetch(`/api/studies/${studyId}/cohort/design`, { method: 'PUT', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ revision: null, cohort: {} }) });
+        const form = await fetch(`/teams/${teamId}`, { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: 'name=Shingle+drift' });
+        const doc = new DOMParser().parseFromString(await form.text(), 'text/html');
+        return {
+          api: { status: api.status, message: ((await api.json()) as { error: { message: string } }).error.message },
+          design: { status: design.status, message: ((await design.json()) as { error: { message: string } }).error.message },
+          form: { status: form.status, text: doc.querySelector('main')?.textContent?.replace(/\s+/g, ' ') ?? '' },
+        };
+      },
+      { teamId, studyId },
+    );
+    expect(refused.api.status).toBe(403);
+    expect(refused.api.message).toContain('may not create analysis sessions');
+    expect(refused.design.status).toBe(403);
+    expect(refused.form.status).toBe(403);
+    expect(refused.form.text).toContain('may not create studies');
+    for (const text of [refused.api.message, refused.design.message, refused.form.text]) expect(text).not.toMatch(PERMISSION_CODE);
+    // A page a role may not open: the lead-only report with unsigned sessions.
+    const report = await page.goto(`${appUrl}/teams/${teamId}/studies/${studyId}/cohort/report?unsigned=1`);
+    const body = (await page.locator('body').textContent()) ?? '';
+    expect(report?.status()).toBe(403);
+    expect(body).not.toMatch(PERMISSION_CODE);
+    await context.close();
+  });
+
+  it('each demo study offers its own demo data or none: the rest study offers no Harbour Lights file', async () => {
+    const context = await browser.newContext();
+    const page = await context.newPage();
+    await signInAs(page, demoPerson('analyst'));
+    await page.getByTestId('study-list').getByRole('link', { name: 'Ebb and flow rest blocks' }).click();
+    await page.getByRole('link', { name: 'Open the workspace' }).click();
+    await page.waitForURL(/\/workspace$/);
+    await page.getByTestId('no-demo-data').waitFor();
+    expect(await page.getByRole('button', { name: 'Open demo recording' }).count()).toBe(0);
+    expect(await page.getByText('Harbour Lights').count()).toBe(0);
     await context.close();
   });
 });

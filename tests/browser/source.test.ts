@@ -196,16 +196,21 @@ describe('Source screen: a recording opened on this device', () => {
     await context.close();
   });
 
-  it('shows the server’s 403 clearly when a reviewer tries to create an analysis session', async () => {
+  it('offers a reviewer no way to create an analysis session, and a forced request is refused in plain words', async () => {
     const context = await browser.newContext();
     const page = await signIn(context, 'reviewer');
     await dropFile(page, FILE_NAME, bytes);
     await page.getByTestId('recording-details').waitFor({ timeout: 30_000 });
-    await page.getByLabel('Subject code').fill('TM-S61');
-    await page.getByRole('button', { name: 'Create analysis session' }).click();
-    const problem = await page.getByTestId('session-problem').textContent();
-    expect(problem).toContain('Not allowed');
-    expect(problem).toContain('reviewer');
+    expect(await page.getByRole('button', { name: 'Create analysis session' }).count()).toBe(0);
+    expect(await page.getByTestId('session-not-offered').textContent()).toContain('reviewer');
+    // The same request the analyst's button sends, sent by hand: 403, and its message names no permission code.
+    const studyId = /\/studies\/([0-9a-f-]+)\/workspace/.exec(page.url())![1];
+    const answer = await page.evaluate(async (id) => {
+      const r = await fetch(`/api/studies/${id}/analysis-sessions`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ subjectCode: 'TM-S61', fingerprint: 'f'.repeat(64) }) });
+      return { status: r.status, message: ((await r.json()) as { error: { message: string } }).error.message };
+    }, studyId);
+    expect(answer.status).toBe(403);
+    expect(answer.message).toBe('Your role in this team (reviewer) may not create analysis sessions. Analysts may. Nothing was changed.');
     await context.close();
   });
 

@@ -173,7 +173,7 @@ export default function CohortScreen({ study, team, overview, may }: Props) {
           <p className="text-sm" data-testid="entering-count"><strong>{entering.length}</strong> of {overview.sessions.length} sessions enter{unsignedIn > 0 ? ` (${unsignedIn} unsigned)` : ''}.</p>
         </div>
         <div className="mt-3">
-          <SessionTable sessions={overview.sessions} bands={bands} window={tableWindow} condition={condition} covariateNames={covariates.names} covariates={covariates.bySubject} includeUnsigned={includeUnsigned} excluded={excluded} onToggle={onToggle} />
+          <SessionTable sessions={overview.sessions} bands={bands} unit={u} window={tableWindow} condition={condition} covariateNames={covariates.names} covariates={covariates.bySubject} includeUnsigned={includeUnsigned} excluded={excluded} onToggle={onToggle} />
         </div>
         {!verdict.ok && <p className="notice notice-warn mt-3" role="alert" data-testid="pooling-refused" data-field={verdict.field}>{verdict.message}</p>}
         {loadError && <p className="notice notice-warn mt-3" role="alert">{loadError}</p>}

@@ -103,7 +103,8 @@ export default function DesignPanel({ studyId, design, saved, conditions, covari
               <div key={t.name} data-testid="test-result" data-test={t.name}>
                 <h3 className="font-semibold">{t.name}</h3>
                 <p className="text-xs text-ink-soft">{discoveries} of {all.length} cells are discoveries (q ≤ {result ? design.design.fdr : ''}). {channel ? `Cells of ${channel}:` : 'Discoveries:'}</p>
-                <div className="max-h-72 overflow-auto">
+                {/* Scrolls on its own, so it takes keyboard focus (arrow keys scroll it). */}
+                <div className="max-h-72 overflow-auto" tabIndex={0} role="region" aria-label={`${t.name}: ${channel ? `cells of ${channel}` : 'discoveries'}`}>
                   <table className="data-table">
                     <thead><tr><th>Band</th><th>Window</th><th>Channel</th><th>n</th>{t.kind === 'regression' ? <><th>slope</th><th>r</th></> : <><th>mean</th><th>95 % CI</th><th>d_z</th></>}<th>t</th><th>p</th><th>q</th></tr></thead>
                     <tbody>

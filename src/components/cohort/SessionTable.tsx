@@ -7,6 +7,8 @@ import { fmt } from './plots';
 export interface SessionTableProps {
   sessions: CohortSessionRow[];
   bands: string[];
+  /** The unit of the band values (the recipe's normalization, e.g. "dB"), shown in each band column's header. */
+  unit: string;
   window: string;
   condition: string;
   covariateNames: string[];
@@ -20,7 +22,7 @@ type Row = CohortSessionRow & { enters: boolean; eligible: boolean };
 const column = createColumnHelper<Row>();
 
 /** Subjects and sessions: who enters, status, version, analyst, recipe, and the per-band values (mean over channels). */
-export default function SessionTable({ sessions, bands, window, condition, covariateNames, covariates, includeUnsigned, excluded, onToggle }: SessionTableProps) {
+export default function SessionTable({ sessions, bands, unit, window, condition, covariateNames, covariates, includeUnsigned, excluded, onToggle }: SessionTableProps) {
   const [sorting, setSorting] = useState<SortingState>([]);
   const [filter, setFilter] = useState('');
   const rows = useMemo<Row[]>(
@@ -52,7 +54,11 @@ export default function SessionTable({ sessions, bands, window, condition, covar
       ...bands.map((band) =>
         column.accessor((r) => r.digest[band]?.[window]?.[condition] ?? null, {
           id: `band:${band}`,
-          header: band,
+          header: () => (
+            <>
+              {band} <span className="font-normal text-ink-soft">({unit})</span>
+            </>
+          ),
           sortingFn: (a, b, id) => ((a.getValue<number | null>(id) ?? -Infinity) - (b.getValue<number | null>(id) ?? -Infinity)),
           cell: (c) => <span className="font-mono">{fmt(c.getValue())}</span>,
         }),
@@ -61,7 +67,7 @@ export default function SessionTable({ sessions, bands, window, condition, covar
         column.accessor((r) => covariates[r.subject]?.[name] ?? null, { id: `cov:${name}`, header: name, cell: (c) => <span className="font-mono">{c.getValue() ?? '—'}</span> }),
       ),
     ],
-    [bands, window, condition, covariateNames, covariates, onToggle],
+    [bands, unit, window, condition, covariateNames, covariates, onToggle],
   );
   const table = useReactTable({
     data: rows,

@@ -22,7 +22,10 @@ export interface MapPanelProps {
   focusable: boolean;
   cursor: Cell | null;
   onCursor: (cell: Cell | null) => void;
+  /** Shown beside the plot (below it, never over it). */
   warnings?: string[];
+  /** Draw the baseline band (default yes); a map the baseline does not act on (phase consistency) leaves it out. */
+  showBaseline?: boolean;
   /**
    * Drawn above the map in the panel's own coordinates (CSS pixels from the panel's top left), e.g. note pins:
    * `scales.time(seconds)` and `scales.frequency(hertz)` place a point; `layout` gives the plot rectangle.
@@ -52,7 +55,7 @@ function usePixelRatio(): number {
 
 /** One map as a canvas island, with the baseline band (drag body or edges; arrows one sample, shift 50 ms) on top. */
 export default function MapPanel(props: MapPanelProps) {
-  const { spec, baseline, dt, snap, onBaseline, focusable, cursor, onCursor, testId, warnings = [] } = props;
+  const { spec, baseline, dt, snap, onBaseline, focusable, cursor, onCursor, testId, warnings = [], showBaseline = true } = props;
   const height = props.height ?? 300;
   const wrap = useRef<HTMLDivElement>(null);
   const canvas = useRef<HTMLCanvasElement>(null);
@@ -155,10 +158,13 @@ export default function MapPanel(props: MapPanelProps) {
 
   const fmt = (s: number) => `${Number(s.toFixed(3))} s`;
   const bandTop = layout.top;
-  const bandHeight = layout.plotHeight + 14;
+  const bandHeight = layout.plotHeight;
+  let outlined = 0;
+  if (spec.outline) for (let i = 0; i < spec.outline.length; i++) outlined += spec.outline[i] !== 0 ? 1 : 0;
   const cursorX = cursor === null ? null : layout.left + ((cursor.t + 0.5) * layout.plotWidth) / nt;
   const cursorY = cursor === null ? null : layout.top + ((nf - 1 - cursor.f + 0.5) * layout.plotHeight) / nf;
   return (
+    <div className="flex w-full flex-col gap-1">
     <div
       ref={wrap}
       className="relative w-full select-none"
@@ -182,6 +188,7 @@ export default function MapPanel(props: MapPanelProps) {
         data-scale-kind={spec.scale.kind}
         data-scale-low={spec.scale.domain[0]}
         data-scale-high={spec.scale.domain[1]}
+        data-outlined={spec.outline ? outlined : undefined}
         role="img"
         aria-label={`${spec.title}: ${nf} frequencies × ${nt} times, colour in ${spec.unit}`}
         tabIndex={focusable ? 0 : -1}
@@ -193,6 +200,7 @@ export default function MapPanel(props: MapPanelProps) {
       {cursorX !== null && cursorY !== null && (
         <div aria-hidden className="pointer-events-none absolute border border-ink" style={{ left: cursorX - 4, top: cursorY - 4, width: 8, height: 8 }} />
       )}
+      {showBaseline && (
       <div
         role={focusable ? 'slider' : undefined}
         aria-hidden={focusable ? undefined : true}
@@ -203,7 +211,7 @@ export default function MapPanel(props: MapPanelProps) {
         aria-valuetext={`${fmt(baseline.start)} to ${fmt(baseline.end)}`}
         tabIndex={focusable ? 0 : -1}
         data-testid={`${testId}-baseline`}
-        className="absolute cursor-grab border-x-2 border-ink bg-sand/30 outline-offset-0 active:cursor-grabbing"
+        className="absolute cursor-grab border-x-2 border-ink bg-foam/35 outline-offset-0 active:cursor-grabbing"
         style={{ left: x0, top: bandTop, width: Math.max(4, x1 - x0), height: bandHeight, touchAction: 'none' }}
         onPointerDown={onPointerDown('body')}
         onPointerMove={onPointerMove}
@@ -223,20 +231,29 @@ export default function MapPanel(props: MapPanelProps) {
             aria-valuetext={fmt(baseline[kind])}
             tabIndex={focusable ? 0 : -1}
             data-testid={`${testId}-baseline-${kind}`}
-            className="absolute top-0 h-full w-3 cursor-ew-resize bg-ink/0 hover:bg-ink/30 focus-visible:bg-ink/30"
-            style={kind === 'start' ? { left: -7 } : { right: -7 }}
+            className="group absolute top-0 h-full w-4 cursor-ew-resize"
+            style={kind === 'start' ? { left: -9 } : { right: -9 }}
             onPointerDown={onPointerDown(kind)}
             onPointerMove={onPointerMove}
             onPointerUp={onPointerUp}
             onPointerCancel={onPointerUp}
             onKeyDown={onKey(kind)}
-          />
+          >
+            {/* The handle itself: an ink tab across the edge with two grip lines, always visible. */}
+            <span aria-hidden className="absolute left-1/2 flex h-7 w-2.5 -translate-x-1/2 flex-col items-center justify-center gap-0.5 rounded-sm bg-ink ring-1 ring-foam group-hover:bg-kelp-deep group-focus-visible:bg-kelp-deep" style={{ top: 'calc(50% - 14px)' }} data-testid={`${testId}-baseline-${kind}-handle`}>
+              <span className="h-px w-1.5 bg-foam" />
+              <span className="h-px w-1.5 bg-foam" />
+            </span>
+          </div>
         ))}
+        <span aria-hidden className="pointer-events-none absolute top-0.5 left-1 rounded-sm bg-ink/80 px-1 text-[10px] leading-tight text-foam">baseline</span>
       </div>
+      )}
+    </div>
       {warnings.length > 0 && (
-        <ul className="pointer-events-none absolute right-20 left-14 m-0 list-none p-0" style={{ top: layout.top + 4 }} data-testid={`${testId}-warnings`}>
+        <ul className="m-0 list-none p-0" style={{ marginLeft: layout.left }} data-testid={`${testId}-warnings`}>
           {warnings.map((w) => (
-            <li key={w} className="mb-1 rounded-sm border border-coral bg-coral-pale/90 px-2 py-0.5 text-xs text-coral-deep">
+            <li key={w} className="mb-1 rounded-sm border border-coral bg-coral-pale px-2 py-0.5 text-xs text-coral-deep">
               ⚠ {w}
             </li>
           ))}

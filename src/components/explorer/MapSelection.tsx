@@ -7,19 +7,42 @@ interface SelectionProps {
   /** Index of condition A, and of B for the difference A − B (−1: none). */
   a: number;
   b: number;
+  /** The decomposition's channel group names, and the one shown (null: the channel). */
+  groups: string[];
+  group: string | null;
   onView: (patch: Partial<ViewSettings>) => void;
 }
 
+const GROUP = 'group:';
+
 /** The Maps screen's channel, condition (A) and difference (A − B) choices. */
-export default function MapSelection({ d, channel, a, b, onView: setView }: SelectionProps) {
+export default function MapSelection({ d, channel, a, b, groups, group, onView: setView }: SelectionProps) {
   return (
     <>
       <label className="flex flex-col gap-0.5 text-xs text-ink-soft">
-        Channel
-        <select className="rounded-sm border border-shell bg-foam px-2 py-1 text-sm text-ink" value={channel} onChange={(e) => setView({ channel: e.target.value })} data-testid="maps-channel">
-          {d.channels.map((c) => (
-            <option key={c}>{c}</option>
-          ))}
+        Channel or group
+        <select
+          className="rounded-sm border border-shell bg-foam px-2 py-1 text-sm text-ink"
+          value={group !== null ? GROUP + group : channel}
+          onChange={(e) => setView(e.target.value.startsWith(GROUP) ? { channelGroup: e.target.value.slice(GROUP.length) } : { channel: e.target.value, channelGroup: null })}
+          data-testid="maps-channel"
+        >
+          <optgroup label="Channels">
+            {d.channels.map((c) => (
+              <option key={c} value={c}>
+                {c}
+              </option>
+            ))}
+          </optgroup>
+          {groups.length > 0 && (
+            <optgroup label="Channel groups (mean of the channels' maps)">
+              {groups.map((g) => (
+                <option key={g} value={GROUP + g}>
+                  {g}
+                </option>
+              ))}
+            </optgroup>
+          )}
         </select>
       </label>
       <label className="flex flex-col gap-0.5 text-xs text-ink-soft">
@@ -60,6 +83,8 @@ export interface Readout {
   f: number;
   raw: number;
   norm: number;
+  /** Phase consistency at the cell, when the decomposition has it. */
+  itpc?: number;
 }
 
 /** Time, frequency and both values under the cursor; `fresh` is no while single-trial maps are being remade. */
@@ -72,11 +97,12 @@ export function MapReadout({ readout, fresh, unit }: { readout: Readout | null; 
       data-frequency={readout?.f}
       data-raw={readout?.raw}
       data-normalized={readout?.norm}
+      data-itpc={readout?.itpc}
       data-fresh={fresh ? 'yes' : 'no'}
     >
       {readout === null
         ? 'Point at a map (or focus it and use the arrow keys) to read time, frequency and value.'
-        : `t ${Number(readout.t.toFixed(4))} s · f ${Number(readout.f.toPrecision(4))} Hz · raw ${fmtValue(readout.raw)} µV² · normalized ${fmtValue(readout.norm)} ${unit}`}
+        : `t ${Number(readout.t.toFixed(4))} s · f ${Number(readout.f.toPrecision(4))} Hz · raw ${fmtValue(readout.raw)} µV² · normalized ${fmtValue(readout.norm)} ${unit}${readout.itpc !== undefined ? ` · ITPC ${fmtValue(readout.itpc)}` : ''}`}
     </output>
   );
 }

@@ -95,7 +95,7 @@ export default function ConditionsPanel({ recording, conditions, epochWindow, se
                     <label htmlFor={`${id}-${l.label}`}>{l.label}</label>
                   </td>
                   <td className="font-mono">{l.count}</td>
-                  <td>{owner.get(l.label) ?? <span className="text-ink-faint">—</span>}</td>
+                  <td>{owner.get(l.label) ?? <span className="text-ink-soft">—</span>}</td>
                 </tr>
               ))}
             </tbody>
@@ -149,11 +149,11 @@ export default function ConditionsPanel({ recording, conditions, epochWindow, se
       >
         <div className="field w-28">
           <label htmlFor={`${id}-epoch-start`}>Epoch start (s)</label>
-          <input id={`${id}-epoch-start`} inputMode="decimal" value={startText} onChange={(e) => setStartText(e.target.value)} />
+          <input className="w-full min-w-0" id={`${id}-epoch-start`} inputMode="decimal" value={startText} onChange={(e) => setStartText(e.target.value)} />
         </div>
         <div className="field w-28">
           <label htmlFor={`${id}-epoch-end`}>Epoch end (s)</label>
-          <input id={`${id}-epoch-end`} inputMode="decimal" value={endText} onChange={(e) => setEndText(e.target.value)} />
+          <input className="w-full min-w-0" id={`${id}-epoch-end`} inputMode="decimal" value={endText} onChange={(e) => setEndText(e.target.value)} />
         </div>
         <button type="submit" className="btn btn-quiet">
           Apply window

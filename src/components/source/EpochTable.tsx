@@ -25,10 +25,13 @@ export default function EpochTable({ decisions, onOverride, onSelect }: Props) {
   const [condition, setCondition] = useState('');
   const [only, setOnly] = useState<'all' | 'rejected' | 'kept'>('all');
   const conditions = useMemo(() => [...new Set(decisions.map((d) => d.condition))], [decisions]);
+  // A row decided by hand stays in view whatever the verdict filter, so changing a decision never makes the row
+  // vanish under the pointer; it carries an "overridden by hand" marker instead.
   const rows = useMemo(
-    () => decisions.filter((d) => (condition === '' || d.condition === condition) && (only === 'all' || (only === 'rejected') === d.rejected)),
+    () => decisions.filter((d) => (condition === '' || d.condition === condition) && (only === 'all' || d.manual !== null || (only === 'rejected') === d.rejected)),
     [decisions, condition, only],
   );
+  const heldByHand = only === 'all' ? 0 : rows.filter((d) => d.manual !== null && (only === 'rejected') !== d.rejected).length;
 
   const columns = useMemo(
     () => [
@@ -48,12 +51,16 @@ export default function EpochTable({ decisions, onOverride, onSelect }: Props) {
       column.accessor((d) => (d.rejected ? 1 : 0), {
         id: 'verdict',
         header: 'Verdict',
-        cell: (c) =>
-          c.row.original.rejected ? (
-            <span className="font-semibold text-coral-deep">✕ Rejected</span>
-          ) : (
-            <span className="font-semibold text-kelp-deep">✓ Kept</span>
-          ),
+        cell: (c) => (
+          <>
+            {c.row.original.rejected ? <span className="font-semibold text-coral-deep">✕ Rejected</span> : <span className="font-semibold text-kelp-deep">✓ Kept</span>}
+            {c.row.original.manual !== null && (
+              <span className="ml-1 rounded border border-ink-soft px-1 font-sans text-2xs text-ink" data-testid="by-hand-marker">
+                overridden by hand
+              </span>
+            )}
+          </>
+        ),
       }),
       column.accessor((d) => d.reasons.join('; '), { id: 'reasons', header: 'Why', enableSorting: false }),
       column.display({
@@ -115,9 +122,10 @@ export default function EpochTable({ decisions, onOverride, onSelect }: Props) {
         </div>
         <p className="text-sm text-ink-soft" aria-live="polite">
           {rows.length} of {decisions.length} epochs shown
+          {heldByHand > 0 && `, ${heldByHand} of them ${only === 'rejected' ? 'kept' : 'rejected'} by hand and shown so you can see your decision`}
         </p>
       </div>
-      <div className="max-h-[32rem] overflow-auto rounded border border-sand-deep">
+      <div className="max-h-[20rem] overflow-auto rounded border border-sand-deep">
         <table className="data-table" data-testid="epoch-table">
           <thead className="sticky top-0 bg-foam">
             {table.getHeaderGroups().map((g) => (
@@ -147,6 +155,7 @@ export default function EpochTable({ decisions, onOverride, onSelect }: Props) {
                 data-testid="epoch-row"
                 data-event-index={r.original.eventIndex}
                 data-verdict={r.original.rejected ? 'rejected' : 'kept'}
+                data-by-hand={r.original.manual ?? undefined}
                 className={r.original.rejected ? 'bg-coral-pale/40' : undefined}
                 onFocus={() => onSelect(r.original.eventIndex)}
                 onMouseEnter={() => onSelect(r.original.eventIndex)}

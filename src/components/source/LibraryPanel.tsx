@@ -1,6 +1,6 @@
 import { useEffect, useState } from 'react';
 import { removeSharedLegacyLibrary, storageEstimate, type Library, type LibraryEntry } from '../../lib/client/library';
-import { formatBytes, shortFingerprint } from './format';
+import { formatBytes, storageShare, shortFingerprint } from './format';
 
 interface Props {
   /** The signed-in account's library. */
@@ -13,6 +13,34 @@ interface Props {
   currentFingerprint: string | null;
   onReopen: (entry: LibraryEntry) => void;
   notice: string | null;
+}
+
+/**
+ * How much of this browser's storage quota the site uses: the numbers, the share, and a bar filled by that share (a
+ * native <progress> painted a near-empty share as a full grey track, so the bar is drawn here: an outlined track, a
+ * kelp fill that is never thinner than a sliver when anything is stored).
+ */
+function StorageMeter({ usage, quota }: { usage: number; quota: number }) {
+  const share = storageShare(usage, quota);
+  return (
+    <div className="grid gap-1 text-sm" data-testid="storage-meter" data-fill-percent={share.fillPercent.toFixed(3)}>
+      <p id="library-usage-label">
+        Storage used: <span className="font-mono">{formatBytes(usage)}</span> of <span className="font-mono">{formatBytes(quota)}</span> this browser
+        allows (<span className="font-mono">{share.text}</span>)
+      </p>
+      <div
+        role="meter"
+        aria-labelledby="library-usage-label"
+        aria-valuemin={0}
+        aria-valuemax={100}
+        aria-valuenow={Number((share.fraction * 100).toFixed(4))}
+        aria-valuetext={`${formatBytes(usage)} of ${formatBytes(quota)}, ${share.text}`}
+        className="h-2.5 w-full overflow-hidden rounded-full border border-ink-soft bg-foam"
+      >
+        <div className="h-full rounded-full bg-kelp" style={{ width: `${share.fillPercent}%` }} />
+      </div>
+    </div>
+  );
 }
 
 /** Recordings kept in this browser (IndexedDB), with the storage quota; nothing of it leaves the device. */
@@ -53,19 +81,10 @@ export default function LibraryPanel({ library, expiryDays, version, busy, curre
   return (
     <div className="grid gap-3" data-testid="library">
       <p className="text-sm text-ink-soft">
-        Recordings you opened are kept in this browser only (IndexedDB), for your account, to reopen later. Nothing here
-        is synchronised. Each is removed {formatDays(expiryDays)} after you last opened it, and at sign-out unless you
-        choose to keep it.
+        Kept in this browser only (IndexedDB), for your account, never synchronised. Each recording is removed{' '}
+        {formatDays(expiryDays)} after you last opened it, and at sign-out unless you keep it.
       </p>
-      {estimate && (
-        <div className="grid gap-1 text-sm">
-          <label htmlFor="library-usage">
-            Storage used: <span className="font-mono">{formatBytes(estimate.usage)}</span> of{' '}
-            <span className="font-mono">{formatBytes(estimate.quota)}</span> this browser allows
-          </label>
-          <progress id="library-usage" max={estimate.quota} value={estimate.usage} className="h-2 w-full" />
-        </div>
-      )}
+      {estimate && <StorageMeter usage={estimate.usage} quota={estimate.quota} />}
       {expired.length > 0 && (
         <div className="notice notice-warn grid gap-1" role="status" data-testid="library-expired">
           <p>

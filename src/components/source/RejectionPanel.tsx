@@ -87,10 +87,10 @@ function TypeLimits(props: { type: ChannelType; unit: ChannelUnit; limits: { pea
     <tr data-testid="type-limits" data-type={type}>
       <td className="pr-3">{type}</td>
       <td className="pr-3">
-        <input aria-label={`Peak-to-peak limit for ${type} (${unit})`} inputMode="decimal" className="w-24" value={p2p} placeholder={fallback} onChange={(e) => setP2p(e.target.value)} onBlur={() => commit(p2p, flat)} onKeyDown={(e) => e.key === 'Enter' && commit(p2p, flat)} />
+        <input aria-label={`Peak-to-peak limit for ${type} (${unit})`} inputMode="decimal" className="w-40 rounded border border-shell bg-foam px-2 py-0.5" value={p2p} placeholder={fallback} onChange={(e) => setP2p(e.target.value)} onBlur={() => commit(p2p, flat)} onKeyDown={(e) => e.key === 'Enter' && commit(p2p, flat)} />
       </td>
       <td className="pr-3">
-        <input aria-label={`Flat limit for ${type} (${unit})`} inputMode="decimal" className="w-24" value={flat} placeholder={fallback} onChange={(e) => setFlat(e.target.value)} onBlur={() => commit(p2p, flat)} onKeyDown={(e) => e.key === 'Enter' && commit(p2p, flat)} />
+        <input aria-label={`Flat limit for ${type} (${unit})`} inputMode="decimal" className="w-40 rounded border border-shell bg-foam px-2 py-0.5" value={flat} placeholder={fallback} onChange={(e) => setFlat(e.target.value)} onBlur={() => commit(p2p, flat)} onKeyDown={(e) => e.key === 'Enter' && commit(p2p, flat)} />
       </td>
       <td className="font-mono">{unit}</td>
       <td>{error && <span className="field-error">{error}</span>}</td>

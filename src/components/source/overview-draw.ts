@@ -8,23 +8,29 @@ export interface Envelope {
   maxs: Float32Array;
 }
 
-/** Min and max of x over `columns` equal slices (a column with no sample repeats its neighbour's value). */
+/**
+ * Min and max of x per pixel column: sample i belongs to column floor(i·columns/n), the column the drawing puts it
+ * in (x = i/n · width), so column c holds samples ceil(c·n/columns) … ceil((c+1)·n/columns) − 1. With more columns
+ * than samples, a column with no sample repeats its left neighbour's values.
+ */
 export function envelope(x: Float32Array, columns: number): Envelope {
   const mins = new Float32Array(columns);
   const maxs = new Float32Array(columns);
   const n = x.length;
+  let i0 = 0;
   for (let c = 0; c < columns; c++) {
-    const i0 = Math.floor((c * n) / columns);
-    const i1 = Math.max(i0 + 1, Math.floor(((c + 1) * n) / columns));
+    // Integer ceil((c + 1)·n / columns), exact for n·columns < 2^53.
+    const i1 = Math.floor(((c + 1) * n + columns - 1) / columns);
     let lo = Infinity;
     let hi = -Infinity;
-    for (let i = i0; i < i1 && i < n; i++) {
+    for (let i = i0; i < i1; i++) {
       const v = x[i];
       if (v < lo) lo = v;
       if (v > hi) hi = v;
     }
     mins[c] = lo === Infinity ? (c > 0 ? mins[c - 1] : 0) : lo;
     maxs[c] = hi === -Infinity ? (c > 0 ? maxs[c - 1] : 0) : hi;
+    i0 = i1;
   }
   return { mins, maxs };
 }

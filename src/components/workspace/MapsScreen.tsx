@@ -1,7 +1,7 @@
 import { useEffect, useLayoutEffect, useMemo, useRef, useState } from 'react';
 import type { WorkspaceProps } from './types';
-import type { BaselineMethod, BaselineSpread } from '../../lib/analysis/baseline';
-import { divergingColormap, sequentialColormap } from '../../lib/plot/colormap';
+import type { BaselineMethod } from '../../lib/analysis/baseline';
+import { consistencyColormap, divergingColormap, sequentialColormap } from '../../lib/plot/colormap';
 import { extentLimits, methodUnit, neutralValue, ratioLimits, symmetricLimits, type ColourScale } from '../../lib/plot/colour-scale';
 import type { PanelSpec } from '../../lib/plot/panel';
 import { requestTrialMaps, useTrialMaps } from '../../lib/client/workspace/trial-maps';
@@ -10,7 +10,9 @@ import MapPanel, { type Cell } from '../explorer/MapPanel';
 import MapSelection, { MapReadout } from '../explorer/MapSelection';
 import NumberField from '../explorer/NumberField';
 import Choice from '../explorer/Choice';
-import { averageNormalized, baselinePoints, baselineWarnings, difference, snapToGrid } from '../explorer/map-model';
+import { baselinePoints, baselineWarnings, difference, snapToGrid } from '../explorer/map-model';
+import { channelIndicesOf, contrastOf, evokedOf, exportedRecipe, groupsOf, isRoutineNotice, itpcOf, normalizedOf, rawPowerOf, rayleighMarks, trialValuesCsv } from '../../lib/client/workspace/maps';
+import EvokedTrace from '../explorer/EvokedTrace';
 import { renderMapsPng } from '../explorer/export-maps';
 import { downloadBlob, fileSafe } from '../explorer/download';
 import MapExports from '../explorer/MapExports';
@@ -24,35 +26,61 @@ const METHODS: { value: BaselineMethod; label: string }[] = [
   { value: 'power-ratio', label: 'power ratio' },
 ];
 
-/** Raw and normalized time-frequency maps side by side, with the live baseline window. */
+/** Why a single-trial-scope map looks nearly uniform (shown whenever that scope is). */
+function singleTrialNote(method: BaselineMethod): string {
+  const base =
+    'Single-trial scope: every trial is divided by its own baseline before the trials are averaged. One trial’s power at one point scatters widely around its mean, so the per-trial values are noisy';
+  return method === 'decibel'
+    ? `${base}, and the logarithm of a noisy ratio is biased downwards (for pure noise power about −2.5 dB, 10·log10 of e^−γ; from memory) at every point alike. The map then looks nearly uniform around that offset; the trial average shows event-related changes with less bias.`
+    : `${base}; their mean changes little from point to point, so the map can look nearly uniform. The trial average shows event-related changes with less noise.`;
+}
+
+/** Raw and normalized time-frequency maps side by side, with the live baseline window, phase consistency and the evoked trace. */
 export default function MapsScreen(_props: WorkspaceProps) {
   const d = useResultsStore(selectActive);
   const trialHold = useResultsStore((s) => s.trialHold);
   const channel = useWorkspace((s) => s.channel);
+  const channelGroup = useWorkspace((s) => s.channelGroup);
   const condition = useWorkspace((s) => s.condition);
   const compareTo = useWorkspace((s) => s.compareTo);
+  const contrastBaseline = useWorkspace((s) => s.contrastBaseline);
   const baseline = useWorkspace((s) => s.baseline);
   const method = useWorkspace((s) => s.method);
   const scope = useWorkspace((s) => s.scope);
   const spread = useWorkspace((s) => s.spread);
-  // Across-trials z-scores need every trial's baseline: they come from the held trials, like single-trial scope.
-  const spreadTrials = method === 'z-score' && spread === 'trials';
-  const useTrials = scope === 'trial' || spreadTrials;
   const rawScale = useWorkspace((s) => s.rawScale);
   const heldLimits = useWorkspace((s) => s.heldLimits);
   const setView = useWorkspace((s) => s.set);
   const setBaseline = useWorkspace((s) => s.setBaseline);
   const [cursor, setCursor] = useState<Cell | null>(null);
+  const [trialExport, setTrialExport] = useState<{ busy: boolean; problem: string | null }>({ busy: false, problem: null });
   const trialMaps = useTrialMaps((s) => s.latest);
-  const buffers = useRef<{ a: Float64Array; b: Float64Array; diff: Float64Array; rawDiff: Float64Array } | null>(null);
+  // Buffers the average-scope maps are re-normalized into while the band moves (one channel: no allocation per move).
+  const buffers = useRef<{ a: Float64Array; b: Float64Array } | null>(null);
 
-  const ci = d === null ? -1 : Math.max(0, channel === null ? 0 : d.channels.indexOf(channel));
-  const ch = d === null ? null : d.channels[ci];
+  const groups = useMemo(() => (d === null ? [] : groupsOf(d)), [d]);
+  const group = channelGroup !== null && groups.some((g) => g.name === channelGroup) ? channelGroup : null;
+  const selection = useMemo(() => {
+    if (d === null) return null;
+    try {
+      return channelIndicesOf(d, channel, group);
+    } catch {
+      return channelIndicesOf(d, channel, null);
+    }
+  }, [d, channel, group]);
+  // Across-trials z-scores need every trial's baseline: they come from the held trials, like single-trial scope.
+  const spreadTrials = method === 'z-score' && spread === 'trials';
+  // The worker holds one channel's trials: a group map is always the mean of the channels' trial-average maps.
+  const useTrials = (scope === 'trial' || spreadTrials) && group === null;
+  const ci = selection === null ? -1 : selection.indices[0];
+  const ch = d === null || selection === null ? null : group === null ? d.channels[ci] : null;
+  const where = selection?.label ?? '';
   const a = d === null ? -1 : Math.max(0, condition === null ? 0 : d.labels.indexOf(condition));
   const bRaw = d === null || compareTo === null ? -1 : d.labels.indexOf(compareTo);
   const b = bRaw === a ? -1 : bRaw;
   const points = d === null ? { first: 0, last: 0 } : baselinePoints(d, baseline);
   const holdKey = d === null || ch === null ? null : `${d.key}|${ch}`;
+  const induced = d?.recipe.trialPower === 'induced';
 
   // Keep the view's selection valid for the shown decomposition.
   useEffect(() => {
@@ -61,8 +89,9 @@ export default function MapsScreen(_props: WorkspaceProps) {
     if (channel === null || !d.channels.includes(channel)) patch.channel = d.channels[0];
     if (condition === null || !d.labels.includes(condition)) patch.condition = d.labels[0];
     if (compareTo !== null && !d.labels.includes(compareTo)) patch.compareTo = null;
+    if (channelGroup !== null && group === null) patch.channelGroup = null;
     if (Object.keys(patch).length > 0) setView(patch);
-  }, [d, channel, condition, compareTo, setView]);
+  }, [d, channel, condition, compareTo, channelGroup, group, setView]);
 
   // Single-trial scope: the worker holds this channel's trials; ask it for the maps whenever the baseline moves.
   useEffect(() => {
@@ -78,21 +107,20 @@ export default function MapsScreen(_props: WorkspaceProps) {
 
   const nf = d === null ? 0 : d.frequencies.length;
   const nt = d === null ? 0 : d.times.length;
-  if (d !== null && (buffers.current === null || buffers.current.a.length !== nf * nt)) {
-    const n = nf * nt;
-    buffers.current = { a: new Float64Array(n), b: new Float64Array(n), diff: new Float64Array(n), rawDiff: new Float64Array(n) };
-  }
+  const indices = selection?.indices ?? [];
+  const indexKey = indices.join(',');
 
-  const limitsKey = `${method}|${b >= 0 ? 'difference' : 'single'}|${rawScale}`;
+  const limitsKey = `${method}|${b >= 0 ? `difference ${contrastBaseline}` : 'single'}|${rawScale}`;
   const rawSpec = useMemo((): PanelSpec | null => {
-    if (d === null || buffers.current === null) return null;
-    const pa = d.power[ci][a];
-    const values = b >= 0 ? difference(new Float64Array(nf * nt), pa, d.power[ci][b]) : pa;
+    if (d === null || selection === null) return null;
+    const pa = rawPowerOf(d, selection.indices, a);
+    const values = b >= 0 ? difference(new Float64Array(nf * nt), pa, rawPowerOf(d, selection.indices, b)) : pa;
     const kind = b >= 0 ? 'linear' : rawScale;
     const held = heldLimits !== null && heldLimits.key === limitsKey ? heldLimits.raw : null;
     const scale: ColourScale = { domain: held ?? (b >= 0 ? symmetricLimits(values, 0, d.mask) : extentLimits(values, rawScale, d.mask)), kind };
+    const power = induced ? 'Induced power' : 'Raw power';
     return {
-      title: b >= 0 ? `Raw power ${d.labels[a]} − ${d.labels[b]} · ${ch}` : `Raw power · ${d.labels[a]} · ${ch}`,
+      title: b >= 0 ? `${power} ${d.labels[a]} − ${d.labels[b]} · ${where}` : `${power} · ${d.labels[a]} · ${where}`,
       unit: 'µV²',
       values,
       times: d.times,
@@ -102,30 +130,38 @@ export default function MapsScreen(_props: WorkspaceProps) {
       colormap: b >= 0 ? divergingColormap() : sequentialColormap(),
       scale,
     };
-  }, [d, ci, a, b, rawScale, ch, nf, nt, heldLimits, limitsKey]);
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [d, indexKey, a, b, rawScale, where, nf, nt, heldLimits, limitsKey, induced]);
 
-  let normValues: Float64Array | null = null;
-  let normFresh = true;
-  if (d !== null && buffers.current !== null) {
+  // Average scope: re-normalized here in the controller's functions on every baseline move (F × T per channel).
+  const averageNorm = useMemo((): Float64Array | null => {
+    if (d === null || selection === null || useTrials) return null;
+    if (buffers.current === null || buffers.current.a.length !== nf * nt) buffers.current = { a: new Float64Array(nf * nt), b: new Float64Array(nf * nt) };
     const buf = buffers.current;
-    if (!useTrials) {
-      const na = averageNormalized(buf.a, d.power[ci][a], nt, points, method);
-      normValues = b >= 0 ? difference(buf.diff, na, averageNormalized(buf.b, d.power[ci][b], nt, points, method)) : na;
-    } else if (trialMaps !== null && trialMaps.key === holdKey) {
-      normFresh = trialMaps.first === points.first && trialMaps.last === points.last && trialMaps.method === method && trialMaps.spread === (spreadTrials ? 'trials' : 'time');
-      const na = trialMaps.maps[a];
-      normValues = b >= 0 ? difference(buf.diff, na, trialMaps.maps[b]) : na;
-    }
+    if (b < 0) return normalizedOf(d, selection.indices, a, points, method, buf.a);
+    if (contrastBaseline === 'shared') return contrastOf(d, selection.indices, a, b, points, method, 'shared');
+    const na = normalizedOf(d, selection.indices, a, points, method, buf.a);
+    return difference(new Float64Array(nf * nt), na, normalizedOf(d, selection.indices, b, points, method, buf.b));
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [d, indexKey, a, b, points.first, points.last, method, contrastBaseline, useTrials, nf, nt]);
+
+  let normValues: Float64Array | null = averageNorm;
+  let normFresh = true;
+  if (useTrials && trialMaps !== null && trialMaps.key === holdKey) {
+    normFresh = trialMaps.first === points.first && trialMaps.last === points.last && trialMaps.method === method && trialMaps.spread === (spreadTrials ? 'trials' : 'time');
+    const na = trialMaps.maps[a];
+    normValues = b >= 0 ? difference(new Float64Array(nf * nt), na, trialMaps.maps[b]) : na;
   }
   const neutral = b >= 0 ? 0 : neutralValue(method);
   // A power ratio is drawn on a log scale centred on 1, so a halving looks as strong as a doubling.
   const ratioScale = b < 0 && method === 'power-ratio';
   const heldNorm = heldLimits !== null && heldLimits.key === limitsKey ? heldLimits.normalized : null;
+  const contrastWords = b >= 0 ? ` · ${useTrials || contrastBaseline === 'own' ? 'own baselines' : 'shared baseline'}` : '';
   const normSpec: PanelSpec | null =
     d === null || normValues === null
       ? null
       : {
-          title: `${b >= 0 ? `${d.labels[a]} − ${d.labels[b]}` : d.labels[a]} · ${METHODS.find((m) => m.value === method)!.label} · ${scope === 'trial' ? 'single-trial' : 'trial-average'}${spreadTrials ? ' · S across trials' : ''} · ${ch}`,
+          title: `${b >= 0 ? `${d.labels[a]} − ${d.labels[b]}` : d.labels[a]} · ${METHODS.find((m) => m.value === method)!.label} · ${useTrials && scope === 'trial' ? 'single-trial' : 'trial-average'}${induced ? ' · induced' : ''}${spreadTrials && useTrials ? ' · S across trials' : ''}${contrastWords} · ${where}`,
           unit: methodUnit(method),
           values: normValues,
           times: d.times,
@@ -135,6 +171,39 @@ export default function MapsScreen(_props: WorkspaceProps) {
           colormap: divergingColormap(),
           scale: { domain: heldNorm ?? (ratioScale ? ratioLimits(normValues, d.mask) : symmetricLimits(normValues, neutral, d.mask)), kind: ratioScale ? 'log' : 'linear' },
         };
+
+  // Phase consistency of condition A on its own 0–1 scale; Rayleigh p < 0.05 outlined for a single channel.
+  const itpcSpec = useMemo((): PanelSpec | null => {
+    if (d === null || selection === null) return null;
+    const values = itpcOf(d, selection.indices, a);
+    if (values === null) return null;
+    return {
+      title: `ITPC · ${d.labels[a]} · ${where}`,
+      unit: 'ITPC',
+      values,
+      times: d.times,
+      frequencies: d.frequencies,
+      spacing: d.spacing,
+      edges: d.edges,
+      colormap: consistencyColormap(),
+      scale: { domain: [0, 1], kind: 'linear' },
+      outline: selection.indices.length === 1 ? rayleighMarks(values, d.trials[a]) : null,
+    };
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [d, indexKey, a, where]);
+
+  const evoked = useMemo(() => {
+    if (d === null || selection === null) return null;
+    const ea = evokedOf(d, selection.indices, a);
+    if (ea === null) return null;
+    const eb = b >= 0 ? evokedOf(d, selection.indices, b) : null;
+    return [
+      { values: ea, label: d.labels[a], colour: '#10283a' },
+      ...(eb !== null ? [{ values: eb, label: d.labels[b], colour: '#2f6f5e', dashed: true }] : []),
+    ];
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [d, indexKey, a, b]);
+
   const holdLimits = () => {
     if (heldLimits !== null) return setView({ heldLimits: null });
     if (rawSpec === null || normSpec === null) return;
@@ -157,18 +226,26 @@ export default function MapsScreen(_props: WorkspaceProps) {
     );
   }
   const warnings = baselineWarnings(d, points, baseline.end, method);
-  // The run's own baseline warning describes the baseline it ran with; the live one is drawn on the map.
+  // The run's own baseline warning describes the baseline it ran with; the live one is shown beside the map.
   const runWarnings = d.warnings.filter((w) => !w.startsWith('baseline:'));
+  const routine = runWarnings.filter(isRoutineNotice);
+  const problems = runWarnings.filter((w) => !isRoutineNotice(w));
   const dt = 1 / d.sampleRateHz;
   const snap = (s: number) => snapToGrid(d, s);
   const cell = cursor;
   const readout =
     cell === null || rawSpec === null
       ? null
-      : { t: d.times[cell.t], f: d.frequencies[cell.f], raw: rawSpec.values[cell.f * nt + cell.t], norm: normValues === null ? NaN : normValues[cell.f * nt + cell.t] };
+      : {
+          t: d.times[cell.t],
+          f: d.frequencies[cell.f],
+          raw: rawSpec.values[cell.f * nt + cell.t],
+          norm: normValues === null ? NaN : normValues[cell.f * nt + cell.t],
+          ...(itpcSpec !== null ? { itpc: itpcSpec.values[cell.f * nt + cell.t] } : {}),
+        };
 
-  const caption = `${ch} · baseline ${Number(baseline.start.toFixed(4))} to ${Number(baseline.end.toFixed(4))} s · ${method} · ${scope} scope · Tidemark`;
-  const stem = `maps-${fileSafe(ch ?? 'channel')}-${fileSafe(d.labels[a])}${b >= 0 ? `-minus-${fileSafe(d.labels[b])}` : ''}-${method}`;
+  const caption = `${where} · baseline ${Number(baseline.start.toFixed(4))} to ${Number(baseline.end.toFixed(4))} s · ${method} · ${scope} scope · Tidemark`;
+  const stem = `maps-${fileSafe(group ?? ch ?? 'channel')}-${fileSafe(d.labels[a])}${b >= 0 ? `-minus-${fileSafe(d.labels[b])}` : ''}-${method}`;
   const exportPng = async () => {
     if (rawSpec === null || normSpec === null) return;
     const blob = await renderMapsPng({ ...rawSpec, baseline }, { ...normSpec, baseline }, caption);
@@ -176,15 +253,38 @@ export default function MapsScreen(_props: WorkspaceProps) {
   };
   const exportRecipe = () => {
     // The run's recipe with the live baseline and fit range: everything `npm run analyze` needs to give these numbers.
-    const { fitRange } = useWorkspace.getState();
-    const recipe = { ...d.recipe, baseline: { start: baseline.start, end: baseline.end, method, scope, ...(spreadTrials ? { spread: 'trials' } : {}) }, aperiodic: { ...d.recipe.aperiodic, range: [fitRange[0], fitRange[1]] } };
+    const recipe = exportedRecipe(d, { baseline, method, scope, spreadTrials, fitRange: useWorkspace.getState().fitRange });
     downloadBlob(new Blob([JSON.stringify(recipe, null, 2) + '\n'], { type: 'application/json' }), 'recipe.json');
+  };
+
+  const exportTrialValues = async () => {
+    if (ch === null) return;
+    setTrialExport({ busy: true, problem: null });
+    try {
+      const { bands, windows } = useWorkspace.getState();
+      const csv = await trialValuesCsv(d, ch, bands, windows, baseline, points, method);
+      downloadBlob(new Blob([csv], { type: 'text/csv' }), `trial-values-${fileSafe(ch)}-${method}.csv`);
+      setTrialExport({ busy: false, problem: null });
+    } catch (error) {
+      setTrialExport({ busy: false, problem: `Per-trial values of ${ch} could not be made: ${error instanceof Error ? error.message : String(error)}` });
+    }
   };
 
   return (
     <div className="flex flex-col gap-4" data-testid="maps-screen">
       <div className="card flex flex-wrap items-end gap-4 p-3">
-        <MapSelection d={d} channel={ch ?? ''} a={a} b={b} onView={setView} />
+        <MapSelection d={d} channel={ch ?? d.channels[Math.max(0, ci)]} a={a} b={b} groups={groups.map((g) => g.name)} group={group} onView={setView} />
+        {b >= 0 && (
+          <Choice
+            legend="A − B normalized against"
+            value={contrastBaseline}
+            options={[
+              { value: 'own', label: 'own baseline' },
+              { value: 'shared', label: 'shared baseline' },
+            ]}
+            onChange={(c) => setView({ contrastBaseline: c })}
+          />
+        )}
         <Choice legend="Method" value={method} options={METHODS} onChange={(m) => setView({ method: m })} />
         {method === 'z-score' && (
           <Choice legend="z-score spread" value={spread} options={[{ value: 'time', label: 'over baseline time' }, { value: 'trials', label: 'across trials' }]} onChange={(s) => setView({ spread: s })} />
@@ -201,37 +301,84 @@ export default function MapsScreen(_props: WorkspaceProps) {
           <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale" onClick={() => void exportPng()} data-testid="export-png">
             Export PNG
           </button>
-          <MapExports raw={rawSpec && { ...rawSpec, baseline }} normalized={normSpec && { ...normSpec, baseline }} caption={caption} stem={stem} maps={[...(rawSpec ? [{ key: 'raw', label: 'raw power', spec: rawSpec }] : []), ...(normSpec ? [{ key: 'normalized', label: 'normalized', spec: normSpec, notes: [caption] }] : [])]} />
+          <MapExports raw={rawSpec && { ...rawSpec, baseline }} normalized={normSpec && { ...normSpec, baseline }} caption={caption} stem={stem} maps={[...(rawSpec ? [{ key: 'raw', label: 'raw power', spec: rawSpec }] : []), ...(normSpec ? [{ key: 'normalized', label: 'normalized', spec: normSpec, notes: [caption] }] : []), ...(itpcSpec ? [{ key: 'itpc', label: 'ITPC', spec: itpcSpec }] : [])]} />
           <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale" onClick={exportRecipe} data-testid="export-recipe">
             Export recipe JSON
           </button>
+          <button
+            type="button"
+            className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale disabled:opacity-50"
+            onClick={() => void exportTrialValues()}
+            disabled={ch === null || trialExport.busy}
+            title={ch === null ? 'Per-trial values come from one channel’s single trials: pick a channel' : 'Each trial normalized by its own baseline, averaged over each band (Bands screen) × window, one row per trial'}
+            data-testid="export-trial-values"
+          >
+            {trialExport.busy ? 'Making per-trial values…' : 'Export per-trial values (CSV)'}
+          </button>
         </div>
+        {trialExport.problem !== null && (
+          <p className="basis-full text-sm text-coral-deep" role="alert" data-testid="trial-values-problem">
+            {trialExport.problem}
+          </p>
+        )}
       </div>
       {useTrials && trialHold?.key === holdKey && trialHold.status !== 'ready' && (
         <p className={trialHold.status === 'failed' ? 'text-coral-deep' : 'text-ink-soft'} role="status">
           {trialHold.message}
         </p>
       )}
-      <div className="@container">
-      <div className="grid grid-cols-1 gap-3 @3xl:grid-cols-2">
+      {scope === 'trial' && group === null && (
+        <p className="text-sm text-ink-soft" data-testid="single-trial-note">
+          {singleTrialNote(method)}
+        </p>
+      )}
+      {group !== null && (scope === 'trial' || spreadTrials) && (
+        <p className="text-sm text-ink-soft" data-testid="group-scope-note">
+          Single trials are kept for one channel at a time, so a group map is the mean of its channels’ trial-average maps. Pick a channel for single-trial scope.
+        </p>
+      )}
+      {b >= 0 && contrastBaseline === 'shared' && useTrials && (
+        <p className="text-sm text-ink-soft" data-testid="contrast-scope-note">
+          The shared baseline applies to trial-average maps; in single-trial scope each trial keeps its own baseline.
+        </p>
+      )}
+      <div className="grid grid-cols-1 items-start gap-3 min-[1180px]:grid-cols-2" data-testid="maps-grid">
         {rawSpec !== null && (
           <div className="card p-2">
             <MapPanel testId="map-raw" spec={rawSpec} baseline={baseline} dt={dt} snap={snap} onBaseline={setBaseline} focusable={false} cursor={cursor} onCursor={setCursor} />
           </div>
         )}
-        <div className="card p-2">
+        {/* Two rows tall on a wide window, so the ITPC map sits straight under the raw one, beside the evoked trace. */}
+        <div className="card p-2 min-[1180px]:row-span-2">
           {normSpec !== null ? (
             <MapPanel testId="map-normalized" spec={normSpec} baseline={baseline} dt={dt} snap={snap} onBaseline={setBaseline} focusable cursor={cursor} onCursor={setCursor} warnings={warnings} />
           ) : (
             <p className="p-4 text-ink-soft">Preparing single-trial maps…</p>
           )}
+          {evoked !== null && <EvokedTrace testId="evoked-trace" times={d.times} series={evoked} title={`Evoked response (taken out of each epoch) · ${where}`} />}
         </div>
-      </div>
+        {itpcSpec !== null && (
+          <div className="card p-2">
+            <MapPanel testId="map-itpc" spec={itpcSpec} baseline={baseline} dt={dt} snap={snap} onBaseline={setBaseline} focusable={false} cursor={cursor} onCursor={setCursor} showBaseline={false} />
+            <p className="text-xs text-ink-soft" data-testid="itpc-note">
+              {selection !== null && selection.indices.length === 1
+                ? `Outlined: cells where Rayleigh’s test rejects evenly spread phases over the ${d.trials[a]} trials (p < 0.05, Zar’s approximation; uncorrected for the many cells tested).`
+                : 'A group’s ITPC is the mean of its channels’ values; Rayleigh’s test applies to one channel’s trials, so nothing is outlined here.'}
+            </p>
+          </div>
+        )}
       </div>
       <MapReadout readout={readout} fresh={normFresh} unit={methodUnit(method)} />
-      {runWarnings.length > 0 && (
-        <ul className="text-sm text-coral-deep">
-          {runWarnings.map((w) => (
+      {problems.length > 0 && (
+        <ul className="text-sm text-coral-deep" data-testid="run-warnings">
+          {problems.map((w) => (
+            <li key={w}>{w}</li>
+          ))}
+        </ul>
+      )}
+      {routine.length > 0 && (
+        <ul className="text-sm text-ink-soft" data-testid="run-notices">
+          {routine.map((w) => (
             <li key={w}>{w}</li>
           ))}
         </ul>

@@ -34,7 +34,7 @@ export default function OutboundScreen(_props: WorkspaceProps) {
                   <td className="font-mono text-xs">{e.failure ?? e.status ?? '…'}</td>
                   <td>
                     {e.body === null ? (
-                      <span className="text-ink-faint">none</span>
+                      <span className="text-ink-soft">none</span>
                     ) : (
                       <pre className="font-mono text-xs break-all whitespace-pre-wrap">{e.body}</pre>
                     )}

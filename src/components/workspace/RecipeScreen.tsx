@@ -12,6 +12,9 @@ import { usePanelVisible } from '../explorer/usePanelVisible';
 import Choice from '../explorer/Choice';
 import RunProgress, { ComputedList } from '../explorer/RunProgress';
 import RecipeChannels from '../explorer/RecipeChannels';
+import RecipeGroups, { groupProblems } from '../explorer/RecipeGroups';
+import { defaultGroupsFor } from '../../lib/client/workspace/channel-groups';
+import { useScreen } from '../../lib/client/workspace/navigation';
 import { useWorkspace } from '../../lib/client/workspace/store';
 
 /** Which input shows a core error for `field` (a dotted recipe path). */
@@ -20,6 +23,7 @@ function fieldGroup(field: string): string {
   if (field.startsWith('epochs.events')) return 'conditions';
   if (field.startsWith('cycles')) return 'cycles';
   if (field.startsWith('baseline')) return 'baseline';
+  if (field.startsWith('channelGroups')) return 'channelGroups';
   return field;
 }
 
@@ -77,9 +81,14 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   }
   const running = run.status === 'running';
   const cached = key !== null && cache[key] !== undefined;
+  // Channel groups are not part of the cache key: the kept decomposition is shown again with the edited groups.
+  const groupsChanged = cached && JSON.stringify(cache[key!].recipe.channelGroups ?? null) !== JSON.stringify(recipe.channelGroups ?? null);
   const start = () => {
     if (analysis === null || recordingId === null) return;
-    void runDecomposition(analysis, recordingId, recipe, viewChannel);
+    // A finished run goes on to the maps, unless the person has already moved to another screen.
+    void runDecomposition(analysis, recordingId, recipe, viewChannel).then((d) => {
+      if (d !== null) useScreen.getState().show('Maps', 'Recipe');
+    });
   };
   const cycleOptions: { value: CyclesMode; label: string }[] = [
     { value: 'range', label: 'cycles min–max' },
@@ -96,6 +105,8 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   })();
   const candidates = conditioned?.channelNames ?? recording.channelNames;
   const brain = conditioned === null ? candidates : candidates.filter((_, c) => isBrainType(conditioned.channelTypes[c]));
+  const analysed = draft.channels.length > 0 ? draft.channels : brain;
+  const localGroupProblems = draft.channelGroups ? groupProblems(draft.channelGroups) : [];
   const fs = recording.sampleRateHz;
   const loadFile = async (file: File) => {
     let json: unknown;
@@ -116,7 +127,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
       data-testid="recipe-screen"
       onSubmit={(e) => {
         e.preventDefault();
-        if (!running && check === null) start();
+        if (!running && check === null && localGroupProblems.length === 0) start();
       }}
     >
       <div className="card flex flex-wrap items-center gap-3 p-3">
@@ -210,6 +221,33 @@ export default function RecipeScreen(_props: WorkspaceProps) {
       </fieldset>
       <RecipeChannels chosen={draft.channels} candidates={candidates} brain={brain} error={errorFor('channels')} onChoose={(channels) => setDraft({ channels })} />
       <fieldset className="card flex flex-wrap items-end gap-4 p-3">
+        <legend className="px-1 text-sm font-semibold">Power and phase</legend>
+        <Choice
+          legend="Power of"
+          value={draft.trialPower ?? 'total'}
+          options={[
+            { value: 'total', label: 'whole epochs (total)' },
+            { value: 'induced', label: 'epochs minus the evoked response (induced)' },
+          ]}
+          onChange={(p) => setDraft({ trialPower: p })}
+        />
+        <label className="flex items-center gap-1 text-sm">
+          <input type="checkbox" checked={draft.itpc === true} onChange={(e) => setDraft({ itpc: e.target.checked })} data-testid="recipe-itpc" />
+          inter-trial phase consistency (ITPC) beside power
+        </label>
+        {errorFor('trialPower') && (
+          <p className="basis-full text-sm text-coral-deep" role="alert">
+            trialPower {errorFor('trialPower')}
+          </p>
+        )}
+      </fieldset>
+      <RecipeGroups
+        groups={draft.channelGroups ?? null}
+        defaults={defaultGroupsFor(analysed)}
+        error={check !== null && check.field === 'channelGroups' ? check.message || check.problem : null}
+        onGroups={(channelGroups) => setDraft({ channelGroups })}
+      />
+      <fieldset className="card flex flex-wrap items-end gap-4 p-3">
         <legend className="px-1 text-sm font-semibold">Spectrum and aperiodic fit</legend>
         <NumberField label="Welch segment" unit="s" value={draft.spectrum.segment} step={0.25} error={errorFor('spectrum.segment')} onValue={(v) => setDraft({ spectrum: { ...draft.spectrum, segment: v } })} />
         <NumberField label="Overlap" unit="fraction" value={draft.spectrum.overlap} step={0.05} error={errorFor('spectrum.overlap')} onValue={(v) => setDraft({ spectrum: { ...draft.spectrum, overlap: v } })} />
@@ -223,14 +261,14 @@ export default function RecipeScreen(_props: WorkspaceProps) {
           baseline {errorFor('baseline')} (set it on the Maps screen)
         </p>
       )}
-      {check !== null && !['frequencies.min', 'frequencies.max', 'frequencies.count', 'cycles', 'conditions', 'channels', 'epochs.start', 'epochs.end', 'spectrum.segment', 'spectrum.overlap', 'aperiodic.range', 'baseline'].includes(check.field) && (
+      {check !== null && !['frequencies.min', 'frequencies.max', 'frequencies.count', 'cycles', 'conditions', 'channels', 'epochs.start', 'epochs.end', 'spectrum.segment', 'spectrum.overlap', 'aperiodic.range', 'baseline', 'channelGroups', 'trialPower'].includes(check.field) && (
         <p className="text-sm text-coral-deep" role="alert">
           {check.message}
         </p>
       )}
       <div className="flex flex-wrap items-center gap-3">
-        <button type="submit" disabled={running || check !== null} className="rounded-sm bg-kelp px-4 py-2 font-semibold text-foam hover:bg-kelp-deep disabled:opacity-50" data-testid="recipe-run">
-          {cached ? (activeKey === key ? 'Shown on Maps' : 'Show (already computed)') : 'Run decomposition'}
+        <button type="submit" disabled={running || check !== null || localGroupProblems.length > 0} className="rounded-sm bg-kelp px-4 py-2 font-semibold text-foam hover:bg-kelp-deep disabled:opacity-50" data-testid="recipe-run">
+          {cached ? (activeKey === key && !groupsChanged ? 'Shown on Maps' : groupsChanged ? 'Show with these channel groups' : 'Show (already computed)') : 'Run decomposition'}
         </button>
         {running && (
           <button type="button" className="rounded-sm border border-coral px-4 py-2 text-coral-deep" onClick={cancelDecomposition} data-testid="recipe-cancel">

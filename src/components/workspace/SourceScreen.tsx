@@ -17,7 +17,11 @@ import SessionPanel from '../source/SessionPanel';
 import UnitChoice, { withDecision, type UnitDecision } from '../source/UnitChoice';
 import IntakeProgress, { type Busy } from '../source/IntakeProgress';
 import IntakeProblemNotice from '../source/IntakeProblemNotice';
-import { formatBytes } from '../source/format';
+import { formatBytes, formatSeconds } from '../source/format';
+import SourceStep, { SOURCE_STEPS, type SourceStepId } from '../source/SourceStep';
+import SourceSteps from '../source/SourceSteps';
+import type { Recording } from '../../lib/analysis/recording';
+import type { ConditioningSettings, Condition, EpochDecision, LocalRecordingInfo } from '../../lib/client/workspace/source-rules';
 import { useWorkspace } from '../../lib/client/workspace/store';
 
 /** The last open attempt, so a reading choice can open the same file again. */
@@ -28,6 +32,42 @@ interface Attempt {
   from: Origin;
   events: { blob: Blob; name: string } | null;
   demoCode?: string;
+}
+
+const STEP_TITLES: Record<SourceStepId, string> = {
+  recording: 'The recording',
+  channels: 'Channels, reference and filters',
+  events: 'Events to conditions',
+  epochs: 'Epochs over the recording',
+  session: 'Analysis session',
+};
+
+function defaultFolds(recording: Recording | null): ReadonlySet<SourceStepId> {
+  const types = recording?.channelTypes;
+  return new Set<SourceStepId>(types !== undefined && types.length > 0 && new Set(types).size === 1 ? ['channels'] : []);
+}
+
+/** One line per step of where it stands, for the step strip and each step's title line. */
+function sourceDigests(
+  recording: Recording,
+  local: LocalRecordingInfo,
+  conditioning: ConditioningSettings,
+  conditions: Condition[],
+  decisions: EpochDecision[],
+  epochWindow: { start: number; end: number },
+  mayCreateSessions: boolean,
+): Record<SourceStepId, string> {
+  const samples = recording.data[0]?.length ?? 0;
+  const kept = decisions.filter((d) => !d.rejected).length;
+  const byHand = decisions.filter((d) => d.manual !== null).length;
+  const reference = conditioning.reference === null ? 'as recorded' : conditioning.reference.kind.replace(/-/g, ' ');
+  return {
+    recording: `${recording.channelNames.length} channels · ${recording.sampleRateHz} Hz · ${formatSeconds(samples / recording.sampleRateHz)} · ${formatBytes(local.sizeBytes)}`,
+    channels: `${conditioning.bad.length === 0 ? 'no bad channels' : `${conditioning.bad.length} bad`} · reference ${reference} · ${conditioning.filters === null ? 'no filters' : 'filtered'}`,
+    events: `${recording.events.length} events · ${conditions.length === 1 ? '1 condition' : `${conditions.length} conditions`} · window ${epochWindow.start} … ${epochWindow.end} s`,
+    epochs: `${decisions.length} epochs · ${kept} kept · ${decisions.length - kept} rejected${byHand > 0 ? ` (${byHand} decided by hand)` : ''}`,
+    session: mayCreateSessions ? 'subject code and fingerprint only' : 'analysts start sessions',
+  };
 }
 
 export default function SourceScreen(props: WorkspaceProps) {
@@ -53,6 +93,25 @@ export default function SourceScreen(props: WorkspaceProps) {
   const [overviewChannel, setOverviewChannel] = useState('');
   const [selectedEvent, setSelectedEvent] = useState<number | null>(null);
   const lastAttempt = useRef<Attempt | null>(null);
+  // Which steps are folded, for the recording that is open. A new recording starts from the defaults: Channels is
+  // folded when every channel has one type as read from the file (nothing to sort out), open otherwise; a problem
+  // with channels, reference or filters always opens it.
+  const [foldedBy, setFoldedBy] = useState<{ fingerprint: string | null; steps: ReadonlySet<SourceStepId> }>({ fingerprint: null, steps: new Set() });
+  const channelProblem = settingsError !== null && /^(signals|reference|filters)/.test(settingsError) ? settingsError : null;
+  const chosenFolds = foldedBy.fingerprint === fingerprint ? foldedBy.steps : defaultFolds(recording);
+  const folded: ReadonlySet<SourceStepId> = channelProblem === null ? chosenFolds : new Set([...chosenFolds].filter((s) => s !== 'channels'));
+  const setFolded = (steps: ReadonlySet<SourceStepId>) => setFoldedBy({ fingerprint, steps });
+  const fold = (step: SourceStepId, folding: boolean) => {
+    const next = new Set(folded);
+    if (folding) next.add(step);
+    else next.delete(step);
+    setFolded(next);
+  };
+  const goTo = (step: SourceStepId) => {
+    fold(step, false);
+    requestAnimationFrame(() => document.getElementById(`step-${step}`)?.scrollIntoView({ block: 'start' }));
+  };
+  const digests: Partial<Record<SourceStepId, string>> = recording && local ? sourceDigests(recording, local, conditioning, conditions, decisions, epochWindow, props.mayCreateSessions) : {};
 
   const refuse = (fileName: string, message: string) =>
     setProblem({ fileName, error: { file: 'recording', message, problem: message, field: null, byteOffset: null, signal: null, row: null, column: null, dimension: null } });
@@ -147,7 +206,12 @@ export default function SourceScreen(props: WorkspaceProps) {
           </h2>
           <OpenPanel busy={busy !== null} onOpenEdf={openEdf} onOpenCsv={openCsv} onEvents={pairEvents} onRefuse={(m) => refuse('That file', m)} />
           <hr className="tide-rule" />
-          {import.meta.env.TIDEMARK_DEMO && <DemoPicker busy={busy !== null} onPick={(s) => void openDemo(s)} />}
+          {import.meta.env.TIDEMARK_DEMO && props.offersDemoCohort !== false && <DemoPicker busy={busy !== null} onPick={(s) => void openDemo(s)} />}
+          {import.meta.env.TIDEMARK_DEMO && props.offersDemoCohort === false && (
+            <p className="text-sm text-ink-soft" data-testid="no-demo-data">
+              This study has no demo recordings: the demo cohort belongs to another study. Open a recording of your own.
+            </p>
+          )}
           {busy && <IntakeProgress busy={busy} />}
           {problem && (
             <IntakeProblemNotice fileName={problem.fileName} error={problem.error} onDismiss={() => setProblem(null)}>
@@ -165,42 +229,35 @@ export default function SourceScreen(props: WorkspaceProps) {
 
       {recording && local && fingerprint ? (
         <>
-          <section className="card grid min-w-0 gap-3" aria-labelledby="source-details" data-testid="recording-details">
-            <h2 id="source-details" className="text-lg font-semibold">
-              The recording <span className="text-sm font-normal text-ink-soft">({formatBytes(local.sizeBytes)})</span>
-            </h2>
-            <LocalDetails recording={recording} local={local} fingerprint={fingerprint} origin={origin} />
-          </section>
-          <section className="card grid min-w-0 gap-3" aria-labelledby="source-channels" data-testid="channels-panel">
-            <h2 id="source-channels" className="text-lg font-semibold">
-              Channels, reference and filters
-            </h2>
-            <ChannelsPanel
-              recording={recording}
-              conditioning={conditioning}
-              onChange={(p) => store().setConditioning(p)}
-              problem={settingsError !== null && /^(signals|reference|filters)/.test(settingsError) ? settingsError : null}
-            />
-          </section>
-          <section className="card grid min-w-0 gap-3" aria-labelledby="source-conditions">
-            <h2 id="source-conditions" className="text-lg font-semibold">
-              Events to conditions
-            </h2>
-            {local.eventTable && <EventTablePanel key={`${fingerprint}|${local.eventTable.header.join('\t')}`} header={local.eventTable.header} selection={eventSelection} onApply={(s) => store().setEventSelection(s)} />}
-            <ConditionsPanel
-              key={fingerprint}
-              recording={recording}
-              conditions={conditions}
-              epochWindow={epochWindow}
-              settingsError={settingsError}
-              onConditions={(c) => store().setConditions(c)}
-              onWindow={(w) => store().setEpochWindow(w)}
-            />
-          </section>
-          <section className="card grid min-w-0 gap-3" aria-labelledby="source-overview">
-            <h2 id="source-overview" className="text-lg font-semibold">
-              Epochs over the recording
-            </h2>
+          <SourceSteps titles={STEP_TITLES} digests={digests} folded={folded} onGo={goTo} onFoldAll={(fold) => setFolded(new Set(fold ? SOURCE_STEPS : []))} />
+          <div className="grid items-start gap-6 lg:grid-cols-2">
+            <div className="grid min-w-0 gap-6">
+              <SourceStep step="recording" title={STEP_TITLES.recording} digest={digests.recording} open={!folded.has('recording')} onToggle={(o) => fold('recording', !o)} testId="recording-details">
+                <LocalDetails recording={recording} local={local} fingerprint={fingerprint} origin={origin} />
+              </SourceStep>
+              <SourceStep step="channels" title={STEP_TITLES.channels} digest={digests.channels} open={!folded.has('channels')} onToggle={(o) => fold('channels', !o)} testId="channels-panel">
+                <ChannelsPanel
+                  recording={recording}
+                  conditioning={conditioning}
+                  onChange={(p) => store().setConditioning(p)}
+                  problem={channelProblem}
+                />
+              </SourceStep>
+            </div>
+            <SourceStep step="events" title={STEP_TITLES.events} digest={digests.events} open={!folded.has('events')} onToggle={(o) => fold('events', !o)}>
+              {local.eventTable && <EventTablePanel key={`${fingerprint}|${local.eventTable.header.join('\t')}`} header={local.eventTable.header} selection={eventSelection} onApply={(s) => store().setEventSelection(s)} />}
+              <ConditionsPanel
+                key={fingerprint}
+                recording={recording}
+                conditions={conditions}
+                epochWindow={epochWindow}
+                settingsError={settingsError}
+                onConditions={(c) => store().setConditions(c)}
+                onWindow={(w) => store().setEpochWindow(w)}
+              />
+            </SourceStep>
+          </div>
+          <SourceStep step="epochs" title={STEP_TITLES.epochs} digest={digests.epochs} open={!folded.has('epochs')} onToggle={(o) => fold('epochs', !o)}>
             <OverviewTrace
               recording={recording}
               decisions={decisions}
@@ -209,29 +266,25 @@ export default function SourceScreen(props: WorkspaceProps) {
               onChannel={setOverviewChannel}
               selectedEvent={selectedEvent}
             />
-          </section>
-          {decisions.length > 0 && (
-            <section className="card grid min-w-0 gap-3" aria-labelledby="source-rejection">
-              <h2 id="source-rejection" className="text-lg font-semibold">
-                Epoch rejection
-              </h2>
-              <RejectionPanel
-                recording={recording}
-                rejection={rejection}
-                conditioning={conditioning}
-                decisions={decisions}
-                overviewChannel={overviewChannel || recording.channelNames[0]}
-                onRejection={(p) => store().setRejection(p)}
-                onOverride={(i, d) => store().setOverride(i, d)}
-                onSelect={setSelectedEvent}
-              />
-            </section>
-          )}
-          <section className="card grid min-w-0 gap-3" aria-labelledby="source-session">
-            <h2 id="source-session" className="text-lg font-semibold">
-              Analysis session
-            </h2>
+            {decisions.length > 0 && (
+              <div className="grid min-w-0 gap-3 border-t border-sand-deep pt-3" data-testid="rejection-block">
+                <h3 className="font-semibold">Epoch rejection</h3>
+                <RejectionPanel
+                  recording={recording}
+                  rejection={rejection}
+                  conditioning={conditioning}
+                  decisions={decisions}
+                  overviewChannel={overviewChannel || recording.channelNames[0]}
+                  onRejection={(p) => store().setRejection(p)}
+                  onOverride={(i, d) => store().setOverride(i, d)}
+                  onSelect={setSelectedEvent}
+                />
+              </div>
+            )}
+          </SourceStep>
+          <SourceStep step="session" title={STEP_TITLES.session} digest={digests.session} open={!folded.has('session')} onToggle={(o) => fold('session', !o)}>
             <SessionPanel
+              teamId={props.team.id}
               studyId={props.study.id}
               fingerprint={fingerprint}
               subjectCode={subjectCode}
@@ -239,7 +292,7 @@ export default function SourceScreen(props: WorkspaceProps) {
               role={props.role}
               onSubjectCode={(code) => store().set({ subjectCode: code })}
             />
-          </section>
+          </SourceStep>
         </>
       ) : (
         <p className="text-ink-soft">No recording is open yet. Whatever you open stays on this device.</p>

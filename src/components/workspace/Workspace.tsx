@@ -1,4 +1,4 @@
-import { lazy, Suspense, useEffect, useRef, useState, type ComponentType, type KeyboardEvent } from 'react';
+import { lazy, Suspense, useEffect, useRef, type ComponentType, type KeyboardEvent } from 'react';
 import { screens, type ScreenName, type WorkspaceProps } from './types';
 import SourceScreen from './SourceScreen';
 import RecipeScreen from './RecipeScreen';
@@ -6,6 +6,7 @@ import OutboundScreen from './OutboundScreen';
 import SignInWatch from './SignInWatch';
 import MemoryBar from './MemoryBar';
 import { bindAccount } from '../../lib/client/workspace';
+import { useScreen } from '../../lib/client/workspace/navigation';
 
 // The plot-heavy screens are chunks of their own, fetched after the island starts: the Source screen is usable
 // before the plotting code has arrived.
@@ -33,7 +34,9 @@ const components: Record<ScreenName, ComponentType<WorkspaceProps>> = {
 
 /** The analysis workspace: one island, one tab per screen. Screens read the workspace controller's state and paint. */
 export default function Workspace(props: WorkspaceProps) {
-  const [active, setActive] = useState<ScreenName>('Source');
+  // In the controller, so finishing a run on the Recipe screen can move on to Maps.
+  const active = useScreen((s) => s.active) as ScreenName;
+  const setActive = useScreen((s) => s.show);
   const tabs = useRef<Record<string, HTMLButtonElement | null>>({});
   // The account's own saved workspaces (IndexedDB per account), looked up whenever a recording is opened.
   useEffect(() => bindAccount(props.userId), [props.userId]);

@@ -5,6 +5,8 @@ export interface WorkspaceProps {
   team: { id: string; name: string };
   role: Role;
   mayCreateSessions: boolean;
+  /** The demo build offers the generated demo cohort only where it matches the study (DEMO_STUDY_DATA in db/seed). */
+  offersDemoCohort?: boolean;
   /** The signed-in account: its local library is its own (src/lib/client/library.ts). */
   userId: string;
   /** Days a recording stays in the local library after it was last opened (settings.libraryDays). */

@@ -45,6 +45,24 @@ export function logTicks(scale: AxisScale, count = 6): number[] {
   return thin.length >= 2 ? thin : all;
 }
 
+/**
+ * Ticks of an axis that always show where the range ends: the scale's own ticks (nice steps: 1, 2 or 5 × 10^k, as
+ * d3's `ticks` picks them; `log` thins them to 1, 2 and 5 × 10^k) plus `lo` and `hi`, the first and last grid
+ * values, with any nice tick closer than `minGapPx` pixels to an end left out so labels never overlap.
+ */
+export function ticksWithEnds(scale: AxisScale, lo: number, hi: number, count: number, log: boolean, minGapPx = 28): number[] {
+  const nice = (log ? logTicks(scale, count) : scale.ticks(count)).filter((v) => v > Math.min(lo, hi) && v < Math.max(lo, hi));
+  const ends = [lo, hi];
+  const inner = nice.filter((v) => ends.every((e) => Math.abs(scale(v) - scale(e)) >= minGapPx));
+  return [lo, ...inner, hi];
+}
+
+/** Label of a range end (a grid value, not a nice step): up to 4 significant digits, so 1.998 is not shown as 2. */
+export function formatEndTick(v: number): string {
+  if (v === 0) return '0';
+  return Number(v.toPrecision(4)).toString();
+}
+
 /** Short tick label: integers plain, otherwise up to 3 significant digits. */
 export function formatTick(v: number): string {
   if (v === 0) return '0';

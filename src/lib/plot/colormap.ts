@@ -1,4 +1,4 @@
-import { interpolateCividis, interpolatePuOr } from 'd3-scale-chromatic';
+import { interpolateBlues, interpolateCividis, interpolatePuOr } from 'd3-scale-chromatic';
 
 /**
  * A colormap sampled once into a lookup table of packed RGBA words, so a map of 40 × 1536 cells is coloured with
@@ -38,6 +38,7 @@ export function sampleColormap(name: string, interpolate: (t: number) => string,
 
 let sequential: Colormap | null = null;
 let diverging: Colormap | null = null;
+let consistency: Colormap | null = null;
 
 /** Raw power: cividis, perceptually uniform and readable with red-green colour blindness (Nuñez et al., 2018, PLoS ONE 13:e0199239). */
 export function sequentialColormap(): Colormap {
@@ -47,4 +48,9 @@ export function sequentialColormap(): Colormap {
 /** Normalized power: purple (below the neutral value) through near-white to orange (above), a colour-blind-safe diverging scheme (ColorBrewer PuOr). */
 export function divergingColormap(): Colormap {
   return (diverging ??= sampleColormap('PuOr', interpolatePuOr));
+}
+
+/** Phase consistency (0 … 1): a single-hue sequential scale from near-white to deep blue (ColorBrewer Blues), unlike raw power's. */
+export function consistencyColormap(): Colormap {
+  return (consistency ??= sampleColormap('Blues', interpolateBlues));
 }

@@ -2,7 +2,7 @@ import { frequencyScale, timeScale, type AxisScale } from './axes';
 import type { Colormap } from './colormap';
 import type { ColourScale } from './colour-scale';
 import type { EdgeZones } from './edge-zone';
-import { drawAxes, drawBaselineBand, drawColourBar, FOAM, type Ctx, type PanelLayout } from './figure';
+import { drawAxes, drawBaselineBand, drawColourBar, drawMaskOutline, FOAM, type Ctx, type PanelLayout } from './figure';
 import { rasterizeMap, type ImageBuffer } from './raster';
 
 /** Everything one map panel shows. */
@@ -18,6 +18,8 @@ export interface PanelSpec {
   scale: ColourScale;
   /** Draw the baseline band into the picture (exports); the live island draws it in the DOM instead. */
   baseline?: { start: number; end: number } | null;
+  /** Cells to outline (`[f·T + t]` 1 = marked), e.g. phase consistency with Rayleigh p < 0.05; null or absent: none. */
+  outline?: ArrayLike<number> | null;
 }
 
 export interface PanelScales {
@@ -67,8 +69,16 @@ export function paintPanel(
   ctx.fillRect(0, 0, layout.width, layout.height);
   ctx.putImageData(image, Math.round((originX + layout.left) * r), Math.round((originY + layout.top) * r));
   const scales = panelScales(layout, spec.times, spec.frequencies, spec.spacing);
+  if (spec.outline) drawMaskOutline(ctx, layout, spec.outline, nf, nt);
   if (spec.baseline) drawBaselineBand(ctx, layout, scales.time, spec.baseline.start, spec.baseline.end);
-  drawAxes(ctx, layout, { title: spec.title, time: scales.time, frequency: scales.frequency, frequencyLog: spec.spacing === 'log' });
+  drawAxes(ctx, layout, {
+    title: spec.title,
+    time: scales.time,
+    frequency: scales.frequency,
+    frequencyLog: spec.spacing === 'log',
+    timeEnds: [spec.times[0], spec.times[nt - 1]],
+    frequencyEnds: [spec.frequencies[0], spec.frequencies[nf - 1]],
+  });
   drawColourBar(ctx, layout, spec.colormap, spec.scale, spec.unit);
   return scales;
 }

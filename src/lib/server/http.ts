@@ -1,6 +1,6 @@
 import type { APIContext } from 'astro';
 import type { z } from 'zod';
-import { can, type Action, type Role } from '../permissions';
+import { can, refusalWords, type Action, type Role } from '../permissions';
 import { isDatabaseUnavailable } from '../../db/client';
 
 export interface ErrorBody {
@@ -48,7 +48,7 @@ export function notFound(what = 'That'): never {
 }
 
 export function requirePermission(role: Role | null | undefined, action: Action): void {
-  if (!can(role, action)) throw new HttpError(403, 'forbidden', `Your role${role ? ` (${role})` : ''} may not do this (${action}).`);
+  if (!can(role, action)) throw new HttpError(403, 'forbidden', `${refusalWords(role, action)} Nothing was changed.`);
 }
 
 export function issuesOf(error: z.ZodError): { path: string; message: string }[] {

@@ -21,7 +21,7 @@ export async function guardTeamPage(Astro: AstroGlobal, action: Action): Promise
   if (!user) return { ok: false, response: signInRedirect(Astro) };
   const found = await getTeamForMember(Astro.params.teamId ?? '', user.id);
   if (!found) return { ok: false, response: statusPage(404, 'No such team, or you are not a member of it.') };
-  if (!can(found.role, action)) return { ok: false, response: statusPage(403, `Your role (${found.role}) does not allow this page.`) };
+  if (!can(found.role, action)) return { ok: false, response: statusPage(403, `Your role in this team (${found.role}) does not open this page.`) };
   return { ok: true, value: found };
 }
 
@@ -30,7 +30,7 @@ export async function guardStudyPage(Astro: AstroGlobal, action: Action): Promis
   if (!user) return { ok: false, response: signInRedirect(Astro) };
   const found = await getStudyForMember(Astro.params.studyId ?? '', user.id);
   if (!found || found.team.id !== Astro.params.teamId) return { ok: false, response: statusPage(404, 'No such study in your teams.') };
-  if (!can(found.role, action)) return { ok: false, response: statusPage(403, `Your role (${found.role}) does not allow this page.`) };
+  if (!can(found.role, action)) return { ok: false, response: statusPage(403, `Your role in this team (${found.role}) does not open this page.`) };
   return { ok: true, value: found };
 }
 

@@ -21,6 +21,8 @@ function draftOf(recipe: Recipe, conditionNames: string[], current: RecipeDraft)
     spectrum: { ...recipe.spectrum, range: [recipe.spectrum.range[0], recipe.spectrum.range[1]] },
     aperiodic: { model: recipe.aperiodic.model },
     itpc: recipe.itpc === true,
+    trialPower: recipe.trialPower ?? 'total',
+    channelGroups: recipe.channelGroups === undefined ? null : Object.entries(recipe.channelGroups).map(([name, channels]) => ({ name, channels: channels.slice() })),
   };
 }
 

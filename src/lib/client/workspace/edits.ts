@@ -24,6 +24,8 @@ export const EDIT_FIELDS = [
   'channel',
   'condition',
   'compareTo',
+  'channelGroup',
+  'contrastBaseline',
   'rawScale',
   'spectrumAxes',
   'heldLimits',

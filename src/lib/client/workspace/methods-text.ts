@@ -3,6 +3,7 @@ import { parseRecipe, type RecipeInput } from '../../analysis/recipe';
 import { gaussianSigmas, resolutionOf } from '../../analysis/wavelet';
 import type { AnalysisResult } from '../../analysis/run-recipe';
 import type { Decomposition } from './results';
+import { exportedRecipe } from './maps';
 import type { WorkspaceData } from './store';
 
 export type { MethodsText };
@@ -11,16 +12,11 @@ export type { MethodsText };
 export type LiveSettings = Pick<WorkspaceData, 'baseline' | 'method' | 'scope' | 'spread' | 'fitRange'>;
 
 /**
- * The decomposition's recipe with the live baseline and fit range: what the Maps screen exports as recipe.json and
- * what `npm run analyze` needs to give the numbers on screen.
+ * The decomposition's recipe with the live baseline and fit range: the recipe the Maps screen exports
+ * (`exportedRecipe`), so the paragraph describes exactly the recipe.json a reader would rerun.
  */
 export function liveRecipe(d: Decomposition, live: LiveSettings): RecipeInput {
-  const spreadTrials = live.method === 'z-score' && live.spread === 'trials';
-  return {
-    ...d.recipe,
-    baseline: { start: live.baseline.start, end: live.baseline.end, method: live.method, scope: live.scope, ...(spreadTrials ? { spread: 'trials' as const } : {}) },
-    aperiodic: { ...d.recipe.aperiodic, range: [live.fitRange[0], live.fitRange[1]] },
-  };
+  return exportedRecipe(d, { baseline: live.baseline, method: live.method, scope: live.scope, spreadTrials: live.method === 'z-score' && live.spread === 'trials', fitRange: live.fitRange });
 }
 
 /**

@@ -21,8 +21,12 @@ export interface RecipeDraft {
   spectrum: { segment: number; overlap: number; range: [number, number]; source: 'recording' | 'epochs' };
   /** The fit range is the workspace's `fitRange` (dragged on the Spectrum screen), like the baseline. */
   aperiodic: { model: AperiodicModel };
-  /** Inter-trial phase consistency beside power (recipe `"itpc": true`); absent means no. */
+  /** Phase consistency beside power (recipe `"itpc": true`). Optional: drafts saved before it lack it. */
   itpc?: boolean;
+  /** Total power, or induced power with each condition's evoked response taken out first (recipe `trialPower`). */
+  trialPower?: 'total' | 'induced';
+  /** Named regions written into the recipe (`channelGroups`); null or absent: the defaults from the channel names. */
+  channelGroups?: { name: string; channels: string[] }[] | null;
 }
 
 // 3–45 Hz covers the default bands (theta 4–8 … gamma 30–45 Hz). At 3 Hz the 3-cycle wavelet's edge zone is
@@ -39,6 +43,9 @@ export const DEFAULT_DRAFT: RecipeDraft = {
   // The kept epochs by default: the whole recording would mix in breaks, rejected epochs and artefacts.
   spectrum: { segment: 1, overlap: 0.5, range: [1, 45], source: 'epochs' },
   aperiodic: { model: 'power-law' },
+  itpc: false,
+  trialPower: 'total',
+  channelGroups: null,
 };
 
 export interface RunChannelProgress {
@@ -110,6 +117,10 @@ export function toRecipe(parts: RecipeParts): RecipeInput {
     rejection: spec.rejection as NonNullable<RecipeInput['rejection']>,
     ...((parts.conditioning !== undefined ? conditioningSpec(parts.conditioning) : {}) as Pick<RecipeInput, 'signals' | 'reference' | 'filters'>),
     ...(parts.eventSelection ? { eventTable: eventTableOf(parts.eventSelection) } : {}),
+    // Written only when asked for, so a recipe without them stays the contract's plain recipe.
+    ...(draft.itpc === true ? { itpc: true } : {}),
+    ...(draft.trialPower === 'induced' ? { trialPower: 'induced' as const } : {}),
+    ...(draft.channelGroups ? { channelGroups: Object.fromEntries(draft.channelGroups.map((g) => [g.name, g.channels.slice()])) } : {}),
     ...recordingSection(parts),
   };
 }
@@ -135,10 +146,10 @@ function recordingSection(source: RecipeParts): Pick<RecipeInput, 'recording'> {
 }
 
 /**
- * Cache key of a decomposition: the recipe without its baseline and aperiodic fit range (the explorer re-normalizes
- * and re-fits live).
+ * Cache key of a decomposition: the recipe without its baseline, aperiodic fit range and channel groups (the explorer
+ * re-normalizes, re-fits and averages regions live).
  */
 export function decompositionKey(recordingId: string, recipe: RecipeInput): string {
-  const { baseline: _baseline, aperiodic, ...rest } = recipe;
+  const { baseline: _baseline, aperiodic, channelGroups: _groups, ...rest } = recipe;
   return `${recordingId}|${JSON.stringify({ ...rest, aperiodicModel: aperiodic.model })}`;
 }

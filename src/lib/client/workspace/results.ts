@@ -35,8 +35,10 @@ export interface Decomposition {
   mask: Uint8Array;
   /** power[channel][condition] */
   power: Float64Array[][];
-  /** itpc[channel][condition] (`[f·T + t]`, 0 … 1) when the recipe asked for it (`"itpc": true`); else null. */
-  itpc: Float64Array[][] | null;
+  /** itpc[channel][condition] `[f·T + t]`, 0 … 1, with recipe `"itpc": true`; absent otherwise. */
+  itpc?: Float64Array[][] | null;
+  /** evoked[channel][condition], µV per time point: the evoked response taken out with `"trialPower": "induced"`. */
+  evoked?: Float64Array[][] | null;
   spectrum: { frequencies: Float64Array; psd: Float64Array[] };
   aperiodic: (AperiodicFit & { channel: string })[];
   /** Per condition (label → one fit per channel) when the recipe spectrum comes from the kept epochs; else null. */
@@ -205,9 +207,11 @@ export async function runDecomposition(recording: Recording, recordingId: string
   const key = decompositionKey(recordingId, recipe);
   const results = useResultsStore.getState();
   const setRun = useWorkspace.getState().setRun;
-  const cached = results.cache[key];
-  if (cached !== undefined) {
-    touch(key);
+  const hit = results.cache[key];
+  if (hit !== undefined) {
+    // The key leaves out what the maps apply live (baseline, fit range, channel groups): the shown recipe takes this one's.
+    const cached = hit.recipe === recipe ? hit : { ...hit, recipe };
+    touch(key, cached);
     useResultsStore.setState({ fieldError: null });
     setRun({ status: 'done', message: 'From the cache: this recipe was already run on this recording.', progress: cached.channels.map((channel) => ({ channel, fraction: 1 })) });
     return cached;
@@ -251,7 +255,8 @@ export async function runDecomposition(recording: Recording, recordingId: string
       edges: edgeZones(plan.edgeSeconds, plan.sampleRateHz, plan.times.length),
       mask: edgeMask(edgeZones(plan.edgeSeconds, plan.sampleRateHz, plan.times.length), plan.times.length),
       power: result.channels.map((_, c) => labels.map((l) => flatten(result.conditions[l].power[c]))),
-      itpc: labels.every((l) => result.conditions[l].itpc !== undefined) ? result.channels.map((_, c) => labels.map((l) => flatten(result.conditions[l].itpc![c]))) : null,
+      itpc: recipe.itpc === true ? result.channels.map((_, c) => labels.map((l) => flatten(result.conditions[l].itpc![c]))) : null,
+      evoked: recipe.trialPower === 'induced' ? result.channels.map((_, c) => labels.map((l) => Float64Array.from(result.conditions[l].evoked![c]))) : null,
       spectrum: { frequencies: Float64Array.from(result.spectrum.frequencies), psd: result.spectrum.psd.map((p) => Float64Array.from(p)) },
       aperiodic: result.aperiodic,
       aperiodicByCondition: result.aperiodicByCondition ?? null,

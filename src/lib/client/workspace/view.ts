@@ -37,6 +37,10 @@ export interface ViewSettings {
   condition: string | null;
   /** Condition B of the difference map A − B; null shows condition A alone. */
   compareTo: string | null;
+  /** A channel group (region) shown on the Maps screen in place of `channel`; null shows the one channel. */
+  channelGroup: string | null;
+  /** How A − B is normalized: each condition against its own baseline, or both against their shared one. */
+  contrastBaseline: 'own' | 'shared';
   baseline: { start: number; end: number };
   method: BaselineMethod;
   scope: BaselineScope;
@@ -59,6 +63,8 @@ export const DEFAULT_VIEW: ViewSettings = {
   channel: null,
   condition: null,
   compareTo: null,
+  channelGroup: null,
+  contrastBaseline: 'own',
   baseline: { start: -0.5, end: -0.2 },
   method: 'decibel',
   scope: 'average',

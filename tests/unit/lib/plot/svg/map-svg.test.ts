@@ -93,8 +93,9 @@ describe('mapsFigureSvg', () => {
     const svg = await mapsFigureSvg(raw, spec, 'Oz · baseline −0.4 to −0.1 s · <test & "caption">', { rasterScale: 1 });
     expect(svg).toMatch(/^<\?xml version="1.0" encoding="UTF-8"\?>\n<svg xmlns="http:\/\/www.w3.org\/2000\/svg"[^>]* width="1280" height="376" viewBox="0 0 1280 376">/);
     expect(dataUrls(svg)).toHaveLength(2);
-    expect(svg).toContain('<image x="48" y="60"');
-    expect(svg).toContain('<image x="688" y="60"');
+    const panel = panelLayout(640, 340);
+    expect(svg).toContain(`<image x="${panel.left}" y="${36 + panel.top}"`);
+    expect(svg).toContain(`<image x="${640 + panel.left}" y="${36 + panel.top}"`);
     const t = texts(svg);
     expect(t).toContain('Oz · baseline −0.4 to −0.1 s · &lt;test &amp; &quot;caption&quot;&gt;');
     expect(t.some((s) => s.includes('not a medical device'))).toBe(true);
