@@ -344,6 +344,13 @@ describe('Content-Security-Policy: nothing leaves for another origin', () => {
     const file = path.join(artifactsDir, `csp-${download.suggestedFilename()}`);
     await download.saveAs(file);
     expect([...fs.readFileSync(file).subarray(0, 8)]).toEqual([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]);
+    // "Export SVG" (its embedded type faces load as script chunks from this origin) and "Export CSV" too.
+    for (const [testId, start] of [['export-svg', '<?xml'], ['export-csv', '# Tidemark']] as const) {
+      const [made] = await Promise.all([page.waitForEvent('download'), page.getByTestId(testId).click()]);
+      const saved = path.join(artifactsDir, `csp-${made.suggestedFilename()}`);
+      await made.saveAs(saved);
+      expect(fs.readFileSync(saved, 'utf8').startsWith(start), testId).toBe(true);
+    }
 
     // Both type faces came from this origin and loaded; the favicon (an image from 'self') too.
     const fonts = await page.evaluate(async () => {

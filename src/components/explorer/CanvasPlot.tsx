@@ -1,3 +1,4 @@
+import SvgExportButton from './SvgExportButton';
 import { useLayoutEffect, useRef, type ReactNode } from 'react';
 import { useElementWidth } from './useElementWidth';
 import { lineLayout, type LabelRect, type LineLayout } from '../../lib/plot/line-plot';
@@ -12,10 +13,12 @@ export interface CanvasPlotProps {
   lane?: number;
   /** DOM drawn over the plot (interactive bands). */
   overlay?: (layout: LineLayout) => ReactNode;
+  /** File name (no extension) of an "Export SVG" of this plot; no button without it. */
+  exportName?: string;
 }
 
 /** A canvas that fills its container's width, repaints at the device pixel ratio, and hosts a DOM overlay. */
-export default function CanvasPlot({ height, label, testId, draw, overlay, lane = 0 }: CanvasPlotProps) {
+export default function CanvasPlot({ height, label, testId, draw, overlay, lane = 0, exportName }: CanvasPlotProps) {
   const wrap = useRef<HTMLDivElement>(null);
   const canvas = useRef<HTMLCanvasElement>(null);
   const width = useElementWidth(wrap);
@@ -37,7 +40,7 @@ export default function CanvasPlot({ height, label, testId, draw, overlay, lane 
     // The drawn labels' boxes, for tests that check nothing covers them.
     c.dataset.labelBoxes = labels ? JSON.stringify(labels.map((b) => [b.x, b.y, b.width, b.height].map((v) => Math.round(v * 10) / 10))) : '';
   });
-  return (
+  const plot = (
     <div ref={wrap} className="relative w-full" style={{ height }}>
       {layout !== null && (
         <>
@@ -45,6 +48,14 @@ export default function CanvasPlot({ height, label, testId, draw, overlay, lane 
           {overlay?.(layout)}
         </>
       )}
+    </div>
+  );
+  if (exportName === undefined) return plot;
+  // The export button sits in a row of its own above the plot, so it never covers a label or a handle.
+  return (
+    <div className="flex w-full flex-col">
+      <SvgExportButton layout={layout} draw={draw} label={label} fileName={exportName} testId={testId === undefined ? undefined : `${testId}-svg`} />
+      {plot}
     </div>
   );
 }

@@ -2,6 +2,7 @@ import { useId, useLayoutEffect, useMemo, useRef } from 'react';
 import { divergingColormap, sequentialColormap, type Colormap } from '../../lib/plot/colormap';
 import { HEAD_RADIUS, LABEL_FONT_SIZE, SCALP_DOT_RADIUS, scalpGeometry } from '../../lib/plot/scalp-map';
 import { formatTick } from '../../lib/plot/axes';
+import { downloadScalpSvg } from './scalp-export';
 
 export interface ScalpMapProps {
   title: string;
@@ -30,6 +31,7 @@ const colourOf = (map: Colormap, t: number) => {
  */
 export default function ScalpMap({ title, unit, values, scale = { kind: 'sequential' }, testId }: ScalpMapProps) {
   const canvas = useRef<HTMLCanvasElement>(null);
+  const figure = useRef<HTMLElement>(null);
   const tableId = useId();
   const key = JSON.stringify(values);
   // eslint-disable-next-line react-hooks/exhaustive-deps
@@ -90,7 +92,7 @@ export default function ScalpMap({ title, unit, values, scale = { kind: 'sequent
     );
   }
   return (
-    <figure className="flex flex-col items-center gap-1" data-testid={testId} data-low={lo} data-high={hi}>
+    <figure ref={figure} className="flex flex-col items-center gap-1" data-testid={testId} data-low={lo} data-high={hi}>
       <div className="relative w-full max-w-md" style={{ aspectRatio: `${VIEW.width} / ${VIEW.height}` }}>
         <canvas
           ref={canvas}
@@ -149,6 +151,9 @@ export default function ScalpMap({ title, unit, values, scale = { kind: 'sequent
       <figcaption className="text-center text-xs text-ink-soft">
         {title} ({unit}); between electrodes interpolated by spherical splines (Perrin et al., 1989){geometry.unplaced.length > 0 ? ` · not a 10-20 name, not drawn: ${geometry.unplaced.join(', ')}` : ''}
       </figcaption>
+      <button type="button" className="rounded-sm border border-kelp px-2 py-0 text-xs leading-4 text-kelp-deep hover:bg-kelp-pale" onClick={() => void downloadScalpSvg(figure.current, [`${title} (${unit})`, 'Between electrodes interpolated by spherical splines (Perrin et al., 1989).'], `scalp-${title}`)} data-testid={testId === undefined ? undefined : `${testId}-svg`}>
+        Export SVG
+      </button>
       <details className="w-full max-w-md text-xs">
         <summary className="cursor-pointer text-kelp-deep">Values at the electrodes</summary>
         <div className="max-h-48 overflow-auto" tabIndex={0} role="region" aria-label={`${title}: values at the electrodes`}>

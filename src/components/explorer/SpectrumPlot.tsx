@@ -154,8 +154,8 @@ export default function SpectrumPlot({ spectra, recipeSpectrum, source, fit, axe
 
   return (
     <div className="flex flex-col gap-2">
-      <CanvasPlot height={370} lane={LANE} label={`Spectra of ${channel}: the numbers are in the table "Numbers of this plot" below`} testId="spectrum-plot" draw={draw} overlay={overlay} />
-      <CanvasPlot height={180} label={`Power above the aperiodic line, ${channel}: the numbers are in the table below`} testId="above-line-plot" draw={drawAbove} />
+      <CanvasPlot height={370} lane={LANE} label={`Spectra of ${channel}: the numbers are in the table "Numbers of this plot" below`} testId="spectrum-plot" draw={draw} overlay={overlay} exportName={`spectrum-${channel}-${axes}`} />
+      <CanvasPlot height={180} label={`Power above the aperiodic line, ${channel}: the numbers are in the table below`} testId="above-line-plot" draw={drawAbove} exportName={`above-aperiodic-${channel}`} />
       <SpectrumNumbers model={model} channel={channel} />
     </div>
   );

@@ -22,6 +22,7 @@ import { selectActive, useResultsStore } from '../../lib/client/workspace/result
 import { DEFAULT_BANDS, DEFAULT_WINDOWS, type Band, type TimeWindow } from '../../lib/client/workspace/view';
 import { baselinePoints } from '../explorer/map-model';
 import { downloadBlob } from '../explorer/download';
+import { downloadBandBarsSvg } from '../explorer/download-figure';
 import { usePanelVisible } from '../explorer/usePanelVisible';
 import NumberField from '../explorer/NumberField';
 import { useWorkspace } from '../../lib/client/workspace/store';
@@ -170,6 +171,9 @@ export default function BandsScreen(_props: WorkspaceProps) {
               </label>
               <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale" onClick={exportCsv} data-testid="export-bands">
                 Export band summary CSV
+              </button>
+              <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale" onClick={() => void downloadBandBarsSvg({ sites: chartSites ?? [ch], rows: tableRows, bands, windows, labels: d.labels, unit, neutral: neutralValue(method), colours: BAR_COLOURS }, `band-means-${(chartSites ?? [ch]).join('-')}-${method}`)} data-testid="export-bands-svg">
+                Export SVG
               </button>
             </div>
             <div className="flex flex-col gap-3">

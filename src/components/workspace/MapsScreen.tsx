@@ -15,6 +15,8 @@ import { channelIndicesOf, contrastOf, evokedOf, exportedRecipe, groupsOf, isRou
 import EvokedTrace from '../explorer/EvokedTrace';
 import { renderMapsPng } from '../explorer/export-maps';
 import { downloadBlob, fileSafe } from '../explorer/download';
+import MapExports from '../explorer/MapExports';
+import MethodsText from '../explorer/MethodsText';
 import { useWorkspace } from '../../lib/client/workspace/store';
 
 const METHODS: { value: BaselineMethod; label: string }[] = [
@@ -242,11 +244,12 @@ export default function MapsScreen(_props: WorkspaceProps) {
           ...(itpcSpec !== null ? { itpc: itpcSpec.values[cell.f * nt + cell.t] } : {}),
         };
 
+  const caption = `${where} · baseline ${Number(baseline.start.toFixed(4))} to ${Number(baseline.end.toFixed(4))} s · ${method} · ${scope} scope · Tidemark`;
+  const stem = `maps-${fileSafe(group ?? ch ?? 'channel')}-${fileSafe(d.labels[a])}${b >= 0 ? `-minus-${fileSafe(d.labels[b])}` : ''}-${method}`;
   const exportPng = async () => {
     if (rawSpec === null || normSpec === null) return;
-    const caption = `${where} · baseline ${Number(baseline.start.toFixed(4))} to ${Number(baseline.end.toFixed(4))} s · ${method} · ${scope} scope · Tidemark`;
     const blob = await renderMapsPng({ ...rawSpec, baseline }, { ...normSpec, baseline }, caption);
-    downloadBlob(blob, `maps-${fileSafe(group ?? ch ?? 'channel')}-${fileSafe(d.labels[a])}${b >= 0 ? `-minus-${fileSafe(d.labels[b])}` : ''}-${method}.png`);
+    downloadBlob(blob, `${stem}.png`);
   };
   const exportRecipe = () => {
     // The run's recipe with the live baseline and fit range: everything `npm run analyze` needs to give these numbers.
@@ -294,10 +297,11 @@ export default function MapsScreen(_props: WorkspaceProps) {
         <Choice legend="Raw colour scale" value={rawScale} options={[{ value: 'log', label: 'log' }, { value: 'linear', label: 'linear' }]} onChange={(s) => setView({ rawScale: s })} />
         <NumberField label="Baseline start" unit="s" value={baseline.start} step={dt} testId="baseline-start" onValue={(v) => setBaseline({ start: snap(Math.min(v, baseline.end)), end: baseline.end })} />
         <NumberField label="Baseline end" unit="s" value={baseline.end} step={dt} testId="baseline-end" onValue={(v) => setBaseline({ start: baseline.start, end: snap(Math.max(v, baseline.start)) })} />
-        <div className="flex gap-2">
+        <div className="flex flex-wrap items-end gap-2">
           <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale" onClick={() => void exportPng()} data-testid="export-png">
             Export PNG
           </button>
+          <MapExports raw={rawSpec && { ...rawSpec, baseline }} normalized={normSpec && { ...normSpec, baseline }} caption={caption} stem={stem} maps={[...(rawSpec ? [{ key: 'raw', label: 'raw power', spec: rawSpec }] : []), ...(normSpec ? [{ key: 'normalized', label: 'normalized', spec: normSpec, notes: [caption] }] : []), ...(itpcSpec ? [{ key: 'itpc', label: 'ITPC', spec: itpcSpec }] : [])]} />
           <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale" onClick={exportRecipe} data-testid="export-recipe">
             Export recipe JSON
           </button>
@@ -383,6 +387,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
         Hatched: the edge zone, where the wavelet at that frequency overlaps the epoch's edge (3σ). Dashed line: the event at 0 s. Colour limits are
         symmetric around the method's neutral value (a power ratio on a log scale centred on 1) and leave edge-zone cells out.
       </p>
+      <MethodsText />
     </div>
   );
 }

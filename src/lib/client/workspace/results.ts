@@ -52,6 +52,8 @@ export interface Decomposition {
   spectrumSpans: Int32Array;
   /** Per condition, epochs left out by rejection rules or by hand. */
   rejected: number[];
+  /** Per condition, epochs outside the recording or across a gap (the methods paragraph reports them). */
+  dropped: number[];
 }
 
 export interface TrialHold {
@@ -265,6 +267,7 @@ export async function runDecomposition(recording: Recording, recordingId: string
       spectrumOverlapSamples: plan.spectrum.overlapSamples,
       spectrumSpans: plan.spectrum.spans,
       rejected: labels.map((l) => result.conditions[l].rejected),
+      dropped: labels.map((l) => result.conditions[l].dropped),
     };
     sizes.set(key, sizeOfDecomposition(decomposition));
     touch(key, decomposition);
