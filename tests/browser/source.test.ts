@@ -236,7 +236,7 @@ describe('Source screen: a recording opened on this device', () => {
     const page = await signIn(context, 'analyst');
     const pick = async (name: string, data: Buffer, eventsFile: { name: string; data: Buffer } | null) => {
       await page.getByLabel('Choose a recording file…').setInputFiles({ name, mimeType: 'text/csv', buffer: data });
-      await page.getByLabel('Sample rate (Hz)').fill('100');
+      await page.locator('#panel-Source').getByLabel('Sample rate (Hz)').fill('100');
       if (eventsFile) await page.getByLabel(/Events file/).setInputFiles({ name: eventsFile.name, mimeType: 'text/tab-separated-values', buffer: eventsFile.data });
       await page.getByRole('button', { name: 'Read the matrix' }).click();
     };
