@@ -1,6 +1,6 @@
 import { useId, useState } from 'react';
 import { AnalysisSessionInput } from '../../lib/schemas/studies';
-import { errorMessageOf, OutboundRefusedError, send } from '../../lib/client/outbound';
+import { linkAnalysisSession, startAnalysisSession, useReviewLink } from '../../lib/client/workspace/review';
 
 interface Props {
   studyId: string;
@@ -19,30 +19,27 @@ export function checkSubjectCode(code: string): string | null {
   return null;
 }
 
-/** Creates the analysis session: the one request the Source screen makes, carrying the subject code and fingerprint. */
-export default function SessionPanel({ studyId, fingerprint, subjectCode, mayCreateSessions, role, onSubjectCode }: Props) {
-  const [problem, setProblem] = useState<string | null>(null);
-  const [created, setCreated] = useState<{ id: string; subjectCode: string } | null>(null);
+/**
+ * Starts the analysis session (the one request the Source screen makes, carrying the subject code and fingerprint)
+ * through the workspace controller, which links it: the bar above the tabs then saves versions and the maps take
+ * notes. A second session for the same subject and recording is refused in the server's words, with a way to
+ * continue the one that exists.
+ */
+export default function SessionPanel({ studyId, subjectCode, mayCreateSessions, role, onSubjectCode }: Props) {
+  const [problem, setProblem] = useState<{ message: string; existingId: string | null } | null>(null);
   const [sending, setSending] = useState(false);
+  const linked = useReviewLink((s) => s.session);
   const id = useId();
 
   const create = async () => {
     const code = subjectCode.trim();
     const invalid = checkSubjectCode(code);
-    if (invalid) return setProblem(invalid);
+    if (invalid) return setProblem({ message: invalid, existingId: null });
     setProblem(null);
     setSending(true);
     try {
-      const response = await send(`/api/studies/${encodeURIComponent(studyId)}/analysis-sessions`, { json: { subjectCode: code, fingerprint } });
-      if (!response.ok) {
-        const message = await errorMessageOf(response);
-        setProblem(response.status === 403 ? `Not allowed: ${message} Only analysts create analysis sessions.` : message);
-        return;
-      }
-      const body = (await response.json()) as { analysisSession: { id: string; subjectCode: string } };
-      setCreated(body.analysisSession);
-    } catch (error) {
-      setProblem(error instanceof OutboundRefusedError ? `${error.message} Change the subject code.` : `The request failed: ${error instanceof Error ? error.message : String(error)}`);
+      const outcome = await startAnalysisSession(studyId, code);
+      if (!outcome.ok) setProblem({ message: outcome.message, existingId: outcome.existingId });
     } finally {
       setSending(false);
     }
@@ -79,13 +76,18 @@ export default function SessionPanel({ studyId, fingerprint, subjectCode, mayCre
         Create analysis session
       </button>
       {problem && (
-        <p className="notice notice-warn" role="alert" data-testid="session-problem">
-          {problem}
-        </p>
+        <div className="notice notice-warn grid gap-2" role="alert" data-testid="session-problem">
+          <p>{problem.message}</p>
+          {problem.existingId !== null && problem.existingId !== linked?.id && (
+            <button type="button" className="btn btn-quiet justify-self-start text-sm" onClick={() => void linkAnalysisSession(problem.existingId!).then(() => setProblem(null))}>
+              Continue that session here
+            </button>
+          )}
+        </div>
       )}
-      {created && (
+      {linked && (
         <p className="notice" role="status" data-testid="session-created">
-          Analysis session created for {created.subjectCode} (draft).
+          Analysis session for {linked.subjectCode} ({linked.status}) is open in this workspace: save versions from the bar above the tabs.
         </p>
       )}
     </form>

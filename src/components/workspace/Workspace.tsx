@@ -5,6 +5,7 @@ import RecipeScreen from './RecipeScreen';
 import OutboundScreen from './OutboundScreen';
 import SignInWatch from './SignInWatch';
 import MemoryBar from './MemoryBar';
+import SessionBar from '../review/SessionBar';
 import { bindAccount } from '../../lib/client/workspace';
 
 // The plot-heavy screens are chunks of their own, fetched after the island starts: the Source screen is usable
@@ -50,6 +51,7 @@ export default function Workspace(props: WorkspaceProps) {
     <div className="mt-4">
       <SignInWatch />
       <MemoryBar />
+      <SessionBar userId={props.userId} team={props.team} study={props.study} />
       <div role="tablist" aria-label="Workspace screens" className="flex flex-wrap gap-1 border-b border-shell" onKeyDown={onKeyDown}>
         {screens.map((name) => (
           <button
