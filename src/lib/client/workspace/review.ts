@@ -330,7 +330,7 @@ export async function saveAsVersion(): Promise<void> {
       await refreshSession();
     }
     const after = get().current;
-    set({ saving: { state: 'saved', message: `Saved as version ${after?.number ?? current.number} with its summary (SHA-256 ${(after?.summaryHash ?? '').slice(0, 12)}…).` }, autosave: { ...get().autosave, state: 'idle', message: null } });
+    set({ match: { ...get().match, message: null }, saving: { state: 'saved', message: `Saved as version ${after?.number ?? current.number} with its summary (SHA-256 ${(after?.summaryHash ?? '').slice(0, 12)}…).` }, autosave: { ...get().autosave, state: 'idle', message: null } });
   } catch (error) {
     set({ saving: { state: 'failed', message: error instanceof Error && !(error instanceof OutboundRefusedError) && !(error instanceof TypeError) ? `The summary could not be computed: ${error.message}` : failureWords(error) } });
   }
