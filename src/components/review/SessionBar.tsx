@@ -1,6 +1,6 @@
 import { useEffect } from 'react';
 import type { WorkspaceProps } from '../workspace/types';
-import { bindReview, linkAnalysisSession, mayEditSession, openSessionRecordingFromLibrary, saveAsVersion, setAutosave, unlinkAnalysisSession, useReviewLink } from '../../lib/client/workspace/review';
+import { bindReview, linkAnalysisSession, mayEditSession, openSessionRecordingFromLibrary, saveAsVersion, setAutosave, takeCurrentVersion, unlinkAnalysisSession, useReviewLink } from '../../lib/client/workspace/review';
 
 /**
  * The workspace's line about its analysis session (shown once one is linked: started on the Source screen, or
@@ -93,6 +93,16 @@ export default function SessionBar({ userId, team, study }: Pick<WorkspaceProps,
         <p className={saving.state === 'failed' ? 'notice notice-warn text-sm' : 'text-sm'} role={saving.state === 'failed' ? 'alert' : 'status'} data-testid="save-version-state" data-state={saving.state}>
           {saving.message}
         </p>
+      )}
+      {saving.state === 'failed' && saving.stale && (
+        <div className="flex flex-wrap gap-2">
+          <button type="button" className="btn btn-quiet text-sm" onClick={() => void saveAsVersion()}>
+            Keep mine: save it over version {session.currentVersion}
+          </button>
+          <button type="button" className="btn btn-quiet text-sm" onClick={() => void takeCurrentVersion()}>
+            Take version {session.currentVersion} instead
+          </button>
+        </div>
       )}
       {!mayEdit && session.status !== 'in review' && <p className="text-xs text-ink-soft">You read this session and pin notes; its owner saves versions.</p>}
       <p className="text-2xs text-ink-soft">Only the recipe, the summary’s derived numbers and notes go to the server; the recording stays on this device. Research use; not for diagnosis or treatment.</p>

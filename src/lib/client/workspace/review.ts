@@ -46,7 +46,8 @@ export interface ReviewLinkState {
   /** A region drawn on a map, waiting for the note's words. */
   pending: NoteAnchor | null;
   pinMode: boolean;
-  saving: { state: 'idle' | 'saving' | 'saved' | 'failed'; message: string | null };
+  /** `stale`: another version was saved meanwhile; the person keeps theirs (save again) or takes the current one. */
+  saving: { state: 'idle' | 'saving' | 'saved' | 'failed'; message: string | null; stale?: boolean };
   autosave: { enabled: boolean; state: 'idle' | 'waiting' | 'queued' | 'saved' | 'held'; message: string | null };
 }
 
@@ -169,6 +170,13 @@ export async function refreshNotes(): Promise<void> {
   } catch (error) {
     set({ problem: failureWords(error) });
   }
+}
+
+/** After a refused save over a newer version: puts the session's current version in place and runs it. */
+export async function takeCurrentVersion(): Promise<void> {
+  set({ saving: { state: 'idle', message: null } });
+  await refreshSession();
+  await matchRecording();
 }
 
 /** Where the last applied stored recipe left the workspace (canonical), so reapplying it is not taken for an edit. */
@@ -314,7 +322,10 @@ export async function saveAsVersion(): Promise<void> {
       const answer = await readAnswer<{ version: NonNullable<SessionView['current']> }>(
         await send(`/api/analysis-sessions/${session.id}/recipe-versions`, { json: { baseVersion: current?.number ?? null, recipe } }),
       );
-      if (!answer.ok) return set({ saving: { state: 'failed', message: answer.message } });
+      if (!answer.ok) {
+        if (answer.code === 'stale_version') await refreshSession();
+        return set({ saving: { state: 'failed', message: answer.message, stale: answer.code === 'stale_version' } });
+      }
       await refreshSession();
       current = get().current;
     }
