@@ -105,6 +105,7 @@ export function mayEditSession(s: Pick<ReviewLinkState, 'session' | 'userId'>): 
 
 let unsubscribeDelivered: (() => void) | null = null;
 let unsubscribeStore: (() => void) | null = null;
+let focusWatched = false;
 
 /** Binds the review link to the signed-in account (its outbox) and starts watching the workspace store. */
 export function bindReview(userId: string): void {
@@ -117,6 +118,15 @@ export function bindReview(userId: string): void {
     if (item.kind === 'recipe-draft') void refreshSession().then(() => scheduleAutosave());
     else void refreshNotes();
   });
+  // Someone else's notes and review steps arrive when the person comes back to the tab (as the session page's queries do).
+  if (!focusWatched && typeof window !== 'undefined') {
+    focusWatched = true;
+    window.addEventListener('focus', () => {
+      if (get().session === null) return;
+      void refreshSession();
+      void refreshNotes();
+    });
+  }
   unsubscribeStore = useWorkspace.subscribe((s, prev) => {
     if (s.openCount !== prev.openCount) void matchRecording();
     else if (recipeInputsChanged(s, prev)) scheduleAutosave();
