@@ -327,6 +327,7 @@ export async function saveAsVersion(): Promise<void> {
   const ours = canonicalRecipe(recipe);
   if (ours === null) return set({ saving: { state: 'failed', message: 'The recipe is not complete yet (check the Recipe screen); nothing was saved.' } });
   let { current } = get();
+  let notices: string[] = [];
   try {
     if (current === null || canonicalize(current.recipe) !== ours) {
       const answer = await readAnswer<{ version: NonNullable<SessionView['current']> }>(
@@ -343,15 +344,16 @@ export async function saveAsVersion(): Promise<void> {
     appliedCanonical = ours;
     if (current.summaryHash === null) {
       set({ saving: { state: 'saving', message: `Computing the summary of version ${current.number} on this device…` } });
-      const { summary } = await summarizeRecording(ws.recording!, recipe, {
+      const built = await summarizeRecording(ws.recording!, recipe, {
         onProgress: (done, n) => set({ saving: { state: 'saving', message: `Computing the summary of version ${current!.number} on this device: ${done} of ${n} channels…` } }),
       });
-      const upload = await readAnswer<{ summaryHash: string }>(await send(`/api/analysis-sessions/${session.id}/recipe-versions/${current.number}/summary`, { method: 'PUT', json: summary }));
+      notices = built.notices.map((n) => n.replace(/^summary: /, ''));
+      const upload = await readAnswer<{ summaryHash: string }>(await send(`/api/analysis-sessions/${session.id}/recipe-versions/${current.number}/summary`, { method: 'PUT', json: built.summary }));
       if (!upload.ok && upload.code !== 'summary_exists') return set({ saving: { state: 'failed', message: `Version ${current.number} is saved, but its summary was not: ${upload.message}` } });
       await refreshSession();
     }
     const after = get().current;
-    set({ match: { ...get().match, message: null }, saving: { state: 'saved', message: `Saved as version ${after?.number ?? current.number} with its summary (SHA-256 ${(after?.summaryHash ?? '').slice(0, 12)}…).` }, autosave: { ...get().autosave, state: 'idle', message: null } });
+    set({ match: { ...get().match, message: null }, saving: { state: 'saved', message: `Saved as version ${after?.number ?? current.number} with its summary (SHA-256 ${(after?.summaryHash ?? '').slice(0, 12)}…).${notices.length > 0 ? ` Note: ${notices.join('; ')}.` : ''}` }, autosave: { ...get().autosave, state: 'idle', message: null } });
   } catch (error) {
     set({ saving: { state: 'failed', message: error instanceof Error && !(error instanceof OutboundRefusedError) && !(error instanceof TypeError) ? `The summary could not be computed: ${error.message}` : failureWords(error) } });
   }
