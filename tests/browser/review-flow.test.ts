@@ -37,6 +37,7 @@ let sessionId = '';
 let analystContext: BrowserContext;
 let analystPage: Page;
 const NOTE = 'Theta burst here looks like eye movement; is the baseline clean?';
+const KEY_NOTE = 'Pinned by keyboard: compare this band with the oar-pull condition.';
 
 async function signedIn(person: { email: string; password: string }): Promise<{ context: BrowserContext; page: Page }> {
   const context = await browser.newContext({ viewport: { width: 1440, height: 900 }, acceptDownloads: true });
@@ -185,6 +186,26 @@ describe('review through the workspace, two people', () => {
     expect(note[0].anchor.frequencyHz[1]).toBeGreaterThan(note[0].anchor.frequencyHz[0]);
     await shot(page, 'lead-pinned');
 
+    // the same by keyboard: the region picker is one tab stop on the normalized map
+    await page.getByTestId('pin-mode').click();
+    const picker = page.getByTestId('map-normalized-pin-layer');
+    await picker.focus();
+    for (const key of ['ArrowRight', 'ArrowRight', 'ArrowUp']) await page.keyboard.press(key);
+    for (const key of ['Shift+ArrowRight', 'Shift+ArrowRight', 'Shift+ArrowRight', 'Shift+ArrowDown']) await page.keyboard.press(key);
+    await page.getByTestId('map-normalized-pin-keys').waitFor();
+    await page.keyboard.press('Enter');
+    await form.waitFor();
+    await form.getByRole('textbox').fill(KEY_NOTE);
+    await form.getByRole('button', { name: 'Post the note' }).click();
+    await expect.poll(() => page.getByTestId('map-normalized-pin').count(), { timeout: 30_000 }).toBe(2);
+    const keyed = (await pool.query('SELECT n.anchor FROM notes n WHERE n.analysis_session_id = $1 AND n.body = $2', [sessionId, KEY_NOTE])).rows;
+    expect(keyed).toHaveLength(1);
+    // four time cells and two frequency rows: wider in time than one cell, the frequency range spans two rows
+    const [t0, t1] = keyed[0].anchor.timeS;
+    const [f0, f1] = keyed[0].anchor.frequencyHz;
+    expect(t1 - t0).toBeGreaterThan(0);
+    expect(f1 / f0).toBeGreaterThan(1);
+
     await page.getByTestId('session-bar-page').click();
     await page.getByRole('button', { name: 'Return with a reason' }).click();
     const dialog = page.getByTestId('sign-dialog');
@@ -207,7 +228,8 @@ describe('review through the workspace, two people', () => {
     const entry = page.getByTestId('map-note').filter({ hasText: NOTE });
     await entry.click();
     expect(await entry.getAttribute('aria-pressed')).toBe('true');
-    await page.waitForFunction(() => document.querySelector('[data-testid="map-normalized-pin"]')?.getAttribute('data-selected') === 'yes');
+    await page.waitForFunction(() => document.querySelector('[data-testid="map-normalized-pin"][data-selected="yes"]') !== null);
+    expect(await page.getByTestId('map-normalized-pin').count()).toBe(2);
     expect(await page.getByTestId('maps-channel').inputValue()).toBe('Fz');
     await shot(page, 'analyst-sees-pin');
 
@@ -223,8 +245,8 @@ describe('review through the workspace, two people', () => {
     await waitAttr(page, 'save-version-state', 'data-state', 'saved');
     // the lead's note was written on version 1; the maps now show version 2 and the pin says where it pointed then
     await page.waitForFunction(() => document.querySelector('[data-testid="map-note"]')?.getAttribute('data-older') === 'yes');
-    expect(await page.getByTestId('map-note').first().textContent()).toContain('Written on version 1');
-    expect(await page.getByTestId('map-normalized-pin').getAttribute('data-older')).toBe('yes');
+    expect(await page.getByTestId('map-note').filter({ hasText: NOTE }).textContent()).toContain('Written on version 1');
+    expect(await page.getByTestId('map-normalized-pin').evaluateAll((pins) => pins.map((p) => p.getAttribute('data-older')))).toEqual(['yes', 'yes']);
     await shot(page, 'analyst-older-pin');
     const versions = (await pool.query('SELECT v.number, v.recipe->\'baseline\' AS baseline, s.recipe_version_id IS NOT NULL AS summarized FROM recipe_versions v LEFT JOIN summaries s ON s.recipe_version_id = v.id WHERE v.analysis_session_id = $1 ORDER BY v.number', [sessionId])).rows;
     expect(versions.map((v) => v.number)).toEqual([1, 2]);

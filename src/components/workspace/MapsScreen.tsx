@@ -219,7 +219,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
         )}
         <div className="card p-2">
           {normSpec !== null ? (
-            <MapPanel testId="map-normalized" spec={normSpec} baseline={baseline} dt={dt} snap={snap} onBaseline={setBaseline} focusable cursor={cursor} onCursor={setCursor} warnings={warnings} overlay={(g) => <MapPins geometry={g} testId="map-normalized" />} />
+            <MapPanel testId="map-normalized" spec={normSpec} baseline={baseline} dt={dt} snap={snap} onBaseline={setBaseline} focusable cursor={cursor} onCursor={setCursor} warnings={warnings} overlay={(g) => <MapPins geometry={g} testId="map-normalized" keyboard />} />
           ) : (
             <p className="p-4 text-ink-soft">Preparing single-trial maps…</p>
           )}

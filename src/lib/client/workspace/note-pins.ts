@@ -79,6 +79,24 @@ export function regionRanges(
   return { timeS, frequencyHz };
 }
 
+/**
+ * The ranges of a block of map cells, times `t0…t1` and frequencies `f0…f1` (grid indices, either order), from the
+ * outer edges of its corner cells (rounded outward as `regionRanges` does): what the keyboard pins.
+ */
+export function cellRanges(
+  grid: { times: ArrayLike<number>; frequencies: ArrayLike<number>; spacing: 'log' | 'linear' },
+  cells: { t0: number; t1: number; f0: number; f1: number },
+): { timeS: [number, number]; frequencyHz: [number, number] } {
+  const [ta, tb] = [Math.min(cells.t0, cells.t1), Math.max(cells.t0, cells.t1)];
+  const [fa, fb] = [Math.min(cells.f0, cells.f1), Math.max(cells.f0, cells.f1)];
+  const down = (x: number, per: number) => Math.floor(x * per + 1e-6) / per;
+  const up = (x: number, per: number) => Math.ceil(x * per - 1e-6) / per;
+  return {
+    timeS: [down(cellEdges(grid.times, ta, 'linear')[0], 1000), up(cellEdges(grid.times, tb, 'linear')[1], 1000)],
+    frequencyHz: [Math.max(0, down(cellEdges(grid.frequencies, fa, grid.spacing)[0], 100)), up(cellEdges(grid.frequencies, fb, grid.spacing)[1], 100)],
+  };
+}
+
 /** The pixel box of an anchor's ranges on a map (clamped to the scales' ranges); null without both ranges. */
 export function pinBox(anchor: NoteAnchor, scales: PinScales): { left: number; top: number; width: number; height: number } | null {
   if (!anchor.timeS || !anchor.frequencyHz) return null;

@@ -1,6 +1,6 @@
 import { scaleLinear, scaleLog } from 'd3-scale';
 import { describe, expect, it } from 'vitest';
-import { describeAnchor, notesOnMap, pinBox, regionRanges, versionStanding, type PinScales } from '../../../../../src/lib/client/workspace/note-pins';
+import { cellRanges, describeAnchor, notesOnMap, pinBox, regionRanges, versionStanding, type PinScales } from '../../../../../src/lib/client/workspace/note-pins';
 import type { NoteView } from '../../../../../src/lib/client/review/types';
 
 // The map's axes as the panel builds them (src/lib/plot/axes.ts): the independent reference here is d3-scale's own
@@ -38,6 +38,14 @@ describe('regionRanges', () => {
     const r = regionRanges({ x0: scales.time(0.01), y0: scales.frequency(9), x1: scales.time(0.01) + 1, y1: scales.frequency(9) + 1 }, scales, grid);
     expect(r.timeS).toEqual([-0.05, 0.05]);
     expect(r.frequencyHz).toEqual([5.65, 11.32]); // 8/√2 = 5.657, 8·√2 = 11.314
+  });
+});
+
+describe('cellRanges (what the keyboard pins)', () => {
+  it('spans the outer edges of the corner cells, in either order, and equals a click on one cell', () => {
+    expect(cellRanges(grid, { t0: 7, t1: 5, f0: 1, f1: 2 })).toEqual({ timeS: [-0.05, 0.25], frequencyHz: [5.65, 22.63] }); // 8/√2, 16·√2
+    const click = regionRanges({ x0: scales.time(0), y0: scales.frequency(8), x1: scales.time(0), y1: scales.frequency(8) }, scales, grid);
+    expect(cellRanges(grid, { t0: 5, t1: 5, f0: 1, f1: 1 })).toEqual(click);
   });
 });
 
