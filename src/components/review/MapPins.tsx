@@ -11,8 +11,8 @@ const NO_GROUPS: Readonly<Record<string, readonly string[]>> = {};
  * The pins of the linked analysis session's notes over one map (drawn through MapPanel's `overlay`), and, while
  * "Pin a note" is on, the layer that takes a dragged rectangle or a click and starts a note anchored there.
  * Pins never take the pointer: the cursor readout and the baseline band work through them. With `keyboard` (one
- * panel only, so there is one tab stop), the layer also takes the keyboard: arrows move a cell, Shift+arrows widen
- * the region, Enter pins it, Escape stops pinning.
+ * panel only, so there is one tab stop), the layer also takes the keyboard: arrows move (about 1/60 of the epoch in
+ * time, one row in frequency; Alt one sample), Shift+arrows widen the region, Enter pins it, Escape stops pinning.
  */
 export default function MapPins({ geometry, testId, keyboard = false }: { geometry: MapGeometry; testId: string; keyboard?: boolean }) {
   const { layout, scales, spec } = geometry;
@@ -60,7 +60,8 @@ export default function MapPins({ geometry, testId, keyboard = false }: { geomet
     const move = step[e.key];
     if (move === undefined) return;
     e.preventDefault();
-    const t1 = Math.min(nt - 1, Math.max(0, k.t1 + move[0] * (e.altKey ? 10 : 1)));
+    // A time cell is one sample: a key moves about 1/60 of the epoch, Alt one sample.
+    const t1 = Math.min(nt - 1, Math.max(0, k.t1 + move[0] * (e.altKey ? 1 : Math.max(1, Math.round(nt / 60)))));
     const f1 = Math.min(nf - 1, Math.max(0, k.f1 + move[1]));
     setKeys(e.shiftKey ? { ...k, t1, f1 } : { t0: t1, f0: f1, t1, f1 });
   };
@@ -86,7 +87,7 @@ export default function MapPins({ geometry, testId, keyboard = false }: { geomet
             className={`pointer-events-none absolute ${older ? 'border-dashed border-coral-deep' : 'border-solid border-ink'} ${selected ? 'border-[3px] bg-foam/25 shadow-[0_0_0_2px_var(--color-sand)]' : 'border-2'} ${n.resolvedAt ? 'opacity-50' : ''}`}
             style={{ left: box.left, top: box.top, width: Math.max(6, box.width), height: Math.max(6, box.height) }}
           >
-            <span className={`absolute -top-5 -left-0.5 rounded-sm px-1 font-mono text-2xs leading-4 ${older ? 'bg-coral-deep text-sand' : 'bg-ink text-sand'}`}>
+            <span className={`absolute -top-5 -left-0.5 rounded-sm px-1 font-mono text-2xs leading-4 whitespace-nowrap ${older ? 'bg-coral-deep text-sand' : 'bg-ink text-sand'}`}>
               {number}
               {older ? ` · v${n.recipeVersion}` : ''}
             </span>
@@ -101,7 +102,7 @@ export default function MapPins({ geometry, testId, keyboard = false }: { geomet
           ref={layer}
           data-testid={`${testId}-pin-layer`}
           {...(keyboard
-            ? { tabIndex: 0, role: 'application', 'aria-roledescription': 'region picker', 'aria-label': `Pin a note on ${channel} · ${condition}: arrow keys move a cell, Shift and arrows widen the region, Enter pins it, Escape stops` }
+            ? { tabIndex: 0, role: 'application', 'aria-roledescription': 'region picker', 'aria-label': `Pin a note on ${channel} · ${condition}: arrow keys move, Shift and arrows widen the region, Alt for one sample, Enter pins it, Escape stops` }
             : { 'aria-hidden': true })}
           onKeyDown={keyboard ? onKey : undefined}
           onFocus={() => keyboard && keys === null && setKeys({ t0: Math.floor(nt / 2), f0: Math.floor(nf / 2), t1: Math.floor(nt / 2), f1: Math.floor(nf / 2) })}
