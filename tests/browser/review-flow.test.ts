@@ -113,6 +113,16 @@ describe('review through the workspace, two people', () => {
     await page.getByRole('button', { name: 'Create analysis session' }).click();
     await page.getByTestId('session-bar').waitFor();
     await page.getByTestId('session-created').waitFor();
+    // leave it, and a second start for the same subject and recording is refused in the server's words, with a
+    // way to continue the one that exists
+    await page.getByRole('button', { name: 'Leave the session' }).click();
+    await page.getByTestId('session-bar').waitFor({ state: 'detached' });
+    await page.getByRole('button', { name: 'Create analysis session' }).click();
+    await page.getByTestId('session-problem').waitFor();
+    expect(await page.getByTestId('session-problem').textContent()).toContain('already has an analysis session for this recording');
+    await page.getByRole('button', { name: 'Continue that session here' }).click();
+    await page.getByTestId('session-bar').waitFor();
+    expect((await pool.query('SELECT count(*)::int AS n FROM analysis_sessions WHERE study_id = $1', [study.id])).rows[0].n).toBe(1);
     await runOnChannels(page, CHANNELS);
     await page.getByTestId('save-version').click();
     await waitAttr(page, 'save-version-state', 'data-state', 'saved');
