@@ -1,6 +1,7 @@
 // The worker's API lives apart from its entry file so the browser entry and the Node entry expose the same object.
 import * as Comlink from 'comlink';
 import { analyzeChannel, type ChannelAnalysis, type RecipePlan } from '../src/lib/analysis/analyze-channel';
+import { summarizeChannel, type ChannelSummary, type ResolvedSummarySpec } from '../src/lib/analysis/summary';
 
 export interface ChannelJob {
   plan: RecipePlan;
@@ -20,6 +21,11 @@ export const decomposeApi = {
   run(job: ChannelJob, onProgress?: (fraction: number) => void): ChannelAnalysis {
     const out = analyzeChannel(job.plan, job.samples, { singleTrials: job.singleTrials, onProgress });
     return Comlink.transfer(out, buffersOf(out)); // transfer big arrays, never clone them
+  },
+  /** Channel `index`'s share of an analysis session's summary; its single trials stay (and die) in the worker. */
+  summarize(job: ChannelJob & { index: number }, spec: ResolvedSummarySpec): ChannelSummary {
+    const part = summarizeChannel(job.plan, job.index, analyzeChannel(job.plan, job.samples, { singleTrials: true }), spec);
+    return Comlink.transfer(part, (part.mapNormalized ?? []).map((m) => m.buffer as ArrayBuffer));
   },
 };
 

@@ -93,3 +93,30 @@ export async function recordProgress(page: Page): Promise<void> {
 export function progressSeen(page: Page): Promise<number[]> {
   return page.evaluate(() => (window as unknown as { __tidemarkProgress: number[] }).__tidemarkProgress);
 }
+
+/** Opens a subject of the demo cohort from the Source screen's picker (`fileName`: the picker's value; default its first). */
+export async function openDemoRecording(page: Page, fileName?: string): Promise<string> {
+  const picker = page.getByLabel(/Demo cohort/);
+  await picker.waitFor();
+  if (fileName !== undefined) await picker.selectOption(fileName);
+  const chosen = await picker.inputValue();
+  await page.getByRole('button', { name: 'Open demo recording' }).click();
+  await page.getByTestId('recording-details').waitFor({ timeout: 60_000 });
+  return chosen;
+}
+
+/** On the Recipe screen: decompose exactly `channels` (leaving "all channels") and wait for the run to finish. */
+export async function runOnChannels(page: Page, channels: readonly string[]): Promise<void> {
+  await page.getByRole('tab', { name: 'Recipe' }).click();
+  await page.getByTestId('recipe-screen').waitFor();
+  const all = page.getByTestId('recipe-all-channels');
+  if (await all.isChecked()) await all.uncheck();
+  for (const name of channels) {
+    const box = page.getByTestId(`recipe-channel-${name}`);
+    if (!(await box.isChecked())) await box.check();
+  }
+  const checked = await page.locator('[data-testid^="recipe-channel-"]').evaluateAll((els) => els.filter((e) => (e as HTMLInputElement).checked).map((e) => e.getAttribute('data-testid')!.slice('recipe-channel-'.length)));
+  for (const name of checked) if (!channels.includes(name)) await page.getByTestId(`recipe-channel-${name}`).uncheck();
+  await page.getByTestId('recipe-run').click();
+  await page.waitForFunction(() => document.querySelector('[data-testid="recipe-status"]')?.getAttribute('data-status') === 'done', undefined, { timeout: 60_000 });
+}

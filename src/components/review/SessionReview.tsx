@@ -299,7 +299,10 @@ function SessionReviewBody({ sessionId, study, team, me, role, ownerName, initia
             </button>
           ))}
           {steps.length === 0 && whyNoSteps(check) && <p className="text-sm text-ink-soft" data-testid="no-steps">{whyNoSteps(check)}</p>}
-          <button type="button" className="btn btn-quiet ml-auto" onClick={exportJson} data-testid="export-session">
+          <a className="btn btn-quiet ml-auto" href={`/teams/${team.id}/studies/${study.id}/workspace?session=${sessionId}`} data-testid="open-in-workspace">
+            Open in workspace
+          </a>
+          <button type="button" className="btn btn-quiet" onClick={exportJson} data-testid="export-session">
             Download this session (JSON)
           </button>
         </div>

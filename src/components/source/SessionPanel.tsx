@@ -1,6 +1,6 @@
 import { useId, useState } from 'react';
 import { AnalysisSessionInput } from '../../lib/schemas/studies';
-import { errorMessageOf, OutboundRefusedError, send } from '../../lib/client/outbound';
+import { linkAnalysisSession, startAnalysisSession, useReviewLink } from '../../lib/client/workspace/review';
 
 interface Props {
   teamId: string;
@@ -20,36 +20,27 @@ export function checkSubjectCode(code: string): string | null {
   return null;
 }
 
-/** Creates the analysis session: the one request the Source screen makes, carrying the subject code and fingerprint. */
-export default function SessionPanel({ teamId, studyId, fingerprint, subjectCode, mayCreateSessions, role, onSubjectCode }: Props) {
-  const [problem, setProblem] = useState<string | null>(null);
-  // A second draft for the same subject and recording is refused (409): the refusal links the session that exists.
-  const [existing, setExisting] = useState<{ id: string } | null>(null);
-  const [created, setCreated] = useState<{ id: string; subjectCode: string } | null>(null);
+/**
+ * Starts the analysis session (the one request the Source screen makes, carrying the subject code and fingerprint)
+ * through the workspace controller, which links it: the bar above the tabs then saves versions and the maps take
+ * notes. A second session for the same subject and recording is refused in the server's words, with a way to
+ * continue the one that exists.
+ */
+export default function SessionPanel({ teamId, studyId, subjectCode, mayCreateSessions, role, onSubjectCode }: Props) {
+  const [problem, setProblem] = useState<{ message: string; existingId: string | null } | null>(null);
   const [sending, setSending] = useState(false);
+  const linked = useReviewLink((s) => s.session);
   const id = useId();
 
   const create = async () => {
     const code = subjectCode.trim();
     const invalid = checkSubjectCode(code);
-    setExisting(null);
-    if (invalid) return setProblem(invalid);
+    if (invalid) return setProblem({ message: invalid, existingId: null });
     setProblem(null);
     setSending(true);
     try {
-      const response = await send(`/api/studies/${encodeURIComponent(studyId)}/analysis-sessions`, { json: { subjectCode: code, fingerprint } });
-      if (!response.ok) {
-        if (response.status === 409) {
-          const body = (await response.clone().json().catch(() => null)) as { existing?: { id?: string } } | null;
-          if (typeof body?.existing?.id === 'string') setExisting({ id: body.existing.id });
-        }
-        setProblem(await errorMessageOf(response));
-        return;
-      }
-      const body = (await response.json()) as { analysisSession: { id: string; subjectCode: string } };
-      setCreated(body.analysisSession);
-    } catch (error) {
-      setProblem(error instanceof OutboundRefusedError ? `${error.message} Change the subject code.` : `The request failed: ${error instanceof Error ? error.message : String(error)}`);
+      const outcome = await startAnalysisSession(studyId, code);
+      if (!outcome.ok) setProblem({ message: outcome.message, existingId: outcome.existingId });
     } finally {
       setSending(false);
     }
@@ -98,21 +89,23 @@ export default function SessionPanel({ teamId, studyId, fingerprint, subjectCode
         </button>
       </div>
       {problem && (
-        <p className="notice notice-warn" role="alert" data-testid="session-problem">
-          {problem}
-          {existing && (
-            <>
-              {' '}
-              <a href={`/teams/${encodeURIComponent(teamId)}/studies/${encodeURIComponent(studyId)}/sessions/${encodeURIComponent(existing.id)}`} data-testid="existing-session-link">
+        <div className="notice notice-warn grid gap-2" role="alert" data-testid="session-problem">
+          <p>{problem.message}</p>
+          {problem.existingId !== null && problem.existingId !== linked?.id && (
+            <p className="flex flex-wrap items-center gap-3">
+              <button type="button" className="btn btn-quiet text-sm" onClick={() => void linkAnalysisSession(problem.existingId!).then(() => setProblem(null))}>
+                Continue that session here
+              </button>
+              <a href={`/teams/${encodeURIComponent(teamId)}/studies/${encodeURIComponent(studyId)}/sessions/${encodeURIComponent(problem.existingId)}`} data-testid="existing-session-link">
                 Open the existing session
               </a>
-            </>
+            </p>
           )}
-        </p>
+        </div>
       )}
-      {created && (
+      {linked && (
         <p className="notice" role="status" data-testid="session-created">
-          Analysis session created for {created.subjectCode} (draft).
+          Analysis session for {linked.subjectCode} ({linked.status}) is open in this workspace: save versions from the bar above the tabs.
         </p>
       )}
     </form>

@@ -7,6 +7,8 @@ import type { PanelSpec } from '../../lib/plot/panel';
 import { requestTrialMaps, useTrialMaps } from '../../lib/client/workspace/trial-maps';
 import { useResultsStore, selectActive, ensureTrials } from '../../lib/client/workspace/results';
 import MapPanel, { type Cell } from '../explorer/MapPanel';
+import MapPins from '../review/MapPins';
+import MapNotesList from '../review/MapNotesList';
 import MapSelection, { MapReadout } from '../explorer/MapSelection';
 import NumberField from '../explorer/NumberField';
 import Choice from '../explorer/Choice';
@@ -345,13 +347,13 @@ export default function MapsScreen(_props: WorkspaceProps) {
       <div className="grid grid-cols-1 items-start gap-3 min-[1180px]:grid-cols-2" data-testid="maps-grid">
         {rawSpec !== null && (
           <div className="card p-2">
-            <MapPanel testId="map-raw" spec={rawSpec} baseline={baseline} dt={dt} snap={snap} onBaseline={setBaseline} focusable={false} cursor={cursor} onCursor={setCursor} />
+            <MapPanel testId="map-raw" spec={rawSpec} baseline={baseline} dt={dt} snap={snap} onBaseline={setBaseline} focusable={false} cursor={cursor} onCursor={setCursor} overlay={(g) => <MapPins geometry={g} testId="map-raw" />} />
           </div>
         )}
         {/* Two rows tall on a wide window, so the ITPC map sits straight under the raw one, beside the evoked trace. */}
         <div className="card p-2 min-[1180px]:row-span-2">
           {normSpec !== null ? (
-            <MapPanel testId="map-normalized" spec={normSpec} baseline={baseline} dt={dt} snap={snap} onBaseline={setBaseline} focusable cursor={cursor} onCursor={setCursor} warnings={warnings} />
+            <MapPanel testId="map-normalized" spec={normSpec} baseline={baseline} dt={dt} snap={snap} onBaseline={setBaseline} focusable cursor={cursor} onCursor={setCursor} warnings={warnings} overlay={(g) => <MapPins geometry={g} testId="map-normalized" keyboard />} />
           ) : (
             <p className="p-4 text-ink-soft">Preparing single-trial maps…</p>
           )}
@@ -368,6 +370,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
           </div>
         )}
       </div>
+      <MapNotesList />
       <MapReadout readout={readout} fresh={normFresh} unit={methodUnit(method)} />
       {problems.length > 0 && (
         <ul className="text-sm text-coral-deep" data-testid="run-warnings">

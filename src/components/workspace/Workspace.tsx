@@ -5,6 +5,7 @@ import RecipeScreen from './RecipeScreen';
 import OutboundScreen from './OutboundScreen';
 import SignInWatch from './SignInWatch';
 import MemoryBar from './MemoryBar';
+import SessionBar from '../review/SessionBar';
 import { bindAccount } from '../../lib/client/workspace';
 import { useScreen } from '../../lib/client/workspace/navigation';
 
@@ -58,6 +59,7 @@ export default function Workspace(props: WorkspaceProps) {
     <div className="mt-4">
       <SignInWatch />
       <MemoryBar />
+      <SessionBar userId={props.userId} team={props.team} study={props.study} />
       <div role="tablist" aria-label="Workspace screens" className="flex flex-wrap gap-1 border-b border-shell" onKeyDown={onKeyDown}>
         {screens.map((name) => (
           <button
