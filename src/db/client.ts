@@ -24,6 +24,15 @@ export const pool = new pg.Pool({
 pool.on('error', (error) => {
   console.error(`[tidemark] database connection lost while idle (${(error as { code?: string }).code ?? error.message}); it will be replaced`);
 });
+// The pool listens only to idle clients. A client checked out for a transaction sits between two statements while
+// the app computes (an audit hash, say); a server shutdown then arrives as an 'error' event with no query to take it,
+// and an 'error' event nobody listens to ends the process. Every client gets its own listener: the statement that
+// follows fails as unavailable (503), and the pool drops the broken client when it is released.
+pool.on('connect', (client) => {
+  client.on('error', (error) => {
+    console.error(`[tidemark] database connection lost during a request (${(error as { code?: string }).code ?? error.message}); the request fails as unavailable`);
+  });
+});
 export const db = drizzle(pool, { schema });
 export type Db = typeof db;
 /** A transaction handed to a `db.transaction` callback. */
@@ -44,7 +53,7 @@ const UNAVAILABLE_CODES = new Set([
 export function isDatabaseUnavailable(error: unknown): boolean {
   for (let e = error as { code?: string; message?: string; cause?: unknown } | undefined, depth = 0; e && depth < 5; e = e.cause as typeof e, depth++) {
     if (e.code && UNAVAILABLE_CODES.has(e.code)) return true;
-    if (typeof e.message === 'string' && /Connection terminated|timeout exceeded when trying to connect|Connection ended unexpectedly/i.test(e.message)) return true;
+    if (typeof e.message === 'string' && /Connection terminated|timeout exceeded when trying to connect|Connection ended unexpectedly|encountered a connection error and is not queryable|Client was closed and is not queryable/i.test(e.message)) return true;
   }
   return false;
 }

@@ -311,6 +311,13 @@ describe('Source screen: a recording opened on this device', () => {
     await page.getByTestId('recording-details').waitFor({ timeout: 60_000 });
     expect(await page.getByLabel('Subject code').inputValue()).toBe('TM-S01');
     expect(await page.getByTestId('patient-field').textContent()).toBe(DEMO_PATIENT_FIELD);
+    // A second demo file opens too: the first one's header (it names the invented scenario) does not block its address.
+    const first = await page.getByTestId('fingerprint').textContent();
+    const options = await picker.locator('option').evaluateAll((els) => els.map((e) => (e as HTMLOptionElement).value));
+    await picker.selectOption(options[1]);
+    await page.getByRole('button', { name: 'Open demo recording' }).click();
+    await expect.poll(() => page.getByTestId('fingerprint').textContent(), { timeout: 60_000 }).not.toBe(first);
+    expect(await page.getByTestId('intake-problem').count()).toBe(0);
     await context.close();
   });
 });

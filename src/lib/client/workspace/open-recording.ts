@@ -45,11 +45,13 @@ export async function openRecording(req: OpenRequest, onProgress: (phase: Intake
   if (!result.ok) return { ok: false, fileName: result.error.file === 'events' && events ? events.name : fileName, error: result.error };
   // Only a file fetched from the demo cohort is known to be demo data; a local file with a demo-like name is not.
   const isDemo = from === 'demo cohort';
-  // The file name and header identification must never leave the device; the outbound wrapper refuses them.
+  // The file name and header identification must never leave the device; the outbound wrapper refuses them. A demo
+  // file's name and header were written by the server's own demo generator (an invented scenario): guarding them
+  // would only refuse the next demo file's address (its header names the scenario, "HARBOUR-LIGHTS").
   guardAgainst('source-recording', [
     ...(isDemo ? [] : [fileName]),
     ...(events && !isDemo ? [events.name] : []),
-    ...(result.local.identifying ? [result.local.identifying.patient, result.local.identifying.recording] : []),
+    ...(result.local.identifying && !isDemo ? [result.local.identifying.patient, result.local.identifying.recording] : []),
   ]);
   const reading = readingOf(kind);
   const store = useWorkspace.getState;
