@@ -7,7 +7,7 @@ import type { Browser, Page } from 'playwright-core';
 import { artifactsDir, launchBrowser, downloadFrom } from '../helpers/browser';
 import { runRecipe, type AnalysisResult } from '../../src/lib/analysis/run-recipe';
 import { loadDemo } from '../../src/components/explorer/test-hooks';
-import { openWorkspace, readMapCell, recordProgress, progressSeen } from '../helpers/workspace';
+import { readMapCell, recordProgress, progressSeen, loadDemoInWorkspace } from '../helpers/workspace';
 import { useWorkspace } from '../../src/lib/client/workspace/store';
 
 // The demo recording: 60 s of the invented Harbour Lights scenario, three channels, generated from its seed in the
@@ -44,9 +44,7 @@ beforeAll(async () => {
   fs.mkdirSync(artifactsDir, { recursive: true });
   const context = await browser.newContext({ viewport: { width: 1500, height: 1000 }, acceptDownloads: true });
   page = await context.newPage();
-  await openWorkspace(page, 'analyst', '?testhooks');
-  await page.waitForFunction(() => window.__tidemark !== undefined);
-  const loaded = await page.evaluate((demo) => window.__tidemark!.loadDemo(demo), DEMO);
+  const loaded = await loadDemoInWorkspace(page, DEMO);
   expect(loaded.settingsError).toBeNull();
   expect(loaded.kept).toBeGreaterThan(10);
 });

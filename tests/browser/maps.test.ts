@@ -9,7 +9,7 @@ import type { Browser, Locator, Page } from 'playwright-core';
 import { artifactsDir, launchBrowser, downloadFrom } from '../helpers/browser';
 import { runRecipe, type AnalysisResult } from '../../src/lib/analysis/run-recipe';
 import { demoRecording } from '../../src/components/explorer/test-hooks';
-import { openWorkspace, readMapCell } from '../helpers/workspace';
+import { readMapCell, loadDemoInWorkspace } from '../helpers/workspace';
 
 // The invented Harbour Lights demo (60 s, three channels), generated from its seed in the page and here in Node.
 const DEMO = { seconds: 60, channels: ['Fz', 'Cz', 'Pz'], epochStart: -0.5, epochEnd: 1.5 };
@@ -49,9 +49,7 @@ beforeAll(async () => {
   fs.mkdirSync(artifactsDir, { recursive: true });
   const context = await browser.newContext({ viewport: { width: 1440, height: 900 }, acceptDownloads: true });
   page = await context.newPage();
-  await openWorkspace(page, 'analyst', '?testhooks');
-  await page.waitForFunction(() => window.__tidemark !== undefined);
-  const loaded = await page.evaluate((demo) => window.__tidemark!.loadDemo(demo), DEMO);
+  const loaded = await loadDemoInWorkspace(page, DEMO);
   expect(loaded.settingsError).toBeNull();
 });
 afterAll(() => close());

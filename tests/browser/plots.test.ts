@@ -3,7 +3,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import { artifactsDir, launchBrowser, downloadFrom } from '../helpers/browser';
-import { openWorkspace } from '../helpers/workspace';
+import { loadDemoInWorkspace } from '../helpers/workspace';
 import { loadDemo } from '../../src/components/explorer/test-hooks';
 import { useWorkspace } from '../../src/lib/client/workspace/store';
 import { planRecipe } from '../../src/lib/analysis/run-recipe';
@@ -62,9 +62,7 @@ beforeAll(async () => {
   fs.mkdirSync(artifactsDir, { recursive: true });
   const context = await browser.newContext({ viewport: { width: 1440, height: 900 }, acceptDownloads: true });
   page = await context.newPage();
-  await openWorkspace(page, 'analyst', '?testhooks');
-  await page.waitForFunction(() => window.__tidemark !== undefined);
-  const loaded = await page.evaluate((demo) => window.__tidemark!.loadDemo(demo), DEMO);
+  const loaded = await loadDemoInWorkspace(page, DEMO);
   expect(loaded.channels).toHaveLength(32);
   // Phase consistency beside power: the recipe's `itpc` (the Recipe screen's own switch is another change).
   await page.evaluate(() => window.__tidemark!.stores.workspace.getState().setDraft({ itpc: true }));

@@ -8,7 +8,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import pg from 'pg';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { appUrl, artifactsDir, launchBrowser } from '../helpers/browser';
-import { openWorkspace } from '../helpers/workspace';
+import { loadDemoInWorkspace } from '../helpers/workspace';
 import { DEMO_PEOPLE } from '../../src/db/seed';
 
 const DEMO = { seconds: 60, channels: ['Fz', 'Cz', 'Pz'], tmin: -0.5, tmax: 1.5 };
@@ -54,9 +54,7 @@ beforeAll(async () => {
   fs.mkdirSync(artifactsDir, { recursive: true });
   context = await browser.newContext({ viewport: { width: 1440, height: 900 } });
   page = await context.newPage();
-  await openWorkspace(page, 'analyst', '?testhooks');
-  await page.waitForFunction(() => window.__tidemark !== undefined);
-  const loaded = await page.evaluate((demo) => window.__tidemark!.loadDemo(demo), DEMO);
+  const loaded = await loadDemoInWorkspace(page, DEMO);
   expect(loaded.settingsError).toBeNull();
   await page.getByRole('tab', { name: 'Recipe' }).click();
   await page.getByTestId('recipe-fcount').fill('8');

@@ -35,6 +35,18 @@ export async function openWorkspace(page: Page, role: Role = 'analyst', query = 
   if (query) await page.goto(`${page.url()}${query}`);
 }
 
+type DemoHooks = NonNullable<Window['__tidemark']>;
+
+/**
+ * Signs in as the first analyst, opens the demo study's workspace with the demo build's test hooks, and loads the
+ * invented demo recording described by `demo` in the page; returns what the hooks report of it.
+ */
+export async function loadDemoInWorkspace(page: Page, demo: Parameters<DemoHooks['loadDemo']>[0]): Promise<Awaited<ReturnType<DemoHooks['loadDemo']>>> {
+  await openWorkspace(page, 'analyst', '?testhooks');
+  await page.waitForFunction(() => window.__tidemark !== undefined);
+  return page.evaluate((d) => window.__tidemark!.loadDemo(d), demo);
+}
+
 /** dragenter, dragover and drop on the drop zone with a DataTransfer holding one File. */
 export async function dropFile(page: Page, name: string, data: Uint8Array): Promise<void> {
   await page.getByTestId('drop-zone').waitFor();

@@ -91,11 +91,13 @@ export default function SessionPanel({ teamId, studyId, subjectCode, mayCreateSe
       {problem && (
         <div className="notice notice-warn grid gap-2" role="alert" data-testid="session-problem">
           <p>{problem.message}</p>
-          {problem.existingId !== null && problem.existingId !== linked?.id && (
+          {problem.existingId !== null && (
             <p className="flex flex-wrap items-center gap-3">
-              <button type="button" className="btn btn-quiet text-sm" onClick={() => void linkAnalysisSession(problem.existingId!).then(() => setProblem(null))}>
-                Continue that session here
-              </button>
+              {problem.existingId !== linked?.id && (
+                <button type="button" className="btn btn-quiet text-sm" onClick={() => void linkAnalysisSession(problem.existingId!).then(() => setProblem(null))}>
+                  Continue that session here
+                </button>
+              )}
               <a href={`/teams/${encodeURIComponent(teamId)}/studies/${encodeURIComponent(studyId)}/sessions/${encodeURIComponent(problem.existingId)}`} data-testid="existing-session-link">
                 Open the existing session
               </a>
