@@ -173,7 +173,8 @@ describe('the sign-in watch in the workspace', () => {
 
     // Signed in again, the same request passes the sign-in check: the server now judges its body (the demo's
     // stand-in fingerprint is not a SHA-256, so a 400 that names the field, not a 401).
-    expect(await page.getByTestId('session-problem').textContent()).toContain('Sign in first.');
+    // The refused attempt (401) said so in plain words before the dialog came up.
+    expect(await page.getByTestId('session-problem').textContent()).toContain('Your sign-in has ended. Sign in again; nothing was changed.');
     await page.getByRole('button', { name: 'Create analysis session' }).click();
     await page.waitForFunction(() => document.querySelector('[data-testid="session-problem"]')?.textContent?.includes('fingerprint'));
     expect(await page.getByRole('dialog', { name: 'Sign in again to carry on' }).isVisible()).toBe(false);

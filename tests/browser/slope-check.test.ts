@@ -118,7 +118,7 @@ describe('the Slope check screen', () => {
     await page.waitForURL(/\/studies\/[0-9a-f-]+#slope-reports$/);
     const report = page.getByTestId('slope-report').filter({ hasText: title });
     await report.locator('summary').click();
-    expect(await report.getByTestId('bench-curve').count()).toBe(4);
+    await expect.poll(() => report.getByTestId('bench-curve').count()).toBe(4);
     await report.scrollIntoViewIfNeeded();
     await page.screenshot({ path: path.join(artifactsDir, 'slope-check-study-page.png') });
     const { rows: stored } = await pool.query(`SELECT report FROM slope_reports WHERE title = $1`, [title]);

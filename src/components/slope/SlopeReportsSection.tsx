@@ -1,4 +1,4 @@
-import { useState } from 'react';
+import { useEffect, useRef, useState } from 'react';
 import type { SlopeReportListItem } from '../../lib/schemas/slope-reports';
 import BenchResults from './BenchResults';
 
@@ -15,8 +15,14 @@ export default function SlopeReportsSection({ reports }: { reports: SlopeReportL
       else next.delete(id);
       return next;
     });
+  // A report opened before this island was hydrated (a quick click on a slow page) is drawn once it is.
+  const section = useRef<HTMLElement>(null);
+  useEffect(() => {
+    const opened = [...(section.current?.querySelectorAll<HTMLDetailsElement>('details[data-report-id]') ?? [])].filter((d) => d.open);
+    if (opened.length > 0) setOpen(new Set(opened.map((d) => d.dataset.reportId!)));
+  }, []);
   return (
-    <section className="mt-10 max-w-5xl" aria-labelledby="slope-reports" data-testid="slope-reports">
+    <section ref={section} className="mt-10 max-w-5xl" aria-labelledby="slope-reports" data-testid="slope-reports">
       <h2 id="slope-reports" className="scroll-mt-4 text-xl font-semibold">
         Slope check reports
       </h2>
@@ -30,7 +36,7 @@ export default function SlopeReportsSection({ reports }: { reports: SlopeReportL
         <ul className="mt-3 grid gap-3">
           {reports.map((r) => (
             <li key={r.id} className="card p-3" data-testid="slope-report">
-              <details onToggle={(e) => toggle(r.id, e.currentTarget.open)}>
+              <details data-report-id={r.id} onToggle={(e) => toggle(r.id, e.currentTarget.open)}>
                 <summary className="cursor-pointer">
                   <span className="font-semibold" data-testid="slope-report-name">{r.title}</span>
                   <span className="text-sm text-ink-soft">

@@ -11,6 +11,7 @@ import type { CliSummaryFileT } from '../../lib/schemas/review';
 import { jsonHash } from '../../lib/crypto/review-hash';
 import { recordAudit } from './audit';
 import { ensureSubject } from './review';
+import { digestNewSummaries } from './cohort';
 
 type Tx = Parameters<Parameters<typeof db.transaction>[0]>[0];
 
@@ -51,7 +52,7 @@ export interface ImportItem {
 }
 
 export type ImportResult =
-  | { ok: true; sessions: { index: number; id: string; subjectCode: string; subjectCreated: boolean; summaryHash: string }[] }
+  | { ok: true; sessions: { index: number; id: string; versionId: string; subjectCode: string; subjectCreated: boolean; summaryHash: string }[] }
   | { ok: false; problems: { index: number; message: string; existingId: string }[] };
 
 /**
@@ -59,6 +60,12 @@ export type ImportResult =
  * recipe version 1 and its summary, each with its audit event, then one event for the batch.
  */
 export async function importSummaries(study: { id: string }, teamId: string, actorId: string, items: ImportItem[]): Promise<ImportResult> {
+  const result = await storeImport(study, teamId, actorId, items);
+  if (result.ok) await digestNewSummaries(result.sessions.map((s) => s.versionId));
+  return result;
+}
+
+function storeImport(study: { id: string }, teamId: string, actorId: string, items: ImportItem[]): Promise<ImportResult> {
   return db.transaction(async (tx) => {
     await lockStudySessions(tx, study.id);
     const problems: { index: number; message: string; existingId: string }[] = [];
@@ -67,7 +74,7 @@ export async function importSummaries(study: { id: string }, teamId: string, act
       if (existing) problems.push({ index: item.index, message: duplicateSessionWords(item.file.subjectCode, existing), existingId: existing.id });
     }
     if (problems.length > 0) return { ok: false, problems };
-    const sessions: { index: number; id: string; subjectCode: string; subjectCreated: boolean; summaryHash: string }[] = [];
+    const sessions: { index: number; id: string; versionId: string; subjectCode: string; subjectCreated: boolean; summaryHash: string }[] = [];
     for (const item of items) {
       const { subjectCode, fingerprint, recipe, summary } = item.file;
       const subject = await ensureSubject(tx, study.id, teamId, actorId, subjectCode);
@@ -92,7 +99,7 @@ export async function importSummaries(study: { id: string }, teamId: string, act
         actorId, action: 'summary.upload', targetTable: 'summaries', targetId: version.id, teamId,
         detail: { analysisSessionId: session.id, studyId: study.id, subjectCode, recipeVersion: 1, summaryHash, bytes: item.summaryBytes, imported: true },
       });
-      sessions.push({ index: item.index, id: session.id, subjectCode, subjectCreated: subject.created, summaryHash });
+      sessions.push({ index: item.index, id: session.id, versionId: version.id, subjectCode, subjectCreated: subject.created, summaryHash });
     }
     await recordAudit(tx, {
       actorId, action: 'summary.import', targetTable: 'studies', targetId: study.id, teamId,

@@ -29,6 +29,7 @@ import type { Role } from '../../lib/permissions';
 import type { MailKind, NoteAnchorT } from '../../lib/schemas/review';
 import { jsonHash, signedContentHash } from '../../lib/crypto/review-hash';
 import { recordAudit } from './audit';
+import { digestNewSummaries } from './cohort';
 import { isUuid } from './teams';
 
 type Tx = Parameters<Parameters<typeof db.transaction>[0]>[0];
@@ -180,6 +181,12 @@ export type UploadSummaryResult = { ok: true; summaryHash: string } | { ok: fals
 
 /** Stores the summary of a recipe version, once: a version's numbers never change after upload (a signature may cover them). */
 export async function uploadSummary(ctx: SessionWithRole, version: RecipeVersion, actorId: string, summary: Record<string, unknown>, bytes: number): Promise<UploadSummaryResult> {
+  const result = await storeSummary(ctx, version, actorId, summary, bytes);
+  if (result.ok) await digestNewSummaries([version.id]);
+  return result;
+}
+
+function storeSummary(ctx: SessionWithRole, version: RecipeVersion, actorId: string, summary: Record<string, unknown>, bytes: number): Promise<UploadSummaryResult> {
   return db.transaction(async (tx) => {
     const session = await lockSession(tx, ctx.session.id);
     const [existing] = await tx.select({ summaryHash: summaries.summaryHash }).from(summaries).where(eq(summaries.recipeVersionId, version.id));

@@ -144,5 +144,5 @@ export const POST: APIRoute = (ctx) =>
       const first = reports.find((r) => r.problems.length > 0)!;
       return json({ error: { code: 'session_exists', message: `Nothing was imported. ${describe(first)}` }, files: reports }, 409);
     }
-    return json({ imported: result.sessions.map((s) => ({ ...s, name: reports[s.index].name })), files: reports }, 201);
+    return json({ imported: result.sessions.map(({ versionId: _v, ...s }) => ({ ...s, name: reports[s.index].name })), files: reports }, 201);
   });
