@@ -116,6 +116,8 @@ describe('the Slope check screen', () => {
     await page.getByTestId('slope-report-saved').waitFor();
     await page.getByTestId('slope-report-saved').getByRole('link', { name: 'the study page' }).click();
     await page.waitForURL(/\/studies\/[0-9a-f-]+#slope-reports$/);
+    // The study's tool list leads to the same section.
+    expect(await page.getByTestId('slope-reports-link').getAttribute('href')).toBe('#slope-reports');
     const report = page.getByTestId('slope-report').filter({ hasText: title });
     await report.locator('summary').click();
     await expect.poll(() => report.getByTestId('bench-curve').count()).toBe(4);

@@ -5,6 +5,7 @@ import { assembleResult, planRun, type AnalysisResult, type ChannelAnalysis } fr
 import type { RecipePlan } from '../analysis/analyze-channel';
 import type { DecomposeApi } from '../../../workers/decompose-api';
 import type { PoolWorker } from '../../../workers/pool-worker';
+import { webPoolWorker } from './web-worker';
 
 export type { PoolWorker };
 
@@ -49,19 +50,10 @@ export class PoolWorkerError extends Error {
 }
 
 function browserWorker(): PoolWorker {
-  const worker = new Worker(new URL('../../../workers/decompose.worker.ts', import.meta.url), { type: 'module' });
-  return {
-    endpoint: worker,
-    terminate: () => worker.terminate(),
-    onFailure: (listener) => {
-      worker.addEventListener('error', (event) => {
-        event.preventDefault();
-        const message = event instanceof ErrorEvent && event.message ? event.message : '';
-        listener(message || 'its script did not load (a network error or a syntax error in the worker bundle)');
-      });
-      worker.addEventListener('messageerror', () => listener('a message from it could not be read'));
-    },
-  };
+  return webPoolWorker(
+    new Worker(new URL('../../../workers/decompose.worker.ts', import.meta.url), { type: 'module' }),
+    'its script did not load (a network error or a syntax error in the worker bundle)',
+  );
 }
 
 function defaultSize(): number {

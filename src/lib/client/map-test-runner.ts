@@ -3,6 +3,7 @@ import { MapTestCancelledError } from '../statistics/errors';
 import { checkMapTestInput, type MapTestInput, type MapTestResult } from '../statistics/map-test';
 import type { MapTestApi } from '../../../workers/map-test-api';
 import type { PoolWorker } from './decompose-pool';
+import { webPoolWorker } from './web-worker';
 
 export interface MapTestRunnerOptions {
   onProgress?: (fraction: number) => void;
@@ -21,18 +22,7 @@ export class MapTestWorkerError extends Error {
 }
 
 function browserWorker(): PoolWorker {
-  const worker = new Worker(new URL('../../../workers/map-test.worker.ts', import.meta.url), { type: 'module' });
-  return {
-    endpoint: worker,
-    terminate: () => worker.terminate(),
-    onFailure: (listener) => {
-      worker.addEventListener('error', (event) => {
-        event.preventDefault();
-        listener(event instanceof ErrorEvent && event.message ? event.message : 'its script did not load');
-      });
-      worker.addEventListener('messageerror', () => listener('a message from it could not be read'));
-    },
-  };
+  return webPoolWorker(new Worker(new URL('../../../workers/map-test.worker.ts', import.meta.url), { type: 'module' }));
 }
 
 /**

@@ -12,6 +12,7 @@ import { conditionRecording } from '../analysis/condition-recording';
 import { parseRecipe } from '../analysis/recipe';
 import type { Recording } from '../analysis/recording';
 import type { Decomposition } from './workspace/results';
+import { webPoolWorker } from './web-worker';
 
 /** A Slope check run stopped by its caller (the worker was ended). */
 export class SlopeCheckCancelledError extends Error {
@@ -33,18 +34,7 @@ export class SlopeCheckError extends Error {
 }
 
 function browserWorker(): PoolWorker {
-  const worker = new Worker(new URL('../../../workers/slope-check.worker.ts', import.meta.url), { type: 'module' });
-  return {
-    endpoint: worker,
-    terminate: () => worker.terminate(),
-    onFailure: (listener) => {
-      worker.addEventListener('error', (event) => {
-        event.preventDefault();
-        listener(event instanceof ErrorEvent && event.message ? event.message : 'its script did not load');
-      });
-      worker.addEventListener('messageerror', () => listener('a message from it could not be read'));
-    },
-  };
+  return webPoolWorker(new Worker(new URL('../../../workers/slope-check.worker.ts', import.meta.url), { type: 'module' }));
 }
 
 export interface SlopeRunOptions {

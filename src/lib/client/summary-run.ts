@@ -4,6 +4,7 @@ import { planRun, type RecipePlan } from '../analysis/run-recipe';
 import { combineSummary, resolveSummarySpec, SUMMARY_LIMITS, type ChannelSummary, type ResolvedSummarySpec, type Summary, type SummarySpec } from '../analysis/summary';
 import type { DecomposeApi } from '../../../workers/decompose-api';
 import type { PoolWorker } from '../../../workers/pool-worker';
+import { webPoolWorker } from './web-worker';
 
 export interface SummaryRunOptions {
   /** Workers to run at once; default navigator.hardwareConcurrency − 1, between 1 and 4. */
@@ -36,8 +37,7 @@ export function fittedSpec(plan: RecipePlan, spec: SummarySpec): ResolvedSummary
 }
 
 function browserWorker(): PoolWorker {
-  const worker = new Worker(new URL('../../../workers/decompose.worker.ts', import.meta.url), { type: 'module' });
-  return { endpoint: worker, terminate: () => worker.terminate() };
+  return webPoolWorker(new Worker(new URL('../../../workers/decompose.worker.ts', import.meta.url), { type: 'module' }));
 }
 
 /**
