@@ -5,7 +5,6 @@ import { linkAnalysisSession, startAnalysisSession, useReviewLink } from '../../
 interface Props {
   teamId: string;
   studyId: string;
-  fingerprint: string;
   subjectCode: string;
   mayCreateSessions: boolean;
   role: string;

@@ -286,7 +286,6 @@ export default function SourceScreen(props: WorkspaceProps) {
             <SessionPanel
               teamId={props.team.id}
               studyId={props.study.id}
-              fingerprint={fingerprint}
               subjectCode={subjectCode}
               mayCreateSessions={props.mayCreateSessions}
               role={props.role}

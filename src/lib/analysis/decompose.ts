@@ -438,9 +438,9 @@ class LogProduct {
   decibelsInto(out: Float64Array, length: number): void {
     const m = this.mantissa;
     const e = this.exponent;
-    for (let i = 0; i < out.length; i++) {
-      const f = Math.floor(i / length);
-      out[i] = 10 * (log10(m[i]) + e[i] * LOG10_2 - this.logBaselines[f]);
+    for (let f = 0, off = 0; off < out.length; f++, off += length) {
+      const logB = this.logBaselines[f];
+      for (let i = off; i < off + length; i++) out[i] = 10 * (log10(m[i]) + e[i] * LOG10_2 - logB);
     }
   }
 }
