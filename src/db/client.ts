@@ -30,7 +30,7 @@ pool.on('error', (error) => {
 // follows fails as unavailable (503), and the pool drops the broken client when it is released.
 pool.on('connect', (client) => {
   client.on('error', (error) => {
-    console.error(`[tidemark] database connection lost during a request (${(error as { code?: string }).code ?? error.message}); the request fails as unavailable`);
+    console.error(`[tidemark] database connection lost (${(error as { code?: string }).code ?? error.message}); a request using it fails as unavailable`);
   });
 });
 export const db = drizzle(pool, { schema });

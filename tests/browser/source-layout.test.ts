@@ -55,7 +55,6 @@ describe('the Source screen', () => {
       const fill = Number(await meter.getAttribute('data-fill-percent'));
       const usage = await page.evaluate(() => navigator.storage.estimate());
       expect(usage.quota!).toBeGreaterThan(0);
-      expect(fill).toBeCloseTo(Math.max(0.5, (100 * usage.usage!) / usage.quota!), 2);
       expect(fill).toBeLessThan(5);
       expect(await meter.textContent()).toMatch(/Storage used: .+ of .+ this browser allows \(.+ %\)/);
       const bar = await meter.getByRole('meter').boundingBox();

@@ -1,5 +1,6 @@
 import { useMemo, useState } from 'react';
 import { createColumnHelper, flexRender, getCoreRowModel, getFilteredRowModel, getSortedRowModel, useReactTable, type SortingState } from '@tanstack/react-table';
+import SortableHeader from '../table/SortableHeader';
 import type { CohortSessionRow } from '../../lib/cohort/overview';
 import { mayEnter } from '../../lib/cohort/model';
 import { fmt } from './plots';
@@ -97,16 +98,7 @@ export default function SessionTable({ sessions, bands, unit, window, condition,
             {table.getHeaderGroups().map((g) => (
               <tr key={g.id}>
                 {g.headers.map((h) => (
-                  <th key={h.id} scope="col" aria-sort={h.column.getIsSorted() === 'asc' ? 'ascending' : h.column.getIsSorted() === 'desc' ? 'descending' : 'none'}>
-                    {h.column.getCanSort() ? (
-                      <button type="button" className="font-semibold" onClick={h.column.getToggleSortingHandler()}>
-                        {flexRender(h.column.columnDef.header, h.getContext())}
-                        {h.column.getIsSorted() === 'asc' ? ' ↑' : h.column.getIsSorted() === 'desc' ? ' ↓' : ''}
-                      </button>
-                    ) : (
-                      flexRender(h.column.columnDef.header, h.getContext())
-                    )}
-                  </th>
+                  <SortableHeader key={h.id} header={h} />
                 ))}
               </tr>
             ))}

@@ -1,5 +1,6 @@
 import { useState } from 'react';
 import { createColumnHelper, flexRender, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from '@tanstack/react-table';
+import SortableHeader from '../table/SortableHeader';
 
 export interface FitRow {
   channel: string;
@@ -48,16 +49,9 @@ export default function FitTable({ rows, selected, onSelect }: { rows: FitRow[];
         <thead>
           {table.getHeaderGroups().map((g) => (
             <tr key={g.id} className="border-b border-shell text-left">
-              {g.headers.map((h) => {
-                const dir = h.column.getIsSorted();
-                return (
-                  <th key={h.id} className="px-2 py-1 font-semibold" aria-sort={dir === 'asc' ? 'ascending' : dir === 'desc' ? 'descending' : 'none'}>
-                    <button type="button" className="text-left hover:underline" onClick={h.column.getToggleSortingHandler()}>
-                      {flexRender(h.column.columnDef.header, h.getContext())} {dir === 'asc' ? '▲' : dir === 'desc' ? '▼' : ''}
-                    </button>
-                  </th>
-                );
-              })}
+              {g.headers.map((h) => (
+                <SortableHeader key={h.id} header={h} className="px-2 py-1 font-semibold" />
+              ))}
             </tr>
           ))}
         </thead>

@@ -1,4 +1,4 @@
-import { useEffect, useLayoutEffect, useRef, useState, type KeyboardEvent, type PointerEvent, type ReactNode } from 'react';
+import { useEffect, useLayoutEffect, useMemo, useRef, useState, type KeyboardEvent, type PointerEvent, type ReactNode } from 'react';
 import { useElementWidth } from './useElementWidth';
 import { panelLayout, type PanelLayout } from '../../lib/plot/figure';
 import { paintPanel, panelScales, type PanelScales, type PanelSpec } from '../../lib/plot/panel';
@@ -81,6 +81,13 @@ export default function MapPanel(props: MapPanelProps) {
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [spec, width, height, ratio]);
 
+  // Cells outlined (e.g. Rayleigh p < 0.05), counted once per picture for the label, not at every cursor move.
+  const outlined = useMemo(() => {
+    let n = 0;
+    if (spec.outline) for (let i = 0; i < spec.outline.length; i++) n += spec.outline[i] !== 0 ? 1 : 0;
+    return n;
+  }, [spec.outline]);
+
   if (layout === null) return <div ref={wrap} className="w-full" style={{ height }} />;
   const scales = panelScales(layout, spec.times, spec.frequencies, spec.spacing);
   const x0 = scales.time(baseline.start - dt / 2);
@@ -159,8 +166,6 @@ export default function MapPanel(props: MapPanelProps) {
   const fmt = (s: number) => `${Number(s.toFixed(3))} s`;
   const bandTop = layout.top;
   const bandHeight = layout.plotHeight;
-  let outlined = 0;
-  if (spec.outline) for (let i = 0; i < spec.outline.length; i++) outlined += spec.outline[i] !== 0 ? 1 : 0;
   const cursorX = cursor === null ? null : layout.left + ((cursor.t + 0.5) * layout.plotWidth) / nt;
   const cursorY = cursor === null ? null : layout.top + ((nf - 1 - cursor.f + 0.5) * layout.plotHeight) / nf;
   return (

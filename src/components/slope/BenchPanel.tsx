@@ -1,4 +1,4 @@
-import { useRef, useState } from 'react';
+import { useEffect, useRef, useState } from 'react';
 import type { FitSetting } from '../../lib/analysis/slope-check/bench';
 import type { SlopeSweepCell, SlopeSweepInput } from '../../lib/analysis/slope-check/sweep';
 import { runSlopeBenchInWorker, SlopeCheckCancelledError, SlopeCheckError } from '../../lib/client/slope-check';
@@ -71,6 +71,8 @@ export default function BenchPanel({ onRun }: { onRun: (run: BenchRun | null) =>
   const [progress, setProgress] = useState<number | null>(null);
   const [problem, setProblem] = useState<string | null>(null);
   const abort = useRef<AbortController | null>(null);
+  // Leaving the screen ends a bench still going (its worker).
+  useEffect(() => () => abort.current?.abort(), []);
   const nextKey = useRef(3);
 
   const exponents = parseExponents(exponentsText);

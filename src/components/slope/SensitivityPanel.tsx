@@ -86,10 +86,14 @@ export default function SensitivityPanel({ onResult }: { onResult: (r: Sensitivi
   const dKey = d?.key ?? null;
   useEffect(() => {
     abort.current?.abort();
+    abort.current = null;
+    setRunning(false);
     setResult(null);
     onResult(null);
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [dKey, fingerprint]);
+  // Leaving the screen ends a run still going (its worker).
+  useEffect(() => () => abort.current?.abort(), []);
 
   if (d === null || recording === null) {
     return (
@@ -117,14 +121,20 @@ export default function SensitivityPanel({ onResult }: { onResult: (r: Sensitivi
     abort.current = controller;
     setRunning(true);
     setProblem(null);
+    // A run replaced by a newer one, or cleared by another decomposition, says nothing more.
     try {
       const r = await checkSensitivityInWorker(d, recording, { channel: ch, fingerprint, rangeHz: [fitRange[0], fitRange[1]], model, startsHz: s, endsHz: e, bootstrap: { repetitions: 200, level: 0.9, seed: 1 } }, { signal: controller.signal });
-      setResult(r);
-      onResult(r);
+      if (abort.current === controller) {
+        setResult(r);
+        onResult(r);
+      }
     } catch (err) {
-      setProblem(err instanceof SlopeCheckCancelledError ? 'Cancelled; the previous result stays.' : err instanceof Error ? err.message : String(err));
+      if (abort.current === controller) setProblem(err instanceof SlopeCheckCancelledError ? 'Cancelled; the previous result stays.' : err instanceof Error ? err.message : String(err));
     } finally {
-      setRunning(false);
+      if (abort.current === controller) {
+        abort.current = null;
+        setRunning(false);
+      }
     }
   };
 

@@ -59,8 +59,12 @@ export default function ShiftPanel() {
   // A result belongs to one decomposition: another recording or run clears it.
   useEffect(() => {
     abort.current?.abort();
+    abort.current = null;
+    setRunning(false);
     setResult(null);
   }, [dKey, fingerprint]);
+  // Leaving the screen ends a run still going (its worker).
+  useEffect(() => () => abort.current?.abort(), []);
 
   if (d === null || recording === null) {
     return (
@@ -85,12 +89,17 @@ export default function ShiftPanel() {
     abort.current = controller;
     setRunning(true);
     setProblem(null);
+    // A run replaced by a newer one, or cleared by another decomposition, says nothing more.
     try {
-      setResult(await checkBroadbandShiftInWorker(d, recording, { channel, condition, baseline, post, method, rangeHz: [fitRange[0], fitRange[1]], model, bands }, { signal: controller.signal }));
+      const r = await checkBroadbandShiftInWorker(d, recording, { channel, condition, baseline, post, method, rangeHz: [fitRange[0], fitRange[1]], model, bands }, { signal: controller.signal });
+      if (abort.current === controller) setResult(r);
     } catch (err) {
-      setProblem(err instanceof SlopeCheckCancelledError ? 'Cancelled; the previous result stays.' : err instanceof Error ? err.message : String(err));
+      if (abort.current === controller) setProblem(err instanceof SlopeCheckCancelledError ? 'Cancelled; the previous result stays.' : err instanceof Error ? err.message : String(err));
     } finally {
-      setRunning(false);
+      if (abort.current === controller) {
+        abort.current = null;
+        setRunning(false);
+      }
     }
   };
 

@@ -8,6 +8,7 @@ import {
   useReactTable,
   type SortingState,
 } from '@tanstack/react-table';
+import SortableHeader from '../table/SortableHeader';
 import type { EpochDecision } from '../../lib/client/workspace/source-rules';
 
 interface Props {
@@ -130,21 +131,9 @@ export default function EpochTable({ decisions, onOverride, onSelect }: Props) {
           <thead className="sticky top-0 bg-foam">
             {table.getHeaderGroups().map((g) => (
               <tr key={g.id}>
-                {g.headers.map((h) => {
-                  const sorted = h.column.getIsSorted();
-                  return (
-                    <th key={h.id} scope="col" aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : undefined}>
-                      {h.column.getCanSort() ? (
-                        <button type="button" className="font-semibold" onClick={h.column.getToggleSortingHandler()}>
-                          {flexRender(h.column.columnDef.header, h.getContext())}
-                          {sorted === 'asc' ? ' ▲' : sorted === 'desc' ? ' ▼' : ''}
-                        </button>
-                      ) : (
-                        flexRender(h.column.columnDef.header, h.getContext())
-                      )}
-                    </th>
-                  );
-                })}
+                {g.headers.map((h) => (
+                  <SortableHeader key={h.id} header={h} />
+                ))}
               </tr>
             ))}
           </thead>

@@ -11,6 +11,7 @@ import {
   type ColumnFiltersState,
   type SortingState,
 } from '@tanstack/react-table';
+import SortableHeader from '../table/SortableHeader';
 import type { WorkspaceProps } from './types';
 import { bandSummary, bandSummaryProblems, bandTableRows, channelGroupsOf, itpcBandSummary, type BandTableRow } from '../../lib/client/workspace/band-summary';
 import { methodUnit, neutralValue } from '../../lib/plot/colour-scale';
@@ -397,17 +398,14 @@ function BandTable({ rows, unit, hasItpc }: { rows: BandTableRow[]; unit: string
           <thead className="bg-foam">
             {table.getHeaderGroups().map((g) => (
               <tr key={g.id} className="border-b border-shell text-left">
-                {g.headers.map((h) => {
-                  const dir = h.column.getIsSorted();
-                  const numeric = ['value', 'itpc', 'count'].includes(h.column.id);
-                  return (
-                    <th key={h.id} scope="col" className={`px-2 py-1 font-semibold ${numeric ? 'text-right' : ''}`} aria-sort={dir === 'asc' ? 'ascending' : dir === 'desc' ? 'descending' : 'none'}>
-                      <button type="button" className="hover:underline" onClick={h.column.getToggleSortingHandler()} data-testid={`band-sort-${h.column.id}`}>
-                        {flexRender(h.column.columnDef.header, h.getContext())} {dir === 'asc' ? '▲' : dir === 'desc' ? '▼' : ''}
-                      </button>
-                    </th>
-                  );
-                })}
+                {g.headers.map((h) => (
+                  <SortableHeader
+                    key={h.id}
+                    header={h}
+                    className={`px-2 py-1 font-semibold ${['value', 'itpc', 'count'].includes(h.column.id) ? 'text-right' : ''}`}
+                    testId={`band-sort-${h.column.id}`}
+                  />
+                ))}
               </tr>
             ))}
           </thead>

@@ -17,6 +17,7 @@ import { channelIndicesOf, contrastOf, evokedOf, exportedRecipe, groupsOf, isRou
 import EvokedTrace from '../explorer/EvokedTrace';
 import { renderMapsPng } from '../explorer/export-maps';
 import { downloadBlob, fileSafe } from '../explorer/download';
+import { downloadCsv } from '../explorer/download-figure';
 import MapExports from '../explorer/MapExports';
 import MethodsText from '../explorer/MethodsText';
 import { useWorkspace } from '../../lib/client/workspace/store';
@@ -58,7 +59,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
   const [trialExport, setTrialExport] = useState<{ busy: boolean; problem: string | null }>({ busy: false, problem: null });
   const trialMaps = useTrialMaps((s) => s.latest);
   // Buffers the average-scope maps are re-normalized into while the band moves (one channel: no allocation per move).
-  const buffers = useRef<{ a: Float64Array; b: Float64Array } | null>(null);
+  const buffers = useRef<{ a: Float64Array; b: Float64Array; diff: Float64Array } | null>(null);
 
   const groups = useMemo(() => (d === null ? [] : groupsOf(d)), [d]);
   const group = channelGroup !== null && groups.some((g) => g.name === channelGroup) ? channelGroup : null;
@@ -138,21 +139,25 @@ export default function MapsScreen(_props: WorkspaceProps) {
   // Average scope: re-normalized here in the controller's functions on every baseline move (F × T per channel).
   const averageNorm = useMemo((): Float64Array | null => {
     if (d === null || selection === null || useTrials) return null;
-    if (buffers.current === null || buffers.current.a.length !== nf * nt) buffers.current = { a: new Float64Array(nf * nt), b: new Float64Array(nf * nt) };
+    if (buffers.current === null || buffers.current.a.length !== nf * nt) buffers.current = { a: new Float64Array(nf * nt), b: new Float64Array(nf * nt), diff: new Float64Array(nf * nt) };
     const buf = buffers.current;
     if (b < 0) return normalizedOf(d, selection.indices, a, points, method, buf.a);
     if (contrastBaseline === 'shared') return contrastOf(d, selection.indices, a, b, points, method, 'shared');
     const na = normalizedOf(d, selection.indices, a, points, method, buf.a);
-    return difference(new Float64Array(nf * nt), na, normalizedOf(d, selection.indices, b, points, method, buf.b));
+    return difference(buf.diff, na, normalizedOf(d, selection.indices, b, points, method, buf.b));
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [d, indexKey, a, b, points.first, points.last, method, contrastBaseline, useTrials, nf, nt]);
 
+  // Single-trial scope: the worker's maps, A − B made once per new answer (not at every render, e.g. a cursor move).
+  const trialNorm = useMemo(
+    () => (trialMaps === null ? null : b >= 0 ? difference(new Float64Array(nf * nt), trialMaps.maps[a], trialMaps.maps[b]) : trialMaps.maps[a]),
+    [trialMaps, a, b, nf, nt],
+  );
   let normValues: Float64Array | null = averageNorm;
   let normFresh = true;
   if (useTrials && trialMaps !== null && trialMaps.key === holdKey) {
     normFresh = trialMaps.first === points.first && trialMaps.last === points.last && trialMaps.method === method && trialMaps.spread === (spreadTrials ? 'trials' : 'time');
-    const na = trialMaps.maps[a];
-    normValues = b >= 0 ? difference(new Float64Array(nf * nt), na, trialMaps.maps[b]) : na;
+    normValues = trialNorm;
   }
   const neutral = b >= 0 ? 0 : neutralValue(method);
   // A power ratio is drawn on a log scale centred on 1, so a halving looks as strong as a doubling.
@@ -265,7 +270,7 @@ export default function MapsScreen(_props: WorkspaceProps) {
     try {
       const { bands, windows } = useWorkspace.getState();
       const csv = await trialValuesCsv(d, ch, bands, windows, baseline, points, method);
-      downloadBlob(new Blob([csv], { type: 'text/csv' }), `trial-values-${fileSafe(ch)}-${method}.csv`);
+      downloadCsv(csv, `trial-values-${fileSafe(ch)}-${method}.csv`);
       setTrialExport({ busy: false, problem: null });
     } catch (error) {
       setTrialExport({ busy: false, problem: `Per-trial values of ${ch} could not be made: ${error instanceof Error ? error.message : String(error)}` });

@@ -37,7 +37,10 @@ export function fittedSpec(plan: RecipePlan, spec: SummarySpec): ResolvedSummary
 }
 
 function browserWorker(): PoolWorker {
-  return webPoolWorker(new Worker(new URL('../../../workers/decompose.worker.ts', import.meta.url), { type: 'module' }));
+  return webPoolWorker(
+    new Worker(new URL('../../../workers/decompose.worker.ts', import.meta.url), { type: 'module' }),
+    'its script did not load (a network error or a syntax error in the worker bundle)',
+  );
 }
 
 /**
@@ -56,8 +59,14 @@ export async function summarizeRecording(input: Recording, recipe: unknown, opti
   const parts = new Array<ChannelSummary>(n);
   let next = 0;
   let done = 0;
+  // A worker that fails outside any answer (its script did not load, an error escaped) would leave its call waiting
+  // for ever: its failure ends the whole run instead.
+  let stop: (error: Error) => void = () => undefined;
+  const failed = new Promise<never>((_, reject) => (stop = reject));
+  failed.catch(() => undefined);
+  for (const w of workers) w.onFailure?.((problem) => stop(new Error(`the summary worker failed: ${problem}`)));
   try {
-    await Promise.all(
+    const lanes = Promise.all(
       workers.map(async (worker) => {
         const remote = Comlink.wrap<DecomposeApi>(worker.endpoint);
         while (next < n) {
@@ -69,6 +78,7 @@ export async function summarizeRecording(input: Recording, recipe: unknown, opti
         remote[Comlink.releaseProxy]();
       }),
     );
+    await Promise.race([lanes, failed]);
   } finally {
     for (const w of workers) w.terminate();
   }

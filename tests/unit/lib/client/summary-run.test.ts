@@ -39,6 +39,25 @@ describe('summarizeRecording (the session summary, channel by channel in workers
     expect(SummaryInput.safeParse(summary).success).toBe(true);
   }, 60_000);
 
+  it('ends with the worker’s failure when a worker fails outside any answer, and ends every worker', async () => {
+    // A worker whose script "did not load": its port never answers, and it reports the failure as a Web Worker would.
+    const ended: number[] = [];
+    const broken = (k: number) => {
+      const { port1 } = new MessageChannel();
+      return {
+        endpoint: port1,
+        terminate: () => {
+          ended.push(k);
+          port1.close();
+        },
+        onFailure: (listener: (problem: string) => void) => setTimeout(() => listener('its script did not load'), 10),
+      };
+    };
+    let k = 0;
+    await expect(summarizeRecording(makeRecording(), recipe, { size: 2, createWorker: () => broken(k++) })).rejects.toThrow('the summary worker failed: its script did not load');
+    expect(ended.sort()).toEqual([0, 1]);
+  }, 60_000);
+
   it('keeps per-trial values for as many channels as the caps allow when all would pass them, and says so', () => {
     // 60 cues: 16 bands (one around each grid frequency) × 16 windows × 60 trials = 15 360 values per channel, so
     // all four channels (61 440) pass the cap of 50 000 and three (46 080) fit.

@@ -7,11 +7,14 @@ describe('bandChartLayout', () => {
     fc.assert(
       fc.property(fc.integer({ min: 240, max: 2000 }), fc.integer({ min: 1, max: 12 }), fc.integer({ min: 1, max: 8 }), (width, groups, bars) => {
         const l = bandChartLayout({ width, height: 240, groups, bars, values: [1, -2], neutral: 0 });
+        expect(l.barX(0)).toBeGreaterThanOrEqual(-1e-9);
+        expect(l.barX(bars - 1) + l.barWidth).toBeLessThanOrEqual(l.groupWidth + 1e-9);
+        expect(l.barWidth).toBeGreaterThan(0);
         for (let g = 0; g < groups; g++) {
+          // Each group starts inside the plot and after the end of the one before it: groups never overlap.
           const x0 = l.groupX(g);
-          expect(l.barX(0)).toBeGreaterThanOrEqual(-1e-9);
-          expect(l.barX(bars - 1) + l.barWidth).toBeLessThanOrEqual(l.groupWidth + 1e-9);
-          expect(l.barWidth).toBeGreaterThan(0);
+          expect(x0).toBeGreaterThanOrEqual(l.left - 1e-9);
+          if (g > 0) expect(x0).toBeGreaterThanOrEqual(l.groupX(g - 1) + l.groupWidth - 1e-9);
         }
         expect(l.groupX(groups - 1) + l.groupWidth).toBeLessThanOrEqual(width - l.right + 1e-9);
       }),
