@@ -24,7 +24,8 @@ const demoRoutes = {
 export default defineConfig({
   output: 'server',
   outDir: process.env.TIDEMARK_OUT_DIR ?? './dist',
-  adapter: node({ mode: 'standalone' }),
+  // Middleware mode: server/main.mjs serves the static files itself, from a list made at start (no disk lookup per request).
+  adapter: node({ mode: 'middleware' }),
   integrations: [react(), demoRoutes],
   server: { host: '127.0.0.1', port: 4321 },
   // Cross-site posts are refused by our own middleware (src/lib/server/same-origin.ts): Astro's origin check would

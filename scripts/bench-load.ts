@@ -171,6 +171,8 @@ function startApp(appUrl: string, smtpPort: number): Promise<ChildProcess> {
         TIDEMARK_TRUSTED_PROXIES: 'none',
         TIDEMARK_HOST: '127.0.0.1',
         TIDEMARK_PORT: String(APP_PORT),
+        // TIDEMARK_LOAD_PROFILE=<dir>: a CPU profile of the app under load (open it in Chromium's DevTools).
+        ...(process.env.TIDEMARK_LOAD_PROFILE ? { TIDEMARK_CPU_PROFILE_DIR: process.env.TIDEMARK_LOAD_PROFILE } : {}),
       },
       stdio: ['ignore', 'pipe', 'pipe'],
     });

@@ -85,7 +85,9 @@ env.TIDEMARK_HOSTS = [origin.hostname, ...(env.TIDEMARK_HOSTS ?? '').split(',')]
 buildIfStale();
 const host = env.TIDEMARK_HOST ?? '127.0.0.1';
 const port = env.TIDEMARK_PORT ?? '4321';
-const child = spawn(process.execPath, [path.join(root, 'server', 'main.mjs')], {
+// Benchmarks only: TIDEMARK_CPU_PROFILE_DIR writes a V8 CPU profile of the server there on exit (node --cpu-prof).
+const profile = env.TIDEMARK_CPU_PROFILE_DIR ? ['--cpu-prof', '--cpu-prof-dir', path.resolve(env.TIDEMARK_CPU_PROFILE_DIR)] : [];
+const child = spawn(process.execPath, [...profile, path.join(root, 'server', 'main.mjs')], {
   cwd: root,
   stdio: 'inherit',
   env: {
