@@ -2,7 +2,7 @@ import { sql } from 'drizzle-orm';
 import { PgTransaction } from 'drizzle-orm/pg-core';
 import type { Db } from '../client';
 import { auditEvents } from '../schema';
-import { asJsonValue, CHAIN_GENESIS, eventHash } from '../../lib/crypto/audit-chain';
+import { asJsonValue, CHAIN_GENESIS, hashedTextAround } from '../../lib/crypto/audit-chain';
 
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
 
@@ -28,21 +28,21 @@ export async function recordAudit(tx: Tx | Db, input: AuditInput): Promise<void>
 
 async function append(tx: Tx, input: AuditInput): Promise<void> {
   const teamId = input.teamId ?? null;
+  const detail = asJsonValue(input.detail ?? {});
+  // Everything of the hashed text but the three values fixed under the lock, made before it is taken.
+  const [beforeAt, beforeId, beforePrev, afterPrev] = hashedTextAround({ teamId, actorId: input.actorId, action: input.action, targetTable: input.targetTable, targetId: input.targetId, detail });
   await tx.execute(sql`SELECT pg_advisory_xact_lock(hashtextextended(${`tidemark:audit:${teamId ?? 'site'}`}, 0))`);
-  // After the lock (its own statement, so this one's snapshot sees every event committed before it): the chain's
-  // last hash, and the new event's id and time, fixed before the insert so the hash can cover them (the app may not
-  // UPDATE audit rows). One round trip while the chain is locked.
+  // After the lock (its own statement, so this one's snapshot sees every event committed before it), one statement
+  // reads the chain's last hash, fixes the new event's id and time, and stores the event with its SHA-256 taken by
+  // PostgreSQL (sha256(), PostgreSQL 11+) over the same RFC 8785 text `eventHash` makes: the lock is held for one
+  // round trip and the commit, not for a read, a hash in this process and a write. The verifier recomputes the hash
+  // from the stored row with `eventHash` (tests/integration compare them for every event they make).
   const last = teamId === null
     ? sql`(SELECT ${auditEvents.hash} FROM ${auditEvents} WHERE ${auditEvents.teamId} IS NULL ORDER BY ${auditEvents.id} DESC LIMIT 1)`
     : sql`(SELECT ${auditEvents.hash} FROM ${auditEvents} WHERE ${auditEvents.teamId} = ${teamId} ORDER BY ${auditEvents.id} DESC LIMIT 1)`;
-  const next = await tx.execute<{ id: string; at: Date; previous: string | null }>(
-    sql`SELECT nextval(pg_get_serial_sequence('audit_events', 'id')) AS id, date_trunc('milliseconds', now()) AS at, ${last} AS previous`,
-  );
-  const id = Number(next.rows[0].id);
-  const at = new Date(next.rows[0].at);
-  const previous = next.rows[0].previous === null ? undefined : { hash: next.rows[0].previous };
-  const detail = asJsonValue(input.detail ?? {});
-  const prevHash = previous?.hash ?? CHAIN_GENESIS;
-  const fields = { id, teamId, actorId: input.actorId, action: input.action, targetTable: input.targetTable, targetId: input.targetId, detail, at, prevHash };
-  await tx.insert(auditEvents).values({ ...fields, hash: eventHash(fields) });
+  await tx.execute(sql`
+    INSERT INTO audit_events (id, team_id, actor_id, action, target_table, target_id, detail, at, prev_hash, hash)
+    SELECT n.id, ${teamId}, ${input.actorId}, ${input.action}, ${input.targetTable}, ${input.targetId}, ${JSON.stringify(detail)}::jsonb, n.at, n.prev,
+      encode(sha256(convert_to(${beforeAt} || to_char(n.at AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"') || ${beforeId} || n.id::text || ${beforePrev} || n.prev || ${afterPrev}, 'UTF8')), 'hex')
+    FROM (SELECT nextval(pg_get_serial_sequence('audit_events', 'id')) AS id, date_trunc('milliseconds', now()) AS at, coalesce(${last}, ${CHAIN_GENESIS}) AS prev) n`);
 }

@@ -12,33 +12,58 @@ import type { CohortOverview, CohortSessionRow } from '../../lib/cohort/overview
 
 export type { CohortOverview, CohortSessionRow } from '../../lib/cohort/overview';
 
-/** Everything the Cohort screen paints first, in four queries whatever the number of sessions. */
+// The Cohort screen's first reads, prepared once (drizzle `.prepare`: a named statement per connection, so neither
+// the SQL text nor PostgreSQL's plan is made again per request).
+const overviewRows = db
+  .select({
+    session: analysisSessions,
+    ownerName: users.displayName,
+    versionId: recipeVersions.id,
+    recipe: recipeVersions.recipe,
+    recipeHash: recipeVersions.recipeHash,
+    // Only the hash: the summary itself (hundreds of kB each) is not read for the first paint.
+    summaryHash: summaries.summaryHash,
+    outline: summaryDigests.outline,
+    digest: summaryDigests.digest,
+  })
+  .from(analysisSessions)
+  .innerJoin(users, eq(users.id, analysisSessions.ownerId))
+  .leftJoin(recipeVersions, and(eq(recipeVersions.analysisSessionId, analysisSessions.id), eq(recipeVersions.number, analysisSessions.currentVersion)))
+  .leftJoin(summaries, eq(summaries.recipeVersionId, recipeVersions.id))
+  .leftJoin(summaryDigests, eq(summaryDigests.recipeVersionId, recipeVersions.id))
+  .where(eq(analysisSessions.studyId, sql.placeholder('studyId')))
+  .orderBy(asc(analysisSessions.subjectCode), asc(analysisSessions.createdAt))
+  .prepare('tidemark_cohort_rows');
+
+const overviewSignatures = db
+  .select({ signature: signatures })
+  .from(signatures)
+  .innerJoin(analysisSessions, eq(analysisSessions.id, signatures.analysisSessionId))
+  .where(eq(analysisSessions.studyId, sql.placeholder('studyId')))
+  .orderBy(asc(signatures.signedAt), asc(signatures.id))
+  .prepare('tidemark_cohort_signatures');
+
+const overviewSubjects = db
+  .select({ code: subjects.code })
+  .from(subjects)
+  .where(eq(subjects.studyId, sql.placeholder('studyId')))
+  .orderBy(asc(subjects.code))
+  .prepare('tidemark_cohort_subjects');
+
+/** Everything the Cohort screen paints first: five independent reads, in parallel, whatever the number of sessions. */
 export async function getCohortOverview(studyId: string): Promise<CohortOverview> {
-  const rows = await db
-    .select({
-      session: analysisSessions,
-      ownerName: users.displayName,
-      versionId: recipeVersions.id,
-      recipe: recipeVersions.recipe,
-      recipeHash: recipeVersions.recipeHash,
-      // Only the hash: the summary itself (hundreds of kB each) is not read for the first paint.
-      summaryHash: summaries.summaryHash,
-      outline: summaryDigests.outline,
-      digest: summaryDigests.digest,
-    })
-    .from(analysisSessions)
-    .innerJoin(users, eq(users.id, analysisSessions.ownerId))
-    .leftJoin(recipeVersions, and(eq(recipeVersions.analysisSessionId, analysisSessions.id), eq(recipeVersions.number, analysisSessions.currentVersion)))
-    .leftJoin(summaries, eq(summaries.recipeVersionId, recipeVersions.id))
-    .leftJoin(summaryDigests, eq(summaryDigests.recipeVersionId, recipeVersions.id))
-    .where(eq(analysisSessions.studyId, studyId))
-    .orderBy(asc(analysisSessions.subjectCode), asc(analysisSessions.createdAt));
+  const [rows, signed, covariates, subjectRows, design] = await Promise.all([
+    overviewRows.execute({ studyId }),
+    overviewSignatures.execute({ studyId }),
+    listCovariates(studyId),
+    overviewSubjects.execute({ studyId }),
+    getCohortDesign(studyId),
+  ]);
+  const sigs = signed.map((r) => r.signature);
   const missing = rows.flatMap((r) => (r.versionId !== null && r.summaryHash !== null && r.digest === null ? [r.versionId] : []));
   const made = await storeDigests(missing);
-  const ids = rows.map((r) => r.session.id);
-  const sigs = ids.length === 0 ? [] : await db.select().from(signatures).where(inArray(signatures.analysisSessionId, ids)).orderBy(asc(signatures.signedAt), asc(signatures.id));
-  const covariates = await listCovariates(studyId);
-  const subjectRows = await db.select({ code: subjects.code }).from(subjects).where(eq(subjects.studyId, studyId)).orderBy(asc(subjects.code));
+  const bySession = new Map<string, typeof sigs>();
+  for (const sig of sigs) bySession.set(sig.analysisSessionId, [...(bySession.get(sig.analysisSessionId) ?? []), sig]);
   return {
     sessions: rows.map((r) => ({
       analysisSessionId: r.session.id,
@@ -53,13 +78,12 @@ export async function getCohortOverview(studyId: string): Promise<CohortOverview
       summaryHash: r.summaryHash,
       outline: (r.outline ?? (r.versionId ? made.get(r.versionId)?.outline : null) ?? null) as CohortSessionRow['outline'],
       digest: (r.digest ?? (r.versionId ? made.get(r.versionId)?.digest : null) ?? {}) as CohortSessionRow['digest'],
-      signatures: sigs
-        .filter((s) => s.analysisSessionId === r.session.id)
+      signatures: (bySession.get(r.session.id) ?? [])
         .map((s) => ({ printedName: s.printedName, meaning: s.meaning, signedAt: s.signedAt.toISOString(), recipeVersionNumber: s.recipeVersionNumber, contentHash: s.contentHash, reason: s.reason })),
     })),
     covariates,
     subjects: subjectRows.map((s) => s.code),
-    design: await getCohortDesign(studyId),
+    design,
   };
 }
 

@@ -48,16 +48,42 @@ export interface SessionWithRole {
 }
 
 /** The analysis session when the user belongs to its team, else null (callers answer 404). */
+// The reads every session route makes, prepared once (drizzle `.prepare`: a named statement per connection, so
+// neither the SQL text nor PostgreSQL's plan is made again per request).
+const sessionForMember = db
+  .select({ session: analysisSessions, study: studies, team: teams, role: memberships.role })
+  .from(analysisSessions)
+  .innerJoin(studies, eq(studies.id, analysisSessions.studyId))
+  .innerJoin(teams, eq(teams.id, studies.teamId))
+  .innerJoin(memberships, and(eq(memberships.teamId, studies.teamId), eq(memberships.userId, sql.placeholder('userId'))))
+  .where(eq(analysisSessions.id, sql.placeholder('sessionId')))
+  .limit(1)
+  .prepare('tidemark_session_for_member');
+
+const versionsOfSession = db
+  .select({ number: recipeVersions.number, recipeHash: recipeVersions.recipeHash, createdAt: recipeVersions.createdAt, createdBy: recipeVersions.createdBy, summaryHash: summaries.summaryHash })
+  .from(recipeVersions)
+  .leftJoin(summaries, eq(summaries.recipeVersionId, recipeVersions.id))
+  .where(eq(recipeVersions.analysisSessionId, sql.placeholder('sessionId')))
+  .orderBy(asc(recipeVersions.number))
+  .prepare('tidemark_versions_of_session');
+
+const versionOfSession = db
+  .select()
+  .from(recipeVersions)
+  .where(and(eq(recipeVersions.analysisSessionId, sql.placeholder('sessionId')), eq(recipeVersions.number, sql.placeholder('number'))))
+  .prepare('tidemark_version_of_session');
+
+const signaturesOfSession = db
+  .select()
+  .from(signatures)
+  .where(eq(signatures.analysisSessionId, sql.placeholder('sessionId')))
+  .orderBy(asc(signatures.signedAt), asc(signatures.id))
+  .prepare('tidemark_signatures_of_session');
+
 export async function getSessionForMember(sessionId: string, userId: string): Promise<SessionWithRole | null> {
   if (!isUuid(sessionId)) return null;
-  const rows = await db
-    .select({ session: analysisSessions, study: studies, team: teams, role: memberships.role })
-    .from(analysisSessions)
-    .innerJoin(studies, eq(studies.id, analysisSessions.studyId))
-    .innerJoin(teams, eq(teams.id, studies.teamId))
-    .innerJoin(memberships, and(eq(memberships.teamId, studies.teamId), eq(memberships.userId, userId)))
-    .where(eq(analysisSessions.id, sessionId))
-    .limit(1);
+  const rows = await sessionForMember.execute({ sessionId, userId });
   return rows[0] ?? null;
 }
 
@@ -154,16 +180,12 @@ export async function saveRecipeVersion(ctx: SessionWithRole, actorId: string, b
 }
 
 export async function listRecipeVersions(sessionId: string) {
-  return db
-    .select({ number: recipeVersions.number, recipeHash: recipeVersions.recipeHash, createdAt: recipeVersions.createdAt, createdBy: recipeVersions.createdBy, summaryHash: summaries.summaryHash })
-    .from(recipeVersions)
-    .leftJoin(summaries, eq(summaries.recipeVersionId, recipeVersions.id))
-    .where(eq(recipeVersions.analysisSessionId, sessionId))
-    .orderBy(asc(recipeVersions.number));
+  return versionsOfSession.execute({ sessionId });
 }
 
-export async function getRecipeVersion(sessionId: string, number: number) {
-  return versionByNumber(db, sessionId, number);
+export async function getRecipeVersion(sessionId: string, number: number): Promise<RecipeVersion | null> {
+  const [row] = await versionOfSession.execute({ sessionId, number });
+  return row ?? null;
 }
 
 /** The hash of a recipe version's summary, without reading the summary itself. */
@@ -277,7 +299,7 @@ export async function auditSigningRefused(ctx: SessionWithRole, userId: string, 
 }
 
 export async function listSignatures(sessionId: string) {
-  return db.select().from(signatures).where(eq(signatures.analysisSessionId, sessionId)).orderBy(asc(signatures.signedAt), asc(signatures.id));
+  return signaturesOfSession.execute({ sessionId });
 }
 
 // ---------------------------------------------------------------- notes

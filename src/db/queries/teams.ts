@@ -1,4 +1,4 @@
-import { and, asc, desc, eq } from 'drizzle-orm';
+import { and, asc, desc, eq, sql } from 'drizzle-orm';
 import { db } from '../client';
 import { memberships, sessions, studies, teams, users, type Study, type Team } from '../schema';
 import type { Role } from '../../lib/permissions';
@@ -38,15 +38,19 @@ export interface StudyWithRole {
 }
 
 /** The study when the user belongs to its team, else null: another team's study is indistinguishable from none. */
+// Every study route's first read, prepared once (drizzle `.prepare`: a named statement per connection).
+const studyForMember = db
+  .select({ study: studies, team: teams, role: memberships.role })
+  .from(studies)
+  .innerJoin(teams, eq(teams.id, studies.teamId))
+  .innerJoin(memberships, and(eq(memberships.teamId, studies.teamId), eq(memberships.userId, sql.placeholder('userId'))))
+  .where(eq(studies.id, sql.placeholder('studyId')))
+  .limit(1)
+  .prepare('tidemark_study_for_member');
+
 export async function getStudyForMember(studyId: string, userId: string): Promise<StudyWithRole | null> {
   if (!isUuid(studyId)) return null;
-  const rows = await db
-    .select({ study: studies, team: teams, role: memberships.role })
-    .from(studies)
-    .innerJoin(teams, eq(teams.id, studies.teamId))
-    .innerJoin(memberships, and(eq(memberships.teamId, studies.teamId), eq(memberships.userId, userId)))
-    .where(eq(studies.id, studyId))
-    .limit(1);
+  const rows = await studyForMember.execute({ studyId, userId });
   return rows[0] ?? null;
 }
 

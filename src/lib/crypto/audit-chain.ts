@@ -59,6 +59,37 @@ export function canonicalJson(value: unknown): string {
   return text;
 }
 
+const AT = '\u0000at\u0000';
+const ID = '\u0000id\u0000';
+const PREV = '\u0000prev\u0000';
+
+/**
+ * The canonical text `eventHash` hashes (audit-chain.ts), cut around the event's time, id and previous hash: the
+ * text before the time's digits, between the time and the id, between the id and the previous hash, and after it.
+ * RFC 8785 orders members by name, whatever their values, so placeholders there give the real text's pieces. The
+ * time and the previous hash are strings (their quotes stay in the pieces); the id is a number (no quotes).
+ */
+export function hashedTextAround(fields: Omit<ChainedFields, 'id' | 'at' | 'prevHash'>): [string, string, string, string] {
+  const form: Record<string, unknown> = { ...chainedForm({ ...fields, id: 0, at: new Date(0), prevHash: '' }), at: AT, id: ID, prevHash: PREV };
+  const text = canonicalJson(form);
+  const quoted = (v: string) => canonicalJson(v);
+  // `at` precedes `detail` in name order and `id` and `prevHash` follow it: the first `at` and the last `id` and
+  // `prevHash` members are the event's own, wherever the same placeholders might appear inside `detail`.
+  const atMark = `"at":${quoted(AT)}`;
+  const idMark = `"id":${quoted(ID)}`;
+  const prevMark = `"prevHash":${quoted(PREV)}`;
+  const a = text.indexOf(atMark);
+  const i = text.lastIndexOf(idMark);
+  const p = text.lastIndexOf(prevMark);
+  if (a < 0 || i < a || p < i) throw new Error('audit: the hashed text did not have its members in RFC 8785 order');
+  return [
+    `${text.slice(0, a)}"at":"`,
+    `"${text.slice(a + atMark.length, i)}"id":`,
+    `${text.slice(i + idMark.length, p)}"prevHash":"`,
+    `"${text.slice(p + prevMark.length)}`,
+  ];
+}
+
 /** What JSON (and so jsonb) keeps of a value: drops undefined, turns Dates into strings, NaN into null. */
 export function asJsonValue<T>(value: T): T {
   return JSON.parse(JSON.stringify(value ?? {})) as T;

@@ -59,6 +59,24 @@ function toActive(row: typeof sessions.$inferSelect): ActiveSession {
   return { id: row.id, userId: row.userId, createdAt: row.createdAt, lastUsedAt: row.lastUsedAt, expiresAt: row.expiresAt, idleExpiresAt: idle < row.expiresAt ? idle : row.expiresAt };
 }
 
+/**
+ * Every request's first query, prepared once (drizzle `.prepare`, a named statement per connection): neither the SQL
+ * text nor PostgreSQL's plan is made again per request.
+ */
+const sessionLookup = db
+  .select({
+    session: sessions,
+    user: { id: users.id, email: users.email, displayName: users.displayName, isOperator: users.isOperator, disabledAt: users.disabledAt },
+    idleOver: sql<boolean>`${sessions.lastUsedAt} <= now() - make_interval(mins => ${sql.placeholder('idleMinutes')})`,
+    absoluteOver: sql<boolean>`${sessions.expiresAt} <= now()`,
+    stale: sql<boolean>`${sessions.lastUsedAt} <= now() - interval '1 minute'`,
+  })
+  .from(sessions)
+  .innerJoin(users, eq(users.id, sessions.userId))
+  .where(eq(sessions.id, sql.placeholder('id')))
+  .limit(1)
+  .prepare('tidemark_session_lookup');
+
 export type Validation =
   | { state: 'none' }
   | { state: 'ended'; why: 'idle' | 'absolute' | 'disabled' }
@@ -71,18 +89,7 @@ export type Validation =
  */
 export async function validateSessionToken(token: string, { touch = true } = {}): Promise<Validation> {
   const id = sessionIdOf(token);
-  const rows = await db
-    .select({
-      session: sessions,
-      user: { id: users.id, email: users.email, displayName: users.displayName, isOperator: users.isOperator, disabledAt: users.disabledAt },
-      idleOver: sql<boolean>`${sessions.lastUsedAt} <= now() - make_interval(mins => ${settings.sessionIdleMinutes})`,
-      absoluteOver: sql<boolean>`${sessions.expiresAt} <= now()`,
-      stale: sql<boolean>`${sessions.lastUsedAt} <= now() - interval '1 minute'`,
-    })
-    .from(sessions)
-    .innerJoin(users, eq(users.id, sessions.userId))
-    .where(eq(sessions.id, id))
-    .limit(1);
+  const rows = await sessionLookup.execute({ id, idleMinutes: settings.sessionIdleMinutes });
   const row = rows[0];
   if (!row) return { state: 'none' };
   const why = row.user.disabledAt ? 'disabled' : row.absoluteOver ? 'absolute' : row.idleOver ? 'idle' : null;

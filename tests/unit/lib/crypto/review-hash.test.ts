@@ -1,6 +1,7 @@
 import { createHash } from 'node:crypto';
 import { describe, expect, it } from 'vitest';
-import { canonicalJson, CHAIN_GENESIS, eventHash, firstBreak } from '../../../../src/lib/crypto/audit-chain';
+import fc from 'fast-check';
+import { asJsonValue, canonicalJson, chainedForm, CHAIN_GENESIS, eventHash, firstBreak, hashedTextAround } from '../../../../src/lib/crypto/audit-chain';
 import { signedContentHash } from '../../../../src/lib/crypto/review-hash';
 
 describe('canonical JSON (RFC 8785, JSON Canonicalization Scheme)', () => {
@@ -71,5 +72,39 @@ describe('audit hash chain', () => {
     const rows = make(3) as { hash: string | null }[];
     rows[1].hash = null;
     expect(firstBreak(rows as never)).toMatchObject({ eventId: 20 });
+  });
+});
+
+describe('the hashed text cut around time, id and previous hash (what PostgreSQL completes under the chain lock)', () => {
+  const text = fc.string({ unit: 'binary', maxLength: 12 });
+  // Details as routes make them, and hostile ones: placeholder look-alikes, nested `at`/`id`/`prevHash` members.
+  const detail = fc.oneof(
+    fc.jsonValue(),
+    fc.record({ at: fc.constant('\u0000at\u0000'), id: fc.constant('\u0000id\u0000'), prevHash: fc.constant('\u0000prev\u0000'), x: text }),
+    fc.record({ detail: fc.record({ id: fc.constant('\u0000id\u0000'), prevHash: fc.constant('\u0000prev\u0000') }) }),
+  );
+  it('joined with the three values, is exactly the RFC 8785 text eventHash hashes (fast-check, 500 cases)', () => {
+    fc.assert(
+      fc.property(
+        fc.record({
+          teamId: fc.option(fc.uuid(), { nil: null }),
+          actorId: fc.option(fc.uuid(), { nil: null }),
+          action: text,
+          targetTable: text,
+          targetId: text,
+          detail: detail.map((d) => asJsonValue(d)),
+          id: fc.integer({ min: 1, max: Number.MAX_SAFE_INTEGER }),
+          at: fc.date({ min: new Date('2000-01-01T00:00:00Z'), max: new Date('2999-12-31T23:59:59.999Z'), noInvalidDate: true }),
+          prevHash: fc.oneof(fc.constant(CHAIN_GENESIS), fc.stringMatching(/^[0-9a-f]{64}$/)),
+        }),
+        (e) => {
+          const [beforeAt, beforeId, beforePrev, afterPrev] = hashedTextAround(e);
+          const joined = `${beforeAt}${e.at.toISOString()}${beforeId}${e.id}${beforePrev}${e.prevHash}${afterPrev}`;
+          expect(joined).toBe(canonicalJson(chainedForm(e)));
+          expect(createHash('sha256').update(joined, 'utf8').digest('hex')).toBe(eventHash(e));
+        },
+      ),
+      { numRuns: 500 },
+    );
   });
 });
