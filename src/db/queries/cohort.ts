@@ -156,13 +156,18 @@ export async function cohortSummariesJson(studyId: string, sessionIds: string[])
   return `{"summaries":{${rows.map((r) => `${JSON.stringify(r.id)}:${r.summary}`).join(',')}}}`;
 }
 
+const covariatesOfStudy = db
+  .select({ subject: subjects.code, name: subjectCovariates.name, value: subjectCovariates.value })
+  .from(subjectCovariates)
+  .innerJoin(subjects, eq(subjects.id, subjectCovariates.subjectId))
+  .where(eq(subjects.studyId, sql.placeholder('studyId')))
+  .orderBy(asc(subjectCovariates.name), asc(subjects.code))
+  .prepare('tidemark_covariates_of_study');
+
+const designOfStudy = db.select().from(cohortDesigns).where(eq(cohortDesigns.studyId, sql.placeholder('studyId'))).prepare('tidemark_design_of_study');
+
 export async function listCovariates(studyId: string): Promise<CohortOverview['covariates']> {
-  const rows = await db
-    .select({ subject: subjects.code, name: subjectCovariates.name, value: subjectCovariates.value })
-    .from(subjectCovariates)
-    .innerJoin(subjects, eq(subjects.id, subjectCovariates.subjectId))
-    .where(eq(subjects.studyId, studyId))
-    .orderBy(asc(subjectCovariates.name), asc(subjects.code));
+  const rows = await covariatesOfStudy.execute({ studyId });
   const names = [...new Set(rows.map((r) => r.name))];
   const bySubject: Record<string, Record<string, number>> = {};
   for (const r of rows) (bySubject[r.subject] ??= {})[r.name] = r.value;
@@ -192,7 +197,7 @@ export async function saveCovariates(study: { id: string; teamId: string }, acto
 }
 
 export async function getCohortDesign(studyId: string): Promise<CohortOverview['design']> {
-  const [row] = await db.select().from(cohortDesigns).where(eq(cohortDesigns.studyId, studyId));
+  const [row] = await designOfStudy.execute({ studyId });
   return row ? { revision: row.revision, cohort: row.design as unknown as CohortDesignT, updatedAt: row.updatedAt.toISOString() } : null;
 }
 
