@@ -9,8 +9,9 @@ import type { Browser } from 'playwright-core';
 import { artifactsDir, downloadFrom, launchBrowser } from '../helpers/browser';
 import { openWorkspace, loadDemoInWorkspace } from '../helpers/workspace';
 import { pool } from '../helpers/app';
-import { runSlopeSweep } from '../../src/lib/analysis/slope-check';
-import { runRecipe } from '../../src/lib/analysis/run-recipe';
+import { compareAperiodicModels, runSlopeSweep } from '../../src/lib/analysis/slope-check';
+import { welchPsd } from '../../src/lib/analysis/welch';
+import { planRun, runRecipe } from '../../src/lib/analysis/run-recipe';
 import { loadDemo } from '../../src/components/explorer/test-hooks';
 import { useWorkspace } from '../../src/lib/client/workspace/store';
 
@@ -160,7 +161,14 @@ describe('the Slope check screen', () => {
     const [lower, upper] = /interval (-?[\d.]+) … (-?[\d.]+)/.exec(interval)!.slice(1).map(Number);
     expect(lower).toBeLessThanOrEqual(cz.exponent);
     expect(upper).toBeGreaterThanOrEqual(cz.exponent);
-    expect(await page.getByTestId('sensitivity-model').textContent()).toMatch(/Recommended model: power law( with a knee)?\./);
+    // The model the screen recommends is the one BIC prefers (Schwarz 1978) for the same spectrum in Node: the
+    // recipe's Welch of Cz as the run conditioned it (planRun), over the same 2–40 Hz.
+    const planned = planRun(useWorkspace.getState().analysisRecording()!, { ...recipe, aperiodic: { ...recipe.aperiodic, range: [2, 40] } });
+    const sp = planned.plan.spectrum;
+    const welch = welchPsd(planned.recording.data[planned.recording.channelNames.indexOf('Cz')], planned.plan.sampleRateHz, sp.segmentSamples, sp.overlapSamples, sp.spans);
+    const comparison = compareAperiodicModels(welch.frequencies, welch.psd, [2, 40]);
+    const modelWords = comparison.preferred === 'power-law' ? 'power law' : 'power law with a knee';
+    expect((await page.getByTestId('sensitivity-model').locator('p').first().textContent())?.trim()).toBe(`Recommended model: ${modelWords}. ${comparison.reason}`);
 
     await page.getByTestId('shift-run').click();
     await page.getByTestId('shift-result').waitFor({ timeout: 60_000 });
