@@ -102,10 +102,10 @@ async function poolPhase(recording: Recording, size: number): Promise<PhaseRepor
   const pool = new DecomposePool({ size, createWorker: createNodeDecomposeWorker });
   await pool.run(recording, { ...recipe, channels: recording.channelNames.slice(0, size) }); // start and warm the workers
   const t = performance.now();
-  const { result } = await pool.run(recording, recipe);
+  const { channels } = await pool.run(recording, recipe);
   const seconds = (performance.now() - t) / 1000;
   pool.terminate();
-  if (result.channels.length !== CHANNELS) throw new Error('pool returned the wrong channels');
+  if (channels.length !== CHANNELS) throw new Error('pool returned the wrong channels');
   return { phase: `pool ${size}`, seconds: { whole: seconds }, maxRssMb: maxRssMb() };
 }
 

@@ -2,6 +2,7 @@ import { fitAperiodic, type AperiodicFit, type AperiodicModel } from './aperiodi
 import type { BaselineMethod, BaselineScope, BaselineSpread } from './baseline';
 import type { ChannelType, ChannelUnit } from './channel-types';
 import { decomposeChannel, type DecomposeOptions } from './decompose';
+import { epochSpectra, type EpochSpectra } from './epoch-spectra';
 import { welchPsd } from './welch';
 
 // Kept apart from run-recipe.ts (which validates recipes with zod) so a worker loads only the numeric code.
@@ -53,6 +54,13 @@ export interface ChannelAnalysis {
   /** Welch density over the bins inside `spectrum.range`, µV²/Hz. */
   psd: Float64Array;
   spectrumFrequencies: Float64Array;
+  /** The same Welch spectrum over every bin, 0 Hz … Nyquist (the aperiodic fit's input), µV²/Hz. */
+  welch: { frequencies: Float64Array; psd: Float64Array };
+  /**
+   * With option `epochSpectra`: one Welch spectrum per kept epoch of every condition (plan label order) over the
+   * bins inside `spectrum.range` (`epochSpectra` in epoch-spectra.ts); else null.
+   */
+  epochSpectra: EpochSpectra | null;
   aperiodic: AperiodicFit;
   /** With spectrum source `epochs`, the fit of each condition's own epochs, in plan label order; else null. */
   aperiodicByCondition: AperiodicFit[] | null;
@@ -60,6 +68,19 @@ export interface ChannelAnalysis {
 
 export interface ChannelOptions extends DecomposeOptions {
   singleTrials?: boolean;
+  /** Also each epoch's own Welch spectrum (the Spectrum screen's spread across epochs), from the same samples. */
+  epochSpectra?: boolean;
+}
+
+/** Every condition's epoch starts in plan label order, as one array (the per-epoch spectra's order). */
+export function allEpochStarts(plan: Pick<RecipePlan, 'epochStarts'>): Int32Array {
+  const starts = new Int32Array(plan.epochStarts.reduce((n, s) => n + s.length, 0));
+  let o = 0;
+  for (const s of plan.epochStarts) {
+    starts.set(s, o);
+    o += s.length;
+  }
+  return starts;
 }
 
 /**
@@ -105,6 +126,11 @@ export function analyzeChannel(plan: RecipePlan, samples: Float32Array, options:
     evoked: tf.evoked,
     psd: welch.psd.slice(k0, k1),
     spectrumFrequencies: welch.frequencies.slice(k0, k1),
+    welch: { frequencies: welch.frequencies, psd: welch.psd },
+    epochSpectra:
+      options.epochSpectra === true
+        ? epochSpectra(samples, plan.sampleRateHz, allEpochStarts(plan), plan.epochSamples, sp.segmentSamples, sp.overlapSamples, sp.range)
+        : null,
     aperiodic,
     aperiodicByCondition,
   };
