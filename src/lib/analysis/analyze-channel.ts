@@ -73,7 +73,7 @@ export interface ChannelOptions extends DecomposeOptions {
 }
 
 /** Every condition's epoch starts in plan label order, as one array (the per-epoch spectra's order). */
-export function allEpochStarts(plan: Pick<RecipePlan, 'epochStarts'>): Int32Array {
+function allEpochStarts(plan: Pick<RecipePlan, 'epochStarts'>): Int32Array {
   const starts = new Int32Array(plan.epochStarts.reduce((n, s) => n + s.length, 0));
   let o = 0;
   for (const s of plan.epochStarts) {
