@@ -11,6 +11,7 @@ import type { Recording } from '../src/lib/analysis/recording';
 import { planRecipe, runRecipe } from '../src/lib/analysis/run-recipe';
 import { DecomposePool } from '../src/lib/client/decompose-pool';
 import { createNodeDecomposeWorker } from '../workers/node-worker-factory';
+import { resultBytes } from './lib/result-bytes';
 
 const CHANNELS = 32;
 const EPOCHS = 100;
@@ -54,6 +55,7 @@ interface PhaseReport {
   phase: string;
   seconds: Record<string, number>;
   maxRssMb: number;
+  bytes?: ReturnType<typeof resultBytes>;
 }
 
 async function singlePhase(recording: Recording): Promise<PhaseReport> {
@@ -102,11 +104,13 @@ async function poolPhase(recording: Recording, size: number): Promise<PhaseRepor
   const pool = new DecomposePool({ size, createWorker: createNodeDecomposeWorker });
   await pool.run(recording, { ...recipe, channels: recording.channelNames.slice(0, size) }); // start and warm the workers
   const t = performance.now();
-  const { result } = await pool.run(recording, recipe);
+  // As the workspace runs it: with each epoch's spectrum for the Spectrum screen.
+  const { plan, channels } = await pool.run(recording, recipe, { epochSpectra: true });
   const seconds = (performance.now() - t) / 1000;
   pool.terminate();
-  if (result.channels.length !== CHANNELS) throw new Error('pool returned the wrong channels');
-  return { phase: `pool ${size}`, seconds: { whole: seconds }, maxRssMb: maxRssMb() };
+  if (channels.length !== CHANNELS) throw new Error('pool returned the wrong channels');
+  const rss = maxRssMb();
+  return { phase: `pool ${size}`, seconds: { whole: seconds }, maxRssMb: rss, bytes: resultBytes(recipe, plan, channels) };
 }
 
 // Each phase runs in its own process so its peak memory is its own.
@@ -145,6 +149,9 @@ async function main() {
     const pool = runPhase(['--phase', 'pool', String(size)]);
     line(`worker pool, ${size} worker${size > 1 ? 's' : ''} (whole recipe)`, pool.seconds.whole);
     console.log(`  peak RSS ${pool.maxRssMb.toFixed(0)} MB (main thread + workers)`);
+    const b = pool.bytes!;
+    const mb = (x: number) => (x / 1e6).toFixed(1);
+    console.log(`  held per decomposition ${mb(b.decomposition)} MB typed (spectra ${mb(b.spectra)} MB); the same run as Result JSON ${mb(b.resultJson)} MB of heap`);
   }
 
   const script = fileURLToPath(new URL('./bench-numpy.py', import.meta.url));

@@ -10,16 +10,30 @@ export interface ChannelJob {
   /** The channel's name, for messages. */
   channel?: string;
   singleTrials?: boolean;
+  /** Also each epoch's Welch spectrum (the Spectrum screen), from the samples this worker already holds. */
+  epochSpectra?: boolean;
 }
 
 function buffersOf(out: ChannelAnalysis): ArrayBuffer[] {
-  const arrays: ArrayBufferView[] = [...out.power, ...out.normalized, ...(out.itpc ?? []), ...(out.evoked ?? []), out.psd, out.spectrumFrequencies, ...(out.singleTrials ?? [])];
+  const e = out.epochSpectra;
+  const arrays: ArrayBufferView[] = [
+    ...out.power,
+    ...out.normalized,
+    ...(out.itpc ?? []),
+    ...(out.evoked ?? []),
+    out.psd,
+    out.spectrumFrequencies,
+    out.welch.frequencies,
+    out.welch.psd,
+    ...(e === null ? [] : [e.frequencies, e.perTrial, e.mean]),
+    ...(out.singleTrials ?? []),
+  ];
   return [...new Set(arrays.map((a) => a.buffer as ArrayBuffer))];
 }
 
 export const decomposeApi = {
   run(job: ChannelJob, onProgress?: (fraction: number) => void): ChannelAnalysis {
-    const out = analyzeChannel(job.plan, job.samples, { singleTrials: job.singleTrials, onProgress });
+    const out = analyzeChannel(job.plan, job.samples, { singleTrials: job.singleTrials, epochSpectra: job.epochSpectra, onProgress });
     return Comlink.transfer(out, buffersOf(out)); // transfer big arrays, never clone them
   },
   /** Channel `index`'s share of an analysis session's summary; its single trials stay (and die) in the worker. */

@@ -1,10 +1,9 @@
-// The explorer's worker: holds one channel's single-trial power for live trial-scope re-normalization, and
-// computes per-epoch spectra. Wiring only; the maths is in src/lib/analysis (renormalize.ts, epoch-spectra.ts).
+// The explorer's worker: holds one channel's single-trial power for live trial-scope re-normalization, and refits
+// the aperiodic model for a dragged fit range. Wiring only; the maths is in src/lib/analysis (renormalize.ts,
+// aperiodic.ts).
 import * as Comlink from 'comlink';
 import type { BaselineMethod, BaselineSpread } from '../src/lib/analysis/baseline';
-import { epochSpectra, type EpochSpectra } from '../src/lib/analysis/epoch-spectra';
 import { prepareTrialPower, renormalizeTrials, type TrialPower } from '../src/lib/analysis/renormalize';
-import { welchPsd } from '../src/lib/analysis/welch';
 import { trialBandValues, type TrialBandWindow } from '../src/lib/analysis/trial-band-values';
 import { fitAperiodicEach, type AperiodicModel } from '../src/lib/analysis/aperiodic';
 
@@ -33,26 +32,9 @@ const api = {
     if (held === null || held.key !== key) return null;
     return held.conditions.map((tp) => trialBandValues(tp.trials, tp.count, frequencies, times, mask, first, last, method, cells));
   },
-  spectra(
-    channels: Float32Array[],
-    sampleRateHz: number,
-    epochStarts: Int32Array,
-    epochSamples: number,
-    segmentSamples: number,
-    overlapSamples: number,
-    rangeHz: [number, number],
-  ): EpochSpectra[] {
-    const out = channels.map((x) => epochSpectra(x, sampleRateHz, epochStarts, epochSamples, segmentSamples, overlapSamples, rangeHz));
-    return Comlink.transfer(out, out.flatMap((s) => [s.frequencies.buffer, s.perTrial.buffer, s.mean.buffer]) as ArrayBuffer[]);
-  },
   /** The aperiodic fit of each spectrum over `rangeHz` with `model` (the core's one model), or why it failed. */
   fitEach(spectra: { frequencies: Float64Array; psd: Float64Array }[], rangeHz: [number, number], model: AperiodicModel) {
     return fitAperiodicEach(spectra, rangeHz, model);
-  },
-  /** The recipe's Welch spectrum of each channel over `spans` (whole recording or epochs), as `analyzeChannel` computes it. */
-  recipeSpectra(channels: Float32Array[], sampleRateHz: number, segmentSamples: number, overlapSamples: number, spans: Int32Array): { frequencies: Float64Array; psd: Float64Array }[] {
-    const out = channels.map((x) => welchPsd(x, sampleRateHz, segmentSamples, overlapSamples, spans));
-    return Comlink.transfer(out, out.flatMap((s) => [s.frequencies.buffer, s.psd.buffer]) as ArrayBuffer[]);
   },
 };
 

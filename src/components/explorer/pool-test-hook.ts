@@ -2,6 +2,7 @@
 // decomposition pool (module Web Workers from the bundled decompose.worker.ts) on the recording open in the Source
 // store, so a browser test can compare the complete Result with the command line's. Nothing is sent anywhere.
 import { DecomposePool } from '../../lib/client/decompose-pool';
+import { resultOfRun } from '../../lib/client/result-json';
 import { useWorkspace } from '../../lib/client/workspace/store';
 import { openedWarnings } from '../../lib/client/workspace/source-rules';
 
@@ -15,7 +16,8 @@ export async function runPoolOnOpenRecording(recipe: unknown): Promise<string> {
   if (recording === null) throw new Error('no recording is open on the Source screen');
   const pool = new DecomposePool();
   try {
-    const { result } = await pool.run(recording, recipe);
+    // The Result JSON is built here, for export only: the workspace keeps the workers' typed arrays.
+    const result = resultOfRun(await pool.run(recording, recipe));
     // The file's own warnings first, as the command line writes them (src/cli/analyze.ts).
     result.warnings.unshift(...openedWarnings(useWorkspace.getState().local));
     return JSON.stringify(result);

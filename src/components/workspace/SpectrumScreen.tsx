@@ -45,13 +45,13 @@ export default function SpectrumScreen(_props: WorkspaceProps) {
   const visible = usePanelVisible('Spectrum');
   // A display choice, not part of the recipe or the undo history: the spread band says what the lines would.
   const [showEpochs, setShowEpochs] = useState(false);
-  const recording = useWorkspace((s) => s.recording);
-  const spectra = useWork(d, visible && recording !== null, (d) => spectrumWork.epochSpectra(d, recording!), []);
-  const recipeSpectra = useWork(d, visible && recording !== null, (d) => spectrumWork.recipeSpectra(d, recording!), []);
+  // The run's own spectra (its workers made them with the decomposition); only the refit below is new work.
+  const spectra = d === null ? null : spectrumWork.epochSpectra(d);
+  const recipeSpectra = d === null ? null : spectrumWork.recipeSpectra(d);
   const model = d?.recipe.aperiodic.model ?? 'power-law';
   // Fitted as analyzeChannel fits (the recipe's spectrum over all its bins, the live fit range, the recipe's
   // model), in the explorer worker: a drag of the fit range never refits on this thread.
-  const fits = useWork(d, recipeSpectra !== null, (d) => spectrumWork.fits(d, recipeSpectra!, fitRange, model), [recipeSpectra, fitRange[0], fitRange[1], model]);
+  const fits = useWork(d, visible && recipeSpectra !== null, (d) => spectrumWork.fits(d, recipeSpectra!, fitRange, model), [recipeSpectra, fitRange[0], fitRange[1], model]);
 
   if (d === null) {
     return (
@@ -118,7 +118,7 @@ export default function SpectrumScreen(_props: WorkspaceProps) {
       </div>
       {sp === null || rsp === null ? (
         <p className="text-ink-soft" role="status">
-          Computing per-epoch spectra in a worker…
+          {spectra === null ? 'This run kept no per-epoch spectra: run the recipe again to see them.' : 'Loading the spectra…'}
         </p>
       ) : (
         <>

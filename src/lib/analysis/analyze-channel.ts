@@ -2,7 +2,8 @@ import { fitAperiodic, type AperiodicFit, type AperiodicModel } from './aperiodi
 import type { BaselineMethod, BaselineScope, BaselineSpread } from './baseline';
 import type { ChannelType, ChannelUnit } from './channel-types';
 import { decomposeChannel, type DecomposeOptions } from './decompose';
-import { welchPsd } from './welch';
+import { epochSpectra, epochSpectraFrom, type EpochSpectra } from './epoch-spectra';
+import { welchNested, welchPsd, type WelchSpectrum } from './welch';
 
 // Kept apart from run-recipe.ts (which validates recipes with zod) so a worker loads only the numeric code.
 
@@ -53,6 +54,13 @@ export interface ChannelAnalysis {
   /** Welch density over the bins inside `spectrum.range`, µV²/Hz. */
   psd: Float64Array;
   spectrumFrequencies: Float64Array;
+  /** The same Welch spectrum over every bin, 0 Hz … Nyquist (the aperiodic fit's input), µV²/Hz. */
+  welch: { frequencies: Float64Array; psd: Float64Array };
+  /**
+   * With option `epochSpectra`: one Welch spectrum per kept epoch of every condition (plan label order) over the
+   * bins inside `spectrum.range` (`epochSpectra` in epoch-spectra.ts); else null.
+   */
+  epochSpectra: EpochSpectra | null;
   aperiodic: AperiodicFit;
   /** With spectrum source `epochs`, the fit of each condition's own epochs, in plan label order; else null. */
   aperiodicByCondition: AperiodicFit[] | null;
@@ -60,6 +68,19 @@ export interface ChannelAnalysis {
 
 export interface ChannelOptions extends DecomposeOptions {
   singleTrials?: boolean;
+  /** Also each epoch's own Welch spectrum (the Spectrum screen's spread across epochs), from the same samples. */
+  epochSpectra?: boolean;
+}
+
+/** Every condition's epoch starts in plan label order, as one array (the per-epoch spectra's order). */
+function allEpochStarts(plan: Pick<RecipePlan, 'epochStarts'>): Int32Array {
+  const starts = new Int32Array(plan.epochStarts.reduce((n, s) => n + s.length, 0));
+  let o = 0;
+  for (const s of plan.epochStarts) {
+    starts.set(s, o);
+    o += s.length;
+  }
+  return starts;
 }
 
 /**
@@ -83,16 +104,27 @@ export function analyzeChannel(plan: RecipePlan, samples: Float32Array, options:
     options,
   );
   const sp = plan.spectrum;
-  const welch = welchPsd(samples, plan.sampleRateHz, sp.segmentSamples, sp.overlapSamples, sp.spans);
+  const fs = plan.sampleRateHz;
+  const wantEpochs = options.epochSpectra === true;
+  let welch: WelchSpectrum;
+  let byCondition: WelchSpectrum[] | null = null;
+  let perEpoch: EpochSpectra | null = null;
+  const groupOfSpan = Int32Array.from(plan.epochStarts.flatMap((starts, c) => Array.from(starts, () => c)));
+  if (sp.conditionSpans !== null && 2 * groupOfSpan.length === sp.spans.length) {
+    // Spectrum from the kept epochs: each span is one epoch, so the recipe's average, each condition's and each
+    // epoch's own share their segments, and one walk makes all three (the same bits as three separate passes).
+    const nested = welchNested(samples, fs, sp.segmentSamples, sp.overlapSamples, sp.spans, groupOfSpan, plan.epochStarts.length, wantEpochs && sp.segmentSamples <= plan.epochSamples);
+    welch = nested.all;
+    byCondition = nested.byGroup;
+    if (nested.bySpan !== null) perEpoch = epochSpectraFrom(welch.frequencies, nested.bySpan, groupOfSpan.length, sp.range);
+  } else {
+    welch = welchPsd(samples, fs, sp.segmentSamples, sp.overlapSamples, sp.spans);
+    if (sp.conditionSpans !== null) byCondition = sp.conditionSpans.map((spans) => welchPsd(samples, fs, sp.segmentSamples, sp.overlapSamples, spans));
+  }
+  if (wantEpochs && perEpoch === null) perEpoch = epochSpectra(samples, fs, allEpochStarts(plan), plan.epochSamples, sp.segmentSamples, sp.overlapSamples, sp.range);
   const aperiodic = fitAperiodic(welch.frequencies, welch.psd, plan.aperiodic.range, plan.aperiodic.model);
   // One fit per condition, on Welch over that condition's kept epochs only (same segments, same range).
-  const aperiodicByCondition =
-    sp.conditionSpans === null
-      ? null
-      : sp.conditionSpans.map((spans) => {
-          const w = welchPsd(samples, plan.sampleRateHz, sp.segmentSamples, sp.overlapSamples, spans);
-          return fitAperiodic(w.frequencies, w.psd, plan.aperiodic.range, plan.aperiodic.model);
-        });
+  const aperiodicByCondition = byCondition === null ? null : byCondition.map((w) => fitAperiodic(w.frequencies, w.psd, plan.aperiodic.range, plan.aperiodic.model));
   let k0 = 0;
   while (k0 < welch.frequencies.length && welch.frequencies[k0] < sp.range[0] - EPS) k0++;
   let k1 = k0;
@@ -105,6 +137,8 @@ export function analyzeChannel(plan: RecipePlan, samples: Float32Array, options:
     evoked: tf.evoked,
     psd: welch.psd.slice(k0, k1),
     spectrumFrequencies: welch.frequencies.slice(k0, k1),
+    welch: { frequencies: welch.frequencies, psd: welch.psd },
+    epochSpectra: perEpoch,
     aperiodic,
     aperiodicByCondition,
   };

@@ -27,14 +27,29 @@ export function epochSpectra(
 ): EpochSpectra {
   const n = Math.min(segmentSamples, epochSamples);
   const overlap = Math.min(overlapSamples, n - 1);
-  const K = epochStarts.length;
+  return collectEpochSpectra(epochStarts.length, (k) => {
+    const s = epochStarts[k];
+    return welchPsd(samples, sampleRateHz, n, overlap, [s, s + epochSamples]);
+  }, rangeHz);
+}
+
+/**
+ * `epochSpectra` from each epoch's Welch density already made (`welchNested`'s `bySpan`, `[k·bins + i]` over the
+ * bins `frequencies`): the same clipping to `rangeHz` and the same mean, so the same bits.
+ */
+export function epochSpectraFrom(frequencies: Float64Array, perEpoch: Float64Array, epochs: number, rangeHz: readonly [number, number]): EpochSpectra {
+  const bins = frequencies.length;
+  return collectEpochSpectra(epochs, (k) => ({ frequencies, psd: perEpoch.subarray(k * bins, (k + 1) * bins) }), rangeHz);
+}
+
+// Epoch k's full Welch density from `spectrumOf(k)`, k = 0 … K − 1 in order, kept inside `rangeHz` and averaged.
+function collectEpochSpectra(K: number, spectrumOf: (k: number) => { frequencies: Float64Array; psd: Float64Array }, rangeHz: readonly [number, number]): EpochSpectra {
   let frequencies = new Float64Array(0);
   let perTrial = new Float64Array(0);
   let k0 = 0;
   let bins = 0;
   for (let k = 0; k < K; k++) {
-    const s = epochStarts[k];
-    const w = welchPsd(samples, sampleRateHz, n, overlap, [s, s + epochSamples]);
+    const w = spectrumOf(k);
     if (k === 0) {
       while (k0 < w.frequencies.length && w.frequencies[k0] < rangeHz[0] - 1e-9) k0++;
       let k1 = k0;

@@ -71,20 +71,69 @@ export function welchSegments(
   return { frequencies: binFrequencies(bins, sampleRateHz, segmentSamples), powers, scale, segments };
 }
 
+/** `welchPsd` of all spans together, of each group of spans, and (when asked) of each span alone. */
+export interface NestedWelch {
+  all: WelchSpectrum;
+  byGroup: WelchSpectrum[];
+  /** `[span·bins + k]`, each span's own density (NaN for a span without a whole segment); null unless asked for. */
+  bySpan: Float64Array | null;
+}
+
+/**
+ * One walk over the Welch segments of `spans` for three nested averages: all spans (`welchPsd(…, spans)`), each
+ * group (`groupOfSpan[i]` ∈ 0 … groups − 1, e.g. one condition's epochs) and each span alone. Every average adds the
+ * same segment powers in the same order as its own `welchPsd` call would, so the bits are the same; each segment is
+ * transformed once instead of once per average.
+ */
+export function welchNested(
+  samples: ArrayLike<number>,
+  sampleRateHz: number,
+  segmentSamples: number,
+  overlapSamples: number,
+  spans: ArrayLike<number>,
+  groupOfSpan: ArrayLike<number>,
+  groups: number,
+  perSpan: boolean,
+): NestedWelch {
+  const bins = Math.floor(segmentSamples / 2) + 1;
+  const spanCount = Math.floor(spans.length / 2);
+  const all = new Float64Array(bins);
+  const group = new Float64Array(groups * bins);
+  const groupSegments = new Int32Array(groups);
+  const span = perSpan ? new Float64Array(spanCount * bins) : null;
+  const spanSegments = new Int32Array(spanCount);
+  const { segments, scale } = eachSegment(samples, sampleRateHz, segmentSamples, overlapSamples, spans, (power, i) => {
+    const g = groupOfSpan[i] * bins;
+    for (let k = 0; k < bins; k++) all[k] += power[k];
+    for (let k = 0; k < bins; k++) group[g + k] += power[k];
+    if (span !== null) for (let k = 0, o = i * bins; k < bins; k++) span[o + k] += power[k];
+    groupSegments[groupOfSpan[i]]++;
+    spanSegments[i]++;
+  });
+  const frequencies = binFrequencies(bins, sampleRateHz, segmentSamples);
+  const density = (sum: Float64Array, count: number): Float64Array => {
+    for (let k = 0; k < bins; k++) sum[k] = count > 0 ? (scale[k] * sum[k]) / count : NaN;
+    return sum;
+  };
+  const byGroup = Array.from({ length: groups }, (_, g) => ({ frequencies, psd: density(group.subarray(g * bins, (g + 1) * bins), groupSegments[g]).slice(), segments: groupSegments[g] }));
+  if (span !== null) for (let i = 0; i < spanCount; i++) density(span.subarray(i * bins, (i + 1) * bins), spanSegments[i]);
+  return { all: { frequencies, psd: density(all, segments), segments }, byGroup, bySpan: span };
+}
+
 function binFrequencies(bins: number, sampleRateHz: number, n: number): Float64Array {
   const frequencies = new Float64Array(bins);
   for (let k = 0; k < bins; k++) frequencies[k] = (k * sampleRateHz) / n;
   return frequencies;
 }
 
-// The one walk over Welch segments: demean, window, transform, hand |X_k|² (k = 0 … ⌊N/2⌋) to `visit`.
+// The one walk over Welch segments: demean, window, transform, hand |X_k|² (k = 0 … ⌊N/2⌋) and the span's index to `visit`.
 function eachSegment(
   samples: ArrayLike<number>,
   sampleRateHz: number,
   n: number,
   overlapSamples: number,
   spans: ArrayLike<number>,
-  visit: (power: Float64Array) => void,
+  visit: (power: Float64Array, span: number) => void,
 ): { segments: number; scale: Float64Array } {
   if (!Number.isInteger(n) || n < 2) throw new AnalysisInputError('spectrum.segment', `must span at least 2 samples (got ${n})`);
   const step = n - overlapSamples;
@@ -107,7 +156,7 @@ function eachSegment(
       for (let k = 0; k < n; k++) segment[k] = (samples[start + k] - mean) * window[k];
       dft.forward(spectrum, segment);
       for (let k = 0; k < bins; k++) power[k] = spectrum[2 * k] * spectrum[2 * k] + spectrum[2 * k + 1] * spectrum[2 * k + 1];
-      visit(power);
+      visit(power, s / 2);
       segments++;
     }
   }

@@ -1,7 +1,7 @@
 import * as Comlink from 'comlink';
 import { AnalysisCancelledError } from '../analysis/errors';
 import type { Recording } from '../analysis/recording';
-import { assembleResult, planRun, type AnalysisResult, type ChannelAnalysis } from '../analysis/run-recipe';
+import { planRun, type ChannelAnalysis } from '../analysis/run-recipe';
 import type { RecipePlan } from '../analysis/analyze-channel';
 import type { DecomposeApi } from '../../../workers/decompose-api';
 import type { PoolWorker } from '../../../workers/pool-worker';
@@ -23,6 +23,8 @@ export interface PoolRunOptions {
   onProgress?: (overall: number, perChannel: readonly number[]) => void;
   /** Keep single-trial power for this one channel (the explorer's trial view). */
   singleTrialChannel?: string;
+  /** Also each channel's per-epoch Welch spectra (`ChannelAnalysis.epochSpectra`, the Spectrum screen). */
+  epochSpectra?: boolean;
   /**
    * The plan `planRun(input, recipe)` already made for exactly this input and recipe (the workspace controller
    * plans once per recipe); the pool then does not plan again.
@@ -30,8 +32,13 @@ export interface PoolRunOptions {
   planned?: { plan: RecipePlan; recording: Recording };
 }
 
+/**
+ * A run as the workers made it: the plan and each channel's typed arrays, moved from the workers (never cloned),
+ * in plan channel order. `assembleResult(plan, channels)` gives the contract's Result JSON (export, CLI parity).
+ */
 export interface PoolResult {
-  result: AnalysisResult;
+  plan: RecipePlan;
+  channels: ChannelAnalysis[];
   /** Per condition `[(trial·F + f)·T + t]` power of `singleTrialChannel`, µV²; null when not asked for. */
   singleTrials: Float32Array[] | null;
 }
@@ -79,10 +86,10 @@ interface ActiveRun {
 }
 
 /**
- * Splits a recipe's channels across workers running the same core as `runRecipe`, then assembles the same
- * Result: `analyzeChannel` is a pure function of (plan, samples), so the numbers match a single-thread run bit
- * for bit. `cancel()` stops a run: queued channels are never sent and busy workers are terminated (a worker
- * deep in a channel cannot read a flag until it returns) and replaced on the next run. A worker that fails (does
+ * Splits a recipe's channels across workers running the same core as `runRecipe` and hands back what they made,
+ * per channel in typed arrays: `analyzeChannel` is a pure function of (plan, samples), so the numbers match a
+ * single-thread run bit for bit. `cancel()` stops a run: queued channels are never sent and busy workers are
+ * terminated (a worker deep in a channel cannot read a flag until it returns) and replaced on the next run. A worker that fails (does
  * not load, throws, stops) ends the run with a PoolWorkerError naming the channel and terminates every worker,
  * so the next run starts on fresh ones.
  */
@@ -159,7 +166,7 @@ export class DecomposePool {
           const c = next++;
           const channel = plan.channels[c];
           const samples = recording.data[plan.channelIndices[c]].slice();
-          const job = { plan, samples, channel, singleTrials: c === singleIndex };
+          const job = { plan, samples, channel, singleTrials: c === singleIndex, epochSpectra: options.epochSpectra === true };
           const onChannel = Comlink.proxy((f: number) => {
             fractions[c] = f;
             report();
@@ -181,7 +188,7 @@ export class DecomposePool {
       await Promise.race([lanes, ended]);
       if (run.done) await ended; // a failure or cancel() that raced the last channel's answer wins
       run.done = true;
-      return { result: assembleResult(plan, outputs), singleTrials: singleIndex >= 0 ? outputs[singleIndex].singleTrials : null };
+      return { plan, channels: outputs, singleTrials: singleIndex >= 0 ? outputs[singleIndex].singleTrials : null };
     } catch (error) {
       // A failed run leaves no worker busy on its channels: end them all (cancel() already did).
       if (!(error instanceof AnalysisCancelledError)) this.terminate();

@@ -2,15 +2,22 @@ import * as Comlink from 'comlink';
 import { create } from 'zustand';
 import { AnalysisCancelledError, AnalysisInputError } from '../../analysis/errors';
 import type { AperiodicFit } from '../../analysis/aperiodic';
+import type { EpochSpectra } from '../../analysis/epoch-spectra';
 import type { Recording } from '../../analysis/recording';
 import type { RecipeInput } from '../../analysis/recipe';
-import { planRun, type RecipePlan } from '../../analysis/run-recipe';
+import { planRun, type ChannelAnalysis, type RecipePlan } from '../../analysis/run-recipe';
 import { DecomposePool } from '../decompose-pool';
 import { explorerWorker } from '../explorer-worker';
 import { edgeMask, edgeZones, type EdgeZones } from '../../plot/edge-zone';
 import { decompositionKey } from './recipe';
 import { useWorkspace } from './store';
 import { fitBudget, sizeOfDecomposition } from './cache-budget';
+
+/** One channel's Welch spectrum, µV²/Hz. */
+export interface RecipeSpectrum {
+  frequencies: Float64Array;
+  psd: Float64Array;
+}
 
 /**
  * A finished decomposition kept in memory: trial-averaged power per channel and condition (`[f·T + t]`, µV²), so
@@ -39,7 +46,12 @@ export interface Decomposition {
   itpc?: Float64Array[][] | null;
   /** evoked[channel][condition], µV per time point: the evoked response taken out with `"trialPower": "induced"`. */
   evoked?: Float64Array[][] | null;
+  /** The recipe's Welch spectrum per channel over the bins inside `spectrum.range` (the Result's `spectrum`). */
   spectrum: { frequencies: Float64Array; psd: Float64Array[] };
+  /** Per channel, the same Welch spectrum over every bin 0 Hz … Nyquist: what the run fitted, and the Spectrum screen refits. */
+  recipeSpectra: RecipeSpectrum[];
+  /** Per channel, one Welch spectrum per kept epoch (all conditions) inside `spectrum.range`, made by the run's workers. */
+  epochSpectra: EpochSpectra[] | null;
   aperiodic: (AperiodicFit & { channel: string })[];
   /** Per condition (label → one fit per channel) when the recipe spectrum comes from the kept epochs; else null. */
   aperiodicByCondition: Record<string, (AperiodicFit & { channel: string })[]> | null;
@@ -188,15 +200,46 @@ export function checkRecipe(recording: Recording, recordingId: string, recipe: R
   }
 }
 
-function flatten(rows: number[][]): Float64Array {
-  const nf = rows.length;
-  const nt = nf > 0 ? rows[0].length : 0;
-  const out = new Float64Array(nf * nt);
-  for (let f = 0; f < nf; f++) {
-    const r = rows[f];
-    for (let t = 0; t < nt; t++) out[f * nt + t] = r[t] === null ? NaN : r[t];
-  }
-  return out;
+/**
+ * The decomposition of a run straight from the workers' typed arrays (no Result JSON in between): the same numbers,
+ * bit for bit, that `assembleResult` writes for the same plan and channels (run-output test).
+ */
+export function decompositionOf(key: string, recipe: RecipeInput, recordingId: string, plan: RecipePlan, channels: readonly ChannelAnalysis[]): Decomposition {
+  const edges = edgeZones(plan.edgeSeconds, plan.sampleRateHz, plan.times.length);
+  const fit = (i: number, a: AperiodicFit) => ({ channel: plan.channels[i], ...a });
+  return {
+    key,
+    recipe,
+    recordingId,
+    sampleRateHz: plan.sampleRateHz,
+    epochStart: plan.epochStartSeconds,
+    channels: plan.channels.slice(),
+    labels: plan.labels,
+    trials: plan.epochStarts.map((s) => s.length),
+    times: plan.times,
+    frequencies: plan.frequencies,
+    spacing: recipe.frequencies.spacing ?? 'log',
+    edgeSeconds: plan.edgeSeconds,
+    edges,
+    mask: edgeMask(edges, plan.times.length),
+    power: channels.map((ch) => ch.power),
+    itpc: plan.itpc ? channels.map((ch) => ch.itpc!) : null,
+    evoked: plan.induced ? channels.map((ch) => ch.evoked!) : null,
+    spectrum: { frequencies: channels.length > 0 ? channels[0].spectrumFrequencies : new Float64Array(0), psd: channels.map((ch) => ch.psd) },
+    recipeSpectra: channels.map((ch) => ch.welch),
+    epochSpectra: channels.every((ch) => ch.epochSpectra !== null) ? channels.map((ch) => ch.epochSpectra!) : null,
+    aperiodic: channels.map((ch, i) => fit(i, ch.aperiodic)),
+    aperiodicByCondition:
+      plan.spectrum.conditionSpans === null ? null : Object.fromEntries(plan.labels.map((label, c) => [label, channels.map((ch, i) => fit(i, ch.aperiodicByCondition![c]))])),
+    warnings: plan.warnings.slice(),
+    epochStarts: plan.epochStarts,
+    epochSamples: plan.epochSamples,
+    spectrumSegmentSamples: plan.spectrum.segmentSamples,
+    spectrumOverlapSamples: plan.spectrum.overlapSamples,
+    spectrumSpans: plan.spectrum.spans,
+    rejected: plan.rejected.slice(),
+    dropped: plan.dropped.slice(),
+  };
 }
 
 /**
@@ -233,42 +276,14 @@ export async function runDecomposition(recording: Recording, recordingId: string
   setRun({ status: 'running', message: null, progress: plan.channels.map((c) => ({ channel: c, fraction: 0 })) });
   pool ??= config.createPool();
   try {
-    const { result, singleTrials } = await pool.run(recording, recipe, {
+    const { channels, singleTrials } = await pool.run(recording, recipe, {
       planned,
       singleTrialChannel: channel,
+      epochSpectra: true,
       onProgress: (_overall, per) => setRun({ progress: plan.channels.map((c, i) => ({ channel: c, fraction: per[i] })) }),
     });
     const labels = plan.labels;
-    const decomposition: Decomposition = {
-      key,
-      recipe,
-      recordingId,
-      sampleRateHz: plan.sampleRateHz,
-      epochStart: plan.epochStartSeconds,
-      channels: result.channels,
-      labels,
-      trials: labels.map((l) => result.conditions[l].trials),
-      times: plan.times,
-      frequencies: plan.frequencies,
-      spacing: recipe.frequencies.spacing ?? 'log',
-      edgeSeconds: plan.edgeSeconds,
-      edges: edgeZones(plan.edgeSeconds, plan.sampleRateHz, plan.times.length),
-      mask: edgeMask(edgeZones(plan.edgeSeconds, plan.sampleRateHz, plan.times.length), plan.times.length),
-      power: result.channels.map((_, c) => labels.map((l) => flatten(result.conditions[l].power[c]))),
-      itpc: recipe.itpc === true ? result.channels.map((_, c) => labels.map((l) => flatten(result.conditions[l].itpc![c]))) : null,
-      evoked: recipe.trialPower === 'induced' ? result.channels.map((_, c) => labels.map((l) => Float64Array.from(result.conditions[l].evoked![c]))) : null,
-      spectrum: { frequencies: Float64Array.from(result.spectrum.frequencies), psd: result.spectrum.psd.map((p) => Float64Array.from(p)) },
-      aperiodic: result.aperiodic,
-      aperiodicByCondition: result.aperiodicByCondition ?? null,
-      warnings: result.warnings,
-      epochStarts: plan.epochStarts,
-      epochSamples: plan.epochSamples,
-      spectrumSegmentSamples: plan.spectrum.segmentSamples,
-      spectrumOverlapSamples: plan.spectrum.overlapSamples,
-      spectrumSpans: plan.spectrum.spans,
-      rejected: labels.map((l) => result.conditions[l].rejected),
-      dropped: labels.map((l) => result.conditions[l].dropped),
-    };
+    const decomposition = decompositionOf(key, recipe, recordingId, plan, channels);
     sizes.set(key, sizeOfDecomposition(decomposition));
     touch(key, decomposition);
     setRun({ status: 'done', message: `Decomposed ${plan.channels.length} channel(s) × ${labels.length} condition(s).` });

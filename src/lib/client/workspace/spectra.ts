@@ -1,53 +1,56 @@
-import * as Comlink from 'comlink';
 import type { AperiodicModel, AperiodicOutcome } from '../../analysis/aperiodic';
-import { conditionRecording } from '../../analysis/condition-recording';
 import type { EpochSpectra } from '../../analysis/epoch-spectra';
-import { parseRecipe } from '../../analysis/recipe';
-import type { Recording } from '../../analysis/recording';
 import { explorerWorker } from '../explorer-worker';
 import { BudgetCache } from './cache-budget';
-import type { Decomposition } from './results';
+import type { Decomposition, RecipeSpectrum } from './results';
 
-export interface RecipeSpectrum {
-  frequencies: Float64Array;
-  psd: Float64Array;
-}
+export type { RecipeSpectrum };
 
-/** What the Spectrum screen shows of a decomposition, all computed in the explorer worker. */
+/**
+ * What the Spectrum screen shows of a decomposition. The spectra are the run's own (its workers made them from the
+ * conditioned samples they held, `analyzeChannel`): nothing is computed again over the recording. Only the refit
+ * for a dragged fit range is new work, in the explorer worker.
+ */
 export interface SpectrumWork {
-  epochSpectra(d: Decomposition, recording: Recording): Promise<EpochSpectra[]>;
-  recipeSpectra(d: Decomposition, recording: Recording): Promise<RecipeSpectrum[]>;
+  /** Per channel, one Welch spectrum per kept epoch; null when the run did not keep them. */
+  epochSpectra(d: Decomposition): EpochSpectra[] | null;
+  /** Per channel, the recipe's Welch spectrum over every bin (what the run fitted). */
+  recipeSpectra(d: Decomposition): RecipeSpectrum[];
   /** Every channel's aperiodic fit over `rangeHz` (the live fit range), refitted off the main thread. */
   fits(d: Decomposition, spectra: RecipeSpectrum[], rangeHz: readonly [number, number], model: AperiodicModel): Promise<AperiodicOutcome[]>;
 }
 
-// Derived, re-computable values under a budget each (least recently used out first): per-epoch spectra are the
-// big ones (channels × trials × bins), fits are small but one per fit range dragged.
-const epochCache = new BudgetCache<EpochSpectra[]>(96 * 1024 * 1024);
-const recipeCache = new BudgetCache<RecipeSpectrum[]>(32 * 1024 * 1024);
-const fitCache = new BudgetCache<AperiodicOutcome[]>(8 * 1024 * 1024);
-const inFlight = new Map<string, Promise<unknown>>();
-
-/** Copies of the decomposition's channels as the run saw them (types, bad channels, reference, filters). */
-function channelCopies(d: Decomposition, recording: Recording): Float32Array[] {
-  const conditioned = conditionRecording(recording, parseRecipe(d.recipe)).recording;
-  return d.channels.map((c) => conditioned.data[conditioned.channelNames.indexOf(c)].slice());
+/** The explorer worker's refit (tests count its calls). */
+export interface FitWorker {
+  fitEach(spectra: RecipeSpectrum[], rangeHz: [number, number], model: AperiodicModel): Promise<AperiodicOutcome[]>;
 }
 
-/** The cached value, the same work already under way, or new work whose answer is kept. */
-function remember<T>(name: string, cache: BudgetCache<T>, key: string, make: () => Promise<T>): Promise<T> {
-  const hit = cache.get(key);
+let fitWorker: () => FitWorker = explorerWorker;
+
+/** Replaces the worker that refits (tests); `null` restores the explorer's worker. */
+export function configureSpectra(worker: (() => FitWorker) | null): void {
+  fitWorker = worker ?? explorerWorker;
+  fitCache.clear();
+}
+
+// Fits are derived and re-computable: small, but one per fit range dragged, so under a budget (least recently
+// used out first).
+const fitCache = new BudgetCache<AperiodicOutcome[]>(8 * 1024 * 1024);
+const inFlight = new Map<string, Promise<AperiodicOutcome[]>>();
+
+/** The cached fits, the same refit already under way, or a new refit whose answer is kept. */
+function remember(key: string, make: () => Promise<AperiodicOutcome[]>): Promise<AperiodicOutcome[]> {
+  const hit = fitCache.get(key);
   if (hit !== undefined) return Promise.resolve(hit);
-  const id = `${name}|${key}`;
-  const running = inFlight.get(id) as Promise<T> | undefined;
+  const running = inFlight.get(key);
   if (running !== undefined) return running;
   const p = make()
     .then((value) => {
-      cache.set(key, value);
+      fitCache.set(key, value);
       return value;
     })
-    .finally(() => inFlight.delete(id));
-  inFlight.set(id, p);
+    .finally(() => inFlight.delete(key));
+  inFlight.set(key, p);
   return p;
 }
 
@@ -82,25 +85,8 @@ async function pump(): Promise<void> {
 }
 
 export const spectrumWork: SpectrumWork = {
-  epochSpectra(d, recording) {
-    return remember('epochs', epochCache, d.key, () => {
-      const samples = channelCopies(d, recording);
-      const starts = new Int32Array(d.epochStarts.reduce((n, s) => n + s.length, 0));
-      let o = 0;
-      for (const s of d.epochStarts) {
-        starts.set(s, o);
-        o += s.length;
-      }
-      const range = d.recipe.spectrum.range as [number, number];
-      return explorerWorker().spectra(Comlink.transfer(samples, samples.map((x) => x.buffer)), d.sampleRateHz, starts, d.epochSamples, d.spectrumSegmentSamples, d.spectrumOverlapSamples, range);
-    });
-  },
-  recipeSpectra(d, recording) {
-    return remember('recipe', recipeCache, d.key, () => {
-      const samples = channelCopies(d, recording);
-      return explorerWorker().recipeSpectra(Comlink.transfer(samples, samples.map((x) => x.buffer)), d.sampleRateHz, d.spectrumSegmentSamples, d.spectrumOverlapSamples, d.spectrumSpans.slice());
-    });
-  },
+  epochSpectra: (d) => d.epochSpectra,
+  recipeSpectra: (d) => d.recipeSpectra,
   fits(d, spectra, rangeHz, model) {
     const key = `${d.key}|${rangeHz[0]}|${rangeHz[1]}|${model}`;
     const hit = fitCache.get(key);
@@ -108,7 +94,7 @@ export const spectrumWork: SpectrumWork = {
     // Latest wins: while one refit runs, only the newest request waits; the ones it overtakes are refused.
     return new Promise((resolve, reject) => {
       waiting?.reject(new FitOvertaken());
-      waiting = { key, run: () => remember('fits', fitCache, key, () => explorerWorker().fitEach(spectra, [rangeHz[0], rangeHz[1]], model)), resolve, reject };
+      waiting = { key, run: () => remember(key, () => fitWorker().fitEach(spectra, [rangeHz[0], rangeHz[1]], model)), resolve, reject };
       if (!fitting) void pump();
     });
   },

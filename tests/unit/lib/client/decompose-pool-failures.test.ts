@@ -8,6 +8,7 @@ import { AnalysisCancelledError } from '../../../../src/lib/analysis/errors';
 import type { Recording } from '../../../../src/lib/analysis/recording';
 import { runRecipe } from '../../../../src/lib/analysis/run-recipe';
 import { DecomposePool, PoolWorkerError, type PoolWorker } from '../../../../src/lib/client/decompose-pool';
+import { resultOfRun } from '../../../../src/lib/client/result-json';
 import { decomposeApi, type ChannelJob } from '../../../../workers/decompose-api';
 import { nodePoolWorker, tsxBootstrap } from '../../../../workers/node-worker-factory';
 import { seededNormal } from '../../../helpers/seeded-random';
@@ -100,7 +101,7 @@ describe('DecomposePool when a worker fails', () => {
 
     state.behaviour = 'works';
     const again = await within(pool.run(recording, recipe), 10_000);
-    expect(JSON.stringify(again.result)).toBe(reference);
+    expect(JSON.stringify(resultOfRun(again))).toBe(reference);
     expect(state.created).toBe(4);
     pool.terminate();
     expect(state.terminated).toBe(4);
@@ -112,7 +113,7 @@ describe('DecomposePool when a worker fails', () => {
     await expect(within(pool.run(recording, recipe), 5_000)).rejects.toThrow('the analysis worker failed on channel "F3": its script did not load (404)');
     expect(state.terminated).toBe(state.created);
     state.behaviour = 'works';
-    expect(JSON.stringify((await within(pool.run(recording, recipe), 10_000)).result)).toBe(reference);
+    expect(JSON.stringify(resultOfRun(await within(pool.run(recording, recipe), 10_000)))).toBe(reference);
     pool.terminate();
   });
 
@@ -138,7 +139,7 @@ describe('DecomposePool when a worker fails', () => {
     const error = await within(stuck, 200).catch((e: unknown) => e);
     expect(error).toBeInstanceOf(AnalysisCancelledError);
     expect(state.terminated).toBe(2);
-    expect(JSON.stringify((await within(next, 10_000)).result)).toBe(reference);
+    expect(JSON.stringify(resultOfRun(await within(next, 10_000)))).toBe(reference);
     pool.terminate();
   });
 });

@@ -2,6 +2,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { runRecipe } from '../../../../src/lib/analysis/run-recipe';
 import type { Recording } from '../../../../src/lib/analysis/recording';
 import { DecomposePool } from '../../../../src/lib/client/decompose-pool';
+import { resultOfRun } from '../../../../src/lib/client/result-json';
 import { createNodeDecomposeWorker } from '../../../../workers/node-worker-factory';
 import { seededNormal } from '../../../helpers/seeded-random';
 
@@ -36,10 +37,12 @@ describe('DecomposePool on worker threads', () => {
   it('assembles the same Result as runRecipe, bit for bit, with per-channel progress', async () => {
     const recording = makeRecording();
     const progress: number[] = [];
-    const { result, singleTrials } = await pool.run(recording, recipe, {
+    const run = await pool.run(recording, recipe, {
       onProgress: (overall) => progress.push(overall),
       singleTrialChannel: 'Cz',
     });
+    const { singleTrials } = run;
+    const result = resultOfRun(run);
     expect(JSON.stringify(result)).toBe(JSON.stringify(runRecipe(recording, recipe)));
     expect(progress[progress.length - 1]).toBe(1);
     expect(singleTrials).not.toBeNull();
@@ -53,6 +56,7 @@ describe('DecomposePool on worker threads', () => {
     const running = pool.run(recording, recipe, { onProgress: () => pool.cancel() });
     await expect(running).rejects.toThrow(/cancelled/);
     const again = await pool.run(recording, { ...recipe, channels: ['F3'] });
-    expect(again.result.channels).toEqual(['F3']);
+    expect(again.plan.channels).toEqual(['F3']);
+    expect(resultOfRun(again).channels).toEqual(['F3']);
   }, 60_000);
 });
