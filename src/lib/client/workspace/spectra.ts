@@ -1,12 +1,10 @@
 import * as Comlink from 'comlink';
 import type { AperiodicModel, AperiodicOutcome } from '../../analysis/aperiodic';
-import { conditionRecording } from '../../analysis/condition-recording';
 import type { EpochSpectra } from '../../analysis/epoch-spectra';
-import { parseRecipe } from '../../analysis/recipe';
 import type { Recording } from '../../analysis/recording';
 import { explorerWorker } from '../explorer-worker';
 import { BudgetCache } from './cache-budget';
-import type { Decomposition } from './results';
+import { conditionedSamples, type Decomposition } from './results';
 
 export interface RecipeSpectrum {
   frequencies: Float64Array;
@@ -28,10 +26,9 @@ const recipeCache = new BudgetCache<RecipeSpectrum[]>(32 * 1024 * 1024);
 const fitCache = new BudgetCache<AperiodicOutcome[]>(8 * 1024 * 1024);
 const inFlight = new Map<string, Promise<unknown>>();
 
-/** Copies of the decomposition's channels as the run saw them (types, bad channels, reference, filters). */
-function channelCopies(d: Decomposition, recording: Recording): Float32Array[] {
-  const conditioned = conditionRecording(recording, parseRecipe(d.recipe)).recording;
-  return d.channels.map((c) => conditioned.data[conditioned.channelNames.indexOf(c)].slice());
+/** Copies of the decomposition's channels as the run saw them (the controller's conditioned arrays, from its plan). */
+async function channelCopies(d: Decomposition, recording: Recording): Promise<Float32Array[]> {
+  return (await conditionedSamples(d, recording)).map((x) => x.slice());
 }
 
 /** The cached value, the same work already under way, or new work whose answer is kept. */
@@ -83,8 +80,8 @@ async function pump(): Promise<void> {
 
 export const spectrumWork: SpectrumWork = {
   epochSpectra(d, recording) {
-    return remember('epochs', epochCache, d.key, () => {
-      const samples = channelCopies(d, recording);
+    return remember('epochs', epochCache, d.key, async () => {
+      const samples = await channelCopies(d, recording);
       const starts = new Int32Array(d.epochStarts.reduce((n, s) => n + s.length, 0));
       let o = 0;
       for (const s of d.epochStarts) {
@@ -96,8 +93,8 @@ export const spectrumWork: SpectrumWork = {
     });
   },
   recipeSpectra(d, recording) {
-    return remember('recipe', recipeCache, d.key, () => {
-      const samples = channelCopies(d, recording);
+    return remember('recipe', recipeCache, d.key, async () => {
+      const samples = await channelCopies(d, recording);
       return explorerWorker().recipeSpectra(Comlink.transfer(samples, samples.map((x) => x.buffer)), d.sampleRateHz, d.spectrumSegmentSamples, d.spectrumOverlapSamples, d.spectrumSpans.slice());
     });
   },
