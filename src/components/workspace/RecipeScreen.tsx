@@ -278,7 +278,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
           </button>
         )}
         <span className="text-sm text-ink-soft" role="status" data-testid="recipe-status" data-status={run.status}>
-          {run.status === 'running' ? 'Decomposing in workers on this device…' : (run.message ?? '')}
+          {run.status === 'running' ? (run.message ?? 'Decomposing in workers on this device…') : (run.message ?? '')}
         </span>
         <span className="text-xs text-ink-soft">
           {fs} Hz · {recording.channelNames.length} channels · the samples stay on this device
