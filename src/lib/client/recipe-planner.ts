@@ -28,8 +28,9 @@ function browserWorker(): PoolWorker {
 interface Started {
   worker: PoolWorker;
   remote: Comlink.Remote<PlanApi>;
-  /** Rejects when the worker fails outside any answer (script not loaded, error escaped). */
+  /** Rejects when the worker fails outside any answer (script not loaded, error escaped) or is ended. */
   failed: Promise<never>;
+  fail: (error: Error) => void;
 }
 
 /**
@@ -60,13 +61,14 @@ export class RecipePlanner {
     return next;
   }
 
-  /** Ends the worker (and the recording copy it holds); the next plan starts a new one. */
+  /** Ends the worker (and the recording copy it holds); a plan under way rejects; the next plan starts a new worker. */
   terminate(): void {
     const s = this.started;
     this.started = null;
     this.held = null;
     this.kept = null;
     if (s === null) return;
+    s.fail(new Error('the plan worker was ended before it answered'));
     try {
       s.remote[Comlink.releaseProxy]();
     } catch {
@@ -81,10 +83,10 @@ export class RecipePlanner {
     let fail: (error: Error) => void = () => undefined;
     const failed = new Promise<never>((_, reject) => (fail = reject));
     failed.catch(() => undefined);
-    const started: Started = { worker, remote: Comlink.wrap<PlanApi>(worker.endpoint), failed };
+    const started: Started = { worker, remote: Comlink.wrap<PlanApi>(worker.endpoint), failed, fail: (error) => fail(error) };
     worker.onFailure?.((problem) => {
-      if (this.started === started) this.terminate();
       fail(new Error(`the plan worker failed: ${problem}`));
+      if (this.started === started) this.terminate();
     });
     this.started = started;
     return started;

@@ -182,6 +182,14 @@ let lastPlan: { key: string; recording: Recording; planned: Promise<PlannedRecip
 /** The plans of the kept decompositions (their conditioned channels feed the spectra and the Slope check). */
 const plannedByKey = new Map<string, PlannedRecipe>();
 
+// Another recording makes the plan worker's copy of the last one useless: end the worker (and free that copy) now
+// rather than at the next plan.
+useWorkspace.subscribe((state, previous) => {
+  if (state.recording === previous.recording) return;
+  lastPlan = null;
+  planner?.terminate();
+});
+
 /** The plan of `recipe` on `recording`, made once (see `lastPlan`); rejects with AnalysisInputError for a recipe that does not fit. */
 export function plannedRecipe(recording: Recording, recordingId: string, recipe: RecipeInput): Promise<PlannedRecipe> {
   const key = planKey(recordingId, recipe);

@@ -143,7 +143,7 @@ describe('the controller runs each recipe through one plan and the worker pool',
  * what it sent so a test can see the conditioned copies were transferred (detached here), not cloned.
  */
 function fakePlanWorker() {
-  const state = { plans: 0, created: 0, sent: [] as Float32Array[], gate: null as Promise<void> | null };
+  const state = { plans: 0, created: 0, terminated: 0, sent: [] as Float32Array[], gate: null as Promise<void> | null, failures: [] as ((problem: string) => void)[] };
   const factory = (): PoolWorker => {
     state.created++;
     const api = planApi();
@@ -162,9 +162,11 @@ function fakePlanWorker() {
     return {
       endpoint: port1 as unknown as Comlink.Endpoint,
       terminate: () => {
+        state.terminated++;
         port1.close();
         port2.close();
       },
+      onFailure: (listener) => void state.failures.push(listener),
     };
   };
   return { state, factory };
@@ -291,6 +293,23 @@ describe('the plan is made in the plan worker, once per recipe, and its conditio
     expect(d).not.toBeNull();
     expect(useWorkspace.getState().run.status).toBe('done');
     expect(planWorker.state.plans).toBe(1);
+  });
+
+  it('a plan worker that fails ends the run with its words; the next run plans on a new worker', async () => {
+    let release: () => void = () => undefined;
+    planWorker.state.gate = new Promise((r) => (release = r));
+    const recording = useWorkspace.getState().recording!;
+    const recipe = recipeOf(useWorkspace.getState());
+    const running = runDecomposition(recording, 'rec', recipe, null);
+    await new Promise((r) => setTimeout(r, 30));
+    planWorker.state.failures[0]('an error escaped');
+    expect(await running).toBeNull();
+    expect(useWorkspace.getState().run).toMatchObject({ status: 'failed', message: 'the plan worker failed: an error escaped' });
+    expect(planWorker.state.terminated).toBe(1);
+    planWorker.state.gate = null;
+    release();
+    expect(await runDecomposition(recording, 'rec', recipe, null)).not.toBeNull();
+    expect(planWorker.state.created).toBe(2);
   });
 });
 
