@@ -4,7 +4,8 @@ import { isBrainType } from '../../lib/analysis/channel-types';
 import { conditionRecording } from '../../lib/analysis/condition-recording';
 import type { WorkspaceProps } from './types';
 import { decompositionKey, toRecipe, type CyclesMode } from '../../lib/client/workspace/recipe';
-import { cancelDecomposition, checkRecipe, recordingIdOf, runDecomposition, useResultsStore } from '../../lib/client/workspace/results';
+import { cancelDecomposition, recordingIdOf, runDecomposition, useResultsStore } from '../../lib/client/workspace/results';
+import { useRecipeCheck } from '../../lib/client/workspace/recipe-check';
 import { conditioningSpec } from '../../lib/client/workspace/source-rules';
 import { applyRecipe } from '../../lib/client/workspace/apply-recipe';
 import NumberField from '../explorer/NumberField';
@@ -63,13 +64,14 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const recordingId = recording === null ? null : recordingIdOf(recording, fingerprint);
   const key = recordingId === null ? null : decompositionKey(recordingId, recipe);
 
+  // The core's verdict arrives with the recipe's plan (made in the plan worker and kept for the run).
+  const planned = useRecipeCheck(analysis, recordingId, recipe, visible && recipe.epochs.events.length > 0);
   const check = useMemo((): { field: string; problem: string; message: string } | null => {
     if (analysis === null || !visible) return null;
     if (recipe.epochs.events.length === 0) return { field: 'conditions', problem: 'choose at least one condition (define them on the Source screen)', message: '' };
-    const problem = checkRecipe(analysis, recordingId!, recipe);
-    return problem === null ? null : { field: fieldGroup(problem.field), problem: problem.problem, message: problem.message };
+    return planned === null ? null : { field: fieldGroup(planned.field), problem: planned.problem, message: planned.message };
     // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [analysis, visible, decisions, JSON.stringify(recipe)]);
+  }, [analysis, visible, planned, recipe.epochs.events.length]);
   const errorFor = (group: string) => (check !== null && check.field === group ? check.problem : null);
 
   if (recording === null) {
@@ -276,7 +278,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
           </button>
         )}
         <span className="text-sm text-ink-soft" role="status" data-testid="recipe-status" data-status={run.status}>
-          {run.status === 'running' ? 'Decomposing in workers on this device…' : (run.message ?? '')}
+          {run.status === 'running' ? (run.message ?? 'Decomposing in workers on this device…') : (run.message ?? '')}
         </span>
         <span className="text-xs text-ink-soft">
           {fs} Hz · {recording.channelNames.length} channels · the samples stay on this device

@@ -70,9 +70,10 @@ export function conditionRecording(recording: Recording, spec: ConditionSpec): C
 
 /**
  * The spec in one canonical spelling (defaults filled, fields in a fixed order), so the Source screen's settings and
- * a parsed recipe that mean the same conditioning share one cache entry.
+ * a parsed recipe that mean the same conditioning share one cache entry (and a planner can tell two recipes that
+ * condition the recording alike).
  */
-function conditionKey(spec: ConditionSpec): string {
+export function conditionKey(spec: ConditionSpec): string {
   const r = spec.reference;
   const f = spec.filters;
   return JSON.stringify([

@@ -8,10 +8,8 @@ import type { ModelComparison } from '../analysis/slope-check/sensitivity';
 import type { BandShare } from '../analysis/slope-check/shift';
 import type { AperiodicFit, AperiodicModel } from '../analysis/aperiodic';
 import { baselinePointsIn, type BaselineMethod } from '../analysis/baseline';
-import { conditionRecording } from '../analysis/condition-recording';
-import { parseRecipe } from '../analysis/recipe';
 import type { Recording } from '../analysis/recording';
-import type { Decomposition } from './workspace/results';
+import { conditionedSamples, type Decomposition } from './workspace/results';
 import { webPoolWorker } from './web-worker';
 
 /** A Slope check run stopped by its caller (the worker was ended). */
@@ -110,12 +108,14 @@ export interface SensitivityResult {
   overlapSamples: number;
 }
 
-/** One channel of the open recording as decomposition `d` saw it (types, bad channels, reference, filters). */
-function conditionedChannel(d: Decomposition, recording: Recording, channel: string): Float32Array {
-  const conditioned = conditionRecording(recording, parseRecipe(d.recipe)).recording;
-  const c = conditioned.channelNames.indexOf(channel);
-  if (c < 0 || !d.channels.includes(channel)) throw new SlopeCheckError(`channel "${channel}" is not among the decomposition's channels`, 'channel');
-  return conditioned.data[c].slice();
+/**
+ * A copy of one channel as decomposition `d` saw it (types, bad channels, reference, filters): the workspace
+ * controller's conditioned samples from the run's plan, never conditioned again here.
+ */
+async function conditionedChannel(d: Decomposition, recording: Recording, channel: string): Promise<Float32Array> {
+  const c = d.channels.indexOf(channel);
+  if (c < 0) throw new SlopeCheckError(`channel "${channel}" is not among the decomposition's channels`, 'channel');
+  return (await conditionedSamples(d, recording))[c].slice();
 }
 
 /**
@@ -124,7 +124,7 @@ function conditionedChannel(d: Decomposition, recording: Recording, channel: str
  * interval over its segments and power law against knee by BIC. The samples go to the worker, never further.
  */
 export async function checkSensitivityInWorker(d: Decomposition, recording: Recording, request: SensitivityRequest, options: SlopeRunOptions = {}): Promise<SensitivityResult> {
-  const samples = conditionedChannel(d, recording, request.channel);
+  const samples = await conditionedChannel(d, recording, request.channel);
   return inWorker(options, async (remote) => {
     const out = await remote.sensitivity(
       Comlink.transfer(samples, [samples.buffer as ArrayBuffer]),
@@ -178,7 +178,7 @@ export async function checkBroadbandShiftInWorker(d: Decomposition, recording: R
   const baselinePoints = baselinePointsIn(request.baseline.start, request.baseline.end, d.epochStart, d.sampleRateHz, nTimes);
   const postPoints = baselinePointsIn(request.post.start, request.post.end, d.epochStart, d.sampleRateHz, nTimes);
   if (request.post.end <= request.post.start) throw new SlopeCheckError(`the post-event window must end after it starts (${request.post.start}–${request.post.end} s)`, 'post');
-  const samples = conditionedChannel(d, recording, request.channel);
+  const samples = await conditionedChannel(d, recording, request.channel);
   const power = d.power[d.channels.indexOf(request.channel)][k].slice();
   const neutral = request.method === 'power-ratio' ? 1 : 0;
   return inWorker(options, async (remote) => {

@@ -7,6 +7,7 @@ import type { Recording } from '../../analysis/recording';
 import type { RecipeInput } from '../../analysis/recipe';
 import { planRun, type ChannelAnalysis, type RecipePlan } from '../../analysis/run-recipe';
 import { DecomposePool } from '../decompose-pool';
+import { plannedChannel, RecipePlanner, type PlannedRecipe } from '../recipe-planner';
 import { explorerWorker } from '../explorer-worker';
 import { edgeMask, edgeZones, type EdgeZones } from '../../plot/edge-zone';
 import { decompositionKey } from './recipe';
@@ -119,8 +120,11 @@ export interface ResultsConfig {
   createPool: (size?: number) => Pick<DecomposePool, 'run' | 'cancel'>;
   /** Bytes of decompositions kept in memory; the least recently shown are dropped beyond it. */
   budgetBytes: number;
-  /** Plans a recipe on a recording (default `planRun` from the core); counted by tests. */
-  plan: typeof planRun;
+  /**
+   * Plans a recipe on a recording (default: the plan worker, `RecipePlanner`; Node and tests may pass the core's
+   * `planRun`); the controller calls it once per recording and recipe, and tests count the calls.
+   */
+  plan: (recording: Recording, recipe: RecipeInput) => PlannedRecipe | Promise<PlannedRecipe>;
   /** Hands one channel's single-trial power to the explorer worker (default: the explorer's one worker). */
   holdTrials: (key: string, trials: Float32Array[], counts: number[], frequencies: number, times: number) => Promise<unknown>;
 }
@@ -129,10 +133,11 @@ const defaults: ResultsConfig = {
   createPool: (size) => new DecomposePool(size === undefined ? {} : { size }),
   // 512 MiB: a 64-channel, 4-condition, 30 × 1536 map decomposition is about 100 MB.
   budgetBytes: 512 * 1024 * 1024,
-  plan: planRun,
+  plan: (recording, recipe) => (planner ??= new RecipePlanner()).plan(recording, recipe),
   // The worker keeps these; the main thread does not, so they move rather than being copied (tens of MB).
   holdTrials: (key, trials, counts, frequencies, times) => explorerWorker().holdTrials(key, Comlink.transfer(trials, trials.map((t) => t.buffer)), counts, frequencies, times),
 };
+let planner: RecipePlanner | null = null;
 let config: ResultsConfig = defaults;
 let pool: Pick<DecomposePool, 'run' | 'cancel'> | null = null;
 let trialPool: Pick<DecomposePool, 'run' | 'cancel'> | null = null;
@@ -142,6 +147,8 @@ export function configureResults(patch: Partial<ResultsConfig> | null): void {
   config = patch === null ? defaults : { ...config, ...patch };
   pool = null;
   trialPool = null;
+  lastPlan = null;
+  plannedByKey.clear();
 }
 
 /** Shows a kept decomposition on the screens (and marks it the most recently used). */
@@ -151,6 +158,7 @@ export function showDecomposition(key: string): void {
 
 /** Forgets every decomposition (a new recording, or starting clean). */
 export function clearResults(): void {
+  plannedByKey.clear();
   useResultsStore.setState({ cache: {}, order: [], activeKey: null, trialHold: null, fieldError: null });
 }
 
@@ -172,31 +180,61 @@ function touch(key: string, added?: Decomposition): void {
 
 const sizes = new Map<string, number>();
 
-/**
- * The plan of the last recipe asked about: `planRun` scans every sample (conditioning, epoch decisions), so it runs
- * once per recording and recipe, and the pool is handed the same plan.
- */
-let lastPlan: { key: string; recording: Recording; planned: { plan: RecipePlan; recording: Recording } } | null = null;
+/** What a plan is known by: the recording and the whole recipe (`plannedRecipe`, `useRecipeCheck`). */
+export function planKey(recordingId: string, recipe: RecipeInput): string {
+  return `${recordingId}|${JSON.stringify(recipe)}`;
+}
 
-function planOnce(recording: Recording, recordingId: string, recipe: RecipeInput): { plan: RecipePlan; recording: Recording } {
-  const key = `${recordingId}|${JSON.stringify(recipe)}`;
+/**
+ * The plan of the last recipe asked about: planning scans every sample (conditioning, epoch decisions), so it runs
+ * once per recording and recipe, in the plan worker, and the check, the run, the summary and the Slope check share
+ * it. A recipe the core refuses stays refused (same error, no second plan); any other failure is forgotten.
+ */
+let lastPlan: { key: string; recording: Recording; planned: Promise<PlannedRecipe> } | null = null;
+
+/** The plans of the kept decompositions (their conditioned channels feed the spectra and the Slope check). */
+const plannedByKey = new Map<string, PlannedRecipe>();
+
+// Another recording makes the plan worker's copy of the last one useless: end the worker (and free that copy) now
+// rather than at the next plan.
+useWorkspace.subscribe((state, previous) => {
+  if (state.recording === previous.recording) return;
+  lastPlan = null;
+  planner?.terminate();
+});
+
+/** The plan of `recipe` on `recording`, made once (see `lastPlan`); rejects with AnalysisInputError for a recipe that does not fit. */
+export function plannedRecipe(recording: Recording, recordingId: string, recipe: RecipeInput): Promise<PlannedRecipe> {
+  const key = planKey(recordingId, recipe);
   if (lastPlan !== null && lastPlan.key === key && lastPlan.recording === recording) return lastPlan.planned;
-  const planned = config.plan(recording, recipe);
-  lastPlan = { key, recording, planned };
+  const planned = Promise.resolve().then(() => config.plan(recording, recipe));
+  const entry = { key, recording, planned };
+  lastPlan = entry;
+  planned.catch((error: unknown) => {
+    if (!(error instanceof AnalysisInputError) && lastPlan === entry) lastPlan = null;
+  });
   return planned;
+}
+
+/** A recipe problem the core found, in the words a field shows. */
+export interface RecipeProblem {
+  field: string;
+  problem: string;
+  message: string;
 }
 
 /**
  * Checks `recipe` against the recording the way a run will (the same plan, kept for that run): null when it fits,
- * else the field and the problem.
+ * else the field and the problem. A plan that could not be made for another reason (the worker failed) is no verdict
+ * on the recipe: null, and the run says what went wrong.
  */
-export function checkRecipe(recording: Recording, recordingId: string, recipe: RecipeInput): { field: string; problem: string; message: string } | null {
+export async function checkRecipe(recording: Recording, recordingId: string, recipe: RecipeInput): Promise<RecipeProblem | null> {
   try {
-    planOnce(recording, recordingId, recipe);
+    await plannedRecipe(recording, recordingId, recipe);
     return null;
   } catch (error) {
     if (error instanceof AnalysisInputError) return { field: error.field, problem: error.problem, message: error.message };
-    throw error;
+    return null;
   }
 }
 
@@ -242,6 +280,35 @@ export function decompositionOf(key: string, recipe: RecipeInput, recordingId: s
   };
 }
 
+/** The plan decomposition `d` was made with (kept with it), or one made again for its recipe. */
+function plannedFor(d: Decomposition, recording: Recording): Promise<PlannedRecipe> {
+  const kept = plannedByKey.get(d.key);
+  if (kept !== undefined && useResultsStore.getState().cache[d.key] !== undefined) return Promise.resolve(kept);
+  return plannedRecipe(recording, d.recordingId, d.recipe);
+}
+
+/**
+ * Decomposition `d`'s channels as its run saw them (types, bad channels, reference, filters), in `d.channels` order:
+ * the controller's own arrays, from the plan (never conditioned again here). Callers copy what they transfer.
+ */
+export async function conditionedSamples(d: Decomposition, recording: Recording): Promise<Float32Array[]> {
+  const { plan, recording: conditioned } = await plannedFor(d, recording);
+  return d.channels.map((name) => {
+    const i = plan.channels.indexOf(name);
+    if (i < 0) throw new Error(`channel "${name}" is not among the planned channels`);
+    return conditioned.data[plan.channelIndices[i]];
+  });
+}
+
+/** Drops the plans of decompositions the cache no longer keeps. */
+function prunePlans(): void {
+  const cache = useResultsStore.getState().cache;
+  for (const key of plannedByKey.keys()) if (cache[key] === undefined) plannedByKey.delete(key);
+}
+
+/** The run waiting for its plan, so a cancel can end it at once, before any worker starts. */
+let planning: { cancelled: boolean; cancel: () => void } | null = null;
+
 /**
  * Runs (or recalls from the cache) the decomposition of `recipe`: channels spread over the core's worker pool,
  * progress per channel into the recipe store. Keeps single-trial power of `trialChannel` in the explorer worker.
@@ -259,17 +326,29 @@ export async function runDecomposition(recording: Recording, recordingId: string
     setRun({ status: 'done', message: 'From the cache: this recipe was already run on this recording.', progress: cached.channels.map((channel) => ({ channel, fraction: 1 })) });
     return cached;
   }
-  let planned;
+  let planned: PlannedRecipe;
+  let cancel: () => void = () => undefined;
+  const stopped = new Promise<never>((_, reject) => (cancel = () => reject(new AnalysisCancelledError())));
+  stopped.catch(() => undefined);
+  const waiting = { cancelled: false, cancel };
+  planning = waiting;
+  setRun({ status: 'running', message: 'Planning the recipe on this recording…', progress: [] });
   try {
-    planned = planOnce(recording, recordingId, recipe);
+    planned = await Promise.race([plannedRecipe(recording, recordingId, recipe), stopped]);
   } catch (error) {
+    if (waiting.cancelled) return null;
     if (error instanceof AnalysisInputError) {
       useResultsStore.setState({ fieldError: { field: error.field, problem: error.problem } });
       setRun({ status: 'failed', message: error.message, progress: [] });
       return null;
     }
-    throw error;
+    setRun({ status: 'failed', message: error instanceof Error ? error.message : String(error), progress: [] });
+    return null;
+  } finally {
+    if (planning === waiting) planning = null;
   }
+  // Cancelled while planning: nothing started; the plan is kept for the same recipe.
+  if (waiting.cancelled) return null;
   useResultsStore.setState({ fieldError: null });
   const plan = planned.plan;
   const channel = trialChannel !== null && plan.channels.includes(trialChannel) ? trialChannel : plan.channels[0];
@@ -285,7 +364,9 @@ export async function runDecomposition(recording: Recording, recordingId: string
     const labels = plan.labels;
     const decomposition = decompositionOf(key, recipe, recordingId, plan, channels);
     sizes.set(key, sizeOfDecomposition(decomposition));
+    plannedByKey.set(key, planned);
     touch(key, decomposition);
+    prunePlans();
     setRun({ status: 'done', message: `Decomposed ${plan.channels.length} channel(s) × ${labels.length} condition(s).` });
     if (singleTrials !== null) await holdTrials(decomposition, channel, singleTrials);
     return decomposition;
@@ -301,6 +382,13 @@ export async function runDecomposition(recording: Recording, recordingId: string
 
 /** Stops the running decomposition. */
 export function cancelDecomposition(): void {
+  if (planning !== null) {
+    planning.cancelled = true;
+    planning.cancel();
+    planning = null;
+    useWorkspace.getState().setRun({ status: 'cancelled', message: 'Cancelled; nothing was kept from this run.' });
+    return;
+  }
   pool?.cancel();
 }
 
@@ -321,7 +409,9 @@ export async function ensureTrials(d: Decomposition, channel: string, recording:
   useResultsStore.setState({ trialHold: { key, status: 'loading', message: `Keeping single trials of ${channel}…` } });
   trialPool ??= config.createPool(1);
   try {
-    const { singleTrials } = await trialPool.run(recording, { ...d.recipe, channels: [channel] }, { singleTrialChannel: channel });
+    // The decomposition's own plan, narrowed to the channel: nothing is planned or conditioned again.
+    const planned = plannedChannel(await plannedFor(d, recording), channel);
+    const { singleTrials } = await trialPool.run(recording, { ...d.recipe, channels: [channel] }, { singleTrialChannel: channel, planned });
     if (useResultsStore.getState().trialHold?.key !== key) return;
     if (singleTrials === null) throw new Error('the worker returned no single trials');
     await holdTrials(d, channel, singleTrials);

@@ -21,7 +21,7 @@ import type { NoteAnchor, NoteView, SessionView } from '../review/types';
 import { summarizeRecording } from '../summary-run';
 import { applyRecipe } from './apply-recipe';
 import { openRecording } from './open-recording';
-import { recordingIdOf, runDecomposition } from './results';
+import { plannedRecipe, recordingIdOf, runDecomposition } from './results';
 import { recipeOf, useWorkspace, type WorkspaceState } from './store';
 
 export type LinkedSession = SessionView['analysisSession'];
@@ -344,7 +344,10 @@ export async function saveAsVersion(): Promise<void> {
     appliedCanonical = ours;
     if (current.summaryHash === null) {
       set({ saving: { state: 'saving', message: `Computing the summary of version ${current.number} on this device…` } });
+      // The recipe's one plan (made in the plan worker, shared with the run when it is the run's recipe).
+      const planned = await plannedRecipe(ws.recording!, recordingIdOf(ws.recording!, ws.fingerprint), recipe);
       const built = await summarizeRecording(ws.recording!, recipe, {
+        planned,
         onProgress: (done, n) => set({ saving: { state: 'saving', message: `Computing the summary of version ${current!.number} on this device: ${done} of ${n} channels…` } }),
       });
       notices = built.notices.map((n) => n.replace(/^summary: /, ''));

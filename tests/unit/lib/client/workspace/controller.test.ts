@@ -6,11 +6,15 @@ import * as Comlink from 'comlink';
 import { MessageChannel } from 'node:worker_threads';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import type { Recording } from '../../../../../src/lib/analysis/recording';
-import { planRun, runRecipe } from '../../../../../src/lib/analysis/run-recipe';
+import { analyzeChannel, planRun, runRecipe } from '../../../../../src/lib/analysis/run-recipe';
 import { DecomposePool, type PoolWorker } from '../../../../../src/lib/client/decompose-pool';
 import { WorkspaceHistory } from '../../../../../src/lib/client/workspace/controller';
 import { historyKeyOf } from '../../../../../src/lib/client/workspace/keys';
-import { checkRecipe, clearResults, configureResults, cancelDecomposition, runDecomposition, useResultsStore } from '../../../../../src/lib/client/workspace/results';
+import { checkRecipe, clearResults, conditionedSamples, configureResults, cancelDecomposition, ensureTrials, plannedRecipe, runDecomposition, useResultsStore } from '../../../../../src/lib/client/workspace/results';
+import { RecipePlanner } from '../../../../../src/lib/client/recipe-planner';
+import { conditionRecording } from '../../../../../src/lib/analysis/condition-recording';
+import { parseRecipe, type RecipeInput } from '../../../../../src/lib/analysis/recipe';
+import { planApi, type PlanReply } from '../../../../../workers/plan-api';
 import { memoryShelf } from '../../../../../src/lib/client/workspace/saved-workspaces';
 import { INITIAL_WORKSPACE, recipeOf, useWorkspace } from '../../../../../src/lib/client/workspace/store';
 import { BudgetCache, fitBudget } from '../../../../../src/lib/client/workspace/cache-budget';
@@ -80,8 +84,8 @@ describe('the controller runs each recipe through one plan and the worker pool',
     const s = useWorkspace.getState();
     const recording = s.recording!;
     const recipe = recipeOf(s);
-    expect(checkRecipe(recording, 'rec', recipe)).toBeNull();
-    expect(checkRecipe(recording, 'rec', recipe)).toBeNull();
+    expect(await checkRecipe(recording, 'rec', recipe)).toBeNull();
+    expect(await checkRecipe(recording, 'rec', recipe)).toBeNull();
     const d = await runDecomposition(recording, 'rec', recipe, null);
     expect(plans).toBe(1);
     // The single-thread core is the reference (the parity test compares it with the CLI).
@@ -131,6 +135,181 @@ describe('the controller runs each recipe through one plan and the worker pool',
     expect(useWorkspace.getState().run).toMatchObject({ status: 'cancelled' });
     expect(useResultsStore.getState().cache).toEqual({});
     expect(workers.state.terminated).toBe(workers.state.created);
+  });
+});
+
+/**
+ * A plan worker over MessageChannel running the real `planApi`: counts plans, can hold them back (`gate`), and keeps
+ * what it sent so a test can see the conditioned copies were transferred (detached here), not cloned.
+ */
+function fakePlanWorker() {
+  const state = { plans: 0, created: 0, terminated: 0, sent: [] as Float32Array[], gate: null as Promise<void> | null, failures: [] as ((problem: string) => void)[] };
+  const factory = (): PoolWorker => {
+    state.created++;
+    const api = planApi();
+    const counted = {
+      ...api,
+      plan: async (recipe: unknown, known: Parameters<typeof api.plan>[1]): Promise<PlanReply> => {
+        state.plans++;
+        if (state.gate !== null) await state.gate;
+        const reply = api.plan(recipe, known);
+        if (reply.ok) state.sent.push(...reply.channels.filter((c): c is Float32Array => c instanceof Float32Array));
+        return reply;
+      },
+    };
+    const { port1, port2 } = new MessageChannel();
+    Comlink.expose(counted, port2 as unknown as Comlink.Endpoint);
+    return {
+      endpoint: port1 as unknown as Comlink.Endpoint,
+      terminate: () => {
+        state.terminated++;
+        port1.close();
+        port2.close();
+      },
+      onFailure: (listener) => void state.failures.push(listener),
+    };
+  };
+  return { state, factory };
+}
+
+describe('the plan is made in the plan worker, once per recipe, and its conditioned channels are reused', () => {
+  let planWorker: ReturnType<typeof fakePlanWorker>;
+  let workers: ReturnType<typeof fakeWorkers>;
+  let held: { key: string; trials: Float32Array[] }[];
+  let poolRuns: boolean[];
+  beforeEach(() => {
+    useWorkspace.setState(INITIAL_WORKSPACE);
+    clearResults();
+    planWorker = fakePlanWorker();
+    workers = fakeWorkers();
+    held = [];
+    poolRuns = [];
+    const planner = new RecipePlanner({ createWorker: planWorker.factory });
+    configureResults({
+      // Every pool run must be handed the controller's plan (else the pool would plan on the calling thread).
+      createPool: (size) => {
+        const pool = new DecomposePool({ size: size ?? 2, createWorker: workers.factory });
+        return { run: (input, recipe, options) => (poolRuns.push(options?.planned !== undefined), pool.run(input, recipe, options)), cancel: () => pool.cancel() };
+      },
+      plan: (recording, recipe) => planner.plan(recording, recipe),
+      holdTrials: async (key, trials) => void held.push({ key, trials }),
+    });
+    open();
+  });
+  afterEach(() => configureResults(null));
+
+  // A zero-phase high-pass changes every channel, so the conditioned samples are new arrays that must cross once.
+  const filtered = (): RecipeInput => ({ ...recipeOf(useWorkspace.getState()), filters: { highPass: { cutoffHz: 1, order: 4 } } });
+
+  it('check, run, summary plan, Slope check samples and trial channel share one plan; equal to planRun in this thread', async () => {
+    const recording = useWorkspace.getState().recording!;
+    const recipe = filtered();
+    expect(await checkRecipe(recording, 'rec', recipe)).toBeNull();
+    expect(await checkRecipe(recording, 'rec', recipe)).toBeNull();
+    const d = (await runDecomposition(recording, 'rec', recipe, null))!;
+    expect(d).not.toBeNull();
+    expect(planWorker.state.plans).toBe(1);
+    // The conditioned copies were transferred out of the worker (their buffers there are detached), not cloned.
+    expect(planWorker.state.sent).toHaveLength(3);
+    expect(planWorker.state.sent.every((c) => c.byteLength === 0)).toBe(true);
+    // The same numbers as the single-thread core (the parity test compares that with the CLI).
+    const reference = runRecipe(recording, recipe);
+    const T = d.times.length;
+    expect(Array.from(d.power[1][0].subarray(2 * T, 3 * T))).toEqual(reference.conditions[d.labels[0]].power[1][2].map((v) => (v === null ? NaN : v)));
+    // "Save as version" asks for the plan of the same recipe: the kept one.
+    const forSummary = await plannedRecipe(recording, 'rec', recipe);
+    // The Slope check and the spectra read the run's conditioned samples: the same arrays, equal to the core's.
+    const samples = await conditionedSamples(d, recording);
+    const core = conditionRecording(recording, parseRecipe(recipe)).recording;
+    d.channels.forEach((name, i) => {
+      expect(samples[i]).toBe(forSummary.recording.data[forSummary.plan.channelIndices[i]]);
+      expect(Array.from(samples[i])).toEqual(Array.from(core.data[core.channelNames.indexOf(name)]));
+    });
+    // Single trials of one channel: the run's plan narrowed to it, nothing planned again.
+    await ensureTrials(d, 'Pz', recording);
+    expect(held.map((h) => h.key)).toEqual([`${d.key}|F3`, `${d.key}|Pz`]);
+    expect(useResultsStore.getState().trialHold).toMatchObject({ status: 'ready' });
+    expect(planWorker.state.plans).toBe(1);
+    // …and its single trials are the core's for that channel, planned with every channel in this thread.
+    const whole = planRun(recording, recipe);
+    const pz = analyzeChannel(whole.plan, whole.recording.data[whole.plan.channelIndices[2]], { singleTrials: true });
+    expect(held[1].trials.map((t) => Array.from(t))).toEqual(pz.singleTrials!.map((t) => Array.from(t)));
+    // Another baseline is another recipe: one more plan, but the conditioning is the same, so no samples cross again.
+    useWorkspace.getState().setBaseline({ start: -0.35, end: -0.15 });
+    const moved = await plannedRecipe(recording, 'rec', { ...filtered() });
+    expect(planWorker.state.plans).toBe(2);
+    expect(planWorker.state.sent).toHaveLength(3);
+    expect(moved.recording.data).toEqual(forSummary.recording.data);
+    moved.recording.data.forEach((x, i) => expect(x).toBe(forSummary.recording.data[i]));
+    // Another frequency grid: a new plan for the run.
+    useWorkspace.getState().setDraft({ frequencies: { min: 6, max: 30, count: 5, spacing: 'log' } });
+    await runDecomposition(recording, 'rec', filtered(), null);
+    expect(planWorker.state.plans).toBe(3);
+    expect(poolRuns).toEqual([true, true, true]);
+    // The recording was sent to the worker once.
+    expect(planWorker.state.created).toBe(1);
+  });
+
+  it('a channel left as recorded is the recording\'s own array: nothing crosses back', async () => {
+    const recording = useWorkspace.getState().recording!;
+    const planned = await plannedRecipe(recording, 'rec', recipeOf(useWorkspace.getState()));
+    expect(planned.plan.channels).toEqual(['F3', 'Cz', 'Pz']);
+    planned.plan.channels.forEach((name, i) => expect(planned.recording.data[planned.plan.channelIndices[i]]).toBe(recording.data[recording.channelNames.indexOf(name)]));
+    expect(planWorker.state.sent).toHaveLength(0);
+  });
+
+  it('a recipe the core refuses comes back with its field and problem, once, and the run names it', async () => {
+    const recording = useWorkspace.getState().recording!;
+    // 128 Hz sampling: Nyquist is 64 Hz (Nyquist–Shannon sampling theorem, common practice).
+    useWorkspace.getState().setDraft({ frequencies: { min: 6, max: 70, count: 4, spacing: 'log' } });
+    const recipe = recipeOf(useWorkspace.getState());
+    const problem = await checkRecipe(recording, 'rec', recipe);
+    expect(problem).toMatchObject({ field: 'frequencies.max' });
+    expect(problem!.problem).toContain('Nyquist frequency (64 Hz');
+    expect(await checkRecipe(recording, 'rec', recipe)).toEqual(problem);
+    expect(await runDecomposition(recording, 'rec', recipe, null)).toBeNull();
+    expect(useResultsStore.getState().fieldError).toEqual({ field: 'frequencies.max', problem: problem!.problem });
+    expect(useWorkspace.getState().run.status).toBe('failed');
+    expect(planWorker.state.plans).toBe(1);
+    expect(workers.state.created).toBe(0);
+  });
+
+  it('cancel while planning ends the run at once and starts no worker; the plan is kept for the same recipe', async () => {
+    let release: () => void = () => undefined;
+    planWorker.state.gate = new Promise((r) => (release = r));
+    const recording = useWorkspace.getState().recording!;
+    const recipe = recipeOf(useWorkspace.getState());
+    const running = runDecomposition(recording, 'rec', recipe, null);
+    await new Promise((r) => setTimeout(r, 30));
+    expect(planWorker.state.plans).toBe(1);
+    expect(useWorkspace.getState().run.status).toBe('running');
+    cancelDecomposition();
+    expect(useWorkspace.getState().run.status).toBe('cancelled');
+    expect(await running).toBeNull();
+    expect(workers.state.created).toBe(0);
+    expect(useResultsStore.getState().cache).toEqual({});
+    release();
+    const d = await runDecomposition(recording, 'rec', recipe, null);
+    expect(d).not.toBeNull();
+    expect(useWorkspace.getState().run.status).toBe('done');
+    expect(planWorker.state.plans).toBe(1);
+  });
+
+  it('a plan worker that fails ends the run with its words; the next run plans on a new worker', async () => {
+    let release: () => void = () => undefined;
+    planWorker.state.gate = new Promise((r) => (release = r));
+    const recording = useWorkspace.getState().recording!;
+    const recipe = recipeOf(useWorkspace.getState());
+    const running = runDecomposition(recording, 'rec', recipe, null);
+    await new Promise((r) => setTimeout(r, 30));
+    planWorker.state.failures[0]('an error escaped');
+    expect(await running).toBeNull();
+    expect(useWorkspace.getState().run).toMatchObject({ status: 'failed', message: 'the plan worker failed: an error escaped' });
+    expect(planWorker.state.terminated).toBe(1);
+    planWorker.state.gate = null;
+    release();
+    expect(await runDecomposition(recording, 'rec', recipe, null)).not.toBeNull();
+    expect(planWorker.state.created).toBe(2);
   });
 });
 

@@ -12,7 +12,7 @@ import { conditionRecording } from '../../../../../src/lib/analysis/condition-re
 import { epochSpectra } from '../../../../../src/lib/analysis/epoch-spectra';
 import { parseRecipe, type RecipeInput } from '../../../../../src/lib/analysis/recipe';
 import type { Recording } from '../../../../../src/lib/analysis/recording';
-import type { AnalysisResult } from '../../../../../src/lib/analysis/run-recipe';
+import { planRun, type AnalysisResult } from '../../../../../src/lib/analysis/run-recipe';
 import { welchPsd } from '../../../../../src/lib/analysis/welch';
 import { writeEdf } from '../../../../../src/lib/formats';
 import { main as analyzeCli } from '../../../../../src/cli/analyze';
@@ -134,7 +134,7 @@ beforeEach(() => {
   clearResults();
   workers = countingPoolWorkers();
   refits = 0;
-  configureResults({ createPool: (size) => new DecomposePool({ size: size ?? 2, createWorker: workers.factory }), holdTrials: async () => undefined });
+  configureResults({ createPool: (size) => new DecomposePool({ size: size ?? 2, createWorker: workers.factory }), plan: planRun, holdTrials: async () => undefined });
   // The explorer worker's refit, in this process and counted.
   configureSpectra(() => ({
     fitEach: async (spectra, range, model) => {

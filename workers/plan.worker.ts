@@ -1,0 +1,4 @@
+import * as Comlink from 'comlink';
+import { planApi } from './plan-api';
+
+Comlink.expose(planApi());
