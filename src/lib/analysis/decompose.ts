@@ -55,10 +55,11 @@ export interface DecomposeOptions {
  * Morlet wavelet power `|x ∗ w_f|²` (µV²) of every epoch of one channel, each epoch's own mean removed first,
  * accumulated into trial averages and, for scope `trial`, into averages of per-trial normalized power as each
  * trial is produced (analysis contract, "Epoch means", "Complex Morlet wavelet power" and "Baseline
- * normalization"). Per epoch: one real forward FFT; per frequency: the inverse of `X·W_f` over the wavelet's band
- * only, as `N_f/M_f` transforms of size `M_f` (see `WaveletBank`), or, when no per-trial row is needed (scope
- * `average`, no single trials), one transform of size 2M on a coarse time grid whose sum over trials is
- * interpolated exactly once per condition (see `averagePower`).
+ * normalization"). Per epoch: one real forward FFT; per frequency with a narrow band: one transform of size 2M on
+ * a coarse time grid whose sum over trials is interpolated exactly once per condition (see `averagePower`); scope
+ * `trial` (but z-score) normalizes from those same samples (see trial-products.ts). A trial's own row, where one is
+ * needed (single trials, z-score in scope `trial`, wide bands), is the inverse of `X·W_f` over the wavelet's band
+ * only, as `N_f/M_f` transforms of size `M_f` (see `WaveletBank`).
  * No trial × frequency × time array is kept (unless `singleTrials`): memory is bounded by frequencies × times per
  * condition. Sums run in Float64 in epoch order, so a channel gives the same bits wherever it runs.
  */
@@ -441,10 +442,10 @@ function twoToThe(k: number): number {
 }
 
 /**
- * Σ_k log10 x_k per point without a logarithm per term: the product Π_k x_k is kept as m·2^e, m in [1, 2) (the
- * IEEE 754 binary64 layout: the exponent field is bits 52–62, bias 1023), renormalized whenever it leaves
- * [2^−500, 2^500] so it can neither overflow nor underflow; log10 Π = log10 m + e·log10 2 is taken once at the end. Zero, infinite and NaN
- * terms propagate as they would through the sum of logarithms (−∞, +∞, NaN). The product's relative rounding
+ * Σ_k log10 x_k per point without a logarithm per term: the product Π_k x_k is kept as m·2^e (the IEEE 754
+ * binary64 layout: the exponent field is bits 52–62, bias 1023), m brought back to [1, 2) whenever it leaves
+ * [2^−500, 2^500], so it can neither overflow nor underflow; log10 Π = log10 m + e·log10 2 is taken once at the
+ * end. Zero, infinite and NaN terms propagate as they would through the sum of logarithms (−∞, +∞, NaN). The product's relative rounding
  * error grows by at most 2^−53 per term (each multiply is correctly rounded), far below a logarithm's own rounding.
  */
 class LogProduct {
