@@ -76,7 +76,7 @@ async function singlePhase(recording: Recording): Promise<PhaseReport> {
   const tf = (performance.now() - t) / 1000;
   const cpu = process.cpuUsage(cpu0);
   const tfCpu = (cpu.user + cpu.system) / 1e6;
-  // The same decomposition in trial scope (per-trial rows, each normalized by its own baseline, then averaged).
+  // The same decomposition in trial scope (each trial normalized by its own baseline, then averaged).
   const trialPlan = planRecipe(recording, { ...recipe, baseline: { ...recipe.baseline, scope: 'trial' } });
   t = performance.now();
   const cpuTrial0 = process.cpuUsage();
@@ -137,7 +137,7 @@ async function main() {
   console.log(`  CPU time ${single.seconds.tfCpu.toFixed(3)} s`);
   line('runRecipe, 1 thread (+ Welch, aperiodic, JSON)', single.seconds.whole);
   console.log(`  peak RSS ${single.maxRssMb.toFixed(0)} MB`);
-  line('runRecipe, 1 thread, scope trial (per-trial rows)', single.seconds.trialScope);
+  line('runRecipe, 1 thread, scope trial (trial pairs)', single.seconds.trialScope);
   line('wavelet power + dB, 1 thread, scope trial', single.seconds.tfTrial);
   // Trial scope against average scope, like for like (CPU time is the fairer figure on a shared machine).
   const s = single.seconds;

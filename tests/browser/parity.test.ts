@@ -224,6 +224,18 @@ describe('browser worker pool and command line on the same EDF+ bytes', () => {
     expect(result.aperiodic[0].knee).not.toBeNull();
   });
 
+  it('matches too for scope trial in decibels and percent change (trial pairs and coarse baselines)', async () => {
+    for (const method of ['decibel', 'percent-change']) {
+      const variant = { ...recipe, channels: ['Fz', 'Cz'], baseline: { ...(recipe.baseline as object), method, scope: 'trial' } };
+      const pageText = await page.evaluate((r) => window.__tidemark!.runPool(r), variant);
+      const { text, result } = cli(variant, `trial-${method}`);
+      expect(firstDifference(JSON.parse(pageText), result), method).toBeNull();
+      expect(pageText, method).toBe(text);
+      // Not vacuous: trial scope differs from average scope.
+      expect(firstDifference(result.conditions['lamp-watch'].normalized, cliFirst.conditions['lamp-watch'].normalized.slice(0, 2)), method).not.toBeNull();
+    }
+  });
+
   it('matches too for phase consistency and induced power (every ITPC value and evoked sample to the last bit)', async () => {
     const variant = { ...recipe, itpc: true, trialPower: 'induced' };
     const pageText = await page.evaluate((r) => window.__tidemark!.runPool(r), variant);

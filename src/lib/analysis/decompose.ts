@@ -4,9 +4,11 @@ import type FFT from 'fft.js';
 import { getFft } from './fft';
 import { getWaveletBank } from './wavelet';
 import { log10 } from './portable-math';
+import { addRatio, baselineWeights, coarseBaseline, productRow } from './trial-products';
 
 // Epochs are transformed in blocks and then swept frequency by frequency, so one frequency's weights stay in
-// cache across the block; the per-(frequency, time) sums still run in epoch order.
+// cache across the block; the per-(frequency, time) sums still run in epoch order. Even, so trial scope's pairs
+// of trials (epochs 0 and 1, 2 and 3, …) never straddle two blocks.
 const EPOCH_BLOCK = 16;
 
 /** Everything one channel's time-frequency decomposition needs; plain data, so it can cross to a worker. */
@@ -53,10 +55,11 @@ export interface DecomposeOptions {
  * Morlet wavelet power `|x ∗ w_f|²` (µV²) of every epoch of one channel, each epoch's own mean removed first,
  * accumulated into trial averages and, for scope `trial`, into averages of per-trial normalized power as each
  * trial is produced (analysis contract, "Epoch means", "Complex Morlet wavelet power" and "Baseline
- * normalization"). Per epoch: one real forward FFT; per frequency: the inverse of `X·W_f` over the wavelet's band
- * only, as `N_f/M_f` transforms of size `M_f` (see `WaveletBank`), or, when no per-trial row is needed (scope
- * `average`, no single trials), one transform of size 2M on a coarse time grid whose sum over trials is
- * interpolated exactly once per condition (see `averagePower`).
+ * normalization"). Per epoch: one real forward FFT; per frequency with a narrow band: one transform of size 2M on
+ * a coarse time grid whose sum over trials is interpolated exactly once per condition (see `averagePower`); scope
+ * `trial` (but z-score) normalizes from those same samples (see trial-products.ts). A trial's own row, where one is
+ * needed (single trials, z-score in scope `trial`, wide bands), is the inverse of `X·W_f` over the wavelet's band
+ * only, as `N_f/M_f` transforms of size `M_f` (see `WaveletBank`).
  * No trial × frequency × time array is kept (unless `singleTrials`): memory is bounded by frequencies × times per
  * condition. Sums run in Float64 in epoch order, so a channel gives the same bits wherever it runs.
  */
@@ -65,6 +68,7 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
   const { onProgress, shouldCancel } = options;
   const nf = frequencies.length;
   const bank = getWaveletBank(frequencies, sigmas, sampleRateHz, L);
+  const { first, last, method } = baseline;
   const fftSize = bank.fftSize;
   const forward = getFft(fftSize);
   const epoch = new Float64Array(fftSize);
@@ -80,12 +84,21 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
   // Across-trials z-scores normalize the trial average once (zScoreAcrossTrials), whatever the scope.
   const trialScope = baseline.scope === 'trial' && !spreadTrials;
   const keepRow = trialScope || job.singleTrials === true || spreadTrials;
-  // Outside trial scope, frequencies with a narrow band take the trial-average path (see averagePower). Keeping
-  // single trials must not change that choice: the average then has other rounding, and the explorer's channel
-  // would no longer match the command line bit for bit. Those rows go through bandPower into a scratch sum.
-  const averagePath = !trialScope;
+  // Trial scope in decibels, percent change and power ratio also takes the coarse samples of the trial-average
+  // path (trial-products.ts): B_k from them, then Σ_k P_k/B_k interpolated once, or in decibels one
+  // full-resolution row per pair of trials. z-score needs each trial's S_k over its own row: the per-trial path.
+  const coarseTrials = trialScope && method !== 'z-score';
+  // Frequencies with a narrow band take the trial-average path (see averagePower). Keeping single trials must not
+  // change that choice: the average then has other rounding, and the explorer's channel would no longer match the
+  // command line bit for bit. Those rows go through bandPower into a scratch sum.
+  const averagePath = !trialScope || coarseTrials;
   const scratch = new Float64Array(L);
-  const { first, last, method } = baseline;
+  // Coarse samples of a pair of trials and the pair's scratch (trial scope, see trial-products.ts).
+  let maxCoarse = 2;
+  for (let f = 0; f < nf; f++) maxCoarse = Math.max(maxCoarse, 2 * bank.averageBandSizes[f]);
+  const coarseA = coarseTrials ? new Float64Array(2 * maxCoarse) : null;
+  const coarseB = coarseTrials ? new Float64Array(2 * maxCoarse) : null;
+  const pairScratch = coarseTrials && method === 'decibel' ? [0, 1, 2].map(() => new Float64Array(2 * maxCoarse)) : null;
 
   let totalEpochs = 0;
   for (const starts of epochStarts) totalEpochs += starts.length;
@@ -128,6 +141,8 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
     const trialBaselines = spreadTrials ? new Float64Array(trials * nf) : null;
     const decimated: (Float64Array | null)[] = [];
     for (let f = 0; f < nf; f++) decimated.push(averagePath && bank.averageBandSizes[f] > 0 ? new Float64Array(2 * bank.averageBandSizes[f]) : null);
+    // Σ_k |u_k|²/B_k on the coarse grid (trial scope, percent change and power ratio).
+    const ratios = coarseTrials && logProduct === null ? decimated.map((acc) => (acc === null ? null : new Float64Array(acc.length))) : null;
     for (let e0 = 0; e0 < trials; e0 += EPOCH_BLOCK) {
       if (shouldCancel !== undefined && shouldCancel()) throw new AnalysisCancelledError();
       const nb = Math.min(EPOCH_BLOCK, trials - e0);
@@ -159,7 +174,26 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
         if (acc !== null) {
           const bins = bank.averageBins[f] as Int32Array;
           const weights = bank.averageWeights[f] as Float64Array;
-          for (let b = 0; b < nb; b++) averagePower(acc, spectra[b], bins, weights, work, out);
+          if (coarseA === null || coarseB === null) {
+            for (let b = 0; b < nb; b++) averagePower(acc, spectra[b], bins, weights, work, out);
+          } else {
+            // Trial scope: the same power sums, and each trial's samples for its own normalization.
+            const a = baselineWeights(bank.sizes[f], acc.length, first, last);
+            const ratio = ratios !== null ? ratios[f] : null;
+            for (let b = 0; b < nb; b++) {
+              const u = (b & 1) === 0 ? coarseA : coarseB;
+              averagePower(acc, spectra[b], bins, weights, work, u);
+              const mean = coarseBaseline(u, a);
+              if (ratio !== null) addRatio(ratio, u, mean);
+              else if (logProduct !== null && pairScratch !== null) {
+                logProduct.addBaseline(f, mean);
+                if ((b & 1) === 1 || b === nb - 1) {
+                  productRow(row, L, coarseA, (b & 1) === 1 ? coarseB : null, acc.length, bank.sizes[f], pairScratch[0], pairScratch[1], pairScratch[2], out);
+                  logProduct.multiplyRow(f * L, row, L);
+                }
+              }
+            }
+          }
           if (single !== null || trialBaselines !== null) {
             for (let b = 0; b < nb; b++) {
               bandPower(scratch, 0, row, L, spectra[b], bank.bins[f], bank.weights[f], bank.sizes[f] / bank.bandSizes[f], band, work, out);
@@ -190,6 +224,14 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
     for (let f = 0; f < nf; f++) {
       const acc = decimated[f];
       if (acc !== null) interpolatePower(sum, f * L, L, acc, bank.sizes[f]);
+      const ratio = ratios !== null ? ratios[f] : null;
+      if (ratio !== null && normSum !== null) {
+        // Σ_k P_k/B_k at every time point; percent change sums 100·(P_k/B_k − 1).
+        interpolatePower(scratch, 0, L, ratio, bank.sizes[f]);
+        const off = f * L;
+        if (method === 'percent-change') for (let j = 0; j < L; j++) normSum[off + j] = 100 * (scratch[j] - trials);
+        else for (let j = 0; j < L; j++) normSum[off + j] = scratch[j];
+      }
     }
     for (let i = 0; i < sum.length; i++) sum[i] /= trials;
     power.push(sum);
@@ -389,12 +431,21 @@ function interpolatePower(sum: Float64Array, off: number, length: number, acc: F
 
 const LOG10_2 = log10(2);
 const TWO_POW_64 = 18446744073709551616; // 2^64, exact
+// 2^−500 and 2^500 by exact doublings: LogProduct's mantissas stay inside, far from overflow and subnormals.
+const PRODUCT_HIGH = twoToThe(500);
+const PRODUCT_LOW = 1 / PRODUCT_HIGH;
+
+function twoToThe(k: number): number {
+  let x = 1;
+  for (let i = 0; i < k; i++) x *= 2;
+  return x;
+}
 
 /**
- * Σ_k log10 x_k per point without a logarithm per term: the product Π_k x_k is kept as m·2^e, m in [1, 2) (the
- * IEEE 754 binary64 layout: the exponent field is bits 52–62, bias 1023), renormalized after every multiply so it
- * can neither overflow nor underflow; log10 Π = log10 m + e·log10 2 is taken once at the end. Zero, infinite and NaN
- * terms propagate as they would through the sum of logarithms (−∞, +∞, NaN). The product's relative rounding
+ * Σ_k log10 x_k per point without a logarithm per term: the product Π_k x_k is kept as m·2^e (the IEEE 754
+ * binary64 layout: the exponent field is bits 52–62, bias 1023), m brought back to [1, 2) whenever it leaves
+ * [2^−500, 2^500], so it can neither overflow nor underflow; log10 Π = log10 m + e·log10 2 is taken once at the
+ * end. Zero, infinite and NaN terms propagate as they would through the sum of logarithms (−∞, +∞, NaN). The product's relative rounding
  * error grows by at most 2^−53 per term (each multiply is correctly rounded), far below a logarithm's own rounding.
  */
 class LogProduct {
@@ -412,26 +463,56 @@ class LogProduct {
   }
 
   multiply(off: number, row: Float64Array, length: number, f: number, baselineMean: number): void {
+    this.addBaseline(f, baselineMean);
+    this.multiplyRow(off, row, length);
+  }
+
+  /** One trial's B_k at frequency f. */
+  addBaseline(f: number, baselineMean: number): void {
     this.logBaselines[f] += log10(baselineMean);
+  }
+
+  /**
+   * Π_k P_k(t) *= row[t] (a row may be one trial's power or a product of several, see trial-products.ts). The
+   * mantissa is renormalized only when a product leaves [2^−500, 2^500]: scaling by a power of two is exact in the
+   * normal range, so the bits are those of renormalizing after every multiply.
+   */
+  multiplyRow(off: number, row: Float64Array, length: number): void {
     const m = this.mantissa;
-    const w = this.words;
-    const e = this.exponent;
     for (let j = 0; j < length; j++) {
       const i = off + j;
-      let x = m[i] * row[j];
-      let shift = 0;
-      // A subnormal product (or a subnormal term) is scaled into the normal range first.
-      if (x !== 0 && Math.abs(x) < 2.2250738585072014e-308) {
-        x *= TWO_POW_64;
-        shift = -64;
-      }
-      m[i] = x;
-      const hi = w[2 * i + 1];
-      const field = (hi >>> 20) & 0x7ff;
-      if (field === 0 || field === 0x7ff) continue; // zero, infinity or NaN: kept as they are
-      w[2 * i + 1] = (hi & 0x800fffff) | (1023 << 20);
-      e[i] += field - 1023 + shift;
+      const x = m[i] * row[j];
+      if (x >= PRODUCT_LOW && x <= PRODUCT_HIGH) m[i] = x;
+      else this.multiplyNormalized(i, row[j]);
     }
+  }
+
+  // m[i] scaled into [1, 2) (zero, infinity and NaN kept), then one multiply renormalized at once.
+  private multiplyNormalized(i: number, term: number): void {
+    this.normalize(i);
+    const w = this.words;
+    let x = this.mantissa[i] * term;
+    let shift = 0;
+    // A subnormal product (or a subnormal term) is scaled into the normal range first.
+    if (x !== 0 && Math.abs(x) < 2.2250738585072014e-308) {
+      x *= TWO_POW_64;
+      shift = -64;
+    }
+    this.mantissa[i] = x;
+    const hi = w[2 * i + 1];
+    const field = (hi >>> 20) & 0x7ff;
+    if (field === 0 || field === 0x7ff) return; // zero, infinity or NaN: kept as they are
+    w[2 * i + 1] = (hi & 0x800fffff) | (1023 << 20);
+    this.exponent[i] += field - 1023 + shift;
+  }
+
+  private normalize(i: number): void {
+    const w = this.words;
+    const hi = w[2 * i + 1];
+    const field = (hi >>> 20) & 0x7ff;
+    if (field === 0 || field === 0x7ff) return;
+    w[2 * i + 1] = (hi & 0x800fffff) | (1023 << 20);
+    this.exponent[i] += field - 1023;
   }
 
   /** 10·(log10 Π_k P_k − Σ_k log10 B_k) into `out[f·length + t]`. */
@@ -440,7 +521,10 @@ class LogProduct {
     const e = this.exponent;
     for (let f = 0, off = 0; off < out.length; f++, off += length) {
       const logB = this.logBaselines[f];
-      for (let i = off; i < off + length; i++) out[i] = 10 * (log10(m[i]) + e[i] * LOG10_2 - logB);
+      for (let i = off; i < off + length; i++) {
+        this.normalize(i);
+        out[i] = 10 * (log10(m[i]) + e[i] * LOG10_2 - logB);
+      }
     }
   }
 }

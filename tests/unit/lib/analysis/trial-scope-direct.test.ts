@@ -1,0 +1,159 @@
+// Scope `trial` (analysis contract, "Baseline normalization": each trial normalized by its own baseline B_k, then
+// averaged) is computed from each trial's coarse samples and, in decibels, from one full-resolution row per pair of
+// trials (src/lib/analysis/trial-products.ts). These checks hold it to the slow, obvious computation: complex Morlet
+// wavelet convolution written out as a sum in the time domain (Tallon-Baudry et al., 1997, J Neurosci 17:722;
+// Cohen, 2014, "Analyzing Neural Time Series Data", ch. 12–13), then the contract's formulas trial by trial. The
+// wavelet here is built from the contract's own definition with Math's functions, not from src/lib/analysis.
+import fc from 'fast-check';
+import { describe, expect, it } from 'vitest';
+import type { BaselineMethod } from '../../../../src/lib/analysis/baseline';
+import { decomposeChannel } from '../../../../src/lib/analysis/decompose';
+import { gaussianSigmas, getWaveletBank } from '../../../../src/lib/analysis/wavelet';
+import { seededNormal } from '../../../helpers/seeded-random';
+
+// Scenario of our own: one channel at 128 Hz, epochs of 1.5 s (193 points), a 9 Hz burst in the second half of
+// every other epoch over background noise.
+const fs = 128;
+const L = 193;
+const freqs = Float64Array.of(4, 9, 21);
+const sigmas = gaussianSigmas(freqs, { min: 3, max: 7 });
+const first = 20;
+const last = 60;
+
+function epochs(trials: number, seed: number): { x: Float32Array; starts: Int32Array } {
+  const normal = seededNormal(seed);
+  const starts = Int32Array.from({ length: trials }, (_, k) => 30 + k * (L + 11));
+  const x = new Float32Array(starts[trials - 1] + L + 30);
+  for (let i = 0; i < x.length; i++) x[i] = 5 * normal() + 12; // an offset the epoch means take out
+  for (let k = 0; k < trials; k += 2) {
+    for (let j = 110; j < 170; j++) x[starts[k] + j] += 4 * Math.sin(2 * Math.PI * 9 * (j / fs));
+  }
+  return { x, starts };
+}
+
+/**
+ * |y|² of one demeaned epoch, y(t) = Σ_i x(i)·w(t − i) with the contract's wavelet w(t) = c·exp(2πi·f·t/fs)·
+ * exp(−t²/(2σ²fs²)), c = 2/Σ_t exp(−t²/(2σ²fs²)), over |t| ≤ h (the bank's support, 8σ).
+ */
+function directPower(x: Float32Array, start: number, f: number, sigma: number, h: number): Float64Array {
+  let mean = 0;
+  for (let j = 0; j < L; j++) mean += x[start + j];
+  mean /= L;
+  const g = Array.from({ length: 2 * h + 1 }, (_, k) => Math.exp(-((k - h) ** 2) / (2 * (sigma * fs) ** 2)));
+  const c = 2 / g.reduce((a, b) => a + b, 0);
+  const re = g.map((gk, k) => c * gk * Math.cos((2 * Math.PI * f * (k - h)) / fs));
+  const im = g.map((gk, k) => c * gk * Math.sin((2 * Math.PI * f * (k - h)) / fs));
+  const p = new Float64Array(L);
+  for (let t = 0; t < L; t++) {
+    let yr = 0;
+    let yi = 0;
+    for (let i = Math.max(0, t - h); i <= Math.min(L - 1, t + h); i++) {
+      const v = x[start + i] - mean;
+      yr += v * re[t - i + h];
+      yi += v * im[t - i + h];
+    }
+    p[t] = yr * yr + yi * yi;
+  }
+  return p;
+}
+
+/** The contract's scope `trial`, term by term: mean over trials of the method applied to P_k(t) and B_k. */
+function byDefinition(x: Float32Array, starts: Int32Array, method: BaselineMethod): Float64Array {
+  const bank = getWaveletBank(freqs, sigmas, fs, L);
+  const out = new Float64Array(freqs.length * L);
+  for (let k = 0; k < starts.length; k++) {
+    for (let f = 0; f < freqs.length; f++) {
+      const p = directPower(x, starts[k], freqs[f], sigmas[f], bank.halfWidths[f]);
+      let b = 0;
+      for (let j = first; j <= last; j++) b += p[j];
+      b /= last - first + 1;
+      for (let j = 0; j < L; j++) {
+        const v = method === 'decibel' ? 10 * Math.log10(p[j] / b) : method === 'percent-change' ? (100 * (p[j] - b)) / b : p[j] / b;
+        out[f * L + j] += v / starts.length;
+      }
+    }
+  }
+  return out;
+}
+
+function decompose(x: Float32Array, starts: Int32Array, method: BaselineMethod, scope: 'trial' | 'average' = 'trial') {
+  return decomposeChannel({ samples: x, epochStarts: [starts], epochSamples: L, sampleRateHz: fs, frequencies: freqs, sigmas, baseline: { first, last, method, scope } });
+}
+
+function worstDifference(a: Float64Array, b: Float64Array): number {
+  let worst = 0;
+  for (let i = 0; i < a.length; i++) worst = Math.max(worst, Math.abs(a[i] - b[i]));
+  return worst;
+}
+
+describe('scope trial against direct wavelet convolution', () => {
+  // 7 trials: three pairs and one trial on its own; 8: pairs only.
+  for (const trials of [7, 8]) {
+    it(`matches the definition for decibels, percent change and power ratio (${trials} trials)`, () => {
+      const { x, starts } = epochs(trials, 40 + trials);
+      // Tolerances: the bank drops wavelet bins below 1e-13 of the peak (wavelet.ts), so powers agree to ~1e-12
+      // relative (measured: 1e-13 dB); the rest is rounding.
+      const limits: Record<string, number> = { decibel: 1e-10, 'percent-change': 1e-9, 'power-ratio': 1e-11 };
+      for (const method of ['decibel', 'percent-change', 'power-ratio'] as const) {
+        const got = decompose(x, starts, method).normalized[0];
+        const want = byDefinition(x, starts, method);
+        expect(worstDifference(got, want), method).toBeLessThan(limits[method]);
+      }
+    });
+  }
+
+  it('keeps the trial-averaged power of scope average to the last bit', () => {
+    const { x, starts } = epochs(7, 3);
+    for (const method of ['decibel', 'percent-change'] as const) {
+      expect(Array.from(decompose(x, starts, method).power[0])).toEqual(Array.from(decompose(x, starts, method, 'average').power[0]));
+    }
+  });
+});
+
+describe('scope trial, properties (fast-check)', () => {
+  const cases = fc.record({ seed: fc.integer({ min: 1, max: 1_000_000 }), trials: fc.integer({ min: 1, max: 9 }) });
+
+  it('does not depend on the order of the trials beyond rounding (the pairs change)', () => {
+    fc.assert(
+      fc.property(cases, fc.integer({ min: 1, max: 1_000 }), ({ seed, trials }, shuffle) => {
+        const { x, starts } = epochs(trials, seed);
+        const order = Array.from(starts).sort((a, b) => ((a * shuffle) % 97) - ((b * shuffle) % 97) || a - b);
+        for (const method of ['decibel', 'percent-change'] as const) {
+          const a = decompose(x, starts, method).normalized[0];
+          const b = decompose(x, Int32Array.from(order), method).normalized[0];
+          expect(worstDifference(a, b)).toBeLessThan(1e-9);
+        }
+      }),
+      { numRuns: 15 },
+    );
+  });
+
+  it('equals scope average for a single trial (both are P/B)', () => {
+    fc.assert(
+      fc.property(fc.integer({ min: 1, max: 1_000_000 }), (seed) => {
+        const { x, starts } = epochs(1, seed);
+        for (const method of ['decibel', 'percent-change', 'power-ratio'] as const) {
+          expect(worstDifference(decompose(x, starts, method).normalized[0], decompose(x, starts, method, 'average').normalized[0])).toBeLessThan(1e-9);
+        }
+      }),
+      { numRuns: 15 },
+    );
+  });
+
+  it('keeps the mean of logarithms under the logarithm of the mean, and percent change = 100·(ratio − 1)', () => {
+    // (1/K)·Σ log(P_k/B_k) ≤ log((1/K)·Σ P_k/B_k) (Jensen's inequality; arithmetic–geometric mean inequality).
+    fc.assert(
+      fc.property(cases, ({ seed, trials }) => {
+        const { x, starts } = epochs(trials, seed);
+        const db = decompose(x, starts, 'decibel').normalized[0];
+        const ratio = decompose(x, starts, 'power-ratio').normalized[0];
+        const percent = decompose(x, starts, 'percent-change').normalized[0];
+        for (let i = 0; i < db.length; i++) {
+          expect(db[i]).toBeLessThanOrEqual(10 * Math.log10(ratio[i]) + 1e-9);
+          expect(Math.abs(percent[i] - 100 * (ratio[i] - 1))).toBeLessThan(1e-9 * Math.max(1, Math.abs(percent[i])));
+        }
+      }),
+      { numRuns: 15 },
+    );
+  });
+});
