@@ -75,7 +75,8 @@ export async function summarizeRecording(input: Recording, recipe: unknown, opti
           parts[c] = await remote.summarize(Comlink.transfer({ plan, samples, channel: plan.channels[c], index: c }, [samples.buffer]), spec);
           options.onProgress?.(++done, n);
         }
-        remote[Comlink.releaseProxy]();
+        // No releaseProxy here: in Node it lets an idle worker exit (code 0) while another lane still works, and that
+        // exit reads as a failure. The `finally` below ends every worker once all lanes are done.
       }),
     );
     await Promise.race([lanes, failed]);
