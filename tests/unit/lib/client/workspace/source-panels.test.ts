@@ -13,8 +13,21 @@ const recording: Recording = {
   events: [],
 };
 
-const decision = (eventIndex: number, condition: string, onsetSeconds: number, rejected: boolean, fit?: 'outside' | 'gap'): EpochDecision =>
-  ({ eventIndex, condition, onsetSeconds, rejected, reasons: [], manual: null, ...(fit ? { fit } : {}) }) as EpochDecision;
+const decision = (eventIndex: number, condition: string, onsetSeconds: number, rejected: boolean, fit: EpochDecision['fit'] = 'fits'): EpochDecision => ({
+  eventIndex,
+  key: `e${eventIndex}`,
+  condition,
+  onsetSeconds,
+  rejected,
+  reasons: [],
+  fit,
+  rejectedByRules: rejected,
+  manual: null,
+  peakToPeakMicrovolts: null,
+  peakToPeakChannel: null,
+  minStdMicrovolts: null,
+  minStdChannel: null,
+});
 
 describe('channelsView', () => {
   it('reads each type from the label, counts the good brain channels, and offers the µV ones to the reference', () => {
