@@ -1,11 +1,10 @@
 import { useCallback, useMemo, useState } from 'react';
 import type { CohortOverview } from '../../lib/cohort/overview';
-import { groupCells, tidyCsv, type PooledSession } from '../../lib/cohort/values';
-import { checkPooling, enteringSessions, neutralOf, pooledSessions, subjectMapsOf, unitWord } from '../../lib/cohort/model';
-import { buildGroupMap } from '../../lib/cohort/group-map';
+import { groupCells, tidyCsv } from '../../lib/cohort/values';
+import { neutralOf, unitWord } from '../../lib/cohort/model';
 import { defaultCohortDesign } from '../../lib/cohort/default-design';
 import type { CohortDesignT } from '../../lib/schemas/cohort';
-import { cohortResultJson, covariateMap, designResultOf, GROUP, rowsAtChannel, useCohortSummaries, useMapTest } from '../../lib/client/cohort/cohort-model';
+import { cohortResultJson, covariateMap, designResultOf, GROUP, groupMapOf, rowsAtChannel, useCohortSummaries, useMapTest, usePooledCohort } from '../../lib/client/cohort/cohort-model';
 import { downloadBlob, fileSafe } from '../explorer/download';
 import SessionTable from './SessionTable';
 import CovariatesPanel from './CovariatesPanel';
@@ -51,10 +50,7 @@ export default function CohortScreen({ study, team, overview, may }: Props) {
     });
   }, []);
 
-  const entering = useMemo(() => enteringSessions(overview.sessions, includeUnsigned, excluded), [overview.sessions, includeUnsigned, excluded]);
-  const unsignedIn = entering.filter((s) => s.status !== 'signed off').length;
-  const verdict = useMemo(() => checkPooling(entering), [entering]);
-  const pooled = useMemo<PooledSession[]>(() => (summaries && verdict.ok ? pooledSessions(entering, summaries) : []), [summaries, verdict, entering]);
+  const { entering, unsignedIn, verdict, pooled } = usePooledCohort(overview.sessions, summaries, includeUnsigned, excluded);
   const covMap = useMemo(() => covariateMap(covariates), [covariates]);
 
   // Rows at the chosen channel (or a group's channels averaged per subject).
@@ -67,7 +63,7 @@ export default function CohortScreen({ study, team, overview, may }: Props) {
   // ---- group map and its test
   const [mapGroup, setMapGroup] = useState(outline?.channelGroups[0]?.label ?? '');
   const [mapConditions, setMapConditions] = useState<[string] | [string, string]>(design.mapTest?.conditions ?? [conditions[0] ?? '']);
-  const groupMap = useMemo(() => (summaries && verdict.ok && mapGroup ? buildGroupMap(subjectMapsOf(entering, summaries), mapGroup, mapConditions, neutral, { alpha: design.mapTest?.alpha ?? 0.05, seed: design.design.seed }) : null), [summaries, verdict, entering, mapGroup, mapConditions, neutral, design]);
+  const groupMap = useMemo(() => (summaries && verdict.ok ? groupMapOf(entering, summaries, mapGroup, mapConditions, neutral, design) : null), [summaries, verdict, entering, mapGroup, mapConditions, neutral, design]);
   const mapTest = useMapTest(groupMap);
 
   // ---- exports

@@ -1,9 +1,9 @@
-import { useEffect, useRef, useState } from 'react';
+import { useEffect, useMemo, useRef, useState } from 'react';
 import type { CohortOverview } from '../../cohort/overview';
 import { averageChannels, toTidyValues, type Covariates, type PooledSession } from '../../cohort/values';
 import { describeSide, distributionSentence, type DistributionSide } from '../../cohort/distribution';
-import type { GroupMap } from '../../cohort/group-map';
-import type { StoredSummary } from '../../cohort/model';
+import { buildGroupMap, type GroupMap } from '../../cohort/group-map';
+import { checkPooling, enteringSessions, pooledSessions, subjectMapsOf, type StoredSummary } from '../../cohort/model';
 import { runDesign, type Design, type DesignResult } from '../../statistics/design';
 import type { CohortDesignT } from '../../schemas/cohort';
 import { clustersOut } from '../../statistics/maps';
@@ -33,6 +33,32 @@ export function useCohortSummaries(studyId: string): { summaries: Record<string,
     return () => void (live = false);
   }, [studyId]);
   return { summaries, loadError };
+}
+
+type Sessions = CohortOverview['sessions'];
+
+/**
+ * Who enters the cohort (signed-off sessions, unsigned ones when asked, minus those left out), how many of them are
+ * unsigned, whether their recipes may be pooled (the field that differs when not), and their pooled values.
+ */
+export function usePooledCohort(sessions: Sessions, summaries: Record<string, StoredSummary> | null, includeUnsigned: boolean, excluded: ReadonlySet<string>) {
+  const entering = useMemo(() => enteringSessions(sessions, includeUnsigned, excluded), [sessions, includeUnsigned, excluded]);
+  const verdict = useMemo(() => checkPooling(entering), [entering]);
+  const pooled = useMemo<PooledSession[]>(() => (summaries && verdict.ok ? pooledSessions(entering, summaries) : []), [summaries, verdict, entering]);
+  return { entering, unsignedIn: entering.filter((s) => s.status !== 'signed off').length, verdict, pooled };
+}
+
+/** The group map of `mapGroup` over the entering subjects, with the saved design's alpha and seed; null without a group. */
+export function groupMapOf(
+  entering: ReturnType<typeof enteringSessions>,
+  summaries: Record<string, StoredSummary>,
+  mapGroup: string,
+  mapConditions: [string] | [string, string],
+  neutral: number,
+  design: CohortDesignT,
+): GroupMap | null {
+  if (!mapGroup) return null;
+  return buildGroupMap(subjectMapsOf(entering, summaries), mapGroup, mapConditions, neutral, { alpha: design.mapTest?.alpha ?? 0.05, seed: design.design.seed });
 }
 
 /** The study's covariates as the statistics read them: name → subject → value. */
