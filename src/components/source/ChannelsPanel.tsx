@@ -49,27 +49,25 @@ export default function ChannelsPanel({ recording, conditioning, onChange, probl
             </tr>
           </thead>
           <tbody>
-            {rows.map(({ name, type, fromFile, unit, bad }) => {
-              return (
-                <tr key={name} data-testid="channel-row" data-channel={name} data-type={type} data-bad={bad ? 'yes' : 'no'}>
-                  <td className="pr-3 font-mono">{name}</td>
-                  <td className="pr-3">
-                    <select aria-label={`Type of ${name}`} value={type} onChange={(e) => onChange({ types: typesWith(recording, conditioning, name, e.target.value as ChannelType) })}>
-                      {CHANNEL_TYPES.map((t) => (
-                        <option key={t} value={t}>
-                          {TYPE_WORDS[t]}
-                          {t === fromFile ? ' (from the file)' : ''}
-                        </option>
-                      ))}
-                    </select>
-                  </td>
-                  <td className="pr-3 font-mono">{unit}</td>
-                  <td>
-                    <input type="checkbox" aria-label={`${name} is bad`} checked={bad} onChange={(e) => onChange({ bad: badWith(conditioning, name, e.target.checked) })} />
-                  </td>
-                </tr>
-              );
-            })}
+            {rows.map(({ name, type, fromFile, unit, bad }) => (
+              <tr key={name} data-testid="channel-row" data-channel={name} data-type={type} data-bad={bad ? 'yes' : 'no'}>
+                <td className="pr-3 font-mono">{name}</td>
+                <td className="pr-3">
+                  <select aria-label={`Type of ${name}`} value={type} onChange={(e) => onChange({ types: typesWith(recording, conditioning, name, e.target.value as ChannelType) })}>
+                    {CHANNEL_TYPES.map((t) => (
+                      <option key={t} value={t}>
+                        {TYPE_WORDS[t]}
+                        {t === fromFile ? ' (from the file)' : ''}
+                      </option>
+                    ))}
+                  </select>
+                </td>
+                <td className="pr-3 font-mono">{unit}</td>
+                <td>
+                  <input type="checkbox" aria-label={`${name} is bad`} checked={bad} onChange={(e) => onChange({ bad: badWith(conditioning, name, e.target.checked) })} />
+                </td>
+              </tr>
+            ))}
           </tbody>
         </table>
       </div>
