@@ -250,4 +250,21 @@ describe('the Bands screen', () => {
     expect(await reflows()).toBeLessThanOrEqual(0);
     await page.getByTestId('band-scalp-card').screenshot({ path: path.join(artifactsDir, 'plots-bands-scalp.png') });
   });
+
+  it('forgets the charted channels and groups when another recording is decomposed', async () => {
+    await page.getByTestId('band-sites').selectOption(['left central', 'TP9', 'Oz']);
+    await expect.poll(() => page.getByTestId('band-chart').count()).toBe(3);
+    // Another subject of the same scenario, four midline channels: no TP9, no left-central group.
+    const other = await page.evaluate(() => window.__tidemark!.loadDemo({ seconds: 20, subject: 1, channels: ['Fz', 'Cz', 'Pz', 'Oz'], epochStart: -0.5, epochEnd: 1.5 }));
+    expect(other.channels).toEqual(['Fz', 'Cz', 'Pz', 'Oz']);
+    await page.getByRole('tab', { name: 'Recipe' }).click();
+    await page.getByTestId('recipe-run').click();
+    await page.waitForFunction(() => document.querySelector('[data-testid="recipe-status"]')?.getAttribute('data-status') === 'done', undefined, { timeout: 120_000 });
+    await page.getByRole('tab', { name: 'Bands' }).click();
+    await page.getByTestId('band-table').waitFor();
+    const sites = await page.getByTestId('band-chart').evaluateAll((charts) => charts.map((c) => c.getAttribute('data-site')));
+    expect(sites).toHaveLength(1);
+    expect(other.channels).toContain(sites[0]);
+    expect(await page.getByTestId('band-sites').evaluate((s: HTMLSelectElement) => Array.from(s.selectedOptions, (o) => o.value))).toEqual(sites);
+  });
 });

@@ -51,12 +51,6 @@ export const PENDING_SCREEN_IMPORTS: readonly { file: string; module: string }[]
   { file: 'src/components/explorer/map-model.ts', module: 'src/lib/analysis/baseline' },
   { file: 'src/components/explorer/map-model.ts', module: 'src/lib/analysis/renormalize' },
   { file: 'src/components/explorer/map-model.ts', module: 'src/lib/analysis/edge-zone' },
-  { file: 'src/components/source/ChannelsPanel.tsx', module: 'src/lib/analysis/channel-types' },
-  { file: 'src/components/source/OverviewTrace.tsx', module: 'src/lib/analysis/epochs' },
-  { file: 'src/components/source/RejectionPanel.tsx', module: 'src/lib/analysis/rejection' },
-  { file: 'src/components/source/RejectionPanel.tsx', module: 'src/lib/analysis/channel-types' },
-  { file: 'src/components/source/ConditionsPanel.tsx', module: 'src/lib/analysis/conditions' },
-  { file: 'src/components/workspace/RecipeScreen.tsx', module: 'src/lib/analysis/condition-recording' },
 ];
 
 /** TEMPORARY: any other known upward import awaiting its fix (none today). Same staleness rule as above. */

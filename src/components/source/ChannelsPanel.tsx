@@ -1,7 +1,8 @@
 import { useMemo } from 'react';
-import { CHANNEL_TYPES, isBrainType, resolveChannels, type ChannelType } from '../../lib/analysis/channel-types';
+import { CHANNEL_TYPES, type ChannelType } from '../../lib/analysis/channel-types';
 import type { Recording } from '../../lib/analysis/recording';
 import type { ConditioningSettings } from '../../lib/client/workspace/source-rules';
+import { badWith, channelsView, typesWith } from '../../lib/client/workspace/source-panels';
 import FiltersPanel from './FiltersPanel';
 import ReferencePanel from './ReferencePanel';
 
@@ -30,19 +31,7 @@ interface Props {
  * channel bad. Brain channels are analysed, referenced and checked for rejection; the others only when named.
  */
 export default function ChannelsPanel({ recording, conditioning, onChange, problem }: Props) {
-  const inferred = useMemo(() => resolveChannels(recording, undefined), [recording]);
-  const typeOf = (name: string, c: number): ChannelType => conditioning.types[name] ?? inferred.types[c];
-  const setType = (name: string, c: number, type: ChannelType) => {
-    const types = { ...conditioning.types };
-    if (type === inferred.types[c]) delete types[name];
-    else types[name] = type;
-    onChange({ types });
-  };
-  const setBad = (name: string, bad: boolean) => onChange({ bad: bad ? [...conditioning.bad.filter((n) => n !== name), name] : conditioning.bad.filter((n) => n !== name) });
-  const analysed = recording.channelNames.filter((n, c) => isBrainType(typeOf(n, c)) && !conditioning.bad.includes(n)).length;
-  const good = recording.channelNames.map((n, c) => ({ n, c })).filter(({ n }) => !conditioning.bad.includes(n));
-  const electrodes = good.filter(({ c }) => inferred.units[c] === 'µV').map(({ n }) => n);
-  const intracranial = good.filter(({ n, c }) => typeOf(n, c) === 'intracranial').map(({ n }) => n);
+  const { rows, analysed, electrodes, intracranial } = useMemo(() => channelsView(recording, conditioning), [recording, conditioning]);
   return (
     <div className="grid gap-2">
       <p className="text-sm text-ink-soft" data-testid="channels-summary">
@@ -60,29 +49,25 @@ export default function ChannelsPanel({ recording, conditioning, onChange, probl
             </tr>
           </thead>
           <tbody>
-            {recording.channelNames.map((name, c) => {
-              const type = typeOf(name, c);
-              const bad = conditioning.bad.includes(name);
-              return (
-                <tr key={name} data-testid="channel-row" data-channel={name} data-type={type} data-bad={bad ? 'yes' : 'no'}>
-                  <td className="pr-3 font-mono">{name}</td>
-                  <td className="pr-3">
-                    <select aria-label={`Type of ${name}`} value={type} onChange={(e) => setType(name, c, e.target.value as ChannelType)}>
-                      {CHANNEL_TYPES.map((t) => (
-                        <option key={t} value={t}>
-                          {TYPE_WORDS[t]}
-                          {t === inferred.types[c] ? ' (from the file)' : ''}
-                        </option>
-                      ))}
-                    </select>
-                  </td>
-                  <td className="pr-3 font-mono">{inferred.units[c]}</td>
-                  <td>
-                    <input type="checkbox" aria-label={`${name} is bad`} checked={bad} onChange={(e) => setBad(name, e.target.checked)} />
-                  </td>
-                </tr>
-              );
-            })}
+            {rows.map(({ name, type, fromFile, unit, bad }) => (
+              <tr key={name} data-testid="channel-row" data-channel={name} data-type={type} data-bad={bad ? 'yes' : 'no'}>
+                <td className="pr-3 font-mono">{name}</td>
+                <td className="pr-3">
+                  <select aria-label={`Type of ${name}`} value={type} onChange={(e) => onChange({ types: typesWith(recording, conditioning, name, e.target.value as ChannelType) })}>
+                    {CHANNEL_TYPES.map((t) => (
+                      <option key={t} value={t}>
+                        {TYPE_WORDS[t]}
+                        {t === fromFile ? ' (from the file)' : ''}
+                      </option>
+                    ))}
+                  </select>
+                </td>
+                <td className="pr-3 font-mono">{unit}</td>
+                <td>
+                  <input type="checkbox" aria-label={`${name} is bad`} checked={bad} onChange={(e) => onChange({ bad: badWith(conditioning, name, e.target.checked) })} />
+                </td>
+              </tr>
+            ))}
           </tbody>
         </table>
       </div>

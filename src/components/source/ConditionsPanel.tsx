@@ -1,7 +1,7 @@
 import { useEffect, useId, useMemo, useState } from 'react';
-import { countLabels } from '../../lib/analysis/conditions';
 import type { Recording } from '../../lib/analysis/recording';
 import type { Condition } from '../../lib/client/workspace/source-rules';
+import { labelCounts } from '../../lib/client/workspace/source-panels';
 
 interface Props {
   recording: Recording;
@@ -14,7 +14,7 @@ interface Props {
 
 /** Event labels with counts; tick one or several and name them as a condition. Then the epoch window. */
 export default function ConditionsPanel({ recording, conditions, epochWindow, settingsError, onConditions, onWindow }: Props) {
-  const labels = useMemo(() => countLabels(recording.events), [recording]);
+  const labels = useMemo(() => labelCounts(recording), [recording]);
   const [ticked, setTicked] = useState<Set<string>>(new Set());
   const [name, setName] = useState('');
   const [problem, setProblem] = useState<string | null>(null);

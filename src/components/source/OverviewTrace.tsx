@@ -1,8 +1,7 @@
 import { useEffect, useId, useMemo, useRef, useState } from 'react';
-import { epochLength } from '../../lib/analysis/epochs';
 import type { Recording } from '../../lib/analysis/recording';
-import { roundHalfUp } from '../../lib/analysis/rounding';
 import type { EpochDecision } from '../../lib/client/workspace/source-rules';
+import { epochSpans } from '../../lib/client/workspace/source-panels';
 import { drawOverview, envelope, type OverviewSpan } from './overview-draw';
 
 interface Props {
@@ -45,15 +44,7 @@ export default function OverviewTrace({ recording, decisions, epochWindow, chann
     return () => observer.disconnect();
   }, []);
 
-  const spans = useMemo<OverviewSpan[]>(() => {
-    const fs = recording.sampleRateHz;
-    const length = epochLength(epochWindow.start, epochWindow.end, fs);
-    const offset = roundHalfUp(epochWindow.start * fs);
-    return decisions.map((d) => {
-      const start = roundHalfUp(d.onsetSeconds * fs) + offset;
-      return { startSample: start, endSample: start + length, rejected: d.rejected, selected: d.eventIndex === selectedEvent };
-    });
-  }, [decisions, epochWindow, recording, selectedEvent]);
+  const spans = useMemo<OverviewSpan[]>(() => epochSpans(recording, decisions, epochWindow, selectedEvent), [decisions, epochWindow, recording, selectedEvent]);
 
   const width = Math.round(widthCss * ratio);
   const height = Math.round(HEIGHT_CSS * ratio);

@@ -1,8 +1,8 @@
 import { useEffect, useId, useState } from 'react';
-import { tallyByCondition } from '../../lib/analysis/rejection';
 import type { Recording } from '../../lib/analysis/recording';
-import { isBrainType, resolveChannels, type ChannelType, type ChannelUnit } from '../../lib/analysis/channel-types';
+import type { ChannelType, ChannelUnit } from '../../lib/analysis/channel-types';
 import type { ConditioningSettings, EpochDecision, RejectionSettings } from '../../lib/client/workspace/source-rules';
+import { byTypeWith, conditionTally, rejectionTypes } from '../../lib/client/workspace/source-panels';
 import EpochTable from './EpochTable';
 
 interface Props {
@@ -102,13 +102,8 @@ function TypeLimits(props: { type: ChannelType; unit: ChannelUnit; limits: { pea
 export default function RejectionPanel({ recording, rejection, conditioning, decisions, overviewChannel, onRejection, onOverride, onSelect }: Props) {
   const id = useId();
   // The types the rules can meet: brain types (checked across channels) and the types of hand-picked channels.
-  const resolved = resolveChannels(recording, { types: conditioning.types });
-  const picked = new Set(rejection.scope === 'channel' ? rejection.channels ?? [] : []);
-  const present = new Map<ChannelType, ChannelUnit>();
-  recording.channelNames.forEach((n, c) => {
-    if (rejection.scope === 'channel' ? picked.has(n) : isBrainType(resolved.types[c])) present.set(resolved.types[c], resolved.units[c]);
-  });
-  const tally = tallyByCondition(decisions.map((d) => ({ condition: d.condition, rejected: d.rejected, fit: d.fit ?? 'fits' })));
+  const present = rejectionTypes(recording, conditioning, rejection);
+  const tally = conditionTally(decisions);
   const chosen = rejection.channels ?? [];
   return (
     <div className="grid gap-4">
@@ -163,7 +158,7 @@ export default function RejectionPanel({ recording, rejection, conditioning, dec
         )}
       </fieldset>
 
-      {present.size > 0 && (
+      {present.length > 0 && (
         <div className="grid gap-1 text-sm">
           <p className="font-semibold">Limits by channel type</p>
           <p className="text-xs text-ink-soft">In each type&apos;s own unit; empty uses the µV rules above for µV channels and leaves MEG unchecked.</p>
@@ -177,18 +172,13 @@ export default function RejectionPanel({ recording, rejection, conditioning, dec
               </tr>
             </thead>
             <tbody>
-              {[...present].map(([type, unit]) => (
+              {present.map(([type, unit]) => (
                 <TypeLimits
                   key={type}
                   type={type}
                   unit={unit}
                   limits={rejection.byType?.[type]}
-                  onChange={(l) => {
-                    const byType = { ...(rejection.byType ?? {}) };
-                    if (l === undefined) delete byType[type];
-                    else byType[type] = l;
-                    onRejection({ byType });
-                  }}
+                  onChange={(l) => onRejection({ byType: byTypeWith(rejection, type, l) })}
                 />
               ))}
             </tbody>

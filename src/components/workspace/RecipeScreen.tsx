@@ -1,32 +1,22 @@
-import { useMemo, useRef, useState } from 'react';
+import { useMemo } from 'react';
 import ResolutionTable from './ResolutionTable';
-import { isBrainType } from '../../lib/analysis/channel-types';
-import { conditionRecording } from '../../lib/analysis/condition-recording';
+import LoadRecipe from './LoadRecipe';
 import type { WorkspaceProps } from './types';
 import { decompositionKey, toRecipe, type CyclesMode } from '../../lib/client/workspace/recipe';
 import { cancelDecomposition, recordingIdOf, runDecomposition, useResultsStore } from '../../lib/client/workspace/results';
 import { useRecipeCheck } from '../../lib/client/workspace/recipe-check';
-import { conditioningSpec } from '../../lib/client/workspace/source-rules';
-import { applyRecipe } from '../../lib/client/workspace/apply-recipe';
+import { recipeChannelChoices } from '../../lib/client/workspace/source-panels';
+import { fieldGroup, shownUnderTheForm } from '../../lib/client/workspace/recipe-fields';
 import NumberField from '../explorer/NumberField';
 import { usePanelVisible } from '../explorer/usePanelVisible';
 import Choice from '../explorer/Choice';
 import RunProgress, { ComputedList } from '../explorer/RunProgress';
 import RecipeChannels from '../explorer/RecipeChannels';
+import RecipeConditions from '../explorer/RecipeConditions';
 import RecipeGroups, { groupProblems } from '../explorer/RecipeGroups';
 import { defaultGroupsFor } from '../../lib/client/workspace/channel-groups';
 import { useScreen } from '../../lib/client/workspace/navigation';
 import { useWorkspace } from '../../lib/client/workspace/store';
-
-/** Which input shows a core error for `field` (a dotted recipe path). */
-function fieldGroup(field: string): string {
-  if (field.startsWith('channels')) return 'channels';
-  if (field.startsWith('epochs.events')) return 'conditions';
-  if (field.startsWith('cycles')) return 'cycles';
-  if (field.startsWith('baseline')) return 'baseline';
-  if (field.startsWith('channelGroups')) return 'channelGroups';
-  return field;
-}
 
 /** The Recipe screen: the decomposition's parameters, validated against the open recording, and its run. */
 export default function RecipeScreen(_props: WorkspaceProps) {
@@ -44,8 +34,6 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const eventSelection = useWorkspace((s) => s.eventSelection);
   const fitRange = useWorkspace((s) => s.fitRange);
   const setView = useWorkspace((s) => s.set);
-  const fileInput = useRef<HTMLInputElement>(null);
-  const [loaded, setLoaded] = useState<{ ok: boolean; text: string } | null>(null);
   const settingsError = useWorkspace((s) => s.settingsError);
   const baseline = useWorkspace((s) => s.baseline);
   const method = useWorkspace((s) => s.method);
@@ -57,7 +45,6 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   // Hidden, the screen skips validation: the baseline it reads changes on every drag of the Maps screen.
   const visible = usePanelVisible('Recipe');
 
-  const conditionNames = conditions.map((c) => c.name);
   const recipe = toRecipe({ draft, conditions, epochWindow, rejection, conditioning, eventSelection, fingerprint, local: { reading: reading ?? undefined }, baseline, method, scope, spread, fitRange });
   // The whole recording goes to the core with the full recipe: prepareRecording applies conditions and rejection there.
   const analysis = recording;
@@ -98,30 +85,10 @@ export default function RecipeScreen(_props: WorkspaceProps) {
     { value: 'fwhm', label: 'FWHM (s)' },
   ];
   // The channels a recipe can name: the recording as conditioned (bad ones out, bipolar pairs in), brain ones first.
-  const conditioned = (() => {
-    try {
-      return conditionRecording(recording, conditioningSpec(conditioning)).recording;
-    } catch {
-      return null;
-    }
-  })();
-  const candidates = conditioned?.channelNames ?? recording.channelNames;
-  const brain = conditioned === null ? candidates : candidates.filter((_, c) => isBrainType(conditioned.channelTypes[c]));
+  const { candidates, brain } = recipeChannelChoices(recording, conditioning);
   const analysed = draft.channels.length > 0 ? draft.channels : brain;
   const localGroupProblems = draft.channelGroups ? groupProblems(draft.channelGroups) : [];
   const fs = recording.sampleRateHz;
-  const loadFile = async (file: File) => {
-    let json: unknown;
-    try {
-      json = JSON.parse(await file.text());
-    } catch (error) {
-      setLoaded({ ok: false, text: `${file.name} is not valid JSON (${error instanceof Error ? error.message : String(error)}); nothing was changed.` });
-      return;
-    }
-    const outcome = applyRecipe(json, recording, fingerprint, reading);
-    if (outcome.ok) setLoaded({ ok: true, text: [`Loaded ${file.name}.`, ...outcome.notices].join(' ') });
-    else setLoaded({ ok: false, text: `${file.name}: ${outcome.message}; nothing was changed.` });
-  };
 
   return (
     <form
@@ -132,30 +99,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
         if (!running && check === null && localGroupProblems.length === 0) start();
       }}
     >
-      <div className="card flex flex-wrap items-center gap-3 p-3">
-        <button type="button" className="rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale" onClick={() => fileInput.current?.click()} data-testid="load-recipe">
-          Load recipe JSON
-        </button>
-        <input
-          ref={fileInput}
-          type="file"
-          accept="application/json,.json"
-          className="sr-only"
-          aria-label="Recipe JSON file"
-          data-testid="load-recipe-file"
-          onChange={(e) => {
-            const file = e.target.files?.[0];
-            e.target.value = '';
-            if (file !== undefined) void loadFile(file);
-          }}
-        />
-        <span className="text-xs text-ink-soft">sets conditions, epochs, rejection, frequencies, wavelets, baseline, spectrum and fit from an exported recipe</span>
-        {loaded !== null && (
-          <p className={`basis-full text-sm ${loaded.ok ? 'text-kelp-deep' : 'text-coral-deep'}`} role={loaded.ok ? 'status' : 'alert'} data-testid="load-recipe-message">
-            {loaded.text}
-          </p>
-        )}
-      </div>
+      <LoadRecipe />
       <fieldset className="card flex flex-wrap items-end gap-4 p-3">
         <legend className="px-1 text-sm font-semibold">Frequencies</legend>
         <NumberField label="Lowest" unit="Hz" value={draft.frequencies.min} step={0.5} testId="recipe-fmin" error={errorFor('frequencies.min')} onValue={(v) => setDraft({ frequencies: { ...draft.frequencies, min: v } })} />
@@ -194,32 +138,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
             {settingsError}
           </p>
         )}
-        <div className="flex flex-wrap gap-3">
-          {conditions.map((c) => {
-            const on = draft.conditions.length === 0 || draft.conditions.includes(c.name);
-            const kept = decisions.filter((x) => x.condition === c.name && !x.rejected).length;
-            return (
-              <label key={c.name} className="flex items-center gap-1 text-sm">
-                <input
-                  type="checkbox"
-                  checked={on}
-                  onChange={() => {
-                    const current = draft.conditions.length === 0 ? conditionNames : draft.conditions;
-                    const next = on ? current.filter((n) => n !== c.name) : [...current, c.name];
-                    setDraft({ conditions: next.length === conditionNames.length ? [] : next });
-                  }}
-                />
-                {c.name} <span className="text-ink-soft">({kept} kept)</span>
-              </label>
-            );
-          })}
-          {conditions.length === 0 && <span className="text-sm text-coral-deep">No conditions defined yet.</span>}
-        </div>
-        {errorFor('conditions') && (
-          <p className="text-sm text-coral-deep" role="alert">
-            {errorFor('conditions')}
-          </p>
-        )}
+        <RecipeConditions conditions={conditions} chosen={draft.conditions} decisions={decisions} error={errorFor('conditions')} onChoose={(c) => setDraft({ conditions: c })} />
       </fieldset>
       <RecipeChannels chosen={draft.channels} candidates={candidates} brain={brain} error={errorFor('channels')} onChoose={(channels) => setDraft({ channels })} />
       <fieldset className="card flex flex-wrap items-end gap-4 p-3">
@@ -263,7 +182,7 @@ export default function RecipeScreen(_props: WorkspaceProps) {
           baseline {errorFor('baseline')} (set it on the Maps screen)
         </p>
       )}
-      {check !== null && !['frequencies.min', 'frequencies.max', 'frequencies.count', 'cycles', 'conditions', 'channels', 'epochs.start', 'epochs.end', 'spectrum.segment', 'spectrum.overlap', 'aperiodic.range', 'baseline', 'channelGroups', 'trialPower'].includes(check.field) && (
+      {check !== null && shownUnderTheForm(check.field) && (
         <p className="text-sm text-coral-deep" role="alert">
           {check.message}
         </p>

@@ -106,3 +106,20 @@ export function applyRecipe(
   }
   return { ok: true, notices };
 }
+
+/**
+ * The Recipe screen's "Load recipe JSON": parses file `fileName`'s text and applies it to the open recording
+ * (`applyRecipe`); the line to show says what was loaded, or what is wrong and that nothing was changed.
+ */
+export function loadRecipeText(fileName: string, text: string): { ok: boolean; text: string } {
+  const { recording, fingerprint, local } = useWorkspace.getState();
+  if (recording === null) return { ok: false, text: `${fileName}: open a recording first; nothing was changed.` };
+  let json: unknown;
+  try {
+    json = JSON.parse(text);
+  } catch (error) {
+    return { ok: false, text: `${fileName} is not valid JSON (${error instanceof Error ? error.message : String(error)}); nothing was changed.` };
+  }
+  const outcome = applyRecipe(json, recording, fingerprint, local?.reading ?? null);
+  return outcome.ok ? { ok: true, text: [`Loaded ${fileName}.`, ...outcome.notices].join(' ') } : { ok: false, text: `${fileName}: ${outcome.message}; nothing was changed.` };
+}
