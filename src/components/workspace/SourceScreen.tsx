@@ -74,6 +74,8 @@ export default function SourceScreen(props: WorkspaceProps) {
   const recording = useWorkspace((s) => s.recording);
   const local = useWorkspace((s) => s.local);
   const fingerprint = useWorkspace((s) => s.fingerprint);
+  // Which opening is shown: a large file's fingerprint arrives after it is on screen, so panels key on this.
+  const opening = useWorkspace((s) => s.openCount);
   const conditions = useWorkspace((s) => s.conditions);
   const epochWindow = useWorkspace((s) => s.epochWindow);
   const rejection = useWorkspace((s) => s.rejection);
@@ -96,11 +98,11 @@ export default function SourceScreen(props: WorkspaceProps) {
   // Which steps are folded, for the recording that is open. A new recording starts from the defaults: Channels is
   // folded when every channel has one type as read from the file (nothing to sort out), open otherwise; a problem
   // with channels, reference or filters always opens it.
-  const [foldedBy, setFoldedBy] = useState<{ fingerprint: string | null; steps: ReadonlySet<SourceStepId> }>({ fingerprint: null, steps: new Set() });
+  const [foldedBy, setFoldedBy] = useState<{ opening: number; steps: ReadonlySet<SourceStepId> }>({ opening: -1, steps: new Set() });
   const channelProblem = settingsError !== null && /^(signals|reference|filters)/.test(settingsError) ? settingsError : null;
-  const chosenFolds = foldedBy.fingerprint === fingerprint ? foldedBy.steps : defaultFolds(recording);
+  const chosenFolds = foldedBy.opening === opening ? foldedBy.steps : defaultFolds(recording);
   const folded: ReadonlySet<SourceStepId> = channelProblem === null ? chosenFolds : new Set([...chosenFolds].filter((s) => s !== 'channels'));
-  const setFolded = (steps: ReadonlySet<SourceStepId>) => setFoldedBy({ fingerprint, steps });
+  const setFolded = (steps: ReadonlySet<SourceStepId>) => setFoldedBy({ opening, steps });
   const fold = (step: SourceStepId, folding: boolean) => {
     const next = new Set(folded);
     if (folding) next.add(step);
@@ -138,7 +140,11 @@ export default function SourceScreen(props: WorkspaceProps) {
         setOverviewChannel(outcome.channels[0] ?? '');
         setSelectedEvent(null);
         setLibraryNotice(outcome.libraryNotice);
-        setLibraryVersion((v) => v + 1);
+        // A large file is kept once its fingerprint is known, after it is already on screen.
+        void outcome.kept.then((notice) => {
+          if (notice !== null) setLibraryNotice(notice);
+          setLibraryVersion((v) => v + 1);
+        });
       } catch (error) {
         refuse(fileName, `reading stopped unexpectedly: ${error instanceof Error ? error.message : String(error)}`);
       } finally {
@@ -227,7 +233,7 @@ export default function SourceScreen(props: WorkspaceProps) {
         </section>
       </div>
 
-      {recording && local && fingerprint ? (
+      {recording && local ? (
         <>
           <SourceSteps titles={STEP_TITLES} digests={digests} folded={folded} onGo={goTo} onFoldAll={(fold) => setFolded(new Set(fold ? SOURCE_STEPS : []))} />
           <div className="grid items-start gap-6 lg:grid-cols-2">
@@ -245,9 +251,9 @@ export default function SourceScreen(props: WorkspaceProps) {
               </SourceStep>
             </div>
             <SourceStep step="events" title={STEP_TITLES.events} digest={digests.events} open={!folded.has('events')} onToggle={(o) => fold('events', !o)}>
-              {local.eventTable && <EventTablePanel key={`${fingerprint}|${local.eventTable.header.join('\t')}`} header={local.eventTable.header} selection={eventSelection} onApply={(s) => store().setEventSelection(s)} />}
+              {local.eventTable && <EventTablePanel key={`${opening}|${local.eventTable.header.join('\t')}`} header={local.eventTable.header} selection={eventSelection} onApply={(s) => store().setEventSelection(s)} />}
               <ConditionsPanel
-                key={fingerprint}
+                key={opening}
                 recording={recording}
                 conditions={conditions}
                 epochWindow={epochWindow}

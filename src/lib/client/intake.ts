@@ -24,26 +24,57 @@ function hashWorker(): Comlink.Remote<IntakeWorker> {
   return hasher.remote;
 }
 
+let hashPending = false;
+
+function stopHashWorker(): void {
+  hasher?.worker.terminate();
+  hasher = null;
+  hashPending = false;
+}
+
 /**
  * EDF files above this size are hashed in a second worker while the first decodes them (both read the File slice
- * by slice, so neither holds it whole). Below it the intake worker hashes in one Web Crypto call first.
+ * by slice, so neither holds it whole), and the recording is handed over as soon as it is decoded: its fingerprint
+ * follows (`OpenedFile.fingerprint` is then a promise). Below it the intake worker hashes in one Web Crypto call first.
  */
 export const PARALLEL_FINGERPRINT_BYTES = 64 * 1024 * 1024;
+
+/**
+ * A seam for the demo/test build's browser hooks only (src/components/explorer/test-hooks.ts): hash files from
+ * `fromBytes` on after decoding, and hold each late fingerprint until `held` settles, so a test sees the workspace
+ * while the fingerprint is still unknown. Production code reads it only behind `import.meta.env.TIDEMARK_DEMO`.
+ */
+export const lateFingerprintSeam: { fromBytes: number; held: Promise<void> | null } = { fromBytes: PARALLEL_FINGERPRINT_BYTES, held: null };
 
 export type ProgressListener = (phase: IntakePhase, fraction: number) => void;
 
 /** An EDF may carry reading choices: unit factors for dimensions the reader does not know, signals to leave out. */
 export type RecordingKind = ({ kind: 'edf' } & EdfReading) | ({ kind: 'csv' } & CsvRequest);
 
-/** Reads a recording file in the worker; the File is passed by reference and read there through Blob.slice. */
-export async function openRecordingFile(file: Blob, kind: RecordingKind, onProgress: ProgressListener, edfEvents: Blob | null = null): Promise<IntakeResult> {
+type Opened = Extract<IntakeResult, { ok: true }>;
+
+/**
+ * A file as the workspace gets it: decoded, with its fingerprint either known or still being computed (a promise
+ * that rejects with the reason when the file cannot be hashed; the recording stays usable without it).
+ */
+export type OpenedFile = Extract<IntakeResult, { ok: false }> | (Omit<Opened, 'fingerprint'> & { fingerprint: string | Promise<string> });
+
+/**
+ * Reads a recording file in the worker; the File is passed by reference and read there through Blob.slice. For a
+ * large EDF, `onProgress` reports the reading, then (after this returns) the hashing that is left, as 'fingerprint'.
+ */
+export async function openRecordingFile(file: Blob, kind: RecordingKind, onProgress: ProgressListener, edfEvents: Blob | null = null): Promise<OpenedFile> {
   const remote = intakeWorker();
   if (kind.kind !== 'edf') {
     return remote.openCsv(file, { sampleRateHz: kind.sampleRateHz, delimiter: kind.delimiter, events: kind.events }, Comlink.proxy(onProgress));
   }
   const reading = { unitFactors: kind.unitFactors, exclude: kind.exclude };
-  if (file.size <= PARALLEL_FINGERPRINT_BYTES) return remote.openEdf(file, reading, Comlink.proxy(onProgress), edfEvents);
-  // Large file: decode and hash side by side. Progress shows the reading, then whatever hashing is left.
+  const later = import.meta.env.TIDEMARK_DEMO ? lateFingerprintSeam.fromBytes : PARALLEL_FINGERPRINT_BYTES;
+  if (file.size <= later) return remote.openEdf(file, reading, Comlink.proxy(onProgress), edfEvents);
+  // Large file: decode and hash side by side. Progress shows the reading, then whatever hashing is left. A hash
+  // still running for the file opened before is of no use any more (that recording is being replaced): stop it.
+  if (hashPending) stopHashWorker();
+  hashPending = true;
   let readingDone = false;
   const hashing = hashWorker().fingerprint(
     file,
@@ -51,7 +82,7 @@ export async function openRecordingFile(file: Blob, kind: RecordingKind, onProgr
       if (readingDone) onProgress('fingerprint', fraction);
     }),
   );
-  hashing.catch(() => undefined); // a failure is read below, once the decoding is done
+  hashing.catch(() => undefined).finally(() => (hashPending = false)); // a failure is the caller's, through the promise below
   const result = await remote.openEdf(
     file,
     reading,
@@ -64,16 +95,19 @@ export async function openRecordingFile(file: Blob, kind: RecordingKind, onProgr
   readingDone = true;
   if (!result.ok) {
     // Nothing to fingerprint: stop the hashing worker rather than let it read the whole file for nothing.
-    hasher?.worker.terminate();
-    hasher = null;
+    stopHashWorker();
     return result;
   }
-  try {
-    return { ...result, fingerprint: await hashing, fingerprintMethod: 'incremental' };
-  } catch (error) {
-    const message = `the SHA-256 fingerprint could not be computed: ${error instanceof Error ? error.message : String(error)}`;
-    return { ok: false, error: { file: 'recording', message, field: null, problem: message, byteOffset: null, signal: null, row: null, column: null, dimension: null } };
-  }
+  const fingerprint = hashing.then(
+    async (hex) => {
+      if (import.meta.env.TIDEMARK_DEMO && lateFingerprintSeam.held !== null) await lateFingerprintSeam.held;
+      return hex;
+    },
+    (error: unknown) => {
+      throw new Error(`the SHA-256 fingerprint could not be computed: ${error instanceof Error ? error.message : String(error)}`);
+    },
+  );
+  return { ...result, fingerprint, fingerprintMethod: 'incremental' };
 }
 
 /** What a file name says about its kind: EDF by extension, CSV/TSV sample matrices, BIDS events by their suffix. */
