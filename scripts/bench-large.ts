@@ -86,6 +86,24 @@ function memoryOf(pid: number): { rssKb: number; peakKb: number } | null {
   }
 }
 
+interface CpuProfile {
+  nodes: { id: number; callFrame: { functionName: string; url: string; lineNumber: number; columnNumber: number } }[];
+  samples: number[];
+  timeDeltas: number[];
+}
+
+/** The profile's functions by own (self) time, summed over their nodes: "1234 ms name file:line:col". */
+function topSelfTime(profile: CpuProfile, count: number): string[] {
+  const byNode = new Map(profile.nodes.map((n) => [n.id, n.callFrame]));
+  const self = new Map<string, number>();
+  profile.samples.forEach((id, i) => {
+    const f = byNode.get(id)!;
+    const key = `${f.functionName || '(anonymous)'} ${f.url.replace(/^.*\//, '')}:${f.lineNumber + 1}:${f.columnNumber + 1}`;
+    self.set(key, (self.get(key) ?? 0) + (profile.timeDeltas[i] ?? 0) / 1000);
+  });
+  return [...self.entries()].sort((a, b) => b[1] - a[1]).slice(0, count).map(([k, ms]) => `${ms.toFixed(0).padStart(6)} ms ${k}`);
+}
+
 const mb = (kb: number) => `${(kb / 1024).toFixed(0)} MB`;
 
 await runMain(async () => {
@@ -145,6 +163,7 @@ await runMain(async () => {
         const seen = () => {
           if (marks.header === undefined && document.querySelector('[data-testid="recording-details"]')) marks.header = performance.now();
           if (marks.events === undefined && document.querySelector('[data-testid="condition"]')) marks.events = performance.now();
+          if (marks.fingerprint === undefined && document.querySelector('[data-testid="fingerprint"]')) marks.fingerprint = performance.now();
           if (marks.overview === undefined && document.querySelector('canvas[aria-label^="Overview of"]')) {
             // The trace is drawn in the next animation frame after the canvas is there.
             marks.overview = -1;
@@ -166,6 +185,15 @@ await runMain(async () => {
           for (const e of list.getEntries()) { if (marks.chosen !== undefined) { marks.longTasks += e.duration; marks.longTaskCount++; } }
         }).observe({ type: 'longtask' });
       })()`);
+      // TIDEMARK_BENCH_PROFILE=<file.cpuprofile>: the page's main thread profiled from choosing the file to the
+      // overview (open it in Chromium's DevTools, Performance panel); the functions with the most own time are listed.
+      const profilePath = process.env.TIDEMARK_BENCH_PROFILE;
+      const profiler = profilePath ? await page.context().newCDPSession(page) : null;
+      if (profiler) {
+        await profiler.send('Profiler.enable');
+        await profiler.send('Profiler.setSamplingInterval', { interval: 500 });
+        await profiler.send('Profiler.start');
+      }
       t = performance.now();
       await page.getByLabel('Choose a recording file…').setInputFiles(rec.file);
       const marks = await (async () => {
@@ -178,6 +206,21 @@ await runMain(async () => {
           await new Promise((r) => setTimeout(r, 50));
         }
       })();
+      if (profiler) {
+        const { profile } = (await profiler.send('Profiler.stop')) as { profile: CpuProfile };
+        writeFileSync(profilePath!, JSON.stringify(profile));
+        console.log(`main-thread profile written to ${profilePath}; most own time:`);
+        for (const line of topSelfTime(profile, 12)) console.log(`  ${line}`);
+      }
+      // The fingerprint follows the overview (hashed in its own worker); the library keeps the file once it is known.
+      const fingerprintAt = await (async () => {
+        for (;;) {
+          const m = (await page.evaluate('window.__benchLarge')) as { fingerprint?: number };
+          if (m.fingerprint !== undefined) return m.fingerprint;
+          if (performance.now() - t > 600_000) throw new Error('the fingerprint did not arrive within 10 minutes');
+          await new Promise((r) => setTimeout(r, 100));
+        }
+      })();
       // Let the library finish keeping the file, so its cost shows in the peak too.
       await page.waitForTimeout(2000);
       const after = renderers.map((pid) => ({ pid, before: before.get(pid), now: memoryOf(pid) })).filter((r) => r.now !== null && r.before !== null && r.before !== undefined);
@@ -186,6 +229,7 @@ await runMain(async () => {
       const floatMb = (CHANNELS * rec.samplesPerChannel * 4) / 1e6;
       console.log(`large recording: ${(rec.bytes / 1e6).toFixed(0)} MB EDF+, ${CHANNELS} channels, ${rec.events} events; Chromium ${browser.version()}`);
       console.log(`time from choosing the file: header ${since(marks.header)}, events ${since(marks.events)}, overview ${since(marks.overview)} (target ≤ 5 s: ${Math.max(marks.header, marks.events, marks.overview) - marks.chosen <= 5000 ? 'met' : 'MISSED'})`);
+      console.log(`  fingerprint (SHA-256) shown at ${since(fingerprintAt)}`);
       console.log(`  progress line: ${marks.phases.map(([p, at]) => `${since(at)} ${p}`).join(' → ')}`);
       console.log(`  main thread: ${marks.longTaskCount} long tasks (> 50 ms) totalling ${(marks.longTasks / 1000).toFixed(2)} s while the file opened`);
       if (page0) {
