@@ -55,6 +55,7 @@ describe('a recording shown before its fingerprint is known', () => {
     expect(await page.getByTestId('saved-line').getAttribute('data-waiting')).toBe('fingerprint');
     expect(await page.getByTestId('library-entry').count()).toBe(0);
     await page.screenshot({ path: path.join(artifactsDir, 'late-fingerprint-pending.png') });
+    await details.screenshot({ path: path.join(artifactsDir, 'late-fingerprint-details.png') });
 
     // An edit while the fingerprint is unknown: it waits (nothing can be saved without the key).
     const first = Number(await page.getByTestId('epoch-row').first().getAttribute('data-event-index'));

@@ -33,10 +33,12 @@ function FingerprintValue({ fingerprint }: { fingerprint: string | null }) {
   }
   const percent = Math.floor((wait?.fraction ?? 0) * 100);
   return (
-    <span className="flex items-center gap-2 text-xs text-ink-soft" role="status" data-testid="fingerprint-pending">
-      <label htmlFor="fingerprint-progress">fingerprint … {percent} %</label>
+    <span className="flex flex-wrap items-center gap-x-2 gap-y-1 text-xs text-ink-soft" role="status" data-testid="fingerprint-pending">
+      <label htmlFor="fingerprint-progress" className="whitespace-nowrap font-mono">
+        fingerprint … {percent} %
+      </label>
       <progress id="fingerprint-progress" max={100} value={percent} className="h-1.5 w-24" />
-      <span>the workspace is kept in this browser, and a session can start, once it is known</span>
+      <span className="basis-full">The workspace is kept in this browser, and a session can start, once it is known.</span>
     </span>
   );
 }
