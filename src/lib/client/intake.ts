@@ -24,13 +24,8 @@ function hashWorker(): Comlink.Remote<IntakeWorker> {
   return hasher.remote;
 }
 
-let hashPending = false;
-
-function stopHashWorker(): void {
-  hasher?.worker.terminate();
-  hasher = null;
-  hashPending = false;
-}
+/** Hashes running in the hashing worker (one per large file whose fingerprint is still to come). */
+let hashesRunning = 0;
 
 /**
  * EDF files above this size are hashed in a second worker while the first decodes them (both read the File slice
@@ -72,9 +67,8 @@ export async function openRecordingFile(file: Blob, kind: RecordingKind, onProgr
   const later = import.meta.env.TIDEMARK_DEMO ? lateFingerprintSeam.fromBytes : PARALLEL_FINGERPRINT_BYTES;
   if (file.size <= later) return remote.openEdf(file, reading, Comlink.proxy(onProgress), edfEvents);
   // Large file: decode and hash side by side. Progress shows the reading, then whatever hashing is left. A hash
-  // still running for the file opened before is of no use any more (that recording is being replaced): stop it.
-  if (hashPending) stopHashWorker();
-  hashPending = true;
+  // still running for the file open before goes on (it is queued in the same worker): should this file fail, that
+  // recording stays open and still needs its fingerprint.
   let readingDone = false;
   const hashing = hashWorker().fingerprint(
     file,
@@ -82,7 +76,9 @@ export async function openRecordingFile(file: Blob, kind: RecordingKind, onProgr
       if (readingDone) onProgress('fingerprint', fraction);
     }),
   );
-  hashing.catch(() => undefined).finally(() => (hashPending = false)); // a failure is the caller's, through the promise below
+  hashesRunning++;
+  // A failure is the caller's, through the promise handed over below.
+  hashing.catch(() => undefined).finally(() => hashesRunning--);
   const result = await remote.openEdf(
     file,
     reading,
@@ -94,8 +90,13 @@ export async function openRecordingFile(file: Blob, kind: RecordingKind, onProgr
   );
   readingDone = true;
   if (!result.ok) {
-    // Nothing to fingerprint: stop the hashing worker rather than let it read the whole file for nothing.
-    stopHashWorker();
+    // Nothing to fingerprint: stop the hashing worker rather than let it read the whole file for nothing (unless it
+    // also hashes the recording still open, whose fingerprint is still to come).
+    if (hashesRunning === 1) {
+      hasher?.worker.terminate();
+      hasher = null;
+      hashesRunning = 0;
+    }
     return result;
   }
   const fingerprint = hashing.then(
