@@ -16,6 +16,10 @@ import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { writeEdf, type EdfWriteAnnotation, type EdfWriteSignal } from '../src/lib/formats/edf-writer';
+import { bytesSource } from '../src/lib/formats/byte-source';
+import { openEdf, toRecording } from '../src/lib/formats/edf-reader';
+import { Sha256 } from '../src/lib/formats/fingerprint';
+import { conditionsPerLabel, decideEpochs, defaultConditioning, defaultRejection } from '../src/lib/client/workspace/source-rules';
 import {
   assertPortFree, buildIfStale, ensureNodeModules, log, migrate, onSignals, outDir, requireChromium, root, runMain, seed,
   startChild, startCluster, stopAll,
@@ -33,7 +37,7 @@ process.env.TIDEMARK_OUT_DIR = `dist-${SLOT}`;
 process.env.TIDEMARK_BUILD = 'demo';
 
 /** Writes the benchmark recording; returns its path, size and sample count per channel. */
-function writeRecording(folder: string): { file: string; bytes: number; samplesPerChannel: number; events: number } {
+async function writeRecording(folder: string): Promise<{ file: string; bytes: number; samplesPerChannel: number; events: number; core: string }> {
   // One record = 1 s: 64 × 512 int16 samples plus the annotation signal.
   const recordBytes = CHANNELS * FS * 2;
   const records = Math.max(10, Math.floor((TARGET_MB * 1e6) / (recordBytes + 64)));
@@ -72,7 +76,27 @@ function writeRecording(folder: string): { file: string; bytes: number; samplesP
   });
   const file = path.join(folder, 'harbour-lights-large.edf');
   writeFileSync(file, bytes);
-  return { file, bytes: bytes.length, samplesPerChannel: n, events: annotations.length };
+  return { file, bytes: bytes.length, samplesPerChannel: n, events: annotations.length, core: await coreCpu(bytes) };
+}
+
+/**
+ * CPU time of the page's three steps on this file, run here in Node with the same code (the figure to compare across
+ * loads and machines): decoding (the intake worker), the SHA-256 (the hashing worker), the epoch decisions (main thread).
+ */
+async function coreCpu(bytes: Uint8Array): Promise<string> {
+  const cpu = async <T>(work: () => T | Promise<T>): Promise<{ value: T; seconds: number }> => {
+    const start = process.cpuUsage();
+    const value = await work();
+    const used = process.cpuUsage(start);
+    return { value, seconds: (used.user + used.system) / 1e6 };
+  };
+  const decoded = await cpu(() => openEdf(bytesSource(bytes)));
+  const hashed = await cpu(() => new Sha256().update(bytes).hex());
+  const recording = toRecording(decoded.value);
+  const decided = await cpu(() =>
+    decideEpochs({ recording, conditions: conditionsPerLabel(recording.events), epochWindow: { start: -1, end: 2 }, rejection: defaultRejection, conditioning: defaultConditioning }),
+  );
+  return `decode ${decoded.seconds.toFixed(2)} s, SHA-256 ${hashed.seconds.toFixed(2)} s, epoch decisions ${decided.seconds.toFixed(2)} s (${decided.value.decisions.length} epochs)`;
 }
 
 /** Resident set and its peak (kB) of a process, from /proc. */
@@ -119,7 +143,7 @@ await runMain(async () => {
     await assertPortFree(APP_PORT, 'the bench app');
     await assertPortFree(SMTP_PORT, 'the bench mail fake');
     let t = performance.now();
-    const rec = writeRecording(folder);
+    const rec = await writeRecording(folder);
     log(`wrote ${(rec.bytes / 1e6).toFixed(0)} MB EDF+ (${CHANNELS} channels × ${rec.samplesPerChannel} samples at ${FS} Hz, ${rec.events} events) in ${((performance.now() - t) / 1000).toFixed(1)} s`);
 
     const cluster = await startCluster({ name: `pg-test-${SLOT}`, port: PG_PORT, fastAndLoose: true });
@@ -228,6 +252,7 @@ await runMain(async () => {
       const since = (x: number) => `${((x - marks.chosen) / 1000).toFixed(2)} s`;
       const floatMb = (CHANNELS * rec.samplesPerChannel * 4) / 1e6;
       console.log(`large recording: ${(rec.bytes / 1e6).toFixed(0)} MB EDF+, ${CHANNELS} channels, ${rec.events} events; Chromium ${browser.version()}`);
+      console.log(`CPU time of the same steps in Node (one thread each): ${rec.core}`);
       console.log(`time from choosing the file: header ${since(marks.header)}, events ${since(marks.events)}, overview ${since(marks.overview)} (target ≤ 5 s: ${Math.max(marks.header, marks.events, marks.overview) - marks.chosen <= 5000 ? 'met' : 'MISSED'})`);
       console.log(`  fingerprint (SHA-256) shown at ${since(fingerprintAt)}`);
       console.log(`  progress line: ${marks.phases.map(([p, at]) => `${since(at)} ${p}`).join(' → ')}`);

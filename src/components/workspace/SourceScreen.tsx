@@ -120,7 +120,7 @@ export default function SourceScreen(props: WorkspaceProps) {
 
   const open = useCallback(
     async (blob: Blob, fileName: string, kind: RecordingKind, from: Origin, events: { blob: Blob; name: string; pairing?: boolean } | null = null, demoCode?: string) => {
-      setBusy({ fileName, phase: 'fingerprint', fraction: 0 });
+      setBusy({ fileName, phase: 'reading', fraction: 0 });
       setLibraryNotice(null);
       setProblem(null);
       lastAttempt.current = { blob, fileName, kind, from, events, demoCode };
