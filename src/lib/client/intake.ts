@@ -24,8 +24,6 @@ function hashWorker(): Comlink.Remote<IntakeWorker> {
   return hasher.remote;
 }
 
-/** Hashes running in the hashing worker (one per large file whose fingerprint is still to come). */
-let hashesRunning = 0;
 
 /**
  * EDF files above this size are hashed in a second worker while the first decodes them (both read the File slice
@@ -66,39 +64,12 @@ export async function openRecordingFile(file: Blob, kind: RecordingKind, onProgr
   const reading = { unitFactors: kind.unitFactors, exclude: kind.exclude };
   const later = import.meta.env.TIDEMARK_DEMO ? lateFingerprintSeam.fromBytes : PARALLEL_FINGERPRINT_BYTES;
   if (file.size <= later) return remote.openEdf(file, reading, Comlink.proxy(onProgress), edfEvents);
-  // Large file: decode and hash side by side. Progress shows the reading, then whatever hashing is left. A hash
-  // still running for the file open before goes on (it is queued in the same worker): should this file fail, that
-  // recording stays open and still needs its fingerprint.
-  let readingDone = false;
-  const hashing = hashWorker().fingerprint(
-    file,
-    Comlink.proxy((fraction: number) => {
-      if (readingDone) onProgress('fingerprint', fraction);
-    }),
-  );
-  hashesRunning++;
-  // A failure is the caller's, through the promise handed over below.
-  hashing.catch(() => undefined).finally(() => hashesRunning--);
-  const result = await remote.openEdf(
-    file,
-    reading,
-    Comlink.proxy((phase: IntakePhase, fraction: number) => {
-      if (!readingDone) onProgress(phase, fraction);
-    }),
-    edfEvents,
-    'elsewhere',
-  );
-  readingDone = true;
-  if (!result.ok) {
-    // Nothing to fingerprint: stop the hashing worker rather than let it read the whole file for nothing (unless it
-    // also hashes the recording still open, whose fingerprint is still to come).
-    if (hashesRunning === 1) {
-      hasher?.worker.terminate();
-      hasher = null;
-      hashesRunning = 0;
-    }
-    return result;
-  }
+  // Large file: decoded first, on its own, so it is on screen soonest; then hashed in a second worker while the
+  // person already works on it (both read the File slice by slice). A hash still running for the file open before
+  // goes on in that worker: should this file fail, that recording stays open and still needs its fingerprint.
+  const result = await remote.openEdf(file, reading, Comlink.proxy(onProgress), edfEvents, 'elsewhere');
+  if (!result.ok) return result;
+  const hashing = hashWorker().fingerprint(file, Comlink.proxy((fraction: number) => onProgress('fingerprint', fraction)));
   const fingerprint = hashing.then(
     async (hex) => {
       if (import.meta.env.TIDEMARK_DEMO && lateFingerprintSeam.held !== null) await lateFingerprintSeam.held;
