@@ -15,7 +15,7 @@ function intakeWorker(): Comlink.Remote<IntakeWorker> {
   return worker;
 }
 
-/** A second instance of the intake worker that only hashes, so a large file is decoded and hashed at once. */
+/** A second instance of the intake worker that only hashes, so a large file's hashing never holds up the next decode. */
 function hashWorker(): Comlink.Remote<IntakeWorker> {
   if (hasher === null) {
     const w = startIntakeWorker();
@@ -26,9 +26,9 @@ function hashWorker(): Comlink.Remote<IntakeWorker> {
 
 
 /**
- * EDF files above this size are hashed in a second worker while the first decodes them (both read the File slice
- * by slice, so neither holds it whole), and the recording is handed over as soon as it is decoded: its fingerprint
- * follows (`OpenedFile.fingerprint` is then a promise). Below it the intake worker hashes in one Web Crypto call first.
+ * EDF files above this size are handed over as soon as they are decoded and hashed after that in a second worker
+ * (both read the File slice by slice, so neither holds it whole): the fingerprint follows (`OpenedFile.fingerprint`
+ * is then a promise). Below it the intake worker hashes in one Web Crypto call first.
  */
 export const PARALLEL_FINGERPRINT_BYTES = 64 * 1024 * 1024;
 
