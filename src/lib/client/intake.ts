@@ -32,6 +32,26 @@ function hashWorker(): Comlink.Remote<IntakeWorker> {
  */
 export const PARALLEL_FINGERPRINT_BYTES = 64 * 1024 * 1024;
 
+/** Hashes still running in the hashing worker: a large file's fingerprint on its way. */
+let hashesRunning = 0;
+
+/**
+ * A file was read and replaces the open recording: a fingerprint still on its way belongs to that recording and is
+ * no longer wanted, so its hashing stops rather than read a large file for nothing. (A file that fails to open
+ * replaces nothing, and the hashing goes on.)
+ */
+function dropStaleHashes(): void {
+  if (hashesRunning === 0) return;
+  hasher?.worker.terminate();
+  hasher = null;
+  hashesRunning = 0;
+}
+
+const replacing = (result: IntakeResult): IntakeResult => {
+  if (result.ok) dropStaleHashes();
+  return result;
+};
+
 /**
  * A seam for the demo/test build's browser hooks only (src/components/explorer/test-hooks.ts): hash files from
  * `fromBytes` on after decoding, and hold each late fingerprint until `held` settles, so a test sees the workspace
@@ -59,17 +79,21 @@ export type OpenedFile = Extract<IntakeResult, { ok: false }> | (Omit<Opened, 'f
 export async function openRecordingFile(file: Blob, kind: RecordingKind, onProgress: ProgressListener, edfEvents: Blob | null = null): Promise<OpenedFile> {
   const remote = intakeWorker();
   if (kind.kind !== 'edf') {
-    return remote.openCsv(file, { sampleRateHz: kind.sampleRateHz, delimiter: kind.delimiter, events: kind.events }, Comlink.proxy(onProgress));
+    return replacing(await remote.openCsv(file, { sampleRateHz: kind.sampleRateHz, delimiter: kind.delimiter, events: kind.events }, Comlink.proxy(onProgress)));
   }
   const reading = { unitFactors: kind.unitFactors, exclude: kind.exclude };
   const later = import.meta.env.TIDEMARK_DEMO ? lateFingerprintSeam.fromBytes : PARALLEL_FINGERPRINT_BYTES;
-  if (file.size <= later) return remote.openEdf(file, reading, Comlink.proxy(onProgress), edfEvents);
+  if (file.size <= later) return replacing(await remote.openEdf(file, reading, Comlink.proxy(onProgress), edfEvents));
   // Large file: decoded first, on its own, so it is on screen soonest; then hashed in a second worker while the
-  // person already works on it (both read the File slice by slice). A hash still running for the file open before
-  // goes on in that worker: should this file fail, that recording stays open and still needs its fingerprint.
-  const result = await remote.openEdf(file, reading, Comlink.proxy(onProgress), edfEvents, 'elsewhere');
+  // person already works on it (both read the File slice by slice).
+  const result = replacing(await remote.openEdf(file, reading, Comlink.proxy(onProgress), edfEvents, 'elsewhere'));
   if (!result.ok) return result;
   const hashing = hashWorker().fingerprint(file, Comlink.proxy((fraction: number) => onProgress('fingerprint', fraction)));
+  hashesRunning++;
+  hashing.then(
+    () => hashesRunning--,
+    () => hashesRunning--,
+  );
   const fingerprint = hashing.then(
     async (hex) => {
       if (import.meta.env.TIDEMARK_DEMO && lateFingerprintSeam.held !== null) await lateFingerprintSeam.held;
