@@ -37,7 +37,7 @@ function FingerprintValue({ fingerprint }: { fingerprint: string | null }) {
       <label htmlFor="fingerprint-progress" className="whitespace-nowrap font-mono">
         fingerprint … {percent} %
       </label>
-      <progress id="fingerprint-progress" max={100} value={percent} className="h-1.5 w-24" />
+      <progress id="fingerprint-progress" max={100} value={percent} className="h-1.5 w-24 accent-kelp" />
       <span className="basis-full">The workspace is kept in this browser, and a session can start, once it is known.</span>
     </span>
   );
