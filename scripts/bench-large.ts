@@ -16,6 +16,10 @@ import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { writeEdf, type EdfWriteAnnotation, type EdfWriteSignal } from '../src/lib/formats/edf-writer';
+import { bytesSource } from '../src/lib/formats/byte-source';
+import { openEdf, toRecording } from '../src/lib/formats/edf-reader';
+import { Sha256 } from '../src/lib/formats/fingerprint';
+import { conditionsPerLabel, decideEpochs, defaultConditioning, defaultRejection } from '../src/lib/client/workspace/source-rules';
 import {
   assertPortFree, buildIfStale, ensureNodeModules, log, migrate, onSignals, outDir, requireChromium, root, runMain, seed,
   startChild, startCluster, stopAll,
@@ -33,7 +37,7 @@ process.env.TIDEMARK_OUT_DIR = `dist-${SLOT}`;
 process.env.TIDEMARK_BUILD = 'demo';
 
 /** Writes the benchmark recording; returns its path, size and sample count per channel. */
-function writeRecording(folder: string): { file: string; bytes: number; samplesPerChannel: number; events: number } {
+async function writeRecording(folder: string): Promise<{ file: string; bytes: number; samplesPerChannel: number; events: number; core: string }> {
   // One record = 1 s: 64 × 512 int16 samples plus the annotation signal.
   const recordBytes = CHANNELS * FS * 2;
   const records = Math.max(10, Math.floor((TARGET_MB * 1e6) / (recordBytes + 64)));
@@ -72,7 +76,27 @@ function writeRecording(folder: string): { file: string; bytes: number; samplesP
   });
   const file = path.join(folder, 'harbour-lights-large.edf');
   writeFileSync(file, bytes);
-  return { file, bytes: bytes.length, samplesPerChannel: n, events: annotations.length };
+  return { file, bytes: bytes.length, samplesPerChannel: n, events: annotations.length, core: await coreCpu(bytes) };
+}
+
+/**
+ * CPU time of the page's three steps on this file, run here in Node with the same code (the figure to compare across
+ * loads and machines): decoding (the intake worker), the SHA-256 (the hashing worker), the epoch decisions (main thread).
+ */
+async function coreCpu(bytes: Uint8Array): Promise<string> {
+  const cpu = async <T>(work: () => T | Promise<T>): Promise<{ value: T; seconds: number }> => {
+    const start = process.cpuUsage();
+    const value = await work();
+    const used = process.cpuUsage(start);
+    return { value, seconds: (used.user + used.system) / 1e6 };
+  };
+  const decoded = await cpu(() => openEdf(bytesSource(bytes)));
+  const hashed = await cpu(() => new Sha256().update(bytes).hex());
+  const recording = toRecording(decoded.value);
+  const decided = await cpu(() =>
+    decideEpochs({ recording, conditions: conditionsPerLabel(recording.events), epochWindow: { start: -1, end: 2 }, rejection: defaultRejection, conditioning: defaultConditioning }),
+  );
+  return `decode ${decoded.seconds.toFixed(2)} s, SHA-256 ${hashed.seconds.toFixed(2)} s, epoch decisions ${decided.seconds.toFixed(2)} s (${decided.value.decisions.length} epochs)`;
 }
 
 /** Resident set and its peak (kB) of a process, from /proc. */
@@ -84,6 +108,24 @@ function memoryOf(pid: number): { rssKb: number; peakKb: number } | null {
   } catch {
     return null;
   }
+}
+
+interface CpuProfile {
+  nodes: { id: number; callFrame: { functionName: string; url: string; lineNumber: number; columnNumber: number } }[];
+  samples: number[];
+  timeDeltas: number[];
+}
+
+/** The profile's functions by own (self) time, summed over their nodes: "1234 ms name file:line:col". */
+function topSelfTime(profile: CpuProfile, count: number): string[] {
+  const byNode = new Map(profile.nodes.map((n) => [n.id, n.callFrame]));
+  const self = new Map<string, number>();
+  profile.samples.forEach((id, i) => {
+    const f = byNode.get(id)!;
+    const key = `${f.functionName || '(anonymous)'} ${f.url.replace(/^.*\//, '')}:${f.lineNumber + 1}:${f.columnNumber + 1}`;
+    self.set(key, (self.get(key) ?? 0) + (profile.timeDeltas[i] ?? 0) / 1000);
+  });
+  return [...self.entries()].sort((a, b) => b[1] - a[1]).slice(0, count).map(([k, ms]) => `${ms.toFixed(0).padStart(6)} ms ${k}`);
 }
 
 const mb = (kb: number) => `${(kb / 1024).toFixed(0)} MB`;
@@ -101,7 +143,7 @@ await runMain(async () => {
     await assertPortFree(APP_PORT, 'the bench app');
     await assertPortFree(SMTP_PORT, 'the bench mail fake');
     let t = performance.now();
-    const rec = writeRecording(folder);
+    const rec = await writeRecording(folder);
     log(`wrote ${(rec.bytes / 1e6).toFixed(0)} MB EDF+ (${CHANNELS} channels × ${rec.samplesPerChannel} samples at ${FS} Hz, ${rec.events} events) in ${((performance.now() - t) / 1000).toFixed(1)} s`);
 
     const cluster = await startCluster({ name: `pg-test-${SLOT}`, port: PG_PORT, fastAndLoose: true });
@@ -145,6 +187,7 @@ await runMain(async () => {
         const seen = () => {
           if (marks.header === undefined && document.querySelector('[data-testid="recording-details"]')) marks.header = performance.now();
           if (marks.events === undefined && document.querySelector('[data-testid="condition"]')) marks.events = performance.now();
+          if (marks.fingerprint === undefined && document.querySelector('[data-testid="fingerprint"]')) marks.fingerprint = performance.now();
           if (marks.overview === undefined && document.querySelector('canvas[aria-label^="Overview of"]')) {
             // The trace is drawn in the next animation frame after the canvas is there.
             marks.overview = -1;
@@ -166,6 +209,15 @@ await runMain(async () => {
           for (const e of list.getEntries()) { if (marks.chosen !== undefined) { marks.longTasks += e.duration; marks.longTaskCount++; } }
         }).observe({ type: 'longtask' });
       })()`);
+      // TIDEMARK_BENCH_PROFILE=<file.cpuprofile>: the page's main thread profiled from choosing the file to the
+      // overview (open it in Chromium's DevTools, Performance panel); the functions with the most own time are listed.
+      const profilePath = process.env.TIDEMARK_BENCH_PROFILE;
+      const profiler = profilePath ? await page.context().newCDPSession(page) : null;
+      if (profiler) {
+        await profiler.send('Profiler.enable');
+        await profiler.send('Profiler.setSamplingInterval', { interval: 500 });
+        await profiler.send('Profiler.start');
+      }
       t = performance.now();
       await page.getByLabel('Choose a recording file…').setInputFiles(rec.file);
       const marks = await (async () => {
@@ -178,6 +230,21 @@ await runMain(async () => {
           await new Promise((r) => setTimeout(r, 50));
         }
       })();
+      if (profiler) {
+        const { profile } = (await profiler.send('Profiler.stop')) as { profile: CpuProfile };
+        writeFileSync(profilePath!, JSON.stringify(profile));
+        console.log(`main-thread profile written to ${profilePath}; most own time:`);
+        for (const line of topSelfTime(profile, 12)) console.log(`  ${line}`);
+      }
+      // The fingerprint follows the overview (hashed in its own worker); the library keeps the file once it is known.
+      const fingerprintAt = await (async () => {
+        for (;;) {
+          const m = (await page.evaluate('window.__benchLarge')) as { fingerprint?: number };
+          if (m.fingerprint !== undefined) return m.fingerprint;
+          if (performance.now() - t > 600_000) throw new Error('the fingerprint did not arrive within 10 minutes');
+          await new Promise((r) => setTimeout(r, 100));
+        }
+      })();
       // Let the library finish keeping the file, so its cost shows in the peak too.
       await page.waitForTimeout(2000);
       const after = renderers.map((pid) => ({ pid, before: before.get(pid), now: memoryOf(pid) })).filter((r) => r.now !== null && r.before !== null && r.before !== undefined);
@@ -185,7 +252,9 @@ await runMain(async () => {
       const since = (x: number) => `${((x - marks.chosen) / 1000).toFixed(2)} s`;
       const floatMb = (CHANNELS * rec.samplesPerChannel * 4) / 1e6;
       console.log(`large recording: ${(rec.bytes / 1e6).toFixed(0)} MB EDF+, ${CHANNELS} channels, ${rec.events} events; Chromium ${browser.version()}`);
+      console.log(`CPU time of the same steps in Node (one thread each): ${rec.core}`);
       console.log(`time from choosing the file: header ${since(marks.header)}, events ${since(marks.events)}, overview ${since(marks.overview)} (target ≤ 5 s: ${Math.max(marks.header, marks.events, marks.overview) - marks.chosen <= 5000 ? 'met' : 'MISSED'})`);
+      console.log(`  fingerprint (SHA-256) shown at ${since(fingerprintAt)}`);
       console.log(`  progress line: ${marks.phases.map(([p, at]) => `${since(at)} ${p}`).join(' → ')}`);
       console.log(`  main thread: ${marks.longTaskCount} long tasks (> 50 ms) totalling ${(marks.longTasks / 1000).toFixed(2)} s while the file opened`);
       if (page0) {

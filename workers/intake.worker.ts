@@ -11,7 +11,7 @@ function transferred(result: IntakeResult): IntakeResult {
 }
 
 const api = {
-  /** `fingerprintAt: 'elsewhere'`: the caller hashes the file in another worker meanwhile (src/lib/client/intake.ts). */
+  /** `fingerprintAt: 'elsewhere'`: the caller hashes the file in another worker, after this (src/lib/client/intake.ts). */
   async openEdf(file: Blob, reading: EdfReading, onProgress: IntakeProgress, events: Blob | null = null, fingerprintAt: 'here' | 'elsewhere' = 'here'): Promise<IntakeResult> {
     return transferred(await openEdfBlob(file, reading, onProgress, events, fingerprintAt));
   },

@@ -1,5 +1,5 @@
-// A recording above the size at which the workspace decodes and hashes in two workers at once
-// (PARALLEL_FINGERPRINT_BYTES, 64 MiB): the page must show the same SHA-256 as Node's crypto (FIPS 180-4) and the
+// A recording above the size at which the workspace shows the file once decoded and hashes it afterwards in a second
+// worker (PARALLEL_FINGERPRINT_BYTES, 64 MiB): the page must show the same SHA-256 as Node's crypto (FIPS 180-4) and the
 // same samples as our reader gives for the whole file in one read. The recording is invented for this test
 // (8 channels of the demo's "Harbour Lights" scenario, 256 Hz, about 72 MB); timing belongs to `npm run bench:large`.
 import { createHash } from 'node:crypto';
@@ -51,13 +51,15 @@ afterAll(async () => {
 });
 
 describe('a recording above 64 MiB', () => {
-  it('is decoded and hashed side by side: the same SHA-256 as Node gives, and the same samples as one whole read', async () => {
+  it('is decoded, then hashed: the same SHA-256 as Node gives, and the same samples as one whole read', async () => {
     const page = await (await browser.newContext({ viewport: { width: 1280, height: 900 } })).newPage();
     await openWorkspace(page, 'analyst', '?testhooks');
     await page.getByTestId('drop-zone').waitFor();
     await page.waitForFunction(() => (window as unknown as { __tidemark?: unknown }).__tidemark !== undefined);
     await page.getByLabel('Choose a recording file…').setInputFiles(file);
     await page.getByTestId('recording-details').waitFor({ timeout: 120_000 });
+    // Shown once decoded; the fingerprint follows from its own worker.
+    await page.getByTestId('fingerprint').waitFor({ timeout: 120_000 });
     expect(await page.getByTestId('fingerprint').textContent()).toBe(digest);
     expect(await page.getByTestId('recording-details').textContent()).toContain(`${CHANNELS.length} channels at ${FS} Hz`);
     // The last samples of Oz as the page holds them (the store's recording, read through the test hooks).

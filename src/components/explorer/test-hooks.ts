@@ -5,6 +5,7 @@ import { describeCohort, synthesizeSubject } from '../../lib/demo/cohort';
 import { useResultsStore } from '../../lib/client/workspace/results';
 import { runPoolOnOpenRecording } from './pool-test-hook';
 import { useWorkspace } from '../../lib/client/workspace/store';
+import { lateFingerprintSeam } from '../../lib/client/intake';
 
 export interface DemoLoadOptions {
   seconds?: number;
@@ -56,11 +57,30 @@ export function loadDemo(options: DemoLoadOptions = {}) {
   return { channels: recording.channelNames, decisions: s.decisions.length, kept: s.decisions.filter((d) => !d.rejected).length, settingsError: s.settingsError };
 }
 
+let releaseFingerprints: (() => void) | null = null;
+
+/**
+ * Late fingerprints on demand: `holdFrom(0)` makes every EDF opened from then on shown before its SHA-256 is known
+ * and holds that fingerprint until `release()` (as a 500 MB file's hashing would take its time).
+ */
+export const fingerprintHooks = {
+  holdFrom(bytes: number): void {
+    lateFingerprintSeam.fromBytes = bytes;
+    lateFingerprintSeam.held ??= new Promise<void>((resolve) => (releaseFingerprints = resolve));
+  },
+  release(): void {
+    releaseFingerprints?.();
+    releaseFingerprints = null;
+    lateFingerprintSeam.held = null;
+  },
+};
+
 declare global {
   interface Window {
     __tidemark?: {
       loadDemo: typeof loadDemo;
       runPool: typeof runPoolOnOpenRecording;
+      fingerprints: typeof fingerprintHooks;
       stores: { workspace: typeof useWorkspace; results: typeof useResultsStore };
     };
   }
@@ -69,5 +89,5 @@ declare global {
 export function installTestHooks(): void {
   if (typeof window === 'undefined' || window.__tidemark !== undefined) return;
   if (!new URLSearchParams(window.location.search).has('testhooks')) return;
-  window.__tidemark = { loadDemo, runPool: runPoolOnOpenRecording, stores: { workspace: useWorkspace, results: useResultsStore } };
+  window.__tidemark = { loadDemo, runPool: runPoolOnOpenRecording, fingerprints: fingerprintHooks, stores: { workspace: useWorkspace, results: useResultsStore } };
 }

@@ -1,4 +1,4 @@
-import { useMemo, useState } from 'react';
+import { useLayoutEffect, useMemo, useRef, useState } from 'react';
 import {
   createColumnHelper,
   flexRender,
@@ -18,11 +18,24 @@ interface Props {
 }
 
 const column = createColumnHelper<EpochDecision>();
+
+/**
+ * Above this many rows only the rows in view (and a margin) are in the page: a two-hour recording has thousands of
+ * epochs, and a row each with its select would take seconds to build and lay out before anything else is shown.
+ */
+const WINDOWED_FROM = 200;
+/** Rows kept in the page above and below the visible ones, so Tab and small scrolls never meet an empty row. */
+const MARGIN_ROWS = 12;
 const uv = (v: number | null | undefined) => (v === null || v === undefined ? '—' : v.toFixed(v >= 100 ? 0 : 1));
 
 /** Every epoch of every condition, with the rules' measures, the verdict and a manual decision. */
 export default function EpochTable({ decisions, onOverride, onSelect }: Props) {
   const [sorting, setSorting] = useState<SortingState>([]);
+  // The columns are made once: a new cell function on every render would rebuild every row's select.
+  const override = useRef(onOverride);
+  override.current = onOverride;
+  const box = useRef<HTMLDivElement>(null);
+  const [view, setView] = useState({ top: 0, height: 320, rowHeight: 28 });
   const [condition, setCondition] = useState('');
   const [only, setOnly] = useState<'all' | 'rejected' | 'kept'>('all');
   const conditions = useMemo(() => [...new Set(decisions.map((d) => d.condition))], [decisions]);
@@ -76,7 +89,7 @@ export default function EpochTable({ decisions, onOverride, onSelect }: Props) {
               value={d.manual ?? 'rules'}
               disabled={!fits}
               title={fits ? undefined : 'An epoch that does not fit the recording cannot be kept'}
-              onChange={(e) => onOverride(d.eventIndex, e.target.value === 'rules' ? null : (e.target.value as 'keep' | 'reject'))}
+              onChange={(e) => override.current(d.eventIndex, e.target.value === 'rules' ? null : (e.target.value as 'keep' | 'reject'))}
               className="rounded border border-shell bg-foam px-1 py-0.5"
             >
               <option value="rules">by the rules</option>
@@ -87,7 +100,7 @@ export default function EpochTable({ decisions, onOverride, onSelect }: Props) {
         },
       }),
     ],
-    [onOverride],
+    [],
   );
 
   const table = useReactTable({
@@ -100,6 +113,26 @@ export default function EpochTable({ decisions, onOverride, onSelect }: Props) {
     getFilteredRowModel: getFilteredRowModel(),
     getRowId: (d) => String(d.eventIndex),
   });
+  const all = table.getRowModel().rows;
+  const windowed = all.length > WINDOWED_FROM;
+  const first = windowed ? Math.max(0, Math.floor(view.top / view.rowHeight) - MARGIN_ROWS) : 0;
+  const last = windowed ? Math.min(all.length, Math.ceil((view.top + view.height) / view.rowHeight) + MARGIN_ROWS) : all.length;
+  // The real row height, once rows are in the page (text size and zoom change it).
+  useLayoutEffect(() => {
+    const row = box.current?.querySelector('tbody tr[data-testid="epoch-row"]');
+    const h = row?.getBoundingClientRect().height ?? 0;
+    if (windowed && h > 0 && Math.abs(h - view.rowHeight) > 0.5) setView((v) => ({ ...v, rowHeight: h, height: box.current?.clientHeight ?? v.height }));
+  }, [windowed, view.rowHeight]);
+  const onScroll = () => {
+    const el = box.current;
+    if (el && windowed) setView((v) => (v.top === el.scrollTop && v.height === el.clientHeight ? v : { ...v, top: el.scrollTop, height: el.clientHeight }));
+  };
+  const spacer = (rows: number, key: string) =>
+    rows > 0 && (
+      <tr key={key} aria-hidden="true" style={{ height: `${rows * view.rowHeight}px` }}>
+        <td colSpan={columns.length} className="p-0" />
+      </tr>
+    );
 
   return (
     <div className="grid gap-2">
@@ -126,8 +159,8 @@ export default function EpochTable({ decisions, onOverride, onSelect }: Props) {
           {heldByHand > 0 && `, ${heldByHand} of them ${only === 'rejected' ? 'kept' : 'rejected'} by hand and shown so you can see your decision`}
         </p>
       </div>
-      <div className="max-h-[20rem] overflow-auto rounded border border-sand-deep">
-        <table className="data-table" data-testid="epoch-table">
+      <div ref={box} onScroll={onScroll} className="max-h-[20rem] overflow-auto rounded border border-sand-deep">
+        <table className="data-table" data-testid="epoch-table" aria-rowcount={all.length + 1}>
           <thead className="sticky top-0 bg-foam">
             {table.getHeaderGroups().map((g) => (
               <tr key={g.id}>
@@ -138,9 +171,11 @@ export default function EpochTable({ decisions, onOverride, onSelect }: Props) {
             ))}
           </thead>
           <tbody>
-            {table.getRowModel().rows.map((r) => (
+            {spacer(first, 'above')}
+            {all.slice(first, last).map((r, i) => (
               <tr
                 key={r.id}
+                aria-rowindex={first + i + 2}
                 data-testid="epoch-row"
                 data-event-index={r.original.eventIndex}
                 data-verdict={r.original.rejected ? 'rejected' : 'kept'}
@@ -156,6 +191,7 @@ export default function EpochTable({ decisions, onOverride, onSelect }: Props) {
                 ))}
               </tr>
             ))}
+            {spacer(all.length - last, 'below')}
           </tbody>
         </table>
       </div>

@@ -1,5 +1,6 @@
 import type { Recording } from '../../lib/analysis/recording';
 import { openedWarnings, type LocalRecordingInfo } from '../../lib/client/workspace/source-rules';
+import { useWorkspace } from '../../lib/client/workspace/store';
 import { formatBytes, formatSeconds } from './format';
 
 /** The marker on everything that identifies a recording: it is shown here and never sent. */
@@ -14,8 +15,32 @@ export function StaysLocal() {
 interface Props {
   recording: Recording;
   local: LocalRecordingInfo;
-  fingerprint: string;
+  /** Null while a large file's fingerprint is still computed (the line then says how far it is). */
+  fingerprint: string | null;
   origin: string;
+}
+
+/** The fingerprint, or the quiet state of one still being computed (or failed) after the file is already shown. */
+function FingerprintValue({ fingerprint }: { fingerprint: string | null }) {
+  const wait = useWorkspace((s) => s.fingerprintWait);
+  if (fingerprint !== null) return <span className="font-mono text-xs break-all" data-testid="fingerprint">{fingerprint}</span>;
+  if (wait?.state === 'failed') {
+    return (
+      <span className="notice notice-warn text-sm" role="alert" data-testid="fingerprint-failed">
+        {wait.message}
+      </span>
+    );
+  }
+  const percent = Math.floor((wait?.fraction ?? 0) * 100);
+  return (
+    <span className="flex flex-wrap items-center gap-x-2 gap-y-1 text-xs text-ink-soft" role="status" data-testid="fingerprint-pending">
+      <label htmlFor="fingerprint-progress" className="whitespace-nowrap font-mono">
+        fingerprint … {percent} %
+      </label>
+      <progress id="fingerprint-progress" max={100} value={percent} className="h-1.5 w-24 accent-kelp" />
+      <span className="basis-full">The workspace is kept in this browser, and a session can start, once it is known.</span>
+    </span>
+  );
 }
 
 export default function LocalDetails({ recording, local, fingerprint, origin }: Props) {
@@ -42,7 +67,7 @@ export default function LocalDetails({ recording, local, fingerprint, origin }: 
     rows.push(['Your reading choices', <span data-testid="reading-choices">{readingChoices.join(' · ')}</span>, false]);
   }
   if (recording.gapSampleIndices?.length) rows.push(['Gaps', `${recording.gapSampleIndices.length} (discontinuous recording)`, false]);
-  rows.push(['Fingerprint (SHA-256)', <span className="font-mono text-xs break-all" data-testid="fingerprint">{fingerprint}</span>, false]);
+  rows.push(['Fingerprint (SHA-256)', <FingerprintValue fingerprint={fingerprint} />, false]);
   return (
     <div className="grid gap-3">
       <dl className="grid gap-x-4 gap-y-2 text-sm sm:grid-cols-[max-content_1fr]">

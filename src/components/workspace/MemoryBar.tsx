@@ -1,5 +1,5 @@
 import { useEffect } from 'react';
-import { historyKeyOf, redo, saveNow, startClean, undo, useWorkspace, useWorkspaceMemory } from '../../lib/client/workspace';
+import { historyKeyOf, keepOwnEdits, redo, saveNow, startClean, takeSavedOffer, undo, useWorkspace, useWorkspaceMemory } from '../../lib/client/workspace';
 
 function timeOf(iso: string): string {
   const d = new Date(iso);
@@ -11,8 +11,10 @@ function timeOf(iso: string): string {
  * memory and sends the keys and buttons to it.
  */
 export default function MemoryBar() {
-  const { canUndo, canRedo, restoredFrom, savedAt, problem } = useWorkspaceMemory();
+  const { canUndo, canRedo, restoredFrom, savedAt, problem, offer } = useWorkspaceMemory();
   const open = useWorkspace((s) => s.recording !== null);
+  // A large file is shown before its fingerprint, the key its edits are kept under, is known.
+  const keyless = useWorkspace((s) => (s.fingerprint !== null ? null : s.fingerprintWait?.state === 'failed' ? 'failed' : 'fingerprint'));
   useEffect(() => {
     const onKey = (event: KeyboardEvent) => {
       const wanted = historyKeyOf(event, event.target);
@@ -49,8 +51,28 @@ export default function MemoryBar() {
           </button>
         </span>
       )}
-      <span className="ml-auto text-xs text-ink-soft" data-testid="saved-line" data-saved-at={savedAt ?? ''}>
-        {savedAt !== null ? `Kept in this browser for your account (settings only, no samples) at ${timeOf(savedAt)}` : 'Edits are kept in this browser for your account as you work (settings only, no samples).'}
+      {offer !== null && (
+        <span className="notice flex flex-wrap items-center gap-2" role="status" data-testid="saved-offer">
+          <span>
+            This browser also holds your work on this recording from <time dateTime={offer.savedAt}>{timeOf(offer.savedAt)}</time>, found after you had
+            started editing. Yours stays unless you choose:
+          </span>
+          <button type="button" className="text-kelp-deep underline" onClick={() => takeSavedOffer()} data-testid="take-offer">
+            Bring back that work (Undo returns to yours)
+          </button>
+          <button type="button" className="text-kelp-deep underline" onClick={() => keepOwnEdits()} data-testid="keep-own">
+            Keep mine
+          </button>
+        </span>
+      )}
+      <span className="ml-auto text-xs text-ink-soft" data-testid="saved-line" data-saved-at={savedAt ?? ''} data-waiting={keyless ?? undefined}>
+        {keyless === 'failed'
+          ? 'Edits are not kept in this browser: the recording has no fingerprint to keep them under (the Source screen says why).'
+          : keyless === 'fingerprint'
+          ? 'Edits wait for the fingerprint, then are kept in this browser for your account (settings only, no samples).'
+          : savedAt !== null
+            ? `Kept in this browser for your account (settings only, no samples) at ${timeOf(savedAt)}`
+            : 'Edits are kept in this browser for your account as you work (settings only, no samples).'}
       </span>
       {problem !== null && (
         <span className="notice notice-warn w-full" role="alert">

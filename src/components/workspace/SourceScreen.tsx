@@ -24,6 +24,8 @@ export default function SourceScreen(props: WorkspaceProps) {
   const recording = useWorkspace((s) => s.recording);
   const local = useWorkspace((s) => s.local);
   const fingerprint = useWorkspace((s) => s.fingerprint);
+  // Which opening is shown: a large file's fingerprint arrives after it is on screen, so panels key on this.
+  const opening = useWorkspace((s) => s.openCount);
   const conditions = useWorkspace((s) => s.conditions);
   const epochWindow = useWorkspace((s) => s.epochWindow);
   const rejection = useWorkspace((s) => s.rejection);
@@ -41,11 +43,11 @@ export default function SourceScreen(props: WorkspaceProps) {
   // Which steps are folded, for the recording that is open. A new recording starts from the defaults: Channels is
   // folded when every channel has one type as read from the file (nothing to sort out), open otherwise; a problem
   // with channels, reference or filters always opens it.
-  const [foldedBy, setFoldedBy] = useState<{ fingerprint: string | null; steps: ReadonlySet<SourceStepId> }>({ fingerprint: null, steps: new Set() });
+  const [foldedBy, setFoldedBy] = useState<{ opening: number; steps: ReadonlySet<SourceStepId> }>({ opening: -1, steps: new Set() });
   const channelProblem = settingsError !== null && /^(signals|reference|filters)/.test(settingsError) ? settingsError : null;
-  const chosenFolds = foldedBy.fingerprint === fingerprint ? foldedBy.steps : defaultFolds(recording);
+  const chosenFolds = foldedBy.opening === opening ? foldedBy.steps : defaultFolds(recording);
   const folded: ReadonlySet<SourceStepId> = channelProblem === null ? chosenFolds : new Set([...chosenFolds].filter((s) => s !== 'channels'));
-  const setFolded = (steps: ReadonlySet<SourceStepId>) => setFoldedBy({ fingerprint, steps });
+  const setFolded = (steps: ReadonlySet<SourceStepId>) => setFoldedBy({ opening, steps });
   const fold = (step: SourceStepId, folding: boolean) => {
     const next = new Set(folded);
     if (folding) next.add(step);
@@ -92,7 +94,7 @@ export default function SourceScreen(props: WorkspaceProps) {
         </section>
       </div>
 
-      {recording && local && fingerprint ? (
+      {recording && local ? (
         <>
           <SourceSteps titles={STEP_TITLES} digests={digests} folded={folded} onGo={goTo} onFoldAll={(fold) => setFolded(new Set(fold ? SOURCE_STEPS : []))} />
           <div className="grid items-start gap-6 lg:grid-cols-2">
@@ -110,9 +112,9 @@ export default function SourceScreen(props: WorkspaceProps) {
               </SourceStep>
             </div>
             <SourceStep step="events" title={STEP_TITLES.events} digest={digests.events} open={!folded.has('events')} onToggle={(o) => fold('events', !o)}>
-              {local.eventTable && <EventTablePanel key={`${fingerprint}|${local.eventTable.header.join('\t')}`} header={local.eventTable.header} selection={eventSelection} onApply={(s) => store().setEventSelection(s)} />}
+              {local.eventTable && <EventTablePanel key={`${opening}|${local.eventTable.header.join('\t')}`} header={local.eventTable.header} selection={eventSelection} onApply={(s) => store().setEventSelection(s)} />}
               <ConditionsPanel
-                key={fingerprint}
+                key={opening}
                 recording={recording}
                 conditions={conditions}
                 epochWindow={epochWindow}

@@ -117,7 +117,7 @@ export async function openEdfBlob(
   reading: EdfReading,
   onProgress: IntakeProgress,
   events: Blob | null = null,
-  /** 'elsewhere': the caller hashes the file meanwhile (large files); `fingerprint` is then '' here. */
+  /** 'elsewhere': the caller hashes the file in another worker (large files); `fingerprint` is then '' here. */
   fingerprintAt: 'here' | 'elsewhere' = 'here',
 ): Promise<IntakeResult> {
   let stage: IntakeProblem['file'] = 'recording';

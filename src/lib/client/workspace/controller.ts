@@ -1,5 +1,5 @@
 import { create, type StoreApi, type UseBoundStore } from 'zustand';
-import { changedFields, editsOf, GLIDING_FIELDS, patchFor, savedEditsOf, type EditField, type WorkspaceEdits } from './edits';
+import { changedFields, EDIT_FIELDS, editsOf, GLIDING_FIELDS, patchFor, savedEditsOf, type EditField, type WorkspaceEdits } from './edits';
 import type { SavedWorkspace, WorkspaceShelf } from './saved-workspaces';
 import type { WorkspaceState } from './store';
 
@@ -13,6 +13,11 @@ export interface WorkspaceMemory {
   savedAt: string | null;
   /** Why the last save or restore failed, or null. */
   problem: string | null;
+  /**
+   * A workspace saved in this browser for the open recording that was found only after the person had already
+   * edited it (a large file's fingerprint arrives after it is shown): offered, never put in place unasked.
+   */
+  offer: { savedAt: string } | null;
 }
 
 interface Step {
@@ -39,7 +44,7 @@ export interface ControllerOptions {
  * made it, is a step; opening a recording starts afresh and brings back what was saved for it.
  */
 export class WorkspaceHistory {
-  readonly memory = create<WorkspaceMemory>(() => ({ canUndo: false, canRedo: false, restoredFrom: null, savedAt: null, problem: null }));
+  readonly memory = create<WorkspaceMemory>(() => ({ canUndo: false, canRedo: false, restoredFrom: null, savedAt: null, problem: null, offer: null }));
   private readonly store: UseBoundStore<StoreApi<WorkspaceState>>;
   private readonly glideMs: number;
   private readonly saveDelayMs: number;
@@ -55,7 +60,14 @@ export class WorkspaceHistory {
   private openCount: number;
   private shelf: WorkspaceShelf | null = null;
   private timer: ReturnType<typeof setTimeout> | null = null;
+  /** Edits not saved yet; they wait here while the open recording's fingerprint (the shelf's key) is unknown. */
   private dirty = false;
+  /** The fingerprint as last seen in the store: a change from null within one opening is a late fingerprint. */
+  private fingerprint: string | null;
+  /** Set while the saved workspace of the open recording is being looked up: saves wait for the lookup. */
+  private lookingUp = false;
+  /** The saved workspace behind `memory.offer`. */
+  private offered: SavedWorkspace | null = null;
   private unsubscribe: () => void;
 
   constructor(options: ControllerOptions) {
@@ -68,6 +80,7 @@ export class WorkspaceHistory {
     this.last = editsOf(state);
     this.opened = this.last;
     this.openCount = state.openCount;
+    this.fingerprint = state.fingerprint;
     this.unsubscribe = this.store.subscribe((s) => this.observe(s));
   }
 
@@ -88,22 +101,31 @@ export class WorkspaceHistory {
     if (state.openCount !== this.openCount) {
       // A recording was opened: history starts here; changes made in the same turn belong to the opening.
       this.openCount = state.openCount;
+      this.fingerprint = state.fingerprint;
       this.past = [];
       this.future = [];
       this.dirty = false;
       this.opening = true;
+      this.offered = null;
       this.last = editsOf(state);
-      this.memory.setState({ restoredFrom: null, savedAt: null, problem: null });
+      this.memory.setState({ restoredFrom: null, savedAt: null, problem: null, offer: null });
       this.publish();
       const count = state.openCount;
       queueMicrotask(() => {
         this.opening = false;
         this.opened = editsOf(this.store.getState());
         this.last = this.opened;
+        // A fingerprint still being computed is looked up when it arrives (below).
         const fp = this.store.getState().fingerprint;
         if (fp !== null && this.shelf !== null) void this.restore(fp, count);
       });
       return;
+    }
+    if (state.fingerprint !== this.fingerprint) {
+      const arrived = this.fingerprint === null && state.fingerprint !== null;
+      this.fingerprint = state.fingerprint;
+      // The late fingerprint of the open recording: look up its saved workspace, then save what waited for it.
+      if (arrived && !this.opening && this.shelf !== null) void this.restore(state.fingerprint!, state.openCount);
     }
     const now = editsOf(state);
     const fields = changedFields(this.last, now);
@@ -171,8 +193,9 @@ export class WorkspaceHistory {
     this.dirty = false;
     this.past = [];
     this.future = [];
+    this.offered = null;
     this.put(this.opened);
-    this.memory.setState({ restoredFrom: null, savedAt: null, problem: null });
+    this.memory.setState({ restoredFrom: null, savedAt: null, problem: null, offer: null });
     this.publish();
     if (fp !== null && this.shelf !== null) {
       try {
@@ -183,26 +206,65 @@ export class WorkspaceHistory {
     }
   }
 
+  /**
+   * Looks up the saved workspace of the open recording. Untouched since opening: it is put in place ("Restored
+   * from …"). Already edited (possible while a large file's fingerprint was computed): it is offered instead, and
+   * the edits stay. Then whatever waited for the fingerprint is saved.
+   */
   private async restore(fingerprint: string, count: number): Promise<void> {
     const shelf = this.shelf;
     if (shelf === null) return;
     let saved: SavedWorkspace | undefined;
+    this.lookingUp = true;
     try {
       saved = await shelf.load(fingerprint);
     } catch (error) {
       this.memory.setState({ problem: `The workspace saved in this browser could not be read: ${messageOf(error)}` });
-      return;
+    } finally {
+      this.lookingUp = false;
     }
-    // Another recording opened meanwhile, or the person already edited this one: leave it.
-    if (saved === undefined || this.store.getState().openCount !== count || this.past.length > 0 || this.store.getState().fingerprint !== fingerprint) return;
+    // Another recording opened meanwhile: leave it.
+    if (this.store.getState().openCount !== count || this.store.getState().fingerprint !== fingerprint) return;
+    if (saved !== undefined) {
+      const edited = this.dirty || this.past.length > 0 || this.future.length > 0;
+      const edits = savedEditsOf(saved.edits, this.opened);
+      if (!edited) {
+        this.put(edits);
+        this.memory.setState({ restoredFrom: saved.savedAt, savedAt: saved.savedAt, problem: null });
+      } else if (differ(edits, editsOf(this.store.getState()))) {
+        this.offered = saved;
+        this.memory.setState({ offer: { savedAt: saved.savedAt } });
+      }
+    }
+    if (this.dirty) await this.flush();
+  }
+
+  /** Puts the offered saved workspace in place, as one undoable step (undo returns to the edits made before). */
+  takeOffer(): void {
+    const saved = this.offered;
+    if (saved === null) return;
+    this.offered = null;
+    this.past.push({ before: this.last, fields: [...EDIT_FIELDS], at: -Infinity });
+    if (this.past.length > this.depth) this.past.shift();
+    this.future = [];
     this.put(savedEditsOf(saved.edits, this.opened));
-    this.memory.setState({ restoredFrom: saved.savedAt, savedAt: saved.savedAt, problem: null });
+    this.memory.setState({ offer: null, restoredFrom: saved.savedAt });
+    this.publish();
+    this.scheduleSave();
+  }
+
+  /** Leaves the offered saved workspace; the next save replaces it with the edits on screen. */
+  dismissOffer(): void {
+    this.offered = null;
+    this.memory.setState({ offer: null });
   }
 
   private scheduleSave(): void {
-    if (this.shelf === null || this.store.getState().fingerprint === null) return;
+    if (this.shelf === null) return;
     this.dirty = true;
     if (this.timer !== null) clearTimeout(this.timer);
+    // Without a fingerprint (still computed) the edits wait, marked dirty; its arrival saves them.
+    if (this.store.getState().fingerprint === null || this.lookingUp) return;
     this.timer = setTimeout(() => void this.flush(), this.saveDelayMs);
   }
 
@@ -211,7 +273,7 @@ export class WorkspaceHistory {
     if (this.timer !== null) clearTimeout(this.timer);
     this.timer = null;
     const fp = this.store.getState().fingerprint;
-    if (!this.dirty || this.shelf === null || fp === null) return;
+    if (!this.dirty || this.shelf === null || fp === null || this.lookingUp) return;
     this.dirty = false;
     const saved: SavedWorkspace = { format: 1, savedAt: new Date(this.now()).toISOString(), edits: editsOf(this.store.getState()) };
     try {
@@ -221,6 +283,11 @@ export class WorkspaceHistory {
       this.memory.setState({ problem: `The workspace could not be saved in this browser (${messageOf(error)}); it is still open here.` });
     }
   }
+}
+
+/** Whether two sets of edits differ in any value (not just by reference). */
+function differ(a: WorkspaceEdits, b: WorkspaceEdits): boolean {
+  return EDIT_FIELDS.some((f) => a[f] !== b[f] && JSON.stringify(a[f]) !== JSON.stringify(b[f]));
 }
 
 function sameSet(a: readonly string[], b: readonly string[]): boolean {

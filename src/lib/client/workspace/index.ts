@@ -20,4 +20,6 @@ export function bindAccount(userId: string): void {
 export const undo = (): boolean => workspaceHistory.undo();
 export const redo = (): boolean => workspaceHistory.redo();
 export const startClean = (): Promise<void> => workspaceHistory.startClean();
+export const takeSavedOffer = (): void => workspaceHistory.takeOffer();
+export const keepOwnEdits = (): void => workspaceHistory.dismissOffer();
 export const saveNow = (): Promise<void> => workspaceHistory.flush();

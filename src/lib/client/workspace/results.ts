@@ -114,6 +114,34 @@ export function recordingIdOf(recording: Recording, fingerprint: string | null):
   return id;
 }
 
+/**
+ * A large file's fingerprint arrived after runs were made under its samples' local id: those decompositions are
+ * kept under the fingerprint from now on (id, key and the recipe's `recording.fingerprint`, as `toRecipe` writes
+ * it), so the Recipe screen still finds them. Single trials held by the explorer are fetched again when asked.
+ */
+export function adoptFingerprint(recording: Recording, fingerprint: string): void {
+  const local = recordingIds.get(recording.data[0]);
+  if (local === undefined || !/^[0-9a-f]{64}$/.test(fingerprint)) return;
+  useResultsStore.setState((s) => {
+    const renamed = new Map<string, string>();
+    const cache: Record<string, Decomposition> = {};
+    for (const [key, d] of Object.entries(s.cache)) {
+      if (d.recordingId !== local) {
+        cache[key] = d;
+        continue;
+      }
+      const recipe: RecipeInput = { ...d.recipe, recording: { fingerprint, ...d.recipe.recording } };
+      const next = decompositionKey(fingerprint, recipe);
+      renamed.set(key, next);
+      cache[next] = { ...d, key: next, recordingId: fingerprint, recipe };
+      sizes.set(next, sizes.get(key) ?? 0);
+      sizes.delete(key);
+    }
+    if (renamed.size === 0) return {};
+    return { cache, order: s.order.map((k) => renamed.get(k) ?? k), activeKey: s.activeKey === null ? null : (renamed.get(s.activeKey) ?? s.activeKey) };
+  });
+}
+
 /** How the results layer gets its workers and how much it may keep (tests inject fake workers and small budgets). */
 export interface ResultsConfig {
   /** Makes the pool that decomposes every channel (default: DecomposePool over Web Workers). */

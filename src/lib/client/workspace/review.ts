@@ -22,16 +22,17 @@ import { summarizeRecording } from '../summary-run';
 import { applyRecipe } from './apply-recipe';
 import { openRecording } from './open-recording';
 import { plannedRecipe, recordingIdOf, runDecomposition } from './results';
-import { recipeOf, useWorkspace, type WorkspaceState } from './store';
+import { fingerprintOfOpenRecording, recipeOf, useWorkspace, type WorkspaceState } from './store';
 
 export type LinkedSession = SessionView['analysisSession'];
 
 /**
- * How the open recording stands to the linked session: `no-session`; `needs-file` (no recording open yet);
+ * How the open recording stands to the linked session: `no-session`; `needs-file` (no recording open yet, or its
+ * fingerprint could not be computed); `fingerprint` (open, its fingerprint still being computed: checked then);
  * `mismatch` (the open file is another recording: nothing of the session is applied); `applying` (the stored
  * recipe is being put in place and run); `ready`; `failed` (the stored recipe does not fit: `message` says where).
  */
-export type MatchPhase = 'no-session' | 'needs-file' | 'mismatch' | 'applying' | 'ready' | 'failed';
+export type MatchPhase = 'no-session' | 'needs-file' | 'fingerprint' | 'mismatch' | 'applying' | 'ready' | 'failed';
 
 export interface ReviewLinkState {
   userId: string | null;
@@ -128,7 +129,8 @@ export function bindReview(userId: string): void {
     });
   }
   unsubscribeStore = useWorkspace.subscribe((s, prev) => {
-    if (s.openCount !== prev.openCount) void matchRecording();
+    // A large file's fingerprint arrives (or fails) after it is opened: the session is checked against it then.
+    if (s.openCount !== prev.openCount || s.fingerprint !== prev.fingerprint || s.fingerprintWait?.state !== prev.fingerprintWait?.state) void matchRecording();
     else if (recipeInputsChanged(s, prev)) scheduleAutosave();
   });
 }
@@ -200,6 +202,9 @@ export async function matchRecording(): Promise<void> {
   const { session, current, userId } = get();
   if (session === null) return;
   const ws = useWorkspace.getState();
+  if (ws.recording !== null && ws.fingerprint === null && ws.fingerprintWait?.state === 'computing') {
+    return set({ match: { phase: 'fingerprint', libraryEntry: null, message: 'The open recording is checked against the session once its SHA-256 fingerprint is computed; nothing of the session is applied before.' } });
+  }
   if (ws.recording === null || ws.fingerprint === null) {
     let libraryEntry: { fingerprint: string; fileName: string } | null = null;
     if (session.fingerprint !== null && userId !== null && typeof indexedDB !== 'undefined') {
@@ -215,7 +220,7 @@ export async function matchRecording(): Promise<void> {
       match: {
         phase: 'needs-file',
         libraryEntry,
-        message: `Open ${what} for subject ${session.subjectCode} on the Source screen${libraryEntry ? ', or take the copy kept in this browser' : ''}. It is checked against the session before anything is applied.`,
+        message: `${ws.recording !== null ? 'The open recording’s fingerprint could not be computed (the Source screen says why). ' : ''}Open ${what} for subject ${session.subjectCode} on the Source screen${libraryEntry ? ', or take the copy kept in this browser' : ''}. It is checked against the session before anything is applied.`,
       },
     });
   }
@@ -276,7 +281,11 @@ export async function openSessionRecordingFromLibrary(): Promise<void> {
  * for the same subject and recording is refused with the server's words; `existingId` lets the person continue it.
  */
 export async function startAnalysisSession(studyId: string, subjectCode: string): Promise<{ ok: true } | { ok: false; message: string; existingId: string | null }> {
-  const fingerprint = useWorkspace.getState().fingerprint;
+  // A large file's fingerprint may still be computed: the session is made for it once it is known.
+  const fingerprint = await fingerprintOfOpenRecording();
+  if (fingerprint === null && useWorkspace.getState().recording !== null) {
+    return { ok: false, message: useWorkspace.getState().fingerprintWait?.state === 'failed' ? 'The open recording has no fingerprint (see the Source screen): open it again first.' : 'Another recording was opened meanwhile; nothing was sent.', existingId: null };
+  }
   let response: Response;
   try {
     response = await send(`/api/studies/${encodeURIComponent(studyId)}/analysis-sessions`, { json: { subjectCode, fingerprint } });

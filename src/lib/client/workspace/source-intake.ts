@@ -50,7 +50,7 @@ export function useSourceIntake(library: Library) {
 
   const open = useCallback(
     async (blob: Blob, fileName: string, kind: RecordingKind, from: Origin, events: EventsFile = null, demoCode?: string) => {
-      setBusy({ fileName, phase: 'fingerprint', fraction: 0 });
+      setBusy({ fileName, phase: 'reading', fraction: 0 });
       setLibraryNotice(null);
       setProblem(null);
       lastAttempt.current = { blob, fileName, kind, from, events, demoCode };
@@ -70,7 +70,11 @@ export function useSourceIntake(library: Library) {
         setOverviewChannel(outcome.channels[0] ?? '');
         setSelectedEvent(null);
         setLibraryNotice(outcome.libraryNotice);
-        setLibraryVersion((v) => v + 1);
+        // A large file is kept once its fingerprint is known, after it is already on screen.
+        void outcome.kept.then((notice) => {
+          if (notice !== null) setLibraryNotice(notice);
+          setLibraryVersion((v) => v + 1);
+        });
       } catch (error) {
         refuse(fileName, `reading stopped unexpectedly: ${error instanceof Error ? error.message : String(error)}`);
       } finally {

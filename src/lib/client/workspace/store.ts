@@ -30,8 +30,13 @@ import { DEFAULT_VIEW, type ViewSettings } from './view';
 export interface WorkspaceData extends ViewSettings {
   recording: Recording | null;
   local: LocalRecordingInfo | null;
-  /** SHA-256 of the file's bytes, lowercase hex (or the demo's own id). */
+  /**
+   * SHA-256 of the file's bytes, lowercase hex (or the demo's own id). A large file is shown before it is known:
+   * null then, with `fingerprintWait` saying how far the hashing is. Everything keyed by it waits for it.
+   */
   fingerprint: string | null;
+  /** The open recording's fingerprint while it is being computed (`fraction` 0 … 1) or when it failed; else null. */
+  fingerprintWait: { state: 'computing'; fraction: number } | { state: 'failed'; message: string } | null;
   subjectCode: string;
   conditions: Condition[];
   epochWindow: { start: number; end: number };
@@ -54,8 +59,15 @@ export interface WorkspaceActions {
   set: (patch: Partial<WorkspaceData>) => void;
   /** The recording to analyse: events relabelled to condition names, rejected epochs left out. */
   analysisRecording: () => Recording | null;
-  /** Puts a freshly opened recording in place, keeping conditions whose labels it also has. */
-  load: (opened: { recording: Recording; local: LocalRecordingInfo; fingerprint: string }) => void;
+  /**
+   * Puts a freshly opened recording in place, keeping conditions whose labels it also has. `fingerprint` null: it
+   * is still being computed and arrives through `fingerprintKnown`.
+   */
+  load: (opened: { recording: Recording; local: LocalRecordingInfo; fingerprint: string | null }) => void;
+  /** The late fingerprint of the recording opened as number `openCount` (ignored when another one is open since). */
+  fingerprintKnown: (openCount: number, fingerprint: string) => void;
+  /** How far the late fingerprint of opening `openCount` is, or why it failed. */
+  fingerprintWaits: (openCount: number, wait: NonNullable<WorkspaceData['fingerprintWait']>) => void;
   setConditions: (conditions: Condition[]) => void;
   setEpochWindow: (epochWindow: { start: number; end: number }) => void;
   setRejection: (patch: Partial<Omit<RejectionSettings, 'overrides'>>) => void;
@@ -79,6 +91,7 @@ export const INITIAL_WORKSPACE: WorkspaceData = {
   recording: null,
   local: null,
   fingerprint: null,
+  fingerprintWait: null,
   subjectCode: '',
   conditions: [],
   // 3 s around the event: room for a −0.5 … −0.2 s baseline clear of the edge zone down to 3 Hz (recipe defaults).
@@ -99,7 +112,7 @@ export const useWorkspace = create<WorkspaceState>((set, get) => ({
   analysisRecording: () => analysisRecordingOf(get()),
   load: ({ recording: opened, local, fingerprint }) => {
     // The core compares a recipe's recording.fingerprint with this, in the browser as on the command line.
-    const recording = { ...opened, fingerprint };
+    const recording: Recording = fingerprint === null ? { ...opened } : { ...opened, fingerprint };
     const labels = new Set(recording.events.map((e) => e.label));
     const kept = get()
       .conditions.map((c) => ({ ...c, labels: c.labels.filter((l) => labels.has(l)) }))
@@ -110,7 +123,19 @@ export const useWorkspace = create<WorkspaceState>((set, get) => ({
     const has = (n: string) => recording.channelNames.includes(n);
     const previous = get().conditioning;
     const conditioning = { ...previous, types: Object.fromEntries(Object.entries(previous.types).filter(([n]) => has(n))), bad: previous.bad.filter(has) };
-    set({ openCount: get().openCount + 1, recording, local, fingerprint, conditions, rejection, conditioning, eventSelection: null, ...decideEpochs({ ...get(), recording, conditions, rejection, conditioning }) });
+    const fingerprintWait = fingerprint === null ? { state: 'computing' as const, fraction: 0 } : null;
+    set({ openCount: get().openCount + 1, recording, local, fingerprint, fingerprintWait, conditions, rejection, conditioning, eventSelection: null, ...decideEpochs({ ...get(), recording, conditions, rejection, conditioning }) });
+  },
+  fingerprintKnown: (openCount, fingerprint) => {
+    const { recording } = get();
+    if (get().openCount !== openCount || recording === null || get().fingerprint !== null) return;
+    // The recording object stays: only its name is filled in (the core compares a recipe's recording.fingerprint
+    // with it at a run), so what is keyed by the object (its conditioned samples, the plan) stays valid.
+    recording.fingerprint = fingerprint;
+    set({ fingerprint, fingerprintWait: null });
+  },
+  fingerprintWaits: (openCount, wait) => {
+    if (get().openCount === openCount && get().fingerprint === null && get().recording !== null) set({ fingerprintWait: wait });
   },
   setConditions: (conditions) => set({ conditions, ...decideEpochs({ ...get(), conditions }) }),
   setEpochWindow: (epochWindow) => set({ epochWindow, ...decideEpochs({ ...get(), epochWindow }) }),
@@ -164,6 +189,22 @@ export const useWorkspace = create<WorkspaceState>((set, get) => ({
     set({ baseline });
   },
 }));
+
+/**
+ * The open recording's fingerprint once it is known: at once when it is, after a large file's hashing otherwise;
+ * null when that hashing fails or another recording is opened meanwhile (nothing keyed by it should happen then).
+ */
+export function fingerprintOfOpenRecording(): Promise<string | null> {
+  const { fingerprint, openCount, recording } = useWorkspace.getState();
+  if (fingerprint !== null || recording === null) return Promise.resolve(fingerprint);
+  return new Promise((resolve) => {
+    const stop = useWorkspace.subscribe((s) => {
+      if (s.openCount === openCount && s.fingerprint === null && s.fingerprintWait?.state !== 'failed') return;
+      stop();
+      resolve(s.openCount === openCount ? s.fingerprint : null);
+    });
+  });
+}
 
 /** The workspace's recipe, made afresh (not a hook selector: call it on `getState()` or inside `useMemo`). */
 export const recipeOf = (s: WorkspaceData): RecipeInput => toRecipe(s);

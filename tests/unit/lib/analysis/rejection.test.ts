@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { applyOverride, checkEpochs, peakToPeak, standardDeviation, tallyByCondition, type RejectionRule } from '../../../../src/lib/analysis/rejection';
+import { applyOverride, checkEpochs, epochStats, peakToPeak, standardDeviation, tallyByCondition, type RejectionRule } from '../../../../src/lib/analysis/rejection';
 import { selectEpochs } from '../../../../src/lib/analysis/epochs';
 import type { Recording } from '../../../../src/lib/analysis/recording';
 import { assertClose } from '../../../helpers/assert-close';
@@ -47,6 +47,27 @@ describe('peakToPeak and standardDeviation', () => {
         for (const v of x) ss += (v - mean) ** 2;
         assertClose(standardDeviation(x, 0, x.length), Math.sqrt(ss / x.length), 1e-6 * (1 + Math.sqrt(ss / x.length)));
       }),
+    );
+  });
+});
+
+describe('epochStats', () => {
+  it('gives exactly peakToPeak and standardDeviation in one pass, on any span of random data (fast-check)', () => {
+    fc.assert(
+      fc.property(
+        fc.array(fc.float({ min: -1e4, max: 1e4, noNaN: true }), { minLength: 1, maxLength: 300 }),
+        fc.nat(),
+        fc.nat(),
+        (values, a, b) => {
+          const x = Float32Array.from(values);
+          const start = a % x.length;
+          const end = start + (b % (x.length - start + 1));
+          const out = new Float64Array(2);
+          epochStats(x, start, end, out);
+          expect(out[0]).toBe(peakToPeak(x, start, end));
+          expect(out[1]).toBe(standardDeviation(x, start, end));
+        },
+      ),
     );
   });
 });
