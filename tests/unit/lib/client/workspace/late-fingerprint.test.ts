@@ -3,6 +3,7 @@
 // edits made meanwhile are saved when it arrives and come back on the next opening; a saved workspace found after
 // the person has edited is offered, never put in place unasked; runs made meanwhile are still found afterwards.
 // The recording is a scenario of our own: three channels at 128 Hz, 24 s, "knock" and "bell" cues.
+import { planRun } from '../../../../../src/lib/analysis/run-recipe';
 import * as Comlink from 'comlink';
 import { MessageChannel } from 'node:worker_threads';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
@@ -140,7 +141,7 @@ describe('runs made before the fingerprint is known', () => {
       Comlink.expose({ run: (job: ChannelJob, onProgress?: (f: number) => void) => decomposeApi.run(job, onProgress) }, port2 as unknown as Comlink.Endpoint);
       return { endpoint: port1 as unknown as Comlink.Endpoint, terminate: () => (port1.close(), port2.close()) };
     };
-    configureResults({ createPool: (size) => new DecomposePool({ size: size ?? 2, createWorker: factory }), holdTrials: async () => undefined });
+    configureResults({ createPool: (size) => new DecomposePool({ size: size ?? 2, createWorker: factory }), plan: planRun, holdTrials: async () => undefined });
   });
   afterEach(() => configureResults(null));
 
