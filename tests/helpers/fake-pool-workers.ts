@@ -1,21 +1,23 @@
 // In-process workers for the decomposition pool: comlink over a node:worker_threads MessageChannel, running the
 // real worker API (workers/decompose-api.ts), so the pool and the controller are the browser's own code. Counts
-// every channel job sent, so a test can tell that a screen started no work of its own.
+// every channel job sent, so a test can tell that a screen started no work of its own; `state.stall` makes workers
+// made from then on never answer (a run to cancel).
 import * as Comlink from 'comlink';
 import { MessageChannel } from 'node:worker_threads';
 import type { PoolWorker } from '../../src/lib/client/decompose-pool';
 import { decomposeApi, type ChannelJob } from '../../workers/decompose-api';
 
 export function countingPoolWorkers() {
-  const state = { created: 0, terminated: 0, jobs: [] as { channel: string | undefined; epochSpectra: boolean }[] };
+  const state = { stall: false, created: 0, terminated: 0, jobs: [] as { channel: string | undefined; epochSpectra: boolean }[] };
   const factory = (): PoolWorker => {
     state.created++;
+    const stall = state.stall;
     const { port1, port2 } = new MessageChannel();
     Comlink.expose(
       {
         run: (job: ChannelJob, onProgress?: (f: number) => void) => {
           state.jobs.push({ channel: job.channel, epochSpectra: job.epochSpectra === true });
-          return decomposeApi.run(job, onProgress);
+          return stall ? new Promise(() => undefined) : decomposeApi.run(job, onProgress);
         },
       },
       port2 as unknown as Comlink.Endpoint,

@@ -18,40 +18,12 @@ import { planApi, type PlanReply } from '../../../../../workers/plan-api';
 import { memoryShelf } from '../../../../../src/lib/client/workspace/saved-workspaces';
 import { INITIAL_WORKSPACE, recipeOf, useWorkspace } from '../../../../../src/lib/client/workspace/store';
 import { BudgetCache, fitBudget } from '../../../../../src/lib/client/workspace/cache-budget';
-import { decomposeApi, type ChannelJob } from '../../../../../workers/decompose-api';
-import { seededNormal } from '../../../../helpers/seeded-random';
+import { countingPoolWorkers } from '../../../../helpers/fake-pool-workers';
+import { knockLocal, knockRecording } from '../../../../helpers/knock-recording';
 
-// Scenario of our own: three channels at 128 Hz, 24 s, a "knock" cue every 2 s and a "bell" between them.
-function makeRecording(): Recording {
-  const fs = 128;
-  const normal = seededNormal(41);
-  const names = ['F3', 'Cz', 'Pz'];
-  const data = names.map(() => Float32Array.from({ length: 24 * fs }, () => 4 * normal()));
-  const events = Array.from({ length: 10 }, (_, k) => ({ onsetSeconds: 2 + 2 * k, durationSeconds: 0, label: k % 2 === 0 ? 'knock' : 'bell' }));
-  return { sampleRateHz: fs, channelNames: names, data, events };
-}
-
-const local = { fileName: 'knock.edf', sizeBytes: 0, format: 'edf+c' as const, identifying: null, startDateTime: null, ignoredSignals: [], warnings: [] };
-
-/** Workers over MessageChannel running `decomposeApi`; `stall` makes new ones never answer. */
-function fakeWorkers() {
-  const state = { stall: false, created: 0, terminated: 0 };
-  const factory = (): PoolWorker => {
-    state.created++;
-    const stall = state.stall;
-    const { port1, port2 } = new MessageChannel();
-    Comlink.expose({ run: (job: ChannelJob, onProgress?: (f: number) => void) => (stall ? new Promise(() => undefined) : decomposeApi.run(job, onProgress)) }, port2 as unknown as Comlink.Endpoint);
-    return {
-      endpoint: port1 as unknown as Comlink.Endpoint,
-      terminate: () => {
-        state.terminated++;
-        port1.close();
-        port2.close();
-      },
-    };
-  };
-  return { state, factory };
-}
+const makeRecording = () => knockRecording(41);
+const local = knockLocal;
+const fakeWorkers = countingPoolWorkers;
 
 function open(fingerprint = 'a'.repeat(64)) {
   useWorkspace.getState().load({ recording: makeRecording(), local, fingerprint });

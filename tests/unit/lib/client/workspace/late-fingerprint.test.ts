@@ -4,30 +4,19 @@
 // the person has edited is offered, never put in place unasked; runs made meanwhile are still found afterwards.
 // The recording is a scenario of our own: three channels at 128 Hz, 24 s, "knock" and "bell" cues.
 import { planRun } from '../../../../../src/lib/analysis/run-recipe';
-import * as Comlink from 'comlink';
-import { MessageChannel } from 'node:worker_threads';
+import { countingPoolWorkers } from '../../../../helpers/fake-pool-workers';
+import { knockLocal, knockRecording } from '../../../../helpers/knock-recording';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import type { Recording } from '../../../../../src/lib/analysis/recording';
-import { DecomposePool, type PoolWorker } from '../../../../../src/lib/client/decompose-pool';
+import { DecomposePool } from '../../../../../src/lib/client/decompose-pool';
 import { WorkspaceHistory } from '../../../../../src/lib/client/workspace/controller';
 import { adoptFingerprint, clearResults, configureResults, recordingIdOf, runDecomposition, useResultsStore } from '../../../../../src/lib/client/workspace/results';
 import { memoryShelf } from '../../../../../src/lib/client/workspace/saved-workspaces';
 import { fingerprintOfOpenRecording, INITIAL_WORKSPACE, recipeOf, useWorkspace } from '../../../../../src/lib/client/workspace/store';
-import { decomposeApi, type ChannelJob } from '../../../../../workers/decompose-api';
-import { seededNormal } from '../../../../helpers/seeded-random';
 
 const FP = 'e'.repeat(64);
 
-function makeRecording(): Recording {
-  const fs = 128;
-  const normal = seededNormal(7);
-  const names = ['F3', 'Cz', 'Pz'];
-  const data = names.map(() => Float32Array.from({ length: 24 * fs }, () => 4 * normal()));
-  const events = Array.from({ length: 10 }, (_, k) => ({ onsetSeconds: 2 + 2 * k, durationSeconds: 0, label: k % 2 === 0 ? 'knock' : 'bell' }));
-  return { sampleRateHz: fs, channelNames: names, data, events };
-}
-
-const local = { fileName: 'knock.edf', sizeBytes: 0, format: 'edf+c' as const, identifying: null, startDateTime: null, ignoredSignals: [], warnings: [] };
+const makeRecording = () => knockRecording(7);
+const local = knockLocal;
 
 /** Opens the recording as the intake does: with its fingerprint, or (null) before it is known. */
 function open(fingerprint: string | null): number {
@@ -136,11 +125,7 @@ describe('runs made before the fingerprint is known', () => {
   beforeEach(() => {
     useWorkspace.setState(INITIAL_WORKSPACE);
     clearResults();
-    const factory = (): PoolWorker => {
-      const { port1, port2 } = new MessageChannel();
-      Comlink.expose({ run: (job: ChannelJob, onProgress?: (f: number) => void) => decomposeApi.run(job, onProgress) }, port2 as unknown as Comlink.Endpoint);
-      return { endpoint: port1 as unknown as Comlink.Endpoint, terminate: () => (port1.close(), port2.close()) };
-    };
+    const { factory } = countingPoolWorkers();
     configureResults({ createPool: (size) => new DecomposePool({ size: size ?? 2, createWorker: factory }), plan: planRun, holdTrials: async () => undefined });
   });
   afterEach(() => configureResults(null));
