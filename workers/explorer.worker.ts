@@ -18,15 +18,16 @@ const api = {
   heldKey(): string | null {
     return held === null ? null : held.key;
   },
-  /** Trial-scope normalized maps, one per condition, for baseline points first … last. */
-  renormalize(key: string, first: number, last: number, method: BaselineMethod, spread: BaselineSpread = 'time'): Float64Array[] | null {
+  /** Trial-scope normalized maps of the conditions asked for (null for the others), baseline points first … last. */
+  renormalize(key: string, first: number, last: number, method: BaselineMethod, spread: BaselineSpread = 'time', conditions: number[] | null = null): (Float64Array | null)[] | null {
     if (held === null || held.key !== key) return null;
-    const out = held.conditions.map((tp) => {
+    const out = held.conditions.map((tp, c) => {
+      if (conditions !== null && !conditions.includes(c)) return null;
       const o = new Float64Array(tp.nFreqs * tp.nTimes);
       renormalizeTrials(o, tp, first, last, method, spread);
       return o;
     });
-    return Comlink.transfer(out, out.map((o) => o.buffer));
+    return Comlink.transfer(out, out.flatMap((o) => (o === null ? [] : [o.buffer])));
   },
   /** Per condition, per band × window cell, each held trial's own-baseline value (`trialBandValues`); null if another channel is held. */
   trialBandValues(key: string, frequencies: Float64Array, times: Float64Array, mask: Uint8Array, first: number, last: number, method: BaselineMethod, cells: TrialBandWindow[]): Float64Array[][] | null {

@@ -48,9 +48,6 @@ export const SCREEN_ANALYSIS_HELPERS: readonly { module: string; names: readonly
  * stale), so the controller work can drop imports before deleting lines here. Do not add to this list.
  */
 export const PENDING_SCREEN_IMPORTS: readonly { file: string; module: string }[] = [
-  { file: 'src/components/explorer/map-model.ts', module: 'src/lib/analysis/baseline' },
-  { file: 'src/components/explorer/map-model.ts', module: 'src/lib/analysis/renormalize' },
-  { file: 'src/components/explorer/map-model.ts', module: 'src/lib/analysis/edge-zone' },
   { file: 'src/components/source/ChannelsPanel.tsx', module: 'src/lib/analysis/channel-types' },
   { file: 'src/components/source/OverviewTrace.tsx', module: 'src/lib/analysis/epochs' },
   { file: 'src/components/source/RejectionPanel.tsx', module: 'src/lib/analysis/rejection' },

@@ -21,7 +21,7 @@ import ScalpMap from '../explorer/ScalpMap';
 import { useElementWidth } from '../explorer/useElementWidth';
 import { selectActive, useResultsStore } from '../../lib/client/workspace/results';
 import { DEFAULT_BANDS, DEFAULT_WINDOWS, type Band, type TimeWindow } from '../../lib/client/workspace/view';
-import { baselinePoints } from '../explorer/map-model';
+import { baselinePoints } from '../../lib/client/workspace/maps';
 import { downloadBlob } from '../explorer/download';
 import { downloadBandBarsSvg } from '../explorer/download-figure';
 import { usePanelVisible } from '../explorer/usePanelVisible';

@@ -9,11 +9,13 @@ export interface TrialMapsJob {
   last: number;
   method: BaselineMethod;
   spread: BaselineSpread;
+  /** The conditions whose maps are made (A, and B of A − B). */
+  conditions: number[];
 }
 
 export interface TrialMaps extends TrialMapsJob {
-  /** One normalized map per condition, `[f·T + t]`. */
-  maps: Float64Array[];
+  /** One normalized map per condition asked for (`[f·T + t]`), null for the others. */
+  maps: (Float64Array | null)[];
 }
 
 /** The latest single-trial-scope maps the explorer worker made (read with a selector; a new answer repaints). */
@@ -39,7 +41,7 @@ async function pump(): Promise<void> {
     while (next !== null) {
       const job = next;
       next = null;
-      const maps = await explorerWorker().renormalize(job.key, job.first, job.last, job.method, job.spread);
+      const maps = await explorerWorker().renormalize(job.key, job.first, job.last, job.method, job.spread, job.conditions);
       if (maps !== null) useTrialMaps.setState({ latest: { ...job, maps } });
     }
   } finally {
