@@ -191,7 +191,7 @@ function updateOnce(): void {
     if (hold !== null && hold.key === s.holdKey && hold.status === 'ready' && (job !== requested || hold !== lastHold)) {
       requested = job;
       lastHold = hold;
-      requestTrialMaps({ key: s.holdKey, first: points.first, last: points.last, method: ws.method, spread, conditions });
+      requestTrialMaps({ key: s.holdKey, first: points.first, last: points.last, method: ws.method, spread, conditions, nFreqs: d.frequencies.length });
     }
     const tm = useTrialMaps.getState().latest;
     const ma = tm?.maps[s.a] ?? null;
