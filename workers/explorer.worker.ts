@@ -3,7 +3,7 @@
 // aperiodic.ts).
 import * as Comlink from 'comlink';
 import type { BaselineMethod, BaselineSpread } from '../src/lib/analysis/baseline';
-import { prepareTrialPower, renormalizeTrials, type TrialPower } from '../src/lib/analysis/renormalize';
+import { copyRows, prepareTrialPower, renormalizeTrials, type TrialPower } from '../src/lib/analysis/renormalize';
 import { trialBandValues, type TrialBandWindow } from '../src/lib/analysis/trial-band-values';
 import { fitAperiodicEach, type AperiodicModel } from '../src/lib/analysis/aperiodic';
 
@@ -17,15 +17,30 @@ const api = {
   heldKey(): string | null {
     return held === null ? null : held.key;
   },
-  /** Trial-scope normalized maps, one per condition, for baseline points first … last. */
-  renormalize(key: string, first: number, last: number, method: BaselineMethod, spread: BaselineSpread = 'time'): Float64Array[] | null {
+  /** Trial-scope normalized maps of the conditions asked for (null for the others), baseline points first … last. */
+  renormalize(
+    key: string,
+    first: number,
+    last: number,
+    method: BaselineMethod,
+    spread: BaselineSpread = 'time',
+    conditions: number[] | null = null,
+    rows: [number, number] | null = null,
+  ): (Float64Array | null)[] | null {
     if (held === null || held.key !== key) return null;
-    const out = held.conditions.map((tp) => {
+    const out = held.conditions.map((tp, c) => {
+      if (conditions !== null && !conditions.includes(c)) return null;
       const o = new Float64Array(tp.nFreqs * tp.nTimes);
-      renormalizeTrials(o, tp, first, last, method, spread);
+      renormalizeTrials(o, tp, first, last, method, spread, rows);
       return o;
     });
-    return Comlink.transfer(out, out.map((o) => o.buffer));
+    return Comlink.transfer(out, out.flatMap((o) => (o === null ? [] : [o.buffer])));
+  },
+  /** Copies of the held trials' frequency rows from … to − 1 (`[(k·R + r)·T + t]`), for a second thread to share the work. */
+  rowsOf(key: string, from: number, to: number): { trials: Float32Array[]; counts: number[]; nTimes: number } | null {
+    if (held === null || held.key !== key) return null;
+    const out = held.conditions.map((tp) => copyRows(tp.trials, tp.count, tp.nFreqs, tp.nTimes, from, to));
+    return Comlink.transfer({ trials: out, counts: held.conditions.map((tp) => tp.count), nTimes: held.conditions[0]?.nTimes ?? 0 }, out.map((t) => t.buffer));
   },
   /** Per condition, per band × window cell, each held trial's own-baseline value (`trialBandValues`); null if another channel is held. */
   trialBandValues(key: string, frequencies: Float64Array, times: Float64Array, mask: Uint8Array, first: number, last: number, method: BaselineMethod, cells: TrialBandWindow[]): Float64Array[][] | null {

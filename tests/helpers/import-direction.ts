@@ -48,9 +48,6 @@ export const SCREEN_ANALYSIS_HELPERS: readonly { module: string; names: readonly
  * stale), so the controller work can drop imports before deleting lines here. Do not add to this list.
  */
 export const PENDING_SCREEN_IMPORTS: readonly { file: string; module: string }[] = [
-  { file: 'src/components/explorer/map-model.ts', module: 'src/lib/analysis/baseline' },
-  { file: 'src/components/explorer/map-model.ts', module: 'src/lib/analysis/renormalize' },
-  { file: 'src/components/explorer/map-model.ts', module: 'src/lib/analysis/edge-zone' },
 ];
 
 /** TEMPORARY: any other known upward import awaiting its fix (none today). Same staleness rule as above. */

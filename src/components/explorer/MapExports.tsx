@@ -4,7 +4,8 @@ import { mapsFigureSvg } from '../../lib/plot/svg/map-svg';
 import { mapCsv } from '../../lib/formats/map-csv';
 import { figureFonts } from './figure-fonts';
 import { downloadCsv, downloadSvg } from './download-figure';
-import { fileSafe } from './download';
+import { downloadBlob, fileSafe } from './download';
+import { renderMapsPng } from './export-maps';
 
 /** A map the CSV export can write: its key (file name part), the label in the menu, and the spec it is drawn from. */
 export interface ExportableMap {
@@ -15,10 +16,11 @@ export interface ExportableMap {
   notes?: string[];
 }
 
-export interface MapExportsProps {
+/** What the exports write, made when a button is pressed (the live baseline and values at that moment). */
+export interface MapFigure {
   /** The two panels of the figure, with the baseline band drawn in. */
-  raw: PanelSpec | null;
-  normalized: PanelSpec | null;
+  raw: PanelSpec;
+  normalized: PanelSpec;
   caption: string;
   /** File name without extension, e.g. `maps-Cz-bell-decibel`. */
   stem: string;
@@ -26,54 +28,95 @@ export interface MapExportsProps {
   maps: ExportableMap[];
 }
 
+export interface MapExportsProps {
+  figure: () => MapFigure | null;
+  /** The menu of the CSV export: key and label of each map `figure().maps` holds. */
+  csvChoices: { key: string; label: string }[];
+  /** The recipe JSON of what the maps show. */
+  recipe: () => Blob;
+  /** The one channel shown (per-trial values need one), or null for a group. */
+  channel: string | null;
+  /** The per-trial values CSV and its file name; throws with the reason. */
+  trialValues: () => Promise<{ csv: string; fileName: string }>;
+}
+
 const BUTTON = 'rounded-sm border border-kelp px-3 py-1 text-sm text-kelp-deep hover:bg-kelp-pale disabled:opacity-50';
 
-/** "Export SVG" (the PNG export's figure as vector) and "Export CSV" of one map's full time × frequency matrix. */
-export default function MapExports({ raw, normalized, caption, stem, maps }: MapExportsProps) {
+/** The Maps screen's exports: PNG and SVG of both maps, CSV of one map's matrix, the recipe, per-trial values. */
+export default function MapExports({ figure, csvChoices, recipe, channel, trialValues }: MapExportsProps) {
   const [which, setWhich] = useState<string>('normalized');
   const [problem, setProblem] = useState<string | null>(null);
-  const chosen = maps.find((m) => m.key === which) ?? maps[0] ?? null;
+  const [trialBusy, setTrialBusy] = useState(false);
+  const chosen = csvChoices.find((m) => m.key === which) ?? csvChoices[0] ?? null;
 
-  const exportSvg = async () => {
-    if (raw === null || normalized === null) return;
+  const attempt = async (what: string, work: (f: MapFigure) => Promise<void> | void) => {
+    const f = figure();
+    if (f === null) return;
     try {
       setProblem(null);
-      downloadSvg(await mapsFigureSvg(raw, normalized, caption, { fonts: await figureFonts() }), `${stem}.svg`);
+      await work(f);
     } catch (error) {
-      setProblem(`The SVG could not be made: ${error instanceof Error ? error.message : String(error)}`);
+      setProblem(`${what} could not be made: ${error instanceof Error ? error.message : String(error)}`);
     }
   };
-  const exportCsv = () => {
-    if (chosen === null) return;
-    const s = chosen.spec;
+  const exportPng = () => attempt('The PNG', async (f) => downloadBlob(await renderMapsPng(f.raw, f.normalized, f.caption), `${f.stem}.png`));
+  const exportSvg = () => attempt('The SVG', async (f) => downloadSvg(await mapsFigureSvg(f.raw, f.normalized, f.caption, { fonts: await figureFonts() }), `${f.stem}.svg`));
+  const exportCsv = () =>
+    attempt(`The CSV of the ${chosen?.label ?? ''} map`, (f) => {
+      const m = f.maps.find((x) => x.key === chosen?.key);
+      if (m === undefined) return;
+      const s = m.spec;
+      downloadCsv(mapCsv({ quantity: s.title, unit: s.unit, times: s.times, frequencies: s.frequencies, values: s.values, notes: m.notes }), `${f.stem}-${fileSafe(m.key)}.csv`);
+    });
+  const exportTrialValues = async () => {
+    setTrialBusy(true);
+    setProblem(null);
     try {
-      setProblem(null);
-      downloadCsv(mapCsv({ quantity: s.title, unit: s.unit, times: s.times, frequencies: s.frequencies, values: s.values, notes: chosen.notes }), `${stem}-${fileSafe(chosen.key)}.csv`);
+      const { csv, fileName } = await trialValues();
+      downloadCsv(csv, fileName);
     } catch (error) {
-      setProblem(`The CSV of the ${chosen.label} map could not be made: ${error instanceof Error ? error.message : String(error)}`);
+      setProblem(`Per-trial values of ${channel} could not be made: ${error instanceof Error ? error.message : String(error)}`);
+    } finally {
+      setTrialBusy(false);
     }
   };
 
   return (
     <div className="flex flex-wrap items-end gap-2">
-      <button type="button" className={BUTTON} disabled={raw === null || normalized === null} onClick={() => void exportSvg()} data-testid="export-svg" title="Both maps as a vector figure: axes and labels as text, fonts embedded, the maps as embedded images">
+      <button type="button" className={BUTTON} onClick={() => void exportPng()} data-testid="export-png">
+        Export PNG
+      </button>
+      <button type="button" className={BUTTON} onClick={() => void exportSvg()} data-testid="export-svg" title="Both maps as a vector figure: axes and labels as text, fonts embedded, the maps as embedded images">
         Export SVG
       </button>
       <label className="flex flex-col gap-0.5 text-xs text-ink-soft">
         CSV of the map
         <select className="rounded-sm border border-shell bg-foam px-2 py-1 text-sm text-ink" value={chosen?.key ?? ''} onChange={(e) => setWhich(e.target.value)} data-testid="csv-map">
-          {maps.map((m) => (
+          {csvChoices.map((m) => (
             <option key={m.key} value={m.key}>
               {m.label}
             </option>
           ))}
         </select>
       </label>
-      <button type="button" className={BUTTON} disabled={chosen === null} onClick={exportCsv} data-testid="export-csv" title="The full time × frequency matrix of the chosen map, every value at full precision">
+      <button type="button" className={BUTTON} disabled={chosen === null} onClick={() => void exportCsv()} data-testid="export-csv" title="The full time × frequency matrix of the chosen map, every value at full precision">
         Export CSV
       </button>
+      <button type="button" className={BUTTON} onClick={() => downloadBlob(recipe(), 'recipe.json')} data-testid="export-recipe">
+        Export recipe JSON
+      </button>
+      <button
+        type="button"
+        className={BUTTON}
+        onClick={() => void exportTrialValues()}
+        disabled={channel === null || trialBusy}
+        title={channel === null ? 'Per-trial values come from one channel’s single trials: pick a channel' : 'Each trial normalized by its own baseline, averaged over each band (Bands screen) × window, one row per trial'}
+        data-testid="export-trial-values"
+      >
+        {trialBusy ? 'Making per-trial values…' : 'Export per-trial values (CSV)'}
+      </button>
       {problem !== null && (
-        <p role="alert" className="text-sm text-coral-deep">
+        <p role="alert" className="basis-full text-sm text-coral-deep" data-testid={problem.startsWith('Per-trial') ? 'trial-values-problem' : 'map-export-problem'}>
           {problem}
         </p>
       )}

@@ -1,4 +1,5 @@
 import type { Decomposition } from '../../lib/client/workspace/results';
+import { useMapCursor, useMapView } from '../../lib/client/workspace/map-view';
 import type { ViewSettings } from '../../lib/client/workspace/view';
 
 interface SelectionProps {
@@ -105,4 +106,17 @@ export function MapReadout({ readout, fresh, unit }: { readout: Readout | null; 
         : `t ${Number(readout.t.toFixed(4))} s · f ${Number(readout.f.toPrecision(4))} Hz · raw ${fmtValue(readout.raw)} µV² · normalized ${fmtValue(readout.norm)} ${unit}${readout.itpc !== undefined ? ` · ITPC ${fmtValue(readout.itpc)}` : ''}`}
     </output>
   );
+}
+
+/** The readout of the cell under the cursor, from the shown maps (it reads the cursor and the normalized map itself). */
+export function LiveReadout({ times, frequencies, raw, itpc, unit }: { times: ArrayLike<number>; frequencies: ArrayLike<number>; raw: ArrayLike<number>; itpc: ArrayLike<number> | null; unit: string }) {
+  const cell = useMapCursor((s) => s.cell);
+  const normalized = useMapView((s) => s.normalized);
+  const fresh = useMapView((s) => s.fresh);
+  const i = cell === null ? -1 : cell.f * times.length + cell.t;
+  const readout =
+    cell === null
+      ? null
+      : { t: times[cell.t], f: frequencies[cell.f], raw: raw[i], norm: normalized === null ? NaN : normalized.values[i], ...(itpc !== null ? { itpc: itpc[i] } : {}) };
+  return <MapReadout readout={readout} fresh={fresh} unit={unit} />;
 }

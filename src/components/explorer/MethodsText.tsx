@@ -1,4 +1,4 @@
-import { useDeferredValue, useMemo, useRef, useState } from 'react';
+import { useEffect, useMemo, useRef, useState } from 'react';
 import { selectActive, useResultsStore } from '../../lib/client/workspace/results';
 import { useWorkspace } from '../../lib/client/workspace/store';
 import { methodsTextOf, type MethodsText as Text } from '../../lib/client/workspace/methods-text';
@@ -8,17 +8,28 @@ export function methodsPlainText(text: Text): string {
   return text.references.length === 0 ? text.paragraph : `${text.paragraph}\n\nReferences\n${text.references.join('\n')}`;
 }
 
+/** `value`, once it has stayed the same for `ms`: a drag rewrites the paragraph when it stops, not at every frame. */
+function useSettled<T>(value: T, ms: number): T {
+  const [settled, setSettled] = useState(value);
+  useEffect(() => {
+    if (Object.is(settled, value)) return;
+    const id = setTimeout(() => setSettled(value), ms);
+    return () => clearTimeout(id);
+  }, [value, settled, ms]);
+  return settled;
+}
+
 /**
  * "Methods text": the generated methods paragraph of what the maps show (the run's recipe with the live baseline
  * and fit range), selectable, with a Copy button and the works it cites.
  */
 export default function MethodsText() {
   const d = useResultsStore(selectActive);
-  const baseline = useDeferredValue(useWorkspace((s) => s.baseline));
+  const baseline = useSettled(useWorkspace((s) => s.baseline), 250);
   const method = useWorkspace((s) => s.method);
   const scope = useWorkspace((s) => s.scope);
   const spread = useWorkspace((s) => s.spread);
-  const fitRange = useDeferredValue(useWorkspace((s) => s.fitRange));
+  const fitRange = useSettled(useWorkspace((s) => s.fitRange), 250);
   const [status, setStatus] = useState<string | null>(null);
   const body = useRef<HTMLDivElement>(null);
 

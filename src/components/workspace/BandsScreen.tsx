@@ -5,7 +5,7 @@ import { bandSummaryCsv, type ChartChoice } from '../../lib/client/workspace/ban
 import { methodUnit, neutralValue } from '../../lib/plot/colour-scale';
 import { selectActive, useResultsStore } from '../../lib/client/workspace/results';
 import { DEFAULT_BANDS, DEFAULT_WINDOWS, type Band, type TimeWindow } from '../../lib/client/workspace/view';
-import { baselinePoints } from '../explorer/map-model';
+import { baselinePoints } from '../../lib/client/workspace/maps';
 import { downloadBlob } from '../explorer/download';
 import { usePanelVisible } from '../explorer/usePanelVisible';
 import { useWorkspace } from '../../lib/client/workspace/store';

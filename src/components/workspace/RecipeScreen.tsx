@@ -35,7 +35,6 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const fitRange = useWorkspace((s) => s.fitRange);
   const setView = useWorkspace((s) => s.set);
   const settingsError = useWorkspace((s) => s.settingsError);
-  const baseline = useWorkspace((s) => s.baseline);
   const method = useWorkspace((s) => s.method);
   const scope = useWorkspace((s) => s.scope);
   const spread = useWorkspace((s) => s.spread);
@@ -44,6 +43,8 @@ export default function RecipeScreen(_props: WorkspaceProps) {
   const activeKey = useResultsStore((s) => s.activeKey);
   // Hidden, the screen skips validation: the baseline it reads changes on every drag of the Maps screen.
   const visible = usePanelVisible('Recipe');
+  // Hidden, it does not follow the baseline either, so a drag on the Maps screen does not re-render it.
+  const baseline = useWorkspace((s) => (visible ? s.baseline : null)) ?? useWorkspace.getState().baseline;
 
   const recipe = toRecipe({ draft, conditions, epochWindow, rejection, conditioning, eventSelection, fingerprint, local: { reading: reading ?? undefined }, baseline, method, scope, spread, fitRange });
   // The whole recording goes to the core with the full recipe: prepareRecording applies conditions and rejection there.

@@ -80,6 +80,14 @@ export interface TrialPower {
   meanLog10: Float64Array;
 }
 
+/** Frequency rows from … to − 1 of every trial of `trials[(k·nFreqs + f)·nTimes + t]`, as `[(k·R + r)·nTimes + t]`. */
+export function copyRows(trials: Float32Array, count: number, nFreqs: number, nTimes: number, from: number, to: number): Float32Array {
+  const r = to - from;
+  const out = new Float32Array(count * r * nTimes);
+  for (let k = 0; k < count; k++) out.set(trials.subarray((k * nFreqs + from) * nTimes, (k * nFreqs + to) * nTimes), k * r * nTimes);
+  return out;
+}
+
 /** Wraps stored trial power and precomputes `meanLog10`. */
 export function prepareTrialPower(trials: Float32Array, count: number, nFreqs: number, nTimes: number): TrialPower {
   const size = nFreqs * nTimes;
@@ -99,9 +107,20 @@ export function prepareTrialPower(trials: Float32Array, count: number, nFreqs: n
  * power-ratio (1/K)·Σ P_k/B_k; percent-change 100·((1/K)·Σ P_k/B_k − 1); z-score (1/K)·Σ P_k/S_k − (1/K)·Σ B_k/S_k.
  * Equal to `normalizeTrials` up to rounding.
  */
-export function renormalizeTrials(out: Float64Array, tp: TrialPower, first: number, last: number, method: BaselineMethod, spread: BaselineSpread = 'time'): void {
+export function renormalizeTrials(
+  out: Float64Array,
+  tp: TrialPower,
+  first: number,
+  last: number,
+  method: BaselineMethod,
+  spread: BaselineSpread = 'time',
+  rows: readonly [number, number] | null = null,
+): void {
   const { trials, count: K, nFreqs: nf, nTimes: nt, meanLog10 } = tp;
   const size = nf * nt;
+  // Only frequency rows rows[0] … rows[1] − 1 (two threads can share one map); across-trials z-scores do all rows.
+  const f0 = rows === null ? 0 : rows[0];
+  const f1 = rows === null ? nf : rows[1];
   if (method === 'z-score' && spread === 'trials') {
     // (P̄ − B̄)/S with S the SD across trials of each trial's baseline mean (zScoreAcrossTrials, from held trials).
     const mean = new Float64Array(size);
@@ -113,7 +132,7 @@ export function renormalizeTrials(out: Float64Array, tp: TrialPower, first: numb
     return;
   }
   if (method === 'decibel') {
-    for (let f = 0; f < nf; f++) {
+    for (let f = f0; f < f1; f++) {
       let logB = 0;
       for (let k = 0; k < K; k++) {
         // B only (dB needs no S): Σp/n over the baseline points, in Float64.
@@ -129,10 +148,10 @@ export function renormalizeTrials(out: Float64Array, tp: TrialPower, first: numb
     return;
   }
   // Frequency outer, trial inner: one output row (nTimes doubles) stays in L1 cache while the trials stream past.
-  out.fill(0, 0, size);
+  out.fill(0, f0 * nt, f1 * nt);
   const zscore = method === 'z-score';
   const weights = new Float64Array(K);
-  for (let f = 0; f < nf; f++) {
+  for (let f = f0; f < f1; f++) {
     const o = f * nt;
     let constant = 0;
     for (let k = 0; k < K; k++) {

@@ -106,22 +106,28 @@ export function drawAxes(ctx: Ctx, layout: PanelLayout, spec: AxesSpec): void {
   ctx.textAlign = 'center';
   ctx.fillText('frequency (Hz)', 0, 0);
   ctx.restore();
-  // The event at 0 s, dashed, when it lies on the map.
-  const [d0, d1] = spec.time.domain();
-  if (d0 < 0 && d1 > 0) {
-    const x = Math.round(spec.time(0)) + 0.5;
-    ctx.setLineDash([3, 3]);
-    ctx.strokeStyle = INK;
-    ctx.beginPath();
-    ctx.moveTo(x, top);
-    ctx.lineTo(x, bottom);
-    ctx.stroke();
-    ctx.setLineDash([]);
-  }
+  drawEventLine(ctx, layout, spec.time);
   ctx.font = SANS;
   ctx.textAlign = 'left';
   ctx.textBaseline = 'alphabetic';
   ctx.fillText(spec.title, left, top - 8);
+  ctx.restore();
+}
+
+/** The event at 0 s, dashed over the plot area, when it lies on the map. */
+export function drawEventLine(ctx: Ctx, layout: PanelLayout, time: AxisScale): void {
+  const [d0, d1] = time.domain();
+  if (!(d0 < 0 && d1 > 0)) return;
+  const x = Math.round(time(0)) + 0.5;
+  ctx.save();
+  ctx.lineWidth = 1;
+  ctx.setLineDash([3, 3]);
+  ctx.strokeStyle = INK;
+  ctx.beginPath();
+  ctx.moveTo(x, layout.top);
+  ctx.lineTo(x, layout.top + layout.plotHeight);
+  ctx.stroke();
+  ctx.setLineDash([]);
   ctx.restore();
 }
 

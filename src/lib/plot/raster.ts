@@ -42,61 +42,72 @@ export const EDGE_HATCH: HatchStyle = { spacing: 6, width: 2, rgb: [0x10, 0x28, 
 const SHELL: [number, number, number] = [0xc9, 0xb8, 0x96];
 
 /**
- * Colours every cell of `grid` once through the colormap (index round(t·(size − 1))), then fills `image`
- * pixel by pixel with the colour of the nearest cell: pixel column x shows time ⌊x·nTimes/width⌋, pixel row y
- * frequency nFreqs − 1 − ⌊y·nFreqs/height⌋ (equal rows: the grid's own spacing, log or linear, sets the axis).
- * Cells in an edge zone get diagonal hatch lines ((x + y) mod spacing < width) blended over their colour.
+ * Fills `image` pixel by pixel with the colour of the nearest cell of `grid` through the colormap (index
+ * round(t·(size − 1))): pixel column x shows time ⌊x·nTimes/width⌋, pixel row y frequency
+ * nFreqs − 1 − ⌊y·nFreqs/height⌋ (equal rows: the grid's own spacing, log or linear, sets the axis). Only the cells
+ * a pixel shows are coloured (a 1536-point epoch on 580 pixels colours 580 per row), each pixel row of a frequency
+ * is a copy of the first. Cells in an edge zone get diagonal hatch lines ((x + y) mod spacing < width) blended over
+ * their colour.
  */
 export function rasterizeMap(image: ImageBuffer, grid: MapGrid, options: RasterOptions): void {
   const { width, height, data } = image;
   const { values, nFreqs: nf, nTimes: nt } = grid;
   const { colormap, scale, reverse = false, missing = SHELL, edges = null, hatch = EDGE_HATCH } = options;
   if (width <= 0 || height <= 0 || nf <= 0 || nt <= 0) return;
-  const lut = colormap.words;
+  // Signed words: a lookup stays an integer in the loop (an unsigned word above 2³¹ would become a double).
+  const lut = new Int32Array(colormap.words.buffer, colormap.words.byteOffset, colormap.words.length);
   const top = colormap.size - 1;
   const missingBytes = new Uint8ClampedArray([missing[0], missing[1], missing[2], 255]);
-  const missingWord = new Uint32Array(missingBytes.buffer)[0];
-
-  // Cell colours first (nf·nt reads), so the per-pixel loop below is a copy.
-  const cells = new Uint32Array(nf * nt);
+  const missingWord = new Int32Array(missingBytes.buffer)[0];
   const linear = scale.kind === 'linear';
   const lo = scale.domain[0];
   const span = scale.domain[1] - scale.domain[0];
-  for (let i = 0; i < cells.length; i++) {
-    const v = values[i];
-    let t: number;
-    if (linear) {
-      if (!Number.isFinite(v)) {
-        cells[i] = missingWord;
-        continue;
-      }
-      t = span > 0 ? (v - lo) / span : 0.5;
-      t = t < 0 ? 0 : t > 1 ? 1 : t;
-    } else {
-      t = colourPosition(scale, v);
-      if (t !== t) {
-        cells[i] = missingWord;
-        continue;
-      }
-    }
-    const k = Math.round((reverse ? 1 - t : t) * top);
-    cells[i] = lut[k];
-  }
 
   const colCell = new Int32Array(width);
   for (let x = 0; x < width; x++) colCell[x] = Math.min(nt - 1, Math.floor((x * nt) / width));
-  const out = new Uint32Array(data.buffer, data.byteOffset, width * height);
+  const out = new Int32Array(data.buffer, data.byteOffset, width * height);
+  let rowF = -1;
+  let rowStart = 0;
   for (let y = 0; y < height; y++) {
     const f = nf - 1 - Math.min(nf - 1, Math.floor((y * nf) / height));
-    const rowOff = f * nt;
     const pixOff = y * width;
-    for (let x = 0; x < width; x++) out[pixOff + x] = cells[rowOff + colCell[x]];
-    if (edges === null) continue;
+    if (f === rowF) out.copyWithin(pixOff, rowStart, rowStart + width);
+    else {
+      // The first pixel row of frequency f: colour the cells its columns show.
+      rowF = f;
+      rowStart = pixOff;
+      const rowOff = f * nt;
+      for (let x = 0; x < width; x++) {
+        const v = values[rowOff + colCell[x]];
+        let t: number;
+        if (linear) {
+          if (v - v !== 0) {
+            // NaN or ±Infinity
+            out[pixOff + x] = missingWord;
+            continue;
+          }
+          t = span > 0 ? (v - lo) / span : 0.5;
+          t = t < 0 ? 0 : t > 1 ? 1 : t;
+        } else {
+          t = colourPosition(scale, v);
+          if (t !== t) {
+            out[pixOff + x] = missingWord;
+            continue;
+          }
+        }
+        out[pixOff + x] = lut[Math.round((reverse ? 1 - t : t) * top)];
+      }
+    }
+  }
+  if (edges === null) return;
+  const a = hatch.alpha;
+  const [hr, hg, hb] = hatch.rgb;
+  for (let y = 0; y < height; y++) {
+    const f = nf - 1 - Math.min(nf - 1, Math.floor((y * nf) / height));
+    const pixOff = y * width;
     const l = edges.left[f];
     const r = nt - edges.right[f];
     if (l <= 0 && r >= nt) continue;
-    const a = hatch.alpha;
-    const [hr, hg, hb] = hatch.rgb;
     // colCell rises with x, so the edge zones are the columns before xl and from xr on: visit only those.
     let xl = 0;
     while (xl < width && colCell[xl] < l) xl++;

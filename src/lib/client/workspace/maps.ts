@@ -1,6 +1,7 @@
 // What the Maps screen draws, computed here (the workspace controller) so the screen only paints: a channel's or a
 // channel group's maps, the contrast of two conditions, the phase-consistency marks and the evoked trace.
-import type { BaselineMethod } from '../../analysis/baseline';
+import { baselinePointsIn, type BaselineMethod } from '../../analysis/baseline';
+import { baselineEdgeOverlap } from '../../analysis/edge-zone';
 import { defaultChannelGroups, groupIndices, groupMap, type ChannelGroup } from '../../analysis/channel-groups';
 import { contrastMap, type ContrastBaseline } from '../../analysis/contrast';
 import { rayleighP } from '../../analysis/phase-consistency';
@@ -13,6 +14,40 @@ import type { Band, TimeWindow } from './view';
 
 export type { ChannelGroup, ContrastBaseline };
 export { defaultGroupsFor } from './channel-groups';
+
+/** Baseline grid indices clamped to the epoch, as the core plans them (analysis contract). */
+export function baselinePoints(d: Decomposition, baseline: { start: number; end: number }): { first: number; last: number } {
+  return baselinePointsIn(baseline.start, baseline.end, d.epochStart, d.sampleRateHz, d.times.length);
+}
+
+/** Snaps seconds to the epoch's sample grid t_j = start + j/fs, inside the epoch. */
+export function snapToGrid(d: Decomposition, seconds: number): number {
+  const nt = d.times.length;
+  const j = Math.max(0, Math.min(nt - 1, Math.round((seconds - d.epochStart) * d.sampleRateHz)));
+  return d.times[j];
+}
+
+/** Problems of a baseline, shown on the map. */
+export function baselineWarnings(d: Decomposition, points: { first: number; last: number }, end: number, method: BaselineMethod): string[] {
+  const out: string[] = [];
+  const nt = d.times.length;
+  const hits = baselineEdgeOverlap(d.edges, nt, points.first, points.last);
+  const [hit, lo, hi] = [hits.length, hits[0], hits[hits.length - 1]];
+  if (hit > 0) {
+    const fmt = (x: number) => Number(x.toPrecision(3));
+    out.push(`Baseline overlaps the edge zone at ${hit} of ${d.frequencies.length} frequencies (${fmt(d.frequencies[lo])}–${fmt(d.frequencies[hi])} Hz).`);
+  }
+  if (end > 0) out.push(`Baseline reaches past the event at 0 s (ends at ${Number(end.toFixed(3))} s): it includes the response.`);
+  const n = points.last - points.first + 1;
+  if (method === 'z-score' && n < 2) out.push(`Baseline holds ${n} sample; a z-score needs at least 2 for a standard deviation.`);
+  return out;
+}
+
+/** out = a − b, element-wise. */
+export function difference(out: Float64Array, a: ArrayLike<number>, b: ArrayLike<number>): Float64Array {
+  for (let i = 0; i < out.length; i++) out[i] = a[i] - b[i];
+  return out;
+}
 
 /** The decomposition's channel groups: the recipe's `channelGroups`, else the defaults from its channel names. */
 export function groupsOf(d: Decomposition): ChannelGroup[] {

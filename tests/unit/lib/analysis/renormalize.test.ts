@@ -1,6 +1,6 @@
 import { describe, it } from 'vitest';
 import fc from 'fast-check';
-import { prepareTrialPower, renormalizeAverage, renormalizeTrials } from '../../../../src/lib/analysis/renormalize';
+import { copyRows, prepareTrialPower, renormalizeAverage, renormalizeTrials } from '../../../../src/lib/analysis/renormalize';
 import type { BaselineMethod } from '../../../../src/lib/analysis/baseline';
 import { assertClose } from '../../../helpers/assert-close';
 
@@ -92,6 +92,25 @@ describe('renormalizeTrials', () => {
             assertClose(out[f * nt + t], expected, 1e-8 * Math.max(1, Math.abs(expected)), `${method} K=${K} f=${f} t=${t}`);
           }
         }
+      }),
+      { numRuns: 60 },
+    );
+  });
+
+  it('gives the same map when two threads share it by frequency rows (copyRows for the upper ones) (property)', () => {
+    fc.assert(
+      fc.property(fc.integer({ min: 1, max: 6 }), fc.integer({ min: 2, max: 5 }), fc.integer({ min: 4, max: 9 }), fc.constantFrom(...methods), fc.infiniteStream(power), (K, nf, nt, method, stream) => {
+        const trials = Float32Array.from({ length: K * nf * nt }, () => stream.next().value);
+        const whole = new Float64Array(nf * nt);
+        renormalizeTrials(whole, prepareTrialPower(trials, K, nf, nt), 1, 3, method);
+        const h = Math.floor(nf / 2);
+        const shared = new Float64Array(nf * nt).fill(NaN);
+        renormalizeTrials(shared, prepareTrialPower(trials, K, nf, nt), 1, 3, method, 'time', [0, h]);
+        const upper = new Float64Array((nf - h) * nt);
+        renormalizeTrials(upper, prepareTrialPower(copyRows(trials, K, nf, nt, h, nf), K, nf - h, nt), 1, 3, method);
+        shared.set(upper, h * nt);
+        // The same operations in the same order: the same bits (a baseline of equal points gives NaN in both).
+        for (let i = 0; i < whole.length; i++) if (!Object.is(whole[i], shared[i])) throw new Error(`${method} K=${K} nf=${nf} i=${i}: ${whole[i]} ≠ ${shared[i]}`);
       }),
       { numRuns: 60 },
     );
