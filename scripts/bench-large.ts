@@ -156,7 +156,8 @@ await runMain(async () => {
     const appUrl = `http://127.0.0.1:${APP_PORT}`;
     const env = { DATABASE_URL: databaseUrl, SMTP_HOST: '127.0.0.1', SMTP_PORT: String(SMTP_PORT), TIDEMARK_MAIL_FAKE: '1', HOST: '127.0.0.1', PORT: String(APP_PORT), TIDEMARK_ORIGIN: appUrl };
     await startChild('mail fake', process.execPath, [path.join(root, 'scripts', 'mail-fake.mjs')], { env, readyLine: 'mail fake listening' });
-    await startChild('app', process.execPath, [path.join(root, outDir(), 'server', 'entry.mjs')], { env, readyLine: 'Server listening' });
+    // The same server wrapper as npm start and npm test (static files, body caps, the mail sender).
+    await startChild('app', process.execPath, [path.join(root, 'server', 'main.mjs')], { env: { ...env, TIDEMARK_OUT_DIR: outDir() }, readyLine: 'Server listening' });
 
     const { chromium } = await import('playwright-core');
     const browser = await chromium.launch({ executablePath: chromiumPath, headless: true, args: ['--headless', '--no-sandbox', '--disable-gpu', '--no-first-run'] });
