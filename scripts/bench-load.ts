@@ -31,6 +31,11 @@ import { assertPortFree, ensureNodeModules, findClusterBase, log, root, startClu
 const SECONDS = Number(process.env.TIDEMARK_LOAD_SECONDS ?? 30);
 const CLIENTS = Number(process.env.TIDEMARK_LOAD_CLIENTS ?? 50);
 const DEADLINE_SECONDS = Number(process.env.TIDEMARK_LOAD_DEADLINE_SECONDS ?? 900);
+/**
+ * App processes (`TIDEMARK_WORKERS` of npm run serve), default 1: on this 2-core machine PostgreSQL and the load
+ * generator need the second core (two app processes measured worse: p99 181 ms against 140 ms).
+ */
+const WORKERS = Number(process.env.TIDEMARK_LOAD_WORKERS ?? 1);
 const APP_PORT = Number(process.env.TIDEMARK_LOAD_PORT ?? 4419);
 const PG_PORT = Number(process.env.TIDEMARK_LOAD_PG_PORT ?? 54419);
 const SUBJECTS = 40;
@@ -171,6 +176,7 @@ function startApp(appUrl: string, smtpPort: number): Promise<ChildProcess> {
         TIDEMARK_TRUSTED_PROXIES: 'none',
         TIDEMARK_HOST: '127.0.0.1',
         TIDEMARK_PORT: String(APP_PORT),
+        TIDEMARK_WORKERS: String(WORKERS),
         // TIDEMARK_LOAD_PROFILE=<dir>: a CPU profile of the app under load (open it in Chromium's DevTools).
         ...(process.env.TIDEMARK_LOAD_PROFILE ? { TIDEMARK_CPU_PROFILE_DIR: process.env.TIDEMARK_LOAD_PROFILE } : {}),
       },
@@ -328,7 +334,7 @@ async function main(): Promise<number> {
   for (const email of people.emails) cookies.push(await signIn(email));
   const sessionIds = await seedWork(cookies, people.studyId);
   const seed: Seeded = { ...people, sessionIds };
-  log(`${cookies.length} clients signed in, ${sessionIds.length} sessions with a recipe version and 2 notes each; ${CLIENTS} clients for ${SECONDS} s…`);
+  log(`${cookies.length} clients signed in, ${sessionIds.length} sessions with a recipe version and 2 notes each; ${CLIENTS} clients for ${SECONDS} s against ${WORKERS} app process(es)…`);
 
   // CPU time of the app (the launcher and server/main.mjs) and of PostgreSQL during the run: what each request cost,
   // whatever else the machine is doing.

@@ -49,6 +49,9 @@ for (const [name, fallback] of [['TIDEMARK_SESSION_IDLE_MINUTES', 60], ['TIDEMAR
   const raw = env[name];
   if (raw !== undefined && raw !== '' && !(Number(raw) > 0)) refuse(`${name} must be a positive number, not "${raw}" (default ${fallback})`);
 }
+if (env.TIDEMARK_WORKERS !== undefined && env.TIDEMARK_WORKERS !== '' && !/^([1-9]|[1-5][0-9]|6[0-4])$/.test(env.TIDEMARK_WORKERS)) {
+  refuse(`TIDEMARK_WORKERS must be a whole number from 1 to 64 (app processes; default 1), not "${env.TIDEMARK_WORKERS}"`);
+}
 if (Number(env.TIDEMARK_SESSION_IDLE_MINUTES ?? 60) > Number(env.TIDEMARK_SESSION_ABSOLUTE_MINUTES ?? 720)) {
   refuse('TIDEMARK_SESSION_IDLE_MINUTES is longer than TIDEMARK_SESSION_ABSOLUTE_MINUTES');
 }

@@ -1,4 +1,5 @@
 import { sql } from 'drizzle-orm';
+import pg from 'pg';
 import { PgTransaction } from 'drizzle-orm/pg-core';
 import type { Db } from '../client';
 import { auditEvents } from '../schema';
@@ -45,4 +46,32 @@ async function append(tx: Tx, input: AuditInput): Promise<void> {
     SELECT n.id, ${teamId}, ${input.actorId}, ${input.action}, ${input.targetTable}, ${input.targetId}, ${JSON.stringify(detail)}::jsonb, n.at, n.prev,
       encode(sha256(convert_to(${beforeAt} || to_char(n.at AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"') || ${beforeId} || n.id::text || ${beforePrev} || n.prev || ${afterPrev}, 'UTF8')), 'hex')
     FROM (SELECT nextval(pg_get_serial_sequence('audit_events', 'id')) AS id, date_trunc('milliseconds', now()) AS at, coalesce(${last}, ${CHAIN_GENESIS}) AS prev) n`);
+}
+
+const literal = (value: string | null): string => (value === null ? 'NULL' : pg.escapeLiteral(value));
+
+/**
+ * The last step of a change's transaction, for the routes that many people hit at once (note posts): the chain lock,
+ * the event and the COMMIT go to PostgreSQL as one message (the simple query protocol, values written as escaped
+ * literals with pg's `escapeLiteral`). PostgreSQL runs the three statements one after another, each with a snapshot
+ * of its own (so the event still links to every event committed before the lock), and the lock is held only while
+ * the server inserts and commits: never across a round trip to this process, which may be busy with other requests.
+ * The message ends with a BEGIN, so the transaction drizzle then COMMITs is an empty one. Nothing may follow this call
+ * in the transaction. If any statement fails, the ones after it do not run and the whole change rolls back.
+ */
+export async function recordAuditAndCommit(tx: Tx, input: AuditInput): Promise<void> {
+  const teamId = input.teamId ?? null;
+  const detail = asJsonValue(input.detail ?? {});
+  const [beforeAt, beforeId, beforePrev, afterPrev] = hashedTextAround({ teamId, actorId: input.actorId, action: input.action, targetTable: input.targetTable, targetId: input.targetId, detail });
+  const last = `(SELECT hash FROM audit_events WHERE team_id ${teamId === null ? 'IS NULL' : `= ${literal(teamId)}::uuid`} ORDER BY id DESC LIMIT 1)`;
+  const text = [
+    `SELECT pg_advisory_xact_lock(hashtextextended(${literal(`tidemark:audit:${teamId ?? 'site'}`)}, 0))`,
+    `INSERT INTO audit_events (id, team_id, actor_id, action, target_table, target_id, detail, at, prev_hash, hash)
+     SELECT n.id, ${literal(teamId)}::uuid, ${literal(input.actorId)}::text, ${literal(input.action)}::text, ${literal(input.targetTable)}::text, ${literal(input.targetId)}::text, ${literal(JSON.stringify(detail))}::jsonb, n.at, n.prev,
+       encode(sha256(convert_to(${literal(beforeAt)}::text || to_char(n.at AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"') || ${literal(beforeId)} || n.id::text || ${literal(beforePrev)} || n.prev || ${literal(afterPrev)}, 'UTF8')), 'hex')
+     FROM (SELECT nextval(pg_get_serial_sequence('audit_events', 'id')) AS id, date_trunc('milliseconds', now()) AS at, coalesce(${last}, ${literal(CHAIN_GENESIS)}) AS prev) n`,
+    'COMMIT',
+    'BEGIN',
+  ].join(';\n');
+  await tx.execute(sql.raw(text));
 }

@@ -28,7 +28,7 @@ import {
 import type { Role } from '../../lib/permissions';
 import type { MailKind, NoteAnchorT } from '../../lib/schemas/review';
 import { jsonHash, signedContentHash } from '../../lib/crypto/review-hash';
-import { recordAudit } from './audit';
+import { recordAudit, recordAuditAndCommit } from './audit';
 import { digestNewSummaries } from './cohort';
 import { isUuid } from './teams';
 
@@ -348,11 +348,13 @@ export async function createNote(
       if (earlier.analysisSessionId !== ctx.session.id || earlier.parentId !== input.parentId || earlier.body !== input.body) return { ok: false, reason: 'key_reused' };
       return { ok: true, note: earlier, replayed: true };
     }
-    await recordAudit(tx, {
+    // The mention mail is queued first: the audit event and the commit are one last message (recordAuditAndCommit),
+    // so the team's chain lock is never held across a round trip (note posts are the busiest audited route).
+    await then?.(tx, note);
+    await recordAuditAndCommit(tx, {
       actorId: authorId, action: input.parentId ? 'note.reply' : 'note.create', targetTable: 'notes', targetId: note.id, teamId: ctx.team.id,
       detail: { analysisSessionId: ctx.session.id, studyId: ctx.study.id, subjectCode: ctx.session.subjectCode, ...(input.parentId ? { parentId: input.parentId } : {}), mentions: input.mentions },
     });
-    await then?.(tx, note);
     return { ok: true, note, replayed: false };
   });
 }
