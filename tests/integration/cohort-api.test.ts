@@ -27,6 +27,10 @@ describe('the cohort overview', () => {
     const summary = tern(0);
     const rows = summary.bandValues.filter((v) => v.band === 'theta' && v.window === 'early' && v.condition === 'gull');
     assertClose(first.digest.theta.early.gull, rows.reduce((a, v) => a + v.normalized, 0) / rows.length, 1e-9);
+    // The route splices PostgreSQL's JSON text of recipes, outlines and digests in as it is: the same values the
+    // pages get from the parsed overview (getCohortOverview), value for value.
+    const { getCohortOverview } = await import('../../src/db/queries/cohort');
+    expect(body).toEqual(JSON.parse(JSON.stringify(await getCohortOverview(c.studyId))));
   });
 
   it('answers 404 to a lead of another team', async () => {

@@ -19,7 +19,12 @@ export class HttpError extends Error {
 }
 
 export function json(body: unknown, status = 200): Response {
-  return new Response(JSON.stringify(body), { status, headers: { 'content-type': 'application/json; charset=utf-8', 'cache-control': 'no-store' } });
+  return jsonText(JSON.stringify(body), status);
+}
+
+/** A JSON answer already written as text (a route that splices stored JSON in as it is). */
+export function jsonText(text: string, status = 200): Response {
+  return new Response(text, { status, headers: { 'content-type': 'application/json; charset=utf-8', 'cache-control': 'no-store' } });
 }
 
 /** Runs an API handler, mapping HttpError to `{ error: { code, message, issues? } }`; other errors to a bare 500. */
