@@ -6,6 +6,7 @@ import { figureFonts } from './figure-fonts';
 import { downloadCsv, downloadSvg } from './download-figure';
 import { downloadBlob, fileSafe } from './download';
 import { renderMapsPng } from './export-maps';
+import { useMapView } from '../../lib/client/workspace/map-view';
 
 /** A map the CSV export can write: its key (file name part), the label in the menu, and the spec it is drawn from. */
 export interface ExportableMap {
@@ -48,6 +49,10 @@ export default function MapExports({ figure, csvChoices, recipe, channel, trialV
   const [problem, setProblem] = useState<string | null>(null);
   const [trialBusy, setTrialBusy] = useState(false);
   const chosen = csvChoices.find((m) => m.key === which) ?? csvChoices[0] ?? null;
+  // While the normalized map is missing or being remade for a new baseline, a figure would pair the live baseline
+  // with the previous values: the figure exports wait for it.
+  const ready = useMapView((v) => v.normalized !== null && v.fresh);
+  const waiting = ready ? undefined : 'The normalized map is being made for the current baseline; export it once it is shown.';
 
   const attempt = async (what: string, work: (f: MapFigure) => Promise<void> | void) => {
     const f = figure();
@@ -83,10 +88,10 @@ export default function MapExports({ figure, csvChoices, recipe, channel, trialV
 
   return (
     <div className="flex flex-wrap items-end gap-2">
-      <button type="button" className={BUTTON} onClick={() => void exportPng()} data-testid="export-png">
+      <button type="button" className={BUTTON} disabled={!ready} title={waiting} onClick={() => void exportPng()} data-testid="export-png">
         Export PNG
       </button>
-      <button type="button" className={BUTTON} onClick={() => void exportSvg()} data-testid="export-svg" title="Both maps as a vector figure: axes and labels as text, fonts embedded, the maps as embedded images">
+      <button type="button" className={BUTTON} disabled={!ready} onClick={() => void exportSvg()} data-testid="export-svg" title={waiting ?? 'Both maps as a vector figure: axes and labels as text, fonts embedded, the maps as embedded images'}>
         Export SVG
       </button>
       <label className="flex flex-col gap-0.5 text-xs text-ink-soft">
@@ -99,7 +104,7 @@ export default function MapExports({ figure, csvChoices, recipe, channel, trialV
           ))}
         </select>
       </label>
-      <button type="button" className={BUTTON} disabled={chosen === null} onClick={() => void exportCsv()} data-testid="export-csv" title="The full time × frequency matrix of the chosen map, every value at full precision">
+      <button type="button" className={BUTTON} disabled={chosen === null || !ready} onClick={() => void exportCsv()} data-testid="export-csv" title={waiting ?? 'The full time × frequency matrix of the chosen map, every value at full precision'}>
         Export CSV
       </button>
       <button type="button" className={BUTTON} onClick={() => downloadBlob(recipe(), 'recipe.json')} data-testid="export-recipe">

@@ -106,20 +106,28 @@ export interface MapRun {
 export function useMapTest(groupMap: GroupMap | null): { run: MapRun; start: () => Promise<void>; cancel: () => void } {
   const [run, setRun] = useState<MapRun>({ state: 'idle', progress: 0, result: null, message: '' });
   const abort = useRef<AbortController | null>(null);
-  useEffect(() => setRun({ state: 'idle', progress: 0, result: null, message: '' }), [groupMap]);
+  // A new map stops a test still running on the old one: its result would sit beside the new map's axes.
+  useEffect(() => {
+    abort.current?.abort();
+    abort.current = null;
+    setRun({ state: 'idle', progress: 0, result: null, message: '' });
+  }, [groupMap]);
   const start = async () => {
     if (!groupMap?.testInput) return;
+    abort.current?.abort();
     const controller = new AbortController();
     abort.current = controller;
+    const mine = () => abort.current === controller;
     setRun({ state: 'running', progress: 0, result: null, message: '' });
     try {
-      const result = await runMapTestInWorker(groupMap.testInput, { signal: controller.signal, onProgress: (f) => setRun((r) => (r.state === 'running' ? { ...r, progress: f } : r)) });
-      setRun({ state: 'done', progress: 1, result, message: '' });
+      const result = await runMapTestInWorker(groupMap.testInput, { signal: controller.signal, onProgress: (f) => mine() && setRun((r) => (r.state === 'running' ? { ...r, progress: f } : r)) });
+      if (mine()) setRun({ state: 'done', progress: 1, result, message: '' });
     } catch (e) {
+      if (!mine()) return;
       const cancelled = e instanceof Error && e.name === 'MapTestCancelledError';
       setRun({ state: cancelled ? 'cancelled' : 'failed', progress: 0, result: null, message: cancelled ? 'Cancelled; nothing was kept.' : `The map test failed: ${e instanceof Error ? e.message : e}` });
     } finally {
-      abort.current = null;
+      if (mine()) abort.current = null;
     }
   };
   return { run, start, cancel: () => abort.current?.abort() };

@@ -5,7 +5,7 @@ import type { AperiodicFit } from '../../analysis/aperiodic';
 import type { EpochSpectra } from '../../analysis/epoch-spectra';
 import type { Recording } from '../../analysis/recording';
 import type { RecipeInput } from '../../analysis/recipe';
-import { planRun, type ChannelAnalysis, type RecipePlan } from '../../analysis/run-recipe';
+import type { ChannelAnalysis, RecipePlan } from '../../analysis/run-recipe';
 import { DecomposePool } from '../decompose-pool';
 import { plannedChannel, RecipePlanner, type PlannedRecipe } from '../recipe-planner';
 import { explorerWorker } from '../explorer-worker';
@@ -136,9 +136,17 @@ export function adoptFingerprint(recording: Recording, fingerprint: string): voi
       cache[next] = { ...d, key: next, recordingId: fingerprint, recipe };
       sizes.set(next, sizes.get(key) ?? 0);
       sizes.delete(key);
+      // Its plan follows it, so the Slope check and trial maps do not plan again.
+      const planned = plannedByKey.get(key);
+      if (planned !== undefined) {
+        plannedByKey.delete(key);
+        plannedByKey.set(next, planned);
+      }
     }
     if (renamed.size === 0) return {};
-    return { cache, order: s.order.map((k) => renamed.get(k) ?? k), activeKey: s.activeKey === null ? null : (renamed.get(s.activeKey) ?? s.activeKey) };
+    // The same recording run earlier under its fingerprint (then reopened) may already be there: one entry each.
+    const order = [...new Set(s.order.map((k) => renamed.get(k) ?? k))];
+    return { cache, order, activeKey: s.activeKey === null ? null : (renamed.get(s.activeKey) ?? s.activeKey) };
   });
 }
 
@@ -229,6 +237,9 @@ useWorkspace.subscribe((state, previous) => {
   if (state.recording === previous.recording) return;
   lastPlan = null;
   planner?.terminate();
+  // Plans hold their recording's samples (and conditioned copies): another file's plans go with it. A kept
+  // decomposition of that file plans again if its file is opened again (plannedFor).
+  if (state.recording?.data[0] !== previous.recording?.data[0]) plannedByKey.clear();
 });
 
 /** The plan of `recipe` on `recording`, made once (see `lastPlan`); rejects with AnalysisInputError for a recipe that does not fit. */
@@ -312,6 +323,12 @@ export function decompositionOf(key: string, recipe: RecipeInput, recordingId: s
 function plannedFor(d: Decomposition, recording: Recording): Promise<PlannedRecipe> {
   const kept = plannedByKey.get(d.key);
   if (kept !== undefined && useResultsStore.getState().cache[d.key] !== undefined) return Promise.resolve(kept);
+  // Planning again is only right on the recording `d` was made from (never another file's samples).
+  const open = useWorkspace.getState();
+  const fingerprint = open.recording !== null && open.recording.data[0] === recording.data[0] ? open.fingerprint : null;
+  if (d.recordingId !== fingerprint && d.recordingId !== recordingIds.get(recording.data[0])) {
+    return Promise.reject(new Error('this result was made from another recording: open that recording again to use it here'));
+  }
   return plannedRecipe(recording, d.recordingId, d.recipe);
 }
 
@@ -395,6 +412,9 @@ export async function runDecomposition(recording: Recording, recordingId: string
     plannedByKey.set(key, planned);
     touch(key, decomposition);
     prunePlans();
+    // The fingerprint may have arrived while this run went on (a large file): keep it under the fingerprint too.
+    const open = useWorkspace.getState();
+    if (recordingId.startsWith('local-') && open.fingerprint !== null && open.recording?.data[0] === recording.data[0]) adoptFingerprint(recording, open.fingerprint);
     setRun({ status: 'done', message: `Decomposed ${plan.channels.length} channel(s) × ${labels.length} condition(s).` });
     if (singleTrials !== null) await holdTrials(decomposition, channel, singleTrials);
     return decomposition;
@@ -414,6 +434,8 @@ export function cancelDecomposition(): void {
     planning.cancelled = true;
     planning.cancel();
     planning = null;
+    // Another run may be decomposing meanwhile (one started before this one planned).
+    pool?.cancel();
     useWorkspace.getState().setRun({ status: 'cancelled', message: 'Cancelled; nothing was kept from this run.' });
     return;
   }

@@ -44,12 +44,16 @@ export function useSourceIntake(library: Library) {
   const [overviewChannel, setOverviewChannel] = useState('');
   const [selectedEvent, setSelectedEvent] = useState<number | null>(null);
   const lastAttempt = useRef<Attempt | null>(null);
+  /** Counts openings: an opening overtaken by a newer one (a large file still hashing) changes nothing on screen. */
+  const attempts = useRef(0);
 
   const refuse = (fileName: string, message: string) =>
     setProblem({ fileName, error: { file: 'recording', message, problem: message, field: null, byteOffset: null, signal: null, row: null, column: null, dimension: null } });
 
   const open = useCallback(
     async (blob: Blob, fileName: string, kind: RecordingKind, from: Origin, events: EventsFile = null, demoCode?: string) => {
+      const attempt = ++attempts.current;
+      const current = () => attempt === attempts.current;
       setBusy({ fileName, phase: 'reading', fraction: 0 });
       setLibraryNotice(null);
       setProblem(null);
@@ -58,9 +62,10 @@ export function useSourceIntake(library: Library) {
       let finished = false;
       try {
         const outcome = await openRecording({ blob, fileName, kind, from, events, demoCode, library }, (phase, fraction) => {
-          if (!finished) setBusy({ fileName, phase, fraction });
+          if (!finished && current()) setBusy({ fileName, phase, fraction });
         });
         finished = true;
+        if (!current()) return;
         if (!outcome.ok) {
           setProblem({ fileName: outcome.fileName, error: outcome.error });
           return;
@@ -72,14 +77,14 @@ export function useSourceIntake(library: Library) {
         setLibraryNotice(outcome.libraryNotice);
         // A large file is kept once its fingerprint is known, after it is already on screen.
         void outcome.kept.then((notice) => {
-          if (notice !== null) setLibraryNotice(notice);
           setLibraryVersion((v) => v + 1);
+          if (notice !== null && current()) setLibraryNotice(notice);
         });
       } catch (error) {
-        refuse(fileName, `reading stopped unexpectedly: ${error instanceof Error ? error.message : String(error)}`);
+        if (current()) refuse(fileName, `reading stopped unexpectedly: ${error instanceof Error ? error.message : String(error)}`);
       } finally {
         finished = true;
-        setBusy(null);
+        if (current()) setBusy(null);
       }
     },
     // eslint-disable-next-line react-hooks/exhaustive-deps

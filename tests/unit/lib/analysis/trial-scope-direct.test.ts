@@ -87,8 +87,9 @@ function worstDifference(a: Float64Array, b: Float64Array): number {
 }
 
 describe('scope trial against direct wavelet convolution', () => {
-  // 7 trials: three pairs and one trial on its own; 8: pairs only.
-  for (const trials of [7, 8]) {
+  // 7 trials: three pairs and one trial on its own; 8: pairs only; 17 and 33: trials are paired in blocks of 16, so
+  // these cross block boundaries and end with a short odd block after full ones.
+  for (const trials of [7, 8, 17, 33]) {
     it(`matches the definition for decibels, percent change and power ratio (${trials} trials)`, () => {
       const { x, starts } = epochs(trials, 40 + trials);
       // Tolerances: the bank drops wavelet bins below 1e-13 of the peak (wavelet.ts), so powers agree to ~1e-12

@@ -9,7 +9,7 @@ import { knockLocal, knockRecording } from '../../../../helpers/knock-recording'
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { DecomposePool } from '../../../../../src/lib/client/decompose-pool';
 import { WorkspaceHistory } from '../../../../../src/lib/client/workspace/controller';
-import { adoptFingerprint, clearResults, configureResults, recordingIdOf, runDecomposition, useResultsStore } from '../../../../../src/lib/client/workspace/results';
+import { adoptFingerprint, conditionedSamples, clearResults, configureResults, recordingIdOf, runDecomposition, useResultsStore } from '../../../../../src/lib/client/workspace/results';
 import { memoryShelf } from '../../../../../src/lib/client/workspace/saved-workspaces';
 import { fingerprintOfOpenRecording, INITIAL_WORKSPACE, recipeOf, useWorkspace } from '../../../../../src/lib/client/workspace/store';
 
@@ -122,11 +122,17 @@ describe('a recording shown before its fingerprint is known', () => {
 });
 
 describe('runs made before the fingerprint is known', () => {
+  let plans = 0;
   beforeEach(() => {
     useWorkspace.setState(INITIAL_WORKSPACE);
     clearResults();
+    plans = 0;
     const { factory } = countingPoolWorkers();
-    configureResults({ createPool: (size) => new DecomposePool({ size: size ?? 2, createWorker: factory }), plan: planRun, holdTrials: async () => undefined });
+    const plan = (recording: Parameters<typeof planRun>[0], recipe: Parameters<typeof planRun>[1]) => {
+      plans++;
+      return planRun(recording, recipe);
+    };
+    configureResults({ createPool: (size) => new DecomposePool({ size: size ?? 2, createWorker: factory }), plan, holdTrials: async () => undefined });
   });
   afterEach(() => configureResults(null));
 
@@ -145,5 +151,18 @@ describe('runs made before the fingerprint is known', () => {
     expect(again!.power[0][0]).toBe(before!.power[0][0]);
     expect(useResultsStore.getState().activeKey).toBe(again!.key);
     expect(Object.keys(useResultsStore.getState().cache)).toEqual([again!.key]);
+    // The run's plan moved with it: its conditioned channels are there without a second plan.
+    const planned = plans;
+    expect(await conditionedSamples(again!, after.recording!)).toHaveLength(again!.channels.length);
+    expect(plans).toBe(planned);
+    expect(useResultsStore.getState().order).toEqual([again!.key]);
+  });
+
+  it('refuses to plan a kept result again on another recording', async () => {
+    open(FP);
+    const s = useWorkspace.getState();
+    const d = await runDecomposition(s.recording!, FP, recipeOf(s), null);
+    open('f'.repeat(64));
+    await expect(conditionedSamples(d!, useWorkspace.getState().recording!)).rejects.toThrow(/made from another recording/);
   });
 });
