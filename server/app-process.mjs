@@ -19,7 +19,7 @@ const outDir = path.resolve(root, process.env.TIDEMARK_OUT_DIR ?? 'dist');
 const host = process.env.HOST ?? '127.0.0.1';
 const port = Number(process.env.PORT ?? 4321);
 /** The largest body any route accepts (routes cap lower: forms 16 KiB, JSON 64 KiB unless they say otherwise). */
-export const MAX_BODY_BYTES = Number(process.env.TIDEMARK_MAX_BODY_BYTES ?? 1_048_576);
+const MAX_BODY_BYTES = Number(process.env.TIDEMARK_MAX_BODY_BYTES ?? 1_048_576);
 /** Bodies over the cap but at most this size are read (and dropped) before the 413, so the client sees it. */
 const DRAIN_BYTES = 8 * 1024 * 1024;
 /** The study page's batch import of summaries (many files of up to 1 MB each) has its own cap (IMPORT_CAPS). */
@@ -70,7 +70,9 @@ function serveStatic(req, res, pathname) {
   });
   stream.on('error', (error) => {
     if (res.headersSent) return res.destroy();
-    refuse(res, error.status ?? 500, error.status === 404 ? 'Not found.' : 'The file could not be read.');
+    // An error answer must not carry the file's headers (a year of caching, its length, its validators).
+    for (const name of res.getHeaderNames()) if (!BASE_HEADER_NAMES.has(name)) res.removeHeader(name);
+    refuse(res, error.status ?? 500, error.status === 404 ? 'Not found.' : error.status === 416 ? 'The range asked for is not in the file.' : error.status === 412 ? 'The file has changed.' : 'The file could not be read.');
   });
   stream.pipe(res);
 }
@@ -84,6 +86,7 @@ function refuse(res, status, message) {
 // refusals: they get the security headers here. Anything Astro renders sets its own (a page's CSP carries the hashes
 // of its inline scripts), and Node lets those replace these (http.ServerResponse#writeHead merges, its own win).
 const BASE_SECURITY_HEADERS = Object.entries({ ...FIXED_SECURITY_HEADERS, 'content-security-policy': contentSecurityPolicy() });
+const BASE_HEADER_NAMES = new Set(BASE_SECURITY_HEADERS.map(([name]) => name.toLowerCase()));
 
 const server = http.createServer((req, res) => {
   for (const [name, value] of BASE_SECURITY_HEADERS) res.setHeader(name, value);
@@ -116,14 +119,16 @@ const server = http.createServer((req, res) => {
     }
     return;
   }
+  const rawPath = (req.url ?? '/').split(/[?#]/, 1)[0];
   let pathname;
   try {
-    pathname = decodeURI((req.url ?? '/').split(/[?#]/, 1)[0]);
+    pathname = decodeURI(rawPath);
   } catch {
     refuse(res, 400, 'Bad request: the address is not valid percent-encoding.');
     return;
   }
-  if ((req.method === 'GET' || req.method === 'HEAD') && staticFiles.has(pathname)) serveStatic(req, res, pathname);
+  // The list holds decoded names; send decodes the path itself, so it gets the path as it came.
+  if ((req.method === 'GET' || req.method === 'HEAD') && staticFiles.has(pathname)) serveStatic(req, res, rawPath);
   else handler(req, res);
 });
 server.requestTimeout = 60_000;

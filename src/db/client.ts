@@ -15,7 +15,8 @@ if (!url) {
  */
 export const pool = new pg.Pool({
   connectionString: url,
-  max: 10,
+  // 10, or this process's share when several serve (server/main.mjs sets it for each).
+  max: Number(process.env.TIDEMARK_DB_POOL_SIZE ?? 10),
   connectionTimeoutMillis: 5_000,
   idleTimeoutMillis: 30_000,
   statement_timeout: 15_000,
@@ -25,7 +26,7 @@ pool.on('error', (error) => {
   console.error(`[tidemark] database connection lost while idle (${(error as { code?: string }).code ?? error.message}); it will be replaced`);
 });
 // The pool listens only to idle clients. A client checked out for a transaction sits between two statements while
-// the app computes (an audit hash, say); a server shutdown then arrives as an 'error' event with no query to take it,
+// the app computes; a server shutdown then arrives as an 'error' event with no query to take it,
 // and an 'error' event nobody listens to ends the process. Every client gets its own listener: the statement that
 // follows fails as unavailable (503), and the pool drops the broken client when it is released.
 pool.on('connect', (client) => {
@@ -37,7 +38,7 @@ export const db = drizzle(pool, { schema });
 export type Db = typeof db;
 /** A transaction handed to a `db.transaction` callback. */
 export type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
-// server/main.mjs closes the pool after the last request in flight on SIGTERM.
+// server/app-process.mjs closes the pool after the last request in flight on SIGTERM.
 (globalThis as { __closeTidemarkDatabasePool?: () => Promise<void> }).__closeTidemarkDatabasePool = () => pool.end();
 
 const UNAVAILABLE_CODES = new Set([

@@ -68,4 +68,15 @@ describe('several app processes (TIDEMARK_WORKERS)', () => {
     expect(app.output().match(/SIGTERM: finishing requests in flight, then stopping/g)).toHaveLength(2);
     await expect(fetch(`${app.url}/sign-in`)).rejects.toThrow();
   }, 60_000);
+
+  it('stops, with the reason, when an app process cannot start (the port is taken), instead of restarting it for ever', async () => {
+    const taken = http.createServer();
+    await new Promise<void>((resolve) => taken.listen(0, '127.0.0.1', resolve));
+    const port = (taken.address() as { port: number }).port;
+    try {
+      await expect(startInstance({ TIDEMARK_WORKERS: '2', PORT: String(port) }, { timeoutMs: 30_000 })).rejects.toThrow(/before it served; stopping/);
+    } finally {
+      taken.close();
+    }
+  }, 60_000);
 });

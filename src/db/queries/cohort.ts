@@ -54,15 +54,11 @@ const overviewSubjects = db
 /** A session row of the overview with its recipe, outline and digest still as JSON text. */
 type OverviewRowText = Omit<CohortSessionRow, 'recipe' | 'outline' | 'digest'> & { recipe: string; outline: string; digest: string };
 
-/** Everything the Cohort screen paints first: five independent reads, in parallel, whatever the number of sessions. */
+/** Everything the Cohort screen paints first: five independent reads, whatever the number of sessions. */
 async function overviewParts(studyId: string): Promise<{ sessions: OverviewRowText[]; rest: Omit<CohortOverview, 'sessions'> }> {
-  const [rows, signed, covariates, subjectRows, design] = await Promise.all([
-    overviewRows.execute({ studyId }),
-    overviewSignatures.execute({ studyId }),
-    listCovariates(studyId),
-    overviewSubjects.execute({ studyId }),
-    getCohortDesign(studyId),
-  ]);
+  // Two rounds of reads, at most three connections at once: the pool (10) stays open to the requests around it.
+  const [rows, signed] = await Promise.all([overviewRows.execute({ studyId }), overviewSignatures.execute({ studyId })]);
+  const [covariates, subjectRows, design] = await Promise.all([listCovariates(studyId), overviewSubjects.execute({ studyId }), getCohortDesign(studyId)]);
   const sigs = signed.map((r) => r.signature);
   const missing = rows.flatMap((r) => (r.versionId !== null && r.summaryHash !== null && r.digest === null ? [r.versionId] : []));
   const made = await storeDigests(missing);

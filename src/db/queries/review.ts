@@ -47,7 +47,6 @@ export interface SessionWithRole {
   role: Role;
 }
 
-/** The analysis session when the user belongs to its team, else null (callers answer 404). */
 // The reads every session route makes, prepared once (drizzle `.prepare`: a named statement per connection, so
 // neither the SQL text nor PostgreSQL's plan is made again per request).
 const sessionForMember = db
@@ -81,6 +80,7 @@ const signaturesOfSession = db
   .orderBy(asc(signatures.signedAt), asc(signatures.id))
   .prepare('tidemark_signatures_of_session');
 
+/** The analysis session when the user belongs to its team, else null (callers answer 404). */
 export async function getSessionForMember(sessionId: string, userId: string): Promise<SessionWithRole | null> {
   if (!isUuid(sessionId)) return null;
   const rows = await sessionForMember.execute({ sessionId, userId });

@@ -37,7 +37,6 @@ export interface StudyWithRole {
   role: Role;
 }
 
-/** The study when the user belongs to its team, else null: another team's study is indistinguishable from none. */
 // Every study route's first read, prepared once (drizzle `.prepare`: a named statement per connection).
 const studyForMember = db
   .select({ study: studies, team: teams, role: memberships.role })
@@ -48,6 +47,7 @@ const studyForMember = db
   .limit(1)
   .prepare('tidemark_study_for_member');
 
+/** The study when the user belongs to its team, else null: another team's study is indistinguishable from none. */
 export async function getStudyForMember(studyId: string, userId: string): Promise<StudyWithRole | null> {
   if (!isUuid(studyId)) return null;
   const rows = await studyForMember.execute({ studyId, userId });
