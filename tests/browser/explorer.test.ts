@@ -5,6 +5,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import { artifactsDir, launchBrowser, downloadFrom } from '../helpers/browser';
+import { bandWindowMean } from '../helpers/band-cells';
 import { runRecipe, type AnalysisResult } from '../../src/lib/analysis/run-recipe';
 import { loadDemo } from '../../src/components/explorer/test-hooks';
 import { readMapCell, recordProgress, progressSeen, loadDemoInWorkspace } from '../helpers/workspace';
@@ -342,21 +343,10 @@ describe('the spectrum and band screens', () => {
     // theta (4–8 Hz), early window (0.1–0.5 s), Fz, lamp-watch: the mean of the core's dB map over those cells,
     // leaving out edge-zone cells (closer than edgeSeconds to an epoch edge).
     const r = nodeResult({ ...recipe, baseline: { ...recipe.baseline, scope: 'average' } });
-    const map = r.conditions['lamp-watch'].normalized[0];
-    let sum = 0;
-    let n = 0;
-    r.frequencies.forEach((f, fi) => {
-      if (f < 4 || f > 8) return;
-      r.times.forEach((t, ti) => {
-        if (t < 0.1 - 1e-9 || t > 0.5 + 1e-9) return;
-        if (t - r.times[0] < r.edgeSeconds[fi] || r.times[r.times.length - 1] - t < r.edgeSeconds[fi]) return;
-        sum += map[fi][ti];
-        n++;
-      });
-    });
+    const { mean, n } = bandWindowMean(r, 'lamp-watch', 0, [4, 8], [0.1, 0.5]);
     const line = csv.find((l) => l.startsWith('theta,') && l.includes(',early,') && l.includes(',Fz,lamp-watch,'))!;
     const cols = line.split(',');
-    expect(Number(cols[12])).toBeCloseTo(sum / n, 9);
+    expect(Number(cols[12])).toBeCloseTo(mean, 9);
     expect(Number(cols[14])).toBe(n);
     await page.screenshot({ path: path.join(artifactsDir, 'explorer-bands.png'), fullPage: true });
   });

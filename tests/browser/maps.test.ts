@@ -7,6 +7,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Locator, Page } from 'playwright-core';
 import { artifactsDir, launchBrowser, downloadFrom } from '../helpers/browser';
+import { bandWindowMean } from '../helpers/band-cells';
 import { runRecipe, type AnalysisResult } from '../../src/lib/analysis/run-recipe';
 import { demoRecording } from '../../src/components/explorer/test-hooks';
 import { readMapCell, loadDemoInWorkspace } from '../helpers/workspace';
@@ -261,21 +262,10 @@ describe('channel groups and contrasts on the Maps screen', () => {
     expect(theta).toHaveLength(r.conditions['lamp-watch'].trials);
     expect(new Set(theta.map((c) => c[3])).size).toBe(theta.length); // one row per epoch, told apart by onset
     const shown = theta.reduce((sum, c) => sum + Number(c[13]), 0) / theta.length;
-    const map = r.conditions['lamp-watch'].normalized[0];
-    let sum = 0;
-    let n = 0;
-    r.frequencies.forEach((f, fi) => {
-      if (f < 4 || f > 8) return;
-      r.times.forEach((t, ti) => {
-        if (t < 0.1 - 1e-9 || t > 0.5 + 1e-9) return;
-        if (t - r.times[0] < r.edgeSeconds[fi] || r.times[r.times.length - 1] - t < r.edgeSeconds[fi]) return;
-        sum += map[fi][ti]!;
-        n++;
-      });
-    });
+    const { mean, n } = bandWindowMean(r, 'lamp-watch', 0, [4, 8], [0.1, 0.5]);
     expect(n).toBeGreaterThan(0);
     // Single trials are held as Float32 in the worker: agreement to about 1e-6 relative.
-    expect(Math.abs(shown - sum / n)).toBeLessThan(1e-4 * Math.max(1, Math.abs(sum / n)));
+    expect(Math.abs(shown - mean)).toBeLessThan(1e-4 * Math.max(1, Math.abs(mean)));
     expect(theta.every((c) => c[10] === 'percent-change' && c[14] === '%')).toBe(true);
   });
 });

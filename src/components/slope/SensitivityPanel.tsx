@@ -1,9 +1,11 @@
-import { useEffect, useRef, useState } from 'react';
+import { useState } from 'react';
 import { scaleSequential } from 'd3-scale';
 import { interpolateCividis } from 'd3-scale-chromatic';
 import { useResultsStore, selectActive } from '../../lib/client/workspace/results';
 import { useWorkspace } from '../../lib/client/workspace/store';
-import { checkSensitivityInWorker, SlopeCheckCancelledError, type SensitivityResult } from '../../lib/client/slope-check';
+import { checkSensitivityInWorker, type SensitivityResult } from '../../lib/client/slope-check';
+import { useCheckRun } from '../../lib/client/use-check-run';
+import RunControl from './RunControl';
 import { parseColour } from '../../lib/plot/colormap';
 
 /** "1, 2, 4" → numbers above 0, or the problem in words. */
@@ -77,23 +79,9 @@ export default function SensitivityPanel({ onResult }: { onResult: (r: Sensitivi
   const [channel, setChannel] = useState<string | null>(null);
   const [startsText, setStartsText] = useState('1, 2, 3, 4, 6, 8');
   const [endsText, setEndsText] = useState('20, 25, 30, 35, 40, 45');
-  const [running, setRunning] = useState(false);
-  const [problem, setProblem] = useState<string | null>(null);
-  const [result, setResult] = useState<SensitivityResult | null>(null);
-  const abort = useRef<AbortController | null>(null);
   const fingerprint = useWorkspace((s) => s.fingerprint);
   // A result belongs to one decomposition: another recording or run clears it (and takes it out of the report).
-  const dKey = d?.key ?? null;
-  useEffect(() => {
-    abort.current?.abort();
-    abort.current = null;
-    setRunning(false);
-    setResult(null);
-    onResult(null);
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [dKey, fingerprint]);
-  // Leaving the screen ends a run still going (its worker).
-  useEffect(() => () => abort.current?.abort(), []);
+  const { running, result, problem, refuse, start, cancel } = useCheckRun<SensitivityResult>([d?.key ?? null, fingerprint], onResult);
 
   if (d === null || recording === null) {
     return (
@@ -110,32 +98,15 @@ export default function SensitivityPanel({ onResult }: { onResult: (r: Sensitivi
 
   const run = async () => {
     if (typeof starts === 'string' || typeof ends === 'string') {
-      setProblem(typeof starts === 'string' ? starts : (ends as string));
+      refuse(typeof starts === 'string' ? starts : (ends as string));
       return;
     }
     // The live fit range is always one cell of the grid, so the outlined cell is the interval's range.
     const s = [...new Set([...starts, fitRange[0]])].sort((a, b) => a - b);
     const e = [...new Set([...ends, fitRange[1]])].sort((a, b) => a - b);
-    abort.current?.abort();
-    const controller = new AbortController();
-    abort.current = controller;
-    setRunning(true);
-    setProblem(null);
-    // A run replaced by a newer one, or cleared by another decomposition, says nothing more.
-    try {
-      const r = await checkSensitivityInWorker(d, recording, { channel: ch, fingerprint, rangeHz: [fitRange[0], fitRange[1]], model, startsHz: s, endsHz: e, bootstrap: { repetitions: 200, level: 0.9, seed: 1 } }, { signal: controller.signal });
-      if (abort.current === controller) {
-        setResult(r);
-        onResult(r);
-      }
-    } catch (err) {
-      if (abort.current === controller) setProblem(err instanceof SlopeCheckCancelledError ? 'Cancelled; the previous result stays.' : err instanceof Error ? err.message : String(err));
-    } finally {
-      if (abort.current === controller) {
-        abort.current = null;
-        setRunning(false);
-      }
-    }
+    await start((signal) =>
+      checkSensitivityInWorker(d, recording, { channel: ch, fingerprint, rangeHz: [fitRange[0], fitRange[1]], model, startsHz: s, endsHz: e, bootstrap: { repetitions: 200, level: 0.9, seed: 1 } }, { signal }),
+    );
   };
 
   const overlapShare = result === null ? 0 : result.overlapSamples / result.segmentSamples;
@@ -163,20 +134,7 @@ export default function SensitivityPanel({ onResult }: { onResult: (r: Sensitivi
           Range ends (Hz)
           <input className="w-56 rounded-sm border border-shell bg-foam px-2 py-1 font-mono text-sm text-ink" value={endsText} onChange={(e) => setEndsText(e.target.value)} data-testid="sensitivity-ends" />
         </label>
-        {running ? (
-          <>
-            <span className="text-sm" role="status">
-              Fitting in a worker…
-            </span>
-            <button type="button" className="btn btn-quiet" onClick={() => abort.current?.abort()}>
-              Cancel
-            </button>
-          </>
-        ) : (
-          <button type="button" className="btn btn-primary" onClick={() => void run()} data-testid="sensitivity-run">
-            Check {ch}
-          </button>
-        )}
+        <RunControl running={running} busyWords="Fitting in a worker…" label={`Check ${ch}`} onRun={() => void run()} onCancel={cancel} testId="sensitivity-run" />
       </fieldset>
       {problem !== null && (
         <p className="notice notice-warn mt-3" role="alert">

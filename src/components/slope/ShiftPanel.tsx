@@ -1,7 +1,9 @@
 import { useEffect, useRef, useState } from 'react';
 import { useResultsStore, selectActive } from '../../lib/client/workspace/results';
 import { useWorkspace } from '../../lib/client/workspace/store';
-import { checkBroadbandShiftInWorker, SlopeCheckCancelledError, type ShiftResult } from '../../lib/client/slope-check';
+import { checkBroadbandShiftInWorker, type ShiftResult } from '../../lib/client/slope-check';
+import { useCheckRun } from '../../lib/client/use-check-run';
+import RunControl from './RunControl';
 import { divergingColormap } from '../../lib/plot/colormap';
 import { colourPosition, methodUnit, symmetricLimits, type ColourScale } from '../../lib/plot/colour-scale';
 import NumberField from '../explorer/NumberField';
@@ -50,21 +52,9 @@ export default function ShiftPanel() {
   const fitRange = useWorkspace((s) => s.fitRange);
   // As long as the baseline by default: windows of one length give spectra of one resolution.
   const [post, setPost] = useState(() => ({ start: 0.2, end: Number((0.2 + baseline.end - baseline.start).toFixed(3)) }));
-  const [running, setRunning] = useState(false);
-  const [problem, setProblem] = useState<string | null>(null);
-  const [result, setResult] = useState<ShiftResult | null>(null);
-  const abort = useRef<AbortController | null>(null);
-  const dKey = d?.key ?? null;
   const fingerprint = useWorkspace((s) => s.fingerprint);
   // A result belongs to one decomposition: another recording or run clears it.
-  useEffect(() => {
-    abort.current?.abort();
-    abort.current = null;
-    setRunning(false);
-    setResult(null);
-  }, [dKey, fingerprint]);
-  // Leaving the screen ends a run still going (its worker).
-  useEffect(() => () => abort.current?.abort(), []);
+  const { running, result, problem, refuse, start, cancel } = useCheckRun<ShiftResult>([d?.key ?? null, fingerprint]);
 
   if (d === null || recording === null) {
     return (
@@ -81,26 +71,10 @@ export default function ShiftPanel() {
 
   const run = async () => {
     if (!(post.end > post.start) || post.start < d.epochStart || post.end > epochEnd) {
-      setProblem(`Post-event window: ${post.start}–${post.end} s must run forwards inside the epoch (${d.epochStart}–${Number(epochEnd.toFixed(3))} s); nothing was run.`);
+      refuse(`Post-event window: ${post.start}–${post.end} s must run forwards inside the epoch (${d.epochStart}–${Number(epochEnd.toFixed(3))} s); nothing was run.`);
       return;
     }
-    abort.current?.abort();
-    const controller = new AbortController();
-    abort.current = controller;
-    setRunning(true);
-    setProblem(null);
-    // A run replaced by a newer one, or cleared by another decomposition, says nothing more.
-    try {
-      const r = await checkBroadbandShiftInWorker(d, recording, { channel, condition, baseline, post, method, rangeHz: [fitRange[0], fitRange[1]], model, bands }, { signal: controller.signal });
-      if (abort.current === controller) setResult(r);
-    } catch (err) {
-      if (abort.current === controller) setProblem(err instanceof SlopeCheckCancelledError ? 'Cancelled; the previous result stays.' : err instanceof Error ? err.message : String(err));
-    } finally {
-      if (abort.current === controller) {
-        abort.current = null;
-        setRunning(false);
-      }
-    }
+    await start((signal) => checkBroadbandShiftInWorker(d, recording, { channel, condition, baseline, post, method, rangeHz: [fitRange[0], fitRange[1]], model, bands }, { signal }));
   };
 
   const nF = d.frequencies.length;
@@ -142,20 +116,7 @@ export default function ShiftPanel() {
         </p>
         <NumberField label="Post window from" unit="s" value={post.start} step={0.05} onValue={(v) => setPost({ ...post, start: v })} testId="shift-post-start" />
         <NumberField label="to" unit="s" value={post.end} step={0.05} onValue={(v) => setPost({ ...post, end: v })} testId="shift-post-end" />
-        {running ? (
-          <>
-            <span className="text-sm" role="status">
-              Fitting both windows in a worker…
-            </span>
-            <button type="button" className="btn btn-quiet" onClick={() => abort.current?.abort()}>
-              Cancel
-            </button>
-          </>
-        ) : (
-          <button type="button" className="btn btn-primary" onClick={() => void run()} data-testid="shift-run">
-            Check the shift
-          </button>
-        )}
+        <RunControl running={running} busyWords="Fitting both windows in a worker…" label="Check the shift" onRun={() => void run()} onCancel={cancel} testId="shift-run" />
       </fieldset>
       {problem !== null && (
         <p className="notice notice-warn mt-3" role="alert" data-testid="shift-problem">

@@ -72,17 +72,7 @@ export function drawAxes(ctx: Ctx, layout: PanelLayout, spec: AxesSpec): void {
   ctx.textBaseline = 'top';
   const tCount = Math.max(2, Math.floor(plotWidth / 70));
   const tTicks = spec.timeEnds ? ticksWithEnds(spec.time, spec.timeEnds[0], spec.timeEnds[1], tCount, false, 50) : spec.time.ticks(tCount);
-  tTicks.forEach((t, i) => {
-    const x = Math.round(spec.time(t)) + 0.5;
-    ctx.beginPath();
-    ctx.moveTo(x, bottom);
-    ctx.lineTo(x, bottom + 4);
-    ctx.stroke();
-    const end = spec.timeEnds !== undefined && (i === 0 || i === tTicks.length - 1);
-    // The end labels lean inwards so they stay inside the panel.
-    ctx.textAlign = end ? (i === 0 ? 'left' : 'right') : 'center';
-    ctx.fillText(end ? formatEndTick(t) : formatTick(t), end ? x + (i === 0 ? -3 : 3) : x, bottom + 6);
-  });
+  drawTimeTicks(ctx, bottom, spec.time, tTicks, spec.timeEnds !== undefined);
   ctx.textAlign = 'center';
   ctx.fillText('time (s)', left + plotWidth / 2, bottom + 21);
   ctx.textAlign = 'right';
@@ -112,6 +102,24 @@ export function drawAxes(ctx: Ctx, layout: PanelLayout, spec: AxesSpec): void {
   ctx.textBaseline = 'alphabetic';
   ctx.fillText(spec.title, left, top - 8);
   ctx.restore();
+}
+
+/**
+ * Time ticks under a plot whose bottom edge is `bottom`, with their labels; with `ends`, the first and last tick are
+ * the range ends (ticksWithEnds), labelled leaning inwards so they stay inside the panel.
+ */
+function drawTimeTicks(ctx: Ctx, bottom: number, time: AxisScale, ticks: number[], ends: boolean): void {
+  ctx.strokeStyle = INK;
+  ticks.forEach((t, i) => {
+    const x = Math.round(time(t)) + 0.5;
+    ctx.beginPath();
+    ctx.moveTo(x, bottom);
+    ctx.lineTo(x, bottom + 4);
+    ctx.stroke();
+    const end = ends && (i === 0 || i === ticks.length - 1);
+    ctx.textAlign = end ? (i === 0 ? 'left' : 'right') : 'center';
+    ctx.fillText(end ? formatEndTick(t) : formatTick(t), end ? x + (i === 0 ? -3 : 3) : x, bottom + 6);
+  });
 }
 
 /** The event at 0 s, dashed over the plot area, when it lies on the map. */
@@ -297,31 +305,10 @@ export function drawTrace(ctx: Ctx, layout: PanelLayout, time: AxisScale, times:
     ctx.stroke();
     ctx.globalAlpha = 1;
   }
-  const [d0, d1] = time.domain();
-  if (d0 < 0 && d1 > 0) {
-    const x = Math.round(time(0)) + 0.5;
-    ctx.setLineDash([3, 3]);
-    ctx.strokeStyle = INK;
-    ctx.beginPath();
-    ctx.moveTo(x, top);
-    ctx.lineTo(x, bottom);
-    ctx.stroke();
-    ctx.setLineDash([]);
-  }
+  drawEventLine(ctx, layout, time);
   const n = times.length;
-  const tTicks = ticksWithEnds(time, times[0], times[n - 1], Math.max(2, Math.floor(plotWidth / 70)), false, 50);
   ctx.textBaseline = 'top';
-  tTicks.forEach((t, i) => {
-    const x = Math.round(time(t)) + 0.5;
-    ctx.strokeStyle = INK;
-    ctx.beginPath();
-    ctx.moveTo(x, bottom);
-    ctx.lineTo(x, bottom + 4);
-    ctx.stroke();
-    const end = i === 0 || i === tTicks.length - 1;
-    ctx.textAlign = end ? (i === 0 ? 'left' : 'right') : 'center';
-    ctx.fillText(end ? formatEndTick(t) : formatTick(t), end ? x + (i === 0 ? -3 : 3) : x, bottom + 6);
-  });
+  drawTimeTicks(ctx, bottom, time, ticksWithEnds(time, times[0], times[n - 1], Math.max(2, Math.floor(plotWidth / 70)), false, 50), true);
   ctx.save();
   ctx.translate(12, top + plotHeight / 2);
   ctx.rotate(-Math.PI / 2);

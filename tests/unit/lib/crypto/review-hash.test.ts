@@ -101,7 +101,6 @@ describe('the hashed text cut around time, id and previous hash (what PostgreSQL
           const [beforeAt, beforeId, beforePrev, afterPrev] = hashedTextAround(e);
           const joined = `${beforeAt}${e.at.toISOString()}${beforeId}${e.id}${beforePrev}${e.prevHash}${afterPrev}`;
           expect(joined).toBe(canonicalJson(chainedForm(e)));
-          expect(createHash('sha256').update(joined, 'utf8').digest('hex')).toBe(eventHash(e));
         },
       ),
       { numRuns: 500 },
