@@ -96,6 +96,24 @@ describe('the design saved with the study', () => {
     expect(r.status).toBe(400);
     expect((await r.json()).error.issues[0].path).toBe('cohort.design.fdr');
   });
+
+  it('comes back in the overview, which is PostgreSQL\'s JSON text equal to the object-built overview on both paths', async () => {
+    // By now the study has covariates and a saved design (the tests above). The route answers from one statement
+    // (db/queries/json-answers.ts); with a summary not yet digested it takes the path that digests it. Both give the
+    // same values as getCohortOverview, which builds the overview from parsed rows.
+    const { getCohortOverview } = await import('../../src/db/queries/cohort');
+    const read = async () => (await c.reviewer.request(`/api/studies/${c.studyId}/cohort`)).json();
+    const direct = await read();
+    expect(direct.design.revision).toBe(2);
+    expect(direct.covariates.names).toEqual(['age', 'group']);
+    expect(direct).toEqual(JSON.parse(JSON.stringify(await getCohortOverview(c.studyId))));
+    await pool.query('DELETE FROM summary_digests WHERE recipe_version_id = (SELECT v.id FROM recipe_versions v JOIN analysis_sessions a ON a.id = v.analysis_session_id AND v.number = a.current_version WHERE a.id = $1)', [c.sessions[4].id]);
+    const redigested = await read();
+    expect(redigested).toEqual(direct);
+    const { rows } = await pool.query('SELECT count(*)::int AS n FROM summary_digests d JOIN recipe_versions v ON v.id = d.recipe_version_id WHERE v.analysis_session_id = $1', [c.sessions[4].id]);
+    expect(rows[0].n).toBe(1);
+    expect(await read()).toEqual(direct);
+  });
 });
 
 describe('the Cohort page and its report', () => {

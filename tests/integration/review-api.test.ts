@@ -36,6 +36,28 @@ async function sessionInReview(): Promise<string> {
   return id;
 }
 
+/** GET /api/analysis-sessions/<id> built from drizzle's rows and JSON.stringify, as the route answered before. */
+async function objectBuiltSession(id: string) {
+  const { getRecipeVersion, listRecipeVersions, listSignatures } = await import('../../src/db/queries/review');
+  const { signatureJson, versionJson } = await import('../../src/lib/server/review-api');
+  const { rows } = await pool.query('SELECT * FROM analysis_sessions WHERE id = $1', [id]);
+  const s = rows[0];
+  const current = s.current_version === null ? null : await getRecipeVersion(id, s.current_version);
+  const versions = await listRecipeVersions(id);
+  const summaryHash = current ? (versions.find((v) => v.number === current.number)?.summaryHash ?? null) : null;
+  return JSON.parse(
+    JSON.stringify({
+      analysisSession: {
+        id: s.id, studyId: s.study_id, subjectId: s.subject_id, subjectCode: s.subject_code, fingerprint: s.fingerprint, ownerId: s.owner_id,
+        status: s.status, returnReason: s.return_reason, currentVersion: s.current_version, createdAt: s.created_at, updatedAt: s.updated_at,
+      },
+      current: current ? { ...versionJson(current), summaryHash } : null,
+      versions,
+      signatures: (await listSignatures(id)).map(signatureJson),
+    }),
+  );
+}
+
 /** Sends the same request as each person and expects the given status from each (refusals first, then the allowed). */
 async function expectStatuses(expectations: Partial<Record<Who, number>>, send: (c: Client, who: Who) => Promise<Response>) {
   const order = (Object.keys(expectations) as Who[]).sort((a, b) => Number(expectations[a]! < 300) - Number(expectations[b]! < 300));
@@ -344,6 +366,13 @@ describe('status changes and signatures', () => {
     const manifest = (await (await clients.reviewer.request(`/api/analysis-sessions/${id}/signatures`)).json());
     expect(manifest.contentHash.canonicalization).toMatch(/RFC 8785/);
     expect(manifest.signatures.map((s: { meaning: string; recipeVersion: number }) => `${s.meaning}@${s.recipeVersion}`)).toEqual(['reviewed@1', 'approved@1']);
+    // The session read is PostgreSQL's own JSON text (db/queries/json-answers.ts): the same answer, key for key and
+    // time for time, as building it from the rows node-postgres parses (what the route did before).
+    const read = await (await clients.reviewer.request(`/api/analysis-sessions/${id}`)).json();
+    expect(read).toEqual(await objectBuiltSession(id));
+    expect(read.versions).toHaveLength(2);
+    expect(read.signatures).toHaveLength(2);
+    expect(read.current).toMatchObject({ number: 2, summaryHash: null });
     // Stored signatures cannot be rewritten, not even by the app's database role.
     await expect(pool.query("UPDATE signatures SET printed_name = 'Someone else' WHERE analysis_session_id = $1", [id])).rejects.toThrow(/written once/);
   });
