@@ -41,9 +41,10 @@ const literal = (value: string | null): string => (value === null ? 'NULL' : pg.
  * insert reads the chain's last hash, fixes the new event's id and time, and stores the event with its SHA-256 taken
  * by PostgreSQL (sha256(), PostgreSQL 11+) over the RFC 8785 text `eventHash` makes (`hashedTextAround` gives the
  * text around the time, id and previous hash), so no hash is made in this process while the lock is held. The
- * verifier recomputes every stored hash with `eventHash` (`npm run audit:verify`).
+ * verifier recomputes every stored hash with `eventHash` (`npm run audit:verify`). With `onlyIf` (an SQL condition)
+ * the insert stores nothing, and takes no id, when the condition is false when it runs.
  */
-function appendStatements(input: AuditInput): { lock: string; insert: string } {
+export function appendStatements(input: AuditInput, onlyIf?: string): { lock: string; insert: string } {
   const teamId = input.teamId ?? null;
   const detail = asJsonValue(input.detail ?? {});
   const [beforeAt, beforeId, beforePrev, afterPrev] = hashedTextAround({ teamId, actorId: input.actorId, action: input.action, targetTable: input.targetTable, targetId: input.targetId, detail });
@@ -53,7 +54,7 @@ function appendStatements(input: AuditInput): { lock: string; insert: string } {
     insert: `INSERT INTO audit_events (id, team_id, actor_id, action, target_table, target_id, detail, at, prev_hash, hash)
      SELECT n.id, ${literal(teamId)}::uuid, ${literal(input.actorId)}::text, ${literal(input.action)}::text, ${literal(input.targetTable)}::text, ${literal(input.targetId)}::text, ${literal(JSON.stringify(detail))}::jsonb, n.at, n.prev,
        encode(sha256(convert_to(${literal(beforeAt)}::text || to_char(n.at AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"') || ${literal(beforeId)} || n.id::text || ${literal(beforePrev)} || n.prev || ${literal(afterPrev)}, 'UTF8')), 'hex')
-     FROM (SELECT nextval(pg_get_serial_sequence('audit_events', 'id')) AS id, date_trunc('milliseconds', now()) AS at, coalesce(${last}, ${literal(CHAIN_GENESIS)}) AS prev) n`,
+     FROM (SELECT nextval(pg_get_serial_sequence('audit_events', 'id')) AS id, date_trunc('milliseconds', now()) AS at, coalesce(${last}, ${literal(CHAIN_GENESIS)}) AS prev${onlyIf ? ` WHERE ${onlyIf}` : ''}) n`,
   };
 }
 

@@ -4,7 +4,9 @@
  * one transaction; changes to one analysis session are serialized by locking its row (SELECT … FOR UPDATE).
  */
 import { and, asc, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
-import { db } from '../client';
+import { randomUUID } from 'node:crypto';
+import pg from 'pg';
+import { db, pool } from '../client';
 import {
   analysisSessions,
   auditEvents,
@@ -28,7 +30,7 @@ import {
 import type { Role } from '../../lib/permissions';
 import type { MailKind, NoteAnchorT } from '../../lib/schemas/review';
 import { jsonHash, signedContentHash } from '../../lib/crypto/review-hash';
-import { recordAudit, recordAuditAndCommit } from './audit';
+import { appendStatements, recordAudit, recordAuditAndCommit } from './audit';
 import { digestNewSummaries } from './cohort';
 import { isUuid } from './teams';
 
@@ -326,36 +328,83 @@ export async function membersAmong(teamId: string, ids: string[]) {
 
 export type CreateNoteResult = { ok: true; note: Note; replayed: boolean } | { ok: false; reason: 'key_reused' };
 
+type NoteInput = { body: string; recipeVersionId: string | null; anchor: NoteAnchorT | null; mentions: string[]; parentId: string | null; clientKey?: string };
+
 /**
  * Stores a note or a reply with its audit event. With a `clientKey` the author already used, nothing new is stored:
  * the same post (same session, thread and text) returns the stored note (`replayed`), so a client that resends after a
- * lost answer gets exactly one note; a different post under that key is refused.
+ * lost answer gets exactly one note; a different post under that key is refused. `then` (the mail of mentions) runs in
+ * the note's transaction; without it the whole change is one message to PostgreSQL (`createNoteInOneMessage`).
  */
-export async function createNote(
-  ctx: SessionWithRole,
-  authorId: string,
-  input: { body: string; recipeVersionId: string | null; anchor: NoteAnchorT | null; mentions: string[]; parentId: string | null; clientKey?: string },
-  then?: InTransaction<Note>,
-): Promise<CreateNoteResult> {
+export async function createNote(ctx: SessionWithRole, authorId: string, input: NoteInput, then?: InTransaction<Note>): Promise<CreateNoteResult> {
+  const stored = then ? await createNoteInTransaction(ctx, authorId, input, then) : await createNoteInOneMessage(ctx, authorId, input);
+  if (stored) return { ok: true, note: stored, replayed: false };
+  // Nothing inserted: the author already used this clientKey.
+  const [earlier] = await db.select().from(notes).where(and(eq(notes.authorId, authorId), eq(notes.clientKey, input.clientKey!)));
+  if (earlier.analysisSessionId !== ctx.session.id || earlier.parentId !== input.parentId || earlier.body !== input.body) return { ok: false, reason: 'key_reused' };
+  return { ok: true, note: earlier, replayed: true };
+}
+
+const lit = (value: string | null): string => (value === null ? 'NULL' : pg.escapeLiteral(value));
+
+/** The notes row as drizzle's `Note` names its fields (node-postgres parses times, jsonb and text[] the same way). */
+const NOTE_FIELDS = `id, analysis_session_id AS "analysisSessionId", parent_id AS "parentId", recipe_version_id AS "recipeVersionId", anchor,
+  author_id AS "authorId", body, mentions, revision, client_key AS "clientKey", resolved_at AS "resolvedAt", resolved_by AS "resolvedBy",
+  created_at AS "createdAt", updated_at AS "updatedAt"`;
+
+/**
+ * The busiest write (note posts, issue 17) as one message in the simple query protocol: BEGIN, the insert, the
+ * team's chain lock, the audit event (stored only when the note was: a clientKey used before inserts nothing) and
+ * COMMIT. PostgreSQL runs them one after another; the lock is held only while the server inserts and commits, and the
+ * request makes one round trip in place of four. Values go in as escaped literals (pg's `escapeLiteral`, as the
+ * audit statements do). If a statement fails, those after it do not run and the transaction is rolled back.
+ * Returns the stored note, or null when nothing was stored.
+ */
+async function createNoteInOneMessage(ctx: SessionWithRole, authorId: string, input: NoteInput): Promise<Note | null> {
+  const id = randomUUID();
+  const insert = `INSERT INTO notes (id, analysis_session_id, parent_id, recipe_version_id, anchor, author_id, body, mentions, client_key)
+    VALUES (${lit(id)}::uuid, ${lit(ctx.session.id)}::uuid, ${lit(input.parentId)}::uuid, ${lit(input.recipeVersionId)}::uuid,
+      ${input.anchor === null ? 'NULL' : `${lit(JSON.stringify(input.anchor))}::jsonb`}, ${lit(authorId)}, ${lit(input.body)},
+      ARRAY[${input.mentions.map(lit).join(', ')}]::text[], ${lit(input.clientKey ?? null)}::uuid)
+    ON CONFLICT DO NOTHING RETURNING ${NOTE_FIELDS}`;
+  const { lock, insert: audit } = appendStatements(
+    {
+      actorId: authorId, action: input.parentId ? 'note.reply' : 'note.create', targetTable: 'notes', targetId: id, teamId: ctx.team.id,
+      detail: { analysisSessionId: ctx.session.id, studyId: ctx.study.id, subjectCode: ctx.session.subjectCode, ...(input.parentId ? { parentId: input.parentId } : {}), mentions: input.mentions },
+    },
+    `EXISTS (SELECT 1 FROM notes WHERE id = ${lit(id)}::uuid)`,
+  );
+  const client = await pool.connect();
+  let broken: Error | undefined;
+  try {
+    const results = (await client.query(['BEGIN', insert, lock, audit, 'COMMIT'].join(';\n'))) as unknown as pg.QueryResult<Note>[];
+    return results[1].rows[0] ?? null;
+  } catch (error) {
+    await client.query('ROLLBACK').catch((e: Error) => {
+      broken = e;
+    });
+    throw error;
+  } finally {
+    client.release(broken);
+  }
+}
+
+async function createNoteInTransaction(ctx: SessionWithRole, authorId: string, input: NoteInput, then: InTransaction<Note>): Promise<Note | null> {
   return db.transaction(async (tx) => {
     const [note] = await tx
       .insert(notes)
       .values({ analysisSessionId: ctx.session.id, parentId: input.parentId, recipeVersionId: input.recipeVersionId, anchor: input.anchor as Record<string, unknown> | null, authorId, body: input.body, mentions: input.mentions, clientKey: input.clientKey ?? null })
       .onConflictDoNothing()
       .returning();
-    if (!note) {
-      const [earlier] = await tx.select().from(notes).where(and(eq(notes.authorId, authorId), eq(notes.clientKey, input.clientKey!)));
-      if (earlier.analysisSessionId !== ctx.session.id || earlier.parentId !== input.parentId || earlier.body !== input.body) return { ok: false, reason: 'key_reused' };
-      return { ok: true, note: earlier, replayed: true };
-    }
+    if (!note) return null;
     // The mention mail is queued first: the audit event and the commit are one last message (recordAuditAndCommit),
-    // so the team's chain lock is never held across a round trip (note posts are the busiest audited route).
-    await then?.(tx, note);
+    // so the team's chain lock is never held across a round trip.
+    await then(tx, note);
     await recordAuditAndCommit(tx, {
       actorId: authorId, action: input.parentId ? 'note.reply' : 'note.create', targetTable: 'notes', targetId: note.id, teamId: ctx.team.id,
       detail: { analysisSessionId: ctx.session.id, studyId: ctx.study.id, subjectCode: ctx.session.subjectCode, ...(input.parentId ? { parentId: input.parentId } : {}), mentions: input.mentions },
     });
-    return { ok: true, note, replayed: false };
+    return note;
   });
 }
 

@@ -30,9 +30,10 @@ export const POST: APIRoute = (ctx) =>
     }
     const mentions = await checkMentions(found.team.id, input.mentions);
     const place = { url, team: found.team, study: found.study, session: found.session };
-    // The mention mail is queued in the note's own transaction: stored with the note, or not at all.
+    // The mention mail is queued in the note's own transaction: stored with the note, or not at all. A note without
+    // mentions is stored in one message to PostgreSQL (createNote).
     const result = await createNote(found, found.user.id, { body: input.body, recipeVersionId, anchor: input.anchor, mentions, parentId: null, clientKey: input.clientKey },
-      (tx, note) => mailMentioned(tx, place, found.user, note.id, note.body, mentions));
+      mentions.length ? (tx, note) => mailMentioned(tx, place, found.user, note.id, note.body, mentions) : undefined);
     if (!result.ok) throw new HttpError(409, 'client_key_reused', 'clientKey: you used this key for another post. Nothing was stored.');
     const body = { note: noteJson(result.note, { authorName: found.user.displayName, recipeVersion: input.recipeVersion }) };
     // A post sent again (same clientKey) answers 200 with the stored note; it was audited and mailed the first time.

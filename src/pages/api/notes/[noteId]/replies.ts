@@ -17,7 +17,7 @@ export const POST: APIRoute = (ctx) =>
     const parentId = found.note.parentId ?? found.note.id;
     const place = { url, team: found.team, study: found.study, session: found.session };
     const result = await createNote(found, found.user.id, { body: input.body, recipeVersionId: null, anchor: null, mentions, parentId, clientKey: input.clientKey },
-      (tx, note) => mailMentioned(tx, place, found.user, note.id, note.body, mentions));
+      mentions.length ? (tx, note) => mailMentioned(tx, place, found.user, note.id, note.body, mentions) : undefined);
     if (!result.ok) throw new HttpError(409, 'client_key_reused', 'clientKey: you used this key for another post. Nothing was stored.');
     const body = { note: noteJson(result.note, { authorName: found.user.displayName }) };
     if (result.replayed) return json(body, 200);
