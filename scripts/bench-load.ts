@@ -16,7 +16,8 @@
 //    exactly once. A missing note counts as an error.
 // The last two lines are `errors N` and `p99 X ms` (the largest p99 of the routes). Everything is on loopback, the
 // whole run is bounded (TIDEMARK_LOAD_DEADLINE_SECONDS, default 900, build included), and it stops the app and
-// PostgreSQL and drops its database on the way out, also on Ctrl-C or failure.
+// PostgreSQL and drops its database on the way out, also on Ctrl-C or failure (TIDEMARK_LOAD_KEEP=1 leaves both for
+// inspection, e.g. EXPLAIN ANALYZE of the routes' statements).
 //
 // Extending: a route is one entry of ROUTES (name, its share of the clients, how to build one request). The
 // "cohort overview" entry reads the Cohort screen's own route (/api/studies/<id>/cohort).
@@ -308,7 +309,9 @@ async function cleanUp(): Promise<void> {
       child.kill('SIGTERM');
     });
   }
-  if (cluster) {
+  if (cluster && process.env.TIDEMARK_LOAD_KEEP === '1') {
+    log(`TIDEMARK_LOAD_KEEP=1: PostgreSQL keeps running with the database ${DB} for inspection (${cluster.url(DB).replace(/:[^:@]*@/, ':…@')})`);
+  } else if (cluster) {
     const admin = new pg.Client({ connectionString: cluster.url('postgres') });
     await admin.connect().then(() => admin.query(`DROP DATABASE IF EXISTS ${DB} WITH (FORCE)`)).catch(() => {});
     await admin.end().catch(() => {});

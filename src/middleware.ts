@@ -1,14 +1,10 @@
 import { defineMiddleware } from 'astro:middleware';
 import type { APIContext, MiddlewareNext } from 'astro';
-import { blankSessionCookie, SESSION_COOKIE, writeSessionCookie } from './lib/server/auth';
-import { validateSessionToken } from './lib/server/sessions';
+import { checkSignIn } from './lib/server/request-auth';
 import { withSecurityHeaders } from './lib/server/security-headers';
 import { crossSiteRefusal } from './lib/server/same-origin';
 import { databaseUnavailable } from './lib/server/unavailable';
 import { isDatabaseUnavailable } from './db/client';
-
-/** The workspace's expiry prompt asks here how long its session has left; asking is not activity. */
-const STATUS_PATH = '/api/session';
 
 export const onRequest = defineMiddleware(async (context, next) => {
   try {
@@ -29,19 +25,8 @@ async function handle(context: APIContext, next: MiddlewareNext): Promise<Respon
       new Response(`Cross-site request refused: ${crossSite}. Nothing was changed.`, { status: 403, headers: { 'content-type': 'text/plain; charset=utf-8' } }),
     );
   }
-  const token = context.cookies.get(SESSION_COOKIE)?.value ?? null;
-  if (token) {
-    const touch = !(context.request.method === 'GET' && context.url.pathname === STATUS_PATH);
-    const found = await validateSessionToken(token, { touch });
-    if (found.state === 'valid') {
-      context.locals.user = found.user;
-      context.locals.session = found.session;
-      if (found.rotatedToken) writeSessionCookie(context.cookies, context.url, found.rotatedToken);
-    } else {
-      if (found.state === 'ended') context.locals.sessionEnded = found.why;
-      blankSessionCookie(context.cookies, context.url);
-    }
-  }
+  // The busiest routes check the sign-in inside their own statement (lib/server/request-auth.ts).
+  await checkSignIn(context);
   const response = await next();
   // Pages for signed-in people are private and change as data changes.
   if (context.locals.user && !response.headers.has('cache-control')) {

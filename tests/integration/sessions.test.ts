@@ -416,3 +416,69 @@ describe('signing in again from the workspace (/api/session)', () => {
     await owner.query('DELETE FROM throttles WHERE bucket = $1 AND subject = $2', [limits.signInAddress.bucket, throttleSubject(limits.signInAddress, rows[0].address)]);
   });
 });
+
+describe('the busiest reads check the sign-in inside their own statement (issue 17)', () => {
+  // GET /api/analysis-sessions/<id> and GET /api/studies/<id>/cohort skip the middleware's check and check the
+  // sign-in in the same statement as their answer (src/lib/server/request-auth.ts). Every outcome of the full check
+  // must be the same there: an ended session, a stale idle clock, a due rotation, a suspended account, another team.
+  async function setting() {
+    const { team, study } = await createTeam();
+    const member = await createMember(team.id, 'analyst');
+    const { client, id } = await signedIn(member.email, member.password);
+    const made = await client.request(`/api/studies/${study.id}/analysis-sessions`, { method: 'POST', json: { subjectCode: 'TM-S01' } });
+    expect(made.status).toBe(201);
+    const sessionId = (await made.json()).analysisSession.id as string;
+    return { team, study, member, client, id, paths: [`/api/analysis-sessions/${sessionId}`, `/api/studies/${study.id}/cohort`] };
+  }
+  const lastUsed = async (id: string) => (await pool.query('SELECT last_used_at FROM sessions WHERE id = $1', [id])).rows[0]?.last_used_at as Date | undefined;
+
+  it('answers a fresh session without writing, and restarts a stale idle clock', async () => {
+    const { client, id, paths } = await setting();
+    for (const p of paths) {
+      const before = await lastUsed(id);
+      expect((await client.request(p)).status).toBe(200);
+      expect(await lastUsed(id)).toEqual(before);
+      await owner.query(`UPDATE sessions SET last_used_at = now() - interval '5 minutes' WHERE id = $1`, [id]);
+      const stale = await lastUsed(id);
+      expect((await client.request(p)).status).toBe(200);
+      expect((await lastUsed(id))!.getTime()).toBeGreaterThan(stale!.getTime() + 4 * 60_000);
+    }
+  });
+
+  it('ends an idle or expired session (401, as every API route answers; the row deleted, the cookie cleared)', async () => {
+    for (const [why, change] of [
+      ['idle', `last_used_at = now() - make_interval(mins => ${IDLE_MINUTES})`],
+      ['absolute', `expires_at = now()`],
+    ] as const) {
+      const { client, id, paths } = await setting();
+      await owner.query(`UPDATE sessions SET ${change} WHERE id = $1`, [id]);
+      const ended = await client.request(paths[why === 'idle' ? 0 : 1]);
+      expect(ended.status).toBe(401);
+      expect((await ended.json()).error.code).toBe('unauthenticated');
+      expect(await exists(id)).toBe(false);
+      expect(client.cookies.has('tidemark_session')).toBe(false);
+    }
+  });
+
+  it('refuses a suspended account, renews a session due for a new id, and answers 404 to another team', async () => {
+    const { member, client, id, paths } = await setting();
+    await owner.query('UPDATE sessions SET rotation_due = true WHERE id = $1', [id]);
+    const token = client.cookies.get('tidemark_session');
+    expect((await client.request(paths[1])).status).toBe(200);
+    expect(client.cookies.get('tidemark_session')).not.toBe(token);
+    expect(await exists(id)).toBe(false);
+    expect((await client.request(paths[0])).status).toBe(200);
+
+    const other = await createTeam();
+    const outsider = await createMember(other.team.id, 'lead');
+    const stranger = (await signedIn(outsider.email, outsider.password)).client;
+    for (const p of paths) expect((await stranger.request(p)).status).toBe(404);
+    for (const p of paths) expect((await new Client().request(p)).status).toBe(401);
+
+    await owner.query('UPDATE users SET disabled_at = now() WHERE id = $1', [member.user.id]);
+    const refused = await client.request(paths[0]);
+    expect(refused.status).toBe(401);
+    expect(await exists(rowId(client.cookies.get('tidemark_session') ?? 'none'))).toBe(false);
+    expect(client.cookies.has('tidemark_session')).toBe(false);
+  });
+});

@@ -2,6 +2,7 @@
  * The busiest reads, answered with PostgreSQL's own JSON text (issue 17): one prepared statement checks that the
  * person belongs to the team and builds the whole answer (`json_build_object`, `json_agg`), so the route sends it as
  * it is. One round trip in place of four, and no row is turned into objects and back into text in this process.
+ * The reader is a user id, or the request's sign-in, checked in the same statement (db/queries/readers.ts).
  *
  * The text is the same JSON the object-building code wrote before: the same keys and values; times as
  * `Date.prototype.toJSON` writes them (ISO 8601 in UTC with milliseconds, `ISO_UTC`: PostgreSQL's `MS` keeps the
@@ -12,13 +13,14 @@
 import type { Role } from '../../lib/permissions';
 import { pool } from '../client';
 import { isUuid } from './teams';
+import { readerSql, type PlainSignInRow, type Reader } from './readers';
 
 /** `Date.prototype.toJSON` in SQL: `2026-12-02T18:27:30.123Z` (ECMA-262 §21.4.4.36, the ISO 8601 subset it uses). */
 export const isoUtc = (column: string): string => `to_char(${column} AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"')`;
 
 // The session page's and the review clients' read of one analysis session (GET /api/analysis-sessions/<id>).
-const SESSION_MANIFEST = `
-SELECT m.role,
+const sessionManifest = (r: ReturnType<typeof readerSql>) => `
+SELECT m.role${r.columns},
   json_build_object(
     'analysisSession', json_build_object(
       'id', s.id, 'studyId', s.study_id, 'subjectId', s.subject_id, 'subjectCode', s.subject_code, 'fingerprint', s.fingerprint,
@@ -43,50 +45,41 @@ SELECT m.role,
   )::text AS body
 FROM analysis_sessions s
 JOIN studies st ON st.id = s.study_id
-JOIN memberships m ON m.team_id = st.team_id AND m.user_id = $2
+${r.join}
+JOIN memberships m ON m.team_id = st.team_id AND m.user_id = ${r.userId}
 WHERE s.id = $1`;
 
 /**
  * One analysis session as the API answers it (subject, owner, status, the current recipe version with its summary's
  * hash, every version's number and hashes, the signatures), with the reader's role in its team; null when there is
- * no such session or the reader is not a member of its team (the route answers 404 either way).
+ * no such session or the reader is not a member of its team (the route answers 404 either way) — or, for a reader
+ * given by sign-in, when the sign-in is not one the statement can vouch for (db/queries/readers.ts).
  */
-export async function sessionManifestJson(sessionId: string, userId: string): Promise<{ role: Role; body: string } | null> {
+export async function sessionManifestJson(sessionId: string, reader: Reader): Promise<{ row: { role: Role; body: string }; signIn: PlainSignInRow | null } | null> {
   if (!isUuid(sessionId)) return null;
-  const { rows } = await pool.query<{ role: Role; body: string }>({ name: 'tidemark_session_manifest', text: SESSION_MANIFEST, values: [sessionId, userId] });
-  return rows[0] ?? null;
+  const r = readerSql(reader, 2);
+  const { rows } = await pool.query<{ role: Role; body: string } & Partial<PlainSignInRow>>({ name: `tidemark_session_manifest_${r.key}`, text: sessionManifest(r), values: [sessionId, ...r.values] });
+  return answerOf(rows[0]);
+}
+
+/** A self-checking statement's row, split into the answer and the sign-in's columns. */
+function answerOf<T extends object>(row: (T & Partial<PlainSignInRow>) | undefined): { row: T; signIn: PlainSignInRow | null } | null {
+  if (!row) return null;
+  const { user_id, email, display_name, is_operator, session_created_at, last_used_at, expires_at, ...rest } = row;
+  const signIn = user_id === undefined ? null : ({ user_id, email, display_name, is_operator, session_created_at, last_used_at, expires_at } as PlainSignInRow);
+  return { row: rest as T, signIn };
 }
 
 // The Cohort screen's first data (GET /api/studies/<id>/cohort): every session with its current recipe version,
 // summary hash, outline, digest and signatures, then the covariates, the subjects and the saved design. `undigested`
 // says a current summary has no outline and digest yet; the route then takes the path that makes them
-// (cohortOverviewJson in cohort.ts), which happens once per summary.
-const COHORT_OVERVIEW = `
-SELECT m.role,
-  EXISTS (SELECT 1 FROM analysis_sessions a
-            JOIN recipe_versions v ON v.analysis_session_id = a.id AND v.number = a.current_version
-            JOIN summaries sm ON sm.recipe_version_id = v.id
-            LEFT JOIN summary_digests d ON d.recipe_version_id = v.id
-           WHERE a.study_id = st.id AND d.recipe_version_id IS NULL) AS undigested,
+// (cohortOverviewJson in cohort.ts), which happens once per summary. Rows become JSON through json_agg of a row
+// whose columns are the answer's keys (a quarter cheaper in PostgreSQL than json_build_object per session), and
+// `undigested` comes from the same scan.
+const cohortOverview = (r: ReturnType<typeof readerSql>) => `
+SELECT m.role, o.undigested${r.columns},
   json_build_object(
-    'sessions', coalesce((
-      SELECT json_agg(json_build_object(
-               'analysisSessionId', a.id, 'subject', a.subject_code, 'subjectId', a.subject_id, 'ownerName', u.display_name,
-               'status', a.status, 'fingerprint', a.fingerprint, 'recipeVersion', a.current_version, 'recipeHash', v.recipe_hash,
-               'summaryHash', sm.summary_hash,
-               'signatures', coalesce((
-                 SELECT json_agg(json_build_object('printedName', g.printed_name, 'meaning', g.meaning, 'signedAt', ${isoUtc('g.signed_at')},
-                                                   'recipeVersionNumber', g.recipe_version_number, 'contentHash', g.content_hash, 'reason', g.reason)
-                                 ORDER BY g.signed_at, g.id)
-                   FROM signatures g WHERE g.analysis_session_id = a.id), '[]'::json),
-               'recipe', v.recipe, 'outline', d.outline, 'digest', coalesce(d.digest, '{}'::jsonb))
-             ORDER BY a.subject_code, a.created_at)
-        FROM analysis_sessions a
-        JOIN users u ON u.id = a.owner_id
-        LEFT JOIN recipe_versions v ON v.analysis_session_id = a.id AND v.number = a.current_version
-        LEFT JOIN summaries sm ON sm.recipe_version_id = v.id
-        LEFT JOIN summary_digests d ON d.recipe_version_id = v.id
-       WHERE a.study_id = st.id), '[]'::json),
+    'sessions', coalesce(o.sessions, '[]'::json),
     'covariates', json_build_object(
       'names', coalesce((
         SELECT json_agg(n.name ORDER BY n.name)
@@ -101,16 +94,39 @@ SELECT m.role,
                  FROM cohort_designs cd WHERE cd.study_id = st.id)
   )::text AS body
 FROM studies st
-JOIN memberships m ON m.team_id = st.team_id AND m.user_id = $2
+${r.join}
+JOIN memberships m ON m.team_id = st.team_id AND m.user_id = ${r.userId}
+CROSS JOIN LATERAL (
+  SELECT json_agg(j ORDER BY a.subject_code, a.created_at) AS sessions,
+         coalesce(bool_or(sm.summary_hash IS NOT NULL AND d.recipe_version_id IS NULL), false) AS undigested
+    FROM analysis_sessions a
+    JOIN users u ON u.id = a.owner_id
+    LEFT JOIN recipe_versions v ON v.analysis_session_id = a.id AND v.number = a.current_version
+    LEFT JOIN summaries sm ON sm.recipe_version_id = v.id
+    LEFT JOIN summary_digests d ON d.recipe_version_id = v.id
+    CROSS JOIN LATERAL (
+      SELECT a.id AS "analysisSessionId", a.subject_code AS subject, a.subject_id AS "subjectId", u.display_name AS "ownerName",
+             a.status, a.fingerprint, a.current_version AS "recipeVersion", v.recipe_hash AS "recipeHash", sm.summary_hash AS "summaryHash",
+             coalesce((SELECT json_agg(g ORDER BY s.signed_at, s.id)
+                         FROM signatures s
+                         CROSS JOIN LATERAL (
+                           SELECT s.printed_name AS "printedName", s.meaning, ${isoUtc('s.signed_at')} AS "signedAt",
+                                  s.recipe_version_number AS "recipeVersionNumber", s.content_hash AS "contentHash", s.reason) g
+                        WHERE s.analysis_session_id = a.id), '[]'::json) AS signatures,
+             v.recipe, d.outline, coalesce(d.digest, '{}'::jsonb) AS digest) j
+   WHERE a.study_id = st.id
+) o
 WHERE st.id = $1`;
 
 /**
  * The Cohort screen's first data as the API answers it, with the reader's role; null when there is no such study
- * or the reader is not a member of its team. `undigested`: a current summary still needs its outline and digest
- * (the route then answers from cohortOverviewJson, which makes them).
+ * or the reader is not a member of its team (or, for a reader given by sign-in, when the statement cannot vouch for
+ * it). `undigested`: a current summary still needs its outline and digest (the route then answers from
+ * cohortOverviewJson, which makes them).
  */
-export async function cohortOverviewAnswer(studyId: string, userId: string): Promise<{ role: Role; undigested: boolean; body: string } | null> {
+export async function cohortOverviewAnswer(studyId: string, reader: Reader): Promise<{ row: { role: Role; undigested: boolean; body: string }; signIn: PlainSignInRow | null } | null> {
   if (!isUuid(studyId)) return null;
-  const { rows } = await pool.query<{ role: Role; undigested: boolean; body: string }>({ name: 'tidemark_cohort_overview', text: COHORT_OVERVIEW, values: [studyId, userId] });
-  return rows[0] ?? null;
+  const r = readerSql(reader, 2);
+  const { rows } = await pool.query<{ role: Role; undigested: boolean; body: string } & Partial<PlainSignInRow>>({ name: `tidemark_cohort_overview_${r.key}`, text: cohortOverview(r), values: [studyId, ...r.values] });
+  return answerOf(rows[0]);
 }

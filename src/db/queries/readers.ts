@@ -1,0 +1,43 @@
+/**
+ * The reader of a statement, as SQL (issue 17): a user id, or a sign-in the statement checks itself, so that the
+ * busiest routes make one round trip in all (src/lib/server/request-auth.ts decides which, and falls back to the
+ * full check of src/lib/server/sessions.ts when the statement finds nothing).
+ */
+
+/** Who a statement reads for: a user the full check found, or a sign-in its own statement checks (`plainSignIn`). */
+export type Reader = { userId: string } | { tokenHash: string; idleMinutes: number };
+
+/**
+ * SQL for a statement's FROM list: one row `me` (user_id, email, display_name, is_operator, session_created_at,
+ * last_used_at, expires_at) when `tokenParam` (the SHA-256 of the cookie's token) names a session the full check
+ * would pass without writing anything, with the idle limit in minutes in `idleParam`; else no row. The same
+ * conditions as validateSessionToken, each on the safe side: valid means not disabled, not over the absolute limit,
+ * not over the idle limit, not due for a new id, and used within the last minute (else it wants its clock restarted).
+ */
+export function plainSignIn(tokenParam: string, idleParam: string): string {
+  return `(SELECT se.user_id, u.email, u.display_name, u.is_operator, se.created_at AS session_created_at, se.last_used_at, se.expires_at
+     FROM sessions se JOIN users u ON u.id = se.user_id
+    WHERE se.id = ${tokenParam} AND u.disabled_at IS NULL AND NOT se.rotation_due AND se.expires_at > now()
+      AND se.last_used_at > now() - interval '1 minute' AND se.last_used_at > now() - make_interval(mins => ${idleParam}::int)) me`;
+}
+
+/** The columns `plainSignIn` adds to a row. */
+export interface PlainSignInRow {
+  user_id: string;
+  email: string;
+  display_name: string;
+  is_operator: boolean;
+  session_created_at: Date;
+  last_used_at: Date;
+  expires_at: Date;
+}
+
+/**
+ * The reader's part of a statement: `join` goes in the FROM list before the membership join, `userId` is the SQL
+ * of the reader's user id, `columns` adds the sign-in's columns to the select list; `values` are the parameters
+ * from `$first` on. `key` names the variant (prepared statements differ by it).
+ */
+export function readerSql(reader: Reader, first: number): { join: string; userId: string; columns: string; values: unknown[]; key: string } {
+  if ('userId' in reader) return { join: '', userId: `$${first}`, columns: '', values: [reader.userId], key: 'user' };
+  return { join: `CROSS JOIN ${plainSignIn(`$${first}`, `$${first + 1}`)}`, userId: 'me.user_id', columns: ', me.*', values: [reader.tokenHash, reader.idleMinutes], key: 'sign_in' };
+}
