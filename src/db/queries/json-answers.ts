@@ -13,7 +13,7 @@
 import type { Role } from '../../lib/permissions';
 import { pool } from '../client';
 import { isUuid } from './teams';
-import { readerSql, type PlainSignInRow, type Reader } from './readers';
+import { readerSql, splitSignIn, type PlainSignInRow, type Reader } from './readers';
 
 /** `Date.prototype.toJSON` in SQL: `2026-12-02T18:27:30.123Z` (ECMA-262 §21.4.4.36, the ISO 8601 subset it uses). */
 export const isoUtc = (column: string): string => `to_char(${column} AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"')`;
@@ -59,15 +59,7 @@ export async function sessionManifestJson(sessionId: string, reader: Reader): Pr
   if (!isUuid(sessionId)) return null;
   const r = readerSql(reader, 2);
   const { rows } = await pool.query<{ role: Role; body: string } & Partial<PlainSignInRow>>({ name: `tidemark_session_manifest_${r.key}`, text: sessionManifest(r), values: [sessionId, ...r.values] });
-  return answerOf(rows[0]);
-}
-
-/** A self-checking statement's row, split into the answer and the sign-in's columns. */
-function answerOf<T extends object>(row: (T & Partial<PlainSignInRow>) | undefined): { row: T; signIn: PlainSignInRow | null } | null {
-  if (!row) return null;
-  const { user_id, email, display_name, is_operator, session_created_at, last_used_at, expires_at, ...rest } = row;
-  const signIn = user_id === undefined ? null : ({ user_id, email, display_name, is_operator, session_created_at, last_used_at, expires_at } as PlainSignInRow);
-  return { row: rest as T, signIn };
+  return splitSignIn(rows[0]);
 }
 
 // The Cohort screen's first data (GET /api/studies/<id>/cohort): every session with its current recipe version,
@@ -128,5 +120,5 @@ export async function cohortOverviewAnswer(studyId: string, reader: Reader): Pro
   if (!isUuid(studyId)) return null;
   const r = readerSql(reader, 2);
   const { rows } = await pool.query<{ role: Role; undigested: boolean; body: string } & Partial<PlainSignInRow>>({ name: `tidemark_cohort_overview_${r.key}`, text: cohortOverview(r), values: [studyId, ...r.values] });
-  return answerOf(rows[0]);
+  return splitSignIn(rows[0]);
 }

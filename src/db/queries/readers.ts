@@ -3,6 +3,8 @@
  * busiest routes make one round trip in all (src/lib/server/request-auth.ts decides which, and falls back to the
  * full check of src/lib/server/sessions.ts when the statement finds nothing).
  */
+import { getTableColumns, type InferSelectModel } from 'drizzle-orm';
+import type { PgTable } from 'drizzle-orm/pg-core';
 
 /** Who a statement reads for: a user the full check found, or a sign-in its own statement checks (`plainSignIn`). */
 export type Reader = { userId: string } | { tokenHash: string; idleMinutes: number };
@@ -40,4 +42,30 @@ export interface PlainSignInRow {
 export function readerSql(reader: Reader, first: number): { join: string; userId: string; columns: string; values: unknown[]; key: string } {
   if ('userId' in reader) return { join: '', userId: `$${first}`, columns: '', values: [reader.userId], key: 'user' };
   return { join: `CROSS JOIN ${plainSignIn(`$${first}`, `$${first + 1}`)}`, userId: 'me.user_id', columns: ', me.*', values: [reader.tokenHash, reader.idleMinutes], key: 'sign_in' };
+}
+
+/** A self-checking statement's row, split into the answer and the sign-in's columns (null when it read for a user). */
+export function splitSignIn<T extends object>(row: (T & Partial<PlainSignInRow>) | undefined): { row: T; signIn: PlainSignInRow | null } | null {
+  if (!row) return null;
+  const { user_id, email, display_name, is_operator, session_created_at, last_used_at, expires_at, ...rest } = row;
+  const signIn = user_id === undefined ? null : ({ user_id, email, display_name, is_operator, session_created_at, last_used_at, expires_at } as PlainSignInRow);
+  return { row: rest as T, signIn };
+}
+
+/** `alias."column" AS "prefix.key"` for every column of `table`: a raw statement's select list that `rowOf` reads. */
+export function columnsOf(table: PgTable, alias: string, prefix: string): string {
+  return Object.entries(getTableColumns(table))
+    .map(([key, column]) => `${alias}."${column.name}" AS "${prefix}.${key}"`)
+    .join(', ');
+}
+
+/**
+ * The `table` row that a `columnsOf` select list returned, under drizzle's keys. node-postgres has already parsed the
+ * values the way drizzle's mapping gives them for these tables' column types (uuid and text as strings, integers as
+ * numbers, timestamptz as Date).
+ */
+export function rowOf<T extends PgTable>(table: T, row: Record<string, unknown>, prefix: string): InferSelectModel<T> {
+  const out: Record<string, unknown> = {};
+  for (const key of Object.keys(getTableColumns(table))) out[key] = row[`${prefix}.${key}`];
+  return out as InferSelectModel<T>;
 }

@@ -33,6 +33,7 @@ import { jsonHash, signedContentHash } from '../../lib/crypto/review-hash';
 import { appendStatements, recordAudit, recordAuditAndCommit } from './audit';
 import { digestNewSummaries } from './cohort';
 import { isUuid } from './teams';
+import { columnsOf, readerSql, rowOf, splitSignIn, type PlainSignInRow, type Reader } from './readers';
 
 type Tx = Parameters<Parameters<typeof db.transaction>[0]>[0];
 
@@ -51,16 +52,6 @@ export interface SessionWithRole {
 
 // The reads every session route makes, prepared once (drizzle `.prepare`: a named statement per connection, so
 // neither the SQL text nor PostgreSQL's plan is made again per request).
-const sessionForMember = db
-  .select({ session: analysisSessions, study: studies, team: teams, role: memberships.role })
-  .from(analysisSessions)
-  .innerJoin(studies, eq(studies.id, analysisSessions.studyId))
-  .innerJoin(teams, eq(teams.id, studies.teamId))
-  .innerJoin(memberships, and(eq(memberships.teamId, studies.teamId), eq(memberships.userId, sql.placeholder('userId'))))
-  .where(eq(analysisSessions.id, sql.placeholder('sessionId')))
-  .limit(1)
-  .prepare('tidemark_session_for_member');
-
 const versionsOfSession = db
   .select({ number: recipeVersions.number, recipeHash: recipeVersions.recipeHash, createdAt: recipeVersions.createdAt, createdBy: recipeVersions.createdBy, summaryHash: summaries.summaryHash })
   .from(recipeVersions)
@@ -82,11 +73,39 @@ const signaturesOfSession = db
   .orderBy(asc(signatures.signedAt), asc(signatures.id))
   .prepare('tidemark_signatures_of_session');
 
+// The session every session route loads first, with the reader's role: a raw statement, so that it can also check
+// the request's sign-in itself (db/queries/readers.ts; the note post does).
+const statementText = new Map<string, string>();
+function sessionForReaderText(r: ReturnType<typeof readerSql>): string {
+  let text = statementText.get(r.key);
+  if (text === undefined) {
+    text = `SELECT ${columnsOf(analysisSessions, 's', 'session')}, ${columnsOf(studies, 'st', 'study')}, ${columnsOf(teams, 't', 'team')}, m.role${r.columns}
+      FROM analysis_sessions s JOIN studies st ON st.id = s.study_id JOIN teams t ON t.id = st.team_id
+      ${r.join}
+      JOIN memberships m ON m.team_id = st.team_id AND m.user_id = ${r.userId}
+     WHERE s.id = $1`;
+    statementText.set(r.key, text);
+  }
+  return text;
+}
+
+/**
+ * The analysis session when the reader belongs to its team, else null (callers answer 404); for a reader given by
+ * sign-in, also null when the statement cannot vouch for the sign-in.
+ */
+export async function getSessionForReader(sessionId: string, reader: Reader): Promise<{ row: SessionWithRole; signIn: PlainSignInRow | null } | null> {
+  if (!isUuid(sessionId)) return null;
+  const r = readerSql(reader, 2);
+  const { rows } = await pool.query<Record<string, unknown> & Partial<PlainSignInRow>>({ name: `tidemark_session_for_${r.key}`, text: sessionForReaderText(r), values: [sessionId, ...r.values] });
+  const found = splitSignIn(rows[0]);
+  if (!found) return null;
+  const row = found.row;
+  return { row: { session: rowOf(analysisSessions, row, 'session'), study: rowOf(studies, row, 'study'), team: rowOf(teams, row, 'team'), role: row.role as Role }, signIn: found.signIn };
+}
+
 /** The analysis session when the user belongs to its team, else null (callers answer 404). */
 export async function getSessionForMember(sessionId: string, userId: string): Promise<SessionWithRole | null> {
-  if (!isUuid(sessionId)) return null;
-  const rows = await sessionForMember.execute({ sessionId, userId });
-  return rows[0] ?? null;
+  return (await getSessionForReader(sessionId, { userId }))?.row ?? null;
 }
 
 export interface NoteWithRole extends SessionWithRole {

@@ -18,7 +18,9 @@ import type { PlainSignInRow, Reader } from '../../db/queries/readers';
 const STATUS_PATH = '/api/session';
 
 /** `METHOD routePattern` of the routes that check the sign-in inside their own statement. */
-const SELF_CHECKING_ROUTES = new Set(['GET /api/analysis-sessions/[sessionId]', 'GET /api/studies/[studyId]/cohort']);
+// Each of these routes checks the sign-in before anything else it does, through `readAsSignedIn` (the note post
+// through loadSession in review-api.ts).
+const SELF_CHECKING_ROUTES = new Set(['GET /api/analysis-sessions/[sessionId]', 'GET /api/studies/[studyId]/cohort', 'POST /api/analysis-sessions/[sessionId]/notes']);
 
 const deferredTokens = new WeakMap<App.Locals, string>();
 

@@ -3,14 +3,15 @@
  * loads that answer 404 for another team's rows, and the JSON shapes the routes answer with.
  */
 import type { APIContext } from 'astro';
-import { getNoteForMember, getRecipeVersion, getSessionForMember, membersAmong, type NoteWithRole, type SessionWithRole } from '../../db/queries/review';
+import { getNoteForMember, getRecipeVersion, getSessionForReader, membersAmong, type NoteWithRole, type SessionWithRole } from '../../db/queries/review';
 import type { Note, RecipeVersion, Signature } from '../../db/schema';
 import { HttpError, notFound, requireUser } from './http';
+import { readAsSignedIn } from './request-auth';
 
-export async function loadSession({ locals, params }: APIContext): Promise<{ user: NonNullable<App.Locals['user']> } & SessionWithRole> {
-  const user = requireUser(locals);
-  const found = (await getSessionForMember(params.sessionId ?? '', user.id)) ?? notFound('The analysis session');
-  return { user, ...found };
+/** The route's analysis session and the signed-in reader (401, or 404 for another team's session or none). */
+export async function loadSession(ctx: APIContext): Promise<{ user: NonNullable<App.Locals['user']> } & SessionWithRole> {
+  const found = (await readAsSignedIn(ctx, (reader) => getSessionForReader(ctx.params.sessionId ?? '', reader))) ?? notFound('The analysis session');
+  return { user: requireUser(ctx.locals), ...found };
 }
 
 export async function loadNote({ locals, params }: APIContext): Promise<{ user: NonNullable<App.Locals['user']> } & NoteWithRole> {
