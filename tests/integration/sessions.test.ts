@@ -433,7 +433,7 @@ describe('the busiest reads check the sign-in inside their own statement (issue 
   const lastUsed = async (id: string) => (await pool.query('SELECT last_used_at FROM sessions WHERE id = $1', [id])).rows[0]?.last_used_at as Date | undefined;
 
   it('answers a fresh session without writing, and restarts a stale idle clock', async () => {
-    const { client, id, paths } = await setting();
+    const { member, client, id, paths } = await setting();
     for (const p of paths) {
       const before = await lastUsed(id);
       expect((await client.request(p)).status).toBe(200);
@@ -442,6 +442,13 @@ describe('the busiest reads check the sign-in inside their own statement (issue 
       const stale = await lastUsed(id);
       expect((await client.request(p)).status).toBe(200);
       expect((await lastUsed(id))!.getTime()).toBeGreaterThan(stale!.getTime() + 4 * 60_000);
+    }
+    // The note post checks its sign-in with the session it loads: the same for a fresh and a stale clock.
+    for (const age of ['0 minutes', '5 minutes']) {
+      await owner.query(`UPDATE sessions SET last_used_at = now() - $2::interval WHERE id = $1`, [id, age]);
+      const posted = await client.request(`${paths[0]}/notes`, { method: 'POST', json: { body: `checked after ${age}` } });
+      expect(posted.status).toBe(201);
+      expect((await posted.json()).note.authorName).toBe(member.user.displayName);
     }
   });
 
@@ -458,6 +465,13 @@ describe('the busiest reads check the sign-in inside their own statement (issue 
       expect(await exists(id)).toBe(false);
       expect(client.cookies.has('tidemark_session')).toBe(false);
     }
+    // An ended session posts nothing.
+    const { client, id, paths } = await setting();
+    await owner.query(`UPDATE sessions SET expires_at = now() WHERE id = $1`, [id]);
+    const refused = await client.request(`${paths[0]}/notes`, { method: 'POST', json: { body: 'never stored' } });
+    expect(refused.status).toBe(401);
+    const { rows } = await pool.query(`SELECT count(*)::int AS n FROM notes WHERE body = 'never stored'`);
+    expect(rows[0].n).toBe(0);
   });
 
   it('refuses a suspended account, renews a session due for a new id, and answers 404 to another team', async () => {
