@@ -1,0 +1,92 @@
+// Trial-scope decibels take one full-resolution row per group of 2, 4 or 8 trials (src/lib/analysis/trial-products.ts,
+// TrialGroups): the row must be the product of the trials' own power rows. Checked here against the slow, obvious
+// computation: each trial's band-limited signal evaluated at every time point by the DFT sum written out with
+// Math.cos/Math.sin (the definition of the DFT, common practice), its squared magnitude, multiplied over the group.
+import fc from 'fast-check';
+import { describe, expect, it } from 'vitest';
+import { groupHalf, TrialGroups } from '../../../../src/lib/analysis/trial-products';
+import { seededNormal } from '../../../helpers/seeded-random';
+
+/** Σ_q band[q]·exp(−2πi·q·t/period), interleaved band, at t = 0 … points−1 (conj ỹ on a grid of `points`). */
+function dftAt(band: Float64Array, period: number, points: number, step: number): Float64Array {
+  const out = new Float64Array(2 * points);
+  for (let j = 0; j < points; j++) {
+    let re = 0;
+    let im = 0;
+    for (let q = 0; q < band.length / 2; q++) {
+      const angle = (-2 * Math.PI * ((q * j * step) % period)) / period;
+      re += band[2 * q] * Math.cos(angle) - band[2 * q + 1] * Math.sin(angle);
+      im += band[2 * q] * Math.sin(angle) + band[2 * q + 1] * Math.cos(angle);
+    }
+    out[2 * j] = re;
+    out[2 * j + 1] = im;
+  }
+  return out;
+}
+
+// (period N, coarse grid S, h): interpolated groups of 2, 4 and 8, and groups whose fine grid is every point.
+const shapes: [number, number, number][] = [
+  [512, 64, 1],
+  [512, 64, 2],
+  [512, 64, 4],
+  [256, 64, 4],
+  [128, 64, 2],
+];
+
+describe('TrialGroups rows against the DFT written out', () => {
+  it('equal the product of the trials’ power rows for every group size and remainder, at any scale', () => {
+    fc.assert(
+      fc.property(
+        fc.integer({ min: 1, max: 1_000_000 }),
+        fc.constantFrom(...shapes),
+        fc.integer({ min: 1, max: 8 }),
+        // µV² powers from flat channels (1e−80) to huge ones (1e80): a plain product of eight would leave the doubles
+        fc.constantFrom(1e-40, 1e-20, 1, 1e20, 1e40),
+        (seed, [n, s, h], wanted, amplitude) => {
+          const trials = Math.min(wanted, 2 * h);
+          const m = s / 2;
+          const length = Math.min(n, 200);
+          const normal = seededNormal(seed);
+          const groups = new TrialGroups(512);
+          groups.begin(n, s, h);
+          expect(groups.size).toBe(2 * h);
+          const want = new Float64Array(length).fill(1);
+          let peaks = 1;
+          for (let k = 0; k < trials; k++) {
+            const band = new Float64Array(2 * s); // zeros beyond the M band bins, as averagePower leaves them
+            for (let i = 0; i < 2 * m; i++) band[i] = amplitude * normal();
+            const rowK = dftAt(band.subarray(0, 2 * m), n, length, 1);
+            let peak = 0;
+            for (let t = 0; t < length; t++) {
+              const p = rowK[2 * t] ** 2 + rowK[2 * t + 1] ** 2;
+              want[t] *= p / amplitude ** 2;
+              peak = Math.max(peak, p / amplitude ** 2);
+            }
+            peaks *= peak;
+            groups.add(dftAt(band.subarray(0, 2 * m), s, s, 1), band);
+          }
+          expect(groups.full()).toBe(trials === 2 * h);
+          const row = new Float64Array(length);
+          const shift = groups.row(row, length);
+          // row·2^shift = Π P_k; compare in units of amplitude^(2·trials) so the reference stays in range.
+          const unit = 2 * trials * Math.log2(amplitude); // log2 of amplitude^(2·trials)
+          for (let t = 0; t < length; t++) {
+            const got = row[t] * 2 ** (shift - unit);
+            // rounding scales with the product of the rows' peaks, not with the (possibly tiny) value at t
+            expect(Math.abs(got - want[t])).toBeLessThan(1e-10 * peaks);
+          }
+        },
+      ),
+      { numRuns: 60 },
+    );
+  });
+
+  it('picks groups by the counted work: larger where a row costs many transforms, every point when h·S = N', () => {
+    // The bench case's shapes (period N, coarse grid S = 2M): N/S = 16 → groups of 8; 8 → 4; 4 → 2; 2 → 4 on every point.
+    expect(groupHalf(4096, 256)).toBe(4);
+    expect(groupHalf(2048, 256)).toBe(2);
+    expect(groupHalf(2048, 512)).toBe(1);
+    expect(groupHalf(2048, 1024)).toBe(2);
+    for (const [n, s] of [[4096, 256], [2048, 1024], [512, 256], [256, 256]]) expect(groupHalf(n, s) * s).toBeLessThanOrEqual(n);
+  });
+});
