@@ -137,7 +137,7 @@ async function main() {
   console.log(`  CPU time ${single.seconds.tfCpu.toFixed(3)} s`);
   line('runRecipe, 1 thread (+ Welch, aperiodic, JSON)', single.seconds.whole);
   console.log(`  peak RSS ${single.maxRssMb.toFixed(0)} MB`);
-  line('runRecipe, 1 thread, scope trial (trial pairs)', single.seconds.trialScope);
+  line('runRecipe, 1 thread, scope trial (trial groups)', single.seconds.trialScope);
   line('wavelet power + dB, 1 thread, scope trial', single.seconds.tfTrial);
   // Trial scope against average scope, like for like (CPU time is the fairer figure on a shared machine).
   const s = single.seconds;
