@@ -187,8 +187,7 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
               if (ratio !== null) addRatio(ratio, coarse, mean);
               else if (logProduct !== null && groups !== null) {
                 logProduct.addBaseline(f, mean);
-                // averagePower leaves its transform input (the band values) in work.
-                groups.add(coarse, work);
+                groups.add(coarse);
                 if (groups.full() || b === nb - 1) {
                   logProduct.addExponent(f, groups.row(row, L));
                   logProduct.multiplyRow(f * L, row, L);

@@ -15,10 +15,10 @@ import { cos, sin } from './portable-math';
 //     its S samples (products of the trials' samples) fix it exactly. One full-resolution row per pair of
 //     trials replaces one per trial, and it comes from N/S transforms of size S.
 //   - The same holds for larger groups (`TrialGroups`): the product of g = 2h trials' ỹ has its spectrum in bins
-//     0 … g·(M−1), so h·S samples fix it. Each trial then needs ỹ on a grid of h·S points; the S-grid it has is
-//     every h-th point of that grid, and each of the other h−1 residues is one more transform of size S from the
-//     same band values. A group's row then takes N/(h·S) transforms of size h·S, or none when h·S = N (the grid is
-//     every point). `groupHalf` picks h per frequency from a count of the work.
+//     0 … g·(M−1), so h·S samples fix it. Each pair's product (fixed by its S samples) is spread onto a grid of
+//     h·S points: its S-grid is every h-th point of that grid, and the other h−1 residues take one transform of
+//     size S each after one forward transform. A group's row then takes N/(h·S) transforms of size h·S, or none
+//     when h·S = N (the grid is every point). `groupHalf` picks h per frequency from a count of the work.
 // All these identities are exact; the results differ from a row-per-trial computation by rounding only.
 
 const weightCache = new Map<string, Float64Array>();
@@ -90,22 +90,6 @@ function residueTwiddles(n: number, s: number): Float64Array {
   return remember(twiddleCache, key, t);
 }
 
-// exp(−2πi·q·ρ/(h·S)) for ρ = 1 … h−1, q < M, interleaved as `[ρ−1][q]`: shifts a trial's S-grid by ρ/h of a step.
-function fineTwiddles(m: number, fine: number, h: number): Float64Array {
-  const key = `fine|${m}|${fine}|${h}`;
-  const cached = twiddleCache.get(key);
-  if (cached !== undefined) return cached;
-  const t = new Float64Array(2 * m * (h - 1));
-  for (let rho = 1; rho < h; rho++) {
-    for (let q = 0; q < m; q++) {
-      const angle = (-2 * Math.PI * ((q * rho) % fine)) / fine;
-      t[2 * ((rho - 1) * m + q)] = cos(angle);
-      t[2 * ((rho - 1) * m + q) + 1] = sin(angle);
-    }
-  }
-  return remember(twiddleCache, key, t);
-}
-
 // log2 of a power of two, exactly (Math.log2 may differ between engines, and the choice must not).
 function bitsOf(size: number): number {
   let bits = 0;
@@ -113,18 +97,25 @@ function bitsOf(size: number): number {
   return bits;
 }
 
+// A transform of size n counted as n·log2 n, and 1.25 times that above 1024 points, whose arrays and table no
+// longer fit a first-level cache (measured with fft.js: size 2048 takes 2.4× the time of 1024, not 2.2×).
+function transformCost(size: number): number {
+  return size * bitsOf(size) * (size > 1024 ? 1.25 : 1);
+}
+
 /**
  * h (a group is 2h trials) for a frequency with period N and coarse grid S, from a count of the work per trial
- * (a transform of size n taken as n·log2 n, a complex multiply as 1): h−1 transforms of size S per trial for the
- * finer grid, and per group N/(h·S) + 1 transforms of size h·S plus about 2N multiplies (none when h·S = N).
+ * (`transformCost`, a complex multiply as 1): for h > 1, h transforms of size S per pair of trials for the finer
+ * grid, and per group N/(h·S) + 1 transforms of size h·S plus about 2N multiplies (none when h·S = N). On the
+ * bench case's shapes this picks what measures fastest per trial (trial-groups.test.ts lists them).
  */
 export function groupHalf(n: number, s: number): number {
   let best = 1;
   let bestCost = Infinity;
   for (let h = 1; h <= 4 && h * s <= n; h *= 2) {
     const fine = h * s;
-    const group = fine === n ? n : (n / fine + 1) * fine * bitsOf(fine) + 2 * n;
-    const cost = (h - 1) * (s * bitsOf(s) + s) + group / (2 * h);
+    const group = fine === n ? n : (n / fine + 1) * transformCost(fine) + 2 * n;
+    const cost = (h > 1 ? (h / 2) * (transformCost(s) + s) : 0) + group / (2 * h);
     if (cost < bestCost - 1e-9) {
       best = h;
       bestCost = cost;
@@ -163,12 +154,14 @@ function twoToThe(k: number): number {
 export class TrialGroups {
   private n = 0;
   private s = 0;
-  private m = 0;
   private h = 1;
   private fine = 0;
   private count = 0;
   private shift = 0;
-  private fineTw: Float64Array = new Float64Array(0);
+  /** Pairs already spread into `product` in this group. */
+  private pairs = 0;
+  /** The scaled samples of the pair being formed (or of its first trial), S points. */
+  private readonly pair: Float64Array;
   /** Π_k (scaled u_k) on the fine grid of h·S points, interleaved complex: conj of the group's Π ỹ_k. */
   private readonly product: Float64Array;
   private readonly spectrum: Float64Array;
@@ -177,6 +170,7 @@ export class TrialGroups {
 
   /** `maxFine`: the largest h·S any frequency may use (≤ the largest N). */
   constructor(maxFine: number) {
+    this.pair = new Float64Array(maxFine);
     this.product = new Float64Array(2 * maxFine);
     this.spectrum = new Float64Array(2 * maxFine);
     this.work = new Float64Array(2 * maxFine);
@@ -187,12 +181,11 @@ export class TrialGroups {
   begin(n: number, s: number, h: number = groupHalf(n, s)): void {
     this.n = n;
     this.s = s;
-    this.m = s / 2;
     this.h = h;
     this.fine = this.h * s;
-    this.fineTw = this.h > 1 ? fineTwiddles(this.m, this.fine, this.h) : this.fineTw;
     this.count = 0;
     this.shift = 0;
+    this.pairs = 0;
   }
 
   /** Trials per group at the current frequency. */
@@ -205,12 +198,12 @@ export class TrialGroups {
   }
 
   /**
-   * One trial: `u` its S coarse samples (conj ỹ at s·N/S, from `averagePower`) and `band` the transform input
-   * they came from (conj(X·W)/N over the M band bins, interleaved; zeros beyond). The other h−1 residues of the
-   * fine grid are FFT_S(band·exp(−2πi·q·ρ/(h·S))), conj ỹ at (s + ρ/h)·N/S.
+   * One trial: `u` its S coarse samples (conj ỹ at s·N/S, from `averagePower`), scaled by 2^−e (see above). With
+   * h = 1 they go straight into the pair's product. Otherwise two trials' samples are multiplied first (a pair's
+   * product is fixed by S samples) and the pair is spread onto the fine grid (`spreadPair`).
    */
-  add(u: Float64Array, band: Float64Array): void {
-    const { s, h, m } = this;
+  add(u: Float64Array): void {
+    const { s, h } = this;
     let peak = 0;
     for (let q = 0; q < s; q++) {
       const p = u[2 * q] * u[2 * q] + u[2 * q + 1] * u[2 * q + 1];
@@ -219,29 +212,57 @@ export class TrialGroups {
     const e = peak > 0 ? exponentOf(peak) >> 1 : 0;
     const scale = twoToThe(-e);
     this.shift += 2 * e;
-    const first = this.count === 0;
-    this.multiplyInto(u, 0, scale, first);
-    if (h > 1) {
-      const tw = this.fineTw;
-      const work = this.work;
-      const out = this.out;
-      const fft: FFT = getFft(s);
-      work.fill(0, 2 * m, 2 * s);
-      for (let rho = 1; rho < h; rho++) {
-        const base = 2 * (rho - 1) * m;
-        for (let q = 0; q < m; q++) {
-          const xr = band[2 * q];
-          const xi = band[2 * q + 1];
-          const tr = tw[base + 2 * q];
-          const ti = tw[base + 2 * q + 1];
-          work[2 * q] = xr * tr - xi * ti;
-          work[2 * q + 1] = xr * ti + xi * tr;
-        }
-        fft.transform(out, work);
-        this.multiplyInto(out, rho, scale, first);
+    if (h === 1) {
+      this.multiplyInto(u, 0, scale, this.count === 0);
+    } else if ((this.count & 1) === 0) {
+      const pair = this.pair;
+      for (let i = 0; i < 2 * s; i++) pair[i] = scale * u[i];
+    } else {
+      const pair = this.pair;
+      for (let q = 0; q < s; q++) {
+        const ar = pair[2 * q];
+        const ai = pair[2 * q + 1];
+        const br = scale * u[2 * q];
+        const bi = scale * u[2 * q + 1];
+        pair[2 * q] = ar * br - ai * bi;
+        pair[2 * q + 1] = ar * bi + ai * br;
       }
+      this.spreadPair();
     }
     this.count++;
+  }
+
+  /**
+   * The pair's S samples w = conj(ỹ_a·ỹ_b) at s·N/S onto the fine grid: residue ρ of h is w at s·N/S + ρ·N/(h·S),
+   * FFT_S(conj(G)·exp(−2πi·q·r/N)) with G = FFT_S(conj w)/S and r = ρ·N/(h·S) (the identity of `row`, on the fine
+   * grid instead of every point). A lone trial (a group's last, odd one) is spread the same way.
+   */
+  private spreadPair(): void {
+    const { s, h, n, fine, pair, work, spectrum, out } = this;
+    const first = this.pairs === 0;
+    this.multiplyInto(pair, 0, 1, first);
+    for (let q = 0; q < s; q++) {
+      work[2 * q] = pair[2 * q];
+      work[2 * q + 1] = -pair[2 * q + 1];
+    }
+    const fft: FFT = getFft(s);
+    fft.transform(spectrum, work);
+    const twiddles = residueTwiddles(n, s);
+    const step = n / fine;
+    for (let rho = 1; rho < h; rho++) {
+      const base = 2 * rho * step * s;
+      for (let q = 0; q < s; q++) {
+        const gr = spectrum[2 * q];
+        const gi = -spectrum[2 * q + 1];
+        const tr = twiddles[base + 2 * q];
+        const ti = twiddles[base + 2 * q + 1];
+        work[2 * q] = gr * tr - gi * ti;
+        work[2 * q + 1] = gr * ti + gi * tr;
+      }
+      fft.transform(out, work);
+      this.multiplyInto(out, rho, 1, first);
+    }
+    this.pairs++;
   }
 
   // product[s·h + ρ] (×)= scale·samples[s] for s < S.
@@ -271,10 +292,12 @@ export class TrialGroups {
    * (the 1/F sits in the twiddles), whose |·|² is the product. When F = N the fine grid is every point.
    */
   row(row: Float64Array, length: number): number {
+    if (this.h > 1 && (this.count & 1) === 1) this.spreadPair();
     const { n, fine, product } = this;
     const shift = this.shift;
     this.count = 0;
     this.shift = 0;
+    this.pairs = 0;
     if (fine === n) {
       for (let j = 0; j < length; j++) row[j] = product[2 * j] * product[2 * j] + product[2 * j + 1] * product[2 * j + 1];
       return shift;

@@ -60,7 +60,7 @@ describe('trial-scope decibels from a running product', () => {
   });
 
   it('keeps a near-flat channel (power near 1e-70 µV²) in range where rows are products of up to eight trials', () => {
-    // 256 Hz, 1 s epochs, 5 cycles from 2 Hz: the rows at 2 Hz are products of 8 trials, at 4 and 14 Hz of 4
+    // 256 Hz, 1 s epochs, 5 cycles from 2 Hz: the rows at 2 and 4 Hz are products of 8 trials, at 14 Hz of 4
     // (trial-products.ts, groupHalf), so a plain product of the powers would be near 1e-560. Unit-free as above; the
     // scale 2^-116 (≈ 1.2e-35) is a power of two, so the Float32 samples keep their bits and only rounding differs.
     const f2 = Float64Array.of(2, 4, 14);

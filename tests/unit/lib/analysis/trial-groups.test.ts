@@ -53,9 +53,9 @@ describe('TrialGroups rows against the DFT written out', () => {
           const want = new Float64Array(length).fill(1);
           let peaks = 1;
           for (let k = 0; k < trials; k++) {
-            const band = new Float64Array(2 * s); // zeros beyond the M band bins, as averagePower leaves them
+            const band = new Float64Array(2 * m); // the M band bins
             for (let i = 0; i < 2 * m; i++) band[i] = amplitude * normal();
-            const rowK = dftAt(band.subarray(0, 2 * m), n, length, 1);
+            const rowK = dftAt(band, n, length, 1);
             let peak = 0;
             for (let t = 0; t < length; t++) {
               const p = rowK[2 * t] ** 2 + rowK[2 * t + 1] ** 2;
@@ -63,7 +63,7 @@ describe('TrialGroups rows against the DFT written out', () => {
               peak = Math.max(peak, p / amplitude ** 2);
             }
             peaks *= peak;
-            groups.add(dftAt(band.subarray(0, 2 * m), s, s, 1), band);
+            groups.add(dftAt(band, s, s, 1));
           }
           expect(groups.full()).toBe(trials === 2 * h);
           const row = new Float64Array(length);
@@ -81,12 +81,16 @@ describe('TrialGroups rows against the DFT written out', () => {
     );
   });
 
-  it('picks groups by the counted work: larger where a row costs many transforms, every point when h·S = N', () => {
-    // The bench case's shapes (period N, coarse grid S = 2M): N/S = 16 → groups of 8; 8 → 4; 4 → 2; 2 → 4 on every point.
+  it('picks the group size that measured fastest per trial on the bench case’s shapes', () => {
+    // (period N, coarse grid S = 2M): µs per trial and frequency for groups of 2 / 4 / 8 trials, measured on this
+    // machine under load average 2.3 (scripts/bench.ts's case; from memory of that run, not a reference value):
+    // 4096/256: 28.7 / 22.1 / 18.1; 4096/512: 37.3 / 30.1 / 33.8; 2048/256: 17.2 / 15.2 / 14.9 (a tie);
+    // 2048/512: 22.1 / 22.6 / 20.2 (groups of 8 on every point); 2048/1024: 27.8 / 22.7 (groups of 4 on every point).
     expect(groupHalf(4096, 256)).toBe(4);
-    expect(groupHalf(2048, 256)).toBe(2);
-    expect(groupHalf(2048, 512)).toBe(1);
+    expect(groupHalf(4096, 512)).toBe(2);
+    expect([2, 4]).toContain(groupHalf(2048, 256));
+    expect(groupHalf(2048, 512)).toBe(4);
     expect(groupHalf(2048, 1024)).toBe(2);
-    for (const [n, s] of [[4096, 256], [2048, 1024], [512, 256], [256, 256]]) expect(groupHalf(n, s) * s).toBeLessThanOrEqual(n);
+    for (const [n, s] of [[4096, 256], [2048, 1024], [512, 256], [256, 256], [8192, 4096]]) expect(groupHalf(n, s) * s).toBeLessThanOrEqual(n);
   });
 });

@@ -12,9 +12,9 @@ import { gaussianSigmas, getWaveletBank } from '../../../../src/lib/analysis/wav
 import { seededNormal } from '../../../helpers/seeded-random';
 
 // Scenarios of our own. Short: one channel at 128 Hz, epochs of 1.5 s (193 points), a 9 Hz burst in the second
-// half of every other epoch over background noise. Long: 256 Hz, 1 s epochs, wavelets of 5 cycles from 2 Hz, so the
-// trial groups of decibels take every size (trial-products.ts, `groupHalf`): 8 trials per row at 2 Hz, 4 at 4 Hz
-// (both interpolated), 2 at 6 and 9 Hz, and 4 at 14 Hz straight on every time point.
+// half of every other epoch over background noise. Long: 512 Hz, 0.5 s epochs, wavelets of 5 cycles from 1.5 Hz and
+// a 14 Hz burst, so the trial groups of decibels take every kind (trial-products.ts, `groupHalf`): 4 trials per row
+// at 1.5 Hz and 8 at 4 Hz (both interpolated), 8 at 14 Hz and 4 at 21 Hz straight on every time point.
 interface Setup {
   fs: number;
   L: number;
@@ -25,7 +25,7 @@ interface Setup {
   burst: number;
 }
 const short: Setup = { fs: 128, L: 193, freqs: Float64Array.of(4, 9, 21), sigmas: gaussianSigmas(Float64Array.of(4, 9, 21), { min: 3, max: 7 }), first: 20, last: 60, burst: 9 };
-const long: Setup = { fs: 256, L: 257, freqs: Float64Array.of(2, 4, 6, 9, 14), sigmas: gaussianSigmas(Float64Array.of(2, 4, 6, 9, 14), { fixed: 5 }), first: 30, last: 90, burst: 6 };
+const long: Setup = { fs: 512, L: 257, freqs: Float64Array.of(1.5, 4, 14, 21), sigmas: gaussianSigmas(Float64Array.of(1.5, 4, 14, 21), { fixed: 5 }), first: 30, last: 90, burst: 14 };
 
 function epochs(trials: number, seed: number, setup: Setup = short): { x: Float32Array; starts: Int32Array } {
   const { L, fs, burst } = setup;
@@ -114,9 +114,9 @@ describe('scope trial against direct wavelet convolution', () => {
     });
   }
 
-  // Decibels in the long scenario: groups of 2, 4 and 8 trials per row. 1, 3, 5 and 9 trials leave every kind of
-  // remainder (a group of one, of three, of five, of one after a full group of eight); 24 ends a full block of 16
-  // and then takes a group of eight.
+  // Decibels in the long scenario: groups of 4 and 8 trials per row. 1, 3, 5 and 9 trials leave every kind of
+  // remainder (a group of one, of three, of five, of one after full groups); 24 ends a full block of 16 and then
+  // takes a group of eight.
   for (const trials of [1, 3, 5, 9, 24]) {
     it(`matches the definition in decibels with groups of up to eight trials (${trials} trials)`, () => {
       const { x, starts } = epochs(trials, 70 + trials, long);
