@@ -187,7 +187,7 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
               if (ratio !== null) addRatio(ratio, coarse, mean);
               else if (logProduct !== null && groups !== null) {
                 logProduct.addBaseline(f, mean);
-                groups.add(coarse);
+                groups.add(coarse, mean);
                 if (groups.full() || b === nb - 1) {
                   logProduct.addExponent(f, groups.row(row, L));
                   logProduct.multiplyRow(f * L, row, L);

@@ -124,6 +124,7 @@ export function groupHalf(n: number, s: number): number {
   return best;
 }
 
+const MIN_NORMAL = 2.2250738585072014e-308;
 const FLOAT_WORDS = new Uint32Array(new Float64Array(1).buffer);
 const FLOAT_VIEW = new Float64Array(FLOAT_WORDS.buffer);
 
@@ -147,9 +148,11 @@ function twoToThe(k: number): number {
  * `full()` (or at the end of an epoch block) `row` writes the group's row and starts the next group.
  *
  * Range: a product of up to 8 powers can leave the range of a double (power in µV² may be 1e−40 in a flat channel,
- * 1e−320 for eight of them), so each trial's samples are scaled by 2^−e_k, e_k chosen so its largest |u|² lies in
- * [1, 4). A power of two scales exactly, so the row is Π_k P_k·2^−(2·Σe_k) with the same significand bits, and `row`
- * returns 2·Σe_k for the caller to add back to the exponent (LogProduct.addExponent).
+ * 1e−320 for eight of them), so each trial's samples are scaled by 2^−e_k, e_k chosen so its baseline mean B_k
+ * lies in [1, 4) (its largest |u|² when B_k is not a positive normal number). A row then holds Π_k P_k/B_k up to
+ * powers of two, in range unless eight trials average beyond ±370 dB against their own baselines. A power of two
+ * scales exactly, so the row is Π_k P_k·2^−(2·Σe_k) with the same significand bits, and `row` returns 2·Σe_k for the
+ * caller to add back to the exponent (LogProduct.addExponent).
  */
 export class TrialGroups {
   private n = 0;
@@ -198,18 +201,22 @@ export class TrialGroups {
   }
 
   /**
-   * One trial: `u` its S coarse samples (conj ỹ at s·N/S, from `averagePower`), scaled by 2^−e (see above). With
+   * One trial: `u` its S coarse samples (conj ỹ at s·N/S, from `averagePower`) and B its baseline mean (see
+   * `coarseBaseline`), the samples scaled by 2^−e (see above). With
    * h = 1 they go straight into the pair's product. Otherwise two trials' samples are multiplied first (a pair's
    * product is fixed by S samples) and the pair is spread onto the fine grid (`spreadPair`).
    */
-  add(u: Float64Array): void {
+  add(u: Float64Array, baselineMean: number): void {
     const { s, h } = this;
-    let peak = 0;
-    for (let q = 0; q < s; q++) {
-      const p = u[2 * q] * u[2 * q] + u[2 * q + 1] * u[2 * q + 1];
-      if (p > peak) peak = p;
+    let level = baselineMean;
+    if (!(level >= MIN_NORMAL && level <= Number.MAX_VALUE)) {
+      level = 0;
+      for (let q = 0; q < s; q++) {
+        const p = u[2 * q] * u[2 * q] + u[2 * q + 1] * u[2 * q + 1];
+        if (p > level) level = p;
+      }
     }
-    const e = peak > 0 ? exponentOf(peak) >> 1 : 0;
+    const e = level > 0 ? exponentOf(level) >> 1 : 0;
     const scale = twoToThe(-e);
     this.shift += 2 * e;
     if (h === 1) {
