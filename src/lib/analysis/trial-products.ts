@@ -202,9 +202,9 @@ export class TrialGroups {
 
   /**
    * One trial: `u` its S coarse samples (conj ỹ at s·N/S, from `averagePower`) and B its baseline mean (see
-   * `coarseBaseline`), the samples scaled by 2^−e (see above). With
-   * h = 1 they go straight into the pair's product. Otherwise two trials' samples are multiplied first (a pair's
-   * product is fixed by S samples) and the pair is spread onto the fine grid (`spreadPair`).
+   * `coarseBaseline`), the samples scaled by 2^−e (see above). With h = 1 they go straight into the pair's product.
+   * Otherwise two trials' samples are multiplied first (a pair's product is fixed by S samples) and the pair is
+   * spread onto the fine grid (`spreadPair`).
    */
   add(u: Float64Array, baselineMean: number): void {
     const { s, h } = this;
