@@ -97,7 +97,21 @@ async function singlePhase(recording: Recording): Promise<PhaseReport> {
   const trialScope = (performance.now() - t) / 1000;
   const cpuTrialScope = process.cpuUsage(cpuTrialScope0);
   const trialScopeCpu = (cpuTrialScope.user + cpuTrialScope.system) / 1e6;
-  return { phase: 'single', seconds: { tf, tfCpu, tfTrial, tfTrialCpu, whole, wholeCpu, trialScope, trialScopeCpu }, maxRssMb: rss };
+  // Percent change, both scopes (trial scope takes the coarse-baseline path there, no per-trial rows).
+  const timed = (scope: 'average' | 'trial') => {
+    const t0 = performance.now();
+    const c0 = process.cpuUsage();
+    runRecipe(recording, { ...recipe, baseline: { ...recipe.baseline, method: 'percent-change', scope } });
+    const c = process.cpuUsage(c0);
+    return [(performance.now() - t0) / 1000, (c.user + c.system) / 1e6];
+  };
+  const [percentWhole, percentWholeCpu] = timed('average');
+  const [percentTrial, percentTrialCpu] = timed('trial');
+  return {
+    phase: 'single',
+    seconds: { tf, tfCpu, tfTrial, tfTrialCpu, whole, wholeCpu, trialScope, trialScopeCpu, percentWhole, percentWholeCpu, percentTrial, percentTrialCpu },
+    maxRssMb: rss,
+  };
 }
 
 async function poolPhase(recording: Recording, size: number): Promise<PhaseReport> {
@@ -137,13 +151,17 @@ async function main() {
   console.log(`  CPU time ${single.seconds.tfCpu.toFixed(3)} s`);
   line('runRecipe, 1 thread (+ Welch, aperiodic, JSON)', single.seconds.whole);
   console.log(`  peak RSS ${single.maxRssMb.toFixed(0)} MB`);
-  line('runRecipe, 1 thread, scope trial (trial pairs)', single.seconds.trialScope);
+  line('runRecipe, 1 thread, scope trial (trial groups)', single.seconds.trialScope);
   line('wavelet power + dB, 1 thread, scope trial', single.seconds.tfTrial);
   // Trial scope against average scope, like for like (CPU time is the fairer figure on a shared machine).
   const s = single.seconds;
   console.log(
     `trial / average scope: runRecipe ${(s.trialScope / s.whole).toFixed(2)}× wall, ${(s.trialScopeCpu / s.wholeCpu).toFixed(2)}× CPU; ` +
       `wavelet power + dB ${(s.tfTrial / s.tf).toFixed(2)}× wall, ${(s.tfTrialCpu / s.tfCpu).toFixed(2)}× CPU (target ≤ 2×)`,
+  );
+  console.log(
+    `trial / average scope, percent change: runRecipe ${(s.percentTrial / s.percentWhole).toFixed(2)}× wall, ` +
+      `${(s.percentTrialCpu / s.percentWholeCpu).toFixed(2)}× CPU (target ≤ 2×)`,
   );
   for (const size of [...new Set([Math.max(1, cores - 1), cores])]) {
     const pool = runPhase(['--phase', 'pool', String(size)]);

@@ -4,11 +4,11 @@ import type FFT from 'fft.js';
 import { getFft } from './fft';
 import { getWaveletBank } from './wavelet';
 import { log10 } from './portable-math';
-import { addRatio, baselineWeights, coarseBaseline, productRow } from './trial-products';
+import { addRatio, baselineWeights, coarseBaseline, TrialGroups } from './trial-products';
 
 // Epochs are transformed in blocks and then swept frequency by frequency, so one frequency's weights stay in
-// cache across the block; the per-(frequency, time) sums still run in epoch order. Even, so trial scope's pairs
-// of trials (epochs 0 and 1, 2 and 3, …) never straddle two blocks.
+// cache across the block; the per-(frequency, time) sums still run in epoch order. A multiple of 8, so trial
+// scope's groups of 2, 4 or 8 trials (epochs 0 … g−1, g … 2g−1, …) never straddle two blocks.
 const EPOCH_BLOCK = 16;
 
 /** Everything one channel's time-frequency decomposition needs; plain data, so it can cross to a worker. */
@@ -93,12 +93,12 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
   // command line bit for bit. Those rows go through bandPower into a scratch sum.
   const averagePath = !trialScope || coarseTrials;
   const scratch = new Float64Array(L);
-  // Coarse samples of a pair of trials and the pair's scratch (trial scope, see trial-products.ts).
+  // A trial's coarse samples, and in decibels the groups of trials whose product makes one full-resolution row
+  // (trial scope, see trial-products.ts).
   let maxCoarse = 2;
   for (let f = 0; f < nf; f++) maxCoarse = Math.max(maxCoarse, 2 * bank.averageBandSizes[f]);
-  const coarseA = coarseTrials ? new Float64Array(2 * maxCoarse) : null;
-  const coarseB = coarseTrials ? new Float64Array(2 * maxCoarse) : null;
-  const pairScratch = coarseTrials && method === 'decibel' ? [0, 1, 2].map(() => new Float64Array(2 * maxCoarse)) : null;
+  const coarse = coarseTrials ? new Float64Array(2 * maxCoarse) : null;
+  const groups = coarseTrials && method === 'decibel' ? new TrialGroups(fftSize) : null;
 
   let totalEpochs = 0;
   for (const starts of epochStarts) totalEpochs += starts.length;
@@ -174,21 +174,22 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
         if (acc !== null) {
           const bins = bank.averageBins[f] as Int32Array;
           const weights = bank.averageWeights[f] as Float64Array;
-          if (coarseA === null || coarseB === null) {
+          if (coarse === null) {
             for (let b = 0; b < nb; b++) averagePower(acc, spectra[b], bins, weights, work, out);
           } else {
             // Trial scope: the same power sums, and each trial's samples for its own normalization.
             const a = baselineWeights(bank.sizes[f], acc.length, first, last);
             const ratio = ratios !== null ? ratios[f] : null;
+            if (groups !== null) groups.begin(bank.sizes[f], acc.length);
             for (let b = 0; b < nb; b++) {
-              const u = (b & 1) === 0 ? coarseA : coarseB;
-              averagePower(acc, spectra[b], bins, weights, work, u);
-              const mean = coarseBaseline(u, a);
-              if (ratio !== null) addRatio(ratio, u, mean);
-              else if (logProduct !== null && pairScratch !== null) {
+              averagePower(acc, spectra[b], bins, weights, work, coarse);
+              const mean = coarseBaseline(coarse, a);
+              if (ratio !== null) addRatio(ratio, coarse, mean);
+              else if (logProduct !== null && groups !== null) {
                 logProduct.addBaseline(f, mean);
-                if ((b & 1) === 1 || b === nb - 1) {
-                  productRow(row, L, coarseA, (b & 1) === 1 ? coarseB : null, acc.length, bank.sizes[f], pairScratch[0], pairScratch[1], pairScratch[2], out);
+                groups.add(coarse, mean);
+                if (groups.full() || b === nb - 1) {
+                  logProduct.addExponent(f, groups.row(row, L));
                   logProduct.multiplyRow(f * L, row, L);
                 }
               }
@@ -454,12 +455,20 @@ class LogProduct {
   private readonly exponent: Float64Array;
   /** Σ_k log10 B_k per frequency. */
   private readonly logBaselines: Float64Array;
+  /** Per frequency, a power of two every row was scaled down by (an integer, see `addExponent`). */
+  private readonly shifts: Float64Array;
 
   constructor(points: number, frequencies: number) {
     this.mantissa = new Float64Array(points).fill(1);
     this.words = new Uint32Array(this.mantissa.buffer);
     this.exponent = new Float64Array(points);
     this.logBaselines = new Float64Array(frequencies);
+    this.shifts = new Float64Array(frequencies);
+  }
+
+  /** A row at frequency f was Π P_k·2^−shift: the exponent gets shift back (integers, so exactly). */
+  addExponent(f: number, shift: number): void {
+    this.shifts[f] += shift;
   }
 
   multiply(off: number, row: Float64Array, length: number, f: number, baselineMean: number): void {
@@ -521,9 +530,10 @@ class LogProduct {
     const e = this.exponent;
     for (let f = 0, off = 0; off < out.length; f++, off += length) {
       const logB = this.logBaselines[f];
+      const shift = this.shifts[f];
       for (let i = off; i < off + length; i++) {
         this.normalize(i);
-        out[i] = 10 * (log10(m[i]) + e[i] * LOG10_2 - logB);
+        out[i] = 10 * (log10(m[i]) + (e[i] + shift) * LOG10_2 - logB);
       }
     }
   }

@@ -14,7 +14,12 @@ import { cos, sin } from './portable-math';
 //     needed only as their product: P_a·P_b = |ỹ_a·ỹ_b|², and ỹ_a·ỹ_b has its spectrum in bins 0 … 2M−2, so
 //     its S samples (products of the trials' samples) fix it exactly. One full-resolution row per pair of
 //     trials replaces one per trial, and it comes from N/S transforms of size S.
-// Both identities are exact; the results differ from a row-per-trial computation by rounding only.
+//   - The same holds for larger groups (`TrialGroups`): the product of g = 2h trials' ỹ has its spectrum in bins
+//     0 … g·(M−1), so h·S samples fix it. Each pair's product (fixed by its S samples) is spread onto a grid of
+//     h·S points: its S-grid is every h-th point of that grid, and the other h−1 residues take one transform of
+//     size S each after one forward transform. A group's row then takes N/(h·S) transforms of size h·S, or none
+//     when h·S = N (the grid is every point). `groupHalf` picks h per frequency from a count of the work.
+// All these identities are exact; the results differ from a row-per-trial computation by rounding only.
 
 const weightCache = new Map<string, Float64Array>();
 const twiddleCache = new Map<string, Float64Array>();
@@ -85,60 +90,252 @@ function residueTwiddles(n: number, s: number): Float64Array {
   return remember(twiddleCache, key, t);
 }
 
+// log2 of a power of two, exactly (Math.log2 may differ between engines, and the choice must not).
+function bitsOf(size: number): number {
+  let bits = 0;
+  while (1 << bits < size) bits++;
+  return bits;
+}
+
+// A transform of size n counted as n·log2 n, and 1.25 times that above 1024 points, whose arrays and table no
+// longer fit a first-level cache (measured with fft.js: size 2048 takes 2.4× the time of 1024, not 2.2×).
+function transformCost(size: number): number {
+  return size * bitsOf(size) * (size > 1024 ? 1.25 : 1);
+}
+
 /**
- * row[t] = P_a(t)·P_b(t) for t < length (P_a(t) alone when `b` is null), from two trials' S samples `a` and `b`
- * (u = conj(ỹ) at t = s·N/S, see above). v[s] = ỹ_a·ỹ_b at the samples; G = FFT_S(v)/S are its bins 0 … S−1, and
- * for t = τ·R + r (R = N/S) conj(ỹ_a·ỹ_b)(t) = FFT_S(conj(G)·exp(−2πi·q·r/N))[τ], whose |·|² is the product.
- * `v`, `spectrum`, `work` and `out` are caller-owned scratch of 2S values.
+ * h (a group is 2h trials) for a frequency with period N and coarse grid S, from a count of the work per trial
+ * (`transformCost`, a complex multiply as 1): for h > 1, h transforms of size S per pair of trials for the finer
+ * grid, and per group N/(h·S) + 1 transforms of size h·S plus about 2N multiplies (none when h·S = N). On the
+ * bench case's shapes this picks what measures fastest per trial (trial-groups.test.ts lists them).
  */
-export function productRow(
-  row: Float64Array,
-  length: number,
-  a: Float64Array,
-  b: Float64Array | null,
-  s: number,
-  n: number,
-  v: Float64Array,
-  spectrum: Float64Array,
-  work: Float64Array,
-  out: Float64Array,
-): void {
-  if (b === null) {
-    for (let q = 0; q < s; q++) {
-      v[2 * q] = a[2 * q];
-      v[2 * q + 1] = -a[2 * q + 1];
-    }
-  } else {
-    // conj(a·b)
-    for (let q = 0; q < s; q++) {
-      const ar = a[2 * q];
-      const ai = a[2 * q + 1];
-      const br = b[2 * q];
-      const bi = b[2 * q + 1];
-      v[2 * q] = ar * br - ai * bi;
-      v[2 * q + 1] = -(ar * bi + ai * br);
+export function groupHalf(n: number, s: number): number {
+  let best = 1;
+  let bestCost = Infinity;
+  for (let h = 1; h <= 4 && h * s <= n; h *= 2) {
+    const fine = h * s;
+    const group = fine === n ? n : (n / fine + 1) * transformCost(fine) + 2 * n;
+    const cost = (h > 1 ? (h / 2) * (transformCost(s) + s) : 0) + group / (2 * h);
+    if (cost < bestCost - 1e-9) {
+      best = h;
+      bestCost = cost;
     }
   }
-  const fft: FFT = getFft(s);
-  fft.transform(spectrum, v);
-  const twiddles = residueTwiddles(n, s);
-  const residues = n / s;
-  for (let r = 0; r < residues; r++) {
-    const base = 2 * r * s;
+  return best;
+}
+
+const MIN_NORMAL = 2.2250738585072014e-308;
+const FLOAT_WORDS = new Uint32Array(new Float64Array(1).buffer);
+const FLOAT_VIEW = new Float64Array(FLOAT_WORDS.buffer);
+
+/** ⌊log2 x⌋ for a normal positive x (the IEEE 754 exponent field, little-endian words), 0 for zero/subnormal/∞/NaN. */
+function exponentOf(x: number): number {
+  FLOAT_VIEW[0] = x;
+  const field = (FLOAT_WORDS[1] >>> 20) & 0x7ff;
+  return field === 0 || field === 0x7ff ? 0 : field - 1023;
+}
+
+/** 2^k for −1022 ≤ k ≤ 1023, exact (built from the exponent field). */
+function twoToThe(k: number): number {
+  FLOAT_WORDS[0] = 0;
+  FLOAT_WORDS[1] = (k + 1023) << 20;
+  return FLOAT_VIEW[0];
+}
+
+/**
+ * Full-resolution rows of the product of a group's power, Π_k P_k(t), for trial-scope decibels (see the identities
+ * at the top of this file). Per frequency: `begin`, then `add` each trial's coarse samples in trial order; when
+ * `full()` (or at the end of an epoch block) `row` writes the group's row and starts the next group.
+ *
+ * Range: a product of up to 8 powers can leave the range of a double (power in µV² may be 1e−40 in a flat channel,
+ * 1e−320 for eight of them), so each trial's samples are scaled by 2^−e_k, e_k chosen so its baseline mean B_k
+ * lies in [1, 4) (its largest |u|² when B_k is not a positive normal number). A row then holds Π_k P_k/B_k up to
+ * powers of two, in range unless eight trials average beyond ±370 dB against their own baselines. A power of two
+ * scales exactly, so the row is Π_k P_k·2^−(2·Σe_k) with the same significand bits, and `row` returns 2·Σe_k for the
+ * caller to add back to the exponent (LogProduct.addExponent).
+ */
+export class TrialGroups {
+  private n = 0;
+  private s = 0;
+  private h = 1;
+  private fine = 0;
+  private count = 0;
+  private shift = 0;
+  /** Pairs already spread into `product` in this group. */
+  private pairs = 0;
+  /** The scaled samples of the pair being formed (or of its first trial), S points. */
+  private readonly pair: Float64Array;
+  /** Π_k (scaled u_k) on the fine grid of h·S points, interleaved complex: conj of the group's Π ỹ_k. */
+  private readonly product: Float64Array;
+  private readonly spectrum: Float64Array;
+  private readonly work: Float64Array;
+  private readonly out: Float64Array;
+
+  /** `maxFine`: the largest h·S any frequency may use (≤ the largest N). */
+  constructor(maxFine: number) {
+    this.pair = new Float64Array(maxFine);
+    this.product = new Float64Array(2 * maxFine);
+    this.spectrum = new Float64Array(2 * maxFine);
+    this.work = new Float64Array(2 * maxFine);
+    this.out = new Float64Array(2 * maxFine);
+  }
+
+  /** Start a frequency: period `n`, coarse grid `s` = 2M, groups of 2h trials (h·s ≤ n); an unfinished group is dropped. */
+  begin(n: number, s: number, h: number = groupHalf(n, s)): void {
+    this.n = n;
+    this.s = s;
+    this.h = h;
+    this.fine = this.h * s;
+    this.count = 0;
+    this.shift = 0;
+    this.pairs = 0;
+  }
+
+  /** Trials per group at the current frequency. */
+  get size(): number {
+    return 2 * this.h;
+  }
+
+  full(): boolean {
+    return this.count === 2 * this.h;
+  }
+
+  /**
+   * One trial: `u` its S coarse samples (conj ỹ at s·N/S, from `averagePower`) and B its baseline mean (see
+   * `coarseBaseline`), the samples scaled by 2^−e (see above). With h = 1 they go straight into the pair's product.
+   * Otherwise two trials' samples are multiplied first (a pair's product is fixed by S samples) and the pair is
+   * spread onto the fine grid (`spreadPair`).
+   */
+  add(u: Float64Array, baselineMean: number): void {
+    const { s, h } = this;
+    let level = baselineMean;
+    if (!(level >= MIN_NORMAL && level <= Number.MAX_VALUE)) {
+      level = 0;
+      for (let q = 0; q < s; q++) {
+        const p = u[2 * q] * u[2 * q] + u[2 * q + 1] * u[2 * q + 1];
+        if (p > level) level = p;
+      }
+    }
+    const e = level > 0 ? exponentOf(level) >> 1 : 0;
+    const scale = twoToThe(-e);
+    this.shift += 2 * e;
+    if (h === 1) {
+      this.multiplyInto(u, 0, scale, this.count === 0);
+    } else if ((this.count & 1) === 0) {
+      const pair = this.pair;
+      for (let i = 0; i < 2 * s; i++) pair[i] = scale * u[i];
+    } else {
+      const pair = this.pair;
+      for (let q = 0; q < s; q++) {
+        const ar = pair[2 * q];
+        const ai = pair[2 * q + 1];
+        const br = scale * u[2 * q];
+        const bi = scale * u[2 * q + 1];
+        pair[2 * q] = ar * br - ai * bi;
+        pair[2 * q + 1] = ar * bi + ai * br;
+      }
+      this.spreadPair();
+    }
+    this.count++;
+  }
+
+  /**
+   * The pair's S samples w = conj(ỹ_a·ỹ_b) at s·N/S onto the fine grid: residue ρ of h is w at s·N/S + ρ·N/(h·S),
+   * FFT_S(conj(G)·exp(−2πi·q·r/N)) with G = FFT_S(conj w)/S and r = ρ·N/(h·S) (the identity of `row`, on the fine
+   * grid instead of every point). A lone trial (a group's last, odd one) is spread the same way.
+   */
+  private spreadPair(): void {
+    const { s, h, n, fine, pair, work, spectrum, out } = this;
+    const first = this.pairs === 0;
+    this.multiplyInto(pair, 0, 1, first);
     for (let q = 0; q < s; q++) {
-      const gr = spectrum[2 * q];
-      const gi = -spectrum[2 * q + 1];
-      const tr = twiddles[base + 2 * q];
-      const ti = twiddles[base + 2 * q + 1];
-      work[2 * q] = gr * tr - gi * ti;
-      work[2 * q + 1] = gr * ti + gi * tr;
+      work[2 * q] = pair[2 * q];
+      work[2 * q + 1] = -pair[2 * q + 1];
     }
-    fft.transform(out, work);
-    const count = Math.min(s, Math.ceil((length - r) / residues));
-    for (let q = 0, j = r; q < count; q++, j += residues) {
-      const re = out[2 * q];
-      const im = out[2 * q + 1];
-      row[j] = re * re + im * im;
+    const fft: FFT = getFft(s);
+    fft.transform(spectrum, work);
+    const twiddles = residueTwiddles(n, s);
+    const step = n / fine;
+    for (let rho = 1; rho < h; rho++) {
+      const base = 2 * rho * step * s;
+      for (let q = 0; q < s; q++) {
+        const gr = spectrum[2 * q];
+        const gi = -spectrum[2 * q + 1];
+        const tr = twiddles[base + 2 * q];
+        const ti = twiddles[base + 2 * q + 1];
+        work[2 * q] = gr * tr - gi * ti;
+        work[2 * q + 1] = gr * ti + gi * tr;
+      }
+      fft.transform(out, work);
+      this.multiplyInto(out, rho, 1, first);
     }
+    this.pairs++;
+  }
+
+  // product[s·h + ρ] (×)= scale·samples[s] for s < S.
+  private multiplyInto(samples: Float64Array, rho: number, scale: number, first: boolean): void {
+    const { s, h, product } = this;
+    if (first) {
+      for (let q = 0, i = 2 * rho; q < s; q++, i += 2 * h) {
+        product[i] = scale * samples[2 * q];
+        product[i + 1] = scale * samples[2 * q + 1];
+      }
+    } else {
+      for (let q = 0, i = 2 * rho; q < s; q++, i += 2 * h) {
+        const ar = product[i];
+        const ai = product[i + 1];
+        const br = scale * samples[2 * q];
+        const bi = scale * samples[2 * q + 1];
+        product[i] = ar * br - ai * bi;
+        product[i + 1] = ar * bi + ai * br;
+      }
+    }
+  }
+
+  /**
+   * row[t] = Π_k P_k(t)·2^−shift for t < length over the trials added since the last row, and returns shift; the
+   * next `add` starts a new group. v = Π ỹ_k (scaled) is conj(product) at the fine grid's F = h·S points;
+   * G = FFT_F(v)/F are its bins 0 … F−1, and for t = τ·R + r (R = N/F) conj(v)(t) = FFT_F(conj(G)·exp(−2πi·q·r/N))[τ]
+   * (the 1/F sits in the twiddles), whose |·|² is the product. When F = N the fine grid is every point.
+   */
+  row(row: Float64Array, length: number): number {
+    if (this.h > 1 && (this.count & 1) === 1) this.spreadPair();
+    const { n, fine, product } = this;
+    const shift = this.shift;
+    this.count = 0;
+    this.shift = 0;
+    this.pairs = 0;
+    if (fine === n) {
+      for (let j = 0; j < length; j++) row[j] = product[2 * j] * product[2 * j] + product[2 * j + 1] * product[2 * j + 1];
+      return shift;
+    }
+    const { work, spectrum, out } = this;
+    for (let q = 0; q < fine; q++) {
+      work[2 * q] = product[2 * q];
+      work[2 * q + 1] = -product[2 * q + 1];
+    }
+    const fft: FFT = getFft(fine);
+    fft.transform(spectrum, work);
+    const twiddles = residueTwiddles(n, fine);
+    const residues = n / fine;
+    for (let r = 0; r < residues; r++) {
+      const base = 2 * r * fine;
+      for (let q = 0; q < fine; q++) {
+        const gr = spectrum[2 * q];
+        const gi = -spectrum[2 * q + 1];
+        const tr = twiddles[base + 2 * q];
+        const ti = twiddles[base + 2 * q + 1];
+        work[2 * q] = gr * tr - gi * ti;
+        work[2 * q + 1] = gr * ti + gi * tr;
+      }
+      fft.transform(out, work);
+      const count = Math.min(fine, Math.ceil((length - r) / residues));
+      for (let q = 0, j = r; q < count; q++, j += residues) {
+        const re = out[2 * q];
+        const im = out[2 * q + 1];
+        row[j] = re * re + im * im;
+      }
+    }
+    return shift;
   }
 }

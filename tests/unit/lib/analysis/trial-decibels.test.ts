@@ -58,4 +58,21 @@ describe('trial-scope decibels from a running product', () => {
       decomposeChannel({ samples: s.x, epochStarts: [s.starts], epochSamples: L, sampleRateHz: fs, frequencies: freqs, sigmas, baseline: { first, last, method: 'decibel', scope: 'trial' } }).normalized[0];
     assertClose(run(b), run(a), 1e-6, 'scaled');
   });
+
+  it('keeps a near-flat channel (power near 1e-70 µV²) in range where rows are products of up to eight trials', () => {
+    // 256 Hz, 1 s epochs, 5 cycles from 2 Hz: the rows at 2 and 4 Hz are products of 8 trials, at 14 Hz of 4
+    // (trial-products.ts, groupHalf), so a plain product of the powers would be near 1e-560. Unit-free as above; the
+    // scale 2^-116 (≈ 1.2e-35) is a power of two, so the Float32 samples keep their bits and only rounding differs.
+    const f2 = Float64Array.of(2, 4, 14);
+    const run = (scale: number) => {
+      const normal = seededNormal(5);
+      const starts = Int32Array.from({ length: 21 }, (_, k) => 10 + k * 260);
+      const x = new Float32Array(starts[20] + 270);
+      for (let i = 0; i < x.length; i++) x[i] = scale * normal();
+      return decomposeChannel({ samples: x, epochStarts: [starts], epochSamples: 257, sampleRateHz: 256, frequencies: f2, sigmas: gaussianSigmas(f2, { fixed: 5 }), baseline: { first: 30, last: 90, method: 'decibel', scope: 'trial' } }).normalized[0];
+    };
+    const flat = run(2 ** -116);
+    expect(flat.every(Number.isFinite)).toBe(true);
+    assertClose(flat, run(1), 1e-9, 'near-flat');
+  });
 });

@@ -11,22 +11,30 @@ import { decomposeChannel } from '../../../../src/lib/analysis/decompose';
 import { gaussianSigmas, getWaveletBank } from '../../../../src/lib/analysis/wavelet';
 import { seededNormal } from '../../../helpers/seeded-random';
 
-// Scenario of our own: one channel at 128 Hz, epochs of 1.5 s (193 points), a 9 Hz burst in the second half of
-// every other epoch over background noise.
-const fs = 128;
-const L = 193;
-const freqs = Float64Array.of(4, 9, 21);
-const sigmas = gaussianSigmas(freqs, { min: 3, max: 7 });
-const first = 20;
-const last = 60;
+// Scenarios of our own. Short: one channel at 128 Hz, epochs of 1.5 s (193 points), a 9 Hz burst in the second
+// half of every other epoch over background noise. Long: 512 Hz, 0.5 s epochs, wavelets of 5 cycles from 1.5 Hz and
+// a 14 Hz burst, so the trial groups of decibels take every kind (trial-products.ts, `groupHalf`): 4 trials per row
+// at 1.5 Hz and 8 at 4 Hz (both interpolated), 8 at 14 Hz and 4 at 21 Hz straight on every time point.
+interface Setup {
+  fs: number;
+  L: number;
+  freqs: Float64Array;
+  sigmas: Float64Array;
+  first: number;
+  last: number;
+  burst: number;
+}
+const short: Setup = { fs: 128, L: 193, freqs: Float64Array.of(4, 9, 21), sigmas: gaussianSigmas(Float64Array.of(4, 9, 21), { min: 3, max: 7 }), first: 20, last: 60, burst: 9 };
+const long: Setup = { fs: 512, L: 257, freqs: Float64Array.of(1.5, 4, 14, 21), sigmas: gaussianSigmas(Float64Array.of(1.5, 4, 14, 21), { fixed: 5 }), first: 30, last: 90, burst: 14 };
 
-function epochs(trials: number, seed: number): { x: Float32Array; starts: Int32Array } {
+function epochs(trials: number, seed: number, setup: Setup = short): { x: Float32Array; starts: Int32Array } {
+  const { L, fs, burst } = setup;
   const normal = seededNormal(seed);
   const starts = Int32Array.from({ length: trials }, (_, k) => 30 + k * (L + 11));
   const x = new Float32Array(starts[trials - 1] + L + 30);
   for (let i = 0; i < x.length; i++) x[i] = 5 * normal() + 12; // an offset the epoch means take out
   for (let k = 0; k < trials; k += 2) {
-    for (let j = 110; j < 170; j++) x[starts[k] + j] += 4 * Math.sin(2 * Math.PI * 9 * (j / fs));
+    for (let j = Math.round(0.57 * L); j < Math.round(0.88 * L); j++) x[starts[k] + j] += 4 * Math.sin(2 * Math.PI * burst * (j / fs));
   }
   return { x, starts };
 }
@@ -35,7 +43,8 @@ function epochs(trials: number, seed: number): { x: Float32Array; starts: Int32A
  * |y|² of one demeaned epoch, y(t) = Σ_i x(i)·w(t − i) with the contract's wavelet w(t) = c·exp(2πi·f·t/fs)·
  * exp(−t²/(2σ²fs²)), c = 2/Σ_t exp(−t²/(2σ²fs²)), over |t| ≤ h (the bank's support, 8σ).
  */
-function directPower(x: Float32Array, start: number, f: number, sigma: number, h: number): Float64Array {
+function directPower(x: Float32Array, start: number, f: number, sigma: number, h: number, setup: Setup = short): Float64Array {
+  const { L, fs } = setup;
   let mean = 0;
   for (let j = 0; j < L; j++) mean += x[start + j];
   mean /= L;
@@ -58,12 +67,13 @@ function directPower(x: Float32Array, start: number, f: number, sigma: number, h
 }
 
 /** The contract's scope `trial`, term by term: mean over trials of the method applied to P_k(t) and B_k. */
-function byDefinition(x: Float32Array, starts: Int32Array, method: BaselineMethod): Float64Array {
+function byDefinition(x: Float32Array, starts: Int32Array, method: BaselineMethod, setup: Setup = short): Float64Array {
+  const { freqs, sigmas, fs, L, first, last } = setup;
   const bank = getWaveletBank(freqs, sigmas, fs, L);
   const out = new Float64Array(freqs.length * L);
   for (let k = 0; k < starts.length; k++) {
     for (let f = 0; f < freqs.length; f++) {
-      const p = directPower(x, starts[k], freqs[f], sigmas[f], bank.halfWidths[f]);
+      const p = directPower(x, starts[k], freqs[f], sigmas[f], bank.halfWidths[f], setup);
       let b = 0;
       for (let j = first; j <= last; j++) b += p[j];
       b /= last - first + 1;
@@ -76,7 +86,8 @@ function byDefinition(x: Float32Array, starts: Int32Array, method: BaselineMetho
   return out;
 }
 
-function decompose(x: Float32Array, starts: Int32Array, method: BaselineMethod, scope: 'trial' | 'average' = 'trial') {
+function decompose(x: Float32Array, starts: Int32Array, method: BaselineMethod, scope: 'trial' | 'average' = 'trial', setup: Setup = short) {
+  const { freqs, sigmas, fs, L, first, last } = setup;
   return decomposeChannel({ samples: x, epochStarts: [starts], epochSamples: L, sampleRateHz: fs, frequencies: freqs, sigmas, baseline: { first, last, method, scope } });
 }
 
@@ -100,6 +111,17 @@ describe('scope trial against direct wavelet convolution', () => {
         const want = byDefinition(x, starts, method);
         expect(worstDifference(got, want), method).toBeLessThan(limits[method]);
       }
+    });
+  }
+
+  // Decibels in the long scenario: groups of 4 and 8 trials per row. 1, 3, 5 and 9 trials leave every kind of
+  // remainder (a group of one, of three, of five, of one after full groups); 24 ends a full block of 16 and then
+  // takes a group of eight.
+  for (const trials of [1, 3, 5, 9, 24]) {
+    it(`matches the definition in decibels with groups of up to eight trials (${trials} trials)`, () => {
+      const { x, starts } = epochs(trials, 70 + trials, long);
+      const got = decompose(x, starts, 'decibel', 'trial', long).normalized[0];
+      expect(worstDifference(got, byDefinition(x, starts, 'decibel', long))).toBeLessThan(1e-10);
     });
   }
 
