@@ -4,7 +4,7 @@
 import * as Comlink from 'comlink';
 import type { BaselineMethod, BaselineSpread } from '../src/lib/analysis/baseline';
 import type { CoarseTrials } from '../src/lib/analysis/decompose';
-import { copyCoarseRows, copyRows, prepareTrialPower, renormalizeTrials, type CoarseRows, type TrialPower } from '../src/lib/analysis/renormalize';
+import { copyRows, prepareTrialPower, renormalizeTrials, type CoarseRows, type TrialPower } from '../src/lib/analysis/renormalize';
 import { trialBandValues, type TrialBandWindow } from '../src/lib/analysis/trial-band-values';
 import { fitAperiodicEach, type AperiodicModel } from '../src/lib/analysis/aperiodic';
 
@@ -41,16 +41,11 @@ const api = {
     });
     return Comlink.transfer(out, out.flatMap((o) => (o === null ? [] : [o.buffer])));
   },
-  /**
-   * Copies of the held trials' frequency rows from … to − 1 (`[(k·R + r)·T + t]`) and of their coarse samples, for a
-   * second thread to share the work.
-   */
-  rowsOf(key: string, from: number, to: number): { trials: Float32Array[]; coarse: (CoarseRows | null)[]; counts: number[]; nTimes: number } | null {
+  /** Copies of the held trials' frequency rows from … to − 1 (`[(k·R + r)·T + t]`), for a second thread to share the work. */
+  rowsOf(key: string, from: number, to: number): { trials: Float32Array[]; counts: number[]; nTimes: number } | null {
     if (held === null || held.key !== key) return null;
     const out = held.conditions.map((tp) => copyRows(tp.trials, tp.count, tp.nFreqs, tp.nTimes, from, to));
-    const coarse = held.conditions.map((tp) => (tp.coarse === null ? null : copyCoarseRows(tp.coarse, tp.count, from, to)));
-    const buffers = [...out, ...coarse.flatMap((c) => (c === null ? [] : [c.samples]))].map((t) => t.buffer);
-    return Comlink.transfer({ trials: out, coarse, counts: held.conditions.map((tp) => tp.count), nTimes: held.conditions[0]?.nTimes ?? 0 }, buffers);
+    return Comlink.transfer({ trials: out, counts: held.conditions.map((tp) => tp.count), nTimes: held.conditions[0]?.nTimes ?? 0 }, out.map((t) => t.buffer));
   },
   /** Per condition, per band × window cell, each held trial's own-baseline value (`trialBandValues`); null if another channel is held. */
   trialBandValues(key: string, frequencies: Float64Array, times: Float64Array, mask: Uint8Array, first: number, last: number, method: BaselineMethod, cells: TrialBandWindow[]): Float64Array[][] | null {

@@ -2,14 +2,14 @@
 // trials and re-normalizes them while the explorer worker does the lower rows. Wiring only (renormalize.ts).
 import * as Comlink from 'comlink';
 import type { BaselineMethod, BaselineSpread } from '../src/lib/analysis/baseline';
-import { prepareTrialPower, renormalizeTrials, type CoarseRows, type TrialPower } from '../src/lib/analysis/renormalize';
+import { prepareTrialPower, renormalizeTrials, type TrialPower } from '../src/lib/analysis/renormalize';
 
 let held: { key: string; conditions: TrialPower[] } | null = null;
 
 const api = {
-  /** Keeps `trials[c]` (`[(k·R + r)·T + t]`, R of the rows) and their coarse samples under `key`, replacing what was held. */
-  hold(key: string, trials: Float32Array[], counts: number[], nRows: number, nTimes: number, coarse: (CoarseRows | null)[] = []): void {
-    held = { key, conditions: trials.map((t, c) => prepareTrialPower(t, counts[c], nRows, nTimes, coarse[c] ?? null)) };
+  /** Keeps `trials[c]` (`[(k·R + r)·T + t]`, R of the rows) under `key`, replacing what was held. */
+  hold(key: string, trials: Float32Array[], counts: number[], nRows: number, nTimes: number): void {
+    held = { key, conditions: trials.map((t, c) => prepareTrialPower(t, counts[c], nRows, nTimes)) };
   },
   heldKey(): string | null {
     return held === null ? null : held.key;

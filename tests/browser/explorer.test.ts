@@ -260,7 +260,7 @@ describe('the explorer on a demo recording', () => {
     await page.getByText('trial average', { exact: true }).click();
   });
 
-  it('single-trial scope in percent change (from the trials\' coarse samples, on two workers) matches the core\'s trial scope, also after a baseline move', async () => {
+  it('single-trial scope in percent change (from the trials\' coarse samples) matches the core\'s trial scope, also after a baseline move', async () => {
     await page.getByText('single trial', { exact: true }).click();
     await page.getByText('percent change', { exact: true }).click();
     const fi = nearest(result.frequencies, 6);

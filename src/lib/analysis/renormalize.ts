@@ -99,17 +99,6 @@ export function copyRows(trials: Float32Array, count: number, nFreqs: number, nT
   return out;
 }
 
-/** The coarse samples of frequency rows from … to − 1 of `count` trials, laid out for those rows alone (see `copyRows`). */
-export function copyCoarseRows(coarse: CoarseRows, count: number, from: number, to: number): CoarseRows {
-  const block = coarse.offsets[coarse.points.length];
-  const start = coarse.offsets[from];
-  const width = coarse.offsets[to] - start;
-  const samples = new Float32Array(count * width);
-  for (let k = 0; k < count; k++) samples.set(coarse.samples.subarray(k * block + start, k * block + start + width), k * width);
-  const offsets = Int32Array.from(coarse.offsets.subarray(from, to + 1), (o) => o - start);
-  return { points: coarse.points.slice(from, to), periods: coarse.periods.slice(from, to), offsets, samples };
-}
-
 /** Wraps stored trial power (and its coarse samples, if given) and precomputes `meanLog10`. */
 export function prepareTrialPower(trials: Float32Array, count: number, nFreqs: number, nTimes: number, coarse: CoarseRows | null = null): TrialPower {
   const size = nFreqs * nTimes;

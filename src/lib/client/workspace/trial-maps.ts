@@ -68,21 +68,21 @@ async function splitRow(key: string, nFreqs: number): Promise<number | null> {
     const copy = await explorerWorker().rowsOf(key, h, nFreqs);
     if (copy === null) return null;
     helper ??= Comlink.wrap<TrialRowsWorkerApi>(new Worker(new URL('../../../../workers/trial-rows.worker.ts', import.meta.url), { type: 'module' }));
-    const buffers = [...copy.trials, ...copy.coarse.flatMap((c) => (c === null ? [] : [c.samples]))].map((t) => t.buffer);
-    await helper.hold(key, Comlink.transfer(copy.trials, buffers), copy.counts, nFreqs - h, copy.nTimes, copy.coarse);
+    await helper.hold(key, Comlink.transfer(copy.trials, copy.trials.map((t) => t.buffer)), copy.counts, nFreqs - h, copy.nTimes);
     helperKey = key;
   }
   return h;
 }
 
 /**
- * One job's maps. Weighted sums over every trial (percent change and power ratio over the trials' coarse samples,
- * z-score over time over their stored rows) are split by frequency rows over the explorer worker and a second
- * worker, which run at once on two cores; decibels (one subtraction per cell after precomputed logarithms) and
- * across-trials z-scores stay in one worker.
+ * One job's maps. z-scores over time (a weighted sum over every trial's stored row) are split by frequency rows
+ * over the explorer worker and a second worker, which run at once on two cores. The rest stay in one worker:
+ * decibels (one subtraction per cell after precomputed logarithms), percent change and power ratio (weighted sums
+ * of the trials' coarse samples, S_f per trial and frequency, then one interpolation per frequency) and
+ * across-trials z-scores.
  */
 async function renormalize(job: TrialMapsJob): Promise<(Float64Array | null)[] | null> {
-  const split = job.method !== 'decibel' && job.spread === 'time' ? await splitRow(job.key, job.nFreqs) : null;
+  const split = job.method === 'z-score' && job.spread === 'time' ? await splitRow(job.key, job.nFreqs) : null;
   if (split === null || helper === null) return explorerWorker().renormalize(job.key, job.first, job.last, job.method, job.spread, job.conditions);
   const [lower, upper] = await Promise.all([
     explorerWorker().renormalize(job.key, job.first, job.last, job.method, job.spread, job.conditions, [0, split]),

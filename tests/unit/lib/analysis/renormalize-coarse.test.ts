@@ -10,7 +10,7 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { decomposeChannel, interpolatePower } from '../../../../src/lib/analysis/decompose';
-import { copyCoarseRows, copyRows, interpolateTwo, prepareTrialPower, renormalizeTrials } from '../../../../src/lib/analysis/renormalize';
+import { interpolateTwo, prepareTrialPower, renormalizeTrials } from '../../../../src/lib/analysis/renormalize';
 import { gaussianSigmas, getWaveletBank } from '../../../../src/lib/analysis/wavelet';
 import { seededNormal } from '../../../helpers/seeded-random';
 
@@ -161,31 +161,6 @@ describe('renormalizeTrials with coarse samples', () => {
         expect(worst(got, rows)).toBeLessThan(1e-5 * scale);
       }),
       { numRuns: 40 },
-    );
-  });
-
-  it('gives the same map when a second thread holds copies of the upper rows and their coarse samples (property)', () => {
-    const trials = 7;
-    const h = held(trials, 31);
-    const nf = freqs.length;
-    fc.assert(
-      fc.property(fc.integer({ min: 1, max: nf - 1 }), fc.integer({ min: 0, max: 200 }), fc.constantFrom('percent-change' as const, 'power-ratio' as const), (split, first, method) => {
-        const last = first + 30;
-        const whole = new Float64Array(nf * L);
-        renormalizeTrials(whole, h.withCoarse, first, last, method);
-        const shared = new Float64Array(nf * L).fill(NaN);
-        renormalizeTrials(shared, h.withCoarse, first, last, method, 'time', [0, split]);
-        const upperRows = copyRows(h.withCoarse.trials, trials, nf, L, split, nf);
-        const upperCoarse = copyCoarseRows(h.withCoarse.coarse!, trials, split, nf);
-        const upper = new Float64Array((nf - split) * L);
-        renormalizeTrials(upper, prepareTrialPower(upperRows, trials, nf - split, L, upperCoarse), first, last, method);
-        shared.set(upper, split * L);
-        let scale = 1;
-        for (const v of whole) scale = Math.max(scale, Math.abs(v));
-        // Rows pair up for the interpolation differently on each side of the split: rounding only.
-        expect(worst(shared, whole)).toBeLessThan(1e-12 * scale);
-      }),
-      { numRuns: 30 },
     );
   });
 
