@@ -86,7 +86,15 @@ export interface TrialPower {
    * them percent change and power ratio cost S_f per trial and frequency instead of nTimes (see renormalizeTrials).
    */
   coarse: CoarseRows | null;
+  /**
+   * With coarse samples: Σ of each stored row over blocks of `BASELINE_BLOCK` points, `[(k·nFreqs + f)·blocks + b]`
+   * (Float64), so a baseline mean reads the blocks it covers and the points at its two ends; else null.
+   */
+  blockSums: Float64Array | null;
 }
+
+/** Points per block of `TrialPower.blockSums`. */
+export const BASELINE_BLOCK = 32;
 
 /** One condition's coarse samples `[k·offsets[F] + offsets[f] + s]` with their layout (see `CoarseTrials`). */
 export type CoarseRows = Omit<CoarseTrials, 'samples'> & { samples: Float32Array };
@@ -108,7 +116,15 @@ export function prepareTrialPower(trials: Float32Array, count: number, nFreqs: n
     for (let i = 0; i < size; i++) meanLog10[i] += log10(trials[base + i]);
   }
   for (let i = 0; i < size; i++) meanLog10[i] /= count;
-  return { trials, count, nFreqs, nTimes, meanLog10, coarse };
+  let blockSums: Float64Array | null = null;
+  if (coarse !== null) {
+    const blocks = Math.ceil(nTimes / BASELINE_BLOCK);
+    blockSums = new Float64Array(count * nFreqs * blocks);
+    for (let r = 0; r < count * nFreqs; r++) {
+      for (let j = 0; j < nTimes; j++) blockSums[r * blocks + Math.floor(j / BASELINE_BLOCK)] += trials[r * nTimes + j];
+    }
+  }
+  return { trials, count, nFreqs, nTimes, meanLog10, coarse, blockSums };
 }
 
 /**
@@ -168,7 +184,15 @@ export function renormalizeTrials(
   const points = coarse === null ? 0 : coarse.offsets[nf];
   // Linear methods: every B_k(f) first, trial by trial (a trial's rows lie together), then the weighted sums.
   const means = zscore ? null : new Float64Array(K * nf);
-  if (means !== null) for (let k = 0; k < K; k++) for (let f = f0; f < f1; f++) means[f * K + k] = baselineMean(trials, (k * nf + f) * nt, first, last);
+  const sums = coarse === null ? null : tp.blockSums;
+  if (means !== null) {
+    for (let k = 0; k < K; k++) {
+      for (let f = f0; f < f1; f++) {
+        const r = k * nf + f;
+        means[f * K + k] = sums === null ? baselineMean(trials, r * nt, first, last) : blockMean(trials, sums, r, nt, first, last);
+      }
+    }
+  }
   // A coarse row waiting for a partner of the same period (see interpolateTwo).
   let waiting: { f: number; acc: Float64Array } | null = null;
   for (let f = f0; f < f1; f++) {
@@ -235,6 +259,24 @@ export function renormalizeTrials(
 function baselineMean(row: Float32Array, off: number, first: number, last: number): number {
   let sum = 0;
   for (let j = first; j <= last; j++) sum += row[off + j];
+  return sum / (last - first + 1);
+}
+
+// The same mean from block sums (see `TrialPower.blockSums`): the points before the first whole block, the whole
+// blocks, the points after the last; equal to baselineMean up to rounding.
+function blockMean(row: Float32Array, sums: Float64Array, r: number, nt: number, first: number, last: number): number {
+  const blocks = Math.ceil(nt / BASELINE_BLOCK);
+  const off = r * nt;
+  const b0 = Math.ceil(first / BASELINE_BLOCK);
+  const b1 = Math.floor((last + 1) / BASELINE_BLOCK);
+  let sum = 0;
+  if (b0 >= b1) {
+    for (let j = first; j <= last; j++) sum += row[off + j];
+  } else {
+    for (let j = first; j < b0 * BASELINE_BLOCK; j++) sum += row[off + j];
+    for (let b = b0; b < b1; b++) sum += sums[r * blocks + b];
+    for (let j = b1 * BASELINE_BLOCK; j <= last; j++) sum += row[off + j];
+  }
   return sum / (last - first + 1);
 }
 
