@@ -10,6 +10,8 @@ export interface ChannelJob {
   /** The channel's name, for messages. */
   channel?: string;
   singleTrials?: boolean;
+  /** With `singleTrials`: also each trial's coarse power samples (the explorer's live re-normalization). */
+  coarseTrials?: boolean;
   /** Also each epoch's Welch spectrum (the Spectrum screen), from the samples this worker already holds. */
   epochSpectra?: boolean;
 }
@@ -27,13 +29,14 @@ function buffersOf(out: ChannelAnalysis): ArrayBuffer[] {
     out.welch.psd,
     ...(e === null ? [] : [e.frequencies, e.perTrial, e.mean]),
     ...(out.singleTrials ?? []),
+    ...(out.coarseTrials?.samples ?? []),
   ];
   return [...new Set(arrays.map((a) => a.buffer as ArrayBuffer))];
 }
 
 export const decomposeApi = {
   run(job: ChannelJob, onProgress?: (fraction: number) => void): ChannelAnalysis {
-    const out = analyzeChannel(job.plan, job.samples, { singleTrials: job.singleTrials, epochSpectra: job.epochSpectra, onProgress });
+    const out = analyzeChannel(job.plan, job.samples, { singleTrials: job.singleTrials, coarseTrials: job.coarseTrials, epochSpectra: job.epochSpectra, onProgress });
     return Comlink.transfer(out, buffersOf(out)); // transfer big arrays, never clone them
   },
   /** Channel `index`'s share of an analysis session's summary; its single trials stay (and die) in the worker. */

@@ -3,16 +3,21 @@
 // aperiodic.ts).
 import * as Comlink from 'comlink';
 import type { BaselineMethod, BaselineSpread } from '../src/lib/analysis/baseline';
-import { copyRows, prepareTrialPower, renormalizeTrials, type TrialPower } from '../src/lib/analysis/renormalize';
+import type { CoarseTrials } from '../src/lib/analysis/decompose';
+import { copyRows, prepareTrialPower, renormalizeTrials, type CoarseRows, type TrialPower } from '../src/lib/analysis/renormalize';
 import { trialBandValues, type TrialBandWindow } from '../src/lib/analysis/trial-band-values';
 import { fitAperiodicEach, type AperiodicModel } from '../src/lib/analysis/aperiodic';
 
 let held: { key: string; conditions: TrialPower[] } | null = null;
 
 const api = {
-  /** Keeps `trials[c]` (per condition, `[(k·F + f)·T + t]` µV²) under `key`, replacing what was held. */
-  holdTrials(key: string, trials: Float32Array[], counts: number[], nFreqs: number, nTimes: number): void {
-    held = { key, conditions: trials.map((t, c) => prepareTrialPower(t, counts[c], nFreqs, nTimes)) };
+  /**
+   * Keeps `trials[c]` (per condition, `[(k·F + f)·T + t]` µV²) under `key`, replacing what was held, with their
+   * coarse samples when given (percent change and power ratio then re-normalize from those).
+   */
+  holdTrials(key: string, trials: Float32Array[], counts: number[], nFreqs: number, nTimes: number, coarse: CoarseTrials | null = null): void {
+    const rowsOf = (c: number): CoarseRows | null => (coarse === null || coarse.samples[c] === undefined ? null : { ...coarse, samples: coarse.samples[c] });
+    held = { key, conditions: trials.map((t, c) => prepareTrialPower(t, counts[c], nFreqs, nTimes, rowsOf(c))) };
   },
   heldKey(): string | null {
     return held === null ? null : held.key;

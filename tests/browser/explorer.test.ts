@@ -260,6 +260,25 @@ describe('the explorer on a demo recording', () => {
     await page.getByText('trial average', { exact: true }).click();
   });
 
+  it('single-trial scope in percent change (from the trials\' coarse samples) matches the core\'s trial scope, also after a baseline move', async () => {
+    await page.getByText('single trial', { exact: true }).click();
+    await page.getByText('percent change', { exact: true }).click();
+    const fi = nearest(result.frequencies, 6);
+    const ti = nearest(result.times, 0.4);
+    for (const move of [false, true]) {
+      if (move) await page.getByTestId('map-normalized-baseline').press('ArrowRight');
+      const cell = await readMapCell(page, fi, ti);
+      const exported = JSON.parse((await download('export-recipe')).bytes.toString('utf8'));
+      expect(exported.baseline).toMatchObject({ scope: 'trial', method: 'percent-change' });
+      const expected = nodeResult(exported).conditions['lamp-watch'].normalized[0][fi][ti];
+      // Float32 trial rows and coarse samples against the core's Float64 sums: ~1e-6 relative.
+      expect(Math.abs(cell.normalized - expected), `baseline ${JSON.stringify(exported.baseline)}`).toBeLessThan(1e-4 * Math.max(1, Math.abs(expected)));
+    }
+    await page.getByTestId('map-normalized-baseline').press('ArrowLeft');
+    await page.getByText('dB', { exact: true }).click();
+    await page.getByText('trial average', { exact: true }).click();
+  });
+
   it('exports a PNG of both maps with axes and colour bars (size read from the PNG IHDR chunk)', async () => {
     const png = await download('export-png');
     // PNG signature, then the IHDR chunk: length, "IHDR", width and height as big-endian 32-bit (PNG spec, ISO/IEC 15948 §11.2.2).

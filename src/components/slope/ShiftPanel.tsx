@@ -7,6 +7,7 @@ import RunControl from './RunControl';
 import { divergingColormap } from '../../lib/plot/colormap';
 import { colourPosition, methodUnit, symmetricLimits, type ColourScale } from '../../lib/plot/colour-scale';
 import NumberField from '../explorer/NumberField';
+import { usePanelVisible } from '../explorer/usePanelVisible';
 
 const fmt = (v: number | null, d = 2) => (v === null || !Number.isFinite(v) ? '—' : v.toFixed(d));
 
@@ -46,7 +47,9 @@ export default function ShiftPanel() {
   const recording = useWorkspace((s) => s.recording);
   const viewChannel = useWorkspace((s) => s.channel);
   const viewCondition = useWorkspace((s) => s.condition);
-  const baseline = useWorkspace((s) => s.baseline);
+  // Hidden, the panel does not follow a baseline drag on the Maps screen (no render per move).
+  const visible = usePanelVisible('Slope-check');
+  const baseline = useWorkspace((s) => (visible ? s.baseline : null)) ?? useWorkspace.getState().baseline;
   const method = useWorkspace((s) => s.method);
   const bands = useWorkspace((s) => s.bands);
   const fitRange = useWorkspace((s) => s.fitRange);

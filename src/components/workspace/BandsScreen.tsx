@@ -23,9 +23,10 @@ export default function BandsScreen(_props: WorkspaceProps) {
   const scope = useWorkspace((s) => s.scope);
   const channel = useWorkspace((s) => s.channel);
   const setView = useWorkspace((s) => s.set);
-  // Deferred, so a baseline drag on the Maps screen repaints the maps first.
-  const baseline = useDeferredValue(useWorkspace((s) => s.baseline));
   const visible = usePanelVisible('Bands');
+  // Deferred, so a baseline drag on the Maps screen repaints the maps first; hidden, the screen does not follow the
+  // drag at all (no render per move) and reads the baseline once it is shown.
+  const baseline = useDeferredValue(useWorkspace((s) => (visible ? s.baseline : null)) ?? useWorkspace.getState().baseline);
 
   const problems = d === null ? [] : bandSummaryProblems(d, bands, windows);
   const rows = useMemo(() => (d === null || !visible || problems.length > 0 ? null : bandSummary(d, bands, windows, baselinePoints(d, baseline), method)), [d, visible, bands, windows, baseline, method, problems.length]);

@@ -1,9 +1,14 @@
 import { useEffect } from 'react';
 import { historyKeyOf, keepOwnEdits, redo, saveNow, startClean, takeSavedOffer, undo, useWorkspace, useWorkspaceMemory } from '../../lib/client/workspace';
 
+// One formatter (the same text as toLocaleString with these options, which builds a new one on every call).
+let formatter: Intl.DateTimeFormat | null = null;
+
 function timeOf(iso: string): string {
   const d = new Date(iso);
-  return Number.isNaN(d.getTime()) ? iso : d.toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'medium' });
+  if (Number.isNaN(d.getTime())) return iso;
+  formatter ??= new Intl.DateTimeFormat(undefined, { dateStyle: 'medium', timeStyle: 'medium' });
+  return formatter.format(d);
 }
 
 /**

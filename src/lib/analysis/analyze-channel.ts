@@ -1,7 +1,7 @@
 import { fitAperiodic, type AperiodicFit, type AperiodicModel } from './aperiodic';
 import type { BaselineMethod, BaselineScope, BaselineSpread } from './baseline';
 import type { ChannelType, ChannelUnit } from './channel-types';
-import { decomposeChannel, type DecomposeOptions } from './decompose';
+import { decomposeChannel, type CoarseTrials, type DecomposeOptions } from './decompose';
 import { epochSpectra, epochSpectraFrom, type EpochSpectra } from './epoch-spectra';
 import { welchNested, welchPsd, type WelchSpectrum } from './welch';
 
@@ -47,6 +47,8 @@ export interface ChannelAnalysis {
   power: Float64Array[];
   normalized: Float64Array[];
   singleTrials: Float32Array[] | null;
+  /** With option `coarseTrials` (and `singleTrials`): each trial's coarse power samples (decompose.ts); else null. */
+  coarseTrials: CoarseTrials | null;
   /** Per condition, inter-trial phase consistency `[f·L + t]` (0 … 1), when the plan asks for it; else null. */
   itpc: Float64Array[] | null;
   /** Per condition, the evoked response (µV per time point) with induced power; else null. */
@@ -68,6 +70,8 @@ export interface ChannelAnalysis {
 
 export interface ChannelOptions extends DecomposeOptions {
   singleTrials?: boolean;
+  /** With `singleTrials`: also each trial's coarse power samples, for the explorer's live re-normalization. */
+  coarseTrials?: boolean;
   /** Also each epoch's own Welch spectrum (the Spectrum screen's spread across epochs), from the same samples. */
   epochSpectra?: boolean;
 }
@@ -98,6 +102,7 @@ export function analyzeChannel(plan: RecipePlan, samples: Float32Array, options:
       sigmas: plan.sigmas,
       baseline: plan.baseline,
       singleTrials: options.singleTrials === true,
+      coarseTrials: options.coarseTrials === true,
       itpc: plan.itpc === true,
       induced: plan.induced === true,
     },
@@ -133,6 +138,7 @@ export function analyzeChannel(plan: RecipePlan, samples: Float32Array, options:
     power: tf.power,
     normalized: tf.normalized,
     singleTrials: tf.singleTrials,
+    coarseTrials: tf.coarseTrials,
     itpc: tf.itpc,
     evoked: tf.evoked,
     psd: welch.psd.slice(k0, k1),

@@ -27,6 +27,8 @@ export interface DecomposeJob {
   baseline: { first: number; last: number; method: BaselineMethod; scope: BaselineScope; spread?: BaselineSpread };
   /** Keep every trial's power (only for the one channel the explorer shows trial by trial). */
   singleTrials?: boolean;
+  /** With `singleTrials`: also each trial's coarse power samples (`CoarseTrials`), for live re-normalization. */
+  coarseTrials?: boolean;
   /** Also sum each trial's unit phasor for inter-trial phase consistency (analysis contract, recipe `"itpc": true`). */
   itpc?: boolean;
   /** Induced power: subtract the condition's evoked response (mean of its demeaned epochs) from each epoch first. */
@@ -40,10 +42,29 @@ export interface DecomposeOutput {
   normalized: Float64Array[];
   /** Per condition, `[(trial·F + f)·L + t]` power, µV², when the job asked for it. */
   singleTrials: Float32Array[] | null;
+  /** Each trial's coarse power samples, when the job asked for `coarseTrials`. */
+  coarseTrials: CoarseTrials | null;
   /** Per condition, inter-trial phase consistency `[f·L + t]`, 0 … 1, when the job asked for it. */
   itpc: Float64Array[] | null;
   /** Per condition, the evoked response (mean of the demeaned epochs, µV, length L), when the job asked for induced power. */
   evoked: Float64Array[] | null;
+}
+
+/**
+ * Each trial's power on the trial-average path's coarse grid (see `averagePower`): at frequency f, S_f samples
+ * p_k[s] = |y_k(s·N_f/S_f)|² fix the trial's whole power row exactly (a trigonometric polynomial of lags below
+ * S_f/2), so a weighted sum over trials Σ_k w_k·P_k(t) is `interpolatePower` of Σ_k w_k·p_k[s]: S_f work per trial
+ * instead of L (renormalize.ts uses it while the baseline moves).
+ */
+export interface CoarseTrials {
+  /** S_f, coarse samples per trial at frequency f; 0 where the band is too wide for the coarse path. */
+  points: Int32Array;
+  /** N_f, the period (circular convolution length) the S_f samples span. */
+  periods: Int32Array;
+  /** Where frequency f starts in one trial's block; `offsets[F]` is the block's length. */
+  offsets: Int32Array;
+  /** Per condition, `[k·offsets[F] + offsets[f] + s]`, µV² (single precision, like the stored trial rows). */
+  samples: Float32Array[];
 }
 
 export interface DecomposeOptions {
@@ -92,12 +113,14 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
   // change that choice: the average then has other rounding, and the explorer's channel would no longer match the
   // command line bit for bit. Those rows go through bandPower into a scratch sum.
   const averagePath = !trialScope || coarseTrials;
+  const coarseOut: CoarseTrials | null = job.singleTrials === true && job.coarseTrials === true ? coarseLayout(bank.averageBandSizes, bank.sizes, averagePath) : null;
+  const coarseBlock = coarseOut === null ? 0 : coarseOut.offsets[nf];
   const scratch = new Float64Array(L);
   // A trial's coarse samples, and in decibels the groups of trials whose product makes one full-resolution row
   // (trial scope, see trial-products.ts).
   let maxCoarse = 2;
   for (let f = 0; f < nf; f++) maxCoarse = Math.max(maxCoarse, 2 * bank.averageBandSizes[f]);
-  const coarse = coarseTrials ? new Float64Array(2 * maxCoarse) : null;
+  const trialSamples = coarseTrials ? new Float64Array(2 * maxCoarse) : null;
   const groups = coarseTrials && method === 'decibel' ? new TrialGroups(fftSize) : null;
 
   let totalEpochs = 0;
@@ -125,6 +148,7 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
     // per trial.
     const logProduct = normSum !== null && method === 'decibel' ? new LogProduct(nf * L, nf) : null;
     const single = singleTrials !== null ? new Float32Array(trials * nf * L) : null;
+    const coarse = coarseOut !== null ? new Float32Array(trials * coarseBlock) : null;
     // Σ_k y_k/|y_k| as interleaved (re, im) per (frequency, time); power's own sums are left untouched, so asking
     // for phase consistency never changes a power bit.
     const phasors = itpc !== null ? new Float64Array(2 * nf * L) : null;
@@ -174,20 +198,24 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
         if (acc !== null) {
           const bins = bank.averageBins[f] as Int32Array;
           const weights = bank.averageWeights[f] as Float64Array;
-          if (coarse === null) {
-            for (let b = 0; b < nb; b++) averagePower(acc, spectra[b], bins, weights, work, out);
+          if (trialSamples === null) {
+            for (let b = 0; b < nb; b++) {
+              averagePower(acc, spectra[b], bins, weights, work, out);
+              if (coarse !== null && coarseOut !== null) keepCoarse(coarse, (e0 + b) * coarseBlock + coarseOut.offsets[f], out, acc.length);
+            }
           } else {
             // Trial scope: the same power sums, and each trial's samples for its own normalization.
             const a = baselineWeights(bank.sizes[f], acc.length, first, last);
             const ratio = ratios !== null ? ratios[f] : null;
             if (groups !== null) groups.begin(bank.sizes[f], acc.length);
             for (let b = 0; b < nb; b++) {
-              averagePower(acc, spectra[b], bins, weights, work, coarse);
-              const mean = coarseBaseline(coarse, a);
-              if (ratio !== null) addRatio(ratio, coarse, mean);
+              averagePower(acc, spectra[b], bins, weights, work, trialSamples);
+              if (coarse !== null && coarseOut !== null) keepCoarse(coarse, (e0 + b) * coarseBlock + coarseOut.offsets[f], trialSamples, acc.length);
+              const mean = coarseBaseline(trialSamples, a);
+              if (ratio !== null) addRatio(ratio, trialSamples, mean);
               else if (logProduct !== null && groups !== null) {
                 logProduct.addBaseline(f, mean);
-                groups.add(coarse, mean);
+                groups.add(trialSamples, mean);
                 if (groups.full() || b === nb - 1) {
                   logProduct.addExponent(f, groups.row(row, L));
                   logProduct.multiplyRow(f * L, row, L);
@@ -246,11 +274,29 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
       normalized.push(normalizeAverage(sum, L, baseline, method));
     }
     if (singleTrials !== null && single !== null) singleTrials.push(single);
+    if (coarseOut !== null && coarse !== null) coarseOut.samples.push(coarse);
     if (itpc !== null && phasors !== null) itpc.push(phaseConsistency(phasors, nf * L, trials));
     if (evokedOut !== null && evoked !== null) evokedOut.push(evoked);
   }
   if (onProgress !== undefined && totalEpochs === 0) onProgress(1);
-  return { power, normalized, singleTrials, itpc, evoked: evokedOut };
+  return { power, normalized, singleTrials, coarseTrials: coarseOut, itpc, evoked: evokedOut };
+}
+
+// The coarse layout: S_f = 2·M_f where frequency f takes the trial-average path, else 0.
+function coarseLayout(bandSizes: Int32Array, periods: Int32Array, averagePath: boolean): CoarseTrials {
+  const nf = bandSizes.length;
+  const points = new Int32Array(nf);
+  const offsets = new Int32Array(nf + 1);
+  for (let f = 0; f < nf; f++) {
+    points[f] = averagePath ? 2 * bandSizes[f] : 0;
+    offsets[f + 1] = offsets[f] + points[f];
+  }
+  return { points, periods: Int32Array.from(periods), offsets, samples: [] };
+}
+
+// p[s] = |u[s]|², u interleaved complex (the same squares averagePower adds to its sum).
+function keepCoarse(into: Float32Array, off: number, u: Float64Array, count: number): void {
+  for (let s = 0; s < count; s++) into[off + s] = u[2 * s] * u[2 * s] + u[2 * s + 1] * u[2 * s + 1];
 }
 
 // Mean over a condition's epochs of each epoch with its own mean removed, µV, summed in Float64 in epoch order.
@@ -404,7 +450,7 @@ function averagePower(acc: Float64Array, spectrum: Float64Array, bins: Int32Arra
 // Exact band-limited (Fourier) interpolation of 2M samples acc[s] = p(s·N/(2M)) of a power row p with lags below
 // M, written to sum[off + j] for j < L: c_d = FFT_2M(acc)[d]/(2M), p(j) = Σ_d c_d·exp(2πi d j/N). The Nyquist
 // coefficient (zero up to rounding) is split between ±M as usual; rounding below zero is clamped to 0.
-function interpolatePower(sum: Float64Array, off: number, length: number, acc: Float64Array, n: number): void {
+export function interpolatePower(sum: Float64Array, off: number, length: number, acc: Float64Array, n: number): void {
   const m2 = acc.length;
   const m = m2 / 2;
   const input = new Float64Array(2 * m2);

@@ -3,6 +3,7 @@ import { AnalysisCancelledError } from '../analysis/errors';
 import type { Recording } from '../analysis/recording';
 import { planRun, type ChannelAnalysis } from '../analysis/run-recipe';
 import type { RecipePlan } from '../analysis/analyze-channel';
+import type { CoarseTrials } from '../analysis/decompose';
 import type { DecomposeApi } from '../../../workers/decompose-api';
 import type { PoolWorker } from '../../../workers/pool-worker';
 import { webPoolWorker } from './web-worker';
@@ -41,6 +42,8 @@ export interface PoolResult {
   channels: ChannelAnalysis[];
   /** Per condition `[(trial·F + f)·T + t]` power of `singleTrialChannel`, µV²; null when not asked for. */
   singleTrials: Float32Array[] | null;
+  /** The same trials' coarse power samples (decompose.ts `CoarseTrials`); null when not asked for. */
+  coarseTrials: CoarseTrials | null;
 }
 
 /** A worker that could not start, failed to load, threw or stopped during a run; `channel` is the one it held. */
@@ -166,7 +169,7 @@ export class DecomposePool {
           const c = next++;
           const channel = plan.channels[c];
           const samples = recording.data[plan.channelIndices[c]].slice();
-          const job = { plan, samples, channel, singleTrials: c === singleIndex, epochSpectra: options.epochSpectra === true };
+          const job = { plan, samples, channel, singleTrials: c === singleIndex, coarseTrials: c === singleIndex, epochSpectra: options.epochSpectra === true };
           const onChannel = Comlink.proxy((f: number) => {
             fractions[c] = f;
             report();
@@ -188,7 +191,8 @@ export class DecomposePool {
       await Promise.race([lanes, ended]);
       if (run.done) await ended; // a failure or cancel() that raced the last channel's answer wins
       run.done = true;
-      return { plan, channels: outputs, singleTrials: singleIndex >= 0 ? outputs[singleIndex].singleTrials : null };
+      const single = singleIndex >= 0 ? outputs[singleIndex] : null;
+      return { plan, channels: outputs, singleTrials: single?.singleTrials ?? null, coarseTrials: single?.coarseTrials ?? null };
     } catch (error) {
       // A failed run leaves no worker busy on its channels: end them all (cancel() already did).
       if (!(error instanceof AnalysisCancelledError)) this.terminate();

@@ -139,19 +139,28 @@ export function drawEventLine(ctx: Ctx, layout: PanelLayout, time: AxisScale): v
   ctx.restore();
 }
 
+const barGradients = new WeakMap<object, { colormap: Colormap; key: string; gradient: CanvasGradient }>();
+
 /** A vertical colour bar beside the map, ticks of its scale and the unit on top. */
 export function drawColourBar(ctx: Ctx, layout: PanelLayout, colormap: Colormap, scale: ColourScale, unit: string, reverse = false): void {
   const { barX, barWidth, top, plotHeight } = layout;
   ctx.save();
-  // A 33-stop gradient: one fill per frame instead of one per pixel row (the bar repaints on every baseline move).
-  const gradient = ctx.createLinearGradient(0, top + plotHeight, 0, top);
-  const b = colormap.bytes;
-  for (let i = 0; i <= 32; i++) {
-    const t = i / 32;
-    const k = Math.round((reverse ? 1 - t : t) * (colormap.size - 1));
-    gradient.addColorStop(t, `rgb(${b[4 * k]},${b[4 * k + 1]},${b[4 * k + 2]})`);
+  // A 33-stop gradient: one fill per frame instead of one per pixel row (the bar repaints on every baseline move),
+  // made once per context, colormap and place (each stop's colour string is parsed again by every new gradient).
+  const key = `${top}|${plotHeight}|${reverse}`;
+  let kept = barGradients.get(ctx);
+  if (kept === undefined || kept.colormap !== colormap || kept.key !== key) {
+    const gradient = ctx.createLinearGradient(0, top + plotHeight, 0, top);
+    const b = colormap.bytes;
+    for (let i = 0; i <= 32; i++) {
+      const t = i / 32;
+      const k = Math.round((reverse ? 1 - t : t) * (colormap.size - 1));
+      gradient.addColorStop(t, `rgb(${b[4 * k]},${b[4 * k + 1]},${b[4 * k + 2]})`);
+    }
+    kept = { colormap, key, gradient };
+    barGradients.set(ctx, kept);
   }
-  ctx.fillStyle = gradient;
+  ctx.fillStyle = kept.gradient;
   ctx.fillRect(barX, top, barWidth, plotHeight);
   ctx.strokeStyle = INK;
   ctx.lineWidth = 1;

@@ -102,25 +102,48 @@ export function rasterizeMap(image: ImageBuffer, grid: MapGrid, options: RasterO
   if (edges === null) return;
   const a = hatch.alpha;
   const [hr, hg, hb] = hatch.rgb;
+  const { spacing, width: lineWidth } = hatch;
+  // Per frequency, the hatched colour of each edge column is blended once from its plain colour (every pixel row of
+  // a frequency shows the same plain colours) and then written where the diagonal lines fall: the same bytes as
+  // blending pixel by pixel, at one store per hatched pixel.
+  const hatched = new Int32Array(width);
+  const blend = new Uint8ClampedArray(4);
+  const blendWord = new Int32Array(blend.buffer);
+  let hatchF = -1;
+  let xl = 0;
+  let xr = width;
+  let skip = true;
   for (let y = 0; y < height; y++) {
     const f = nf - 1 - Math.min(nf - 1, Math.floor((y * nf) / height));
     const pixOff = y * width;
-    const l = edges.left[f];
-    const r = nt - edges.right[f];
-    if (l <= 0 && r >= nt) continue;
-    // colCell rises with x, so the edge zones are the columns before xl and from xr on: visit only those.
-    let xl = 0;
-    while (xl < width && colCell[xl] < l) xl++;
-    let xr = width;
-    while (xr > xl && colCell[xr - 1] >= r) xr--;
+    if (f !== hatchF) {
+      hatchF = f;
+      const l = edges.left[f];
+      const r = nt - edges.right[f];
+      skip = l <= 0 && r >= nt;
+      if (skip) continue;
+      // colCell rises with x, so the edge zones are the columns before xl and from xr on: visit only those.
+      xl = 0;
+      while (xl < width && colCell[xl] < l) xl++;
+      xr = width;
+      while (xr > xl && colCell[xr - 1] >= r) xr--;
+      for (let zone = 0; zone < 2; zone++) {
+        const x1 = zone === 0 ? xl : width;
+        for (let x = zone === 0 ? 0 : xr; x < x1; x++) {
+          blendWord[0] = out[pixOff + x];
+          blend[0] = blend[0] + (hr - blend[0]) * a;
+          blend[1] = blend[1] + (hg - blend[1]) * a;
+          blend[2] = blend[2] + (hb - blend[2]) * a;
+          hatched[x] = blendWord[0];
+        }
+      }
+    }
+    if (skip) continue;
     for (let zone = 0; zone < 2; zone++) {
+      const x0 = zone === 0 ? 0 : xr;
       const x1 = zone === 0 ? xl : width;
-      for (let x = zone === 0 ? 0 : xr; x < x1; x++) {
-        if ((x + y) % hatch.spacing >= hatch.width) continue;
-        const p = 4 * (pixOff + x);
-        data[p] = data[p] + (hr - data[p]) * a;
-        data[p + 1] = data[p + 1] + (hg - data[p + 1]) * a;
-        data[p + 2] = data[p + 2] + (hb - data[p + 2]) * a;
+      for (let x = x0, m = (x0 + y) % spacing; x < x1; x++, m = m + 1 === spacing ? 0 : m + 1) {
+        if (m < lineWidth) out[pixOff + x] = hatched[x];
       }
     }
   }

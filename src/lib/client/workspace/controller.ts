@@ -149,7 +149,11 @@ export class WorkspaceHistory {
   }
 
   private publish(): void {
-    this.memory.setState({ canUndo: this.past.length > 0, canRedo: this.future.length > 0 });
+    const canUndo = this.past.length > 0;
+    const canRedo = this.future.length > 0;
+    // Only a change: a baseline drag is an edit per move, and each new memory state re-renders the undo bar.
+    const m = this.memory.getState();
+    if (m.canUndo !== canUndo || m.canRedo !== canRedo) this.memory.setState({ canUndo, canRedo });
   }
 
   private put(edits: WorkspaceEdits): void {

@@ -6,6 +6,7 @@ import type { EpochSpectra } from '../../analysis/epoch-spectra';
 import type { Recording } from '../../analysis/recording';
 import type { RecipeInput } from '../../analysis/recipe';
 import type { ChannelAnalysis, RecipePlan } from '../../analysis/run-recipe';
+import type { CoarseTrials } from '../../analysis/decompose';
 import { DecomposePool } from '../decompose-pool';
 import { plannedChannel, RecipePlanner, type PlannedRecipe } from '../recipe-planner';
 import { explorerWorker } from '../explorer-worker';
@@ -162,7 +163,7 @@ export interface ResultsConfig {
    */
   plan: (recording: Recording, recipe: RecipeInput) => PlannedRecipe | Promise<PlannedRecipe>;
   /** Hands one channel's single-trial power to the explorer worker (default: the explorer's one worker). */
-  holdTrials: (key: string, trials: Float32Array[], counts: number[], frequencies: number, times: number) => Promise<unknown>;
+  holdTrials: (key: string, trials: Float32Array[], counts: number[], frequencies: number, times: number, coarse?: CoarseTrials | null) => Promise<unknown>;
 }
 
 const defaults: ResultsConfig = {
@@ -171,7 +172,8 @@ const defaults: ResultsConfig = {
   budgetBytes: 512 * 1024 * 1024,
   plan: (recording, recipe) => (planner ??= new RecipePlanner()).plan(recording, recipe),
   // The worker keeps these; the main thread does not, so they move rather than being copied (tens of MB).
-  holdTrials: (key, trials, counts, frequencies, times) => explorerWorker().holdTrials(key, Comlink.transfer(trials, trials.map((t) => t.buffer)), counts, frequencies, times),
+  holdTrials: (key, trials, counts, frequencies, times, coarse = null) =>
+    explorerWorker().holdTrials(key, Comlink.transfer(trials, [...trials, ...(coarse?.samples ?? [])].map((t) => t.buffer)), counts, frequencies, times, coarse),
 };
 let planner: RecipePlanner | null = null;
 let config: ResultsConfig = defaults;
@@ -400,7 +402,7 @@ export async function runDecomposition(recording: Recording, recordingId: string
   setRun({ status: 'running', message: null, progress: plan.channels.map((c) => ({ channel: c, fraction: 0 })) });
   pool ??= config.createPool();
   try {
-    const { channels, singleTrials } = await pool.run(recording, recipe, {
+    const { channels, singleTrials, coarseTrials } = await pool.run(recording, recipe, {
       planned,
       singleTrialChannel: channel,
       epochSpectra: true,
@@ -416,7 +418,7 @@ export async function runDecomposition(recording: Recording, recordingId: string
     const open = useWorkspace.getState();
     if (recordingId.startsWith('local-') && open.fingerprint !== null && open.recording?.data[0] === recording.data[0]) adoptFingerprint(recording, open.fingerprint);
     setRun({ status: 'done', message: `Decomposed ${plan.channels.length} channel(s) × ${labels.length} condition(s).` });
-    if (singleTrials !== null) await holdTrials(decomposition, channel, singleTrials);
+    if (singleTrials !== null) await holdTrials(decomposition, channel, singleTrials, coarseTrials);
     return decomposition;
   } catch (error) {
     if (error instanceof AnalysisCancelledError) {
@@ -442,9 +444,9 @@ export function cancelDecomposition(): void {
   pool?.cancel();
 }
 
-async function holdTrials(d: Decomposition, channel: string, singleTrials: Float32Array[]): Promise<void> {
+async function holdTrials(d: Decomposition, channel: string, singleTrials: Float32Array[], coarse: CoarseTrials | null): Promise<void> {
   const key = `${d.key}|${channel}`;
-  await config.holdTrials(key, singleTrials, d.trials, d.frequencies.length, d.times.length);
+  await config.holdTrials(key, singleTrials, d.trials, d.frequencies.length, d.times.length, coarse);
   useResultsStore.setState({ trialHold: { key, status: 'ready', message: null } });
 }
 
@@ -461,10 +463,10 @@ export async function ensureTrials(d: Decomposition, channel: string, recording:
   try {
     // The decomposition's own plan, narrowed to the channel: nothing is planned or conditioned again.
     const planned = plannedChannel(await plannedFor(d, recording), channel);
-    const { singleTrials } = await trialPool.run(recording, { ...d.recipe, channels: [channel] }, { singleTrialChannel: channel, planned });
+    const { singleTrials, coarseTrials } = await trialPool.run(recording, { ...d.recipe, channels: [channel] }, { singleTrialChannel: channel, planned });
     if (useResultsStore.getState().trialHold?.key !== key) return;
     if (singleTrials === null) throw new Error('the worker returned no single trials');
-    await holdTrials(d, channel, singleTrials);
+    await holdTrials(d, channel, singleTrials, coarseTrials);
   } catch (error) {
     useResultsStore.setState({ trialHold: { key, status: 'failed', message: error instanceof Error ? error.message : String(error) } });
   }

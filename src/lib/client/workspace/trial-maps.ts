@@ -75,12 +75,14 @@ async function splitRow(key: string, nFreqs: number): Promise<number | null> {
 }
 
 /**
- * One job's maps. Weighted sums over every trial (percent change, power ratio, z-score over time) are split by
- * frequency rows over the explorer worker and a second worker, which run at once on two cores; decibels (one
- * subtraction per cell after precomputed logarithms) and across-trials z-scores stay in one worker.
+ * One job's maps. z-scores over time (a weighted sum over every trial's stored row) are split by frequency rows
+ * over the explorer worker and a second worker, which run at once on two cores. The rest stay in one worker:
+ * decibels (one subtraction per cell after precomputed logarithms), percent change and power ratio (weighted sums
+ * of the trials' coarse samples, S_f per trial and frequency, then one interpolation per frequency) and
+ * across-trials z-scores.
  */
 async function renormalize(job: TrialMapsJob): Promise<(Float64Array | null)[] | null> {
-  const split = job.method !== 'decibel' && job.spread === 'time' ? await splitRow(job.key, job.nFreqs) : null;
+  const split = job.method === 'z-score' && job.spread === 'time' ? await splitRow(job.key, job.nFreqs) : null;
   if (split === null || helper === null) return explorerWorker().renormalize(job.key, job.first, job.last, job.method, job.spread, job.conditions);
   const [lower, upper] = await Promise.all([
     explorerWorker().renormalize(job.key, job.first, job.last, job.method, job.spread, job.conditions, [0, split]),

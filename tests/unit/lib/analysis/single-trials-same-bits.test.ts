@@ -30,6 +30,12 @@ describe('single trials kept or not', () => {
       const kept = analyzeChannel(plan, rec.data[0], { singleTrials: true });
       expect(Array.from(kept.power[0])).toEqual(Array.from(without.power[0]));
       expect(Array.from(kept.normalized[0])).toEqual(Array.from(without.normalized[0]));
+      // Keeping the coarse samples too (the explorer's live re-normalization) changes nothing either.
+      const withCoarse = analyzeChannel(plan, rec.data[0], { singleTrials: true, coarseTrials: true });
+      expect(withCoarse.coarseTrials).not.toBeNull();
+      expect(Array.from(withCoarse.power[0])).toEqual(Array.from(without.power[0]));
+      expect(Array.from(withCoarse.normalized[0])).toEqual(Array.from(without.normalized[0]));
+      expect(Array.from(withCoarse.singleTrials![0])).toEqual(Array.from(kept.singleTrials![0]));
       // The rows are float32 copies of each trial's |y|²; their mean agrees with the average to float32 precision.
       const T = plan.times.length;
       const F = plan.frequencies.length;

@@ -111,6 +111,38 @@ describe('edge zones are hatched, not hidden', () => {
   });
 });
 
+describe('edge hatching pixel by pixel', () => {
+  it('gives the bytes of the per-pixel blend its documentation states, for any map size and edge zones (property)', async () => {
+    const fc = (await import('fast-check')).default;
+    fc.assert(
+      fc.property(fc.integer({ min: 1, max: 7 }), fc.integer({ min: 2, max: 40 }), fc.integer({ min: 1, max: 90 }), fc.integer({ min: 1, max: 50 }), fc.integer({ min: 0, max: 1e6 }), (nf, nt, width, height, seed) => {
+        const left = Int32Array.from({ length: nf }, (_, f) => (seed * (f + 3)) % (nt + 1));
+        const right = Int32Array.from({ length: nf }, (_, f) => (seed * (f + 7)) % (nt + 1));
+        const values = Float64Array.from({ length: nf * nt }, (_, i) => ((seed + i * 7919) % 101) / 100);
+        const options = { colormap: sequentialColormap(), scale: { domain: [0, 1] as [number, number], kind: 'linear' as const } };
+        const got = image(width, height);
+        rasterizeMap(got, { values, nFreqs: nf, nTimes: nt }, { ...options, edges: { left, right } });
+        // Reference: the plain map, then every pixel of an edge cell on a diagonal line ((x + y) mod spacing <
+        // width) moved toward the hatch colour by its opacity, byte by byte (Uint8ClampedArray rounding).
+        const want = image(width, height);
+        rasterizeMap(want, { values, nFreqs: nf, nTimes: nt }, { ...options, edges: null });
+        for (let y = 0; y < height; y++) {
+          const f = nf - 1 - Math.min(nf - 1, Math.floor((y * nf) / height));
+          for (let x = 0; x < width; x++) {
+            const t = Math.min(nt - 1, Math.floor((x * nt) / width));
+            if (t >= left[f] && t < nt - right[f]) continue;
+            if ((x + y) % EDGE_HATCH.spacing >= EDGE_HATCH.width) continue;
+            const p = 4 * (y * width + x);
+            for (let i = 0; i < 3; i++) want.data[p + i] = want.data[p + i] + (EDGE_HATCH.rgb[i] - want.data[p + i]) * EDGE_HATCH.alpha;
+          }
+        }
+        expect(Array.from(got.data)).toEqual(Array.from(want.data));
+      }),
+      { numRuns: 80 },
+    );
+  });
+});
+
 describe('colour limits', () => {
   it('symmetricLimits centres on the neutral value: dB around 0, ratio around 1', () => {
     expect(symmetricLimits([-1, 0.5, 4, -2], 0)).toEqual([-4, 4]);
