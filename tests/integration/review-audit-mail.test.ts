@@ -181,6 +181,18 @@ describe('tamper-evident audit', () => {
     const id = await sessionWithVersion('TM-A01');
     const posts = await Promise.all(Array.from({ length: 12 }, (_, i) => c.reviewer.request(`/api/analysis-sessions/${id}/notes`, { method: 'POST', json: { body: `concurrent ${i}` } })));
     expect(posts.map((p) => p.status)).toEqual(Array(12).fill(201));
+    // These posts were checked and stored in one message each (createNoteAsSignedIn): the event's actor, team, study
+    // and subject code were read by PostgreSQL in that message, and are the poster's and the session's.
+    const noteIds = await Promise.all(posts.map(async (p) => (await p.json()).note.id as string));
+    const { rows: events } = await pool.query(
+      `SELECT e.target_id, e.actor_id, e.team_id, e.detail, s.study_id FROM audit_events e JOIN analysis_sessions s ON s.id = $2 WHERE e.action = 'note.create' AND e.target_id = ANY($1)`,
+      [noteIds, id],
+    );
+    expect(events.map((e) => e.target_id).sort()).toEqual(noteIds.slice().sort());
+    for (const e of events) {
+      expect(e).toMatchObject({ team_id: team.id, detail: { analysisSessionId: id, studyId: e.study_id, subjectCode: 'TM-A01', mentions: [] } });
+      expect(e.actor_id).toBe((await pool.query('SELECT author_id FROM notes WHERE id = $1', [e.target_id])).rows[0].author_id);
+    }
     const { rows } = await pool.query('SELECT id, prev_hash, hash FROM audit_events WHERE team_id = $1 ORDER BY id', [team.id]);
     expect(rows.length).toBeGreaterThan(12);
     for (let i = 1; i < rows.length; i++) expect(rows[i].prev_hash).toBe(rows[i - 1].hash);

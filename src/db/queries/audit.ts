@@ -2,16 +2,18 @@ import { sql } from 'drizzle-orm';
 import pg from 'pg';
 import { PgTransaction } from 'drizzle-orm/pg-core';
 import type { Db } from '../client';
-import { asJsonValue, CHAIN_GENESIS, hashedTextAround } from '../../lib/crypto/audit-chain';
+import { asJsonValue, CHAIN_GENESIS, chainedForm, holedText } from '../../lib/crypto/audit-chain';
 
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
 
 export interface AuditInput {
-  actorId: string | null;
+  /** A `SqlValue` only through `appendStatements` with a `from`. */
+  actorId: string | null | SqlValue;
   action: string;
   targetTable: string;
   targetId: string;
-  teamId?: string | null;
+  /** A `SqlValue` only through `appendStatements` with a `from`. */
+  teamId?: string | null | SqlValue;
   detail?: Record<string, unknown>;
 }
 
@@ -36,25 +38,78 @@ async function append(tx: Tx, input: AuditInput): Promise<void> {
 const literal = (value: string | null): string => (value === null ? 'NULL' : pg.escapeLiteral(value));
 
 /**
+ * A value PostgreSQL supplies when the event is stored: an SQL expression over `AppendOptions.from` (a team id, or a
+ * detail member, the app did not read first). Used by the note post, which checks and stores in one message.
+ */
+export class SqlValue {
+  constructor(readonly expression: string) {}
+}
+
+export interface AppendOptions {
+  /** An SQL condition: when false as the insert runs, nothing is stored and no id is taken. */
+  onlyIf?: string;
+  /** A FROM item (one row, or none: then nothing is locked or stored) that `SqlValue` expressions read. */
+  from?: string;
+}
+
+/**
  * The two statements that append `input` to its team's chain, values written as escaped literals (pg's
  * `escapeLiteral`), so the same text serves both ways of sending them. The lock serializes appends to one chain. The
  * insert reads the chain's last hash, fixes the new event's id and time, and stores the event with its SHA-256 taken
- * by PostgreSQL (sha256(), PostgreSQL 11+) over the RFC 8785 text `eventHash` makes (`hashedTextAround` gives the
- * text around the time, id and previous hash), so no hash is made in this process while the lock is held. The
- * verifier recomputes every stored hash with `eventHash` (`npm run audit:verify`). With `onlyIf` (an SQL condition)
- * the insert stores nothing, and takes no id, when the condition is false when it runs.
+ * by PostgreSQL (sha256(), PostgreSQL 11+) over the RFC 8785 text `eventHash` makes (`holedText` cuts it at
+ * the values PostgreSQL fills in: time, id, previous hash and any `SqlValue`), so no hash is made in this process
+ * while the lock is held. The verifier recomputes every stored hash with `eventHash` (`npm run audit:verify`).
  */
-export function appendStatements(input: AuditInput, onlyIf?: string): { lock: string; insert: string } {
-  const teamId = input.teamId ?? null;
-  const detail = asJsonValue(input.detail ?? {});
-  const [beforeAt, beforeId, beforePrev, afterPrev] = hashedTextAround({ teamId, actorId: input.actorId, action: input.action, targetTable: input.targetTable, targetId: input.targetId, detail });
-  const last = `(SELECT hash FROM audit_events WHERE team_id ${teamId === null ? 'IS NULL' : `= ${literal(teamId)}::uuid`} ORDER BY id DESC LIMIT 1)`;
+export function appendStatements(input: AuditInput, { onlyIf, from }: AppendOptions = {}): { lock: string; insert: string } {
+  const { mark, pieces: cut } = holedText();
+  const fromSql: Record<string, string> = {};
+  const teamSql = input.teamId instanceof SqlValue ? input.teamId.expression : null;
+  const teamId = input.teamId instanceof SqlValue ? null : (input.teamId ?? null);
+  if (teamSql !== null) fromSql.teamId = teamSql;
+  const actorSql = input.actorId instanceof SqlValue ? input.actorId.expression : null;
+  const actorId = input.actorId instanceof SqlValue ? null : input.actorId;
+  if (actorSql !== null) fromSql.actorId = actorSql;
+  const plain: Record<string, unknown> = {};
+  const detailForm: Record<string, unknown> = {};
+  for (const [key, value] of Object.entries(input.detail ?? {})) {
+    if (value instanceof SqlValue) {
+      fromSql[`detail.${key}`] = value.expression;
+      detailForm[key] = mark(`detail.${key}`);
+    } else {
+      plain[key] = value;
+      detailForm[key] = value;
+    }
+  }
+  const detail = asJsonValue(plain);
+  const form = {
+    ...chainedForm({ teamId, actorId, action: input.action, targetTable: input.targetTable, targetId: input.targetId, detail: asJsonValue(detailForm), id: 0, at: new Date(0), prevHash: '' }),
+    ...(teamSql !== null ? { teamId: mark('teamId') } : {}),
+    ...(actorSql !== null ? { actorId: mark('actorId') } : {}),
+    at: mark('at'),
+    id: mark('id'),
+    prevHash: mark('prevHash'),
+  };
+  const { pieces, holes } = cut(form);
+  const holeSql = (name: string): string => {
+    if (name === 'at') return `'"' || to_char(n.at AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"') || '"'`;
+    if (name === 'id') return 'n.id::text';
+    if (name === 'prevHash') return `'"' || n.prev || '"'`;
+    const expression = fromSql[name];
+    if (expression === undefined) throw new Error(`audit: no value for the hole ${name}`);
+    return `to_json((${expression})::text)::text`;
+  };
+  const hashed = pieces.map((piece, i) => `${literal(piece)}::text${i < holes.length ? ` || ${holeSql(holes[i])}` : ''}`).join(' || ');
+  const team = teamSql !== null ? `(${teamSql})::uuid` : `${literal(teamId)}::uuid`;
+  const last = `(SELECT hash FROM audit_events WHERE team_id ${teamSql === null && teamId === null ? 'IS NULL' : `= ${team}`} ORDER BY id DESC LIMIT 1)`;
+  const sqlDetail = Object.entries(fromSql).filter(([k]) => k.startsWith('detail.'));
+  const storedDetail = `${literal(JSON.stringify(detail))}::jsonb${sqlDetail.length ? ` || jsonb_build_object(${sqlDetail.map(([k, e]) => `${literal(k.slice('detail.'.length))}::text, (${e})::text`).join(', ')})` : ''}`;
+  const lockKey = teamSql !== null ? `'tidemark:audit:' || (${teamSql})::text` : literal(`tidemark:audit:${teamId ?? 'site'}`);
   return {
-    lock: `SELECT pg_advisory_xact_lock(hashtextextended(${literal(`tidemark:audit:${teamId ?? 'site'}`)}, 0))`,
+    lock: `SELECT pg_advisory_xact_lock(hashtextextended(${lockKey}, 0))${from ? ` FROM ${from}` : ''}`,
     insert: `INSERT INTO audit_events (id, team_id, actor_id, action, target_table, target_id, detail, at, prev_hash, hash)
-     SELECT n.id, ${literal(teamId)}::uuid, ${literal(input.actorId)}::text, ${literal(input.action)}::text, ${literal(input.targetTable)}::text, ${literal(input.targetId)}::text, ${literal(JSON.stringify(detail))}::jsonb, n.at, n.prev,
-       encode(sha256(convert_to(${literal(beforeAt)}::text || to_char(n.at AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"') || ${literal(beforeId)} || n.id::text || ${literal(beforePrev)} || n.prev || ${literal(afterPrev)}, 'UTF8')), 'hex')
-     FROM (SELECT nextval(pg_get_serial_sequence('audit_events', 'id')) AS id, date_trunc('milliseconds', now()) AS at, coalesce(${last}, ${literal(CHAIN_GENESIS)}) AS prev${onlyIf ? ` WHERE ${onlyIf}` : ''}) n`,
+     SELECT n.id, ${team}, ${actorSql !== null ? `(${actorSql})::text` : `${literal(actorId)}::text`}, ${literal(input.action)}::text, ${literal(input.targetTable)}::text, ${literal(input.targetId)}::text, ${storedDetail}, n.at, n.prev,
+       encode(sha256(convert_to(${hashed}, 'UTF8')), 'hex')
+     FROM ${from ? `${from} CROSS JOIN LATERAL ` : ''}(SELECT nextval(pg_get_serial_sequence('audit_events', 'id')) AS id, date_trunc('milliseconds', now()) AS at, coalesce(${last}, ${literal(CHAIN_GENESIS)}) AS prev${onlyIf ? ` WHERE ${onlyIf}` : ''}) n`,
   };
 }
 

@@ -30,10 +30,10 @@ import {
 import type { Role } from '../../lib/permissions';
 import type { MailKind, NoteAnchorT } from '../../lib/schemas/review';
 import { jsonHash, signedContentHash } from '../../lib/crypto/review-hash';
-import { appendStatements, recordAudit, recordAuditAndCommit } from './audit';
+import { appendStatements, recordAudit, recordAuditAndCommit, SqlValue } from './audit';
 import { digestNewSummaries } from './cohort';
 import { isUuid } from './teams';
-import { columnsOf, readerSql, rowOf, splitSignIn, type PlainSignInRow, type Reader } from './readers';
+import { columnsOf, plainSignIn, readerSql, rowOf, splitSignIn, type PlainSignInRow, type Reader } from './readers';
 
 type Tx = Parameters<Parameters<typeof db.transaction>[0]>[0];
 
@@ -391,13 +391,18 @@ async function createNoteInOneMessage(ctx: SessionWithRole, authorId: string, in
       actorId: authorId, action: input.parentId ? 'note.reply' : 'note.create', targetTable: 'notes', targetId: id, teamId: ctx.team.id,
       detail: { analysisSessionId: ctx.session.id, studyId: ctx.study.id, subjectCode: ctx.session.subjectCode, ...(input.parentId ? { parentId: input.parentId } : {}), mentions: input.mentions },
     },
-    `EXISTS (SELECT 1 FROM notes WHERE id = ${lit(id)}::uuid)`,
+    { onlyIf: `EXISTS (SELECT 1 FROM notes WHERE id = ${lit(id)}::uuid)` },
   );
+  const results = await oneMessage<Note>(['BEGIN', insert, lock, audit, 'COMMIT']);
+  return results[1].rows[0] ?? null;
+}
+
+/** Statements sent as one simple-query message; after a failure the transaction is rolled back, and the error thrown. */
+async function oneMessage<T extends pg.QueryResultRow>(statements: string[]): Promise<pg.QueryResult<T>[]> {
   const client = await pool.connect();
   let broken: Error | undefined;
   try {
-    const results = (await client.query(['BEGIN', insert, lock, audit, 'COMMIT'].join(';\n'))) as unknown as pg.QueryResult<Note>[];
-    return results[1].rows[0] ?? null;
+    return (await client.query(statements.join(';\n'))) as unknown as pg.QueryResult<T>[];
   } catch (error) {
     await client.query('ROLLBACK').catch((e: Error) => {
       broken = e;
@@ -406,6 +411,53 @@ async function createNoteInOneMessage(ctx: SessionWithRole, authorId: string, in
   } finally {
     client.release(broken);
   }
+}
+
+/**
+ * A note post in one round trip (issue 17): the request's sign-in, the membership, the role and the recipe version
+ * are checked by the statement that inserts the note (`plainSignIn`, db/queries/readers.ts), and the audit event reads
+ * the team, study and subject code in its own statement (`SqlValue`). Returns the note and the sign-in, or null when
+ * nothing was stored: the sign-in needs the full check, the reader may not post here, the version is missing, or the
+ * clientKey was used before. The caller then takes the ordinary path, which answers each of those as usual; nothing
+ * was written. Only for a top-level note without mentions (mail needs a transaction of its own).
+ */
+export async function createNoteAsSignedIn(
+  sessionId: string,
+  signIn: { tokenHash: string; idleMinutes: number },
+  allowedRoles: readonly Role[],
+  input: { body: string; recipeVersion: number | null; anchor: NoteAnchorT | null; clientKey?: string },
+): Promise<{ note: Note; signIn: PlainSignInRow } | null> {
+  if (!isUuid(sessionId) || allowedRoles.length === 0) return null;
+  const id = randomUUID();
+  const version = input.recipeVersion === null ? null : `(SELECT v.id FROM recipe_versions v WHERE v.analysis_session_id = s.id AND v.number = ${Number(input.recipeVersion)})`;
+  const insert = `WITH ctx AS (
+      SELECT s.id AS session_id, ${version ?? 'NULL::uuid'} AS version_id, me.*
+        FROM analysis_sessions s JOIN studies st ON st.id = s.study_id
+        CROSS JOIN ${plainSignIn(lit(signIn.tokenHash), String(Math.trunc(signIn.idleMinutes)))}
+        JOIN memberships m ON m.team_id = st.team_id AND m.user_id = me.user_id
+       WHERE s.id = ${lit(sessionId)}::uuid AND m.role::text = ANY(ARRAY[${allowedRoles.map(lit).join(', ')}]::text[])${version ? ` AND ${version} IS NOT NULL` : ''}
+    ), made AS (
+      INSERT INTO notes (id, analysis_session_id, parent_id, recipe_version_id, anchor, author_id, body, mentions, client_key)
+      SELECT ${lit(id)}::uuid, ctx.session_id, NULL, ctx.version_id, ${input.anchor === null ? 'NULL' : `${lit(JSON.stringify(input.anchor))}::jsonb`}, ctx.user_id,
+             ${lit(input.body)}, '{}'::text[], ${lit(input.clientKey ?? null)}::uuid
+        FROM ctx
+      ON CONFLICT DO NOTHING RETURNING ${NOTE_FIELDS}
+    )
+    SELECT made.*, ctx.user_id, ctx.email, ctx.display_name, ctx.is_operator, ctx.session_created_at, ctx.last_used_at, ctx.expires_at FROM made, ctx`;
+  const from = `(SELECT st.team_id, st.id AS study_id, s.subject_code, x.author_id
+      FROM notes x JOIN analysis_sessions s ON s.id = x.analysis_session_id JOIN studies st ON st.id = s.study_id WHERE x.id = ${lit(id)}::uuid) c`;
+  const { lock, insert: audit } = appendStatements(
+    {
+      actorId: new SqlValue('c.author_id'), action: 'note.create', targetTable: 'notes', targetId: id, teamId: new SqlValue('c.team_id'),
+      detail: { analysisSessionId: sessionId, studyId: new SqlValue('c.study_id'), subjectCode: new SqlValue('c.subject_code'), mentions: [] },
+    },
+    { from },
+  );
+  const results = await oneMessage<Note & PlainSignInRow>(['BEGIN', insert, lock, audit, 'COMMIT']);
+  const row = results[1].rows[0];
+  if (!row) return null;
+  const split = splitSignIn(row);
+  return split && split.signIn ? { note: split.row as Note, signIn: split.signIn } : null;
 }
 
 async function createNoteInTransaction(ctx: SessionWithRole, authorId: string, input: NoteInput, then: InTransaction<Note>): Promise<Note | null> {

@@ -10,7 +10,7 @@
  * still be cut off by someone with the database owner's rights. Copying the latest hash elsewhere (a printout, a
  * site log) closes that gap; the study page shows each chain's head for that reason.
  */
-import { createHash } from 'node:crypto';
+import { createHash, randomBytes } from 'node:crypto';
 import canonicalize from 'canonicalize';
 
 /** The previous hash of a chain's first event. */
@@ -59,35 +59,34 @@ export function canonicalJson(value: unknown): string {
   return text;
 }
 
-const AT = '\u0000at\u0000';
-const ID = '\u0000id\u0000';
-const PREV = '\u0000prev\u0000';
-
 /**
- * The canonical text `eventHash` hashes (audit-chain.ts), cut around the event's time, id and previous hash: the
- * text before the time's digits, between the time and the id, between the id and the previous hash, and after it.
- * RFC 8785 orders members by name, whatever their values, so placeholders there give the real text's pieces. The
- * time and the previous hash are strings (their quotes stay in the pieces); the id is a number (no quotes).
+ * The canonical text `eventHash` hashes, with holes for values only PostgreSQL knows when it stores the event (its
+ * id, time and previous hash, or a team id read in the same statement). `mark(name)` makes a hole's marker, to put in
+ * place of the value in `chainedForm`; `pieces(form)` cuts the canonical text at the markers and returns the text
+ * between them (one more piece than holes) and the hole names in text order; the caller puts each value's JSON text
+ * (quotes included for a string) between the pieces. RFC 8785 orders members by name, whatever their values, so the
+ * markers give the real text's pieces. Each call has its own random nonce in its markers, so no stored value can
+ * look like one.
  */
-export function hashedTextAround(fields: Omit<ChainedFields, 'id' | 'at' | 'prevHash'>): [string, string, string, string] {
-  const form: Record<string, unknown> = { ...chainedForm({ ...fields, id: 0, at: new Date(0), prevHash: '' }), at: AT, id: ID, prevHash: PREV };
-  const text = canonicalJson(form);
-  const quoted = (v: string) => canonicalJson(v);
-  // `at` precedes `detail` in name order and `id` and `prevHash` follow it: the first `at` and the last `id` and
-  // `prevHash` members are the event's own, wherever the same placeholders might appear inside `detail`.
-  const atMark = `"at":${quoted(AT)}`;
-  const idMark = `"id":${quoted(ID)}`;
-  const prevMark = `"prevHash":${quoted(PREV)}`;
-  const a = text.indexOf(atMark);
-  const i = text.lastIndexOf(idMark);
-  const p = text.lastIndexOf(prevMark);
-  if (a < 0 || i < a || p < i) throw new Error('audit: the hashed text did not have its members in RFC 8785 order');
-  return [
-    `${text.slice(0, a)}"at":"`,
-    `"${text.slice(a + atMark.length, i)}"id":`,
-    `${text.slice(i + idMark.length, p)}"prevHash":"`,
-    `"${text.slice(p + prevMark.length)}`,
-  ];
+export function holedText(): { mark: (name: string) => string; pieces: (form: Record<string, unknown>) => { pieces: string[]; holes: string[] } } {
+  const nonce = randomBytes(12).toString('hex');
+  const mark = (name: string): string => `\u0000${nonce}:${name}\u0000`;
+  const pieces = (form: Record<string, unknown>) => {
+    const text = canonicalJson(form);
+    const marker = new RegExp(`"\\\\u0000${nonce}:([^"\\\\]+)\\\\u0000"`, 'g');
+    const out: string[] = [];
+    const holes: string[] = [];
+    let from = 0;
+    for (let m = marker.exec(text); m; m = marker.exec(text)) {
+      out.push(text.slice(from, m.index));
+      holes.push(m[1]);
+      from = m.index + m[0].length;
+    }
+    out.push(text.slice(from));
+    if (new Set(holes).size !== holes.length) throw new Error(`audit: a hole appears twice in the hashed text (${holes.join(', ')})`);
+    return { pieces: out, holes };
+  };
+  return { mark, pieces };
 }
 
 /** What JSON (and so jsonb) keeps of a value: drops undefined, turns Dates into strings, NaN into null. */

@@ -1,7 +1,7 @@
 import { createHash } from 'node:crypto';
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { asJsonValue, canonicalJson, chainedForm, CHAIN_GENESIS, eventHash, firstBreak, hashedTextAround } from '../../../../src/lib/crypto/audit-chain';
+import { asJsonValue, canonicalJson, chainedForm, CHAIN_GENESIS, eventHash, firstBreak, holedText } from '../../../../src/lib/crypto/audit-chain';
 import { signedContentHash } from '../../../../src/lib/crypto/review-hash';
 
 describe('canonical JSON (RFC 8785, JSON Canonicalization Scheme)', () => {
@@ -83,7 +83,7 @@ describe('the hashed text cut around time, id and previous hash (what PostgreSQL
     fc.record({ at: fc.constant('\u0000at\u0000'), id: fc.constant('\u0000id\u0000'), prevHash: fc.constant('\u0000prev\u0000'), x: text }),
     fc.record({ detail: fc.record({ id: fc.constant('\u0000id\u0000'), prevHash: fc.constant('\u0000prev\u0000') }) }),
   );
-  it('joined with the three values, is exactly the RFC 8785 text eventHash hashes (fast-check, 500 cases)', () => {
+  it('cut at its holes and joined with the values\' JSON text, is exactly the RFC 8785 text eventHash hashes (fast-check, 500 cases)', () => {
     fc.assert(
       fc.property(
         fc.record({
@@ -98,9 +98,20 @@ describe('the hashed text cut around time, id and previous hash (what PostgreSQL
           prevHash: fc.oneof(fc.constant(CHAIN_GENESIS), fc.stringMatching(/^[0-9a-f]{64}$/)),
         }),
         (e) => {
-          const [beforeAt, beforeId, beforePrev, afterPrev] = hashedTextAround(e);
-          const joined = `${beforeAt}${e.at.toISOString()}${beforeId}${e.id}${beforePrev}${e.prevHash}${afterPrev}`;
-          expect(joined).toBe(canonicalJson(chainedForm(e)));
+          // The holes PostgreSQL fills in when it stores an event (db/queries/audit.ts): time, id, previous hash,
+          // and for the note post the team id and two detail members read in the same statement.
+          const { mark, pieces: cut } = holedText();
+          const holed = { ...e, detail: { ...(e.detail as object), studyId: mark('detail.studyId'), subjectCode: mark('detail.subjectCode') } };
+          const form = { ...chainedForm(holed), teamId: mark('teamId'), at: mark('at'), id: mark('id'), prevHash: mark('prevHash') };
+          const { pieces, holes } = cut(form);
+          const full = { ...e, detail: { ...(e.detail as object), studyId: e.teamId ?? 'st-1', subjectCode: 'TM-S"01\\x' } };
+          const value: Record<string, string> = {
+            at: JSON.stringify(e.at.toISOString()), id: String(e.id), prevHash: JSON.stringify(e.prevHash), teamId: JSON.stringify(e.teamId),
+            'detail.studyId': JSON.stringify(full.detail.studyId), 'detail.subjectCode': JSON.stringify(full.detail.subjectCode),
+          };
+          expect(holes.slice().sort()).toEqual(Object.keys(value).sort());
+          const joined = pieces.map((p, i) => p + (i < holes.length ? value[holes[i]] : '')).join('');
+          expect(joined).toBe(canonicalJson(chainedForm(full)));
         },
       ),
       { numRuns: 500 },

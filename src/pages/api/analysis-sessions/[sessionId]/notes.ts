@@ -4,7 +4,9 @@
 import type { APIRoute } from 'astro';
 import { HttpError, json, parseJson, requirePermission, route } from '../../../../lib/server/http';
 import { checkMentions, loadSession, noteJson } from '../../../../lib/server/review-api';
-import { createNote, getRecipeVersion, listNotes } from '../../../../db/queries/review';
+import { createNote, createNoteAsSignedIn, getRecipeVersion, listNotes } from '../../../../db/queries/review';
+import { adoptSignIn, deferredSignIn } from '../../../../lib/server/request-auth';
+import { can, roles } from '../../../../lib/permissions';
 import { NOTE_CAPS, NoteInput } from '../../../../lib/schemas/review';
 import { mailMentioned } from '../../../../lib/server/review-mail';
 import { wakeMailSender } from '../../../../lib/server/mail';
@@ -17,11 +19,31 @@ export const GET: APIRoute = (ctx) =>
     return json({ notes: rows.map((r) => noteJson(r.note, { authorName: r.authorName, recipeVersion: r.recipeVersion })) });
   });
 
+// Roles that may post a note (the permission matrix), for the statement that checks and stores at once.
+const POSTERS = roles.filter((r) => can(r, 'note:create'));
+
 export const POST: APIRoute = (ctx) =>
   route(ctx, async ({ request, url }) => {
+    // The body is read first, but a refusal of it waits until the sign-in and the session have been checked.
+    const read = await parseJson(request, NoteInput, { maxBytes: NOTE_CAPS.bodyBytes }).then(
+      (value) => ({ ok: true as const, value }),
+      (error: unknown) => ({ ok: false as const, error }),
+    );
+    // The busiest write: a plain note (no mentions) is checked and stored in one round trip when the statement can
+    // vouch for the sign-in (createNoteAsSignedIn); anything else takes the ordinary path below.
+    const deferred = deferredSignIn(ctx);
+    if (read.ok && deferred !== null && read.value.mentions.length === 0) {
+      const input = read.value;
+      const made = await createNoteAsSignedIn(ctx.params.sessionId ?? '', deferred, POSTERS, { body: input.body, recipeVersion: input.recipeVersion, anchor: input.anchor, clientKey: input.clientKey });
+      if (made) {
+        adoptSignIn(ctx, made.signIn);
+        return json({ note: noteJson(made.note, { authorName: made.signIn.display_name, recipeVersion: input.recipeVersion }) }, 201);
+      }
+    }
     const found = await loadSession(ctx);
     requirePermission(found.role, 'note:create');
-    const input = await parseJson(request, NoteInput, { maxBytes: NOTE_CAPS.bodyBytes });
+    if (!read.ok) throw read.error;
+    const input = read.value;
     let recipeVersionId: string | null = null;
     if (input.recipeVersion !== null) {
       const version = await getRecipeVersion(found.session.id, input.recipeVersion);
