@@ -6,6 +6,8 @@ declare namespace App {
     session: import('./lib/server/sessions').ActiveSession | null;
     /** Why a session cookie stopped working on this request (idle, absolute, disabled), for the sign-in notice. */
     sessionEnded?: 'idle' | 'absolute' | 'disabled';
+    /** How this request's sign-in was checked (lib/server/request-auth.ts); test and demo builds say it in a header. */
+    signInCheck?: 'statement' | 'full';
   }
 }
 

@@ -28,6 +28,14 @@ async function handle(context: APIContext, next: MiddlewareNext): Promise<Respon
   // The busiest routes check the sign-in inside their own statement (lib/server/request-auth.ts).
   await checkSignIn(context);
   const response = await next();
+  // Test and demo builds say how the sign-in was checked, so tests can tell the shortcut ran (request-auth.ts).
+  if (import.meta.env.TIDEMARK_DEMO && context.locals.signInCheck) {
+    try {
+      response.headers.set('x-tidemark-sign-in-check', context.locals.signInCheck);
+    } catch {
+      /* immutable headers */
+    }
+  }
   // Pages for signed-in people are private and change as data changes.
   if (context.locals.user && !response.headers.has('cache-control')) {
     try {

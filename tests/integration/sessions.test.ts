@@ -434,22 +434,40 @@ describe('the busiest reads check the sign-in inside their own statement (issue 
 
   it('answers a fresh session without writing, and restarts a stale idle clock', async () => {
     const { member, client, id, paths } = await setting();
+    // Test builds say how the sign-in was checked (x-tidemark-sign-in-check): in the route's statement, or in full.
+    const checkOf = (r: Response) => r.headers.get('x-tidemark-sign-in-check');
+    expect(checkOf(await client.request('/api/me'))).toBe('full');
     for (const p of paths) {
       const before = await lastUsed(id);
-      expect((await client.request(p)).status).toBe(200);
+      const fresh = await client.request(p);
+      expect(fresh.status).toBe(200);
+      expect(checkOf(fresh)).toBe('statement');
       expect(await lastUsed(id)).toEqual(before);
       await owner.query(`UPDATE sessions SET last_used_at = now() - interval '5 minutes' WHERE id = $1`, [id]);
       const stale = await lastUsed(id);
-      expect((await client.request(p)).status).toBe(200);
+      const restarted = await client.request(p);
+      expect(restarted.status).toBe(200);
+      expect(checkOf(restarted)).toBe('full');
       expect((await lastUsed(id))!.getTime()).toBeGreaterThan(stale!.getTime() + 4 * 60_000);
     }
     // The note post checks its sign-in with the session it loads: the same for a fresh and a stale clock.
-    for (const age of ['0 minutes', '5 minutes']) {
+    for (const [age, check] of [['0 minutes', 'statement'], ['5 minutes', 'full']]) {
       await owner.query(`UPDATE sessions SET last_used_at = now() - $2::interval WHERE id = $1`, [id, age]);
       const posted = await client.request(`${paths[0]}/notes`, { method: 'POST', json: { body: `checked after ${age}` } });
       expect(posted.status).toBe(201);
+      expect(checkOf(posted)).toBe(check);
       expect((await posted.json()).note.authorName).toBe(member.user.displayName);
     }
+    // The same clientKey twice: the one-message post stores nothing the second time and the ordinary path answers
+    // 200 with the stored note; a reviewer of another team gets 404 and nothing is stored.
+    const clientKey = '6f1c2d3e-4b5a-4c7d-8e9f-0a1b2c3d4e5f';
+    const first = await client.request(`${paths[0]}/notes`, { method: 'POST', json: { body: 'once', clientKey } });
+    expect([first.status, checkOf(first)]).toEqual([201, 'statement']);
+    const again = await client.request(`${paths[0]}/notes`, { method: 'POST', json: { body: 'once', clientKey } });
+    expect(again.status).toBe(200);
+    expect((await again.json()).note.id).toBe((await first.json()).note.id);
+    const { rows: once } = await pool.query(`SELECT count(*)::int AS n FROM audit_events WHERE action = 'note.create' AND detail->>'analysisSessionId' = $1 AND target_id IN (SELECT id::text FROM notes WHERE client_key = $2)`, [paths[0].split('/').pop(), clientKey]);
+    expect(once[0].n).toBe(1);
   });
 
   it('ends an idle or expired session (401, as every API route answers; the row deleted, the cookie cleared)', async () => {

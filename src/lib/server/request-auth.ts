@@ -20,7 +20,8 @@ const STATUS_PATH = '/api/session';
 /** `METHOD routePattern` of the routes that check the sign-in inside their own statement. */
 // Each of these routes checks the sign-in before anything else it does, through `readAsSignedIn` (the note post
 // through loadSession in review-api.ts).
-const SELF_CHECKING_ROUTES = new Set(['GET /api/analysis-sessions/[sessionId]', 'GET /api/studies/[studyId]/cohort', 'POST /api/analysis-sessions/[sessionId]/notes']);
+// Astro gives `routePattern` in lower case ("[sessionid]"), so the keys are compared in lower case.
+const SELF_CHECKING_ROUTES = new Set(['GET /api/analysis-sessions/[sessionId]', 'GET /api/studies/[studyId]/cohort', 'POST /api/analysis-sessions/[sessionId]/notes'].map((k) => k.toLowerCase()));
 
 const deferredTokens = new WeakMap<App.Locals, string>();
 
@@ -28,7 +29,7 @@ const deferredTokens = new WeakMap<App.Locals, string>();
 export async function checkSignIn(context: APIContext): Promise<void> {
   const token = context.cookies.get(SESSION_COOKIE)?.value ?? null;
   if (!token) return;
-  if (SELF_CHECKING_ROUTES.has(`${context.request.method} ${context.routePattern}`)) {
+  if (SELF_CHECKING_ROUTES.has(`${context.request.method} ${context.routePattern}`.toLowerCase())) {
     deferredTokens.set(context.locals, token);
     return;
   }
@@ -36,6 +37,7 @@ export async function checkSignIn(context: APIContext): Promise<void> {
 }
 
 async function fullCheck(context: APIContext, token: string): Promise<void> {
+  context.locals.signInCheck = 'full';
   const touch = !(context.request.method === 'GET' && context.url.pathname === STATUS_PATH);
   const found = await validateSessionToken(token, { touch });
   if (found.state === 'valid') {
@@ -66,6 +68,7 @@ export function adoptSignIn(context: APIContext, row: PlainSignInRow): void {
   };
   context.locals.user = user;
   context.locals.session = session;
+  context.locals.signInCheck = 'statement';
 }
 
 /** The full check, when the route's own statement could not vouch for the reader (or there was no cookie). */
