@@ -50,6 +50,11 @@ export interface AppendOptions {
   onlyIf?: string;
   /** A FROM item (one row, or none: then nothing is locked or stored) that `SqlValue` expressions read. */
   from?: string;
+  /**
+   * How a value goes into the text: an escaped literal (the default), or a parameter placeholder the caller collects
+   * (the note post prepares its statements once per connection, so their text must not change with the values).
+   */
+  value?: (v: string | null) => string;
 }
 
 /**
@@ -60,7 +65,7 @@ export interface AppendOptions {
  * the values PostgreSQL fills in: time, id, previous hash and any `SqlValue`), so no hash is made in this process
  * while the lock is held. The verifier recomputes every stored hash with `eventHash` (`npm run audit:verify`).
  */
-export function appendStatements(input: AuditInput, { onlyIf, from }: AppendOptions = {}): { lock: string; insert: string } {
+export function appendStatements(input: AuditInput, { onlyIf, from, value = literal }: AppendOptions = {}): { lock: string; insert: string } {
   const { mark, pieces: cut } = holedText();
   const fromSql: Record<string, string> = {};
   const teamSql = input.teamId instanceof SqlValue ? input.teamId.expression : null;
@@ -98,16 +103,16 @@ export function appendStatements(input: AuditInput, { onlyIf, from }: AppendOpti
     if (expression === undefined) throw new Error(`audit: no value for the hole ${name}`);
     return `to_json((${expression})::text)::text`;
   };
-  const hashed = pieces.map((piece, i) => `${literal(piece)}::text${i < holes.length ? ` || ${holeSql(holes[i])}` : ''}`).join(' || ');
-  const team = teamSql !== null ? `(${teamSql})::uuid` : `${literal(teamId)}::uuid`;
+  const hashed = pieces.map((piece, i) => `${value(piece)}::text${i < holes.length ? ` || ${holeSql(holes[i])}` : ''}`).join(' || ');
+  const team = teamSql !== null ? `(${teamSql})::uuid` : `${value(teamId)}::uuid`;
   const last = `(SELECT hash FROM audit_events WHERE team_id ${teamSql === null && teamId === null ? 'IS NULL' : `= ${team}`} ORDER BY id DESC LIMIT 1)`;
   const sqlDetail = Object.entries(fromSql).filter(([k]) => k.startsWith('detail.'));
-  const storedDetail = `${literal(JSON.stringify(detail))}::jsonb${sqlDetail.length ? ` || jsonb_build_object(${sqlDetail.map(([k, e]) => `${literal(k.slice('detail.'.length))}::text, (${e})::text`).join(', ')})` : ''}`;
+  const storedDetail = `${value(JSON.stringify(detail))}::jsonb${sqlDetail.length ? ` || jsonb_build_object(${sqlDetail.map(([k, e]) => `${literal(k.slice('detail.'.length))}::text, (${e})::text`).join(', ')})` : ''}`;
   const lockKey = teamSql !== null ? `'tidemark:audit:' || (${teamSql})::text` : literal(`tidemark:audit:${teamId ?? 'site'}`);
   return {
     lock: `SELECT pg_advisory_xact_lock(hashtextextended(${lockKey}, 0))${from ? ` FROM ${from}` : ''}`,
     insert: `INSERT INTO audit_events (id, team_id, actor_id, action, target_table, target_id, detail, at, prev_hash, hash)
-     SELECT n.id, ${team}, ${actorSql !== null ? `(${actorSql})::text` : `${literal(actorId)}::text`}, ${literal(input.action)}::text, ${literal(input.targetTable)}::text, ${literal(input.targetId)}::text, ${storedDetail}, n.at, n.prev,
+     SELECT n.id, ${team}, ${actorSql !== null ? `(${actorSql})::text` : `${value(actorId)}::text`}, ${value(input.action)}::text, ${value(input.targetTable)}::text, ${value(input.targetId)}::text, ${storedDetail}, n.at, n.prev,
        encode(sha256(convert_to(${hashed}, 'UTF8')), 'hex')
      FROM ${from ? `${from} CROSS JOIN LATERAL ` : ''}(SELECT nextval(pg_get_serial_sequence('audit_events', 'id')) AS id, date_trunc('milliseconds', now()) AS at, coalesce(${last}, ${literal(CHAIN_GENESIS)}) AS prev${onlyIf ? ` WHERE ${onlyIf}` : ''}) n`,
   };

@@ -4,7 +4,7 @@
  * one transaction; changes to one analysis session are serialized by locking its row (SELECT … FOR UPDATE).
  */
 import { and, asc, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
-import { randomUUID } from 'node:crypto';
+import { createHash, randomUUID } from 'node:crypto';
 import pg from 'pg';
 import { db, pool } from '../client';
 import {
@@ -393,24 +393,8 @@ async function createNoteInOneMessage(ctx: SessionWithRole, authorId: string, in
     },
     { onlyIf: `EXISTS (SELECT 1 FROM notes WHERE id = ${lit(id)}::uuid)` },
   );
-  const results = await oneMessage<Note>(['BEGIN', insert, lock, audit, 'COMMIT']);
+  const results = await preparedMessage<Note>(['BEGIN', insert, lock, audit, 'COMMIT']);
   return results[1].rows[0] ?? null;
-}
-
-/** Statements sent as one simple-query message; after a failure the transaction is rolled back, and the error thrown. */
-async function oneMessage<T extends pg.QueryResultRow>(statements: string[]): Promise<pg.QueryResult<T>[]> {
-  const client = await pool.connect();
-  let broken: Error | undefined;
-  try {
-    return (await client.query(statements.join(';\n'))) as unknown as pg.QueryResult<T>[];
-  } catch (error) {
-    await client.query('ROLLBACK').catch((e: Error) => {
-      broken = e;
-    });
-    throw error;
-  } finally {
-    client.release(broken);
-  }
 }
 
 /**
@@ -429,35 +413,91 @@ export async function createNoteAsSignedIn(
 ): Promise<{ note: Note; signIn: PlainSignInRow } | null> {
   if (!isUuid(sessionId) || allowedRoles.length === 0) return null;
   const id = randomUUID();
-  const version = input.recipeVersion === null ? null : `(SELECT v.id FROM recipe_versions v WHERE v.analysis_session_id = s.id AND v.number = ${Number(input.recipeVersion)})`;
-  const insert = `WITH ctx AS (
-      SELECT s.id AS session_id, ${version ?? 'NULL::uuid'} AS version_id, me.*
-        FROM analysis_sessions s JOIN studies st ON st.id = s.study_id
-        CROSS JOIN ${plainSignIn(lit(signIn.tokenHash), String(Math.trunc(signIn.idleMinutes)))}
-        JOIN memberships m ON m.team_id = st.team_id AND m.user_id = me.user_id
-       WHERE s.id = ${lit(sessionId)}::uuid AND m.role::text = ANY(ARRAY[${allowedRoles.map(lit).join(', ')}]::text[])${version ? ` AND ${version} IS NOT NULL` : ''}
-    ), made AS (
-      INSERT INTO notes (id, analysis_session_id, parent_id, recipe_version_id, anchor, author_id, body, mentions, client_key)
-      SELECT ${lit(id)}::uuid, ctx.session_id, NULL, ctx.version_id, ${input.anchor === null ? 'NULL' : `${lit(JSON.stringify(input.anchor))}::jsonb`}, ctx.user_id,
-             ${lit(input.body)}, '{}'::text[], ${lit(input.clientKey ?? null)}::uuid
-        FROM ctx
-      ON CONFLICT DO NOTHING RETURNING ${NOTE_FIELDS}
-    )
-    SELECT made.*, ctx.user_id, ctx.email, ctx.display_name, ctx.is_operator, ctx.session_created_at, ctx.last_used_at, ctx.expires_at FROM made, ctx`;
-  const from = `(SELECT st.team_id, st.id AS study_id, s.subject_code, x.author_id
-      FROM notes x JOIN analysis_sessions s ON s.id = x.analysis_session_id JOIN studies st ON st.id = s.study_id WHERE x.id = ${lit(id)}::uuid) c`;
+  const noteValues = [
+    id, sessionId, signIn.tokenHash, String(Math.trunc(signIn.idleMinutes)), `{${allowedRoles.join(',')}}`,
+    input.recipeVersion === null ? null : String(input.recipeVersion), input.anchor === null ? null : JSON.stringify(input.anchor), input.body, input.clientKey ?? null,
+  ];
+  const auditValues: (string | null)[] = [id];
   const { lock, insert: audit } = appendStatements(
     {
       actorId: new SqlValue('c.author_id'), action: 'note.create', targetTable: 'notes', targetId: id, teamId: new SqlValue('c.team_id'),
       detail: { analysisSessionId: sessionId, studyId: new SqlValue('c.study_id'), subjectCode: new SqlValue('c.subject_code'), mentions: [] },
     },
-    { from },
+    {
+      from: NOTE_AUDIT_FROM,
+      value: (v) => {
+        auditValues.push(v);
+        return `$${auditValues.length}`;
+      },
+    },
   );
-  const results = await oneMessage<Note & PlainSignInRow>(['BEGIN', insert, lock, audit, 'COMMIT']);
+  const results = await preparedMessage<Note & PlainSignInRow>([
+    'BEGIN',
+    { text: NOTE_INSERT, values: noteValues },
+    { text: lock, values: [id] },
+    { text: audit, values: auditValues },
+    'COMMIT',
+  ]);
   const row = results[1].rows[0];
   if (!row) return null;
   const split = splitSignIn(row);
   return split && split.signIn ? { note: split.row as Note, signIn: split.signIn } : null;
+}
+
+// The note post's statements (createNoteAsSignedIn), prepared once per connection. $1 note id, $2 session id, $3 the
+// sign-in's token hash, $4 idle minutes, $5 roles that may post, $6 recipe version number or null, $7 anchor (JSON)
+// or null, $8 body, $9 clientKey or null.
+const NOTE_INSERT = `WITH ctx AS (
+    SELECT s.id AS session_id,
+           CASE WHEN $6::int IS NULL THEN NULL::uuid ELSE (SELECT v.id FROM recipe_versions v WHERE v.analysis_session_id = s.id AND v.number = $6::int) END AS version_id,
+           me.*
+      FROM analysis_sessions s JOIN studies st ON st.id = s.study_id
+      CROSS JOIN ${plainSignIn('$3::text', '$4')}
+      JOIN memberships m ON m.team_id = st.team_id AND m.user_id = me.user_id
+     WHERE s.id = $2::uuid AND m.role::text = ANY($5::text[])
+  ), made AS (
+    INSERT INTO notes (id, analysis_session_id, parent_id, recipe_version_id, anchor, author_id, body, mentions, client_key)
+    SELECT $1::uuid, ctx.session_id, NULL, ctx.version_id, $7::jsonb, ctx.user_id, $8::text, '{}'::text[], $9::uuid
+      FROM ctx
+     WHERE $6::int IS NULL OR ctx.version_id IS NOT NULL
+    ON CONFLICT DO NOTHING RETURNING ${NOTE_FIELDS}
+  )
+  SELECT made.*, ctx.user_id, ctx.email, ctx.display_name, ctx.is_operator, ctx.session_created_at, ctx.last_used_at, ctx.expires_at FROM made, ctx`;
+
+// What the note post's audit event reads in its own statements: the note's author, team, study and subject code.
+const NOTE_AUDIT_FROM = `(SELECT st.team_id, st.id AS study_id, s.subject_code, x.author_id
+    FROM notes x JOIN analysis_sessions s ON s.id = x.analysis_session_id JOIN studies st ON st.id = s.study_id WHERE x.id = $1::uuid) c`;
+
+const preparedOn = new WeakMap<pg.PoolClient, Set<string>>();
+
+/**
+ * Statements as one simple-query message, those with values as `EXECUTE` of a statement this connection has
+ * prepared (SQL PREPARE, named after its text's hash; prepared in the same message the first time): PostgreSQL plans
+ * them once per connection, not per message. After a failure the transaction is rolled back, the connection
+ * dropped (what it has prepared is then unknown), and the error thrown.
+ */
+async function preparedMessage<T extends pg.QueryResultRow>(statements: (string | { text: string; values: (string | null)[] })[]): Promise<pg.QueryResult<T>[]> {
+  const client = await pool.connect();
+  const known = preparedOn.get(client) ?? new Set<string>();
+  const preparing: string[] = [];
+  const sqlText = statements.map((st) => {
+    if (typeof st === 'string') return st;
+    const name = `tidemark_m_${createHash('sha256').update(st.text).digest('hex').slice(0, 16)}`;
+    if (!known.has(name) && !preparing.includes(name)) preparing.push(name, `PREPARE ${name} AS ${st.text}`);
+    return `EXECUTE ${name}(${st.values.map(lit).join(', ')})`;
+  });
+  const prepares = preparing.filter((_, i) => i % 2 === 1);
+  try {
+    const results = (await client.query([...prepares, ...sqlText].join(';\n'))) as unknown as pg.QueryResult<T>[];
+    for (let i = 0; i < preparing.length; i += 2) known.add(preparing[i]);
+    preparedOn.set(client, known);
+    client.release();
+    return results.slice(prepares.length);
+  } catch (error) {
+    await client.query('ROLLBACK').catch(() => {});
+    client.release(true);
+    throw error;
+  }
 }
 
 async function createNoteInTransaction(ctx: SessionWithRole, authorId: string, input: NoteInput, then: InTransaction<Note>): Promise<Note | null> {
