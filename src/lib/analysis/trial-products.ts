@@ -248,24 +248,14 @@ export class TrialGroups {
     const { s, h, n, fine, pair, work, spectrum, out } = this;
     const first = this.pairs === 0;
     this.multiplyInto(pair, 0, 1, first);
-    for (let q = 0; q < s; q++) {
-      work[2 * q] = pair[2 * q];
-      work[2 * q + 1] = -pair[2 * q + 1];
-    }
+    conjugateInto(work, pair, s);
     const fft: FFT = getFft(s);
     fft.transform(spectrum, work);
     const twiddles = residueTwiddles(n, s);
     const step = n / fine;
     for (let rho = 1; rho < h; rho++) {
       const base = 2 * rho * step * s;
-      for (let q = 0; q < s; q++) {
-        const gr = spectrum[2 * q];
-        const gi = -spectrum[2 * q + 1];
-        const tr = twiddles[base + 2 * q];
-        const ti = twiddles[base + 2 * q + 1];
-        work[2 * q] = gr * tr - gi * ti;
-        work[2 * q + 1] = gr * ti + gi * tr;
-      }
+      conjTimesTwiddles(work, spectrum, twiddles, base, s);
       fft.transform(out, work);
       this.multiplyInto(out, rho, 1, first);
     }
@@ -310,24 +300,14 @@ export class TrialGroups {
       return shift;
     }
     const { work, spectrum, out } = this;
-    for (let q = 0; q < fine; q++) {
-      work[2 * q] = product[2 * q];
-      work[2 * q + 1] = -product[2 * q + 1];
-    }
+    conjugateInto(work, product, fine);
     const fft: FFT = getFft(fine);
     fft.transform(spectrum, work);
     const twiddles = residueTwiddles(n, fine);
     const residues = n / fine;
     for (let r = 0; r < residues; r++) {
       const base = 2 * r * fine;
-      for (let q = 0; q < fine; q++) {
-        const gr = spectrum[2 * q];
-        const gi = -spectrum[2 * q + 1];
-        const tr = twiddles[base + 2 * q];
-        const ti = twiddles[base + 2 * q + 1];
-        work[2 * q] = gr * tr - gi * ti;
-        work[2 * q + 1] = gr * ti + gi * tr;
-      }
+      conjTimesTwiddles(work, spectrum, twiddles, base, fine);
       fft.transform(out, work);
       const count = Math.min(fine, Math.ceil((length - r) / residues));
       for (let q = 0, j = r; q < count; q++, j += residues) {
@@ -337,5 +317,25 @@ export class TrialGroups {
       }
     }
     return shift;
+  }
+}
+
+/** work[q] = conj(v[q]) for q < size (interleaved complex). */
+function conjugateInto(work: Float64Array, v: Float64Array, size: number): void {
+  for (let q = 0; q < size; q++) {
+    work[2 * q] = v[2 * q];
+    work[2 * q + 1] = -v[2 * q + 1];
+  }
+}
+
+/** work[q] = conj(spectrum[q])·twiddles[base/2 + q] for q < size (interleaved complex): one residue's input. */
+function conjTimesTwiddles(work: Float64Array, spectrum: Float64Array, twiddles: Float64Array, base: number, size: number): void {
+  for (let q = 0; q < size; q++) {
+    const gr = spectrum[2 * q];
+    const gi = -spectrum[2 * q + 1];
+    const tr = twiddles[base + 2 * q];
+    const ti = twiddles[base + 2 * q + 1];
+    work[2 * q] = gr * tr - gi * ti;
+    work[2 * q + 1] = gr * ti + gi * tr;
   }
 }

@@ -13,6 +13,7 @@ import { decomposeChannel, interpolatePower } from '../../../../src/lib/analysis
 import { interpolateTwo, prepareTrialPower, renormalizeTrials } from '../../../../src/lib/analysis/renormalize';
 import { gaussianSigmas, getWaveletBank } from '../../../../src/lib/analysis/wavelet';
 import { seededNormal } from '../../../helpers/seeded-random';
+import { directPower } from '../../../helpers/direct-morlet';
 
 // Scenario of our own: one channel at 160 Hz, epochs of 1.5 s (240 points), a 11 Hz "lantern" burst in the second
 // half of every third epoch over background noise with an offset.
@@ -30,28 +31,6 @@ function epochs(trials: number, seed: number): { x: Float32Array; starts: Int32A
   return { x, starts };
 }
 
-// |y|² of one demeaned epoch by direct convolution with the contract's wavelet over |t| ≤ h (the bank's support).
-function directPower(x: Float32Array, start: number, f: number, sigma: number, h: number): Float64Array {
-  let mean = 0;
-  for (let j = 0; j < L; j++) mean += x[start + j];
-  mean /= L;
-  const g = Array.from({ length: 2 * h + 1 }, (_, k) => Math.exp(-((k - h) ** 2) / (2 * (sigma * fs) ** 2)));
-  const c = 2 / g.reduce((a, b) => a + b, 0);
-  const re = g.map((gk, k) => c * gk * Math.cos((2 * Math.PI * f * (k - h)) / fs));
-  const im = g.map((gk, k) => c * gk * Math.sin((2 * Math.PI * f * (k - h)) / fs));
-  const p = new Float64Array(L);
-  for (let t = 0; t < L; t++) {
-    let yr = 0;
-    let yi = 0;
-    for (let i = Math.max(0, t - h); i <= Math.min(L - 1, t + h); i++) {
-      const v = x[start + i] - mean;
-      yr += v * re[t - i + h];
-      yi += v * im[t - i + h];
-    }
-    p[t] = yr * yr + yi * yi;
-  }
-  return p;
-}
 
 /** The contract's scope `trial`, term by term, from directly convolved power. */
 function byDefinition(direct: Float64Array[][], first: number, last: number, method: 'percent-change' | 'power-ratio'): Float64Array {
@@ -130,7 +109,7 @@ describe('renormalizeTrials with coarse samples', () => {
     it(`matches the contract's definition over directly convolved power, for moved baselines (${trials} trials)`, () => {
       const h = held(trials, 20 + trials);
       const bank = getWaveletBank(freqs, sigmas, fs, L);
-      const direct = Array.from({ length: trials }, (_, k) => Array.from(freqs, (f, i) => directPower(h.x, h.starts[k], f, sigmas[i], bank.halfWidths[i])));
+      const direct = Array.from({ length: trials }, (_, k) => Array.from(freqs, (f, i) => directPower(h.x, h.starts[k], f, sigmas[i], bank.halfWidths[i], L, fs)));
       for (const [first, last] of [[10, 60], [11, 60], [40, 41], [0, 239]]) {
         for (const method of ['percent-change', 'power-ratio'] as const) {
           const got = new Float64Array(freqs.length * L);

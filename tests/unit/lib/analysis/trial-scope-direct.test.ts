@@ -10,6 +10,7 @@ import type { BaselineMethod } from '../../../../src/lib/analysis/baseline';
 import { decomposeChannel } from '../../../../src/lib/analysis/decompose';
 import { gaussianSigmas, getWaveletBank } from '../../../../src/lib/analysis/wavelet';
 import { seededNormal } from '../../../helpers/seeded-random';
+import { directPower } from '../../../helpers/direct-morlet';
 
 // Scenarios of our own. Short: one channel at 128 Hz, epochs of 1.5 s (193 points), a 9 Hz burst in the second
 // half of every other epoch over background noise. Long: 512 Hz, 0.5 s epochs, wavelets of 5 cycles from 1.5 Hz and
@@ -39,32 +40,6 @@ function epochs(trials: number, seed: number, setup: Setup = short): { x: Float3
   return { x, starts };
 }
 
-/**
- * |y|² of one demeaned epoch, y(t) = Σ_i x(i)·w(t − i) with the contract's wavelet w(t) = c·exp(2πi·f·t/fs)·
- * exp(−t²/(2σ²fs²)), c = 2/Σ_t exp(−t²/(2σ²fs²)), over |t| ≤ h (the bank's support, 8σ).
- */
-function directPower(x: Float32Array, start: number, f: number, sigma: number, h: number, setup: Setup = short): Float64Array {
-  const { L, fs } = setup;
-  let mean = 0;
-  for (let j = 0; j < L; j++) mean += x[start + j];
-  mean /= L;
-  const g = Array.from({ length: 2 * h + 1 }, (_, k) => Math.exp(-((k - h) ** 2) / (2 * (sigma * fs) ** 2)));
-  const c = 2 / g.reduce((a, b) => a + b, 0);
-  const re = g.map((gk, k) => c * gk * Math.cos((2 * Math.PI * f * (k - h)) / fs));
-  const im = g.map((gk, k) => c * gk * Math.sin((2 * Math.PI * f * (k - h)) / fs));
-  const p = new Float64Array(L);
-  for (let t = 0; t < L; t++) {
-    let yr = 0;
-    let yi = 0;
-    for (let i = Math.max(0, t - h); i <= Math.min(L - 1, t + h); i++) {
-      const v = x[start + i] - mean;
-      yr += v * re[t - i + h];
-      yi += v * im[t - i + h];
-    }
-    p[t] = yr * yr + yi * yi;
-  }
-  return p;
-}
 
 /** The contract's scope `trial`, term by term: mean over trials of the method applied to P_k(t) and B_k. */
 function byDefinition(x: Float32Array, starts: Int32Array, method: BaselineMethod, setup: Setup = short): Float64Array {
@@ -73,7 +48,7 @@ function byDefinition(x: Float32Array, starts: Int32Array, method: BaselineMetho
   const out = new Float64Array(freqs.length * L);
   for (let k = 0; k < starts.length; k++) {
     for (let f = 0; f < freqs.length; f++) {
-      const p = directPower(x, starts[k], freqs[f], sigmas[f], bank.halfWidths[f], setup);
+      const p = directPower(x, starts[k], freqs[f], sigmas[f], bank.halfWidths[f], setup.L, setup.fs);
       let b = 0;
       for (let j = first; j <= last; j++) b += p[j];
       b /= last - first + 1;
