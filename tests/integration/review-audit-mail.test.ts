@@ -179,8 +179,16 @@ describe('review e-mail', () => {
 describe('tamper-evident audit', () => {
   it('chains every event of a team to the one before, even when many are written at once', async () => {
     const id = await sessionWithVersion('TM-A01');
+    // A request that restarts the reviewer's idle clock first, so the posts below are checked in their own statement.
+    expect((await c.reviewer.request(`/api/analysis-sessions/${id}/notes`)).status).toBe(200);
     const posts = await Promise.all(Array.from({ length: 12 }, (_, i) => c.reviewer.request(`/api/analysis-sessions/${id}/notes`, { method: 'POST', json: { body: `concurrent ${i}` } })));
     expect(posts.map((p) => p.status)).toEqual(Array(12).fill(201));
+    expect(posts.map((p) => p.headers.get('x-tidemark-sign-in-check'))).toEqual(Array(12).fill('statement'));
+    // The event's hashed text takes values PostgreSQL writes with to_json (db/queries/audit.ts): the same JSON text as
+    // JSON.stringify (RFC 8785 §3.2.2.2 takes ECMAScript's string escaping), for quotes, backslashes and control characters.
+    const tricky = ['TM-"A\\1', 'tab\there', '\u0001\u001f\u007f', 'é ü € 𝄞', '</script>', '\u2028\u2029'];
+    const { rows: escaped } = await pool.query('SELECT to_json(t)::text AS j FROM unnest($1::text[]) WITH ORDINALITY u(t, i) ORDER BY i', [tricky]);
+    expect(escaped.map((r) => r.j)).toEqual(tricky.map((t) => JSON.stringify(t)));
     // These posts were checked and stored in one message each (createNoteAsSignedIn): the event's actor, team, study
     // and subject code were read by PostgreSQL in that message, and are the poster's and the session's.
     const noteIds = await Promise.all(posts.map(async (p) => (await p.json()).note.id as string));

@@ -35,7 +35,8 @@ async function append(tx: Tx, input: AuditInput): Promise<void> {
   await tx.execute(sql.raw(insert));
 }
 
-const literal = (value: string | null): string => (value === null ? 'NULL' : pg.escapeLiteral(value));
+/** An SQL literal of a text value (pg's `escapeLiteral`), or NULL. */
+export const literal = (value: string | null): string => (value === null ? 'NULL' : pg.escapeLiteral(value));
 
 /**
  * A value PostgreSQL supplies when the event is stored: an SQL expression over `AppendOptions.from` (a team id, or a
@@ -109,12 +110,15 @@ export function appendStatements(input: AuditInput, { onlyIf, from, value = lite
   const sqlDetail = Object.entries(fromSql).filter(([k]) => k.startsWith('detail.'));
   const storedDetail = `${value(JSON.stringify(detail))}::jsonb${sqlDetail.length ? ` || jsonb_build_object(${sqlDetail.map(([k, e]) => `${literal(k.slice('detail.'.length))}::text, (${e})::text`).join(', ')})` : ''}`;
   const lockKey = teamSql !== null ? `'tidemark:audit:' || (${teamSql})::text` : literal(`tidemark:audit:${teamId ?? 'site'}`);
+  // A value PostgreSQL supplies must be there: a NULL team would take no lock and start a chain of its own.
+  const present = Object.values(fromSql).map((e) => `(${e}) IS NOT NULL`);
+  const where = [...(onlyIf ? [onlyIf] : []), ...present];
   return {
-    lock: `SELECT pg_advisory_xact_lock(hashtextextended(${lockKey}, 0))${from ? ` FROM ${from}` : ''}`,
+    lock: `SELECT pg_advisory_xact_lock(hashtextextended(${lockKey}, 0))${from ? ` FROM ${from}${present.length ? ` WHERE ${present.join(' AND ')}` : ''}` : ''}`,
     insert: `INSERT INTO audit_events (id, team_id, actor_id, action, target_table, target_id, detail, at, prev_hash, hash)
      SELECT n.id, ${team}, ${actorSql !== null ? `(${actorSql})::text` : `${value(actorId)}::text`}, ${value(input.action)}::text, ${value(input.targetTable)}::text, ${value(input.targetId)}::text, ${storedDetail}, n.at, n.prev,
        encode(sha256(convert_to(${hashed}, 'UTF8')), 'hex')
-     FROM ${from ? `${from} CROSS JOIN LATERAL ` : ''}(SELECT nextval(pg_get_serial_sequence('audit_events', 'id')) AS id, date_trunc('milliseconds', now()) AS at, coalesce(${last}, ${literal(CHAIN_GENESIS)}) AS prev${onlyIf ? ` WHERE ${onlyIf}` : ''}) n`,
+     FROM ${from ? `${from} CROSS JOIN LATERAL ` : ''}(SELECT nextval(pg_get_serial_sequence('audit_events', 'id')) AS id, date_trunc('milliseconds', now()) AS at, coalesce(${last}, ${literal(CHAIN_GENESIS)}) AS prev${where.length ? ` WHERE ${where.join(' AND ')}` : ''}) n`,
   };
 }
 

@@ -30,7 +30,7 @@ import {
 import type { Role } from '../../lib/permissions';
 import type { MailKind, NoteAnchorT } from '../../lib/schemas/review';
 import { jsonHash, signedContentHash } from '../../lib/crypto/review-hash';
-import { appendStatements, recordAudit, recordAuditAndCommit, SqlValue } from './audit';
+import { appendStatements, literal, recordAudit, recordAuditAndCommit, SqlValue } from './audit';
 import { digestNewSummaries } from './cohort';
 import { isUuid } from './teams';
 import { columnsOf, plainSignIn, readerSql, rowOf, splitSignIn, type PlainSignInRow, type Reader } from './readers';
@@ -50,7 +50,7 @@ export interface SessionWithRole {
   role: Role;
 }
 
-// The reads every session route makes, prepared once (drizzle `.prepare`: a named statement per connection, so
+// A session's versions and signatures, prepared once (drizzle `.prepare`: a named statement per connection, so
 // neither the SQL text nor PostgreSQL's plan is made again per request).
 const versionsOfSession = db
   .select({ number: recipeVersions.number, recipeHash: recipeVersions.recipeHash, createdAt: recipeVersions.createdAt, createdBy: recipeVersions.createdBy, summaryHash: summaries.summaryHash })
@@ -364,7 +364,7 @@ export async function createNote(ctx: SessionWithRole, authorId: string, input: 
   return { ok: true, note: earlier, replayed: true };
 }
 
-const lit = (value: string | null): string => (value === null ? 'NULL' : pg.escapeLiteral(value));
+const lit = literal;
 
 /** The notes row as drizzle's `Note` names its fields (node-postgres parses times, jsonb and text[] the same way). */
 const NOTE_FIELDS = `id, analysis_session_id AS "analysisSessionId", parent_id AS "parentId", recipe_version_id AS "recipeVersionId", anchor,

@@ -18,8 +18,9 @@ import type { PlainSignInRow, Reader } from '../../db/queries/readers';
 const STATUS_PATH = '/api/session';
 
 /** `METHOD routePattern` of the routes that check the sign-in inside their own statement. */
-// Each of these routes checks the sign-in before anything else it does, through `readAsSignedIn` (the note post
-// through loadSession in review-api.ts).
+// Each of these routes checks the sign-in before it answers or changes anything: through `readAsSignedIn`, or (the
+// note post) in the statement that stores the note and then through loadSession in review-api.ts. Reading the
+// request's body first is fine; refusing it must wait for the check.
 // Astro gives `routePattern` in lower case ("[sessionid]"), so the keys are compared in lower case.
 const SELF_CHECKING_ROUTES = new Set(['GET /api/analysis-sessions/[sessionId]', 'GET /api/studies/[studyId]/cohort', 'POST /api/analysis-sessions/[sessionId]/notes'].map((k) => k.toLowerCase()));
 

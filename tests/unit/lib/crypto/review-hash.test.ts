@@ -75,13 +75,14 @@ describe('audit hash chain', () => {
   });
 });
 
-describe('the hashed text cut around time, id and previous hash (what PostgreSQL completes under the chain lock)', () => {
+describe('the hashed text cut at the values PostgreSQL fills in (time, id, previous hash, team and detail members)', () => {
   const text = fc.string({ unit: 'binary', maxLength: 12 });
-  // Details as routes make them, and hostile ones: placeholder look-alikes, nested `at`/`id`/`prevHash` members.
+  // Details as routes make them, and hostile ones: markers of another cut (another nonce), nested `at`/`id`/`prevHash`.
+  const other = holedText().mark;
   const detail = fc.oneof(
     fc.jsonValue(),
-    fc.record({ at: fc.constant('\u0000at\u0000'), id: fc.constant('\u0000id\u0000'), prevHash: fc.constant('\u0000prev\u0000'), x: text }),
-    fc.record({ detail: fc.record({ id: fc.constant('\u0000id\u0000'), prevHash: fc.constant('\u0000prev\u0000') }) }),
+    fc.record({ at: fc.constant(other('at')), id: fc.constant(other('id')), prevHash: fc.constant(other('prevHash')), x: text }),
+    fc.record({ detail: fc.record({ id: fc.constant(other('id')), prevHash: fc.constant(other('prevHash')) }) }),
   );
   it('cut at its holes and joined with the values\' JSON text, is exactly the RFC 8785 text eventHash hashes (fast-check, 500 cases)', () => {
     fc.assert(
