@@ -89,4 +89,17 @@ export class BudgetCache<V> {
     this.entries.clear();
     this.total = 0;
   }
+
+  /** Moves every entry whose key `rename` changes to its new key (recency kept); `rename` returns null to keep one. */
+  rekey(rename: (key: string) => string | null): void {
+    const moved = new Map<string, { value: V; bytes: number }>();
+    for (const [key, entry] of this.entries) {
+      const next = rename(key);
+      moved.set(next ?? key, entry);
+    }
+    this.entries.clear();
+    for (const [key, entry] of moved) this.entries.set(key, entry);
+    this.total = 0;
+    for (const entry of this.entries.values()) this.total += entry.bytes;
+  }
 }

@@ -14,6 +14,7 @@ import { edgeMask, edgeZones, type EdgeZones } from '../../plot/edge-zone';
 import { decompositionKey } from './recipe';
 import { useWorkspace } from './store';
 import { fitBudget, sizeOfDecomposition } from './cache-budget';
+import { renameFits } from './spectra';
 
 /** One channel's Welch spectrum, µV²/Hz. */
 export interface RecipeSpectrum {
@@ -145,6 +146,7 @@ export function adoptFingerprint(recording: Recording, fingerprint: string): voi
       }
     }
     if (renamed.size === 0) return {};
+    renameFits(renamed);
     // The same recording run earlier under its fingerprint (then reopened) may already be there: one entry each.
     const order = [...new Set(s.order.map((k) => renamed.get(k) ?? k))];
     return { cache, order, activeKey: s.activeKey === null ? null : (renamed.get(s.activeKey) ?? s.activeKey) };

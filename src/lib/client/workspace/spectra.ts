@@ -54,6 +54,21 @@ function remember(key: string, make: () => Promise<AperiodicOutcome[]>): Promise
   return p;
 }
 
+/**
+ * Decompositions renamed (a large file's fingerprint arrived after its runs, results.ts `adoptFingerprint`): their
+ * fits are kept under the new keys, so the Spectrum screen does not refit them.
+ */
+export function renameFits(renamed: ReadonlyMap<string, string>): void {
+  if (renamed.size === 0) return;
+  fitCache.rekey((key) => {
+    // A fit's key is `${decomposition key}|low|high|model` (below); the decomposition key has bars of its own.
+    const parts = key.split('|');
+    const own = parts.slice(0, -3).join('|');
+    const next = renamed.get(own);
+    return next === undefined ? null : [next, ...parts.slice(-3)].join('|');
+  });
+}
+
 /** A refit request overtaken by a newer fit range before it started. */
 export class FitOvertaken extends Error {
   constructor() {

@@ -11,6 +11,8 @@ import { DecomposePool } from '../../../../../src/lib/client/decompose-pool';
 import { WorkspaceHistory } from '../../../../../src/lib/client/workspace/controller';
 import { adoptFingerprint, conditionedSamples, clearResults, configureResults, recordingIdOf, runDecomposition, useResultsStore } from '../../../../../src/lib/client/workspace/results';
 import { memoryShelf } from '../../../../../src/lib/client/workspace/saved-workspaces';
+import { configureSpectra, spectrumWork } from '../../../../../src/lib/client/workspace/spectra';
+import { fitAperiodicEach } from '../../../../../src/lib/analysis/aperiodic';
 import { fingerprintOfOpenRecording, INITIAL_WORKSPACE, recipeOf, useWorkspace } from '../../../../../src/lib/client/workspace/store';
 
 const FP = 'e'.repeat(64);
@@ -156,6 +158,35 @@ describe('runs made before the fingerprint is known', () => {
     expect(await conditionedSamples(again!, after.recording!)).toHaveLength(again!.channels.length);
     expect(plans).toBe(planned);
     expect(useResultsStore.getState().order).toEqual([again!.key]);
+  });
+
+  it('keeps the Spectrum screen\'s fits under the fingerprint too: no refit for the same range', async () => {
+    let refits = 0;
+    configureSpectra(() => ({
+      fitEach: async (spectra, range, model) => {
+        refits++;
+        return fitAperiodicEach(spectra, range, model);
+      },
+    }));
+    try {
+      const count = open(null);
+      const s = useWorkspace.getState();
+      const before = (await runDecomposition(s.recording!, recordingIdOf(s.recording!, null), recipeOf(s), null))!;
+      const fitted = await spectrumWork.fits(before, spectrumWork.recipeSpectra(before), [2, 30], 'power-law');
+      expect(refits).toBe(1);
+      adoptFingerprint(useWorkspace.getState().recording!, FP);
+      useWorkspace.getState().fingerprintKnown(count, FP);
+      const after = useWorkspace.getState();
+      const again = (await runDecomposition(after.recording!, recordingIdOf(after.recording!, after.fingerprint), recipeOf(after), null))!;
+      expect(again.key).not.toBe(before.key);
+      expect(await spectrumWork.fits(again, spectrumWork.recipeSpectra(again), [2, 30], 'power-law')).toEqual(fitted);
+      expect(refits).toBe(1);
+      // Another range is new work.
+      await spectrumWork.fits(again, spectrumWork.recipeSpectra(again), [3, 30], 'power-law');
+      expect(refits).toBe(2);
+    } finally {
+      configureSpectra(null);
+    }
   });
 
   it('refuses to plan a kept result again on another recording', async () => {
