@@ -12,24 +12,29 @@ export function countingPoolWorkers() {
   const factory = (): PoolWorker => {
     state.created++;
     const stall = state.stall;
-    const { port1, port2 } = new MessageChannel();
-    Comlink.expose(
+    return channelWorker(
       {
         run: (job: ChannelJob, onProgress?: (f: number) => void) => {
           state.jobs.push({ channel: job.channel, epochSpectra: job.epochSpectra === true });
           return stall ? new Promise(() => undefined) : decomposeApi.run(job, onProgress);
         },
       },
-      port2 as unknown as Comlink.Endpoint,
+      state,
     );
-    return {
-      endpoint: port1 as unknown as Comlink.Endpoint,
-      terminate: () => {
-        state.terminated++;
-        port1.close();
-        port2.close();
-      },
-    };
   };
   return { state, factory };
+}
+
+/** `api` exposed through comlink over a MessageChannel, as a pool worker; `state.terminated` counts terminations. */
+export function channelWorker(api: object, state: { terminated: number }): PoolWorker {
+  const { port1, port2 } = new MessageChannel();
+  Comlink.expose(api, port2 as unknown as Comlink.Endpoint);
+  return {
+    endpoint: port1 as unknown as Comlink.Endpoint,
+    terminate: () => {
+      state.terminated++;
+      port1.close();
+      port2.close();
+    },
+  };
 }

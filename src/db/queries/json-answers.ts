@@ -13,13 +13,13 @@
 import type { Role } from '../../lib/permissions';
 import { pool } from '../client';
 import { isUuid } from './teams';
-import { readerSql, splitSignIn, type PlainSignInRow, type Reader } from './readers';
+import { perReader, readerSql, splitSignIn, type PlainSignInRow, type Reader } from './readers';
 
 /** `Date.prototype.toJSON` in SQL: `2026-12-02T18:27:30.123Z` (ECMA-262 §21.4.4.36, the ISO 8601 subset it uses). */
 export const isoUtc = (column: string): string => `to_char(${column} AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"')`;
 
 // The session page's and the review clients' read of one analysis session (GET /api/analysis-sessions/<id>).
-const sessionManifest = (r: ReturnType<typeof readerSql>) => `
+const sessionManifest = perReader((r) => `
 SELECT m.role${r.columns},
   json_build_object(
     'analysisSession', json_build_object(
@@ -47,7 +47,7 @@ FROM analysis_sessions s
 JOIN studies st ON st.id = s.study_id
 ${r.join}
 JOIN memberships m ON m.team_id = st.team_id AND m.user_id = ${r.userId}
-WHERE s.id = $1`;
+WHERE s.id = $1`);
 
 /**
  * One analysis session as the API answers it (subject, owner, status, the current recipe version with its summary's
@@ -68,7 +68,7 @@ export async function sessionManifestJson(sessionId: string, reader: Reader): Pr
 // (cohortOverviewJson in cohort.ts), which happens once per summary. Rows become JSON through json_agg of a row
 // whose columns are the answer's keys (a quarter cheaper in PostgreSQL than json_build_object per session), and
 // `undigested` comes from the same scan.
-const cohortOverview = (r: ReturnType<typeof readerSql>) => `
+const cohortOverview = perReader((r) => `
 SELECT m.role, o.undigested${r.columns},
   json_build_object(
     'sessions', coalesce(o.sessions, '[]'::json),
@@ -108,7 +108,7 @@ CROSS JOIN LATERAL (
              v.recipe, d.outline, coalesce(d.digest, '{}'::jsonb) AS digest) j
    WHERE a.study_id = st.id
 ) o
-WHERE st.id = $1`;
+WHERE st.id = $1`);
 
 /**
  * The Cohort screen's first data as the API answers it, with the reader's role; null when there is no such study

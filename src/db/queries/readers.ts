@@ -44,6 +44,22 @@ export function readerSql(reader: Reader, first: number): { join: string; userId
   return { join: `CROSS JOIN ${plainSignIn(`$${first}`, `$${first + 1}`)}`, userId: 'me.user_id', columns: ', me.*', values: [reader.tokenHash, reader.idleMinutes], key: 'sign_in' };
 }
 
+/** The reader's part of a statement, as `readerSql` gives it. */
+export type ReaderSql = ReturnType<typeof readerSql>;
+
+/**
+ * A statement's text per reader variant, built once: the busiest routes would otherwise write several kB of SQL on
+ * every request only to find it is the prepared statement's text again.
+ */
+export function perReader(build: (r: ReaderSql) => string): (r: ReaderSql) => string {
+  const texts = new Map<string, string>();
+  return (r) => {
+    let text = texts.get(r.key);
+    if (text === undefined) texts.set(r.key, (text = build(r)));
+    return text;
+  };
+}
+
 /** A self-checking statement's row, split into the answer and the sign-in's columns (null when it read for a user). */
 export function splitSignIn<T extends object>(row: (T & Partial<PlainSignInRow>) | undefined): { row: T; signIn: PlainSignInRow | null } | null {
   if (!row) return null;

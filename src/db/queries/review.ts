@@ -30,10 +30,10 @@ import {
 import type { Role } from '../../lib/permissions';
 import type { MailKind, NoteAnchorT } from '../../lib/schemas/review';
 import { jsonHash, signedContentHash } from '../../lib/crypto/review-hash';
-import { appendStatements, literal, recordAudit, recordAuditAndCommit, SqlValue } from './audit';
+import { appendStatements, literal, recordAudit, recordAuditAndCommit, SqlValue, type AuditInput } from './audit';
 import { digestNewSummaries } from './cohort';
 import { isUuid } from './teams';
-import { columnsOf, plainSignIn, readerSql, rowOf, splitSignIn, type PlainSignInRow, type Reader } from './readers';
+import { columnsOf, perReader, plainSignIn, readerSql, rowOf, splitSignIn, type PlainSignInRow, type Reader } from './readers';
 
 type Tx = Parameters<Parameters<typeof db.transaction>[0]>[0];
 
@@ -75,19 +75,13 @@ const signaturesOfSession = db
 
 // The session every session route loads first, with the reader's role: a raw statement, so that it can also check
 // the request's sign-in itself (db/queries/readers.ts; the note post does).
-const statementText = new Map<string, string>();
-function sessionForReaderText(r: ReturnType<typeof readerSql>): string {
-  let text = statementText.get(r.key);
-  if (text === undefined) {
-    text = `SELECT ${columnsOf(analysisSessions, 's', 'session')}, ${columnsOf(studies, 'st', 'study')}, ${columnsOf(teams, 't', 'team')}, m.role${r.columns}
+const sessionForReaderText = perReader(
+  (r) => `SELECT ${columnsOf(analysisSessions, 's', 'session')}, ${columnsOf(studies, 'st', 'study')}, ${columnsOf(teams, 't', 'team')}, m.role${r.columns}
       FROM analysis_sessions s JOIN studies st ON st.id = s.study_id JOIN teams t ON t.id = st.team_id
       ${r.join}
       JOIN memberships m ON m.team_id = st.team_id AND m.user_id = ${r.userId}
-     WHERE s.id = $1`;
-    statementText.set(r.key, text);
-  }
-  return text;
-}
+     WHERE s.id = $1`,
+);
 
 /**
  * The analysis session when the reader belongs to its team, else null (callers answer 404); for a reader given by
@@ -366,6 +360,19 @@ export async function createNote(ctx: SessionWithRole, authorId: string, input: 
 
 const lit = literal;
 
+/** A note's or reply's audit event; in the one-message post PostgreSQL supplies the actor, team, study and code. */
+function noteEvent(
+  noteId: string,
+  actorId: string | SqlValue,
+  place: { teamId: string | SqlValue; sessionId: string; studyId: string | SqlValue; subjectCode: string | SqlValue },
+  input: { parentId: string | null; mentions: string[] },
+): AuditInput {
+  return {
+    actorId, action: input.parentId ? 'note.reply' : 'note.create', targetTable: 'notes', targetId: noteId, teamId: place.teamId,
+    detail: { analysisSessionId: place.sessionId, studyId: place.studyId, subjectCode: place.subjectCode, ...(input.parentId ? { parentId: input.parentId } : {}), mentions: input.mentions },
+  };
+}
+
 /** The notes row as drizzle's `Note` names its fields (node-postgres parses times, jsonb and text[] the same way). */
 const NOTE_FIELDS = `id, analysis_session_id AS "analysisSessionId", parent_id AS "parentId", recipe_version_id AS "recipeVersionId", anchor,
   author_id AS "authorId", body, mentions, revision, client_key AS "clientKey", resolved_at AS "resolvedAt", resolved_by AS "resolvedBy",
@@ -388,8 +395,7 @@ async function createNoteInOneMessage(ctx: SessionWithRole, authorId: string, in
     ON CONFLICT DO NOTHING RETURNING ${NOTE_FIELDS}`;
   const { lock, insert: audit } = appendStatements(
     {
-      actorId: authorId, action: input.parentId ? 'note.reply' : 'note.create', targetTable: 'notes', targetId: id, teamId: ctx.team.id,
-      detail: { analysisSessionId: ctx.session.id, studyId: ctx.study.id, subjectCode: ctx.session.subjectCode, ...(input.parentId ? { parentId: input.parentId } : {}), mentions: input.mentions },
+      ...noteEvent(id, authorId, { teamId: ctx.team.id, sessionId: ctx.session.id, studyId: ctx.study.id, subjectCode: ctx.session.subjectCode }, input),
     },
     { onlyIf: `EXISTS (SELECT 1 FROM notes WHERE id = ${lit(id)}::uuid)` },
   );
@@ -420,8 +426,7 @@ export async function createNoteAsSignedIn(
   const auditValues: (string | null)[] = [id];
   const { lock, insert: audit } = appendStatements(
     {
-      actorId: new SqlValue('c.author_id'), action: 'note.create', targetTable: 'notes', targetId: id, teamId: new SqlValue('c.team_id'),
-      detail: { analysisSessionId: sessionId, studyId: new SqlValue('c.study_id'), subjectCode: new SqlValue('c.subject_code'), mentions: [] },
+      ...noteEvent(id, new SqlValue('c.author_id'), { teamId: new SqlValue('c.team_id'), sessionId, studyId: new SqlValue('c.study_id'), subjectCode: new SqlValue('c.subject_code') }, { parentId: null, mentions: [] }),
     },
     {
       from: NOTE_AUDIT_FROM,
@@ -511,10 +516,7 @@ async function createNoteInTransaction(ctx: SessionWithRole, authorId: string, i
     // The mention mail is queued first: the audit event and the commit are one last message (recordAuditAndCommit),
     // so the team's chain lock is never held across a round trip.
     await then(tx, note);
-    await recordAuditAndCommit(tx, {
-      actorId: authorId, action: input.parentId ? 'note.reply' : 'note.create', targetTable: 'notes', targetId: note.id, teamId: ctx.team.id,
-      detail: { analysisSessionId: ctx.session.id, studyId: ctx.study.id, subjectCode: ctx.session.subjectCode, ...(input.parentId ? { parentId: input.parentId } : {}), mentions: input.mentions },
-    });
+    await recordAuditAndCommit(tx, noteEvent(note.id, authorId, { teamId: ctx.team.id, sessionId: ctx.session.id, studyId: ctx.study.id, subjectCode: ctx.session.subjectCode }, input));
     return note;
   });
 }

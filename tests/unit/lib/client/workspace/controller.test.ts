@@ -2,8 +2,6 @@
 // running the real worker API, so the pool, the plan and the cache are the browser's own code. Checks: one plan
 // per recipe, eviction under the memory budget, cancel, and the history (undo/redo, saved and restored per
 // account and recording).
-import * as Comlink from 'comlink';
-import { MessageChannel } from 'node:worker_threads';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import type { Recording } from '../../../../../src/lib/analysis/recording';
 import { analyzeChannel, planRun, runRecipe } from '../../../../../src/lib/analysis/run-recipe';
@@ -18,7 +16,7 @@ import { planApi, type PlanReply } from '../../../../../workers/plan-api';
 import { memoryShelf } from '../../../../../src/lib/client/workspace/saved-workspaces';
 import { INITIAL_WORKSPACE, recipeOf, useWorkspace } from '../../../../../src/lib/client/workspace/store';
 import { BudgetCache, fitBudget } from '../../../../../src/lib/client/workspace/cache-budget';
-import { countingPoolWorkers } from '../../../../helpers/fake-pool-workers';
+import { channelWorker, countingPoolWorkers } from '../../../../helpers/fake-pool-workers';
 import { knockLocal, knockRecording } from '../../../../helpers/knock-recording';
 
 const makeRecording = () => knockRecording(41);
@@ -129,17 +127,7 @@ function fakePlanWorker() {
         return reply;
       },
     };
-    const { port1, port2 } = new MessageChannel();
-    Comlink.expose(counted, port2 as unknown as Comlink.Endpoint);
-    return {
-      endpoint: port1 as unknown as Comlink.Endpoint,
-      terminate: () => {
-        state.terminated++;
-        port1.close();
-        port2.close();
-      },
-      onFailure: (listener) => void state.failures.push(listener),
-    };
+    return { ...channelWorker(counted, state), onFailure: (listener) => void state.failures.push(listener) };
   };
   return { state, factory };
 }
@@ -246,13 +234,19 @@ describe('the plan is made in the plan worker, once per recipe, and its conditio
     expect(workers.state.created).toBe(0);
   });
 
-  it('cancel while planning ends the run at once and starts no worker; the plan is kept for the same recipe', async () => {
+  /** A run whose plan the plan worker holds back until `release`. */
+  async function heldPlanRun() {
     let release: () => void = () => undefined;
     planWorker.state.gate = new Promise((r) => (release = r));
     const recording = useWorkspace.getState().recording!;
     const recipe = recipeOf(useWorkspace.getState());
     const running = runDecomposition(recording, 'rec', recipe, null);
     await new Promise((r) => setTimeout(r, 30));
+    return { release, recording, recipe, running };
+  }
+
+  it('cancel while planning ends the run at once and starts no worker; the plan is kept for the same recipe', async () => {
+    const { release, recording, recipe, running } = await heldPlanRun();
     expect(planWorker.state.plans).toBe(1);
     expect(useWorkspace.getState().run.status).toBe('running');
     cancelDecomposition();
@@ -268,12 +262,7 @@ describe('the plan is made in the plan worker, once per recipe, and its conditio
   });
 
   it('a plan worker that fails ends the run with its words; the next run plans on a new worker', async () => {
-    let release: () => void = () => undefined;
-    planWorker.state.gate = new Promise((r) => (release = r));
-    const recording = useWorkspace.getState().recording!;
-    const recipe = recipeOf(useWorkspace.getState());
-    const running = runDecomposition(recording, 'rec', recipe, null);
-    await new Promise((r) => setTimeout(r, 30));
+    const { release, recording, recipe, running } = await heldPlanRun();
     planWorker.state.failures[0]('an error escaped');
     expect(await running).toBeNull();
     expect(useWorkspace.getState().run).toMatchObject({ status: 'failed', message: 'the plan worker failed: an error escaped' });
