@@ -135,10 +135,11 @@ async function headerProblems(response: Response, body: string | null): Promise<
   exactly('object-src', ["'none'"]);
   const scripts = d.get('script-src') ?? [];
   if (!scripts.includes("'self'")) problems.push("script-src lacks 'self'");
-  // Only 'self' and hash-sources (CSP Level 3 §2.3.1 "hash-source"): no keywords that reopen inline code or eval,
-  // no hosts, no schemes, no wildcards.
+  // Only 'self', 'wasm-unsafe-eval' (WebAssembly compilation alone, for the spectral kernels) and hash-sources
+  // (CSP Level 3 §2.3.1 "hash-source"): no keywords that reopen inline code or eval, no hosts, no schemes, no wildcards.
+  if (!scripts.includes("'wasm-unsafe-eval'")) problems.push("script-src lacks 'wasm-unsafe-eval' (the analysis could not compile its kernels)");
   for (const source of scripts) {
-    if (source !== "'self'" && !/^'sha(256|384|512)-[A-Za-z0-9+/]+=*'$/.test(source)) problems.push(`script-src allows ${source}`);
+    if (source !== "'self'" && source !== "'wasm-unsafe-eval'" && !/^'sha(256|384|512)-[A-Za-z0-9+/]+=*'$/.test(source)) problems.push(`script-src allows ${source}`);
   }
   // Every inline script the page carries is allowed by its hash (else the browser would block the page's own code).
   if (body !== null && (h.get('content-type') ?? '').includes('text/html')) {

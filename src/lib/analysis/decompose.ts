@@ -1,6 +1,6 @@
 import { baselineStats, normalizeAverage, zScoreAcrossTrials, type BaselineMethod, type BaselineScope, type BaselineSpread } from './baseline';
 import { AnalysisCancelledError } from './errors';
-import type FFT from 'fft.js';
+import type { PowerOfTwoFft } from './fft';
 import { getFft } from './fft';
 import { getWaveletBank } from './wavelet';
 import { log10 } from './portable-math';
@@ -337,7 +337,7 @@ function gatherConjugate(band: Float64Array, spectrum: Float64Array, bins: Int32
 }
 
 // For output residue r, one size-M transform of conj(X)·V_r into out: y[q·R + r] up to a factor of modulus 1.
-function residueTransform(out: Float64Array, band: Float64Array, weights: Float64Array, r: number, m: number, work: Float64Array, fft: FFT): void {
+function residueTransform(out: Float64Array, band: Float64Array, weights: Float64Array, r: number, m: number, work: Float64Array, fft: PowerOfTwoFft): void {
   const base = 2 * r * m;
   for (let q = 0; q < m; q++) {
     const xr = band[2 * q];

@@ -1,10 +1,75 @@
-import FFT from 'fft.js';
 import { AnalysisInputError } from './errors';
+import { allocate, heap, spectralKernels, twiddleTable } from './kernels/runtime';
 import { cos, sin } from './portable-math';
 
-// fft.js builds its twiddle table in the constructor; a wavelet bank or a Welch run asks for the same few sizes
-// thousands of times, so instances are kept per size.
-const fftCache = new Map<number, FFT>();
+/**
+ * A power-of-two DFT on the spectral kernels (kernels/spectral.ts, WebAssembly SIMD). Arrays are interleaved complex
+ * `[re, im, …]` of at least 2·size entries (longer ones are read and written over their first 2·size only); `out`
+ * and `input` may be the same array.
+ */
+export class PowerOfTwoFft {
+  readonly size: number;
+  /** The transform's own buffers in the kernels' memory: 2·size f64 each, and the real input (size f64). */
+  readonly data: number;
+  readonly scratch: number;
+  readonly real: number;
+  readonly table: number;
+
+  constructor(size: number) {
+    this.size = size;
+    this.data = allocate(16 * size);
+    this.scratch = allocate(16 * size);
+    this.real = allocate(8 * size);
+    this.table = twiddleTable(size);
+  }
+
+  /** out[k] = Σ_j input[j]·exp(−2πi·jk/size). */
+  transform(out: Float64Array, input: Float64Array): void {
+    const n2 = 2 * this.size;
+    const h = heap();
+    const at = this.data / 8;
+    h.set(n2 === input.length ? input : input.subarray(0, n2), at);
+    spectralKernels().fft(this.size, this.data, this.scratch, this.table);
+    out.set(heap().subarray(at, at + n2));
+  }
+
+  /** The transform in place in the kernels' memory at `this.data` (for kernels that keep their data there). */
+  transformInPlace(): void {
+    spectralKernels().fft(this.size, this.data, this.scratch, this.table);
+  }
+
+  /** out[k] = (1/size)·Σ_j input[j]·exp(+2πi·jk/size). */
+  inverseTransform(out: Float64Array, input: Float64Array): void {
+    const n = this.size;
+    const h = heap();
+    const at = this.data / 8;
+    for (let i = 0; i < n; i++) {
+      h[at + 2 * i] = input[2 * i];
+      h[at + 2 * i + 1] = -input[2 * i + 1];
+    }
+    spectralKernels().fft(n, this.data, this.scratch, this.table);
+    const r = heap();
+    for (let i = 0; i < n; i++) {
+      out[2 * i] = r[at + 2 * i] / n;
+      out[2 * i + 1] = -r[at + 2 * i + 1] / n;
+    }
+  }
+
+  /** The whole spectrum of `size` real samples, all `size` bins (nothing is left for `completeSpectrum`). */
+  realTransform(out: Float64Array, input: Float64Array | Float32Array): void {
+    const n = this.size;
+    const h = heap();
+    h.set(n === input.length ? input : input.subarray(0, n), this.real / 8);
+    spectralKernels().realFft(n, this.real, this.data, this.scratch, this.table);
+    const at = this.data / 8;
+    out.set(heap().subarray(at, at + 2 * n));
+  }
+
+  /** Kept for callers written against half-spectrum real transforms: `realTransform` already fills every bin. */
+  completeSpectrum(_spectrum: Float64Array): void {}
+}
+
+const fftCache = new Map<number, PowerOfTwoFft>();
 
 export function isPowerOfTwo(n: number): boolean {
   return Number.isInteger(n) && n >= 2 && (n & (n - 1)) === 0;
@@ -17,20 +82,12 @@ export function nextPowerOfTwo(n: number): number {
   return p;
 }
 
-/** The shared fft.js instance for a power-of-two size. */
-export function getFft(size: number): FFT {
+/** The shared transform for a power-of-two size (its buffers and twiddle table are built once per thread). */
+export function getFft(size: number): PowerOfTwoFft {
   let f = fftCache.get(size);
   if (f === undefined) {
     if (!isPowerOfTwo(size)) throw new AnalysisInputError('fft.size', `must be a power of two ≥ 2 (got ${size})`);
-    f = new FFT(size);
-    // fft.js fills its twiddle table with Math.cos/Math.sin, whose last bit differs between engines; refill it with
-    // the same formula in portable math so a transform gives the same bits in the browser and in Node.
-    const table = (f as unknown as { table: number[] }).table;
-    for (let i = 0; i < table.length; i += 2) {
-      const angle = (Math.PI * i) / size;
-      table[i] = cos(angle);
-      table[i + 1] = -sin(angle);
-    }
+    f = new PowerOfTwoFft(size);
     fftCache.set(size, f);
   }
   return f;
@@ -46,7 +103,7 @@ export interface RealDft {
 const dftCache = new Map<number, RealDft>();
 
 /**
- * A real-input DFT of any length ≥ 1. Powers of two go straight to fft.js `realTransform`; other lengths use
+ * A real-input DFT of any length ≥ 1. Powers of two go straight to `PowerOfTwoFft.realTransform`; other lengths use
  * Bluestein's chirp-z algorithm (Bluestein, 1970, IEEE Trans. Audio Electroacoust. 18:451–455), which rewrites
  * the DFT as a circular convolution evaluated with power-of-two FFTs, so Welch bins stay at exactly `k·fs/n`.
  */

@@ -1,5 +1,5 @@
-import type FFT from 'fft.js';
 import { getFft } from './fft';
+import { allocate, heap, namedBlock, spectralKernels, twiddleTable } from './kernels/runtime';
 import { cos, sin } from './portable-math';
 
 // Scope `trial` from each trial's coarse samples (decompose.ts; analysis contract, "Baseline normalization").
@@ -73,21 +73,29 @@ export function addRatio(ratio: Float64Array, u: Float64Array, baselineMean: num
   for (let q = 0; q < ratio.length; q++) ratio[q] += (u[2 * q] * u[2 * q] + u[2 * q + 1] * u[2 * q + 1]) / baselineMean;
 }
 
-/** exp(−2πi·q·r/N)/S for r < N/S, q < S, interleaved as `[r][q]` (1/S is a power of two, so exact). */
-function residueTwiddles(n: number, s: number): Float64Array {
+const residueTables = new Map<string, number>();
+
+/**
+ * exp(−2πi·q·r/N)/S for r < N/S, q < S, interleaved as `[r][q]` (1/S is a power of two, so exact), in the spectral
+ * kernels' memory (a pointer): one table per (N, S), built once per thread (a run meets a handful of pairs).
+ */
+function residueTwiddles(n: number, s: number): number {
   const key = `${n}|${s}`;
-  const cached = twiddleCache.get(key);
+  const cached = residueTables.get(key);
   if (cached !== undefined) return cached;
   const residues = n / s;
-  const t = new Float64Array(2 * n);
+  const table = allocate(16 * n);
+  const t = heap();
+  const at = table / 8;
   for (let r = 0; r < residues; r++) {
     for (let q = 0; q < s; q++) {
       const angle = (-2 * Math.PI * ((q * r) % n)) / n;
-      t[2 * (r * s + q)] = cos(angle) / s;
-      t[2 * (r * s + q) + 1] = sin(angle) / s;
+      t[at + 2 * (r * s + q)] = cos(angle) / s;
+      t[at + 2 * (r * s + q) + 1] = sin(angle) / s;
     }
   }
-  return remember(twiddleCache, key, t);
+  residueTables.set(key, table);
+  return table;
 }
 
 // log2 of a power of two, exactly (Math.log2 may differ between engines, and the choice must not).
@@ -163,21 +171,29 @@ export class TrialGroups {
   private shift = 0;
   /** Pairs already spread into `product` in this group. */
   private pairs = 0;
+  // Buffers in the spectral kernels' memory (pointers; see kernels/runtime.ts), complex unless said otherwise:
+  /** The trial being added (its S samples, copied in). */
+  private readonly incoming: number;
   /** The scaled samples of the pair being formed (or of its first trial), S points. */
-  private readonly pair: Float64Array;
-  /** Π_k (scaled u_k) on the fine grid of h·S points, interleaved complex: conj of the group's Π ỹ_k. */
-  private readonly product: Float64Array;
-  private readonly spectrum: Float64Array;
-  private readonly work: Float64Array;
-  private readonly out: Float64Array;
+  private readonly pair: number;
+  /** Π_k (scaled u_k) on the fine grid of h·S points: conj of the group's Π ỹ_k. */
+  private readonly product: number;
+  private readonly spectrum: number;
+  private readonly work: number;
+  private readonly scratch: number;
+  /** The row, f64. */
+  private readonly rowBuffer: number;
 
   /** `maxFine`: the largest h·S any frequency may use (≤ the largest N). */
   constructor(maxFine: number) {
-    this.pair = new Float64Array(maxFine);
-    this.product = new Float64Array(2 * maxFine);
-    this.spectrum = new Float64Array(2 * maxFine);
-    this.work = new Float64Array(2 * maxFine);
-    this.out = new Float64Array(2 * maxFine);
+    // One set per thread, reused by every decomposition (decomposeChannel runs one at a time).
+    this.incoming = namedBlock('trial-groups.incoming', 16 * maxFine);
+    this.pair = namedBlock('trial-groups.pair', 16 * maxFine);
+    this.product = namedBlock('trial-groups.product', 16 * maxFine);
+    this.spectrum = namedBlock('trial-groups.spectrum', 16 * maxFine);
+    this.work = namedBlock('trial-groups.work', 16 * maxFine);
+    this.scratch = namedBlock('trial-groups.scratch', 16 * maxFine);
+    this.rowBuffer = namedBlock('trial-groups.row', 8 * maxFine);
   }
 
   /** Start a frequency: period `n`, coarse grid `s` = 2M, groups of 2h trials (h·s ≤ n); an unfinished group is dropped. */
@@ -219,21 +235,15 @@ export class TrialGroups {
     const e = level > 0 ? exponentOf(level) >> 1 : 0;
     const scale = twoToThe(-e);
     this.shift += 2 * e;
+    heap().set(u.length === 2 * s ? u : u.subarray(0, 2 * s), this.incoming / 8);
+    const k = spectralKernels();
     if (h === 1) {
-      this.multiplyInto(u, 0, scale, this.count === 0);
+      if (this.count === 0) k.scaleInto(this.product, this.incoming, s, scale);
+      else k.multiplyScaled(this.product, this.incoming, s, scale);
     } else if ((this.count & 1) === 0) {
-      const pair = this.pair;
-      for (let i = 0; i < 2 * s; i++) pair[i] = scale * u[i];
+      k.scaleInto(this.pair, this.incoming, s, scale);
     } else {
-      const pair = this.pair;
-      for (let q = 0; q < s; q++) {
-        const ar = pair[2 * q];
-        const ai = pair[2 * q + 1];
-        const br = scale * u[2 * q];
-        const bi = scale * u[2 * q + 1];
-        pair[2 * q] = ar * br - ai * bi;
-        pair[2 * q + 1] = ar * bi + ai * br;
-      }
+      k.multiplyScaled(this.pair, this.incoming, s, scale);
       this.spreadPair();
     }
     this.count++;
@@ -245,41 +255,23 @@ export class TrialGroups {
    * grid instead of every point). A lone trial (a group's last, odd one) is spread the same way.
    */
   private spreadPair(): void {
-    const { s, h, n, fine, pair, work, spectrum, out } = this;
+    const { s, h, n, fine, pair, work, spectrum, scratch, product } = this;
+    const k = spectralKernels();
     const first = this.pairs === 0;
-    this.multiplyInto(pair, 0, 1, first);
-    conjugateInto(work, pair, s);
-    const fft: FFT = getFft(s);
-    fft.transform(spectrum, work);
-    const twiddles = residueTwiddles(n, s);
-    const step = n / fine;
-    for (let rho = 1; rho < h; rho++) {
-      const base = 2 * rho * step * s;
-      conjTimesTwiddles(work, spectrum, twiddles, base, s);
-      fft.transform(out, work);
-      this.multiplyInto(out, rho, 1, first);
+    k.multiplyStrided(product, 0, h, pair, s, first);
+    if (h > 1) {
+      const table = twiddleTable(s);
+      k.conjugateInto(spectrum, pair, s);
+      k.fft(s, spectrum, scratch, table);
+      const twiddles = residueTwiddles(n, s);
+      const step = n / fine;
+      for (let rho = 1; rho < h; rho++) {
+        k.conjugateTimes(work, spectrum, twiddles + 16 * rho * step * s, s);
+        k.fft(s, work, scratch, table);
+        k.multiplyStrided(product, rho, h, work, s, first);
+      }
     }
     this.pairs++;
-  }
-
-  // product[s·h + ρ] (×)= scale·samples[s] for s < S.
-  private multiplyInto(samples: Float64Array, rho: number, scale: number, first: boolean): void {
-    const { s, h, product } = this;
-    if (first) {
-      for (let q = 0, i = 2 * rho; q < s; q++, i += 2 * h) {
-        product[i] = scale * samples[2 * q];
-        product[i + 1] = scale * samples[2 * q + 1];
-      }
-    } else {
-      for (let q = 0, i = 2 * rho; q < s; q++, i += 2 * h) {
-        const ar = product[i];
-        const ai = product[i + 1];
-        const br = scale * samples[2 * q];
-        const bi = scale * samples[2 * q + 1];
-        product[i] = ar * br - ai * bi;
-        product[i + 1] = ar * bi + ai * br;
-      }
-    }
   }
 
   /**
@@ -290,52 +282,29 @@ export class TrialGroups {
    */
   row(row: Float64Array, length: number): number {
     if (this.h > 1 && (this.count & 1) === 1) this.spreadPair();
-    const { n, fine, product } = this;
+    const { n, fine, product, rowBuffer } = this;
     const shift = this.shift;
     this.count = 0;
     this.shift = 0;
     this.pairs = 0;
+    const k = spectralKernels();
     if (fine === n) {
-      for (let j = 0; j < length; j++) row[j] = product[2 * j] * product[2 * j] + product[2 * j + 1] * product[2 * j + 1];
-      return shift;
-    }
-    const { work, spectrum, out } = this;
-    conjugateInto(work, product, fine);
-    const fft: FFT = getFft(fine);
-    fft.transform(spectrum, work);
-    const twiddles = residueTwiddles(n, fine);
-    const residues = n / fine;
-    for (let r = 0; r < residues; r++) {
-      const base = 2 * r * fine;
-      conjTimesTwiddles(work, spectrum, twiddles, base, fine);
-      fft.transform(out, work);
-      const count = Math.min(fine, Math.ceil((length - r) / residues));
-      for (let q = 0, j = r; q < count; q++, j += residues) {
-        const re = out[2 * q];
-        const im = out[2 * q + 1];
-        row[j] = re * re + im * im;
+      k.powerStrided(rowBuffer, 0, 1, product, length);
+    } else {
+      const { work, spectrum, scratch } = this;
+      const table = twiddleTable(fine);
+      k.conjugateInto(spectrum, product, fine);
+      k.fft(fine, spectrum, scratch, table);
+      const twiddles = residueTwiddles(n, fine);
+      const residues = n / fine;
+      for (let r = 0; r < residues; r++) {
+        k.conjugateTimes(work, spectrum, twiddles + 16 * r * fine, fine);
+        k.fft(fine, work, scratch, table);
+        k.powerStrided(rowBuffer, r, residues, work, Math.min(fine, Math.ceil((length - r) / residues)));
       }
     }
+    const at = rowBuffer / 8;
+    row.set(heap().subarray(at, at + length));
     return shift;
-  }
-}
-
-/** work[q] = conj(v[q]) for q < size (interleaved complex). */
-function conjugateInto(work: Float64Array, v: Float64Array, size: number): void {
-  for (let q = 0; q < size; q++) {
-    work[2 * q] = v[2 * q];
-    work[2 * q + 1] = -v[2 * q + 1];
-  }
-}
-
-/** work[q] = conj(spectrum[q])·twiddles[base/2 + q] for q < size (interleaved complex): one residue's input. */
-function conjTimesTwiddles(work: Float64Array, spectrum: Float64Array, twiddles: Float64Array, base: number, size: number): void {
-  for (let q = 0; q < size; q++) {
-    const gr = spectrum[2 * q];
-    const gi = -spectrum[2 * q + 1];
-    const tr = twiddles[base + 2 * q];
-    const ti = twiddles[base + 2 * q + 1];
-    work[2 * q] = gr * tr - gi * ti;
-    work[2 * q + 1] = gr * ti + gi * tr;
   }
 }

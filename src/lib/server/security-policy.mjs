@@ -26,7 +26,9 @@ export const FIXED_SECURITY_HEADERS = Object.freeze({
 export function contentSecurityPolicy(scriptHashes = []) {
   return [
     `default-src 'self'`,
-    `script-src 'self'${scriptHashes.map((h) => ` '${h}'`).join('')}`,
+    // 'wasm-unsafe-eval' (CSP Level 3, WebAssembly integration) lets the analysis compile its spectral kernels
+    // (kernels/spectral.ts, shipped inside our own scripts); it does not allow eval, new Function or inline code.
+    `script-src 'self' 'wasm-unsafe-eval'${scriptHashes.map((h) => ` '${h}'`).join('')}`,
     // React sets style attributes on the plots; styles cannot send data anywhere that connect-src/img-src allow.
     `style-src 'self' 'unsafe-inline'`,
     `img-src 'self' data: blob:`,
