@@ -175,3 +175,22 @@ export function powerStrided(row: usize, r: i32, step: i32, src: usize, count: i
     j += jump;
   }
 }
+
+/**
+ * x = (scale·src[q])·phase[q]; dst[q] = x (first) or dst[q]·x, for q < count (complex; `phase` plain interleaved
+ * pairs): one trial's samples, scaled and moved down in frequency, into a block's running product.
+ */
+export function multiplyPhased(dst: usize, src: usize, phase: usize, count: i32, scale: f64, first: bool): void {
+  const k = f64x2.splat(scale);
+  if (first) {
+    for (let q = 0; q < count; q++) {
+      const o = <usize>q << 4;
+      v128.store(dst + o, cmul(f64x2.mul(k, v128.load(src + o)), v128.load(phase + o)));
+    }
+  } else {
+    for (let q = 0; q < count; q++) {
+      const o = <usize>q << 4;
+      v128.store(dst + o, cmul(v128.load(dst + o), cmul(f64x2.mul(k, v128.load(src + o)), v128.load(phase + o))));
+    }
+  }
+}

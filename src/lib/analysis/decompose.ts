@@ -7,8 +7,8 @@ import { log10 } from './portable-math';
 import { addRatio, baselineWeights, coarseBaseline, TrialGroups } from './trial-products';
 
 // Epochs are transformed in blocks and then swept frequency by frequency, so one frequency's weights stay in
-// cache across the block; the per-(frequency, time) sums still run in epoch order. A multiple of 8, so trial
-// scope's groups of 2, 4 or 8 trials (epochs 0 … g−1, g … 2g−1, …) never straddle two blocks.
+// cache across the block; the per-(frequency, time) sums still run in epoch order (trial scope's groups carry over
+// from one block to the next).
 const EPOCH_BLOCK = 16;
 
 /** Everything one channel's time-frequency decomposition needs; plain data, so it can cross to a worker. */
@@ -121,7 +121,11 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
   let maxCoarse = 2;
   for (let f = 0; f < nf; f++) maxCoarse = Math.max(maxCoarse, 2 * bank.averageBandSizes[f]);
   const trialSamples = coarseTrials ? new Float64Array(2 * maxCoarse) : null;
-  const groups = coarseTrials && method === 'decibel' ? new TrialGroups(fftSize) : null;
+  // One per frequency on the trial-average path, kept across epoch blocks (a group may span two).
+  const groups: (TrialGroups | null)[] | null =
+    coarseTrials && method === 'decibel'
+      ? Array.from({ length: nf }, (_, f) => (bank.averageBandSizes[f] > 0 ? new TrialGroups(f, bank.sizes[f], 2 * bank.averageBandSizes[f]) : null))
+      : null;
 
   let totalEpochs = 0;
   for (const starts of epochStarts) totalEpochs += starts.length;
@@ -167,6 +171,9 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
     for (let f = 0; f < nf; f++) decimated.push(averagePath && bank.averageBandSizes[f] > 0 ? new Float64Array(2 * bank.averageBandSizes[f]) : null);
     // Σ_k |u_k|²/B_k on the coarse grid (trial scope, percent change and power ratio).
     const ratios = coarseTrials && logProduct === null ? decimated.map((acc) => (acc === null ? null : new Float64Array(acc.length))) : null;
+    if (groups !== null) {
+      for (let f = 0; f < nf; f++) groups[f]?.begin(bank.sizes[f], 2 * bank.averageBandSizes[f], bank.bandWidths[f], bank.averageOffsets[f]);
+    }
     for (let e0 = 0; e0 < trials; e0 += EPOCH_BLOCK) {
       if (shouldCancel !== undefined && shouldCancel()) throw new AnalysisCancelledError();
       const nb = Math.min(EPOCH_BLOCK, trials - e0);
@@ -207,19 +214,16 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
             // Trial scope: the same power sums, and each trial's samples for its own normalization.
             const a = baselineWeights(bank.sizes[f], acc.length, first, last);
             const ratio = ratios !== null ? ratios[f] : null;
-            if (groups !== null) groups.begin(bank.sizes[f], acc.length);
+            const group = groups !== null ? groups[f] : null;
             for (let b = 0; b < nb; b++) {
               averagePower(acc, spectra[b], bins, weights, work, trialSamples);
               if (coarse !== null && coarseOut !== null) keepCoarse(coarse, (e0 + b) * coarseBlock + coarseOut.offsets[f], trialSamples, acc.length);
               const mean = coarseBaseline(trialSamples, a);
               if (ratio !== null) addRatio(ratio, trialSamples, mean);
-              else if (logProduct !== null && groups !== null) {
+              else if (logProduct !== null && group !== null) {
                 logProduct.addBaseline(f, mean);
-                groups.add(trialSamples, mean);
-                if (groups.full() || b === nb - 1) {
-                  logProduct.addExponent(f, groups.row(row, L));
-                  logProduct.multiplyRow(f * L, row, L);
-                }
+                group.add(trialSamples, mean);
+                if (group.full()) group.rows(row, L, (r, shift) => logProduct.multiplyScaledRow(f, r, L, shift));
               }
             }
           }
@@ -248,6 +252,14 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
       if (onProgress !== undefined && (doneEpochs === totalEpochs || doneEpochs / totalEpochs - reported >= 0.05)) {
         reported = doneEpochs / totalEpochs;
         onProgress(reported);
+      }
+    }
+    // The last group of each frequency, however many trials it holds.
+    if (groups !== null && logProduct !== null) {
+      for (let f = 0; f < nf; f++) {
+        const group = groups[f];
+        if (group === null || group.pending === 0) continue;
+        group.rows(row, L, (r, shift) => logProduct.multiplyScaledRow(f, r, L, shift));
       }
     }
     for (let f = 0; f < nf; f++) {
@@ -515,6 +527,12 @@ class LogProduct {
   /** A row at frequency f was Π P_k·2^−shift: the exponent gets shift back (integers, so exactly). */
   addExponent(f: number, shift: number): void {
     this.shifts[f] += shift;
+  }
+
+  /** Π_k P_k(t) *= row[t]·2^shift at frequency f (a row from TrialGroups.rows). */
+  multiplyScaledRow(f: number, row: Float64Array, length: number, shift: number): void {
+    this.addExponent(f, shift);
+    this.multiplyRow(f * length, row, length);
   }
 
   multiply(off: number, row: Float64Array, length: number, f: number, baselineMean: number): void {

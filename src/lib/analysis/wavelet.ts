@@ -132,6 +132,10 @@ export interface WaveletBank {
   averageBandSizes: Int32Array;
   averageBins: (Int32Array | null)[];
   averageWeights: (Float64Array | null)[];
+  /** Bins at or above the band floor (the band's width before rounding to a power), per frequency. */
+  bandWidths: Int32Array;
+  /** Where those bins start inside the trial-average window of `averageBandSizes[i]` bins (0 off that path). */
+  averageOffsets: Int32Array;
 }
 
 const bankCache = new Map<string, WaveletBank>();
@@ -174,6 +178,8 @@ function buildWaveletBank(frequencies: Float64Array, sigmas: Float64Array, sampl
   }
   const bandSizes = new Int32Array(count);
   const averageBandSizes = new Int32Array(count);
+  const bandWidths = new Int32Array(count);
+  const averageOffsets = new Int32Array(count);
   const averageBins: (Int32Array | null)[] = [];
   const averageWeights: (Float64Array | null)[] = [];
   const bins: Int32Array[] = [];
@@ -216,6 +222,7 @@ function buildWaveletBank(frequencies: Float64Array, sigmas: Float64Array, sampl
       if (d > 0 && d > above) above = d;
     }
     const width = below + above + 1;
+    bandWidths[i] = width;
     const m = Math.min(n, nextPowerOfFour(width));
     const k0 = m === n ? 0 : peakBin - below - Math.floor((m - width) / 2);
     const r = n / m;
@@ -249,6 +256,7 @@ function buildWaveletBank(frequencies: Float64Array, sigmas: Float64Array, sampl
         aWeights[2 * q + 1] = -spectrum[2 * k + 1] / n;
       }
       averageBandSizes[i] = ma;
+      averageOffsets[i] = Math.floor((ma - width) / 2);
       averageBins.push(aBins);
       averageWeights.push(aWeights);
     } else {
@@ -256,7 +264,7 @@ function buildWaveletBank(frequencies: Float64Array, sigmas: Float64Array, sampl
       averageWeights.push(null);
     }
   }
-  return { epochSamples, sampleRateHz, fftSize, sizes, bandSizes, halfWidths, bins, weights, averageBandSizes, averageBins, averageWeights };
+  return { epochSamples, sampleRateHz, fftSize, sizes, bandSizes, halfWidths, bins, weights, averageBandSizes, averageBins, averageWeights, bandWidths, averageOffsets };
 }
 
 // fft.js runs pure radix-4 passes at powers of four and adds a radix-2 pass otherwise; measured on fft.js 4.0.4,

@@ -20,6 +20,7 @@ export interface SpectralKernels {
   conjugateInto(dst: number, src: number, count: number): void;
   conjugateTimes(dst: number, src: number, twiddles: number, count: number): void;
   powerStrided(row: number, r: number, step: number, src: number, count: number): void;
+  multiplyPhased(dst: number, src: number, phase: number, count: number, scale: number, first: boolean): void;
 }
 
 export class KernelsUnavailableError extends Error {
