@@ -194,3 +194,22 @@ export function multiplyPhased(dst: usize, src: usize, phase: usize, count: i32,
     }
   }
 }
+
+/** Σ_q weights[q]·|src[q]|² for q < count (`weights` f64): a trial's baseline mean from its coarse samples. */
+export function weightedPower(src: usize, weights: usize, count: i32): f64 {
+  let even = f64x2.splat(0.0);
+  let odd = f64x2.splat(0.0);
+  let q = 0;
+  for (; q + 1 < count; q += 2) {
+    const a = v128.load(src + (<usize>q << 4));
+    const b = v128.load(src + (<usize>(q + 1) << 4));
+    even = f64x2.add(even, f64x2.mul(f64x2.splat(load<f64>(weights + (<usize>q << 3))), f64x2.mul(a, a)));
+    odd = f64x2.add(odd, f64x2.mul(f64x2.splat(load<f64>(weights + (<usize>(q + 1) << 3))), f64x2.mul(b, b)));
+  }
+  if (q < count) {
+    const a = v128.load(src + (<usize>q << 4));
+    even = f64x2.add(even, f64x2.mul(f64x2.splat(load<f64>(weights + (<usize>q << 3))), f64x2.mul(a, a)));
+  }
+  const sum = f64x2.add(even, odd);
+  return f64x2.extract_lane(sum, 0) + f64x2.extract_lane(sum, 1);
+}

@@ -172,7 +172,13 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
     // Σ_k |u_k|²/B_k on the coarse grid (trial scope, percent change and power ratio).
     const ratios = coarseTrials && logProduct === null ? decimated.map((acc) => (acc === null ? null : new Float64Array(acc.length))) : null;
     if (groups !== null) {
-      for (let f = 0; f < nf; f++) groups[f]?.begin(bank.sizes[f], 2 * bank.averageBandSizes[f], bank.bandWidths[f], bank.averageOffsets[f]);
+      for (let f = 0; f < nf; f++) {
+        const group = groups[f];
+        if (group === null) continue;
+        const s = 2 * bank.averageBandSizes[f];
+        group.begin(bank.sizes[f], s, bank.bandWidths[f], bank.averageOffsets[f]);
+        group.useBaseline(baselineWeights(bank.sizes[f], s, first, last));
+      }
     }
     for (let e0 = 0; e0 < trials; e0 += EPOCH_BLOCK) {
       if (shouldCancel !== undefined && shouldCancel()) throw new AnalysisCancelledError();
@@ -218,11 +224,9 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
             for (let b = 0; b < nb; b++) {
               averagePower(acc, spectra[b], bins, weights, work, trialSamples);
               if (coarse !== null && coarseOut !== null) keepCoarse(coarse, (e0 + b) * coarseBlock + coarseOut.offsets[f], trialSamples, acc.length);
-              const mean = coarseBaseline(trialSamples, a);
-              if (ratio !== null) addRatio(ratio, trialSamples, mean);
+              if (ratio !== null) addRatio(ratio, trialSamples, coarseBaseline(trialSamples, a));
               else if (logProduct !== null && group !== null) {
-                logProduct.addBaseline(f, mean);
-                group.add(trialSamples, mean);
+                logProduct.addBaseline(f, group.add(trialSamples));
                 if (group.full()) group.rows(row, L, (r, shift) => logProduct.multiplyScaledRow(f, r, L, shift));
               }
             }

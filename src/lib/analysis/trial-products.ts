@@ -231,6 +231,9 @@ export class TrialGroups {
   private readonly product: number;
   /** The group's trials' own samples, S points each, kept until the row is checked (see `rows`). */
   private readonly members: number;
+  /** The baseline weights a_s (f64, see `baselineWeights`), when set by `useBaseline`. */
+  private readonly weights: number;
+  private hasWeights = false;
   /** Each member's scale exponent e_k. */
   private readonly exponents = new Int32Array(MAX_GROUP);
   private readonly spectrum: number;
@@ -247,6 +250,7 @@ export class TrialGroups {
     this.block = namedBlock(`trial-groups.block.${slot}`, 16 * maxCoarse);
     this.product = namedBlock(`trial-groups.product.${slot}`, 16 * maxFine);
     this.members = namedBlock(`trial-groups.members.${slot}`, 16 * MAX_GROUP * maxCoarse);
+    this.weights = namedBlock(`trial-groups.weights.${slot}`, 8 * maxCoarse);
     this.spectrum = namedBlock('trial-groups.spectrum', 16 * maxFine);
     this.work = namedBlock('trial-groups.work', 16 * maxFine);
     this.scratch = namedBlock('trial-groups.scratch', 16 * maxFine);
@@ -264,6 +268,7 @@ export class TrialGroups {
     this.plan = plan;
     this.fine = plan.half * s;
     this.phase = phaseTable(s, offset);
+    this.hasWeights = false;
     this.inBlock = 0;
     this.count = 0;
     this.shift = 0;
@@ -284,14 +289,28 @@ export class TrialGroups {
     return this.count;
   }
 
+  /** The baseline weights for this frequency (`baselineWeights` of its N and S), so that `add` finds each B_k. */
+  useBaseline(a: Float64Array): void {
+    heap().set(a.subarray(0, this.s), this.weights / 8);
+    this.hasWeights = true;
+  }
+
   /**
    * One trial: `u` its S coarse samples (conj ỹ at s·N/S, from `averagePower`) and B its baseline mean (see
-   * `coarseBaseline`): scaled by 2^−e (see above), moved down by the band's offset and multiplied into the block;
-   * a full block is spread onto the fine grid (`spreadBlock`).
+   * `coarseBaseline`; found from the weights of `useBaseline` when not given): scaled by 2^−e (see above), moved
+   * down by the band's offset and multiplied into the block; a full block is spread onto the fine grid
+   * (`spreadBlock`). Returns B.
    */
-  add(u: Float64Array, baselineMean: number): void {
+  add(u: Float64Array, baselineMean?: number): number {
     const { s } = this;
-    let level = baselineMean;
+    const member = this.members + 16 * s * this.count;
+    heap().set(u.length === 2 * s ? u : u.subarray(0, 2 * s), member / 8);
+    let mean = baselineMean;
+    if (mean === undefined) {
+      if (!this.hasWeights) throw new Error('TrialGroups.add: no baseline mean and no baseline weights');
+      mean = spectralKernels().weightedPower(member, this.weights, s);
+    }
+    let level = mean;
     if (!(level >= MIN_NORMAL && level <= Number.MAX_VALUE)) {
       level = 0;
       for (let q = 0; q < s; q++) {
@@ -302,12 +321,11 @@ export class TrialGroups {
     const e = level > 0 ? exponentOf(level) >> 1 : 0;
     this.shift += 2 * e;
     this.exponents[this.count] = e;
-    const member = this.members + 16 * s * this.count;
-    heap().set(u.length === 2 * s ? u : u.subarray(0, 2 * s), member / 8);
     spectralKernels().multiplyPhased(this.block, member, this.phase, s, twoToThe(-e), this.inBlock === 0);
     this.inBlock++;
     this.count++;
     if (this.inBlock === this.plan.block) this.spreadBlock();
+    return mean;
   }
 
   /**

@@ -21,6 +21,7 @@ export interface SpectralKernels {
   conjugateTimes(dst: number, src: number, twiddles: number, count: number): void;
   powerStrided(row: number, r: number, step: number, src: number, count: number): void;
   multiplyPhased(dst: number, src: number, phase: number, count: number, scale: number, first: boolean): void;
+  weightedPower(src: number, weights: number, count: number): number;
 }
 
 export class KernelsUnavailableError extends Error {

@@ -52,6 +52,12 @@ describe('spectral kernels', () => {
     k.conjugateTimes(a, b, w, n);
     const conjB = bv.map((v, i) => (i % 2 === 1 ? -v : v));
     for (let q = 0; q < n; q++) expect(Array.from(heap().subarray(a / 8 + 2 * q, a / 8 + 2 * q + 2))).toEqual(mul(conjB, wv, q));
+    // Σ a_q·|b_q|², written out (the kernel sums in another order: equal to rounding)
+    const weights = allocate(8 * n);
+    const av2 = [0.5, -2, 3, 1e-3, 7];
+    heap().set(av2, weights / 8);
+    const sum = av2.reduce((t, x, q) => t + x * (bv[2 * q] ** 2 + bv[2 * q + 1] ** 2), 0);
+    expect(Math.abs(k.weightedPower(b, weights, n) - sum)).toBeLessThan(1e-15 * Math.abs(sum) * 8);
     k.powerStrided(row, 1, 3, b, n);
     for (let q = 0; q < n; q++) expect(heap()[row / 8 + 1 + 3 * q]).toBe(bv[2 * q] ** 2 + bv[2 * q + 1] ** 2);
   });

@@ -4,7 +4,7 @@
 // Math.cos/Math.sin (the definition of the DFT, common practice), its squared magnitude, multiplied over the group.
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { groupPlan, MAX_GROUP, TrialGroups, type GroupPlan } from '../../../../src/lib/analysis/trial-products';
+import { baselineWeights, coarseBaseline, groupPlan, MAX_GROUP, TrialGroups, type GroupPlan } from '../../../../src/lib/analysis/trial-products';
 import { seededNormal } from '../../../helpers/seeded-random';
 
 /** Σ_q band[q]·exp(−2πi·q·t/period), interleaved band, at t = 0 … points−1 (conj ỹ on a grid of `points`). */
@@ -75,7 +75,13 @@ describe('TrialGroups rows against the DFT written out', () => {
             const u = dftAt(band, s, s, 1);
             let meanPower = 0;
             for (let j = 0; j < s; j++) meanPower += (u[2 * j] ** 2 + u[2 * j + 1] ** 2) / s;
-            groups.add(u, k % 2 === 0 ? meanPower : 0);
+            if (k % 3 === 2) {
+              // the baseline mean from the weights given to the group, as decompose.ts does it
+              const a = baselineWeights(n, s, 3, 40);
+              groups.useBaseline(a);
+              const b = groups.add(u);
+              expect(Math.abs(b - coarseBaseline(u, a))).toBeLessThan(1e-12 * Math.abs(coarseBaseline(u, a)));
+            } else groups.add(u, k % 2 === 0 ? meanPower : 0);
           }
           expect(groups.full()).toBe(trials === size);
           expect(groups.pending).toBe(trials);
