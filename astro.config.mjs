@@ -39,6 +39,9 @@ export default defineConfig({
   image: { service: { entrypoint: 'astro/assets/services/noop' } },
   vite: {
     plugins: [tailwindcss()],
+    // `npm run dev` serves scripts and workers through Vite, not server/main.mjs: they need the same isolation headers,
+    // or a worker would not be cross-origin isolated and could not take the page's shared samples.
+    server: { headers: { 'cross-origin-opener-policy': 'same-origin', 'cross-origin-embedder-policy': 'require-corp' } },
     worker: { format: 'es' },
     define: {
       'import.meta.env.TIDEMARK_DEMO': JSON.stringify(demo),

@@ -31,7 +31,8 @@ function buffersOf(out: ChannelAnalysis): ArrayBuffer[] {
     ...(out.singleTrials ?? []),
     ...(out.coarseTrials?.samples ?? []),
   ];
-  return [...new Set(arrays.map((a) => a.buffer as ArrayBuffer))];
+  // Shared memory cannot be transferred (and needs not be).
+  return [...new Set(arrays.map((a) => a.buffer).filter((b): b is ArrayBuffer => b instanceof ArrayBuffer))];
 }
 
 export const decomposeApi = {

@@ -4,10 +4,13 @@ import * as Comlink from 'comlink';
 import { openCsvBlob, openEdfBlob, type CsvRequest, type EdfReading, type IntakeProgress, type IntakeResult } from '../src/lib/formats/intake';
 import { blobSource } from '../src/lib/formats/byte-source';
 import { fingerprintSource } from '../src/lib/formats/fingerprint';
+import { isShared } from '../src/lib/formats/sample-arrays';
 
 function transferred(result: IntakeResult): IntakeResult {
-  // A recording of hundreds of MB must not be copied on its way to the page.
-  return result.ok ? Comlink.transfer(result, result.recording.data.map((d) => d.buffer as ArrayBuffer)) : result;
+  // A recording of hundreds of MB must not be copied on its way to the page: ordinary buffers are transferred;
+  // shared ones (a cross-origin-isolated page, src/lib/formats/sample-arrays.ts) travel as they are.
+  if (!result.ok) return result;
+  return Comlink.transfer(result, result.recording.data.filter((d) => !isShared(d)).map((d) => d.buffer as ArrayBuffer));
 }
 
 const api = {

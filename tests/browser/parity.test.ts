@@ -122,6 +122,16 @@ describe('browser worker pool and command line on the same EDF+ bytes', () => {
   let cliFirst: AnalysisResult;
   let recipe: Record<string, unknown> & { epochs: { events: string[] } };
 
+  it('decodes the samples once, into memory the page and its workers share', async () => {
+    // Cross-origin isolation (COOP same-origin + COEP require-corp, HTML Standard) lets the decoded channels live on
+    // SharedArrayBuffers (src/lib/formats/sample-arrays.ts), so the plan and analysis workers read the page's copy.
+    const shared = await page.evaluate(() => {
+      const rec = window.__tidemark!.stores.workspace.getState().recording;
+      return { isolated: crossOriginIsolated, shared: rec !== null && rec.data.every((d) => d.buffer instanceof SharedArrayBuffer) };
+    });
+    expect(shared).toEqual({ isolated: true, shared: true });
+  });
+
   it('the Recipe screen’s run equals the CLI’s result: power, spectrum, fits, trials, times, frequencies, edges', async () => {
     // One condition per label (unless the workspace already made them), every epoch kept: the command line has no
     // rejection rules, so both sides must epoch the same events.

@@ -158,6 +158,7 @@ async function headerProblems(response: Response, body: string | null): Promise<
     if (!new RegExp(`(^|,)\\s*${feature}=\\(\\)`).test(permissions)) problems.push(`Permissions-Policy does not deny ${feature}: "${permissions}"`);
   }
   if (h.get('cross-origin-opener-policy') !== 'same-origin') problems.push(`Cross-Origin-Opener-Policy is ${h.get('cross-origin-opener-policy')}`);
+  if (h.get('cross-origin-embedder-policy') !== 'require-corp') problems.push(`Cross-Origin-Embedder-Policy is ${h.get('cross-origin-embedder-policy')}`);
   return problems;
 }
 

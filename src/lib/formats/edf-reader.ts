@@ -5,6 +5,7 @@
  * that straddles two chunks is carried over in one record-sized buffer) and written straight into one preallocated
  * Float32Array (µV) per analysed channel, so memory is the output plus one chunk whatever the record size.
  */
+import { sampleArray } from './sample-arrays';
 import type { Recording, RecordingEvent } from '../analysis/recording';
 import { readExactly, type ByteSource } from './byte-source';
 import { parseTalBlock, type EdfAnnotation } from './edf-annotations';
@@ -205,7 +206,7 @@ export async function openEdf(source: ByteSource, options: OpenEdfOptions = {}):
       physicalDimension: s.physicalDimension,
       microvoltFactor: factor,
       unit,
-      samples: new Float32Array(recordCount * s.samplesPerRecord),
+      samples: sampleArray(recordCount * s.samplesPerRecord),
     });
   }
   if (ignored.some((i) => i.reason === 'sample-rate')) {

@@ -13,6 +13,10 @@ export const FIXED_SECURITY_HEADERS = Object.freeze({
   'permissions-policy':
     'accelerometer=(), autoplay=(), camera=(), display-capture=(), geolocation=(), gyroscope=(), hid=(), magnetometer=(), microphone=(), midi=(), payment=(), publickey-credentials-get=(), serial=(), usb=(), xr-spatial-tracking=()',
   'cross-origin-opener-policy': 'same-origin',
+  // With the opener policy above, this makes pages cross-origin isolated (HTML Standard), so decoded samples can
+  // live on a SharedArrayBuffer that the page and its workers share instead of copying (src/lib/formats/sample-arrays.ts).
+  // Every resource the app loads is its own (the CSP allows this origin only), so nothing else needs a CORP header.
+  'cross-origin-embedder-policy': 'require-corp',
   'cross-origin-resource-policy': 'same-origin',
   'x-frame-options': 'DENY',
 });
