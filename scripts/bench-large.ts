@@ -160,7 +160,7 @@ await runMain(async () => {
     await startChild('app', process.execPath, [path.join(root, 'server', 'main.mjs')], { env: { ...env, TIDEMARK_OUT_DIR: outDir() }, readyLine: 'Server listening' });
 
     const { chromium } = await import('playwright-core');
-    const browser = await chromium.launch({ executablePath: chromiumPath, headless: true, args: ['--headless', '--no-sandbox', '--disable-gpu', '--no-first-run'] });
+    const browser = await chromium.launch({ executablePath: chromiumPath, headless: true, args: ['--headless', '--no-sandbox', '--disable-gpu', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'] });
     try {
       const page = await (await browser.newContext({ viewport: { width: 1500, height: 1000 }, deviceScaleFactor: 1 })).newPage();
       await page.goto(`${appUrl}/sign-in`);
@@ -248,6 +248,13 @@ await runMain(async () => {
       })();
       // Let the library finish keeping the file, so its cost shows in the peak too.
       await page.waitForTimeout(2000);
+      const opened = renderers.map((pid) => ({ pid, now: memoryOf(pid) }));
+      // Then the Recipe screen checks the draft recipe: the plan worker takes the recording (shared memory on this
+      // cross-origin-isolated page, so no second copy) and conditions and epochs all of it.
+      await page.getByRole('tab', { name: 'Recipe' }).click();
+      const planStarted = performance.now();
+      await page.waitForTimeout(8000);
+      const planned = renderers.map((pid) => ({ pid, now: memoryOf(pid) }));
       const after = renderers.map((pid) => ({ pid, before: before.get(pid), now: memoryOf(pid) })).filter((r) => r.now !== null && r.before !== null && r.before !== undefined);
       const page0 = after.sort((a, b) => (b.now!.peakKb - b.before!.rssKb) - (a.now!.peakKb - a.before!.rssKb))[0];
       const since = (x: number) => `${((x - marks.chosen) / 1000).toFixed(2)} s`;
@@ -259,11 +266,22 @@ await runMain(async () => {
       console.log(`  progress line: ${marks.phases.map(([p, at]) => `${since(at)} ${p}`).join(' → ')}`);
       console.log(`  main thread: ${marks.longTaskCount} long tasks (> 50 ms) totalling ${(marks.longTasks / 1000).toFixed(2)} s while the file opened`);
       if (page0) {
-        const grew = page0.now!.peakKb - page0.before!.rssKb;
+        // The open's own figures, from the reading taken before the Recipe screen (VmHWM is the peak until then).
+        const open = opened.find((r) => r.pid === page0.pid)?.now ?? page0.now!;
+        const grew = open.peakKb - page0.before!.rssKb;
         console.log(
-          `page renderer memory: ${mb(page0.before!.rssKb)} before, peak ${mb(page0.now!.peakKb)} (+${mb(grew)}), now ${mb(page0.now!.rssKb)}; file ${(rec.bytes / 1e6).toFixed(0)} MB, decoded Float32 samples ${floatMb.toFixed(0)} MB`,
+          `page renderer memory: ${mb(page0.before!.rssKb)} before, peak ${mb(open.peakKb)} (+${mb(grew)}), now ${mb(open.rssKb)}; file ${(rec.bytes / 1e6).toFixed(0)} MB, decoded Float32 samples ${floatMb.toFixed(0)} MB`,
         );
         console.log(`  peak growth / decoded samples = ${((grew * 1024) / (floatMb * 1e6)).toFixed(2)} (1.00 would be the samples alone; +${((rec.bytes / (floatMb * 1e6)) ).toFixed(2)} more would mean the file held whole besides them)`);
+        const o = opened.find((r) => r.pid === page0.pid)?.now;
+        const p = planned.find((r) => r.pid === page0.pid)?.now;
+        if (o && p) {
+          const planGrew = p.peakKb - page0.before!.rssKb;
+          console.log(
+            `after the Recipe screen planned on it (${((performance.now() - planStarted) / 1000).toFixed(0)} s): peak ${mb(p.peakKb)}, now ${mb(p.rssKb)} (${mb(o.rssKb)} once open); ` +
+              `peak growth / decoded samples = ${((planGrew * 1024) / (floatMb * 1e6)).toFixed(2)} (a plan worker holding its own copy would add 1.00)`,
+          );
+        }
       }
     } finally {
       await browser.close();
