@@ -334,22 +334,15 @@ export class TrialGroups {
    * `row`, on the fine grid instead of every point), multiplied into the group's product.
    */
   private spreadBlock(): void {
-    const { s, n, fine, block, work, spectrum, scratch, product } = this;
+    const { s, n, fine, block, product } = this;
     const h = this.plan.half;
     const k = spectralKernels();
     const first = this.spread === 0;
     k.multiplyStrided(product, 0, h, block, s, first);
     if (h > 1) {
-      const table = twiddleTable(s);
-      k.conjugateInto(spectrum, block, s);
-      k.fft(s, spectrum, scratch, table);
-      const twiddles = residueTwiddles(n, s);
+      this.toSpectrum(block, s);
       const step = n / fine;
-      for (let rho = 1; rho < h; rho++) {
-        k.conjugateTimes(work, spectrum, twiddles + 16 * rho * step * s, s);
-        k.fft(s, work, scratch, table);
-        k.multiplyStrided(product, rho, h, work, s, first);
-      }
+      for (let rho = 1; rho < h; rho++) k.multiplyStrided(product, rho, h, this.shifted(s, rho * step), s, first);
     }
     this.inBlock = 0;
     this.spread++;
@@ -409,19 +402,29 @@ export class TrialGroups {
     if (fine === n) {
       k.powerStrided(rowBuffer, 0, 1, product, length);
     } else {
-      const { work, spectrum, scratch } = this;
-      const table = twiddleTable(fine);
-      k.conjugateInto(spectrum, product, fine);
-      k.fft(fine, spectrum, scratch, table);
-      const twiddles = residueTwiddles(n, fine);
+      this.toSpectrum(product, fine);
       const residues = n / fine;
-      for (let r = 0; r < residues; r++) {
-        k.conjugateTimes(work, spectrum, twiddles + 16 * r * fine, fine);
-        k.fft(fine, work, scratch, table);
-        k.powerStrided(rowBuffer, r, residues, work, Math.min(fine, Math.ceil((length - r) / residues)));
-      }
+      for (let r = 0; r < residues; r++) k.powerStrided(rowBuffer, r, residues, this.shifted(fine, r), Math.min(fine, Math.ceil((length - r) / residues)));
     }
     const at = rowBuffer / 8;
     row.set(heap().subarray(at, at + length));
+  }
+
+  /** `spectrum` = FFT_size(conj(w)) for the samples w of a grid of `size` points at `values` (ready for `shifted`). */
+  private toSpectrum(values: number, size: number): void {
+    const k = spectralKernels();
+    k.conjugateInto(this.spectrum, values, size);
+    k.fft(size, this.spectrum, this.scratch, twiddleTable(size));
+  }
+
+  /**
+   * The same band-limited signal r points later (r < N/size): w at q·N/size + r, as FFT_size(conj(G)·exp(−2πi·q·r/N)/size)
+   * with G = `spectrum` (the 1/size sits in the twiddles); written to `work`, whose pointer it returns.
+   */
+  private shifted(size: number, r: number): number {
+    const k = spectralKernels();
+    k.conjugateTimes(this.work, this.spectrum, residueTwiddles(this.n, size) + 16 * r * size, size);
+    k.fft(size, this.work, this.scratch, twiddleTable(size));
+    return this.work;
   }
 }
