@@ -5,7 +5,10 @@ import { summarizeChannel, type ChannelSummary, type ResolvedSummarySpec } from 
 
 export interface ChannelJob {
   plan: RecipePlan;
-  /** One channel's samples, µV; transferred in, so the caller sends a copy. */
+  /**
+   * One channel's samples, µV: the page's own shared array on a cross-origin-isolated page (read only: never write
+   * into it), else a copy transferred in.
+   */
   samples: Float32Array;
   /** The channel's name, for messages. */
   channel?: string;

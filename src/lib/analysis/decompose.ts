@@ -107,7 +107,8 @@ export function decomposeChannel(job: DecomposeJob, options: DecomposeOptions = 
   const keepRow = trialScope || job.singleTrials === true || spreadTrials;
   // Trial scope in decibels, percent change and power ratio also takes the coarse samples of the trial-average
   // path (trial-products.ts): B_k from them, then Σ_k P_k/B_k interpolated once, or in decibels one
-  // full-resolution row per pair of trials. z-score needs each trial's S_k over its own row: the per-trial path.
+  // full-resolution row per group of trials (TrialGroups). z-score needs each trial's S_k over its own row: the
+  // per-trial path.
   const coarseTrials = trialScope && method !== 'z-score';
   // Frequencies with a narrow band take the trial-average path (see averagePower). Keeping single trials must not
   // change that choice: the average then has other rounding, and the explorer's channel would no longer match the

@@ -26,6 +26,7 @@ export class PowerOfTwoFft {
   /** out[k] = Σ_j input[j]·exp(−2πi·jk/size). */
   transform(out: Float64Array, input: Float64Array): void {
     const n2 = 2 * this.size;
+    if (input.length < n2) throw new AnalysisInputError('fft.input', `holds ${input.length / 2} points for a transform of ${this.size}`);
     const h = heap();
     const at = this.data / 8;
     h.set(n2 === input.length ? input : input.subarray(0, n2), at);
@@ -41,6 +42,7 @@ export class PowerOfTwoFft {
   /** out[k] = (1/size)·Σ_j input[j]·exp(+2πi·jk/size). */
   inverseTransform(out: Float64Array, input: Float64Array): void {
     const n = this.size;
+    if (input.length < 2 * n) throw new AnalysisInputError('fft.input', `holds ${input.length / 2} points for a transform of ${n}`);
     const h = heap();
     const at = this.data / 8;
     for (let i = 0; i < n; i++) {
@@ -58,6 +60,7 @@ export class PowerOfTwoFft {
   /** The whole spectrum of `size` real samples, all `size` bins (nothing is left for `completeSpectrum`). */
   realTransform(out: Float64Array, input: Float64Array | Float32Array): void {
     const n = this.size;
+    if (input.length < n) throw new AnalysisInputError('fft.input', `holds ${input.length} samples for a transform of ${n}`);
     const h = heap();
     h.set(n === input.length ? input : input.subarray(0, n), this.real / 8);
     spectralKernels().realFft(n, this.real, this.data, this.scratch, this.table);

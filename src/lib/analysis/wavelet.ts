@@ -267,8 +267,9 @@ function buildWaveletBank(frequencies: Float64Array, sigmas: Float64Array, sampl
   return { epochSamples, sampleRateHz, fftSize, sizes, bandSizes, halfWidths, bins, weights, averageBandSizes, averageBins, averageWeights, bandWidths, averageOffsets };
 }
 
-// fft.js runs pure radix-4 passes at powers of four and adds a radix-2 pass otherwise; measured on fft.js 4.0.4,
-// a 256-point transform costs less per sample than a 128-point one, so bands are padded to a power of four.
+// Radix-4 transforms (fft.js then, the spectral kernels now) run pure radix-4 passes at powers of four and add a
+// radix-2 pass otherwise; measured on fft.js 4.0.4, a 256-point transform cost less per sample than a 128-point one,
+// so bands are padded to a power of four (kept with the kernels: changing it would change every single-trial bit).
 function nextPowerOfFour(n: number): number {
   let p = 4;
   while (p < n) p *= 4;

@@ -35,8 +35,9 @@ interface Started {
 
 /**
  * Plans recipes in a worker of its own (`planRun` scans every sample: conditioning, epoch decisions), so the main
- * thread never does. The worker gets the recording once (a copy, one channel per message so no single message
- * blocks this thread long) and keeps it for every later recipe. Conditioned samples come back transferred, only
+ * thread never does. The worker gets the recording once (one channel per message, so no single message blocks this
+ * thread long: the page's own shared samples on a cross-origin-isolated page, else copies) and keeps it for every
+ * later recipe. Conditioned samples come back transferred, only
  * for channels the conditioning changed and this side does not hold yet: a channel left as recorded is the
  * recording's own array, and a recipe that conditions alike (another baseline, grid or rejection) reuses the arrays
  * of the plan before. Calls run one at a time, in order.
@@ -61,7 +62,7 @@ export class RecipePlanner {
     return next;
   }
 
-  /** Ends the worker (and the recording copy it holds); a plan under way rejects; the next plan starts a new worker. */
+  /** Ends the worker (and its hold on the recording); a plan under way rejects; the next plan starts a new worker. */
   terminate(): void {
     const s = this.started;
     this.started = null;

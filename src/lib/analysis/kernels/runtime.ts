@@ -4,8 +4,8 @@ import { SPECTRAL_KERNELS_BASE64 } from './spectral-kernels.wasm';
 /**
  * The spectral kernels (kernels/spectral.ts, WebAssembly with 128-bit SIMD), instantiated once per thread, and the
  * layout of their memory. Pointers are byte offsets; `allocate` hands out 16-byte-aligned blocks that live as long
- * as the thread (transform buffers and twiddle tables per size, trial-group buffers), growing the memory when
- * needed. After any `allocate` the memory may have grown, so read `heap()` again rather than keeping a view.
+ * as the thread (transform buffers and twiddle tables per size, residue and phase tables per shape, trial-group
+ * buffers), growing the memory when needed: a new shape adds a few tables, a repeated one nothing. After any `allocate` the memory may have grown, so read `heap()` again rather than keeping a view.
  *
  * The module is under 4 KB, so it compiles synchronously even on a page's main thread (Chromium refuses larger
  * synchronous compiles there).
@@ -25,10 +25,11 @@ export interface SpectralKernels {
 }
 
 export class KernelsUnavailableError extends Error {
-  constructor() {
+  constructor(cause?: unknown) {
     super(
-      'This browser cannot run the analysis: it lacks WebAssembly with 128-bit SIMD (Chrome or Edge 91 and later, ' +
-        'Firefox 89 and later, Safari 16.4 and later have it).',
+      'This browser cannot run the analysis: it lacks WebAssembly with 128-bit SIMD, or may not compile it under the ' +
+        "page's security policy (Chrome or Edge 97 and later, Firefox 89 and later, Safari 16.4 and later can).",
+      { cause },
     );
     this.name = 'KernelsUnavailableError';
   }
@@ -51,7 +52,12 @@ export function spectralKernels(): SpectralKernels {
   if (kernels === null) {
     const bytes = decode(SPECTRAL_KERNELS_BASE64);
     if (typeof WebAssembly !== 'object' || !WebAssembly.validate(bytes)) throw new KernelsUnavailableError();
-    kernels = new WebAssembly.Instance(new WebAssembly.Module(bytes), {}).exports as unknown as SpectralKernels;
+    try {
+      kernels = new WebAssembly.Instance(new WebAssembly.Module(bytes), {}).exports as unknown as SpectralKernels;
+    } catch (error) {
+      // e.g. a browser that predates the CSP's 'wasm-unsafe-eval' refuses the compile
+      throw new KernelsUnavailableError(error);
+    }
   }
   return kernels;
 }
@@ -80,6 +86,11 @@ export function namedBlock(name: string, bytes: number): number {
   const at = allocate(size);
   named.set(name, { at, bytes: size });
   return at;
+}
+
+/** Bytes handed out so far (blocks are never freed: this grows only when a new shape or size is met). */
+export function allocatedBytes(): number {
+  return top;
 }
 
 /** The kernels' memory as f64 (index = pointer / 8). */

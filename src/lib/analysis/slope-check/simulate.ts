@@ -63,7 +63,7 @@ export function simulateAperiodic(s: SimulationSettings): Float32Array {
     }
   }
   const out = new Float64Array(2 * m);
-  getFft(m).inverseTransform(out, spectrum); // fft.js divides by m, matching the X_k convention above
+  getFft(m).inverseTransform(out, spectrum); // the inverse divides by m, matching the X_k convention above
   const x = new Float32Array(n);
   const noise = s.noiseMicrovolts ?? 0;
   for (let i = 0; i < n; i++) x[i] = out[2 * i] + (noise > 0 ? noise * gauss() : 0);

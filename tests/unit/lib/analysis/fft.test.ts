@@ -86,6 +86,13 @@ describe('fft helpers', () => {
     expect(Array.from(copy.subarray(0, 2 * n))).toEqual(Array.from(out.subarray(0, 2 * n)));
   });
 
+  it('refuses an input shorter than the transform (it would read the last call\'s tail)', () => {
+    const out = new Float64Array(64);
+    expect(() => getFft(32).transform(out, new Float64Array(62))).toThrow(/31 points for a transform of 32/);
+    expect(() => getFft(32).inverseTransform(out, new Float64Array(10))).toThrow(/transform of 32/);
+    expect(() => getFft(32).realTransform(out, new Float64Array(31))).toThrow(/31 samples for a transform of 32/);
+  });
+
   it('caches one transform per size and refuses sizes that are not powers of two', () => {
     expect(getFft(1024)).toBe(getFft(1024));
     expect(() => getFft(12)).toThrow(/power of two/);

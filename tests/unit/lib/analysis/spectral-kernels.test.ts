@@ -5,7 +5,7 @@ import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { compileKernels, moduleText } from '../../../../scripts/build-kernels.mjs';
 import { SPECTRAL_KERNELS_BASE64 } from '../../../../src/lib/analysis/kernels/spectral-kernels.wasm';
-import { allocate, heap, spectralKernels } from '../../../../src/lib/analysis/kernels/runtime';
+import { allocate, allocatedBytes, heap, spectralKernels } from '../../../../src/lib/analysis/kernels/runtime';
 
 describe('spectral kernels', () => {
   it('the committed bytes are the compiled source', async () => {
@@ -78,8 +78,8 @@ describe('kernel memory across decompositions', () => {
       baseline: { first: 20, last: 120, method: 'decibel' as const, scope: 'trial' as const },
     };
     decomposeChannel(job);
-    const after = spectralKernels().memory.buffer.byteLength;
+    const after = allocatedBytes();
     for (let i = 0; i < 5; i++) decomposeChannel({ ...job, samples: samples.map((x) => x * (i + 2)) });
-    expect(spectralKernels().memory.buffer.byteLength).toBe(after);
+    expect(allocatedBytes()).toBe(after);
   });
 });

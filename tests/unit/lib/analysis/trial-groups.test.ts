@@ -149,6 +149,14 @@ describe('TrialGroups rows against the DFT written out', () => {
     }
   });
 
+  it('refuses a grid larger than its buffers instead of writing past them', () => {
+    const groups = new TrialGroups(2, 256, 64);
+    expect(() => groups.begin(512, 64, 20, 0)).toThrow(/do not fit/);
+    expect(() => groups.begin(256, 128, 20, 0)).toThrow(/do not fit/);
+    expect(() => groups.begin(256, 64, 20, 0, { block: 2, half: 8, blocks: 4 })).toThrow(/do not fit/);
+    expect(() => groups.begin(256, 64, 20, 0)).not.toThrow();
+  });
+
   it('plans groups whose products fit their grids, at most MAX_GROUP trials', () => {
     // A product of g trials with bands of w bins has g·(w−1)+1 bins (the convolution of g supports).
     fc.assert(
