@@ -311,6 +311,7 @@ export class TrialGroups {
    */
   add(u: Float64Array, baselineMean?: number): number {
     const { s } = this;
+    if (this.count === this.size) throw new Error('TrialGroups.add: the group is full; take its rows first');
     const member = this.members + 16 * s * this.count;
     heap().set(u.length === 2 * s ? u : u.subarray(0, 2 * s), member / 8);
     let mean = baselineMean;

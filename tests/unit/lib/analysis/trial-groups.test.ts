@@ -155,6 +155,12 @@ describe('TrialGroups rows against the DFT written out', () => {
     expect(() => groups.begin(256, 128, 20, 0)).toThrow(/do not fit/);
     expect(() => groups.begin(256, 64, 20, 0, { block: 2, half: 8, blocks: 4 })).toThrow(/do not fit/);
     expect(() => groups.begin(256, 64, 20, 0)).not.toThrow();
+    // and a group that is full takes no more trials until its rows are taken
+    groups.begin(256, 64, 20, 0, { block: 2, half: 1, blocks: 1 });
+    const u = new Float64Array(128).fill(1);
+    groups.add(u, 1);
+    groups.add(u, 1);
+    expect(() => groups.add(u, 1)).toThrow(/full/);
   });
 
   it('plans groups whose products fit their grids, at most MAX_GROUP trials', () => {
