@@ -249,6 +249,16 @@ await runMain(async () => {
       // Let the library finish keeping the file, so its cost shows in the peak too.
       await page.waitForTimeout(2000);
       const opened = renderers.map((pid) => ({ pid, now: memoryOf(pid) }));
+      // A rejection rule switched off and on again: the epoch decisions are made again on the main thread, from the
+      // epochs' remembered statistics (src/lib/analysis/rejection.ts), so no sample is read.
+      const ruleChange: number[] = [];
+      for (let i = 0; i < 2; i++) {
+        await page.evaluate('window.__benchLarge.longTasks = 0; window.__benchLarge.longTaskCount = 0; window.__benchLarge.ruleAt = performance.now()');
+        await page.getByLabel('Peak-to-peak rule', { exact: true }).click();
+        await page.waitForTimeout(1500);
+        const m = (await page.evaluate('window.__benchLarge')) as { longTasks: number };
+        ruleChange.push(m.longTasks);
+      }
       // Then the Recipe screen checks the draft recipe: the plan worker takes the recording (shared memory on this
       // cross-origin-isolated page, so no second copy) and conditions and epochs all of it.
       await page.getByRole('tab', { name: 'Recipe' }).click();
@@ -265,6 +275,7 @@ await runMain(async () => {
       console.log(`  fingerprint (SHA-256) shown at ${since(fingerprintAt)}`);
       console.log(`  progress line: ${marks.phases.map(([p, at]) => `${since(at)} ${p}`).join(' → ')}`);
       console.log(`  main thread: ${marks.longTaskCount} long tasks (> 50 ms) totalling ${(marks.longTasks / 1000).toFixed(2)} s while the file opened`);
+      console.log(`  a rejection rule switched off, then on: main-thread long tasks (> 50 ms) ${ruleChange.map((x) => `${x.toFixed(0)} ms`).join(', ')}`);
       if (page0) {
         // The open's own figures, from the reading taken before the Recipe screen (VmHWM is the peak until then).
         const open = opened.find((r) => r.pid === page0.pid)?.now ?? page0.now!;

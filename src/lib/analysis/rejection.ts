@@ -100,6 +100,30 @@ export function epochStats(x: Float32Array, start: number, end: number, out: Flo
   out[1] = variance > 0 ? Math.sqrt(variance) : 0;
 }
 
+// Per channel array and epoch length, the stats of every epoch start already checked: changing a threshold, the
+// checked channels, a manual decision or the conditions then reads no samples. Samples are never written once decoded
+// (DEVELOPERS.md, "Cross-origin isolation and shared samples"), so an array's stats stay true; other conditioning
+// makes new arrays, which are new keys, and an entry goes with its array (WeakMap).
+const statsCache = new WeakMap<Float32Array, { length: number; byStart: Map<number, number>; values: number[] }>();
+
+/** `epochStats` of x[start..start+length), remembered (see `statsCache`). */
+function rememberedEpochStats(x: Float32Array, start: number, length: number, out: Float64Array): void {
+  let entry = statsCache.get(x);
+  if (entry === undefined || entry.length !== length) {
+    entry = { length, byStart: new Map(), values: [] };
+    statsCache.set(x, entry);
+  }
+  const at = entry.byStart.get(start);
+  if (at !== undefined) {
+    out[0] = entry.values[at];
+    out[1] = entry.values[at + 1];
+    return;
+  }
+  epochStats(x, start, start + length, out);
+  entry.byStart.set(start, entry.values.length);
+  entry.values.push(out[0], out[1]);
+}
+
 const format = (uv: number) => (uv >= 100 ? uv.toFixed(0) : uv.toFixed(uv >= 10 ? 1 : 2));
 
 /**
@@ -177,7 +201,7 @@ export function checkEpochs(
       const unit = recording.channelUnits?.[c] ?? 'µV';
       const p2pLimit = limits[k].peakToPeak;
       const flatLimit = limits[k].flat;
-      epochStats(x, start, end, stats);
+      rememberedEpochStats(x, start, length, stats);
       const p2p = stats[0];
       const sd = stats[1];
       if (p2p > worstP2p) {

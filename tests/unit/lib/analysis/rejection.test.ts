@@ -173,3 +173,31 @@ describe('applyOverride', () => {
     expect(applyOverride(outside, 'keep')).toEqual({ rejected: true, reasons: ['outside the recording'], manual: null });
   });
 });
+
+describe('checkEpochs on the same samples again (remembered epoch statistics)', () => {
+  it('gives what a first check of fresh copies gives, for every threshold, channel choice and window', () => {
+    // The statistics of each epoch are remembered per channel array and epoch length; every answer must equal a
+    // check of copies of the arrays (new arrays, nothing remembered), field for field.
+    fc.assert(
+      fc.property(
+        fc.integer({ min: 1, max: 1_000_000 }),
+        fc.array(fc.record({ p2p: fc.option(fc.double({ min: 1, max: 200, noNaN: true }), { nil: null }), flat: fc.option(fc.double({ min: 0, max: 5, noNaN: true }), { nil: null }), end: fc.constantFrom(0.5, 0.8), both: fc.boolean() }), { minLength: 1, maxLength: 6 }),
+        (seed, steps) => {
+          let state = seed;
+          const next = () => ((state = (state * 16807) % 2147483647) / 2147483647 - 0.5) * 80;
+          const data = [0, 1].map(() => Float32Array.from({ length: 4000 }, next));
+          const recording: Recording = { sampleRateHz: 100, channelNames: ['Fz', 'Cz'], data, events: [] };
+          const assignments = Array.from({ length: 30 }, (_, k) => ({ eventIndex: k, condition: 'a', onsetSeconds: 0.5 + k * 1.3 }));
+          for (const step of steps) {
+            const rule: RejectionRule = { peakToPeakMicrovolts: step.p2p, flatMicrovolts: step.flat, channelIndices: step.both ? null : [1] };
+            const window = { start: -0.2, end: step.end };
+            const again = checkEpochs(recording, assignments, window, rule);
+            const fresh = checkEpochs({ ...recording, data: data.map((x) => x.slice()) }, assignments, window, rule);
+            expect(again).toEqual(fresh);
+          }
+        },
+      ),
+      { numRuns: 40 },
+    );
+  });
+});
