@@ -124,15 +124,6 @@ export function scaleInto(dst: usize, src: usize, count: i32, scale: f64): void 
   }
 }
 
-/** dst[q] = dst[q]·(scale·src[q]) for q < count (complex). */
-export function multiplyScaled(dst: usize, src: usize, count: i32, scale: f64): void {
-  const k = f64x2.splat(scale);
-  for (let q = 0; q < count; q++) {
-    const o = <usize>q << 4;
-    v128.store(dst + o, cmul(v128.load(dst + o), f64x2.mul(k, v128.load(src + o))));
-  }
-}
-
 /** product[q·h + rho] = src[q] (first) or ×= src[q], for q < count (complex): one residue of a finer grid. */
 export function multiplyStrided(product: usize, rho: i32, h: i32, src: usize, count: i32, first: bool): void {
   const step = <usize>h << 4;

@@ -358,8 +358,6 @@ export async function createNote(ctx: SessionWithRole, authorId: string, input: 
   return { ok: true, note: earlier, replayed: true };
 }
 
-const lit = literal;
-
 /** A note's or reply's audit event; in the one-message post PostgreSQL supplies the actor, team, study and code. */
 function noteEvent(
   noteId: string,
@@ -389,15 +387,13 @@ const NOTE_FIELDS = `id, analysis_session_id AS "analysisSessionId", parent_id A
 async function createNoteInOneMessage(ctx: SessionWithRole, authorId: string, input: NoteInput): Promise<Note | null> {
   const id = randomUUID();
   const insert = `INSERT INTO notes (id, analysis_session_id, parent_id, recipe_version_id, anchor, author_id, body, mentions, client_key)
-    VALUES (${lit(id)}::uuid, ${lit(ctx.session.id)}::uuid, ${lit(input.parentId)}::uuid, ${lit(input.recipeVersionId)}::uuid,
-      ${input.anchor === null ? 'NULL' : `${lit(JSON.stringify(input.anchor))}::jsonb`}, ${lit(authorId)}, ${lit(input.body)},
-      ARRAY[${input.mentions.map(lit).join(', ')}]::text[], ${lit(input.clientKey ?? null)}::uuid)
+    VALUES (${literal(id)}::uuid, ${literal(ctx.session.id)}::uuid, ${literal(input.parentId)}::uuid, ${literal(input.recipeVersionId)}::uuid,
+      ${input.anchor === null ? 'NULL' : `${literal(JSON.stringify(input.anchor))}::jsonb`}, ${literal(authorId)}, ${literal(input.body)},
+      ARRAY[${input.mentions.map(literal).join(', ')}]::text[], ${literal(input.clientKey ?? null)}::uuid)
     ON CONFLICT DO NOTHING RETURNING ${NOTE_FIELDS}`;
   const { lock, insert: audit } = appendStatements(
-    {
-      ...noteEvent(id, authorId, { teamId: ctx.team.id, sessionId: ctx.session.id, studyId: ctx.study.id, subjectCode: ctx.session.subjectCode }, input),
-    },
-    { onlyIf: `EXISTS (SELECT 1 FROM notes WHERE id = ${lit(id)}::uuid)` },
+    noteEvent(id, authorId, { teamId: ctx.team.id, sessionId: ctx.session.id, studyId: ctx.study.id, subjectCode: ctx.session.subjectCode }, input),
+    { onlyIf: `EXISTS (SELECT 1 FROM notes WHERE id = ${literal(id)}::uuid)` },
   );
   const results = await preparedMessage<Note>(['BEGIN', insert, lock, audit, 'COMMIT']);
   return results[1].rows[0] ?? null;
@@ -425,9 +421,7 @@ export async function createNoteAsSignedIn(
   ];
   const auditValues: (string | null)[] = [id];
   const { lock, insert: audit } = appendStatements(
-    {
-      ...noteEvent(id, new SqlValue('c.author_id'), { teamId: new SqlValue('c.team_id'), sessionId, studyId: new SqlValue('c.study_id'), subjectCode: new SqlValue('c.subject_code') }, { parentId: null, mentions: [] }),
-    },
+    noteEvent(id, new SqlValue('c.author_id'), { teamId: new SqlValue('c.team_id'), sessionId, studyId: new SqlValue('c.study_id'), subjectCode: new SqlValue('c.subject_code') }, { parentId: null, mentions: [] }),
     {
       from: NOTE_AUDIT_FROM,
       value: (v) => {
@@ -484,20 +478,20 @@ const preparedOn = new WeakMap<pg.PoolClient, Set<string>>();
 async function preparedMessage<T extends pg.QueryResultRow>(statements: (string | { text: string; values: (string | null)[] })[]): Promise<pg.QueryResult<T>[]> {
   const client = await pool.connect();
   const known = preparedOn.get(client) ?? new Set<string>();
-  const preparing: string[] = [];
+  // name → PREPARE statement, for the statements this connection has not prepared yet
+  const preparing = new Map<string, string>();
   const sqlText = statements.map((st) => {
     if (typeof st === 'string') return st;
     const name = `tidemark_m_${createHash('sha256').update(st.text).digest('hex').slice(0, 16)}`;
-    if (!known.has(name) && !preparing.includes(name)) preparing.push(name, `PREPARE ${name} AS ${st.text}`);
-    return `EXECUTE ${name}(${st.values.map(lit).join(', ')})`;
+    if (!known.has(name)) preparing.set(name, `PREPARE ${name} AS ${st.text}`);
+    return `EXECUTE ${name}(${st.values.map(literal).join(', ')})`;
   });
-  const prepares = preparing.filter((_, i) => i % 2 === 1);
   try {
-    const results = (await client.query([...prepares, ...sqlText].join(';\n'))) as unknown as pg.QueryResult<T>[];
-    for (let i = 0; i < preparing.length; i += 2) known.add(preparing[i]);
+    const results = (await client.query([...preparing.values(), ...sqlText].join(';\n'))) as unknown as pg.QueryResult<T>[];
+    for (const name of preparing.keys()) known.add(name);
     preparedOn.set(client, known);
     client.release();
-    return results.slice(prepares.length);
+    return results.slice(preparing.size);
   } catch (error) {
     await client.query('ROLLBACK').catch(() => {});
     client.release(true);

@@ -34,11 +34,6 @@ export class PowerOfTwoFft {
     out.set(heap().subarray(at, at + n2));
   }
 
-  /** The transform in place in the kernels' memory at `this.data` (for kernels that keep their data there). */
-  transformInPlace(): void {
-    spectralKernels().fft(this.size, this.data, this.scratch, this.table);
-  }
-
   /** out[k] = (1/size)·Σ_j input[j]·exp(+2πi·jk/size). */
   inverseTransform(out: Float64Array, input: Float64Array): void {
     const n = this.size;

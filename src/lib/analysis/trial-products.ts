@@ -65,9 +65,25 @@ export function baselineWeights(n: number, s: number, first: number, last: numbe
 
 /** B = Σ_s a_s·|u[s]|² (see `baselineWeights`), u interleaved complex. */
 export function coarseBaseline(u: Float64Array, a: Float64Array): number {
-  let total = 0;
-  for (let q = 0; q < a.length; q++) total += a[q] * (u[2 * q] * u[2 * q] + u[2 * q + 1] * u[2 * q + 1]);
-  return total;
+  const at = namedBlock('coarse-baseline.samples', 16 * a.length);
+  heap().set(u.subarray(0, 2 * a.length), at / 8);
+  return baselineAt(at, a);
+}
+
+// The weights `baselineAt` last copied into the kernels' memory, and where: a frequency's trials share one array
+// (`baselineWeights` caches them, and nothing writes into them), so it is copied once per frequency, not per trial.
+let heldWeights: Float64Array | null = null;
+let heldAt = -1;
+
+/** `coarseBaseline` of samples already in the kernels' memory (a pointer), in the kernel `weightedPower`. */
+function baselineAt(samples: number, a: Float64Array): number {
+  const at = namedBlock('coarse-baseline.weights', 8 * a.length);
+  if (heldWeights !== a || heldAt !== at) {
+    heap().set(a, at / 8);
+    heldWeights = a;
+    heldAt = at;
+  }
+  return spectralKernels().weightedPower(samples, at, a.length);
 }
 
 /** ratio[s] += |u[s]|²/B: the coarse samples of Σ_k P_k/B_k, interpolated once per condition. */
@@ -230,9 +246,8 @@ export class TrialGroups {
   private readonly product: number;
   /** The group's trials' own samples, S points each, kept until the row is checked (see `rows`). */
   private readonly members: number;
-  /** The baseline weights a_s (f64, see `baselineWeights`), when set by `useBaseline`. */
-  private readonly weights: number;
-  private hasWeights = false;
+  /** The baseline weights a_s (`baselineWeights`), when set by `useBaseline`. */
+  private baseline: Float64Array | null = null;
   /** Each member's scale exponent e_k. */
   private readonly exponents = new Int32Array(MAX_GROUP);
   private readonly spectrum: number;
@@ -254,7 +269,6 @@ export class TrialGroups {
     this.block = namedBlock(`trial-groups.block.${slot}`, 16 * maxCoarse);
     this.product = namedBlock(`trial-groups.product.${slot}`, 16 * maxFine);
     this.members = namedBlock(`trial-groups.members.${slot}`, 16 * MAX_GROUP * maxCoarse);
-    this.weights = namedBlock(`trial-groups.weights.${slot}`, 8 * maxCoarse);
     this.spectrum = namedBlock('trial-groups.spectrum', 16 * maxFine);
     this.work = namedBlock('trial-groups.work', 16 * maxFine);
     this.scratch = namedBlock('trial-groups.scratch', 16 * maxFine);
@@ -276,7 +290,7 @@ export class TrialGroups {
     this.plan = plan;
     this.fine = plan.half * s;
     this.phase = phaseTable(s, offset);
-    this.hasWeights = false;
+    this.baseline = null;
     this.inBlock = 0;
     this.count = 0;
     this.shift = 0;
@@ -299,8 +313,7 @@ export class TrialGroups {
 
   /** The baseline weights for this frequency (`baselineWeights` of its N and S), so that `add` finds each B_k. */
   useBaseline(a: Float64Array): void {
-    heap().set(a.subarray(0, this.s), this.weights / 8);
-    this.hasWeights = true;
+    this.baseline = a;
   }
 
   /**
@@ -316,8 +329,8 @@ export class TrialGroups {
     heap().set(u.length === 2 * s ? u : u.subarray(0, 2 * s), member / 8);
     let mean = baselineMean;
     if (mean === undefined) {
-      if (!this.hasWeights) throw new Error('TrialGroups.add: no baseline mean and no baseline weights');
-      mean = spectralKernels().weightedPower(member, this.weights, s);
+      if (this.baseline === null) throw new Error('TrialGroups.add: no baseline mean and no baseline weights');
+      mean = baselineAt(member, this.baseline);
     }
     let level = mean;
     if (!(level >= MIN_NORMAL && level <= Number.MAX_VALUE)) {

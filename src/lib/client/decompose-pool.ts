@@ -7,7 +7,7 @@ import type { CoarseTrials } from '../analysis/decompose';
 import type { DecomposeApi } from '../../../workers/decompose-api';
 import type { PoolWorker } from '../../../workers/pool-worker';
 import { webPoolWorker } from './web-worker';
-import { isShared } from '../formats/sample-arrays';
+import { forWorker } from '../formats/sample-arrays';
 
 export type { PoolWorker };
 
@@ -169,9 +169,7 @@ export class DecomposePool {
         while (!run.done && next < n) {
           const c = next++;
           const channel = plan.channels[c];
-          // Shared samples (a cross-origin-isolated page) go as they are; others are copied and the copy transferred.
-          const own = recording.data[plan.channelIndices[c]];
-          const samples = isShared(own) ? own : own.slice();
+          const { samples, transfer } = forWorker(recording.data[plan.channelIndices[c]]);
           const job = { plan, samples, channel, singleTrials: c === singleIndex, coarseTrials: c === singleIndex, epochSpectra: options.epochSpectra === true };
           const onChannel = Comlink.proxy((f: number) => {
             fractions[c] = f;
@@ -179,7 +177,7 @@ export class DecomposePool {
           });
           slot.channel = channel;
           try {
-            outputs[c] = await slot.remote.run(Comlink.transfer(job, samples === own ? [] : [samples.buffer]), onChannel);
+            outputs[c] = await slot.remote.run(Comlink.transfer(job, transfer), onChannel);
           } catch (error) {
             throw new PoolWorkerError(channel, messageOf(error));
           } finally {

@@ -5,7 +5,7 @@ import { combineSummary, resolveSummarySpec, SUMMARY_LIMITS, type ChannelSummary
 import type { DecomposeApi } from '../../../workers/decompose-api';
 import type { PoolWorker } from '../../../workers/pool-worker';
 import { webPoolWorker } from './web-worker';
-import { isShared } from '../formats/sample-arrays';
+import { forWorker } from '../formats/sample-arrays';
 
 export interface SummaryRunOptions {
   /** Workers to run at once; default navigator.hardwareConcurrency − 1, between 1 and 4. */
@@ -72,9 +72,8 @@ export async function summarizeRecording(input: Recording, recipe: unknown, opti
         const remote = Comlink.wrap<DecomposeApi>(worker.endpoint);
         while (next < n) {
           const c = next++;
-          const own = recording.data[plan.channelIndices[c]];
-          const samples = isShared(own) ? own : own.slice();
-          parts[c] = await remote.summarize(Comlink.transfer({ plan, samples, channel: plan.channels[c], index: c }, samples === own ? [] : [samples.buffer]), spec);
+          const { samples, transfer } = forWorker(recording.data[plan.channelIndices[c]]);
+          parts[c] = await remote.summarize(Comlink.transfer({ plan, samples, channel: plan.channels[c], index: c }, transfer), spec);
           options.onProgress?.(++done, n);
         }
         // No releaseProxy here: in Node it lets an idle worker exit (code 0) while another lane still works, and that

@@ -16,3 +16,13 @@ export function sampleArray(length: number): Float32Array {
 export function isShared(array: ArrayBufferView): boolean {
   return typeof SharedArrayBuffer === 'function' && array.buffer instanceof SharedArrayBuffer;
 }
+
+/**
+ * A channel's samples as they go to a worker: shared ones as they are (nothing to transfer), others as a copy whose
+ * buffer is transferred (the page keeps its own).
+ */
+export function forWorker(samples: Float32Array): { samples: Float32Array; transfer: ArrayBuffer[] } {
+  if (isShared(samples)) return { samples, transfer: [] };
+  const copy = samples.slice();
+  return { samples: copy, transfer: [copy.buffer] };
+}

@@ -15,7 +15,6 @@ export interface SpectralKernels {
   fft(n: number, data: number, scratch: number, table: number): void;
   realFft(n: number, real: number, data: number, scratch: number, table: number): void;
   scaleInto(dst: number, src: number, count: number, scale: number): void;
-  multiplyScaled(dst: number, src: number, count: number, scale: number): void;
   multiplyStrided(product: number, rho: number, h: number, src: number, count: number, first: boolean): void;
   conjugateInto(dst: number, src: number, count: number): void;
   conjugateTimes(dst: number, src: number, twiddles: number, count: number): void;

@@ -46,9 +46,13 @@ describe('spectral kernels', () => {
     heap().set(bv, b / 8);
     heap().set(wv, w / 8);
     const mul = (x: number[], y: number[], q: number) => [x[2 * q] * y[2 * q] - x[2 * q + 1] * y[2 * q + 1], x[2 * q] * y[2 * q + 1] + x[2 * q + 1] * y[2 * q]];
-    k.multiplyScaled(a, b, n, 0.25);
+    // dst·((scale·src)·phase), the phase here the plain pairs at w
+    k.multiplyPhased(a, b, w, n, 0.25, false);
     const scaled = bv.map((v) => 0.25 * v);
-    for (let q = 0; q < n; q++) expect(Array.from(heap().subarray(a / 8 + 2 * q, a / 8 + 2 * q + 2))).toEqual(mul(av, scaled, q));
+    const phased = Array.from({ length: n }, (_, q) => mul(scaled, wv, q)).flat();
+    for (let q = 0; q < n; q++) expect(Array.from(heap().subarray(a / 8 + 2 * q, a / 8 + 2 * q + 2))).toEqual(mul(av, phased, q));
+    k.multiplyPhased(a, b, w, n, 0.25, true);
+    for (let q = 0; q < n; q++) expect(Array.from(heap().subarray(a / 8 + 2 * q, a / 8 + 2 * q + 2))).toEqual(mul(scaled, wv, q));
     k.conjugateTimes(a, b, w, n);
     const conjB = bv.map((v, i) => (i % 2 === 1 ? -v : v));
     for (let q = 0; q < n; q++) expect(Array.from(heap().subarray(a / 8 + 2 * q, a / 8 + 2 * q + 2))).toEqual(mul(conjB, wv, q));

@@ -80,7 +80,11 @@ describe('TrialGroups rows against the DFT written out', () => {
               const a = baselineWeights(n, s, 3, 40);
               groups.useBaseline(a);
               const b = groups.add(u);
-              expect(Math.abs(b - coarseBaseline(u, a))).toBeLessThan(1e-12 * Math.abs(coarseBaseline(u, a)));
+              // B = Σ_s a_s·|u[s]|², written out here
+              let want = 0;
+              for (let q = 0; q < s; q++) want += a[q] * (u[2 * q] ** 2 + u[2 * q + 1] ** 2);
+              expect(Math.abs(b - want)).toBeLessThan(1e-12 * Math.abs(want));
+              expect(coarseBaseline(u, a)).toBe(b);
             } else groups.add(u, k % 2 === 0 ? meanPower : 0);
           }
           expect(groups.full()).toBe(trials === size);
